@@ -1,0 +1,252 @@
+/**
+ * The campaign file: one YAML or JSON document describing the site, the turbine, the instruments and their data, the
+ * measurement planes, quality control, averaging windows, the wind-direction source, the analysis and the outputs.
+ *
+ * Conventions (stated once, used everywhere):
+ * - Site frame: east, north, up in metres from the site origin.
+ * - Azimuth: degrees clockwise from north. Elevation: degrees above horizontal.
+ * - Radial velocity: positive away from the instrument.
+ * - Rotor frame: origin at the tower base on the ground, x downstream along the wind, y to the left looking
+ *   downstream, z up (so z is height above the turbine's ground level).
+ * - Wind direction: the direction the wind comes from, degrees clockwise from north.
+ *
+ * Every key carries its unit and default in its description; `wakeplane schema` prints the JSON Schema.
+ */
+import { z } from 'zod';
+
+const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
+const vec3 = z.tuple([finite(), finite(), finite()]);
+
+/** A column in a CSV file: its header name, and a scale/offset turning the stored value into the SI unit. */
+const columnRef = z.union([
+  z.string().min(1),
+  z
+    .object({
+      name: z.string().min(1).describe('header name of the column in the file'),
+      scale: finite().default(1).describe('multiply the stored value by this to get the SI unit; default 1'),
+      offset: finite().default(0).describe('then add this (SI unit); default 0'),
+    })
+    .strict(),
+]);
+
+export const columnMapSchema = z
+  .object({
+    time: columnRef.optional().describe('time column: ISO 8601 UTC or Unix seconds; default header "time"'),
+    instrument: columnRef.optional().describe('instrument id column; default "instrument"; optional if the file belongs to one instrument'),
+    azimuth_deg: columnRef.optional().describe('azimuth, degrees clockwise from north; default "azimuth_deg"'),
+    elevation_deg: columnRef.optional().describe('elevation above horizontal, degrees; default "elevation_deg"'),
+    range_m: columnRef.optional().describe('range along the beam (focus distance for continuous-wave), metres; default "range_m"'),
+    radial_velocity_ms: columnRef.optional().describe('radial velocity, m/s; default "radial_velocity_ms"'),
+    cnr_db: columnRef.optional().describe('carrier-to-noise ratio, dB; default "cnr_db"; optional column'),
+  })
+  .strict();
+
+const calibrationSchema = z
+  .object({
+    heading_deg: finite().default(0).describe('instrument heading offset, degrees clockwise: a true azimuth = reported azimuth + heading; default 0'),
+    pitch_deg: finite().default(0).describe('instrument pitch, degrees, positive raises the beam pointing along the instrument north axis; default 0'),
+    roll_deg: finite().default(0).describe('instrument roll, degrees, positive raises the beam pointing along the instrument east axis; default 0'),
+    rangeOffset_m: finite().default(0).describe('added to every reported range, metres; default 0'),
+  })
+  .strict()
+  .default({ heading_deg: 0, pitch_deg: 0, roll_deg: 0, rangeOffset_m: 0 });
+
+const pulsedSchema = z
+  .object({
+    pulseFwhm_ns: finite().positive().default(200).describe('pulse intensity full width at half maximum, ns; default 200'),
+    gateLength_m: finite().positive().default(30).describe('range-gate length, m; default 30'),
+  })
+  .strict();
+
+const cwSchema = z
+  .object({
+    wavelength_m: finite().positive().default(1.565e-6).describe('laser wavelength, m; default 1.565e-6'),
+    apertureRadius_m: finite().positive().default(0.028).describe('1/e^2 beam radius at the lens, m; default 0.028'),
+  })
+  .strict();
+
+const instrumentSchema = z
+  .object({
+    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only'),
+    position_m: vec3.optional().describe('site-frame position east, north, up, metres (the beam origin)'),
+    position_wgs84: z
+      .object({
+        lat_deg: finite().min(-90).max(90),
+        lon_deg: finite().min(-180).max(180),
+        alt_m: finite().describe('height above the WGS84 ellipsoid of the beam origin, metres'),
+      })
+      .strict()
+      .optional()
+      .describe('position as WGS84 latitude/longitude/ellipsoidal height; needs site.origin_wgs84'),
+    kind: z.enum(['pulsed', 'cw']).default('pulsed').describe('pulsed or continuous-wave (cw); default pulsed'),
+    pulsed: pulsedSchema.default({ pulseFwhm_ns: 200, gateLength_m: 30 }),
+    cw: cwSchema.default({ wavelength_m: 1.565e-6, apertureRadius_m: 0.028 }),
+    calibration: calibrationSchema,
+    files: z.array(z.string().min(1)).default([]).describe('data files (CSV), relative to the campaign file'),
+    columns: columnMapSchema.default({}).describe('column mapping for files whose headers or units differ'),
+    radialVelocitySign: z
+      .enum(['away', 'toward'])
+      .default('away')
+      .describe('sign convention of the files: "away" (positive away from the instrument, the CF convention) or "toward"; default away'),
+    scan: z
+      .object({
+        dwell_s: finite().positive().default(1).describe('time per point, s; default 1'),
+        slewRate_degs: finite().positive().default(30).describe('slew rate, degrees per second; default 30'),
+      })
+      .strict()
+      .default({ dwell_s: 1, slewRate_degs: 30 })
+      .describe('scanner timing for the planner'),
+  })
+  .strict();
+
+const extent = z
+  .object({
+    min: finite(),
+    max: finite(),
+  })
+  .strict()
+  .refine((e) => e.max > e.min, 'max must be greater than min');
+
+const planeSchema = z
+  .object({
+    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only'),
+    orientation: z
+      .enum(['cross', 'horizontal'])
+      .default('cross')
+      .describe('cross: vertical plane across the rotor axis at distance x; horizontal: plane at height z; default cross'),
+    x_m: finite().optional().describe('downstream distance of a cross plane from the rotor, metres'),
+    x_D: finite().optional().describe('downstream distance of a cross plane in rotor diameters (instead of x_m)'),
+    z_m: finite().optional().describe('height of a horizontal plane above ground, metres (default: hub height)'),
+    y: extent.describe('lateral extent (rotor frame y, positive to the left looking downstream), metres'),
+    z: extent.optional().describe('vertical extent of a cross plane (height above ground), metres'),
+    xRange: extent.optional().describe('downstream extent of a horizontal plane, metres'),
+    cell_m: z.tuple([finite().positive(), finite().positive()]).describe('cell size [along y, along z or x], metres'),
+    thickness_m: finite().positive().default(20).describe('samples within +/- thickness/2 of the plane count, metres; default 20'),
+  })
+  .strict();
+
+const windowSchema = z.union([
+  z.object({ kind: z.literal('fixed'), length_s: finite().positive().describe('window length, s (aligned to multiples of the length since the Unix epoch)') }).strict(),
+  z.object({ kind: z.literal('record') }).strict().describe('one window over the whole record'),
+]);
+
+const seriesFile = z
+  .object({
+    file: z.string().min(1).describe('CSV file relative to the campaign file'),
+    columns: z.record(z.string(), z.string()).default({}).describe('map of our column name to the file header'),
+  })
+  .strict();
+
+const windDirectionSchema = z.union([
+  z.object({ kind: z.literal('fixed'), deg: finite().min(0).max(360).describe('wind direction (from), degrees') }).strict(),
+  seriesFile.extend({ kind: z.literal('series') }).describe('time series with columns time, direction_deg (vector-averaged per window)'),
+]);
+
+const thrustSchema = z.union([
+  finite().min(0).max(1.2),
+  z.array(z.tuple([finite().min(0), finite().min(0).max(1.2)])).min(2).describe('curve of [wind speed m/s, Ct]'),
+]);
+
+export const campaignSchema = z
+  .object({
+    name: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only (used as the output folder name)'),
+    description: z.string().default(''),
+    site: z
+      .object({
+        origin_wgs84: z
+          .object({ lat_deg: finite().min(-90).max(90), lon_deg: finite().min(-180).max(180), alt_m: finite() })
+          .strict()
+          .optional()
+          .describe('WGS84 position of the site-frame origin; needed for instruments given in latitude/longitude'),
+        groundLevel_m: finite().default(0).describe('ground height in the site frame (flat terrain), metres; default 0'),
+        earthCurvature: z.boolean().default(false).describe('correct beam heights for the Earth curvature (ranges of kilometres); default false'),
+      })
+      .strict()
+      .default({ groundLevel_m: 0, earthCurvature: false }),
+    turbine: z
+      .object({
+        id: z.string().default('turbine'),
+        position_m: vec3.describe('tower base east, north, up, metres'),
+        hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
+        rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),
+        thrustCoefficient: thrustSchema.default(0.8).describe('thrust coefficient, a value or a curve against wind speed; default 0.8'),
+        series: seriesFile
+          .optional()
+          .describe('turbine time series with columns time, yaw_deg (nacelle direction), optional wind_direction_deg and power_kw'),
+      })
+      .strict(),
+    instruments: z.array(instrumentSchema).min(1),
+    planes: z.array(planeSchema).min(1),
+    qc: z
+      .object({
+        cnr_db: z
+          .object({
+            min: finite().default(-27).describe('samples below are rejected as noise, dB; default -27 (common practice for pulsed lidars)'),
+            max: finite().default(5).describe('samples above are rejected as hard-target returns, dB; default 5'),
+          })
+          .strict()
+          .default({ min: -27, max: 5 }),
+        radialVelocityLimit_ms: finite().positive().default(35).describe('|radial velocity| above is rejected, m/s; default 35'),
+        groundClearance_m: finite().min(0).default(2).describe('measurement points lower than this above ground are rejected, metres; default 2'),
+        robust: z
+          .object({
+            enabled: z.boolean().default(true),
+            k: finite().positive().default(3.5).describe('reject |v - median| > k * 1.4826 * MAD per instrument, cell and window; default 3.5'),
+            minSamples: z.number().int().min(3).default(5).describe('apply only where a group has at least this many samples; default 5'),
+          })
+          .strict()
+          .default({ enabled: true, k: 3.5, minSamples: 5 }),
+      })
+      .strict()
+      .default({
+        cnr_db: { min: -27, max: 5 },
+        radialVelocityLimit_ms: 35,
+        groundClearance_m: 2,
+        robust: { enabled: true, k: 3.5, minSamples: 5 },
+      }),
+    windows: windowSchema.default({ kind: 'fixed', length_s: 600 }).describe('averaging windows; default fixed 600 s'),
+    windDirection: windDirectionSchema.describe('wind-direction source defining the rotor frame'),
+    retrieval: z
+      .object({
+        maxAmplification: finite().min(1).default(3).describe('mask a component whose error amplification exceeds this; default 3'),
+        minSamplesPerInstrument: z.number().int().min(1).default(3).describe('an instrument counts in a cell with at least this many samples; default 3'),
+        twoInstrumentAssumption: z
+          .enum(['w-zero', 'none'])
+          .default('w-zero')
+          .describe('with two instruments in a cell: w-zero solves u, v assuming w = 0 (stated in the output); none masks the cell; default w-zero'),
+      })
+      .strict()
+      .default({ maxAmplification: 3, minSamplesPerInstrument: 3, twoInstrumentAssumption: 'w-zero' }),
+    inflow: z
+      .union([
+        z.object({ kind: z.literal('plane'), law: z.enum(['power', 'log']).default('power') }).strict().describe('fit the undisturbed cells of each plane'),
+        z.object({ kind: z.literal('fixed'), speed_ms: finite().positive(), height_m: finite().positive(), law: z.enum(['power', 'log']).default('power'), alpha: finite().default(0.2), z0_m: finite().positive().default(0.03) }).strict(),
+        seriesFile.extend({ kind: z.literal('series') }).describe('reference series with columns time, height_m, speed_ms, direction_deg'),
+      ])
+      .default({ kind: 'plane', law: 'power' })
+      .describe('inflow reference for the deficit; default: fit the plane itself'),
+    wake: z
+      .object({
+        yawBin_deg: finite().positive().default(5).describe('width of yaw-offset bins for wake steering, degrees; default 5'),
+        turbulenceIntensity: finite().min(0).default(0.1).describe('ambient turbulence intensity for the yawed-wake model; default 0.1'),
+      })
+      .strict()
+      .default({ yawBin_deg: 5, turbulenceIntensity: 0.1 }),
+    output: z
+      .object({
+        dir: z.string().default('output').describe('output root, relative to the working directory; results go to <dir>/<name>'),
+        writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
+        images: z.boolean().default(true).describe('render images and the report; default true'),
+      })
+      .strict()
+      .default({ dir: 'output', writeRejected: true, images: true }),
+    simulation: z
+      .record(z.string(), z.unknown())
+      .optional()
+      .describe('settings of the built-in simulator (demo scenarios only)'),
+  })
+  .strict();
+
+export type CampaignInput = z.input<typeof campaignSchema>;
+export type CampaignParsed = z.output<typeof campaignSchema>;
+export type ColumnMap = z.output<typeof columnMapSchema>;

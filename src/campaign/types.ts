@@ -1,0 +1,69 @@
+/**
+ * The campaign after validation and defaulting: every path absolute, every position in the site frame (east, north,
+ * up, metres), every plane in metres. This is what the rest of wakeplane consumes.
+ */
+import type { CampaignParsed, ColumnMap } from './schema.ts';
+
+export type Vec3 = [number, number, number];
+
+export interface Calibration {
+  /** Heading offset, degrees clockwise: true azimuth = reported azimuth + heading (before pitch and roll). */
+  heading_deg: number;
+  /** Pitch, degrees: rotation about the instrument east axis; positive tilts the instrument's north axis up. */
+  pitch_deg: number;
+  /** Roll, degrees: rotation about the instrument north axis; positive tilts the instrument's east axis up. */
+  roll_deg: number;
+  /** Added to every reported range, metres. */
+  rangeOffset_m: number;
+}
+
+export interface Instrument {
+  id: string;
+  /** Index in campaign.instruments, also the value stored in sample batches. */
+  index: number;
+  /** Site-frame beam origin, metres. */
+  position: Vec3;
+  kind: 'pulsed' | 'cw';
+  pulsed: { pulseFwhm_ns: number; gateLength_m: number };
+  cw: { wavelength_m: number; apertureRadius_m: number };
+  calibration: Calibration;
+  /** Absolute paths of the data files. */
+  files: string[];
+  columns: ColumnMap;
+  radialVelocitySign: 'away' | 'toward';
+  scan: { dwell_s: number; slewRate_degs: number };
+}
+
+export interface PlaneSpec {
+  id: string;
+  index: number;
+  orientation: 'cross' | 'horizontal';
+  /** Cross plane: downstream distance from the rotor, metres. */
+  x_m: number;
+  /** Horizontal plane: height above ground, metres. */
+  z_m: number;
+  /** Lateral extent, metres (rotor frame y). */
+  y: { min: number; max: number };
+  /** Cross plane: vertical extent (height above ground); horizontal plane: downstream extent (x). */
+  second: { min: number; max: number };
+  /** Cell size [along y, along the second axis], metres. */
+  cell_m: [number, number];
+  thickness_m: number;
+}
+
+export interface SeriesRef {
+  file: string;
+  columns: Record<string, string>;
+}
+
+export type Campaign = Omit<CampaignParsed, 'instruments' | 'planes' | 'turbine' | 'windDirection' | 'inflow'> & {
+  /** Absolute path of the campaign file (or '<memory>'). */
+  sourceFile: string;
+  /** Folder the campaign file sits in; relative paths resolve against it. */
+  baseDir: string;
+  instruments: Instrument[];
+  planes: PlaneSpec[];
+  turbine: Omit<CampaignParsed['turbine'], 'series' | 'position_m'> & { position: Vec3; series?: SeriesRef };
+  windDirection: { kind: 'fixed'; deg: number } | ({ kind: 'series' } & SeriesRef);
+  inflow: CampaignParsed['inflow'] extends infer T ? (T extends { kind: 'series' } ? { kind: 'series' } & SeriesRef : T) : never;
+};

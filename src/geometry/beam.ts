@@ -1,0 +1,86 @@
+/**
+ * Beam geometry in the site frame (east, north, up, metres).
+ *
+ * Line-of-sight unit vector for azimuth theta (degrees clockwise from north) and elevation phi (degrees above the
+ * horizontal): n = (cos phi sin theta, cos phi cos theta, sin phi). The radial velocity is v_r = n . U, positive away
+ * from the instrument (CF standard name radial_velocity_of_scatterers_away_from_instrument).
+ *
+ * Calibration: the reported angles are in the instrument's own frame. Its orientation in the site frame is the
+ * rotation R = R_heading . R_pitch . R_roll applied to instrument-frame vectors:
+ * - roll r turns about the instrument north axis, raising its east axis (e -> cos r e + sin r u);
+ * - pitch p turns about the instrument east axis, raising its north axis (n -> cos p n + sin p u);
+ * - heading h turns about the vertical, clockwise seen from above (a level beam at reported azimuth a points at a + h).
+ * Range offset: true range = reported range + rangeOffset_m.
+ */
+import type { Calibration, Vec3 } from '../campaign/types.ts';
+
+export const DEG = Math.PI / 180;
+
+export function unitVector(azimuth_deg: number, elevation_deg: number): Vec3 {
+  const a = azimuth_deg * DEG;
+  const e = elevation_deg * DEG;
+  const ce = Math.cos(e);
+  return [ce * Math.sin(a), ce * Math.cos(a), Math.sin(e)];
+}
+
+/** Azimuth (degrees clockwise from north, in [0, 360)) and elevation (degrees) of a direction vector. */
+export function anglesOf(n: Vec3): { azimuth_deg: number; elevation_deg: number } {
+  const h = Math.hypot(n[0], n[1]);
+  let az = Math.atan2(n[0], n[1]) / DEG;
+  if (az < 0) az += 360;
+  if (az >= 360) az -= 360;
+  return { azimuth_deg: az, elevation_deg: Math.atan2(n[2], h) / DEG };
+}
+
+/** Row-major 3x3 rotation taking instrument-frame vectors to the site frame (see the file header). */
+export function calibrationMatrix(cal: Pick<Calibration, 'heading_deg' | 'pitch_deg' | 'roll_deg'>): Float64Array {
+  const h = cal.heading_deg * DEG, p = cal.pitch_deg * DEG, r = cal.roll_deg * DEG;
+  const ch = Math.cos(h), sh = Math.sin(h), cp = Math.cos(p), sp = Math.sin(p), cr = Math.cos(r), sr = Math.sin(r);
+  // Columns are the images of the instrument axes e, n, u.
+  const Rh = [ch, sh, 0, -sh, ch, 0, 0, 0, 1];
+  const Rp = [1, 0, 0, 0, cp, -sp, 0, sp, cp];
+  const Rr = [cr, 0, -sr, 0, 1, 0, sr, 0, cr];
+  return mat3Mul(mat3Mul(Rh, Rp), Rr);
+}
+
+export function mat3Mul(a: ArrayLike<number>, b: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(9);
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++) out[i * 3 + j] = a[i * 3] * b[j] + a[i * 3 + 1] * b[3 + j] + a[i * 3 + 2] * b[6 + j];
+  return out;
+}
+
+export function mat3Vec(m: ArrayLike<number>, v: ArrayLike<number>): Vec3 {
+  return [
+    m[0] * v[0] + m[1] * v[1] + m[2] * v[2],
+    m[3] * v[0] + m[4] * v[1] + m[5] * v[2],
+    m[6] * v[0] + m[7] * v[1] + m[8] * v[2],
+  ];
+}
+
+/** Transpose (the inverse of a rotation). */
+export function mat3T(m: ArrayLike<number>): Float64Array {
+  return Float64Array.from([m[0], m[3], m[6], m[1], m[4], m[7], m[2], m[5], m[8]]);
+}
+
+/** Site-frame unit vector of a beam reported at (azimuth, elevation) by an instrument with calibration matrix R. */
+export function calibratedUnitVector(R: ArrayLike<number>, azimuth_deg: number, elevation_deg: number): Vec3 {
+  return mat3Vec(R, unitVector(azimuth_deg, elevation_deg));
+}
+
+/** Measurement point = origin + range * n (straight beam; see curvature.ts for long ranges). */
+export function beamPoint(origin: Vec3, n: Vec3, range_m: number): Vec3 {
+  return [origin[0] + range_m * n[0], origin[1] + range_m * n[1], origin[2] + range_m * n[2]];
+}
+
+/**
+ * Steering: the reported (instrument-frame) azimuth, elevation and range that put the beam of an instrument at
+ * `origin` with calibration `cal` on `target`. Inverse of calibratedUnitVector + beamPoint.
+ */
+export function steerTo(origin: Vec3, cal: Calibration, target: Vec3): { azimuth_deg: number; elevation_deg: number; range_m: number } {
+  const d: Vec3 = [target[0] - origin[0], target[1] - origin[1], target[2] - origin[2]];
+  const dist = Math.hypot(d[0], d[1], d[2]);
+  const nSite: Vec3 = [d[0] / dist, d[1] / dist, d[2] / dist];
+  const nInstr = mat3Vec(mat3T(calibrationMatrix(cal)), nSite);
+  return { ...anglesOf(nInstr), range_m: dist - cal.rangeOffset_m };
+}

@@ -1,0 +1,28 @@
+/**
+ * A columnar batch of line-of-sight samples as the readers yield them. SI units and the conventions of the campaign
+ * schema: time in Unix seconds (UTC), azimuth degrees clockwise from north and elevation degrees above horizontal as
+ * the instrument reported them (calibration not yet applied), range in metres as reported, radial velocity in m/s
+ * positive away from the instrument, CNR in dB (NaN when the file has no CNR column).
+ */
+export interface SampleBatch {
+  /** Number of valid rows (the arrays may be longer). */
+  length: number;
+  /** Source file (absolute path) and the 1-based line number of each row, for rejection reports. */
+  file: string;
+  line: Float64Array;
+  time: Float64Array;
+  instrument: Uint8Array;
+  azimuth: Float64Array;
+  elevation: Float64Array;
+  range: Float64Array;
+  radialVelocity: Float64Array;
+  cnr: Float64Array;
+}
+
+/** A row that could not be read: where, why, and its raw text. */
+export interface RejectedRow {
+  file: string;
+  line: number;
+  reason: string;
+  text: string;
+}
