@@ -1,0 +1,114 @@
+/**
+ * Small time-series files (wind direction, turbine yaw and power, inflow reference): CSV with a header row, read
+ * whole (they hold one row per second or per minute, not the raw samples). Column names are ours; `columns` maps
+ * them to the file's headers. Errors name the file, the line and the column.
+ */
+import { readFileSync } from 'node:fs';
+import { InputError } from '../errors.ts';
+import { parseTime } from './time.ts';
+
+export interface Series {
+  file: string;
+  /** Unix seconds, ascending. */
+  time: Float64Array;
+  /** One array per requested column (NaN where an optional column is absent or a cell is empty). */
+  values: Record<string, Float64Array>;
+}
+
+export function splitCsvLine(line: string): string[] {
+  if (!line.includes('"')) return line.split(',');
+  const out: string[] = [];
+  let cur = '', q = false;
+  for (let i = 0; i < line.length; i++) {
+    const ch = line[i];
+    if (q) {
+      if (ch === '"' && line[i + 1] === '"') { cur += '"'; i++; }
+      else if (ch === '"') q = false;
+      else cur += ch;
+    } else if (ch === '"') q = true;
+    else if (ch === ',') { out.push(cur); cur = ''; }
+    else cur += ch;
+  }
+  out.push(cur);
+  return out;
+}
+
+export function readSeries(
+  file: string,
+  columns: Record<string, string>,
+  required: string[],
+  optional: string[] = [],
+): Series {
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch (e) {
+    throw new InputError(file, undefined, `cannot read: ${(e as Error).message}`);
+  }
+  const lines = text.split(/\r?\n/);
+  const header = splitCsvLine(lines[0] ?? '').map((h) => h.trim());
+  const colOf = (name: string) => header.indexOf(columns[name] ?? name);
+  const tCol = colOf('time');
+  if (tCol < 0) throw new InputError(file, 1, `missing required column "${columns.time ?? 'time'}"`);
+  const idx: Record<string, number> = {};
+  for (const name of required) {
+    idx[name] = colOf(name);
+    if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"`);
+  }
+  for (const name of optional) idx[name] = colOf(name);
+  const rows: { t: number; v: number[] }[] = [];
+  const names = [...required, ...optional];
+  for (let i = 1; i < lines.length; i++) {
+    const line = lines[i];
+    if (line.trim() === '') continue;
+    const cells = splitCsvLine(line);
+    const t = parseTime(cells[tCol] ?? '');
+    if (!Number.isFinite(t)) throw new InputError(file, i + 1, `column "${header[tCol]}": not a time: ${JSON.stringify(cells[tCol])}`);
+    const v = names.map((name) => {
+      const c = idx[name];
+      if (c < 0) return NaN;
+      const s = (cells[c] ?? '').trim();
+      if (s === '') {
+        if (required.includes(name)) throw new InputError(file, i + 1, `column "${header[c]}": empty`);
+        return NaN;
+      }
+      const x = Number(s);
+      if (!Number.isFinite(x)) throw new InputError(file, i + 1, `column "${header[c]}": not a number: ${JSON.stringify(s)}`);
+      return x;
+    });
+    rows.push({ t, v });
+  }
+  rows.sort((a, b) => a.t - b.t);
+  const values: Record<string, Float64Array> = {};
+  names.forEach((name, k) => (values[name] = Float64Array.from(rows, (r) => r.v[k])));
+  return { file, time: Float64Array.from(rows, (r) => r.t), values };
+}
+
+/** Indices [lo, hi) of the rows with start <= time < end (time ascending). */
+export function rowsInWindow(s: Series, start: number, end: number): [number, number] {
+  const lower = (x: number) => {
+    let lo = 0, hi = s.time.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (s.time[mid] < x) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  };
+  return [lower(start), lower(end)];
+}
+
+/** Vector (circular) mean of directions in degrees over rows [lo, hi); NaN when none. */
+export function circularMeanDeg(values: Float64Array, lo: number, hi: number): number {
+  let s = 0, c = 0, n = 0;
+  for (let i = lo; i < hi; i++) {
+    const v = values[i];
+    if (!Number.isFinite(v)) continue;
+    s += Math.sin((v * Math.PI) / 180);
+    c += Math.cos((v * Math.PI) / 180);
+    n++;
+  }
+  if (n === 0) return NaN;
+  const d = (Math.atan2(s, c) * 180) / Math.PI;
+  return d < 0 ? d + 360 : d;
+}

@@ -1,0 +1,35 @@
+/**
+ * Why a sample was not used. Every sample read is either accepted (used in a cell of some plane) or counted under
+ * exactly one of these reasons, so read = accepted + sum of rejections, per instrument, in every run.
+ * Parse-time reasons come from the readers; the others from quality control, geometry and the robust filter.
+ */
+export const REJECT_REASONS = [
+  // reading
+  'bad_number', 'missing_field', 'bad_time', 'angle_out_of_range', 'bad_range', 'unknown_instrument',
+  // quality control
+  'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order',
+  // geometry
+  'outside_planes',
+  // robust filter (median and scaled MAD per instrument, cell and window)
+  'outlier',
+] as const;
+export type RejectReason = (typeof REJECT_REASONS)[number];
+export const REJECT_INDEX: Record<RejectReason, number> = Object.fromEntries(REJECT_REASONS.map((r, i) => [r, i])) as Record<RejectReason, number>;
+
+/** Per-instrument sample accounting. */
+export interface SampleAccount {
+  read: number;
+  accepted: number;
+  rejected: Record<RejectReason, number>;
+}
+
+export function emptyAccount(): SampleAccount {
+  return { read: 0, accepted: 0, rejected: Object.fromEntries(REJECT_REASONS.map((r) => [r, 0])) as Record<RejectReason, number> };
+}
+
+/** True when read = accepted + all rejections. */
+export function accountBalances(a: SampleAccount): boolean {
+  let sum = a.accepted;
+  for (const r of REJECT_REASONS) sum += a.rejected[r];
+  return sum === a.read;
+}
