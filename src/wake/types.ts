@@ -11,7 +11,7 @@ import type { WindowInfo } from '../retrieval/types.ts';
 
 /** Where the undisturbed inflow profile came from. */
 export type InflowSource = 'series' | 'plane' | 'fixed';
-/** Vertical profile law: power V = V_ref (z/z_ref)^alpha, or log V = (u*/kappa) ln(z/z0) with kappa = 0.40. */
+/** Vertical profile law: power V = V_ref (z/z_ref)^alpha, or log V = (u_star / kappa) ln(z/z0) with kappa = 0.40. */
 export type InflowLaw = 'power' | 'log';
 
 export interface InflowProfile {
