@@ -9,7 +9,7 @@ export const MaskReason = {
   ok: 0,
   /** No accepted samples in the cell. */
   noData: 1,
-  /** Instruments present but each below retrieval.minSamplesPerInstrument. */
+  /** Instruments present, enough of them for the component, but too few reach retrieval.minSamplesPerInstrument. */
   tooFewSamples: 2,
   /** Fewer instruments than the components need (three for u, v, w; two with the w = 0 assumption). */
   tooFewInstruments: 3,

@@ -1,0 +1,128 @@
+/**
+ * Retrieval of one averaging window: robust filter per (plane, cell, instrument), per-instrument means, then a
+ * weighted least-squares wind vector per cell with uncertainties, geometry figures and per-component masks.
+ * See solveCell.ts for the estimator, its sources and its limits, robustFilter.ts for the outlier rule.
+ *
+ * Masks per component (MaskReason): no_data (no kept sample in the cell); too_few_samples (the cell has enough
+ * instruments for the component, but too few of them reach minSamplesPerInstrument); too_few_instruments (fewer
+ * instruments than the component needs: three for u, v, w; two for u, v with the w-zero assumption); singular;
+ * amplification (the component's error amplification > maxAmplification; the other components stay valid);
+ * assumed_zero (w in a two-instrument cell solved with w = 0).
+ *
+ * Cell counters: `samples` = kept samples of the instruments used (those with >= minSamplesPerInstrument);
+ * `instruments` = how many instruments were used. Samples of instruments below the minimum are not outliers and
+ * are not counted as used.
+ *
+ * Cost: O(samples) with a counting sort and selection-based medians; allocation per window and per cell, never
+ * per sample.
+ */
+import type { WindowSamples } from '../grid/windowSamples.ts';
+import { groupSamples } from './group.ts';
+import { instrumentMeans } from './instrumentMeans.ts';
+import { gatherVr, robustFilter } from './robustFilter.ts';
+import { DEFAULT_SIGMA_FLOOR_MS, W_ZERO_ASSUMPTION, type PlaneGrid, type RetrievalSettings } from './settings.ts';
+import { emptyCellSolution, solve2, solve3, type CellSolution } from './solveCell.ts';
+import { MaskReason, type FieldResult, type WindowInfo } from './types.ts';
+
+export type { PlaneGrid, RetrievalSettings } from './settings.ts';
+
+export interface WindowRetrieval {
+  /** One field per plane, in the order of `planes`. */
+  fields: FieldResult[];
+  /** Samples rejected by the robust filter, per instrument. */
+  outliers: Uint32Array;
+}
+
+function emptyField(pg: PlaneGrid, window: WindowInfo, direction_deg: number): FieldResult {
+  const nc = pg.grid.ny * pg.grid.nz;
+  const nan = () => new Float64Array(nc).fill(NaN);
+  const mask = () => new Uint8Array(nc).fill(MaskReason.noData);
+  return {
+    planeId: pg.spec.id,
+    planeIndex: pg.spec.index,
+    orientation: pg.spec.orientation,
+    x_m: pg.spec.orientation === 'cross' ? pg.spec.x_m : NaN,
+    z_m: pg.spec.orientation === 'horizontal' ? pg.spec.z_m : NaN,
+    window,
+    direction_deg,
+    grid: { ...pg.grid },
+    u: nan(), v: nan(), w: nan(), su: nan(), sv: nan(), sw: nan(),
+    dopU: nan(), dopV: nan(), dopW: nan(), cond: nan(), minCrossing_deg: nan(),
+    samples: new Uint32Array(nc),
+    instruments: new Uint8Array(nc),
+    maskU: mask(), maskV: mask(), maskW: mask(),
+    assumptions: [],
+  };
+}
+
+function store(f: FieldResult, c: number, s: CellSolution): void {
+  f.u[c] = s.u; f.v[c] = s.v; f.w[c] = s.w;
+  f.su[c] = s.su; f.sv[c] = s.sv; f.sw[c] = s.sw;
+  f.dopU[c] = s.dopU; f.dopV[c] = s.dopV; f.dopW[c] = s.dopW;
+  f.cond[c] = s.cond; f.minCrossing_deg[c] = s.minCrossing_deg;
+  f.maskU[c] = s.maskU; f.maskV[c] = s.maskV; f.maskW[c] = s.maskW;
+}
+
+/**
+ * Retrieve every plane of one window. `samples` hold rotor-frame unit vectors (see grid/windowSamples.ts);
+ * `direction_deg` is the wind direction that defined that frame (recorded in each field).
+ */
+export function retrieveWindow(
+  samples: WindowSamples, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
+): WindowRetrieval {
+  const I = settings.instrumentCount;
+  const groups = groupSamples(samples, planes, I);
+  const vrSorted = gatherVr(samples, groups.order);
+  const { keep, outliers } = robustFilter(vrSorted, groups, settings.robust);
+  const st = instrumentMeans(samples, vrSorted, keep, groups);
+
+  const floor = settings.sigmaFloor_ms ?? DEFAULT_SIGMA_FLOOR_MS;
+  const floor2 = floor * floor;
+  const minN = settings.minSamplesPerInstrument;
+  const wZero = settings.twoInstrumentAssumption === 'w-zero';
+  const rows = new Float64Array(I * 3), m = new Float64Array(I), wts = new Float64Array(I);
+  const sol = emptyCellSolution();
+  const fields: FieldResult[] = [];
+
+  for (let j = 0; j < planes.length; j++) {
+    const f = emptyField(planes[j], window, direction_deg);
+    const nc = planes[j].grid.ny * planes[j].grid.nz;
+    let usedWZero = false;
+    for (let c = 0; c < nc; c++) {
+      const base = (groups.cellOffset[j] + c) * I;
+      let present = 0, K = 0, used = 0;
+      for (let i = 0; i < I; i++) {
+        const k = base + i;
+        const n = st.n[k];
+        if (n === 0) continue;
+        present++;
+        if (n < minN) continue;
+        rows[K * 3] = st.nx[k]; rows[K * 3 + 1] = st.ny[k]; rows[K * 3 + 2] = st.nz[k];
+        m[K] = st.vr[k];
+        const v = st.variance[k];
+        wts[K] = n / (v > floor2 ? v : floor2);
+        used += n;
+        K++;
+      }
+      if (present === 0) continue; // stays no_data
+      f.samples[c] = used;
+      f.instruments[c] = K;
+      if (K >= 3) {
+        solve3(rows, m, wts, K, settings.maxAmplification, sol);
+      } else if (K === 2 && wZero) {
+        solve2(rows, m, wts, K, settings.maxAmplification, sol);
+        if (sol.maskW === MaskReason.assumedZero) usedWZero = true;
+      } else {
+        const need = wZero ? 2 : 3;
+        const reason = present >= need ? MaskReason.tooFewSamples : MaskReason.tooFewInstruments;
+        sol.u = sol.v = sol.w = sol.su = sol.sv = sol.sw = NaN;
+        sol.dopU = sol.dopV = sol.dopW = sol.cond = sol.minCrossing_deg = NaN;
+        sol.maskU = sol.maskV = sol.maskW = reason;
+      }
+      store(f, c, sol);
+    }
+    if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
+    fields.push(f);
+  }
+  return { fields, outliers };
+}
