@@ -13,6 +13,7 @@
  * Every key carries its unit and default in its description; `wakeplane schema` prints the JSON Schema.
  */
 import { z } from 'zod';
+import { planSchema } from '../plan/schema.ts';
 
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
@@ -244,6 +245,7 @@ export const campaignSchema = z
       .record(z.string(), z.unknown())
       .optional()
       .describe('settings of the built-in simulator (demo scenarios only)'),
+    plan: planSchema.optional().describe('campaign planner settings (trust maps, pointing tables, layout search); defaults apply when absent'),
   })
   .strict();
 
