@@ -23,6 +23,10 @@ export interface SampleBatch {
 export interface RejectedRow {
   file: string;
   line: number;
+  /** A RejectReason code (src/qc/reasons.ts). */
   reason: string;
+  /** Human explanation naming the column and the value, e.g. 'column "range_m": not a number: "12,5"'. */
+  detail: string;
+  /** Raw text of the line (without its line break), truncated to 500 characters. */
   text: string;
 }

@@ -1,0 +1,334 @@
+/**
+ * Streaming reader of line-of-sight sample files (CSV with a header row). Reads with large chunks, parses bytes
+ * straight from the Buffers (no per-line strings on the fast path), carries partial lines across chunks, and yields
+ * columnar batches plus the rows it could not read. Never holds more than a chunk and a batch of a file.
+ *
+ * Columns (header names by default; `columns` renames them and sets scale/offset to SI):
+ *   time                 ISO 8601 (UTC, or with an offset, converted to UTC; no zone = UTC) or Unix seconds
+ *   instrument           instrument id; optional when the file has an owning instrument
+ *   azimuth_deg          degrees clockwise from north, accepted in [-360, 720], normalised into [0, 360)
+ *   elevation_deg        degrees above horizontal, [-90, 90]
+ *   range_m              metres along the beam, > 0
+ *   radial_velocity_ms   m/s; the result is positive away from the instrument (a 'toward' file is flipped)
+ *   cnr_db               dB, optional (NaN when the column is absent or the cell empty)
+ * Scale/offset apply to numeric values (SI = stored * scale + offset); for ISO times only the offset applies.
+ *
+ * Rows: CRLF and LF line breaks, a UTF-8 BOM, blank lines (skipped, not rows, but line numbers stay physical),
+ * quoted fields (without line breaks inside), spaces around values, fields beyond the last used column ignored.
+ * Every data row ends up either in a batch or in `rejected` (file, 1-based line, reason, detail, raw text), so
+ * rows read = batch rows + rejected rows exactly. The reason of a bad row is decided by sampleRow.ts.
+ *
+ * Batches are allocated fresh for every chunk yielded: the consumer may keep them as long as it likes.
+ */
+import { createReadStream } from 'node:fs';
+import type { ColumnMap } from '../campaign/schema.ts';
+import { InputError } from '../errors.ts';
+import type { RejectReason } from '../qc/reasons.ts';
+import type { RejectedRow, SampleBatch } from './batch.ts';
+import { createDayCache, parseDecimal, parseIsoBytes, parsedTo } from './fastParse.ts';
+import { R_AZ, R_CNR, R_EL, R_IGNORE, R_INST, R_RANGE, R_TIME, R_VR, resolveColumns, type ColumnLayout } from './sampleColumns.ts';
+import { parseRowSlow, wrap360, type RowContext, type RowValues } from './sampleRow.ts';
+
+export interface SampleReaderOptions {
+  /** Instrument id -> index (Campaign.instruments[i].index); rows naming another id are rejected 'unknown_instrument'. */
+  instrumentIndex: Map<string, number>;
+  /** Index of the instrument owning the file, used for rows when the file has no instrument column; -1 for none. */
+  owner: number;
+  /** Column mapping (campaign `instruments[].columns`): each entry a header name or {name, scale, offset}. */
+  columns: ColumnMap;
+  /** 'toward': the file's radial velocities are positive toward the instrument; the reader flips them to 'away'. */
+  sign: 'away' | 'toward';
+  /** Rows per batch. @default 65536 */
+  batchSize?: number;
+  /** Bytes per read (tests use tiny values to exercise chunk boundaries). @default 1048576 */
+  highWaterMark?: number;
+}
+
+export interface SampleChunk {
+  batch: SampleBatch;
+  rejected: RejectedRow[];
+}
+
+/** Longest line accepted, bytes; a longer line is rejected without being held whole. */
+const MAX_LINE = 1 << 20;
+const MAX_TEXT = 500;
+
+function createBatch(file: string, n: number): SampleBatch {
+  return {
+    length: 0,
+    file,
+    line: new Float64Array(n),
+    time: new Float64Array(n),
+    instrument: new Uint8Array(n),
+    azimuth: new Float64Array(n),
+    elevation: new Float64Array(n),
+    range: new Float64Array(n),
+    radialVelocity: new Float64Array(n),
+    cnr: new Float64Array(n),
+  };
+}
+
+interface ReaderState {
+  ctx: RowContext;
+  batch: SampleBatch;
+  rejected: RejectedRow[];
+  /** Physical line number of the last line consumed. */
+  line: number;
+  scratch: RowValues;
+  /** Last instrument id bytes seen in the instrument column and its index. */
+  idBytes: Uint8Array;
+  idLen: number;
+  idIndex: number;
+}
+
+const dec = new TextDecoder();
+
+function reject(st: ReaderState, buf: Uint8Array, s: number, e: number, reason: RejectReason, detail: string): void {
+  st.rejected.push({
+    file: st.ctx.layout.file,
+    line: st.line,
+    reason,
+    detail,
+    text: dec.decode(buf.subarray(s, Math.min(e, s + MAX_TEXT))),
+  });
+}
+
+/** Careful path for one line [s, e): stores the row or records its rejection. Returns true when stored. */
+function slowRow(st: ReaderState, buf: Uint8Array, s: number, e: number): boolean {
+  // a line of only spaces/tabs is blank
+  let k = s;
+  while (k < e && (buf[k] === 32 || buf[k] === 9)) k++;
+  if (k === e) return false;
+  const v = st.scratch;
+  const p = parseRowSlow(buf, s, e, st.ctx, v);
+  if (p !== null) {
+    reject(st, buf, s, e, p.reason, p.detail);
+    return false;
+  }
+  const b = st.batch, n = b.length++;
+  b.line[n] = st.line;
+  b.time[n] = v.time;
+  b.instrument[n] = v.instrument;
+  b.azimuth[n] = v.azimuth;
+  b.elevation[n] = v.elevation;
+  b.range[n] = v.range;
+  b.radialVelocity[n] = v.radialVelocity;
+  b.cnr[n] = v.cnr;
+  return true;
+}
+
+/** Instrument id field [s, e) against the cached id; -1 on a miss that is not a known id (slow path decides). */
+function instrumentOf(st: ReaderState, buf: Uint8Array, s: number, e: number): number {
+  const len = e - s;
+  if (len === st.idLen) {
+    const ib = st.idBytes;
+    let k = 0;
+    while (k < len && ib[k] === buf[s + k]) k++;
+    if (k === len) return st.idIndex;
+  }
+  if (len === 0 || len > 64) return -1;
+  const idx = st.ctx.instrumentIndex.get(dec.decode(buf.subarray(s, e)));
+  if (idx === undefined) return -1;
+  st.idBytes.set(buf.subarray(s, e));
+  st.idLen = len;
+  st.idIndex = idx;
+  return idx;
+}
+
+/**
+ * Parses complete lines of `buf` from `pos` up to `end` (just after a line break) into the current batch until it
+ * is full. Returns the position reached.
+ */
+function fillBatch(st: ReaderState, buf: Buffer, pos: number, end: number): number {
+  const L: ColumnLayout = st.ctx.layout;
+  const roles = L.roleOf, needed = L.needed, days = st.ctx.days, owner = st.ctx.owner;
+  const b = st.batch, cap = b.time.length;
+  const LN = b.line, T = b.time, I = b.instrument, AZ = b.azimuth, EL = b.elevation, RG = b.range, VR = b.radialVelocity, CN = b.cnr;
+  const sc = L.scale, of = L.offset;
+  const sT = sc[R_TIME], oT = of[R_TIME], sAz = sc[R_AZ], oAz = of[R_AZ], sEl = sc[R_EL], oEl = of[R_EL];
+  const sRg = sc[R_RANGE], oRg = of[R_RANGE], sVr = sc[R_VR], oVr = of[R_VR], sCn = sc[R_CNR], oCn = of[R_CNR];
+  let n = b.length;
+  while (pos < end && n < cap) {
+    const nl = buf.indexOf(10, pos);
+    st.line++;
+    let le = nl;
+    if (le > pos && buf[le - 1] === 13) le--;
+    if (le === pos) { pos = nl + 1; continue; }
+    let i = pos, ok = true;
+    let t = NaN, inst = owner, az = NaN, el = NaN, rg = NaN, vr = NaN, cn = NaN;
+    for (let c = 0; c < needed; c++) {
+      const r = roles[c];
+      if (r === R_TIME) {
+        if (le - i >= 16 && buf[i + 4] === 45) {
+          t = parseIsoBytes(buf, i, le, days) + oT;
+        } else t = parseDecimal(buf, i, le) * sT + oT;
+        if (t !== t) { ok = false; break; }
+        i = parsedTo();
+      } else if (r === R_IGNORE || r === R_INST) {
+        const s0 = i;
+        while (i < le) {
+          const ch = buf[i];
+          if (ch === 44) break;
+          if (ch === 34) { ok = false; break; }
+          i++;
+        }
+        if (!ok) break;
+        if (r === R_INST) {
+          inst = instrumentOf(st, buf, s0, i);
+          if (inst < 0) { ok = false; break; }
+        }
+      } else if (r === R_CNR && (i === le || buf[i] === 44)) {
+        cn = NaN;
+      } else {
+        const v = parseDecimal(buf, i, le);
+        if (v !== v) { ok = false; break; }
+        i = parsedTo();
+        if (r === R_AZ) az = v * sAz + oAz;
+        else if (r === R_EL) el = v * sEl + oEl;
+        else if (r === R_RANGE) rg = v * sRg + oRg;
+        else if (r === R_VR) vr = v * sVr + oVr;
+        else cn = v * sCn + oCn;
+      }
+      if (i < le) {
+        if (buf[i] !== 44) { ok = false; break; }
+        i++;
+      } else if (c < needed - 1) { ok = false; break; }
+    }
+    if (ok && az >= -360 && az <= 720 && el >= -90 && el <= 90 && rg > 0 && rg < Infinity) {
+      LN[n] = st.line;
+      T[n] = t;
+      I[n] = inst;
+      AZ[n] = az >= 0 && az < 360 ? az : wrap360(az);
+      EL[n] = el;
+      RG[n] = rg;
+      VR[n] = vr;
+      CN[n] = cn;
+      n++;
+    } else {
+      b.length = n;
+      if (le - pos > MAX_LINE) reject(st, buf, pos, le, 'missing_field', `line longer than ${MAX_LINE} bytes`);
+      else slowRow(st, buf, pos, le);
+      n = b.length;
+    }
+    pos = nl + 1;
+  }
+  b.length = n;
+  return pos;
+}
+
+/** Reads the header line of the stream; returns its layout and the bytes after it. */
+async function readHeader(
+  path: string,
+  opts: SampleReaderOptions,
+  chunks: AsyncIterator<Buffer>,
+): Promise<{ layout: ColumnLayout; rest: Buffer }> {
+  let carry: Buffer = Buffer.alloc(0);
+  for (;;) {
+    const r = await chunks.next();
+    if (r.done) {
+      if (carry.length === 0) throw new InputError(path, 1, 'empty file: no header row');
+      const layout = resolveColumns(path, dec.decode(carry).replace(/\r$/, ''), opts.columns, opts.sign, opts.owner >= 0);
+      return { layout, rest: Buffer.alloc(0) };
+    }
+    carry = carry.length ? Buffer.concat([carry, r.value]) : r.value;
+    const nl = carry.indexOf(10);
+    if (nl >= 0) {
+      const le = nl > 0 && carry[nl - 1] === 13 ? nl - 1 : nl;
+      const layout = resolveColumns(path, dec.decode(carry.subarray(0, le)), opts.columns, opts.sign, opts.owner >= 0);
+      return { layout, rest: carry.subarray(nl + 1) };
+    }
+    if (carry.length > MAX_LINE) throw new InputError(path, 1, `header line longer than ${MAX_LINE} bytes`);
+  }
+}
+
+function openChunks(path: string, opts: SampleReaderOptions) {
+  const stream = createReadStream(path, { highWaterMark: opts.highWaterMark ?? 1 << 20 });
+  return { stream, it: stream[Symbol.asyncIterator]() as AsyncIterator<Buffer> };
+}
+
+function wrapOpenError(path: string, e: unknown): never {
+  if (e instanceof InputError) throw e;
+  throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
+}
+
+/** Reads only the header; throws InputError(file, 1, 'missing required column "x" ...') before any data is read. */
+export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<void> {
+  const { stream, it } = openChunks(path, { ...opts, highWaterMark: Math.min(opts.highWaterMark ?? 65536, 65536) });
+  try {
+    await readHeader(path, opts, it);
+  } catch (e) {
+    wrapOpenError(path, e);
+  } finally {
+    stream.destroy();
+  }
+}
+
+/**
+ * Streams the samples of one file as batches of at most `batchSize` rows plus the rows rejected meanwhile. Throws
+ * InputError on a header problem before the first yield. Batches are fresh allocations (never reused).
+ */
+export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
+  const batchSize = opts.batchSize ?? 65536;
+  const { stream, it } = openChunks(path, opts);
+  try {
+    let head: { layout: ColumnLayout; rest: Buffer };
+    try {
+      head = await readHeader(path, opts, it);
+    } catch (e) {
+      wrapOpenError(path, e);
+    }
+    const st: ReaderState = {
+      ctx: { layout: head.layout, instrumentIndex: opts.instrumentIndex, owner: opts.owner, days: createDayCache() },
+      batch: createBatch(path, batchSize),
+      rejected: [],
+      line: 1,
+      scratch: { time: NaN, instrument: 0, azimuth: NaN, elevation: NaN, range: NaN, radialVelocity: NaN, cnr: NaN },
+      idBytes: new Uint8Array(64),
+      idLen: -1,
+      idIndex: -1,
+    };
+    let carry: Buffer = head.rest;
+    let skipping = false; // inside an over-long line already rejected
+    for (;;) {
+      let r: IteratorResult<Buffer>;
+      try {
+        r = await it.next();
+      } catch (e) {
+        throw new InputError(path, st.line + 1, `read failed: ${(e as Error).message}`);
+      }
+      let buf: Buffer;
+      if (r.done) {
+        if (carry.length === 0) break;
+        buf = Buffer.concat([carry, Buffer.from([10])]); // the last line may lack its line break
+      } else buf = carry.length ? Buffer.concat([carry, r.value]) : r.value;
+      let pos = 0;
+      if (skipping) {
+        const nl = buf.indexOf(10);
+        if (nl < 0) { carry = Buffer.alloc(0); continue; }
+        pos = nl + 1;
+        skipping = false;
+      }
+      const end = buf.lastIndexOf(10) + 1;
+      while (pos < end) {
+        pos = fillBatch(st, buf, pos, end);
+        if (st.batch.length === batchSize) {
+          const out: SampleChunk = { batch: st.batch, rejected: st.rejected };
+          st.batch = createBatch(path, batchSize);
+          st.rejected = [];
+          yield out;
+        }
+      }
+      carry = buf.subarray(end);
+      if (carry.length > MAX_LINE) {
+        st.line++;
+        reject(st, carry, 0, carry.length, 'missing_field', `line longer than ${MAX_LINE} bytes`);
+        carry = Buffer.alloc(0);
+        skipping = true;
+      }
+      if (r.done) break;
+    }
+    if (st.batch.length > 0 || st.rejected.length > 0) yield { batch: st.batch, rejected: st.rejected };
+  } finally {
+    stream.destroy();
+  }
+}
