@@ -1,0 +1,39 @@
+/**
+ * Velocity-deficit field d = 1 - u / u_inf(z) per cell (dimensionless, positive in the wake), shear-aware: each
+ * cell is compared with the inflow at its own height (cross plane: the cell's z; horizontal plane: the plane's
+ * height). NaN where u is masked or the inflow is not defined. Also the deficit's standard uncertainty su / u_inf
+ * (inflow uncertainty not propagated).
+ */
+import type { FieldResult } from '../retrieval/types.ts';
+import type { InflowProfile } from './types.ts';
+import { inflowAt } from './inflow.ts';
+
+export interface DeficitField {
+  deficit: Float64Array;
+  sdeficit: Float64Array;
+  /** u_inf per cell, m/s. */
+  uInf: Float64Array;
+}
+
+/** Height of a cell's centre: rotor-frame z for cross planes, the plane height for horizontal planes. */
+export function cellHeight(f: FieldResult, iz: number): number {
+  return f.orientation === 'cross' ? f.grid.z0 + iz * f.grid.dz : f.z_m;
+}
+
+export function deficitField(f: FieldResult, inflow: InflowProfile): DeficitField {
+  const { ny, nz } = f.grid;
+  const n = ny * nz;
+  const deficit = new Float64Array(n).fill(NaN), sdeficit = new Float64Array(n).fill(NaN), uInf = new Float64Array(n).fill(NaN);
+  for (let iz = 0; iz < nz; iz++) {
+    const ui = inflowAt(inflow, cellHeight(f, iz));
+    for (let iy = 0; iy < ny; iy++) {
+      const k = iy + iz * ny;
+      uInf[k] = ui;
+      const u = f.u[k];
+      if (!Number.isFinite(u) || !(ui > 0)) continue;
+      deficit[k] = 1 - u / ui;
+      sdeficit[k] = f.su[k] / ui;
+    }
+  }
+  return { deficit, sdeficit, uInf };
+}

@@ -1,0 +1,51 @@
+/**
+ * Options of the wake analysis, with units and defaults. Thresholds marked "common practice" are engineering
+ * choices, not published values; they are stated in the output notes.
+ */
+
+/** von Karman constant used by the log law (Hogstrom 1996 and common practice: 0.40). */
+export const KAPPA = 0.4;
+
+export interface WakeOptions {
+  /** Below this robust maximum deficit (98th percentile over valid cells) the plane has no wake. @default 0.05 */
+  minDeficit: number;
+  /** Minimum valid cells for the 2D Gaussian fit. @default 30 */
+  minCells: number;
+  /** Fit a constant background offset with the Gaussian. @default true */
+  fitOffset: boolean;
+  /** Plane-inflow: cells closer than this to the rotor axis (|y|, metres) are excluded in the first pass; in D. @default 1 */
+  inflowExclusion_D: number;
+  /** Plane-inflow: after a first fit, also exclude cells within this many sigmas of the fitted centre. @default 3 */
+  inflowExclusionSigmas: number;
+  /** Plane-inflow: a height row counts when it has at least this many undisturbed cells. @default 2 */
+  inflowMinCellsPerRow: number;
+  /** Disk estimator: minimum fraction of the disk covered by valid cells. @default 0.6 */
+  diskMinCoverage: number;
+  /** Centroid estimator: cells with deficit above this fraction of the maximum. @default 0.5 */
+  centroidFraction: number;
+  /** Widths outside [minWidthCells * cell size, maxWidth_D * D] are absurd. @default 0.5 and 3 */
+  minWidthCells: number;
+  maxWidth_D: number;
+  /** REWS segments; 0 = automatic: floor(D / dz) clamped to [1, 10]. @default 0 */
+  rewsSegments: number;
+  /** Top-hat wake expansion k (Jensen 1983): 0.075 onshore default (common practice). @default 0.075 */
+  topHatK: number;
+  /** Jimenez et al. (2010) wake-expansion coefficient beta. @default 0.1 (common practice) */
+  jimenezBeta: number;
+}
+
+export const defaultWakeOptions: WakeOptions = {
+  minDeficit: 0.05,
+  minCells: 30,
+  fitOffset: true,
+  inflowExclusion_D: 1,
+  inflowExclusionSigmas: 3,
+  inflowMinCellsPerRow: 2,
+  diskMinCoverage: 0.6,
+  centroidFraction: 0.5,
+  minWidthCells: 0.5,
+  maxWidth_D: 3,
+  rewsSegments: 0,
+  topHatK: 0.075,
+  jimenezBeta: 0.1,
+};
