@@ -1,0 +1,174 @@
+/**
+ * Trust of each cell of a plane, from the beams of all instruments (see beamCells.ts).
+ *
+ * The beams that can serve a cell (no hard flag) form the rows of A. With three or more, the error amplification of
+ * u, v, w is sqrt(diag((A^T A)^-1)) (geometry/amplification.ts, amplification3); with two and the campaign's w = 0
+ * assumption, u and v come from the two-component system (amplification2) and w is not resolved. A component passes
+ * when its amplification is at most retrieval.maxAmplification and the cell carries no soft flag: smallest crossing
+ * angle below plan.minCrossing_deg (nearly parallel beams), a probe footprint wider than plan.maxFootprintCells, or a
+ * CW focus beyond the validity of the probe formula. A cell is trusted when all three components pass.
+ *
+ * Each cell gets one category, the first that applies in this order: trusted; fewer than two usable beams (named
+ * after the hard limit that removed beams: ground, elevation, range, else too_few_instruments); parallel_beams;
+ * footprint; probe_model; amplification (u or v fails); w_not_resolved (u and v pass, w does not).
+ */
+import { amplification2, amplification3 } from '../geometry/amplification.ts';
+import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
+import type { PlanSettings } from './settings.ts';
+
+export const TrustCategory = {
+  trusted: 0,
+  w_not_resolved: 1,
+  amplification: 2,
+  parallel_beams: 3,
+  footprint: 4,
+  probe_model: 5,
+  too_few_instruments: 6,
+  range: 7,
+  elevation: 8,
+  ground: 9,
+} as const;
+export const trustCategoryName: readonly string[] = Object.keys(TrustCategory);
+
+/** Reason bits per cell (several may apply). */
+export const CellReason = {
+  ground: 1,
+  elevation: 2,
+  range: 4,
+  footprint: 8,
+  probeModel: 16,
+  parallelBeams: 32,
+  amplificationU: 64,
+  amplificationV: 128,
+  amplificationW: 256,
+  /** Fewer than three usable beams: w (and with fewer than two, u and v) cannot be resolved. */
+  tooFewInstruments: 512,
+} as const;
+
+export function cellReasonNames(bits: number): string[] {
+  return Object.entries(CellReason)
+    .filter(([, b]) => bits & b)
+    .map(([k]) => k);
+}
+
+export interface CellTrust {
+  dopU: Float64Array;
+  dopV: Float64Array;
+  dopW: Float64Array;
+  /** Condition number of A (usable beams; the two-column system for two beams). */
+  cond: Float64Array;
+  minCrossing_deg: Float64Array;
+  /** Number of usable beams. */
+  usable: Uint8Array;
+  passU: Uint8Array;
+  passV: Uint8Array;
+  passW: Uint8Array;
+  category: Uint8Array;
+  reasons: Uint16Array;
+}
+
+type TrustSettings = Pick<PlanSettings, 'maxAmplification' | 'minCrossing_deg' | 'twoInstrumentAssumption'>;
+
+export function assessCells(beams: readonly BeamCells[], nCells: number, s: TrustSettings): CellTrust {
+  const t: CellTrust = {
+    dopU: new Float64Array(nCells).fill(NaN),
+    dopV: new Float64Array(nCells).fill(NaN),
+    dopW: new Float64Array(nCells).fill(NaN),
+    cond: new Float64Array(nCells).fill(NaN),
+    minCrossing_deg: new Float64Array(nCells).fill(NaN),
+    usable: new Uint8Array(nCells),
+    passU: new Uint8Array(nCells),
+    passV: new Uint8Array(nCells),
+    passW: new Uint8Array(nCells),
+    category: new Uint8Array(nCells),
+    reasons: new Uint16Array(nCells),
+  };
+  const rows = new Float64Array(3 * beams.length);
+  const maxA = s.maxAmplification;
+  for (let c = 0; c < nCells; c++) {
+    let k = 0, hard = 0, soft = 0;
+    for (const b of beams) {
+      const f = b.flags[c];
+      if (f & HARD_BEAM_FLAGS) {
+        hard |= f & HARD_BEAM_FLAGS;
+        continue;
+      }
+      soft |= f;
+      rows[3 * k] = b.dir[3 * c]; rows[3 * k + 1] = b.dir[3 * c + 1]; rows[3 * k + 2] = b.dir[3 * c + 2];
+      k++;
+    }
+    t.usable[c] = k;
+    let reasons = hard & (CellReason.ground | CellReason.elevation | CellReason.range); // same bit values as BeamFlag
+    if (soft & BeamFlag.footprint) reasons |= CellReason.footprint;
+    if (soft & BeamFlag.probeModel) reasons |= CellReason.probeModel;
+    let okU = false, okV = false, okW = false;
+    if (k >= 3) {
+      const a = amplification3(rows, k);
+      t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1]; t.dopW[c] = a.dop[2];
+      t.cond[c] = a.cond;
+      t.minCrossing_deg[c] = a.minCrossing_deg;
+      okU = a.dop[0] <= maxA; okV = a.dop[1] <= maxA; okW = a.dop[2] <= maxA;
+    } else if (k === 2) {
+      const a = amplification2(rows, 2);
+      t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1];
+      t.cond[c] = a.cond;
+      const dot = Math.abs(rows[0] * rows[3] + rows[1] * rows[4] + rows[2] * rows[5]);
+      t.minCrossing_deg[c] = (Math.acos(Math.min(1, dot)) * 180) / Math.PI;
+      const allowed = s.twoInstrumentAssumption === 'w-zero';
+      okU = allowed && a.dop[0] <= maxA; okV = allowed && a.dop[1] <= maxA;
+    }
+    if (k < 3) reasons |= CellReason.tooFewInstruments;
+    if (k >= 2 && t.minCrossing_deg[c] < s.minCrossing_deg) reasons |= CellReason.parallelBeams;
+    if (k >= 2 && !(t.dopU[c] <= maxA)) reasons |= CellReason.amplificationU;
+    if (k >= 2 && !(t.dopV[c] <= maxA)) reasons |= CellReason.amplificationV;
+    if (k >= 3 && !(t.dopW[c] <= maxA)) reasons |= CellReason.amplificationW;
+    const softFail = (reasons & (CellReason.parallelBeams | CellReason.footprint | CellReason.probeModel)) !== 0;
+    t.passU[c] = okU && !softFail ? 1 : 0;
+    t.passV[c] = okV && !softFail ? 1 : 0;
+    t.passW[c] = okW && !softFail ? 1 : 0;
+    t.reasons[c] = reasons;
+    let cat: number;
+    if (t.passU[c] && t.passV[c] && t.passW[c]) cat = TrustCategory.trusted;
+    else if (k < 2 || (k === 2 && s.twoInstrumentAssumption === 'none'))
+      cat = hard & BeamFlag.ground ? TrustCategory.ground : hard & BeamFlag.elevation ? TrustCategory.elevation : hard & BeamFlag.range ? TrustCategory.range : TrustCategory.too_few_instruments;
+    else if (reasons & CellReason.parallelBeams) cat = TrustCategory.parallel_beams;
+    else if (reasons & CellReason.footprint) cat = TrustCategory.footprint;
+    else if (reasons & CellReason.probeModel) cat = TrustCategory.probe_model;
+    else if (!t.passU[c] || !t.passV[c]) cat = TrustCategory.amplification;
+    else cat = TrustCategory.w_not_resolved;
+    t.category[c] = cat;
+  }
+  return t;
+}
+
+export interface Fractions {
+  u: number;
+  v: number;
+  w: number;
+  /** All three components pass. */
+  all: number;
+  /** Number of cells counted. */
+  cells: number;
+}
+
+/** Fractions of the cells (those with mask[c] = 1, or all) where each component passes. NaN when no cell counts. */
+export function passFractions(t: Pick<CellTrust, 'passU' | 'passV' | 'passW'>, mask?: Uint8Array): Fractions {
+  let n = 0, u = 0, v = 0, w = 0, all = 0;
+  for (let c = 0; c < t.passU.length; c++) {
+    if (mask && !mask[c]) continue;
+    n++;
+    u += t.passU[c]; v += t.passV[c]; w += t.passW[c];
+    all += t.passU[c] & t.passV[c] & t.passW[c];
+  }
+  return n ? { u: u / n, v: v / n, w: w / n, all: all / n, cells: n } : { u: NaN, v: NaN, w: NaN, all: NaN, cells: 0 };
+}
+
+/** Fractions pooled over several sets of cells (weighted by their cell counts). */
+export function poolFractions(list: readonly Fractions[]): Fractions {
+  let n = 0, u = 0, v = 0, w = 0, all = 0;
+  for (const f of list) {
+    if (!f.cells) continue;
+    n += f.cells; u += f.u * f.cells; v += f.v * f.cells; w += f.w * f.cells; all += f.all * f.cells;
+  }
+  return n ? { u: u / n, v: v / n, w: w / n, all: all / n, cells: n } : { u: NaN, v: NaN, w: NaN, all: NaN, cells: 0 };
+}

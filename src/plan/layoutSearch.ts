@@ -1,0 +1,111 @@
+/**
+ * Layout search: move the instruments that have candidate positions (plan.candidates), evaluate each combination
+ * with the same trust kernels as the trust maps (beamCells + assessCells), and rank them.
+ *
+ * Score of a layout: the fraction of the rotor-disk cells (pooled over all planes) where all three components pass;
+ * ties are broken by the fraction of all plane cells where all three pass, then by the u-v fraction of the rotor
+ * disk. When the number of combinations exceeds plan.maxCombinations, a seeded random sample of that size is
+ * evaluated (reported as `sampled`). Layouts that put two instruments within 1 m of each other are skipped.
+ * The campaign's own layout is scored the same way; gain = best minus own, in fraction points.
+ */
+import type { Instrument, Vec3 } from '../campaign/types.ts';
+import type { RotorFrame } from '../geometry/frames.ts';
+import { beamCells } from './beamCells.ts';
+import { candidatePositions } from './candidates.ts';
+import { assessCells, passFractions, poolFractions, type Fractions } from './cellTrust.ts';
+import { combinations } from './combinations.ts';
+import type { PlaneGeometry } from './planeGeometry.ts';
+import type { PlanSettings } from './settings.ts';
+
+export interface LayoutScore {
+  /** Site-frame positions per instrument (campaign order), metres. */
+  positions: Vec3[];
+  /** Candidate index per instrument; -1 = the instrument stays at its campaign position. */
+  choice: number[];
+  /** Pooled over all planes: the cells inside the rotor outline. */
+  rotor: Fractions;
+  /** Pooled over all planes: every cell. */
+  plane: Fractions;
+  perPlane: { planeId: string; rotor: Fractions; plane: Fractions }[];
+}
+
+export interface LayoutSearchResult {
+  /** Instruments that move, with their candidate counts. */
+  movable: { instrumentId: string; candidates: number }[];
+  baseline: LayoutScore;
+  /** Best layouts, best first (at most plan.top). */
+  ranked: LayoutScore[];
+  /** Number of possible combinations, evaluated ones, and those skipped as coincident. */
+  total: number;
+  evaluated: number;
+  skippedCoincident: number;
+  sampled: boolean;
+  seed: number;
+  /** Best minus own layout: rotor-disk and whole-plane fractions with all three components passing. */
+  gain: { rotorAll: number; planeAll: number };
+}
+
+type Ins = Pick<Instrument, 'id' | 'kind' | 'cw' | 'pulsed' | 'position'>;
+
+/** Scores one layout over all planes. */
+export function scoreLayout(instruments: readonly Ins[], positions: Vec3[], geoms: readonly PlaneGeometry[], frame: RotorFrame, s: PlanSettings, choice: number[]): LayoutScore {
+  const perPlane = geoms.map((g) => {
+    const beams = instruments.map((ins, i) => beamCells(ins, positions[i], g, frame, s));
+    const t = assessCells(beams, g.grid.ny * g.grid.nz, s);
+    return { planeId: g.plane.id, rotor: passFractions(t, g.inRotor), plane: passFractions(t) };
+  });
+  return { positions, choice, rotor: poolFractions(perPlane.map((p) => p.rotor)), plane: poolFractions(perPlane.map((p) => p.plane)), perPlane };
+}
+
+const key = (x: number) => (Number.isNaN(x) ? -1 : x);
+export function compareLayouts(a: LayoutScore, b: LayoutScore): number {
+  return (
+    key(b.rotor.all) - key(a.rotor.all) ||
+    key(b.plane.all) - key(a.plane.all) ||
+    key(b.rotor.u + b.rotor.v) - key(a.rotor.u + a.rotor.v)
+  );
+}
+
+export function searchLayouts(instruments: readonly Ins[], geoms: readonly PlaneGeometry[], frame: RotorFrame, s: PlanSettings, file = '<memory>'): LayoutSearchResult {
+  const own = instruments.map((i) => [...i.position] as Vec3);
+  const baseline = scoreLayout(instruments, own, geoms, frame, s, instruments.map(() => -1));
+  const movableIdx = instruments.map((ins, i) => (s.candidates[ins.id] ? i : -1)).filter((i) => i >= 0);
+  const cand = movableIdx.map((i) => candidatePositions(instruments[i], s.candidates[instruments[i].id], file));
+  const { combos, total, sampled } = combinations(cand.map((c) => c.length), s.maxCombinations, s.seed);
+  const scored: LayoutScore[] = [];
+  let skipped = 0;
+  for (const combo of combos) {
+    const positions = own.map((p) => [...p] as Vec3);
+    const choice = instruments.map(() => -1);
+    movableIdx.forEach((ii, k) => {
+      positions[ii] = cand[k][combo[k]];
+      choice[ii] = combo[k];
+    });
+    let coincident = false;
+    for (let a = 0; a < positions.length && !coincident; a++)
+      for (let b = a + 1; b < positions.length; b++)
+        if (Math.hypot(positions[a][0] - positions[b][0], positions[a][1] - positions[b][1], positions[a][2] - positions[b][2]) < 1) {
+          coincident = true;
+          break;
+        }
+    if (coincident) {
+      skipped++;
+      continue;
+    }
+    scored.push(scoreLayout(instruments, positions, geoms, frame, s, choice));
+  }
+  scored.sort(compareLayouts);
+  const ranked = scored.slice(0, s.top);
+  const best = ranked[0] ?? baseline;
+  return {
+    movable: movableIdx.map((i, k) => ({ instrumentId: instruments[i].id, candidates: cand[k].length })),
+    baseline,
+    ranked,
+    total,
+    evaluated: scored.length,
+    skippedCoincident: skipped,
+    sampled,
+    seed: s.seed,
+    gain: { rotorAll: best.rotor.all - baseline.rotor.all, planeAll: best.plane.all - baseline.plane.all },
+  };
+}

@@ -1,0 +1,138 @@
+/**
+ * The campaign planner: trust maps of every plane for the campaign's own layout, pointing tables per instrument and
+ * plane, and (when plan.candidates is given) a layout search. Pure: no I/O.
+ */
+import type { Campaign } from '../campaign/types.ts';
+import { rotorFrame, type RotorFrame } from '../geometry/frames.ts';
+import { poolFractions, trustCategoryName, type Fractions } from './cellTrust.ts';
+import { searchLayouts, type LayoutSearchResult } from './layoutSearch.ts';
+import { planeGeometry } from './planeGeometry.ts';
+import { pointingTable, type PointingTable } from './pointing.ts';
+import { resolvePlanSettings, type PlanOptions, type PlanSettings } from './settings.ts';
+import { planeTrust, type PlaneTrust } from './trustMap.ts';
+
+export interface PlanePlanSummary {
+  planeId: string;
+  orientation: 'cross' | 'horizontal';
+  cells: number;
+  rotorCells: number;
+  rotor: Fractions;
+  plane: Fractions;
+  /** Cells per trust category (trustCategoryName). */
+  categories: Record<string, number>;
+}
+
+export interface PlanSummary {
+  campaign: string;
+  direction_deg: number;
+  directionSource: 'fixed' | 'planned';
+  planes: PlanePlanSummary[];
+  /** Pooled over all planes. */
+  rotor: Fractions;
+  plane: Fractions;
+  pointing: {
+    instrumentId: string;
+    planeId: string;
+    points: number;
+    skipped: number;
+    slew_deg: number;
+    rasterSlew_deg: number;
+    serpentineSlew_deg: number;
+    passTime_s: number;
+    rasterPassTime_s: number;
+  }[];
+  layout?: {
+    total: number;
+    evaluated: number;
+    sampled: boolean;
+    seed: number;
+    skippedCoincident: number;
+    own: { rotorAll: number; planeAll: number };
+    best?: { rotorAll: number; planeAll: number; positions: Record<string, [number, number, number]> };
+    gain: { rotorAll: number; planeAll: number };
+  };
+  notes: string[];
+}
+
+export interface PlanResult {
+  settings: PlanSettings;
+  frame: RotorFrame;
+  planes: PlaneTrust[];
+  pointing: PointingTable[];
+  layout?: LayoutSearchResult;
+  summary: PlanSummary;
+}
+
+export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanResult {
+  const s = resolvePlanSettings(campaign, opts);
+  const frame = rotorFrame(s.direction_deg, campaign.turbine.position);
+  const { hubHeight_m, rotorDiameter_m } = campaign.turbine;
+  const geoms = campaign.planes.map((p) => planeGeometry(p, frame, hubHeight_m, rotorDiameter_m));
+  const positions = campaign.instruments.map((i) => i.position);
+  const planes = geoms.map((g) => planeTrust(campaign.instruments, positions, g, frame, s));
+  const pointing: PointingTable[] = [];
+  if (s.pointing)
+    for (const ins of campaign.instruments)
+      for (const pt of planes) pointing.push(pointingTable(ins, ins.position, pt.geometry, pt.beams[ins.index]));
+  const layout = s.layout && Object.keys(s.candidates).length > 0 ? searchLayouts(campaign.instruments, geoms, frame, s, campaign.sourceFile) : undefined;
+
+  const notes = [
+    'straight beams in the flat site frame (no Earth curvature, no terrain)',
+    `rotor frame from wind direction ${s.direction_deg.toFixed(2)} deg (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
+  ];
+  if (campaign.instruments.length < 3) notes.push('fewer than three instruments: w cannot be resolved anywhere');
+  if (s.twoInstrumentAssumption === 'w-zero') notes.push('cells with two usable beams: u, v from the two-component system assuming w = 0; w not resolved');
+  if (layout?.sampled) notes.push(`layout search: ${layout.total} combinations exceed plan.maxCombinations; a random sample of ${layout.evaluated + layout.skippedCoincident} drawn with seed ${layout.seed}`);
+
+  const summary: PlanSummary = {
+    campaign: campaign.name,
+    direction_deg: s.direction_deg,
+    directionSource: s.directionSource,
+    planes: planes.map((p) => {
+      const categories: Record<string, number> = {};
+      for (const name of trustCategoryName) categories[name] = 0;
+      for (const c of p.trust.category) categories[trustCategoryName[c]]++;
+      return {
+        planeId: p.geometry.plane.id,
+        orientation: p.geometry.plane.orientation,
+        cells: p.plane.cells,
+        rotorCells: p.rotor.cells,
+        rotor: p.rotor,
+        plane: p.plane,
+        categories,
+      };
+    }),
+    rotor: poolFractions(planes.map((p) => p.rotor)),
+    plane: poolFractions(planes.map((p) => p.plane)),
+    pointing: pointing.map((t) => ({
+      instrumentId: t.instrumentId,
+      planeId: t.planeId,
+      points: t.rows.length,
+      skipped: t.skipped,
+      slew_deg: t.slew_deg,
+      rasterSlew_deg: t.rasterSlew_deg,
+      serpentineSlew_deg: t.serpentineSlew_deg,
+      passTime_s: t.passTime_s,
+      rasterPassTime_s: t.rasterPassTime_s,
+    })),
+    notes,
+  };
+  if (layout) {
+    const best = layout.ranked[0];
+    summary.layout = {
+      total: layout.total,
+      evaluated: layout.evaluated,
+      sampled: layout.sampled,
+      seed: layout.seed,
+      skippedCoincident: layout.skippedCoincident,
+      own: { rotorAll: layout.baseline.rotor.all, planeAll: layout.baseline.plane.all },
+      best: best && {
+        rotorAll: best.rotor.all,
+        planeAll: best.plane.all,
+        positions: Object.fromEntries(campaign.instruments.map((ins, i) => [ins.id, best.positions[i]])),
+      },
+      gain: layout.gain,
+    };
+  }
+  return { settings: s, frame, planes, pointing, layout, summary };
+}
