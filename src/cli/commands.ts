@@ -1,0 +1,122 @@
+/**
+ * The commands. Each handler loads and validates its inputs, calls the library, and prints a short summary.
+ */
+import { existsSync } from 'node:fs';
+import { join, relative, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { Argv } from 'yargs';
+import { loadCampaignFile, campaignJsonSchema } from '../campaign/load.ts';
+import type { Campaign } from '../campaign/types.ts';
+import { OptionError } from '../errors.ts';
+import { writeFileAtomic } from '../io/atomic.ts';
+import { runCampaign, type RunResult } from '../pipeline/run.ts';
+import { simulateCampaign } from '../sim/simulate.ts';
+import { formatRunSummary } from './summary.ts';
+import { defaultStages } from '../pipeline/stages.ts';
+import { createRunProgress } from './runProgress.ts';
+import { planAndWrite } from '../pipeline/plan.ts';
+
+const REPO_ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
+export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
+
+interface Common {
+  out?: string;
+  images: boolean;
+  quiet: boolean;
+}
+
+function say(quiet: boolean, text: string): void {
+  if (!quiet) process.stdout.write(text.endsWith('\n') ? text : text + '\n');
+}
+
+function dataMissing(c: Campaign): boolean {
+  return c.instruments.some((i) => i.files.some((f) => !existsSync(f)));
+}
+
+async function runAndReport(c: Campaign, a: Common): Promise<RunResult> {
+  const progress = createRunProgress(process.stderr, { quiet: a.quiet });
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages() });
+  say(a.quiet, formatRunSummary(res));
+  return res;
+}
+
+export function commands(y: Argv): Argv {
+  const common = (yy: Argv) =>
+    yy
+      .option('out', { type: 'string', describe: 'output root folder (default: the campaign\'s output.dir)' })
+      .option('images', { type: 'boolean', default: true, describe: 'render images and the report (--no-images to skip)' })
+      .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' });
+  return y
+    .command(
+      'demo',
+      'simulate the built-in demo campaign if its data are missing, then run the whole job and the planner on it',
+      (yy) => common(yy).option('regenerate', { type: 'boolean', default: false, describe: 'simulate again even if the data exist' }),
+      async (a) => {
+        const c = loadCampaignFile(DEMO_CAMPAIGN);
+        if (a.regenerate || dataMissing(c)) {
+          say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
+          const s = await simulateCampaign(c);
+          say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+        }
+        const res = await runAndReport(c, a as unknown as Common);
+        const plan = await planAndWrite(c, res.runDir, { images: a.images as boolean });
+        say(a.quiet as boolean, plan.summary);
+      },
+    )
+    .command(
+      'run <campaign>',
+      'process a campaign: read, quality-control, grid, retrieve, analyse the wake, write tables, images and report',
+      (yy) => common(yy).positional('campaign', { type: 'string', describe: 'campaign file (YAML or JSON)' }),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        await runAndReport(c, a as unknown as Common);
+      },
+    )
+    .command(
+      'simulate <campaign>',
+      'write synthetic raw samples and their truth for a campaign with a `simulation` section',
+      (yy) => yy.positional('campaign', { type: 'string' }).option('quiet', { type: 'boolean', default: false }),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        if (!c.simulation) throw new OptionError('campaign', `${c.sourceFile} has no "simulation" section to simulate from`);
+        const s = await simulateCampaign(c);
+        say(a.quiet as boolean, `wrote ${s.files.length} files (${Object.entries(s.rows).map(([k, v]) => `${k}: ${v.toLocaleString('en')} samples`).join(', ')}); truth in ${s.truthDir}`);
+      },
+    )
+    .command(
+      'plan <campaign>',
+      'before deployment: trust maps, probe volumes, pointing tables and a layout ranking for a campaign',
+      (yy) => common(yy).positional('campaign', { type: 'string' }),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        const outRoot = resolve((a.out as string | undefined) ?? c.output.dir);
+        const res = await planAndWrite(c, join(outRoot, c.name), { images: a.images as boolean });
+        say(a.quiet as boolean, res.summary);
+      },
+    )
+    .command(
+      'check <campaign>',
+      'validate a campaign file and print it as resolved (positions in the site frame, planes in metres)',
+      (yy) => yy.positional('campaign', { type: 'string' }),
+      (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        const lines = [
+          `campaign ${c.name}: valid`,
+          `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
+          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
+          ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
+        ];
+        process.stdout.write(lines.join('\n') + '\n');
+      },
+    )
+    .command(
+      'schema',
+      'print the JSON Schema of the campaign file (or write it with --write FILE)',
+      (yy) => yy.option('write', { type: 'string', describe: 'write to this file instead of printing' }),
+      (a) => {
+        const text = JSON.stringify(campaignJsonSchema(), null, 2) + '\n';
+        if (a.write) writeFileAtomic(resolve(a.write as string), text);
+        else process.stdout.write(text);
+      },
+    );
+}

@@ -1,0 +1,39 @@
+/**
+ * SHA-256 and size of the input files, computed in a worker thread so that hashing runs on the second core while
+ * the main thread parses.
+ */
+import { Worker } from 'node:worker_threads';
+
+const WORKER = `
+const { parentPort, workerData } = require('node:worker_threads');
+const { createHash } = require('node:crypto');
+const { createReadStream, statSync } = require('node:fs');
+(async () => {
+  const out = [];
+  for (const file of workerData.files) {
+    try {
+      const h = createHash('sha256');
+      for await (const chunk of createReadStream(file, { highWaterMark: 1 << 20 })) h.update(chunk);
+      out.push({ file, bytes: statSync(file).size, sha256: h.digest('hex') });
+    } catch (e) {
+      out.push({ file, bytes: -1, sha256: '', error: String(e && e.message || e) });
+    }
+  }
+  parentPort.postMessage(out);
+})();
+`;
+
+export interface FileDigest {
+  file: string;
+  bytes: number;
+  sha256: string;
+  error?: string;
+}
+
+export function hashFiles(files: string[]): Promise<FileDigest[]> {
+  return new Promise((resolve, reject) => {
+    const w = new Worker(WORKER, { eval: true, workerData: { files } });
+    w.once('message', (m: FileDigest[]) => resolve(m));
+    w.once('error', reject);
+  });
+}

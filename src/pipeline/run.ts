@@ -1,0 +1,249 @@
+/**
+ * The whole job for one campaign: check inputs, ingest (QC, geometry, windows), retrieve each window, write the
+ * field tables, analyse the wake, render images and the report, and write the manifest.
+ *
+ * Output safety: everything is written into a staging folder beside the result (`.<name>.partial-<pid>`); only a
+ * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
+ * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
+ */
+import { createHash } from 'node:crypto';
+import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
+import { join, relative, resolve } from 'node:path';
+import type { Campaign } from '../campaign/types.ts';
+import { gridSpecOf } from '../grid/grid.ts';
+import { checkHeader } from '../io/csvSamples.ts';
+import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
+import { readSeries, type Series } from '../io/series.ts';
+import { isoTime } from '../io/time.ts';
+import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
+import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
+import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
+import type { FieldResult } from '../retrieval/types.ts';
+import { Counters, ingest } from './ingest.ts';
+import { fieldTableName, writeFieldTable } from './fieldTable.ts';
+import { hashFiles } from './hashing.ts';
+import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
+import { directionForWindow, windowScheme } from './windows.ts';
+import { InputError } from '../errors.ts';
+import { VERSION } from '../version.ts';
+
+export interface RunOptions {
+  /** Output root; default: the campaign's output.dir resolved against the working directory. */
+  outRoot?: string;
+  /** Render images and the report (default: campaign output.images). */
+  images?: boolean;
+  /** Progress sink (the CLI passes a terminal progress display; silent by default). */
+  progress?: RunProgress;
+  /** Extra stages run on the finished fields before the manifest is written (wake analysis, images, report). */
+  stages?: RunStage[];
+}
+
+export interface RunProgress {
+  stage(name: string): void;
+  file(path: string, rows: number): void;
+  done(): void;
+}
+
+/** A stage after retrieval: receives every field and writes its outputs into the run folder. */
+export interface RunStage {
+  name: string;
+  run(ctx: StageContext): Promise<OutputRecord[]>;
+}
+
+export interface StageContext {
+  campaign: Campaign;
+  fields: FieldResult[];
+  runDir: string;
+  images: boolean;
+  manifest: RunManifest;
+}
+
+export interface RunResult {
+  manifest: RunManifest;
+  runDir: string;
+  notices: string[];
+}
+
+const silent: RunProgress = { stage() {}, file() {}, done() {} };
+
+function sha256Text(text: string): string {
+  return createHash('sha256').update(text).digest('hex');
+}
+
+export function accountsFrom(c: Campaign, counters: Counters): { perInstrument: Record<string, SampleAccount>; total: SampleAccount } {
+  const per: Record<string, SampleAccount> = {};
+  const total = emptyAccount();
+  for (const ins of c.instruments) {
+    const a = emptyAccount();
+    a.read = counters.read[ins.index];
+    a.accepted = counters.accepted[ins.index];
+    REJECT_REASONS.forEach((r, k) => (a.rejected[r] = counters.rejected[ins.index * REJECT_REASONS.length + k]));
+    per[ins.id] = a;
+    total.read += a.read;
+    total.accepted += a.accepted;
+    for (const r of REJECT_REASONS) total.rejected[r] += a.rejected[r];
+  }
+  return { perInstrument: per, total };
+}
+
+export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
+  const progress = opts.progress ?? silent;
+  const t0 = performance.now();
+  const timings: Record<string, number> = {};
+  const lap = (name: string, since: number) => (timings[name] = (timings[name] ?? 0) + (performance.now() - since) / 1000);
+  const images = opts.images ?? c.output.images;
+  const notices: string[] = [];
+  const warnings: string[] = [];
+
+  // 1. Inputs: every data file must exist and have the required columns before anything is written.
+  progress.stage('checking inputs');
+  let t = performance.now();
+  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
+  const dataFiles = c.instruments.flatMap((ins) => ins.files.map((file) => ({ file, ins })));
+  if (dataFiles.length === 0) throw new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files');
+  for (const { file, ins } of dataFiles) {
+    if (!existsSync(file)) throw new InputError(file, undefined, `data file of instrument "${ins.id}" not found`);
+    await checkHeader(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
+  }
+  const dirSeries: Series | undefined =
+    c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  const digests = hashFiles(dataFiles.map((d) => d.file));
+  lap('check_inputs', t);
+
+  // 2. Staging folder.
+  const outRoot = resolve(opts.outRoot ?? c.output.dir);
+  const finalDir = join(outRoot, c.name);
+  const runDir = join(outRoot, `.${c.name}.partial-${process.pid}`);
+  rmSync(runDir, { recursive: true, force: true });
+  mkdirSync(runDir, { recursive: true });
+
+  try {
+    const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
+    const settings: RetrievalSettings = {
+      maxAmplification: c.retrieval.maxAmplification,
+      minSamplesPerInstrument: c.retrieval.minSamplesPerInstrument,
+      twoInstrumentAssumption: c.retrieval.twoInstrumentAssumption,
+      robust: c.qc.robust,
+      instrumentCount: c.instruments.length,
+    };
+    const counters = new Counters(c.instruments.length);
+    const outputs: OutputRecord[] = [];
+    const windows: WindowRecord[] = [];
+    const fields: FieldResult[] = [];
+    const assumptions = new Set<string>();
+    let rejectedOut: AtomicStream | undefined;
+    let rejectedCount = 0;
+    if (c.output.writeRejected) {
+      rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
+      rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
+    }
+    let retrieveTime = 0, writeTime = 0;
+
+    // 3. Ingest and retrieve, window by window.
+    progress.stage('reading samples');
+    t = performance.now();
+    const scheme = windowScheme(c);
+    await ingest(
+      {
+        campaign: c,
+        planes,
+        scheme,
+        directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
+        onRejectedRows(rows) {
+          rejectedCount += rows.length;
+          if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
+        },
+        onProgress: (file, rows) => progress.file(file, rows),
+        async onWindow(w) {
+          const tr = performance.now();
+          const info = { index: w.index, start_s: w.start_s, end_s: w.end_s };
+          const res = retrieveWindow(w.samples, planes, info, w.direction_deg, settings);
+          for (let i = 0; i < res.outliers.length; i++) {
+            counters.accepted[i] -= res.outliers[i];
+            counters.reject(i, REJECT_REASONS.indexOf('outlier'), res.outliers[i]);
+          }
+          retrieveTime += (performance.now() - tr) / 1000;
+          const tw = performance.now();
+          const ordinal = windows.length;
+          windows.push({
+            index: w.index, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
+            direction_deg: w.direction_deg, samples: w.samples.length - res.outliers.reduce((a, b) => a + b, 0),
+          });
+          for (const f of res.fields) {
+            const rel = fieldTableName(f, ordinal);
+            await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
+            outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
+            for (const a of f.assumptions) assumptions.add(`${a} (${f.planeId}, window ${ordinal})`);
+            fields.push(f);
+          }
+          writeTime += (performance.now() - tw) / 1000;
+        },
+      },
+      counters,
+    );
+    lap('ingest_total', t);
+    timings.retrieval = retrieveTime;
+    timings.write_fields = writeTime;
+    timings.ingest = timings.ingest_total - retrieveTime - writeTime;
+    delete timings.ingest_total;
+    if (rejectedOut) {
+      await rejectedOut.close();
+      outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
+    }
+    if (windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
+
+    t = performance.now();
+    const inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
+    lap('hash_wait', t);
+    const { perInstrument, total } = accountsFrom(c, counters);
+    const balanced = Object.values(perInstrument).every(accountBalances);
+    if (!balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
+    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+
+    const manifest: RunManifest = {
+      tool: { name: 'wakeplane', version: VERSION },
+      campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
+      startedAt: new Date(Date.now() - (performance.now() - t0)).toISOString(),
+      finishedAt: '',
+      inputs,
+      settings: c,
+      samples: { total, perInstrument, balanced },
+      windows,
+      outputs,
+      timings_s: timings,
+      peakRss_bytes: 0,
+      samplesPerSecond: 0,
+      assumptions: [...assumptions],
+      warnings,
+    };
+
+    // 4. Later stages: wake analysis, images, report.
+    for (const stage of opts.stages ?? []) {
+      progress.stage(stage.name);
+      t = performance.now();
+      outputs.push(...(await stage.run({ campaign: c, fields, runDir, images, manifest })));
+      lap(stage.name, t);
+    }
+
+    // 5. Manifest, then make the result visible.
+    timings.total = (performance.now() - t0) / 1000;
+    manifest.finishedAt = new Date().toISOString();
+    manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
+    manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
+    outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
+    writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
+
+    if (existsSync(finalDir)) {
+      const kept = `${finalDir}.replaced-${new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}`;
+      renameSync(finalDir, kept);
+      notices.push(`an earlier result was kept as ${relative(process.cwd(), kept) || kept}`);
+    }
+    renameSync(runDir, finalDir);
+    progress.done();
+    return { manifest, runDir: finalDir, notices };
+  } catch (e) {
+    progress.done();
+    rmSync(runDir, { recursive: true, force: true });
+    throw e;
+  }
+}
