@@ -1,7 +1,12 @@
 /**
  * Per-(plane, cell, instrument) statistics of the kept samples of one window: count n, mean radial velocity, mean
- * beam unit vector (renormalised; rotor frame) and the sample variance s^2 of v_r (denominator n - 1; NaN for n = 1).
- * Two passes per group (mean, then squared deviations) for numerical stability.
+ * beam unit vector (rotor frame) and its length, and the sample variance s^2 of v_r (denominator n - 1; NaN for
+ * n = 1). Two passes per group (mean, then squared deviations) for numerical stability.
+ *
+ * The mean vector is kept unnormalised for the solve: for a wind uniform over the cell, mean(v_r) = mean(n) . U
+ * exactly, while the renormalised mean would bias v_r by the factor |mean(n)| = 1 - (angular variance)/2 (about
+ * 1e-4 for a 1 degree spread). The renormalised direction (nx/len, ...) describes the geometry (amplification,
+ * condition, crossing angle).
  */
 import type { WindowSamples } from '../grid/windowSamples.ts';
 import type { SampleGroups } from './group.ts';
@@ -13,6 +18,8 @@ export interface InstrumentMeans {
   ny: Float64Array;
   nz: Float64Array;
   variance: Float64Array;
+  /** Length of the mean unit vector (1 when every sample has the same beam direction). */
+  len: Float64Array;
 }
 
 export function instrumentMeans(
@@ -22,6 +29,7 @@ export function instrumentMeans(
   const out: InstrumentMeans = {
     n: new Uint32Array(K), vr: new Float64Array(K).fill(NaN), nx: new Float64Array(K).fill(NaN),
     ny: new Float64Array(K).fill(NaN), nz: new Float64Array(K).fill(NaN), variance: new Float64Array(K).fill(NaN),
+    len: new Float64Array(K).fill(NaN),
   };
   const { start, order } = groups;
   const { nx, ny, nz } = samples;
@@ -39,10 +47,10 @@ export function instrumentMeans(
     const m = sv / cnt;
     let ss = 0;
     for (let p = s; p < e; p++) if (keep[p]) ss += (vrSorted[p] - m) ** 2;
-    const norm = Math.hypot(sx, sy, sz);
     out.n[k] = cnt;
     out.vr[k] = m;
-    out.nx[k] = sx / norm; out.ny[k] = sy / norm; out.nz[k] = sz / norm;
+    out.nx[k] = sx / cnt; out.ny[k] = sy / cnt; out.nz[k] = sz / cnt;
+    out.len[k] = Math.hypot(sx, sy, sz) / cnt;
     out.variance[k] = cnt > 1 ? ss / (cnt - 1) : NaN;
   }
   return out;

@@ -80,7 +80,7 @@ export function retrieveWindow(
   const floor2 = floor * floor;
   const minN = settings.minSamplesPerInstrument;
   const wZero = settings.twoInstrumentAssumption === 'w-zero';
-  const rows = new Float64Array(I * 3), m = new Float64Array(I), wts = new Float64Array(I);
+  const rows = new Float64Array(I * 3), geom = new Float64Array(I * 3), m = new Float64Array(I), wts = new Float64Array(I);
   const sol = emptyCellSolution();
   const fields: FieldResult[] = [];
 
@@ -98,6 +98,8 @@ export function retrieveWindow(
         present++;
         if (n < minN) continue;
         rows[K * 3] = st.nx[k]; rows[K * 3 + 1] = st.ny[k]; rows[K * 3 + 2] = st.nz[k];
+        const len = st.len[k];
+        geom[K * 3] = st.nx[k] / len; geom[K * 3 + 1] = st.ny[k] / len; geom[K * 3 + 2] = st.nz[k] / len;
         m[K] = st.vr[k];
         const v = st.variance[k];
         wts[K] = n / (v > floor2 ? v : floor2);
@@ -108,9 +110,9 @@ export function retrieveWindow(
       f.samples[c] = used;
       f.instruments[c] = K;
       if (K >= 3) {
-        solve3(rows, m, wts, K, settings.maxAmplification, sol);
+        solve3(rows, geom, m, wts, K, settings.maxAmplification, sol);
       } else if (K === 2 && wZero) {
-        solve2(rows, m, wts, K, settings.maxAmplification, sol);
+        solve2(rows, geom, m, wts, K, settings.maxAmplification, sol);
         if (sol.maskW === MaskReason.assumedZero) usedWZero = true;
       } else {
         const need = wZero ? 2 : 3;

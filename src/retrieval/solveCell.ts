@@ -1,8 +1,9 @@
 /**
  * Weighted least squares for one cell from per-instrument means.
  *
- * Model: each instrument i contributes its mean radial velocity m_i, the mean beam unit vector a_i (row of A,
- * rotor frame) and the variance of that mean s_i^2 / n_i. Then m = A U + e, Cov(e) = diag(s_i^2 / n_i), and
+ * Model: each instrument i contributes its mean radial velocity m_i, the mean of its beam unit vectors a_i (row of
+ * A, rotor frame; not renormalised, so m_i = a_i . U holds exactly for a wind uniform over the cell) and the
+ * variance of that mean s_i^2 / n_i. Then m = A U + e, Cov(e) = diag(s_i^2 / n_i), and
  *   U_hat = (A^T W A)^-1 A^T W m,   W = diag(n_i / s_i^2),   Cov(U_hat) = (A^T W A)^-1
  * (weighted least squares / dilution of precision algebra: Milbert 2008, NAVIGATION; Stawiarski et al. 2013,
  * J. Atmos. Oceanic Technol. 30(9)). The standard uncertainty of component k is sqrt([(A^T W A)^-1]_kk); with three
@@ -16,7 +17,8 @@
  * misfit is not used to rescale them. s is floored (RetrievalSettings.sigmaFloor_ms) so that no instrument gets
  * an unbounded weight.
  *
- * The error amplification reported is the unweighted geometry, sqrt(diag((A^T A)^-1)); a component is masked when
+ * The error amplification reported is the unweighted geometry, sqrt(diag((A^T A)^-1)) of the renormalised mean
+ * directions (`geom`; identical to A up to O(angular variance)); a component is masked when
  * it exceeds maxAmplification. When only w is masked (beams nearly coplanar near the ground), u and v keep the
  * three-component solution and its uncertainties: re-solving them with w = 0 would trade their honest, larger
  * uncertainty for an unstated bias of order w times the beams' vertical components.
@@ -51,12 +53,15 @@ function reset(out: CellSolution, reason: number): void {
 }
 
 /**
- * Three-component WLS from K >= 3 rows. rows: K*3 unit vectors; m: K mean radial velocities; wts: K weights
- * n_i / s_i^2. Masks: singular when (A^T A) or (A^T W A) cannot be inverted; amplification per component.
+ * Three-component WLS from K >= 3 rows. rows: K*3 mean beam vectors; geom: the same renormalised to unit length;
+ * m: K mean radial velocities; wts: K weights n_i / s_i^2. Masks: singular when (A^T A) or (A^T W A) cannot be
+ * inverted; amplification per component.
  */
-export function solve3(rows: Float64Array, m: Float64Array, wts: Float64Array, K: number, maxAmplification: number, out: CellSolution): void {
+export function solve3(
+  rows: Float64Array, geom: Float64Array, m: Float64Array, wts: Float64Array, K: number, maxAmplification: number, out: CellSolution,
+): void {
   reset(out, MaskReason.ok);
-  const amp = amplification3(rows, K);
+  const amp = amplification3(geom, K);
   out.minCrossing_deg = amp.minCrossing_deg;
   if (!Number.isFinite(amp.inv[0])) {
     reset(out, MaskReason.singular);
@@ -87,11 +92,13 @@ export function solve3(rows: Float64Array, m: Float64Array, wts: Float64Array, K
 }
 
 /** Two-component (u, v) WLS with w = 0 from K >= 2 rows; w is marked assumedZero, its DOP NaN. */
-export function solve2(rows: Float64Array, m: Float64Array, wts: Float64Array, K: number, maxAmplification: number, out: CellSolution): void {
+export function solve2(
+  rows: Float64Array, geom: Float64Array, m: Float64Array, wts: Float64Array, K: number, maxAmplification: number, out: CellSolution,
+): void {
   reset(out, MaskReason.ok);
   out.maskW = MaskReason.assumedZero;
-  out.minCrossing_deg = minCrossingAngle(rows, K);
-  const amp = amplification2(rows, K);
+  out.minCrossing_deg = minCrossingAngle(geom, K);
+  const amp = amplification2(geom, K);
   if (!Number.isFinite(amp.inv[0])) {
     out.maskU = out.maskV = out.maskW = MaskReason.singular;
     out.cond = Infinity;
