@@ -1,0 +1,151 @@
+/**
+ * The whole run on a small simulated campaign: sample accounting, rejected-row reports, input errors before any
+ * output, output safety, and the simulator round trip. The round trip checks our own simulator against our own
+ * retrieval: useful, but not an outside check (those live in the geometry, retrieval and wake tests).
+ */
+import { appendFileSync, existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { parse } from 'yaml';
+import { loadCampaignFile } from '../src/campaign/load.ts';
+import { InputError } from '../src/errors.ts';
+import { runCampaign } from '../src/pipeline/run.ts';
+import { REJECT_REASONS } from '../src/qc/reasons.ts';
+import { simulateCampaign } from '../src/sim/simulate.ts';
+import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+
+function readCsv(path: string): Record<string, string>[] {
+  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
+  const cols = head.split(',');
+  return rows.map((r) => {
+    const cells = r.split(',');
+    return Object.fromEntries(cols.map((c, k) => [c, cells[k]]));
+  });
+}
+
+describe('a whole run on a simulated campaign', () => {
+  let dir: string, file: string, out: string;
+  beforeAll(async () => {
+    ({ dir, file } = writeTinyCampaign());
+    await simulateCampaign(loadCampaignFile(file));
+    // Three bad rows appended to instrument a's file: their reasons and line numbers must be reported.
+    const aFile = join(dir, 'data', 'a.csv');
+    const lines = readFileSync(aFile, 'utf8').trimEnd().split('\n').length;
+    appendFileSync(aFile, '1772366400.5,a,12.5,abc,300,1.2,-10\n1772366400.6,a,12.5,3.0\n1772366400.7,zz,12.5,3.0,300,1.2,-10\n');
+    (globalThis as Record<string, unknown>).__badLines = [lines + 1, lines + 2, lines + 3];
+    out = join(dir, 'out');
+  });
+
+  it('accounts for every sample: read = accepted + rejected by reason, per instrument', async () => {
+    const { manifest } = await runCampaign(loadCampaignFile(file), { outRoot: out, images: false });
+    expect(manifest.samples.balanced).toBe(true);
+    for (const [id, a] of Object.entries(manifest.samples.perInstrument)) {
+      const rejected = REJECT_REASONS.reduce((s, r) => s + a.rejected[r], 0);
+      // Exact integer identity: no tolerance.
+      expect(a.accepted + rejected, id).toBe(a.read);
+      expect(a.read, id).toBeGreaterThan(1000);
+    }
+    // The three appended rows are charged to instrument a with their reasons.
+    const a = manifest.samples.perInstrument.a;
+    expect(a.rejected.bad_number).toBe(1);
+    expect(a.rejected.missing_field).toBe(1);
+    expect(a.rejected.unknown_instrument).toBe(1);
+    // The simulator injects low-CNR gates, ground returns and spikes: each must be caught by its rule.
+    const t = manifest.samples.total.rejected;
+    expect(t.low_cnr).toBeGreaterThan(0);
+    expect(t.hard_target_cnr + t.below_ground).toBeGreaterThan(0);
+    expect(t.outlier).toBeGreaterThan(0);
+    expect(t.outside_planes).toBeGreaterThan(0);
+  });
+
+  it('writes the rejected rows with file, line and reason', () => {
+    const rows = readCsv(join(out, 'tiny-test', 'rejected_rows.csv'));
+    const bad = (globalThis as Record<string, unknown>).__badLines as number[];
+    expect(rows.map((r) => [r.file, Number(r.line), r.reason])).toEqual([
+      [join('data', 'a.csv'), bad[0], 'bad_number'],
+      [join('data', 'a.csv'), bad[1], 'missing_field'],
+      [join('data', 'a.csv'), bad[2], 'unknown_instrument'],
+    ]);
+  });
+
+  it('writes one field table per plane and window and a manifest listing inputs with size and SHA-256', () => {
+    const run = join(out, 'tiny-test');
+    const m = JSON.parse(readFileSync(join(run, 'manifest.json'), 'utf8'));
+    expect(m.windows.length).toBe(3);
+    expect(readdirSync(join(run, 'fields')).length).toBe(3);
+    for (const i of m.inputs) {
+      expect(i.sha256).toMatch(/^[0-9a-f]{64}$/);
+      expect(i.bytes).toBeGreaterThan(0);
+    }
+    const rows = readCsv(join(run, 'fields', readdirSync(join(run, 'fields'))[0]));
+    expect(rows.length).toBe(12 * 6); // 360 m / 30 m by 180 m / 30 m cells
+  });
+
+  it('keeps an earlier result instead of overwriting it', async () => {
+    const res = await runCampaign(loadCampaignFile(file), { outRoot: out, images: false });
+    expect(res.notices.join(' ')).toMatch(/kept as/);
+    expect(readdirSync(out).some((n) => n.startsWith('tiny-test.replaced-'))).toBe(true);
+    expect(readdirSync(out).some((n) => n.includes('.partial-'))).toBe(false);
+  });
+
+  it('round trip: retrieved components match the simulator truth within the stated tolerance, and high-amplification w is masked', () => {
+    const run = join(out, 'tiny-test');
+    const truth = new Map<string, number[]>();
+    for (const r of readCsv(join(dir, 'truth', 'field_truth.csv'))) {
+      truth.set(`${r.window_start.slice(0, 16)}|${Number(r.y_m)}|${Number(r.z_m)}`, [Number(r.u), Number(r.v), Number(r.w)]);
+    }
+    const err: Record<string, number[]> = { u: [], v: [], w: [] };
+    let checkedMasks = 0;
+    for (const f of readdirSync(join(run, 'fields'))) {
+      for (const r of readCsv(join(run, 'fields', f))) {
+        const t = truth.get(`${r.window_start.slice(0, 16)}|${Number(r.y_m)}|${Number(r.z_m)}`)!;
+        ['u', 'v', 'w'].forEach((c, k) => {
+          if (r[c] !== '' && !(c === 'w' && r.mask_w)) err[c].push(Number(r[c]) - t[k]);
+        });
+        if (r.dop_w !== '' && Number(r.dop_w) > 3) {
+          checkedMasks++;
+          expect(r.w).toBe('');
+          expect(r.mask_w).toBe('amplification_above_threshold');
+        }
+      }
+    }
+    const rms = (a: number[]) => Math.sqrt(a.reduce((s, x) => s + x * x, 0) / a.length);
+    // Expected error: simulated turbulence 0.35 m/s and noise 0.12 m/s per sample, 5-30 samples per instrument and
+    // cell, amplification 1-3, plus averaging of the wake's gradient across a 30 m cell and the probe length
+    // (up to ~0.3 m/s in the shear layer): RMS below 0.5 m/s for u and v, 0.8 m/s for w (amplification up to 3).
+    expect(err.u.length).toBeGreaterThan(100);
+    expect(rms(err.u)).toBeLessThan(0.5);
+    expect(rms(err.v)).toBeLessThan(0.5);
+    expect(err.w.length).toBeGreaterThan(20);
+    expect(rms(err.w)).toBeLessThan(0.8);
+    expect(checkedMasks).toBeGreaterThan(0);
+  });
+});
+
+describe('input errors stop the run before any output', () => {
+  it('a data file without a required column names the file, line 1 and the column; nothing is written', async () => {
+    const { dir, file } = writeTinyCampaign({ name: 'bad-header' });
+    await simulateCampaign(loadCampaignFile(file));
+    const bFile = join(dir, 'data', 'b.csv');
+    const text = readFileSync(bFile, 'utf8').replace(/^time,instrument,azimuth_deg,elevation_deg,range_m,/, 'time,instrument,azimuth_deg,elevation_deg,rng,');
+    writeFileSync(bFile, text);
+    const out = join(dir, 'out');
+    await expect(runCampaign(loadCampaignFile(file), { outRoot: out, images: false })).rejects.toThrow(InputError);
+    await expect(runCampaign(loadCampaignFile(file), { outRoot: out, images: false })).rejects.toThrow(/b\.csv:1: .*range_m/);
+    expect(existsSync(out)).toBe(false);
+  });
+
+  it('a missing data file is named', async () => {
+    const { file } = writeTinyCampaign({ name: 'no-data' });
+    await expect(runCampaign(loadCampaignFile(file), { images: false })).rejects.toThrow(/a\.csv: data file of instrument "a" not found/);
+  });
+});
+
+describe('the demo campaign file', () => {
+  it('is valid and names only its own invented instruments', () => {
+    const c = loadCampaignFile(join(import.meta.dirname, '..', 'scenarios', 'quillmoor', 'campaign.yaml'));
+    expect(c.instruments.map((i) => i.id)).toEqual(['wl-north', 'wl-south', 'wl-east']);
+    expect(c.planes.map((p) => p.x_m)).toEqual([360, 600, 840]);
+    expect(parse(readFileSync(c.sourceFile, 'utf8')).simulation.seed).toBeTypeOf('number');
+  });
+});
