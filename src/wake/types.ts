@@ -162,6 +162,8 @@ export interface WakePlaneWindow {
   rews: RewsResult;
   /** Deficit at hub height on the rotor axis (y = 0, z = hub), interpolated bilinearly. */
   hubDeficit: number;
+  /** Deficit of the field at the primary wake centre (centreline deficit), interpolated bilinearly. */
+  centreDeficit: number;
   /** Integral of u (U_inf(z) - u) dA over valid cells, m^4/s^2. */
   momentumDeficit_m4s2: number;
   /** momentumDeficit / ((pi/8) Ct D^2 U_hub^2). */

@@ -1,0 +1,41 @@
+/**
+ * Horizontal planes: per downstream row (the grid's second axis is x), a 1D Gaussian across y,
+ *   d(y) = A exp(-(y - yc)^2 / (2 sy^2)) + c,
+ * fitted by Levenberg-Marquardt (standard error of yc from (J^T J)^-1 SSR/(N - p)); rows with fewer than 8 valid
+ * cells, a peak deficit below `minDeficit`, no convergence or a centre outside the row are NaN.
+ */
+import type { GridSpec } from '../grid/grid.ts';
+import { levenbergMarquardt } from './levenbergMarquardt.ts';
+
+export function horizontalTrack(g: GridSpec, deficit: Float64Array, minDeficit: number): { x_m: number[]; yc_m: number[]; syc_m: number[]; sigmaY_m: number[]; amplitude: number[] } {
+  const out = { x_m: [] as number[], yc_m: [] as number[], syc_m: [] as number[], sigmaY_m: [] as number[], amplitude: [] as number[] };
+  const yMin = g.y0 - g.dy / 2, yMax = g.y0 + (g.ny - 0.5) * g.dy;
+  for (let ix = 0; ix < g.nz; ix++) {
+    const ys: number[] = [], ds: number[] = [];
+    for (let iy = 0; iy < g.ny; iy++) {
+      const d = deficit[iy + ix * g.ny];
+      if (Number.isFinite(d)) { ys.push(g.y0 + iy * g.dy); ds.push(d); }
+    }
+    out.x_m.push(g.z0 + ix * g.dz);
+    let peak = -Infinity, at = 0;
+    ds.forEach((d, i) => { if (d > peak) { peak = d; at = ys[i]; } });
+    if (ys.length < 8 || !(peak >= minDeficit)) {
+      out.yc_m.push(NaN); out.syc_m.push(NaN); out.sigmaY_m.push(NaN); out.amplitude.push(NaN);
+      continue;
+    }
+    const r = levenbergMarquardt({
+      n: ys.length, y: ds,
+      model: (p, i, gr) => {
+        const dy = ys[i] - p[1];
+        const e = Math.exp((-0.5 * dy * dy) / (p[2] * p[2]));
+        gr[0] = e; gr[1] = (p[0] * e * dy) / (p[2] * p[2]); gr[2] = (p[0] * e * dy * dy) / (p[2] * p[2] * p[2]); gr[3] = 1;
+        return p[0] * e + p[3];
+      },
+    }, [peak, at, (yMax - yMin) / 8, 0]);
+    const [A, yc, sy] = r.params;
+    const good = r.converged && yc > yMin && yc < yMax && A > 0;
+    out.yc_m.push(good ? yc : NaN); out.syc_m.push(good ? r.stderr[1] : NaN);
+    out.sigmaY_m.push(good ? Math.abs(sy) : NaN); out.amplitude.push(good ? A : NaN);
+  }
+  return out;
+}

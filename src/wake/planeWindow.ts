@@ -1,0 +1,159 @@
+/**
+ * Wake analysis of one plane and window: inflow, deficit, Gaussian fit and its flags, the shape-independent centres,
+ * rotor-equivalent speeds, hub and centreline deficits, momentum deficit and the cuts through the centre.
+ *
+ * Flags, in the order tested (the first that applies wins; a flagged row keeps whatever was computed):
+ * no_inflow (no usable inflow profile) -> too_few_cells (valid cells < minCells) -> no_wake (98th-percentile deficit
+ * < minDeficit, or fitted amplitude < minDeficit) -> not_converged -> off_edge (fitted centre outside the plane or
+ * within one cell of its edge) -> absurd_width (sigma < minWidthCells cells or > maxWidth_D D).
+ */
+import type { FieldResult } from '../retrieval/types.ts';
+import type { Series } from '../io/series.ts';
+import type { CentreEstimate, Gaussian2DFit, InflowProfile, WakeFlag, WakePlaneWindow } from './types.ts';
+import type { WakeOptions } from './options.ts';
+import { inflowFixed, inflowFromPlane, inflowFromSeries, type WakeEllipse } from './inflow.ts';
+import { deficitField } from './deficit.ts';
+import { fitGaussian2D } from './gaussian2d.ts';
+import { minPowerDiskCentre } from './diskCentre.ts';
+import { deficitCentroid } from './centroid.ts';
+import { rewsOnGrid } from './rews.ts';
+import { momentumDeficit, thrustMomentum } from './momentum.ts';
+import { horizontalCut, sampleBilinear, verticalCut } from './profiles.ts';
+import { horizontalTrack } from './horizontalTrack.ts';
+import { thrustCoefficientAt } from './thrust.ts';
+import { windowYaw } from './yawOffset.ts';
+import { quantile } from './stats.ts';
+
+export type InflowSpec =
+  | { kind: 'plane'; law: 'power' | 'log' }
+  | { kind: 'fixed'; speed_ms: number; height_m: number; law: 'power' | 'log'; alpha: number; z0_m: number }
+  | { kind: 'series' };
+
+export interface PlaneWindowContext {
+  rotorDiameter_m: number;
+  hubHeight_m: number;
+  thrustCoefficient: number | [number, number][];
+  inflow: InflowSpec;
+  inflowSeries?: Series;
+  turbineSeries?: Series;
+  options: WakeOptions;
+}
+
+const NO_CENTRE = (method: CentreEstimate['method']): CentreEstimate => ({ method, y_m: NaN, z_m: NaN, sy_m: NaN, sz_m: NaN, ok: false });
+
+function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse | null): InflowProfile {
+  const H = c.hubHeight_m, D = c.rotorDiameter_m;
+  if (c.inflow.kind === 'fixed') return inflowFixed(c.inflow, H);
+  if (c.inflow.kind === 'series') {
+    if (c.inflowSeries) return inflowFromSeries(c.inflowSeries, f.window.start_s, f.window.end_s, H, 'power');
+    const p = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
+    return { ...p, note: 'inflow series not loaded' };
+  }
+  return inflowFromPlane(f, {
+    law: c.inflow.law, hubHeight_m: H, rotorDiameter_m: D, minCellsPerRow: c.options.inflowMinCellsPerRow,
+    exclusionHalfWidth_m: ellipse ? 0 : c.options.inflowExclusion_D * D, ellipse, sigmas: c.options.inflowExclusionSigmas,
+  });
+}
+
+function countFinite(a: Float64Array): number {
+  let n = 0;
+  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) n++;
+  return n;
+}
+
+export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakePlaneWindow {
+  const D = c.rotorDiameter_m, H = c.hubHeight_m, R = D / 2, o = c.options, g = f.grid;
+  const yaw = windowYaw(c.turbineSeries, f.window.start_s, f.window.end_s, f.direction_deg);
+  let inflow = inflowFor(f, c, null);
+  let def = deficitField(f, inflow);
+  const validU = countFinite(f.u);
+  const yMin = g.y0 - g.dy / 2, yMax = g.y0 + (g.ny - 0.5) * g.dy, zMin = g.z0 - g.dz / 2, zMax = g.z0 + (g.nz - 0.5) * g.dz;
+  let flag: WakeFlag = 'ok', reason = '';
+  let fit: Gaussian2DFit | null = null;
+  let maxDeficit = quantile(def.deficit, 0.98);
+
+  const points = (d: Float64Array) => {
+    const y: number[] = [], z: number[] = [], v: number[] = [];
+    for (let k = 0; k < d.length; k++) if (Number.isFinite(d[k])) {
+      const iy = k % g.ny, iz = (k - iy) / g.ny;
+      y.push(g.y0 + iy * g.dy); z.push(g.z0 + iz * g.dz); v.push(d[k]);
+    }
+    return { y, z, d: v };
+  };
+
+  if (f.orientation === 'horizontal') {
+    flag = 'horizontal_plane'; reason = 'horizontal plane: lateral track per downstream row instead of a cross-section fit';
+  } else if (!inflow.ok) {
+    flag = 'no_inflow'; reason = `no usable inflow (${inflow.note || 'fit failed'})`;
+  } else if (validU < o.minCells) {
+    flag = 'too_few_cells'; reason = `${validU} valid cells < ${o.minCells}`;
+  } else if (!(maxDeficit >= o.minDeficit)) {
+    flag = 'no_wake'; reason = `98th-percentile deficit ${maxDeficit.toFixed(3)} < ${o.minDeficit}`;
+  } else {
+    fit = fitGaussian2D(points(def.deficit), { fitOffset: o.fitOffset });
+    const p = fit.params;
+    const sane = fit.converged && p.sigmaY_m > 0 && p.sigmaZ_m > 0 && p.yc_m > yMin && p.yc_m < yMax && p.zc_m > zMin && p.zc_m < zMax;
+    if (c.inflow.kind === 'plane' && sane) {
+      // Second pass: exclude the fitted wake ellipse instead of a fixed band around the axis, so a deflected or
+      // wide wake does not leak into the inflow; refit from the first solution.
+      const second = inflowFor(f, c, { yc: p.yc_m, zc: p.zc_m, sy: p.sigmaY_m, sz: p.sigmaZ_m });
+      if (second.ok) {
+        inflow = second;
+        def = deficitField(f, inflow);
+        maxDeficit = quantile(def.deficit, 0.98);
+        const start = [p.amplitude, p.yc_m, p.zc_m, p.sigmaY_m, p.sigmaZ_m, ...(o.fitOffset ? [p.offset] : [])];
+        fit = fitGaussian2D(points(def.deficit), { fitOffset: o.fitOffset, p0: start });
+      }
+    }
+    const q = fit.params;
+    const edgeY = g.dy, edgeZ = g.dz;
+    const minW = o.minWidthCells;
+    if (!(maxDeficit >= o.minDeficit) || !(q.amplitude >= o.minDeficit)) {
+      flag = 'no_wake'; reason = `deficit amplitude ${q.amplitude.toFixed(3)} (98th percentile ${maxDeficit.toFixed(3)}) < ${o.minDeficit}`;
+    } else if (!fit.converged) {
+      flag = 'not_converged'; reason = `Gaussian fit did not converge in ${fit.iterations} iterations`;
+    } else if (!(q.yc_m > yMin + edgeY && q.yc_m < yMax - edgeY && q.zc_m > zMin + edgeZ && q.zc_m < zMax - edgeZ)) {
+      flag = 'off_edge'; reason = `fitted centre (${q.yc_m.toFixed(1)}, ${q.zc_m.toFixed(1)}) m outside or within one cell of the plane edge`;
+    } else if (!(q.sigmaY_m >= minW * g.dy && q.sigmaZ_m >= minW * g.dz && q.sigmaY_m <= o.maxWidth_D * D && q.sigmaZ_m <= o.maxWidth_D * D)) {
+      flag = 'absurd_width'; reason = `widths (${q.sigmaY_m.toFixed(1)}, ${q.sigmaZ_m.toFixed(1)}) m outside [${minW} cell, ${o.maxWidth_D} D]`;
+    }
+  }
+
+  const cross = f.orientation === 'cross';
+  const disk = cross && validU > 0 ? minPowerDiskCentre(g, f.u, R, o.diskMinCoverage) : { ...NO_CENTRE('min-power-disk'), atEdge: false, meanCube: NaN };
+  const centroid = cross && maxDeficit > 0 ? deficitCentroid(g, def.deficit, maxDeficit, o.centroidFraction) : NO_CENTRE('deficit-centroid');
+  const centre: CentreEstimate = fit && flag === 'ok'
+    ? { method: 'gaussian', y_m: fit.params.yc_m, z_m: fit.params.zc_m, sy_m: fit.stderr.yc_m, sz_m: fit.stderr.zc_m, ok: true }
+    : NO_CENTRE('gaussian');
+  const dis = centre.ok && disk.ok ? Math.hypot(centre.y_m - disk.y_m, centre.z_m - disk.z_m) : NaN;
+
+  const segments = o.rewsSegments > 0 ? o.rewsSegments : Math.min(10, Math.max(1, Math.floor(D / g.dz)));
+  const axisRews = cross ? rewsOnGrid(g, f.u, 0, H, R, segments) : { rews_ms: NaN, coverage: NaN, segments };
+  const cen = centre.ok ? centre : disk.ok ? disk : null;
+  const cenRews = cross && cen ? rewsOnGrid(g, f.u, cen.y_m, cen.z_m, R, segments) : { rews_ms: NaN, coverage: NaN, segments };
+
+  const { ct } = thrustCoefficientAt(c.thrustCoefficient, inflow.hubSpeed_ms);
+  const mom = cross && inflow.ok ? momentumDeficit(f.u, def.uInf, g.dy, g.dz) : NaN;
+  const cutY = cen ? cen.y_m : 0, cutZ = cen ? cen.z_m : H;
+  const cut = { u: f.u, su: f.su, deficit: def.deficit };
+  const row: WakePlaneWindow = {
+    planeId: f.planeId, planeIndex: f.planeIndex, orientation: f.orientation, x_m: f.x_m, x_D: f.x_m / D,
+    window: f.window, direction_deg: f.direction_deg,
+    windDirection_deg: yaw.windDirection_deg, nacelle_deg: yaw.nacelle_deg, yawOffset_deg: yaw.yawOffset_deg, power_kW: yaw.power_kW,
+    inflow, grid: g, deficit: def.deficit, maxDeficit, validCells: validU, gaussian: fit,
+    centre, diskCentre: { method: disk.method, y_m: disk.y_m, z_m: disk.z_m, sy_m: NaN, sz_m: NaN, ok: disk.ok }, centroid,
+    disagreement_m: dis, disagreement_D: dis / D,
+    rews: { axis_ms: axisRews.rews_ms, centre_ms: cenRews.rews_ms, axisCoverage: axisRews.coverage, centreCoverage: cenRews.coverage, segments },
+    hubDeficit: cross ? sampleBilinear(g, def.deficit, 0, H) : NaN,
+    centreDeficit: cross && centre.ok ? sampleBilinear(g, def.deficit, centre.y_m, centre.z_m) : NaN,
+    momentumDeficit_m4s2: mom,
+    momentumRatio: mom / thrustMomentum(ct, D, inflow.hubSpeed_ms),
+    ct,
+    horizontal: cross ? horizontalCut(g, cut, cutZ, fit) : horizontalCut(g, cut, g.z0 + Math.floor(g.nz / 2) * g.dz, null),
+    vertical: cross ? verticalCut(g, cut, cutY, fit) : verticalCut(g, cut, 0, null),
+    flag, reason,
+  };
+  if (!cross) row.horizontalTrack = horizontalTrack(g, def.deficit, o.minDeficit);
+  if (cross && disk.atEdge && flag === 'ok') row.reason = 'note: the disk estimator found its minimum at the edge of its search range';
+  return row;
+}
