@@ -148,27 +148,26 @@ function fillBatch(st: ReaderState, buf: Buffer, pos: number, end: number): numb
   const sT = sc[R_TIME], oT = of[R_TIME], sAz = sc[R_AZ], oAz = of[R_AZ], sEl = sc[R_EL], oEl = of[R_EL];
   const sRg = sc[R_RANGE], oRg = of[R_RANGE], sVr = sc[R_VR], oVr = of[R_VR], sCn = sc[R_CNR], oCn = of[R_CNR];
   let n = b.length;
+  let line = st.line;
   while (pos < end && n < cap) {
-    const nl = buf.indexOf(10, pos);
-    st.line++;
-    let le = nl;
-    if (le > pos && buf[le - 1] === 13) le--;
-    if (le === pos) { pos = nl + 1; continue; }
+    // fields are parsed up to the block end: every parser stops at ',', '\r' or '\n', which no grammar accepts
+    line++;
     let i = pos, ok = true;
     let t = NaN, inst = owner, az = NaN, el = NaN, rg = NaN, vr = NaN, cn = NaN;
+    const first = buf[pos];
+    if (first === 10 || (first === 13 && buf[pos + 1] === 10)) { pos += first === 10 ? 1 : 2; continue; } // blank
     for (let c = 0; c < needed; c++) {
       const r = roles[c];
       if (r === R_TIME) {
-        if (le - i >= 16 && buf[i + 4] === 45) {
-          t = parseIsoBytes(buf, i, le, days) + oT;
-        } else t = parseDecimal(buf, i, le) * sT + oT;
+        if (buf[i + 4] === 45) t = parseIsoBytes(buf, i, end, days) + oT;
+        else t = parseDecimal(buf, i, end) * sT + oT;
         if (t !== t) { ok = false; break; }
         i = parsedTo();
       } else if (r === R_IGNORE || r === R_INST) {
         const s0 = i;
-        while (i < le) {
+        for (;;) {
           const ch = buf[i];
-          if (ch === 44) break;
+          if (ch === 44 || ch === 10 || ch === 13) break;
           if (ch === 34) { ok = false; break; }
           i++;
         }
@@ -177,41 +176,56 @@ function fillBatch(st: ReaderState, buf: Buffer, pos: number, end: number): numb
           inst = instrumentOf(st, buf, s0, i);
           if (inst < 0) { ok = false; break; }
         }
-      } else if (r === R_CNR && (i === le || buf[i] === 44)) {
-        cn = NaN;
       } else {
-        const v = parseDecimal(buf, i, le);
-        if (v !== v) { ok = false; break; }
-        i = parsedTo();
-        if (r === R_AZ) az = v * sAz + oAz;
-        else if (r === R_EL) el = v * sEl + oEl;
-        else if (r === R_RANGE) rg = v * sRg + oRg;
-        else if (r === R_VR) vr = v * sVr + oVr;
-        else cn = v * sCn + oCn;
+        const v = parseDecimal(buf, i, end);
+        if (v !== v) {
+          const ch = buf[i];
+          if (r === R_CNR && (ch === 44 || ch === 10 || ch === 13)) cn = NaN; // empty optional cell
+          else { ok = false; break; }
+        } else {
+          i = parsedTo();
+          if (r === R_AZ) az = v * sAz + oAz;
+          else if (r === R_EL) el = v * sEl + oEl;
+          else if (r === R_RANGE) rg = v * sRg + oRg;
+          else if (r === R_VR) vr = v * sVr + oVr;
+          else cn = v * sCn + oCn;
+        }
       }
-      if (i < le) {
+      if (c < needed - 1) {
         if (buf[i] !== 44) { ok = false; break; }
         i++;
-      } else if (c < needed - 1) { ok = false; break; }
+      }
+    }
+    // the line break: right after the last used field, or further on (ignored trailing fields, or a bad row)
+    let nl: number;
+    const ch = buf[i];
+    if (ok && ch === 10) nl = i;
+    else if (ok && ch === 13 && buf[i + 1] === 10) nl = i + 1;
+    else {
+      if (ok && ch !== 44) ok = false;
+      nl = buf.indexOf(10, i);
     }
     if (ok && az >= -360 && az <= 720 && el >= -90 && el <= 90 && rg > 0 && rg < Infinity) {
-      LN[n] = st.line;
+      LN[n] = line;
       T[n] = t;
       I[n] = inst;
-      AZ[n] = az >= 0 && az < 360 ? az : wrap360(az);
+      AZ[n] = az > 0 && az < 360 ? az : wrap360(az);
       EL[n] = el;
       RG[n] = rg;
       VR[n] = vr;
       CN[n] = cn;
       n++;
     } else {
+      const le = nl > pos && buf[nl - 1] === 13 ? nl - 1 : nl;
       b.length = n;
+      st.line = line;
       if (le - pos > MAX_LINE) reject(st, buf, pos, le, 'missing_field', `line longer than ${MAX_LINE} bytes`);
       else slowRow(st, buf, pos, le);
       n = b.length;
     }
     pos = nl + 1;
   }
+  st.line = line;
   b.length = n;
   return pos;
 }

@@ -32,16 +32,25 @@ export function parseDecimal(buf: Uint8Array, i: number, end: number): number {
     if (c === 45) { neg = true; i++; }
     else if (c === 43) i++;
   }
-  let m = 0, nd = 0, fd = 0, dot = false;
+  let m = 0;
+  const s0 = i;
   while (i < end) {
     const d = buf[i] - 48;
-    if (d >= 0 && d <= 9) {
-      m = m * 10 + d;
-      nd++;
-      if (dot) fd++;
-    } else if (d === -2 && !dot) dot = true; // '.'
-    else break;
+    if (d < 0 || d > 9) break;
+    m = m * 10 + d;
     i++;
+  }
+  let nd = i - s0, fd = 0;
+  if (i < end && buf[i] === 46) {
+    const f0 = ++i;
+    while (i < end) {
+      const d = buf[i] - 48;
+      if (d < 0 || d > 9) break;
+      m = m * 10 + d;
+      i++;
+    }
+    fd = i - f0;
+    nd += fd;
   }
   stop = i;
   if (nd === 0 || nd > 15) return NaN;

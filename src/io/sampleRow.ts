@@ -41,7 +41,6 @@ interface Field {
 }
 
 const dec = new TextDecoder();
-const enc = new TextEncoder();
 
 function isSpace(c: number): boolean {
   return c === 32 || c === 9;
@@ -62,7 +61,7 @@ function splitFields(buf: Uint8Array, s: number, e: number): Field[] | null {
     const text = dec.decode(buf.subarray(s, e));
     let cur = '', q = false;
     const push = () => {
-      const b = enc.encode(cur);
+      const b = Buffer.from(cur, 'utf8'); // a Buffer like the fast path's, so the parsers stay monomorphic
       out.push({ b, s: 0, e: b.length });
       cur = '';
     };
@@ -113,7 +112,7 @@ export function parseTimeField(b: Uint8Array, s: number, e: number, days: DayCac
 export function wrap360(az: number): number {
   let a = az % 360;
   if (a < 0) a += 360;
-  return a >= 360 ? 0 : a;
+  return a >= 360 || a === 0 ? 0 : a; // also turns -0 into 0
 }
 
 const problem = (reason: RejectReason, detail: string): RowProblem => ({ reason, detail });
