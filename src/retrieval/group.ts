@@ -16,6 +16,10 @@ export interface SampleGroups {
   order: Uint32Array;
   /** Group k holds order[start[k] .. start[k + 1]). Length keyCount + 1. */
   start: Uint32Array;
+  /** Group key of every sample (by sample index). */
+  keys: Uint32Array;
+  /** Radial velocities in group order: vrSorted[p] = samples.vr[order[p]]. */
+  vrSorted: Float64Array;
 }
 
 /**
@@ -54,6 +58,12 @@ export function groupSamples(samples: WindowSamples, planes: PlaneGrid[], instru
   for (let k = 0; k < keyCount; k++) start[k + 1] += start[k];
   const fill = start.slice(0, keyCount);
   const order = new Uint32Array(n);
-  for (let i = 0; i < n; i++) order[fill[keys[i]]++] = i;
-  return { keyCount, instrumentCount: I, cellOffset, order, start };
+  const vrSorted = new Float64Array(n);
+  const vr = samples.vr;
+  for (let i = 0; i < n; i++) {
+    const p = fill[keys[i]]++;
+    order[p] = i;
+    vrSorted[p] = vr[i];
+  }
+  return { keyCount, instrumentCount: I, cellOffset, order, start, keys, vrSorted };
 }

@@ -1,7 +1,8 @@
 /**
  * Per-(plane, cell, instrument) statistics of the kept samples of one window: count n, mean radial velocity, mean
  * beam unit vector (rotor frame) and its length, and the sample variance s^2 of v_r (denominator n - 1; NaN for
- * n = 1). Two passes per group (mean, then squared deviations) for numerical stability.
+ * n = 1). Two passes over the window in sample order (sums, then squared deviations from the group mean, for
+ * numerical stability), accumulating into per-key arrays.
  *
  * The mean vector is kept unnormalised for the solve: for a wind uniform over the cell, mean(v_r) = mean(n) . U
  * exactly, while the renormalised mean would bias v_r by the factor |mean(n)| = 1 - (angular variance)/2 (about
@@ -22,36 +23,33 @@ export interface InstrumentMeans {
   len: Float64Array;
 }
 
-export function instrumentMeans(
-  samples: WindowSamples, vrSorted: Float64Array, keep: Uint8Array, groups: SampleGroups,
-): InstrumentMeans {
+export function instrumentMeans(samples: WindowSamples, keep: Uint8Array, groups: SampleGroups): InstrumentMeans {
   const K = groups.keyCount;
-  const out: InstrumentMeans = {
-    n: new Uint32Array(K), vr: new Float64Array(K).fill(NaN), nx: new Float64Array(K).fill(NaN),
-    ny: new Float64Array(K).fill(NaN), nz: new Float64Array(K).fill(NaN), variance: new Float64Array(K).fill(NaN),
-    len: new Float64Array(K).fill(NaN),
-  };
-  const { start, order } = groups;
-  const { nx, ny, nz } = samples;
-  for (let k = 0; k < K; k++) {
-    const s = start[k], e = start[k + 1];
-    if (e === s) continue;
-    let cnt = 0, sv = 0, sx = 0, sy = 0, sz = 0;
-    for (let p = s; p < e; p++) {
-      if (!keep[p]) continue;
-      const i = order[p];
-      cnt++;
-      sv += vrSorted[p]; sx += nx[i]; sy += ny[i]; sz += nz[i];
-    }
-    if (cnt === 0) continue;
-    const m = sv / cnt;
-    let ss = 0;
-    for (let p = s; p < e; p++) if (keep[p]) ss += (vrSorted[p] - m) ** 2;
-    out.n[k] = cnt;
-    out.vr[k] = m;
-    out.nx[k] = sx / cnt; out.ny[k] = sy / cnt; out.nz[k] = sz / cnt;
-    out.len[k] = Math.hypot(sx, sy, sz) / cnt;
-    out.variance[k] = cnt > 1 ? ss / (cnt - 1) : NaN;
+  const n = new Uint32Array(K);
+  const sv = new Float64Array(K), sx = new Float64Array(K), sy = new Float64Array(K), sz = new Float64Array(K);
+  const { keys } = groups;
+  const { vr, nx, ny, nz } = samples;
+  const N = samples.length;
+  // Accumulate in window order: sequential reads, per-key sums small enough to stay in cache.
+  for (let i = 0; i < N; i++) {
+    if (!keep[i]) continue;
+    const k = keys[i];
+    n[k]++; sv[k] += vr[i]; sx[k] += nx[i]; sy[k] += ny[i]; sz[k] += nz[i];
   }
-  return out;
+  const len = new Float64Array(K).fill(NaN);
+  for (let k = 0; k < K; k++) {
+    const c = n[k];
+    if (c === 0) { sv[k] = sx[k] = sy[k] = sz[k] = NaN; continue; }
+    sv[k] /= c; sx[k] /= c; sy[k] /= c; sz[k] /= c;
+    len[k] = Math.hypot(sx[k], sy[k], sz[k]);
+  }
+  const ss = new Float64Array(K);
+  for (let i = 0; i < N; i++) {
+    if (!keep[i]) continue;
+    const k = keys[i];
+    const d = vr[i] - sv[k];
+    ss[k] += d * d;
+  }
+  for (let k = 0; k < K; k++) ss[k] = n[k] > 1 ? ss[k] / (n[k] - 1) : NaN;
+  return { n, vr: sv, nx: sx, ny: sy, nz: sz, variance: ss, len };
 }

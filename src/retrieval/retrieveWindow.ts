@@ -19,7 +19,7 @@
 import type { WindowSamples } from '../grid/windowSamples.ts';
 import { groupSamples } from './group.ts';
 import { instrumentMeans } from './instrumentMeans.ts';
-import { gatherVr, robustFilter } from './robustFilter.ts';
+import { robustFilter } from './robustFilter.ts';
 import { DEFAULT_SIGMA_FLOOR_MS, W_ZERO_ASSUMPTION, type PlaneGrid, type RetrievalSettings } from './settings.ts';
 import { emptyCellSolution, solve2, solve3, type CellSolution } from './solveCell.ts';
 import { MaskReason, type FieldResult, type WindowInfo } from './types.ts';
@@ -72,9 +72,8 @@ export function retrieveWindow(
 ): WindowRetrieval {
   const I = settings.instrumentCount;
   const groups = groupSamples(samples, planes, I);
-  const vrSorted = gatherVr(samples, groups.order);
-  const { keep, outliers } = robustFilter(vrSorted, groups, settings.robust);
-  const st = instrumentMeans(samples, vrSorted, keep, groups);
+  const { keep, outliers } = robustFilter(groups, settings.robust);
+  const st = instrumentMeans(samples, keep, groups);
 
   const floor = settings.sigmaFloor_ms ?? DEFAULT_SIGMA_FLOOR_MS;
   const floor2 = floor * floor;

@@ -10,19 +10,19 @@
  * nothing. The median itself is never rejected, so a filtered group never becomes empty.
  */
 import { medianInPlace, robustSigma } from '../qc/robust.ts';
-import type { WindowSamples } from '../grid/windowSamples.ts';
 import type { SampleGroups } from './group.ts';
 import type { RobustSettings } from './settings.ts';
 
 export interface RobustResult {
-  /** 1 = kept, 0 = rejected; indexed by position in groups.order (not by sample index). */
+  /** 1 = kept, 0 = rejected; indexed by sample index. */
   keep: Uint8Array;
   /** Rejections per instrument. */
   outliers: Uint32Array;
 }
 
-/** Apply the filter to every group. `vrSorted[p]` = samples.vr[groups.order[p]]. */
-export function robustFilter(vrSorted: Float64Array, groups: SampleGroups, robust: RobustSettings): RobustResult {
+/** Apply the filter to every group. */
+export function robustFilter(groups: SampleGroups, robust: RobustSettings): RobustResult {
+  const { vrSorted, order } = groups;
   const n = vrSorted.length;
   const keep = new Uint8Array(n).fill(1);
   const outliers = new Uint32Array(groups.instrumentCount);
@@ -44,18 +44,10 @@ export function robustFilter(vrSorted: Float64Array, groups: SampleGroups, robus
     let rejected = 0;
     for (let p = s; p < e; p++)
       if (Math.abs(vrSorted[p] - med) > limit) {
-        keep[p] = 0;
+        keep[order[p]] = 0;
         rejected++;
       }
     outliers[k % I] += rejected;
   }
   return { keep, outliers };
-}
-
-/** Gather v_r in group order (helper for robustFilter and the per-instrument means). */
-export function gatherVr(samples: WindowSamples, order: Uint32Array): Float64Array {
-  const out = new Float64Array(order.length);
-  const vr = samples.vr;
-  for (let p = 0; p < order.length; p++) out[p] = vr[order[p]];
-  return out;
 }
