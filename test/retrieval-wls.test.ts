@@ -222,6 +222,38 @@ describe('masks', () => {
     expect([f.maskU[0], f.maskV[0], f.maskW[0]]).toEqual([MaskReason.singular, MaskReason.singular, MaskReason.singular]);
   });
 
+  it('three exactly horizontal beams: w unobservable (singular), u and v solved without assumption (1e-12)', () => {
+    const s = createWindowSamples();
+    const Uw: Vec3 = [7, -1.5, 2]; // a large w, which horizontal beams cannot see
+    [20, 110, 230].forEach((az, i) => pushExact(s, 0, i, dirToRotor(f270, unitVector(az, 0)), Uw, 4));
+    const f = retrieveWindow(s, [ONE_CELL], WINDOW, 270, settings()).fields[0];
+    expect([f.maskU[0], f.maskV[0], f.maskW[0]]).toEqual([0, 0, MaskReason.singular]);
+    expect(Math.abs(f.u[0] - Uw[0])).toBeLessThan(1e-12);
+    expect(Math.abs(f.v[0] - Uw[1])).toBeLessThan(1e-12);
+    expect(f.assumptions).toEqual([]);
+  });
+
+  it('an empty window gives no_data everywhere; samples land in the field of their plane index', () => {
+    const a = plane(3, { ny: 2, nz: 2, y0: 0, z0: 50, dy: 10, dz: 10 });
+    const b = plane(1, { ny: 3, nz: 1, y0: 0, z0: 50, dy: 10, dz: 10 });
+    b.spec.orientation = 'horizontal';
+    b.spec.z_m = 90;
+    const empty = retrieveWindow(createWindowSamples(), [a, b], WINDOW, 270, settings());
+    expect(empty.fields.map((f) => f.planeIndex)).toEqual([3, 1]);
+    expect(empty.fields[0].u.length).toBe(4);
+    expect(Array.from(empty.fields[1].maskU)).toEqual([1, 1, 1].map(() => MaskReason.noData));
+    expect(empty.fields[1].x_m).toBeNaN();
+    expect(empty.fields[1].z_m).toBe(90);
+    const s = createWindowSamples();
+    const beams: Vec3[] = [dirToRotor(f270, unitVector(0, 20)), dirToRotor(f270, unitVector(120, 20)), dirToRotor(f270, unitVector(240, 40))];
+    const Ut: Vec3 = [5, 1, -0.2];
+    beams.forEach((n, i) => pushExact(s, 1, i, n, Ut, 3, 1)); // plane index 1, cell 1
+    const out = retrieveWindow(s, [a, b], WINDOW, 270, settings());
+    expect(Math.abs(out.fields[1].w[1] - Ut[2])).toBeLessThan(1e-12);
+    expect(out.fields[1].samples[1]).toBe(9);
+    expect(out.fields[0].samples.reduce((x, y) => x + y, 0)).toBe(0);
+  });
+
   it('rejects samples outside the planes, grid or instrument count (an upstream bug)', () => {
     const s = createWindowSamples();
     pushSample(s, 0, 5, 0, 1, 1, 0, 0);

@@ -23,6 +23,9 @@
  * three-component solution and its uncertainties: re-solving them with w = 0 would trade their honest, larger
  * uncertainty for an unstated bias of order w times the beams' vertical components.
  *
+ * Three or more beams all (exactly) horizontal: the 3x3 system is singular only because w does not enter v_r; u, v
+ * then come from the two-component solve without any assumption, and w is masked as singular.
+ *
  * Two instruments with the w-zero assumption: u, v from the first two rotor-frame columns of A with w = 0, the same
  * weights; the bias from a non-zero w is not in the uncertainty.
  */
@@ -38,6 +41,12 @@ export interface CellSolution {
   minCrossing_deg: number;
   maskU: number; maskV: number; maskW: number;
 }
+
+/**
+ * Vertical beam component below which a three-instrument cell whose 3x3 system is singular is solved for u, v
+ * alone (w marked singular): the neglected term is at most this times |w| (1e-6 m/s per m/s of w).
+ */
+export const HORIZONTAL_BEAM_TOL = 1e-6;
 
 export function emptyCellSolution(): CellSolution {
   return {
@@ -64,6 +73,14 @@ export function solve3(
   const amp = amplification3(geom, K);
   out.minCrossing_deg = amp.minCrossing_deg;
   if (!Number.isFinite(amp.inv[0])) {
+    // Beams (nearly) exactly horizontal: w does not enter v_r, so u, v are determined without any assumption.
+    let maxZ = 0;
+    for (let i = 0; i < K; i++) maxZ = Math.max(maxZ, Math.abs(geom[i * 3 + 2]));
+    if (maxZ < HORIZONTAL_BEAM_TOL) {
+      solve2(rows, geom, m, wts, K, maxAmplification, out);
+      out.maskW = MaskReason.singular;
+      return;
+    }
     reset(out, MaskReason.singular);
     out.minCrossing_deg = amp.minCrossing_deg;
     out.cond = Infinity;
