@@ -7,7 +7,8 @@
  * and rejecting every value that differs from the median would throw away real data. The scale then falls back to
  * 1.2533 * mean absolute deviation about the median (see qc/robust.ts), which is positive as soon as one value
  * differs, so an isolated spike in otherwise constant data is still rejected; a group of identical values loses
- * nothing. The median itself is never rejected, so a filtered group never becomes empty.
+ * nothing. For k * 1.4826 >= 1 at least half of a group is kept (half of it lies within one MAD of the median by
+ * definition), so a filtered group never becomes empty.
  */
 import { medianInPlace, robustSigma } from '../qc/robust.ts';
 import type { SampleGroups } from './group.ts';
