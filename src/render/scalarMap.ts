@@ -39,8 +39,8 @@ export interface ScalarMapOptions {
   ellipses?: { y: number; z: number; ry: number; rz: number; label: string }[];
   /** In-plane vectors per cell (v along the horizontal axis, w along the vertical axis), m/s; every k-th cell in
    * each direction (default: about 16 arrows across); the reference arrow shows referenceSpeed (default: a nice
-   * number near the 90th percentile of the in-plane speed). */
-  arrows?: { v: Float64Array; w: Float64Array; every?: number; referenceSpeed?: number };
+   * number near the 90th percentile of the in-plane speed); label follows the reference speed in the legend. */
+  arrows?: { v: Float64Array; w: Float64Array; every?: number; referenceSpeed?: number; label?: string };
 }
 
 const ID = 'wp';
@@ -158,7 +158,7 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
       }
     }
     overlay.push(`<g class="arrows" clip-path="url(#${ID}-plot)">${parts.join('')}</g>`);
-    legend.push({ kind: 'arrow', length: refLen, label: `${formatNumber(ref, decimalsOf(ref))} m/s in-plane (v, w)` });
+    legend.push({ kind: 'arrow', length: refLen, label: `${formatNumber(ref, decimalsOf(ref))} m/s ${a.label ?? 'in-plane (v, w)'}` });
   }
 
   // 4. Rotor, ellipses, markers (white halo under dark ink so they read on every colour).

@@ -1,0 +1,17 @@
+/**
+ * Writes one figure under <runDir>/images/ as SVG and PNG and describes both files as output records.
+ */
+import { join } from 'node:path';
+import type { OutputRecord } from '../pipeline/manifest.ts';
+import { writeSvgAndPng } from './write.ts';
+
+export async function writeFigure(svg: string, runDir: string, name: string, meta: { plane?: string; window?: number; description: string }): Promise<OutputRecord[]> {
+  const paths = await writeSvgAndPng(svg, join(runDir, 'images', name));
+  return paths.map((p) => ({
+    kind: 'image',
+    path: `images/${p.slice(p.lastIndexOf('/') + 1)}`,
+    ...(meta.plane !== undefined ? { plane: meta.plane } : {}),
+    ...(meta.window !== undefined ? { window: meta.window } : {}),
+    description: meta.description,
+  }));
+}

@@ -1,0 +1,240 @@
+/**
+ * The run report: one static HTML file (report.html in the run folder) that opens without a server. It shows the run
+ * summary, the sample accounting and quality control, every image, the result tables (first rows, with links to the
+ * full files), links to every data file, the settings, assumptions, warnings and the cautions. Every string that
+ * came from the campaign file, the data or the manifest is HTML-escaped.
+ */
+import { join } from 'node:path';
+import { writeFileAtomic } from '../io/atomic.ts';
+import type { OutputRecord, RunManifest } from '../pipeline/manifest.ts';
+import { REJECT_REASONS, accountBalances, type SampleAccount } from '../qc/reasons.ts';
+import { esc } from './escape.ts';
+import { REPORT_CSS } from './reportCss.ts';
+
+/** A table for the report: shown up to `maxRows` rows, with a link to the full file. */
+export interface ReportTable {
+  title: string;
+  columns: string[];
+  rows: (string | number | boolean | null | undefined)[][];
+  /** Path of the full table relative to the run folder. */
+  link?: string;
+  note?: string;
+}
+
+export interface ReportExtras {
+  /** Wake result tables (see reportTables.ts for tables made from a WakeAnalysis). */
+  wakeTables?: ReportTable[];
+  /** The planner's summary: label/value pairs, optional tables and notes. */
+  planSummary?: { title?: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] };
+  /** Rows shown per table before "first N of M"; default 25. */
+  maxRows?: number;
+}
+
+/** The cautions printed in every report. */
+export const CAUTIONS = [
+  'The results are research measurements. Each value carries the uncertainty stated beside it, and masked cells were not measured; do not read more into a map than its uncertainty and masks allow.',
+  'Any change to turbine control, loads or operation follows the manufacturer, the site rules and licensed engineering practice, not these results alone.',
+  'Laser instruments and any work near turbines follow the instruments\u2019 safety instructions and local regulations.',
+];
+
+export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): string {
+  const m = manifest;
+  const maxRows = extras.maxRows ?? 25;
+  const images = m.outputs.filter((o) => o.kind === 'image');
+  const dataFiles = m.outputs.filter((o) => o.kind !== 'image' && o.kind !== 'report');
+  const sections: string[] = [];
+  const toc: [string, string][] = [];
+  const section = (id: string, title: string, body: string) => {
+    toc.push([id, title]);
+    sections.push(`<section id="${id}"><h2>${esc(title)}</h2>\n${body}</section>`);
+  };
+
+  // Run summary.
+  const tot = m.samples.total;
+  const dur = Date.parse(m.finishedAt) - Date.parse(m.startedAt);
+  const facts: [string, string][] = [
+    ['Campaign file', `${esc(m.campaign.file)}`],
+    ['Campaign file SHA-256', `<code>${esc(m.campaign.sha256)}</code>`],
+    ['Started', esc(m.startedAt)],
+    ['Finished', `${esc(m.finishedAt)}${Number.isFinite(dur) ? ` (${(dur / 1000).toFixed(1)} s)` : ''}`],
+    ['Input files', String(m.inputs.length)],
+    ['Averaging windows', String(m.windows.length)],
+    ['Samples read', num(tot.read)],
+    ['Samples accepted', `${num(tot.accepted)}${tot.read ? ` (${((100 * tot.accepted) / tot.read).toFixed(1)} %)` : ''}`],
+    ['Throughput', `${num(Math.round(m.samplesPerSecond))} samples/s`],
+    ['Peak memory', `${(m.peakRss_bytes / 2 ** 20).toFixed(0)} MiB`],
+    ['Tool', `${esc(m.tool.name)} ${esc(m.tool.version)}`],
+  ];
+  section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
+
+  // Sample accounting.
+  section('samples', 'Samples and quality control', accountingHtml(m));
+
+  // Windows.
+  if (m.windows.length) {
+    section('windows', 'Averaging windows', tableHtml({
+      title: '',
+      columns: ['window', 'start (UTC)', 'end (UTC)', 'wind from (deg)', 'accepted samples'],
+      rows: m.windows.map((w) => [w.index, w.start, w.end, round(w.direction_deg, 1), w.samples]),
+    }, maxRows));
+  }
+
+  // Images.
+  if (images.length) section('images', 'Images', imagesHtml(images));
+
+  // Tables.
+  if (extras.wakeTables?.length) section('wake', 'Wake results', extras.wakeTables.map((t) => tableHtml(t, maxRows)).join('\n'));
+  if (extras.planSummary) {
+    const p = extras.planSummary;
+    section('plan', p.title ?? 'Campaign plan',
+      `<dl class="facts">${p.items.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(v)}</dd>`).join('')}</dl>` +
+        (p.tables ?? []).map((t) => tableHtml(t, maxRows)).join('\n') +
+        (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : ''));
+  }
+
+  // Data files and inputs.
+  section('files', 'Data files',
+    (dataFiles.length
+      ? tableHtmlRaw(['kind', 'file', 'plane', 'window', 'description'], dataFiles.map((o) => [esc(o.kind), link(o.path), esc(o.plane ?? ''), o.window === undefined ? '' : String(o.window), esc(o.description ?? '')]))
+      : '<p class="note">No data files were written.</p>') +
+      `<h3>Inputs</h3>` +
+      tableHtmlRaw(['file', 'instrument', 'bytes', 'SHA-256'], m.inputs.map((f) => [esc(f.file), esc(f.instrument), num(f.bytes), `<code>${esc(f.sha256)}</code>`]), [2]));
+
+  // Assumptions and warnings.
+  section('assumptions', 'Assumptions and warnings',
+    `<h3>Assumptions</h3>` + listHtml(m.assumptions, 'None stated.') +
+      `<h3>Warnings</h3>` + listHtml(m.warnings, 'No warnings.', 'warnings'));
+
+  // Settings and timings.
+  section('settings', 'Settings',
+    `<p class="note">The campaign after defaults, as this run used it.</p>` +
+      `<details><summary>Show the settings</summary><pre>${esc(JSON.stringify(m.settings, null, 2))}</pre></details>` +
+      `<h3>Time per stage</h3>` +
+      tableHtml({ title: '', columns: ['stage', 'seconds'], rows: Object.entries(m.timings_s).map(([k, v]) => [k, round(v, 2)]) }, 100));
+
+  const cautions = `<aside class="caution" id="cautions"><h2>Read before use</h2><ul>${CAUTIONS.map((c) => `<li>${esc(c)}</li>`).join('')}</ul></aside>`;
+  const title = `${m.campaign.name} \u2014 run report`;
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${esc(title)}</title>
+<style>${REPORT_CSS}</style>
+</head>
+<body>
+<header class="run">
+<div class="kicker">wakeplane run report</div>
+<h1>${esc(m.campaign.name)}</h1>
+${m.campaign.description ? `<p class="lead">${esc(m.campaign.description)}</p>` : ''}
+<nav class="toc">${toc.map(([id, t]) => `<a href="#${id}">${esc(t)}</a>`).join('')}<a href="#cautions">Read before use</a></nav>
+</header>
+${cautions}
+${sections.join('\n')}
+<footer>Written by ${esc(m.tool.name)} ${esc(m.tool.version)} at ${esc(m.finishedAt)}. The manifest (manifest.json) in this folder lists every input and output with checksums.</footer>
+</body>
+</html>
+`;
+}
+
+/** Writes report.html into the run folder (atomically) and returns its output record. */
+export async function writeReport(manifest: RunManifest, runDir: string, extras: ReportExtras = {}): Promise<OutputRecord> {
+  writeFileAtomic(join(runDir, 'report.html'), reportHtml(manifest, extras));
+  return { kind: 'report', path: 'report.html', description: 'run report (static HTML)' };
+}
+
+function accountingHtml(m: RunManifest): string {
+  const per = Object.entries(m.samples.perInstrument);
+  const all: [string, SampleAccount][] = [...per, ['all instruments', m.samples.total]];
+  const reasons = REJECT_REASONS.filter((r) => all.some(([, a]) => (a.rejected[r] ?? 0) > 0));
+  const head = ['instrument', 'read', 'accepted', 'accepted %', ...reasons.map((r) => `rejected: ${r.replace(/_/g, ' ')}`), 'balances'];
+  const rows = all.map(([id, a], i) => {
+    const ok = accountBalances(a);
+    const cells = [
+      esc(id), num(a.read), num(a.accepted), a.read ? ((100 * a.accepted) / a.read).toFixed(1) : '\u2013',
+      ...reasons.map((r) => num(a.rejected[r] ?? 0)),
+      ok ? '<span class="ok">yes</span>' : '<span class="bad">NO</span>',
+    ];
+    return { cells, total: i === all.length - 1 };
+  });
+  const numeric = head.map((_, i) => i).filter((i) => i > 0 && i < head.length - 1);
+  const table = `<div class="scroll"><table><thead><tr>${head.map((h, i) => `<th${numeric.includes(i) ? ' class="num"' : ''}>${esc(h)}</th>`).join('')}</tr></thead><tbody>` +
+    rows.map((r) => `<tr${r.total ? ' class="total"' : ''}>${r.cells.map((c, i) => `<td${numeric.includes(i) ? ' class="num"' : ''}>${c}</td>`).join('')}</tr>`).join('') +
+    `</tbody></table></div>`;
+  const balanced = m.samples.balanced;
+  return `<p>Every sample read is either accepted (used in a cell of a plane) or counted under exactly one rejection reason: read = accepted + rejected.</p>` +
+    table +
+    `<p class="${balanced ? 'ok' : 'bad'}">${balanced ? 'The accounting balances for every instrument.' : 'The accounting does NOT balance: see the warnings.'}</p>`;
+}
+
+function imagesHtml(images: OutputRecord[]): string {
+  // One figure per image base name, shown from its SVG (or PNG) with links to both files.
+  const byBase = new Map<string, OutputRecord[]>();
+  for (const o of images) {
+    const base = o.path.replace(/\.(svg|png)$/i, '');
+    byBase.set(base, [...(byBase.get(base) ?? []), o]);
+  }
+  const groups = new Map<string, string[]>();
+  for (const [base, recs] of byBase) {
+    const shown = recs.find((r) => /\.svg$/i.test(r.path)) ?? recs[0];
+    const r0 = recs[0];
+    const key = r0.plane === undefined ? 'Summary' : `Plane ${r0.plane}${r0.window === undefined ? '' : `, window ${r0.window}`}`;
+    const links = recs.map((r) => `<a href="${href(r.path)}">${esc(r.path.slice(r.path.lastIndexOf('.') + 1).toUpperCase())}</a>`).join(' \u00b7 ');
+    const fig = `<figure><img src="${href(shown.path)}" alt="${esc(r0.description ?? base)}"><figcaption>${esc(r0.description ?? '')} \u2014 <code>${esc(base.slice(base.lastIndexOf('/') + 1))}</code> \u00b7 ${links}</figcaption></figure>`;
+    groups.set(key, [...(groups.get(key) ?? []), fig]);
+  }
+  const ordered = [...groups].sort(([a], [b]) => (a === 'Summary' ? -1 : b === 'Summary' ? 1 : 0));
+  return ordered.map(([k, figs]) => `<h3>${esc(k)}</h3><div class="gallery">${figs.join('\n')}</div>`).join('\n');
+}
+
+function tableHtml(t: ReportTable, maxRows: number): string {
+  const shown = t.rows.slice(0, maxRows);
+  const numericCol = t.columns.map((_, j) => t.rows.length > 0 && t.rows.every((r) => r[j] === null || r[j] === undefined || typeof r[j] === 'number'));
+  const head = `<tr>${t.columns.map((c, j) => `<th${numericCol[j] ? ' class="num"' : ''}>${esc(c)}</th>`).join('')}</tr>`;
+  const body = shown.map((r) => `<tr>${r.map((v, j) => `<td${numericCol[j] ? ' class="num"' : ''}>${esc(cell(v))}</td>`).join('')}</tr>`).join('');
+  const more = t.rows.length > shown.length ? `First ${shown.length} of ${t.rows.length} rows. ` : '';
+  const foot = more || t.link || t.note
+    ? `<p class="note">${esc(more)}${t.link ? `Full table: ${link(t.link)}. ` : ''}${esc(t.note ?? '')}</p>`
+    : '';
+  return `${t.title ? `<h3>${esc(t.title)}</h3>` : ''}<div class="scroll"><table><thead>${head}</thead><tbody>${body}</tbody></table></div>${foot}`;
+}
+
+/** A table whose cells are already markup (escaped by the caller). */
+function tableHtmlRaw(columns: string[], rows: string[][], numericCols: number[] = []): string {
+  return `<div class="scroll"><table><thead><tr>${columns.map((c, j) => `<th${numericCols.includes(j) ? ' class="num"' : ''}>${esc(c)}</th>`).join('')}</tr></thead><tbody>` +
+    rows.map((r) => `<tr>${r.map((v, j) => `<td${numericCols.includes(j) ? ' class="num"' : ''}>${v}</td>`).join('')}</tr>`).join('') +
+    `</tbody></table></div>`;
+}
+
+function listHtml(items: string[], empty: string, cls = ''): string {
+  if (!items.length) return `<p class="note">${esc(empty)}</p>`;
+  return `<ul${cls ? ` class="${cls}"` : ''}>${items.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>`;
+}
+
+/** A relative link to a file in the run folder (each path segment URI-encoded, then escaped). */
+function href(path: string): string {
+  return esc(path.split('/').map(encodeURIComponent).join('/'));
+}
+
+function link(path: string): string {
+  return `<a href="${href(path)}">${esc(path)}</a>`;
+}
+
+function cell(v: string | number | boolean | null | undefined): string {
+  if (v === null || v === undefined) return '';
+  if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  if (typeof v === 'number') {
+    if (!Number.isFinite(v)) return '\u2013';
+    if (Number.isInteger(v)) return String(v);
+    return String(Number(v.toPrecision(4)));
+  }
+  return v;
+}
+
+function num(v: number): string {
+  return Number.isFinite(v) ? Math.round(v).toLocaleString('en-US').replace(/,/g, '\u2009') : '\u2013';
+}
+
+function round(v: number, d: number): number {
+  return Number.isFinite(v) ? Number(v.toFixed(d)) : NaN;
+}

@@ -1,0 +1,134 @@
+/**
+ * Summary plots over planes and windows: centreline deficit, wake widths and wake centre against downstream distance
+ * with the fitted model curves, and the lateral wake-centre deflection against yaw offset with the published model
+ * curves. Files go to <runDir>/images/summary_<what>.svg and .png.
+ */
+import type { Campaign } from '../campaign/types.ts';
+import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { Stat, WakeAnalysis } from '../wake/types.ts';
+import { linePlotSvg, type PlotSeries } from './linePlot.ts';
+import { writeFigure } from './figure.ts';
+import { formatNumber } from './ticks.ts';
+import { theme } from './theme.ts';
+
+/** Half-length of an error bar for a Stat: the 95 % confidence half-width, else the standard deviation. */
+function bar(s: Stat): number {
+  return Number.isFinite(s.ci95) ? s.ci95 : s.sd;
+}
+
+export async function renderSummaryPlots(analysis: WakeAnalysis, campaign: Campaign, runDir: string): Promise<OutputRecord[]> {
+  const out: OutputRecord[] = [];
+  for (const fig of summaryFigures(analysis, campaign)) out.push(...(await writeFigure(fig.svg, runDir, `summary_${fig.what}`, { description: fig.description })));
+  return out;
+}
+
+/** The summary figures as SVG text (pure), for rendering or inspection. */
+export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: string; description: string; svg: string }[] {
+  const D = a.rotorDiameter_m || campaign.turbine.rotorDiameter_m;
+  const H = a.hubHeight_m || campaign.turbine.hubHeight_m;
+  const pts = [...a.downstream.points].sort((p, q) => p.x_D - q.x_D);
+  const figs: { what: string; description: string; svg: string }[] = [];
+  const ds = a.downstream;
+  const xD = pts.map((p) => p.x_D);
+  const barNote = 'Error bars: 95 % confidence interval of the mean over windows (standard deviation where only one window).';
+
+  if (pts.length) {
+    const gf = ds.gaussianFit;
+    const series: PlotSeries[] = [
+      { label: 'measured, deficit at the wake centre', x: xD, y: pts.map((p) => p.centreDeficit.mean), yErr: pts.map((p) => bar(p.centreDeficit)), kind: 'points', marker: 'circle', colour: theme.series[0] },
+      { label: 'measured, fitted Gaussian amplitude', x: xD, y: pts.map((p) => p.amplitude.mean), yErr: pts.map((p) => bar(p.amplitude)), kind: 'points', marker: 'square', colour: theme.series[2] },
+      { label: `Gaussian model, fitted k* = ${formatNumber(gf.kStar, 4)}, \u03b5 = ${formatNumber(gf.eps, 3)}`, x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.deficit, kind: 'line', colour: theme.series[1] },
+      { label: `top-hat model, k = ${formatNumber(ds.topHat.k, 3)}`, x: ds.topHatCurve.x_D, y: ds.topHatCurve.deficit, kind: 'line', dash: '6 4', colour: theme.series[4] },
+    ];
+    figs.push({
+      what: 'deficit',
+      description: 'centreline deficit against downstream distance with model curves',
+      svg: linePlotSvg({
+        title: 'Wake deficit downstream',
+        subtitle: `Ct = ${formatNumber(gf.ct, 2)} (${gf.ctSource}) \u00b7 hub-height inflow ${formatNumber(gf.hubSpeed_ms, 1)} m/s \u00b7 ${gf.nPlanes} planes`,
+        xLabel: 'downstream distance x / D',
+        yLabel: 'deficit 1 \u2212 u / u_inf (\u2013)',
+        series,
+        yIncludeZero: true,
+        notes: [
+          barNote,
+          'Gaussian model: Bastankhah & Port\u00e9-Agel (2014), Renewable Energy 70. Top-hat model: Jensen (1983); Kati\u0107, H\u00f8jstrup & Jensen (1986).',
+          ds.topHat.kNote ? `Top-hat k: ${ds.topHat.kNote}.` : '',
+        ].filter(Boolean),
+      }),
+    });
+
+    const ci = (c: [number, number]) => (Number.isFinite(c[0]) ? ` [${formatNumber(c[0], 4)}, ${formatNumber(c[1], 4)}]` : '');
+    figs.push({
+      what: 'width',
+      description: 'wake widths against downstream distance with the fitted linear growth',
+      svg: linePlotSvg({
+        title: 'Wake width downstream',
+        subtitle: `\u03c3/D = k* x/D + \u03b5 fitted: k* = ${formatNumber(gf.kStar, 4)}${ci(gf.kStarCI95)}, \u03b5 = ${formatNumber(gf.eps, 3)}${ci(gf.epsCI95)} (\u03b5 from Ct: ${formatNumber(gf.epsTheory, 3)})`,
+        xLabel: 'downstream distance x / D',
+        yLabel: 'width / D (\u2013)',
+        series: [
+          { label: '\u03c3y / D (lateral)', x: xD, y: pts.map((p) => p.sigmaY_m.mean / D), yErr: pts.map((p) => bar(p.sigmaY_m) / D), kind: 'points', marker: 'triangle', colour: theme.series[0] },
+          { label: '\u03c3z / D (vertical)', x: xD, y: pts.map((p) => p.sigmaZ_m.mean / D), yErr: pts.map((p) => bar(p.sigmaZ_m) / D), kind: 'points', marker: 'diamond', colour: theme.series[2] },
+          { label: '\u221a(\u03c3y \u03c3z) / D', x: xD, y: pts.map((p) => p.sigma_D.mean), yErr: pts.map((p) => bar(p.sigma_D)), kind: 'points', marker: 'circle', colour: theme.series[3] },
+          { label: 'linear fit of \u221a(\u03c3y \u03c3z) / D', x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.width_D, kind: 'line', colour: theme.series[1] },
+        ],
+        yIncludeZero: true,
+        notes: [barNote, `Fit: ${gf.ok ? 'ok' : 'not usable'}${gf.note ? `, ${gf.note}` : ''}; RMSE ${formatNumber(gf.rmse, 4)}. Linear growth as in Bastankhah & Port\u00e9-Agel (2014).`],
+      }),
+    });
+
+    figs.push({
+      what: 'centre',
+      description: 'wake centre against downstream distance',
+      svg: linePlotSvg({
+        title: 'Wake centre downstream',
+        subtitle: 'Centre of the 2D Gaussian fit, relative to the hub, in rotor diameters',
+        xLabel: 'downstream distance x / D',
+        yLabel: 'centre offset / D (\u2013)',
+        series: [
+          { label: 'lateral y_c / D (+ left looking downstream)', x: xD, y: pts.map((p) => p.yc_m.mean / D), yErr: pts.map((p) => bar(p.yc_m) / D), kind: 'both', marker: 'circle', colour: theme.series[0] },
+          { label: 'vertical (z_c \u2212 z_hub) / D', x: xD, y: pts.map((p) => (p.zc_m.mean - H) / D), yErr: pts.map((p) => bar(p.zc_m) / D), kind: 'both', marker: 'square', colour: theme.series[2], dash: '5 3' },
+        ],
+        yIncludeZero: true,
+        yReference: 0,
+        notes: [barNote],
+      }),
+    });
+  }
+
+  const st = a.steering;
+  if (st.bins.length) {
+    const planes = [...new Set(st.bins.map((b) => b.planeId))];
+    const series: PlotSeries[] = [];
+    planes.forEach((pid, k) => {
+      const bins = st.bins.filter((b) => b.planeId === pid).sort((p, q) => p.gammaMean_deg - q.gammaMean_deg);
+      const colour = theme.series[k % theme.series.length];
+      const x_D = bins[0].x_D;
+      series.push({ label: `${pid} (x = ${formatNumber(x_D, 1)} D), measured`, x: bins.map((b) => b.gammaMean_deg), y: bins.map((b) => b.yc_m / D), yErr: bins.map((b) => (Number.isFinite(b.ci95_m) ? b.ci95_m : b.sd_m) / D), kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4] });
+      const c = st.curves.find((cv) => cv.planeId === pid);
+      if (c) {
+        series.push({ label: `${pid}, Bastankhah & Port\u00e9-Agel (2016)`, x: c.gamma_deg, y: c.bastankhah_m.map((v) => v / D), kind: 'line', colour });
+        series.push({ label: `${pid}, Jim\u00e9nez et al. (2010)`, x: c.gamma_deg, y: c.jimenez_m.map((v) => v / D), kind: 'line', colour, dash: '2 3' });
+      }
+    });
+    figs.push({
+      what: 'steering',
+      description: 'wake-centre deflection against yaw offset with published model curves',
+      svg: linePlotSvg({
+        title: 'Wake deflection against yaw offset',
+        subtitle: `Ct = ${formatNumber(st.ct, 2)} \u00b7 turbulence intensity ${formatNumber(st.turbulenceIntensity, 2)} \u00b7 yaw offset positive = nacelle turned clockwise seen from above`,
+        xLabel: 'yaw offset \u03b3 (degrees)',
+        yLabel: 'lateral wake centre y_c / D (+ left)',
+        series,
+        yReference: 0,
+        notes: [
+          'Error bars: 95 % confidence interval of the bin mean (standard deviation where the bin has one window).',
+          'Models: Jim\u00e9nez, Crespo & Migoya (2010), Wind Energy 13(6); Bastankhah & Port\u00e9-Agel (2016), J. Fluid Mech. 806.',
+          st.note,
+        ].filter(Boolean),
+      }),
+    });
+  }
+  return figs;
+}
