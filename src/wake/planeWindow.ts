@@ -4,8 +4,8 @@
  *
  * Flags, in the order tested (the first that applies wins; a flagged row keeps whatever was computed):
  * no_inflow (no usable inflow profile) -> too_few_cells (valid cells < minCells) -> no_wake (98th-percentile deficit
- * < minDeficit, or fitted amplitude < minDeficit) -> not_converged -> off_edge (fitted centre outside the plane or
- * within one cell of its edge) -> absurd_width (sigma < minWidthCells cells or > maxWidth_D D).
+ * < minDeficit, or fitted amplitude < minDeficit) -> off_edge (fitted centre outside the plane or within one cell of
+ * its edge) -> not_converged -> absurd_width (sigma < minWidthCells cells or > maxWidth_D D).
  */
 import type { FieldResult } from '../retrieval/types.ts';
 import type { Series } from '../io/series.ts';
@@ -108,12 +108,15 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     const q = fit.params;
     const edgeY = g.dy, edgeZ = g.dz;
     const minW = o.minWidthCells;
-    if (!(maxDeficit >= o.minDeficit) || !(q.amplitude >= o.minDeficit)) {
+    if (![q.amplitude, q.yc_m, q.zc_m, q.sigmaY_m, q.sigmaZ_m].every(Number.isFinite)) {
+      flag = 'not_converged'; reason = 'Gaussian fit diverged (non-finite parameters)';
+    } else if (!(maxDeficit >= o.minDeficit) || !(q.amplitude >= o.minDeficit)) {
       flag = 'no_wake'; reason = `deficit amplitude ${q.amplitude.toFixed(3)} (98th percentile ${maxDeficit.toFixed(3)}) < ${o.minDeficit}`;
+    } else if (!(q.yc_m > yMin + edgeY && q.yc_m < yMax - edgeY && q.zc_m > zMin + edgeZ && q.zc_m < zMax - edgeZ)) {
+      // Tested before convergence: a wake leaving the plane often drives the fit outwards until it stalls.
+      flag = 'off_edge'; reason = `fitted centre (${q.yc_m.toFixed(1)}, ${q.zc_m.toFixed(1)}) m outside or within one cell of the plane edge`;
     } else if (!fit.converged) {
       flag = 'not_converged'; reason = `Gaussian fit did not converge in ${fit.iterations} iterations`;
-    } else if (!(q.yc_m > yMin + edgeY && q.yc_m < yMax - edgeY && q.zc_m > zMin + edgeZ && q.zc_m < zMax - edgeZ)) {
-      flag = 'off_edge'; reason = `fitted centre (${q.yc_m.toFixed(1)}, ${q.zc_m.toFixed(1)}) m outside or within one cell of the plane edge`;
     } else if (!(q.sigmaY_m >= minW * g.dy && q.sigmaZ_m >= minW * g.dz && q.sigmaY_m <= o.maxWidth_D * D && q.sigmaZ_m <= o.maxWidth_D * D)) {
       flag = 'absurd_width'; reason = `widths (${q.sigmaY_m.toFixed(1)}, ${q.sigmaZ_m.toFixed(1)}) m outside [${minW} cell, ${o.maxWidth_D} D]`;
     }
