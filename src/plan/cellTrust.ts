@@ -12,7 +12,7 @@
  * after the hard limit that removed beams: ground, elevation, range, else too_few_instruments); parallel_beams;
  * footprint; probe_model; amplification (u or v fails); w_not_resolved (u and v pass, w does not).
  */
-import { amplification2, amplification3 } from '../geometry/amplification.ts';
+import { amplification2, amplification3, invertSym3, minCrossingAngle, normalMatrix } from '../geometry/amplification.ts';
 import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
 import type { PlanSettings } from './settings.ts';
 
@@ -69,7 +69,11 @@ export interface CellTrust {
 
 type TrustSettings = Pick<PlanSettings, 'maxAmplification' | 'minCrossing_deg' | 'twoInstrumentAssumption'>;
 
-export function assessCells(beams: readonly BeamCells[], nCells: number, s: TrustSettings): CellTrust {
+/**
+ * Options: `withCond` (default true) computes the condition number (an eigen-decomposition per cell); the layout
+ * search turns it off, as the pass/fail decision does not use it (cond is then NaN for cells with three beams or more).
+ */
+export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], nCells: number, s: TrustSettings, withCond = true): CellTrust {
   const t: CellTrust = {
     dopU: new Float64Array(nCells).fill(NaN),
     dopV: new Float64Array(nCells).fill(NaN),
@@ -103,11 +107,19 @@ export function assessCells(beams: readonly BeamCells[], nCells: number, s: Trus
     if (soft & BeamFlag.probeModel) reasons |= CellReason.probeModel;
     let okU = false, okV = false, okW = false;
     if (k >= 3) {
-      const a = amplification3(rows, k);
-      t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1]; t.dopW[c] = a.dop[2];
-      t.cond[c] = a.cond;
-      t.minCrossing_deg[c] = a.minCrossing_deg;
-      okU = a.dop[0] <= maxA; okV = a.dop[1] <= maxA; okW = a.dop[2] <= maxA;
+      let du: number, dv: number, dw: number;
+      if (withCond) {
+        const a = amplification3(rows, k);
+        [du, dv, dw] = a.dop;
+        t.cond[c] = a.cond;
+        t.minCrossing_deg[c] = a.minCrossing_deg;
+      } else {
+        const inv = invertSym3(normalMatrix(rows, k));
+        du = Math.sqrt(inv[0]); dv = Math.sqrt(inv[4]); dw = Math.sqrt(inv[8]);
+        t.minCrossing_deg[c] = minCrossingAngle(rows, k);
+      }
+      t.dopU[c] = du; t.dopV[c] = dv; t.dopW[c] = dw;
+      okU = du <= maxA; okV = dv <= maxA; okW = dw <= maxA;
     } else if (k === 2) {
       const a = amplification2(rows, 2);
       t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1];

@@ -10,7 +10,7 @@
  */
 import type { Instrument, Vec3 } from '../campaign/types.ts';
 import type { RotorFrame } from '../geometry/frames.ts';
-import { beamCells } from './beamCells.ts';
+import { beamCells, type BeamCells } from './beamCells.ts';
 import { candidatePositions } from './candidates.ts';
 import { assessCells, passFractions, poolFractions, type Fractions } from './cellTrust.ts';
 import { combinations } from './combinations.ts';
@@ -45,13 +45,28 @@ export interface LayoutSearchResult {
   gain: { rotorAll: number; planeAll: number };
 }
 
+/** Cells of beams the layout search keeps in memory (about 25 bytes each). */
+export const CACHE_CELLS = 4_000_000;
+
 type Ins = Pick<Instrument, 'id' | 'kind' | 'cw' | 'pulsed' | 'position'>;
 
-/** Scores one layout over all planes. */
-export function scoreLayout(instruments: readonly Ins[], positions: Vec3[], geoms: readonly PlaneGeometry[], frame: RotorFrame, s: PlanSettings, choice: number[]): LayoutScore {
-  const perPlane = geoms.map((g) => {
-    const beams = instruments.map((ins, i) => beamCells(ins, positions[i], g, frame, s));
-    const t = assessCells(beams, g.grid.ny * g.grid.nz, s);
+type Beams = Pick<BeamCells, 'dir' | 'flags'>;
+/** Beams of instrument i at positions[i] to the cells of plane geoms[planeIndex] (a cache may stand behind it). */
+export type BeamSource = (i: number, positions: readonly Vec3[], planeIndex: number) => Beams;
+
+/** Scores one layout over all planes (the condition number is not needed and not computed). */
+export function scoreLayout(
+  instruments: readonly Ins[],
+  positions: Vec3[],
+  geoms: readonly PlaneGeometry[],
+  frame: RotorFrame,
+  s: PlanSettings,
+  choice: number[],
+  source: BeamSource = (i, pos, gi) => beamCells(instruments[i], pos[i], geoms[gi], frame, s),
+): LayoutScore {
+  const perPlane = geoms.map((g, gi) => {
+    const beams = instruments.map((_, i) => source(i, positions, gi));
+    const t = assessCells(beams, g.grid.ny * g.grid.nz, s, false);
     return { planeId: g.plane.id, rotor: passFractions(t, g.inRotor), plane: passFractions(t) };
   });
   return { positions, choice, rotor: poolFractions(perPlane.map((p) => p.rotor)), plane: poolFractions(perPlane.map((p) => p.plane)), perPlane };
@@ -72,6 +87,26 @@ export function searchLayouts(instruments: readonly Ins[], geoms: readonly Plane
   const movableIdx = instruments.map((ins, i) => (s.candidates[ins.id] ? i : -1)).filter((i) => i >= 0);
   const cand = movableIdx.map((i) => candidatePositions(instruments[i], s.candidates[instruments[i].id], file));
   const { combos, total, sampled } = combinations(cand.map((c) => c.length), s.maxCombinations, s.seed);
+  // Beams depend only on their own instrument's position: cache them per (instrument, candidate, plane) while the
+  // cache holds fewer than CACHE_CELLS cells (about 25 bytes each).
+  const cache = new Map<string, Beams>();
+  let cached = 0;
+  let current: Int32Array = new Int32Array(0);
+  const slot = new Int32Array(instruments.length).fill(-1);
+  movableIdx.forEach((ii, k) => (slot[ii] = k));
+  const source: BeamSource = (i, pos, gi) => {
+    const key = `${i}:${slot[i] >= 0 ? current[slot[i]] : -1}:${gi}`;
+    let b = cache.get(key);
+    if (!b) {
+      const full = beamCells(instruments[i], pos[i], geoms[gi], frame, s);
+      b = { dir: full.dir, flags: full.flags };
+      if (cached + b.flags.length <= CACHE_CELLS) {
+        cache.set(key, b);
+        cached += b.flags.length;
+      }
+    }
+    return b;
+  };
   const scored: LayoutScore[] = [];
   let skipped = 0;
   for (const combo of combos) {
@@ -92,7 +127,8 @@ export function searchLayouts(instruments: readonly Ins[], geoms: readonly Plane
       skipped++;
       continue;
     }
-    scored.push(scoreLayout(instruments, positions, geoms, frame, s, choice));
+    current = combo;
+    scored.push(scoreLayout(instruments, positions, geoms, frame, s, choice, source));
   }
   scored.sort(compareLayouts);
   const ranked = scored.slice(0, s.top);
