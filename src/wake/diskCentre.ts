@@ -1,10 +1,13 @@
 /**
  * Shape-independent wake centre: the centre of the rotor-sized disk (radius R = D/2) whose available power is
- * smallest, i.e. minimising the area-weighted mean of u^3 over the disk's valid cells,
- *   P(yc, zc) = sum_i a_i u_i^3 / sum_i a_i,  a_i = area of cell i inside the disk (4 x 4 sub-samples per cell),
+ * smallest, i.e. minimising the area-weighted mean of the cubed speed over the disk's valid cells,
+ *   P(yc, zc) = sum_i a_i s_i^3 / sum_i a_i,  a_i = area of cell i inside the disk (4 x 4 sub-samples per cell),
  * searched over all cell centres whose disk is covered by valid cells to at least `minCoverage`, then refined to
  * sub-cell precision by a parabola through the minimum and its two neighbours along each axis (common practice).
- * u in m/s, positions in metres of the grid's axes (cross plane: y, z).
+ * The analysis passes the speed relative to the inflow, s = u / u_inf(z) = 1 - deficit: in uniform inflow this is
+ * u^3 up to a constant factor; in a sheared inflow raw u^3 would pull the minimum towards the ground (the disk
+ * with the least power is then simply the lowest one), which the normalisation removes.
+ * Positions in metres of the grid's axes (cross plane: y, z).
  */
 import type { GridSpec } from '../grid/grid.ts';
 import type { CentreEstimate } from './types.ts';

@@ -123,7 +123,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   }
 
   const cross = f.orientation === 'cross';
-  const disk = cross && validU > 0 ? minPowerDiskCentre(g, f.u, R, o.diskMinCoverage) : { ...NO_CENTRE('min-power-disk'), atEdge: false, meanCube: NaN };
+  const disk = cross && validU > 0 && inflow.ok ? minPowerDiskCentre(g, def.deficit.map((d) => 1 - d), R, o.diskMinCoverage) : { ...NO_CENTRE('min-power-disk'), atEdge: false, meanCube: NaN };
   const centroid = cross && maxDeficit > 0 ? deficitCentroid(g, def.deficit, maxDeficit, o.centroidFraction) : NO_CENTRE('deficit-centroid');
   const centre: CentreEstimate = fit && flag === 'ok'
     ? { method: 'gaussian', y_m: fit.params.yc_m, z_m: fit.params.zc_m, sy_m: fit.stderr.yc_m, sz_m: fit.stderr.zc_m, ok: true }
