@@ -80,6 +80,7 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
     'straight beams in the flat site frame (no Earth curvature, no terrain)',
     `rotor frame from wind direction ${s.direction_deg.toFixed(2)} deg (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
   ];
+  if (campaign.site.earthCurvature) notes.push('site.earthCurvature is true but the planner does not apply it: check long beams');
   if (campaign.instruments.length < 3) notes.push('fewer than three instruments: w cannot be resolved anywhere');
   if (s.twoInstrumentAssumption === 'w-zero') notes.push('cells with two usable beams: u, v from the two-component system assuming w = 0; w not resolved');
   if (layout?.sampled) notes.push(`layout search: ${layout.total} combinations exceed plan.maxCombinations; a random sample of ${layout.evaluated + layout.skippedCoincident} drawn with seed ${layout.seed}`);

@@ -101,6 +101,7 @@ function mapBase(pt: PlaneTrust, campaign: Campaign): Pick<ScalarMapOptions, 'ax
       yLabel: 'y (m), positive to the left looking downstream',
       zLabel: cross ? 'z (m) above ground' : 'x (m) downstream',
       diameter_m: D,
+      ...(cross ? {} : { zLabelD: 'x / D' }),
     },
     rotor: cross ? { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } : undefined,
   };
