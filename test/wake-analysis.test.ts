@@ -226,3 +226,52 @@ describe('downstream fit of the Gaussian model against scipy.stats.linregress (t
     }
   });
 });
+
+describe('more flags and sources', () => {
+  const fixed = syntheticCampaign({ inflow: { kind: 'fixed', speed_ms: 8, height_m: 100, law: 'power', alpha: 0.2, z0_m: 0.03 } });
+
+  it('absurd width: a 500 m wide "wake" over a 600 m plane', () => {
+    // sigma_y = 500 m > maxWidth_D * D = 360 m.
+    const r = analyseWake([syntheticField({ wake: { A: 0.2, yc: 0, zc: 100, sy: 500, sz: 40 } })], fixed, {}).rows[0];
+    expect(r.flag).toBe('absurd_width');
+    expect(r.reason).toMatch(/widths/);
+  });
+
+  it('log-law plane inflow recovers u* and z0 (exact log profile, wake excluded)', () => {
+    // u = (0.5/0.4) ln(z/0.05); the second pass excludes the wake ellipse, so the fit sees the exact law.
+    const law = (z: number) => (0.5 / 0.4) * Math.log(z / 0.05);
+    const r = analyseWake([syntheticField({ inflow: law })], syntheticCampaign({ inflow: { kind: 'plane', law: 'log' } }), {}).rows[0];
+    expect(r.inflow.law).toBe('log');
+    // The 3-sigma ellipse leaves deficits <= 0.3 e^-4.5 = 0.0033 at its rim, and the row medians sit far from it:
+    // u* and z0 within 0.5 % and 2 %.
+    expect(Math.abs(r.inflow.uStar_ms / 0.5 - 1)).toBeLessThan(0.005);
+    expect(Math.abs(r.inflow.z0_m / 0.05 - 1)).toBeLessThan(0.02);
+    expect(Math.abs(r.gaussian!.params.yc_m - 25)).toBeLessThan(0.5);
+  });
+
+  it('horizontal plane: lateral track per downstream row', () => {
+    // Horizontal plane at hub height, second axis x = 125..1195 m; wake centre y = 0.03 x, width 40 + 0.05 x.
+    const f = syntheticField({ wake: null, grid: { ny: 61, nz: 108, y0: -300, z0: 125, dy: 10, dz: 10 }, inflow: () => 8 });
+    const g = f.grid;
+    for (let ix = 0; ix < g.nz; ix++) for (let iy = 0; iy < g.ny; iy++) {
+      const x = g.z0 + ix * g.dz, y = g.y0 + iy * g.dy;
+      f.u[iy + ix * g.ny] = 8 * (1 - 0.25 * Math.exp(-((y - 0.03 * x) ** 2) / (2 * (40 + 0.05 * x) ** 2)));
+    }
+    const h = { ...f, orientation: 'horizontal' as const, x_m: NaN, z_m: 100 };
+    const r = analyseWake([h], fixed, {}).rows[0];
+    expect(r.flag).toBe('horizontal_plane');
+    const t = r.horizontalTrack!;
+    // Exact 1D Gaussians with the exact inflow: each row's centre and width to 1e-4 m.
+    for (const k of [0, 40, 107]) {
+      expect(t.yc_m[k]).toBeCloseTo(0.03 * t.x_m[k], 4);
+      expect(t.sigmaY_m[k]).toBeCloseTo(40 + 0.05 * t.x_m[k], 4);
+    }
+  });
+
+  it('empty input gives empty results with notes, not a crash', () => {
+    const a = analyseWake([], fixed, {});
+    expect(a.rows).toEqual([]);
+    expect(a.downstream.gaussianFit.ok).toBe(false);
+    expect(a.steering.note).toMatch(/no/);
+  });
+});
