@@ -1,6 +1,7 @@
 /** The campaign planner: trust maps, probe volumes, pointing tables and layout search. Re-exports only. */
 export { planCampaign, type PlanResult, type PlanSummary, type PlanePlanSummary } from './planCampaign.ts';
-export { writePlanOutputs, cellTableCsv, pointingCsv, layoutCsv, trustMapGrid } from './writeOutputs.ts';
+export { writePlanOutputs, cellTableCsv, pointingCsv, layoutCsv } from './writeOutputs.ts';
+export { writePlanImages, trustMapGrid } from './images.ts';
 export { resolvePlanSettings, meanDirection, type PlanOptions, type PlanSettings } from './settings.ts';
 export { planSchema, type PlanInput } from './schema.ts';
 export { cwHalfWidth, cwRayleighRange, cwWeight, pulsedWeight, pulsedFwhm, pulseWidthParameter, probeLength, SPEED_OF_LIGHT } from './probe.ts';
