@@ -62,9 +62,44 @@ export function contourRegions(grid: Grid, thresholds: number[], clamp?: [number
   const toY = (c: number) => y0 + (c - 1.5) * dy;
   const toZ = (c: number) => z0 + (c - 1.5) * dz;
   const arr = Array.from(padded);
+  // The padded ring reaches one cell beyond the grid; clip back to the grid's outer cell edges.
+  const box: [number, number, number, number] = [y0 - dy / 2, z0 - dz / 2, y0 + (ny - 0.5) * dy, z0 + (nz - 0.5) * dz];
   return thresholds.map((t) =>
-    gen.contour(arr, t).coordinates.map((poly) => poly.map((ring) => ring.map(([cx, cz]) => [toY(cx), toZ(cz)] as [number, number]))),
+    gen
+      .contour(arr, t)
+      .coordinates.map((poly) => poly.map((ring) => clipRing(ring.map(([cx, cz]) => [toY(cx), toZ(cz)] as [number, number]), box)).filter((r) => r.length >= 3))
+      .filter((poly) => poly.length > 0 && poly[0].length >= 3),
   );
+}
+
+/** Sutherland-Hodgman clip of a ring to the box [yMin, zMin, yMax, zMax] (exact for a convex clip region). */
+export function clipRing(ring: [number, number][], box: [number, number, number, number]): [number, number][] {
+  const [yMin, zMin, yMax, zMax] = box;
+  const edges: [(p: [number, number]) => boolean, (a: [number, number], b: [number, number]) => [number, number]][] = [
+    [(p) => p[0] >= yMin, (a, b) => at(a, b, 0, yMin)],
+    [(p) => p[0] <= yMax, (a, b) => at(a, b, 0, yMax)],
+    [(p) => p[1] >= zMin, (a, b) => at(a, b, 1, zMin)],
+    [(p) => p[1] <= zMax, (a, b) => at(a, b, 1, zMax)],
+  ];
+  let out = ring;
+  for (const [inside, cross] of edges) {
+    const input = out;
+    out = [];
+    for (let i = 0; i < input.length; i++) {
+      const cur = input[i], prev = input[(i + input.length - 1) % input.length];
+      if (inside(cur)) {
+        if (!inside(prev)) out.push(cross(prev, cur));
+        out.push(cur);
+      } else if (inside(prev)) out.push(cross(prev, cur));
+    }
+    if (!out.length) break;
+  }
+  return out;
+}
+
+function at(a: [number, number], b: [number, number], axis: 0 | 1, v: number): [number, number] {
+  const t = (v - a[axis]) / (b[axis] - a[axis]);
+  return [a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])];
 }
 
 /** Signed area of a ring (shoelace), m^2: positive when counter-clockwise in (y, z). */

@@ -47,8 +47,10 @@ export interface PlotOptions {
 
 export function linePlotSvg(o: PlotOptions): string {
   const pw = o.plotWidth ?? 470, ph = o.plotHeight ?? 300;
-  const left = 72, top = o.subtitle ? 66 : 50;
+  const left = 72;
   const legendX = left + pw + 24, legendW = 220;
+  const subLines = o.subtitle ? wrap(o.subtitle, Math.floor((legendX + legendW - left - 12) / 6.6)) : [];
+  const top = 50 + subLines.length * 15;
   const xd = o.xDomain ?? dataDomain(o.series, 'x', false);
   const yd = o.yDomain ?? dataDomain(o.series, 'y', !!o.yIncludeZero);
   const X = linear(xd[0], xd[1], left, left + pw);
@@ -125,7 +127,7 @@ export function linePlotSvg(o: PlotOptions): string {
       ny += 13;
     }
   }
-  const head = text(left, 26, o.title, { size: 16, weight: 'bold' }) + (o.subtitle ? text(left, 45, o.subtitle, { size: 11.5, fill: theme.muted }) : '');
+  const head = text(left, 26, o.title, { size: 16, weight: 'bold' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted })).join('');
   const defs = `<clipPath id="${clipId}"><rect x="${left - 6}" y="${top - 6}" width="${pw + 12}" height="${ph + 12}"/></clipPath>`;
   const width = legendX + legendW;
   const height = Math.max(ny + 4, ly + 10);

@@ -54,11 +54,16 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   // Layout (user units).
   const yLo = y0 - dy / 2, yHi = y0 + (ny - 0.5) * dy;
   const zLo = z0 - dz / 2, zHi = z0 + (nz - 0.5) * dz;
-  const scale = Math.min(520 / (yHi - yLo), 430 / (zHi - zLo));
+  // Plot area at most 520 wide and 430 high (560 for planes taller than wide), one scale for both axes.
+  const maxH = zHi - zLo > 1.2 * (yHi - yLo) ? 560 : 430;
+  const scale = Math.min(520 / (yHi - yLo), maxH / (zHi - zLo));
   const pw = (yHi - yLo) * scale, ph = (zHi - zLo) * scale;
   const D = opts.axes.diameter_m && opts.axes.diameter_m > 0 ? opts.axes.diameter_m : undefined;
   const left = 74;
-  const top = 64 + (D ? 40 : 6) + (opts.subtitle ? 0 : -14);
+  // Figure width: the plot, colour bar and legend, but at least wide enough for a readable title block.
+  const width = Math.max(left + pw + (D ? 62 : 22) + 96 + 218 + 12, 760);
+  const subLines = opts.subtitle ? wrap(opts.subtitle, Math.floor((width - left - 12) / 6.6)) : [];
+  const top = 50 + subLines.length * 15 + (D ? 40 : 6);
   const plotR = left + pw;
   const cbX = plotR + (D ? 62 : 22);
   const legendX = cbX + 96;
@@ -251,9 +256,8 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   body.push(`<g class="legend">${leg.markup}</g>`);
 
   // 8. Title.
-  const head = text(left, 26, opts.title, { size: 16, weight: 'bold' }) + (opts.subtitle ? text(left, 45, opts.subtitle, { size: 11.5, fill: theme.muted }) : '');
+  const head = text(left, 26, opts.title, { size: 16, weight: 'bold' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted })).join('');
 
-  const width = legendX + legendW + 12;
   const height = Math.max(top + ph + (opts.axes.note ? 66 : 50), top + cbH + 20, leg.bottom + 16);
   return svgDocument(width, height, opts.title, head + body.join('\n') + '\n', defs.join(''));
 }

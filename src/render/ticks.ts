@@ -38,7 +38,11 @@ export function niceExtent(lo: number, hi: number, count = 6): [number, number] 
 /** Decimals needed to show multiples of step. */
 export function decimalsFor(step: number): number {
   if (!(step > 0) || !Number.isFinite(step)) return 0;
-  return Math.max(0, Math.min(6, -Math.floor(Math.log10(step) + 1e-9)));
+  for (let d = 0; d < 6; d++) {
+    const scaled = step * 10 ** d;
+    if (Math.abs(scaled - Math.round(scaled)) < 1e-9 * Math.max(1, scaled)) return d;
+  }
+  return 6;
 }
 
 /** Tick label with a typographic minus sign. */

@@ -1,0 +1,197 @@
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { afterAll, describe, expect, it } from 'vitest';
+import { MaskReason, maskReasonName } from '../src/retrieval/types.ts';
+import { renderGeometryMaps, renderPlaneImages, renderSummaryPlots } from '../src/render/planeImages.ts';
+import { scalarMapSvg } from '../src/render/scalarMap.ts';
+import { writeSvgAndPng } from '../src/render/write.ts';
+import { fixtureAnalysis, fixtureCampaign, fixtureField, fixtureWake } from './render-fixture.ts';
+
+const dir = mkdtempSync(join(tmpdir(), 'wakeplane-render-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** Grid 40 x 32 cells of 7.5 m x 5 m, centres y = -146.25 + 7.5 i, z = 12.5 + 5 j (a cross plane y -150..150, z 10..170). */
+const G = { ny: 40, nz: 32, y0: -146.25, z0: 12.5, dy: 7.5, dz: 5 };
+const N = G.ny * G.nz;
+const yOf = (i: number) => G.y0 + (i % G.ny) * G.dy;
+const zOf = (i: number) => G.z0 + Math.floor(i / G.ny) * G.dz;
+
+function attrs(tag: string): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const m of tag.matchAll(/([a-z0-9-]+)="([-0-9.]+)"/g)) out[m[1]] = Number(m[2]);
+  return out;
+}
+
+/** Width and height of the figure in inches from the root element. */
+function inches(svg: string): [number, number] {
+  const m = /<svg[^>]*width="([0-9.]+)in" height="([0-9.]+)in"/.exec(svg);
+  if (!m) throw new Error('no size in inches');
+  return [Number(m[1]), Number(m[2])];
+}
+
+async function distinctColours(png: string): Promise<number> {
+  const { data, info } = await sharp(png).removeAlpha().raw().toBuffer({ resolveWithObject: true });
+  const seen = new Set<number>();
+  for (let i = 0; i < info.width * info.height * 3; i += 3) seen.add((data[i] << 16) | (data[i + 1] << 8) | data[i + 2]);
+  return seen.size;
+}
+
+describe('scalar map: pixels', () => {
+  it('renders at 300 dots per inch of the declared size and is not blank', async () => {
+    const values = new Float64Array(N);
+    for (let i = 0; i < N; i++) values[i] = 1 - 0.4 * Math.exp(-(yOf(i) ** 2) / (2 * 35 ** 2) - ((zOf(i) - 90) ** 2) / (2 * 28 ** 2));
+    const svg = scalarMapSvg({ ...G, values }, { title: 'test map', colorbarLabel: 'u / u_inf (\u2013)', axes: { yLabel: 'y (m)', zLabel: 'z (m)', diameter_m: 120 } });
+    const [png] = (await writeSvgAndPng(svg, join(dir, 'map'))).filter((p) => p.endsWith('.png'));
+    const meta = await sharp(png).metadata();
+    const [wIn, hIn] = inches(svg);
+    // Pixel size = inches x 300, within 1 pixel of rounding.
+    expect(Math.abs(meta.width! - wIn * 300)).toBeLessThanOrEqual(1);
+    expect(Math.abs(meta.height! - hIn * 300)).toBeLessThanOrEqual(1);
+    const stats = await sharp(png).stats();
+    // Not blank: a flat image has standard deviation 0; text, axes and ten colour bands give far more than 10 levels.
+    expect(Math.max(...stats.channels.slice(0, 3).map((c) => c.stdev))).toBeGreaterThan(10);
+    // At least the ten band colours plus paper and ink (anti-aliasing adds many more).
+    expect(await distinctColours(png)).toBeGreaterThan(12);
+  });
+
+  it('escapes markup in titles (librsvg would refuse an unescaped "<")', async () => {
+    const svg = scalarMapSvg({ ...G, values: new Float64Array(N).fill(1) }, { title: 'a <b> & "c"', colorbarLabel: 'x', axes: { yLabel: 'y', zLabel: 'z' } });
+    expect(svg).toContain('a &lt;b&gt; &amp; &quot;c&quot;');
+    expect(svg).not.toContain('<b>');
+    const meta = await sharp(Buffer.from(svg), { density: 72 }).metadata();
+    expect(meta.width).toBeGreaterThan(0);
+  });
+});
+
+describe('scalar map: geometry in the SVG', () => {
+  it('draws solid-body swirl arrows tangent to circles about the hub, turning the right way, scaled to the reference', () => {
+    // Swirl about the cell centre (3.75, 92.5): v = -omega (z - zh), w = omega (y - yh), omega = 0.02 rad/s.
+    // With +y to the LEFT of the page and +z up, a positive omega turns from +y (left) to +z (up): clockwise on the
+    // page. In SVG pixels (X right, Y down) for tail offset r = tail - hub and arrow d, r_X d_Y - r_Y d_X > 0.
+    // Check: left of the hub r = (-1, 0), velocity up d = (0, -1): (-1)(-1) - 0 = 1 > 0.
+    const yh = 3.75, zh = 92.5, omega = 0.02, R = 60;
+    const v = new Float64Array(N), w = new Float64Array(N), values = new Float64Array(N).fill(1);
+    for (let i = 0; i < N; i++) {
+      v[i] = -omega * (zOf(i) - zh);
+      w[i] = omega * (yOf(i) - yh);
+    }
+    const svg = scalarMapSvg({ ...G, values }, {
+      title: 'swirl', colorbarLabel: 'x', axes: { yLabel: 'y', zLabel: 'z' },
+      rotor: { y: yh, z: zh, radius: R }, arrows: { v, w, every: 2, referenceSpeed: 1 },
+    });
+    const hub = attrs(/<circle class="hub"[^>]*>/.exec(svg)![0]);
+    const rotorR = attrs(/<g class="rotor"><circle [^>]*>/.exec(svg)![0]).r;
+    const pxPerM = rotorR / R;
+    const ref = attrs(/<line class="arrow-ref"[^>]*>/.exec(svg)![0]);
+    const refLen = Math.hypot(ref.x2 - ref.x1, ref.y2 - ref.y1); // pixels for 1 m/s
+    const lines = [...svg.matchAll(/<line class="arrow" [^>]*>/g)].map((m) => attrs(m[0]));
+    expect(lines.length).toBeGreaterThan(100); // every 2nd cell of 40 x 32: 20 x 16 = 320 arrows, minus the hub's zero arrow
+    let checked = 0;
+    for (const a of lines) {
+      const rX = a.x1 - hub.cx, rY = a.y1 - hub.cy;
+      const dX = a.x2 - a.x1, dY = a.y2 - a.y1;
+      const r = Math.hypot(rX, rY), d = Math.hypot(dX, dY);
+      if (r < 1) continue;
+      // Coordinates are written to 0.01 units, so each arrow direction is good to about 0.02 / d radians.
+      expect(Math.abs(rX * dX + rY * dY) / (r * d)).toBeLessThan(0.02 / d + 0.02 / r + 1e-3);
+      expect(rX * dY - rY * dX).toBeGreaterThan(0);
+      // Length: speed omega * r_m, drawn at refLen pixels per m/s; relative tolerance from the 0.01 rounding.
+      const expected = omega * (r / pxPerM) * refLen;
+      expect(Math.abs(d - expected)).toBeLessThan(0.03 + 1e-3 * expected);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(100);
+    // Directly above the hub (same column): z > zh, so v = -omega (z - zh) < 0 points to -y, i.e. to the RIGHT.
+    const above = lines.filter((a) => Math.abs(a.x1 - hub.cx) < 0.01 && a.y1 < hub.cy - 1);
+    expect(above.length).toBeGreaterThan(3);
+    for (const a of above) {
+      expect(a.x2 - a.x1).toBeGreaterThan(0);
+      expect(Math.abs(a.y2 - a.y1)).toBeLessThan(0.02); // no vertical component, up to rounding
+    }
+  });
+
+  it('places +y to the left of the hub and +z above it', () => {
+    const svg = scalarMapSvg({ ...G, values: new Float64Array(N).fill(1) }, {
+      title: 'orientation', colorbarLabel: 'x', axes: { yLabel: 'y', zLabel: 'z' }, rotor: { y: 0, z: 90, radius: 60 },
+      markers: [{ y: 50, z: 90, label: 'left', shape: 'circle' }, { y: 0, z: 140, label: 'up', shape: 'circle' }],
+    });
+    const hub = attrs(/<circle class="hub"[^>]*>/.exec(svg)![0]);
+    const [left, up] = [...svg.matchAll(/<g class="marker marker-circle"[^>]*><circle [^>]*>/g)].map((m) => attrs(m[0].slice(m[0].indexOf('<circle'))));
+    expect(left.cx).toBeLessThan(hub.cx - 10); // 50 m at about 1.7 units per metre
+    expect(Math.abs(left.cy - hub.cy)).toBeLessThan(0.02);
+    expect(up.cy).toBeLessThan(hub.cy - 10);
+    expect(Math.abs(up.cx - hub.cx)).toBeLessThan(0.02);
+  });
+
+  it('hatches masked cells and names each reason with its cell count', () => {
+    const values = new Float64Array(N).fill(1);
+    const codes = new Uint8Array(N);
+    let amp = 0, none = 0;
+    for (let i = 0; i < N; i++) {
+      if (zOf(i) < 20) (codes[i] = MaskReason.noData), (values[i] = NaN), none++;
+      else if (yOf(i) > 120 && zOf(i) > 150) (codes[i] = MaskReason.amplification), (values[i] = NaN), amp++;
+    }
+    const svg = scalarMapSvg({ ...G, values }, { title: 'mask', colorbarLabel: 'x', axes: { yLabel: 'y', zLabel: 'z' }, mask: { codes, names: maskReasonName } });
+    expect(none).toBe(80); // two rows of 40 (z = 12.5, 17.5)
+    expect(amp).toBe(16); // y = 123.75 .. 146.25 (4 columns) x z = 152.5 .. 167.5 (4 rows)
+    // The legend's text (wrapped lines joined back with spaces).
+    const legend = /<g class="legend">(.*?)<\/g>/s.exec(svg)![1];
+    const words = [...legend.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]).join(' ');
+    expect(words).toContain(`no data (${none} cells)`);
+    expect(words).toContain(`amplification above threshold (${amp} cells)`);
+    // Every masked cell is covered by a hatched rectangle: the run widths add up to the cell count.
+    let covered = 0;
+    for (const m of svg.matchAll(/<rect class="masked m\d+"[^>]*>/g)) {
+      const a = attrs(m[0]);
+      covered += Math.round((a.width - 0.25) / (a.height - 0.25) * (G.dz / G.dy));
+    }
+    expect(covered).toBe(none + amp);
+  });
+});
+
+describe('plane images, geometry maps and summary plots from synthetic results', () => {
+  const c = fixtureCampaign();
+  const f = fixtureField(c.planes[0], 3);
+  const wake = fixtureWake(f);
+
+  it('writes the named SVG/PNG pairs under images/ with relative paths', async () => {
+    const recs = [...(await renderPlaneImages(f, wake, c, dir)), ...(await renderGeometryMaps(f, c, dir))];
+    const names = recs.map((r) => r.path).sort();
+    for (const what of ['u_norm', 'su', 'inflow', 'dopU', 'dopV', 'dopW', 'samples']) {
+      expect(names).toContain(`images/P5D_w3_${what}.svg`);
+      expect(names).toContain(`images/P5D_w3_${what}.png`);
+    }
+    for (const r of recs) {
+      expect(r.kind).toBe('image');
+      expect(r.plane).toBe('P5D');
+      expect(r.window).toBe(3);
+      expect(existsSync(join(dir, r.path))).toBe(true);
+    }
+  });
+
+  it('draws the wake centre, the width ellipse with sigma_y, sigma_z and the second estimator', async () => {
+    const recs = await renderPlaneImages(f, wake, c, dir);
+    const svgPath = join(dir, recs.find((r) => r.path.endsWith('u_norm.svg'))!.path);
+    const { readFileSync } = await import('node:fs');
+    const svg = readFileSync(svgPath, 'utf8');
+    expect(svg).toContain('class="marker marker-cross" data-y="15" data-z="95"');
+    expect(svg).toContain('class="marker marker-diamond" data-y="9" data-z="92"');
+    const rotorR = attrs(/<g class="rotor"><circle [^>]*>/.exec(svg)![0]).r; // 60 m
+    const e = attrs(/<g class="ellipse"><ellipse [^>]*>/.exec(svg)![0]);
+    // Semi-axes in the rotor's scale: 35 m and 28 m against the 60 m radius, to the 0.01-unit rounding.
+    expect(e.rx / rotorR).toBeCloseTo(35 / 60, 3);
+    expect(e.ry / rotorR).toBeCloseTo(28 / 60, 3);
+    expect(svg).toContain('u / u_inf');
+    expect(svg).toContain('inflow 8.0 m/s at hub height');
+  });
+
+  it('writes the summary plots', async () => {
+    const recs = await renderSummaryPlots(fixtureAnalysis([wake]), c, dir);
+    const names = recs.map((r) => r.path);
+    for (const what of ['deficit', 'width', 'centre', 'steering']) expect(names).toContain(`images/summary_${what}.png`);
+    const png = join(dir, 'images/summary_steering.png');
+    expect(await distinctColours(png)).toBeGreaterThan(12); // not blank: paper, ink, series colours and anti-aliasing
+  });
+});
