@@ -275,3 +275,23 @@ describe('more flags and sources', () => {
     expect(a.steering.note).toMatch(/no/);
   });
 });
+
+describe('robustness', () => {
+  it('masked corners and ground rows do not bias the fit (plane inflow, noise)', () => {
+    // Mask z < 30 m and a corner y > 200 m, z > 180 m, as beam geometry often does.
+    const f = syntheticField({ noise: 0.05, mask: (iy, iz) => iz < 2 || (iy > 50 && iz > 16) });
+    const r = analyseWake([f], syntheticCampaign(), {}).rows[0];
+    expect(r.flag).toBe('ok');
+    // Same tolerances as the unmasked case (fewer cells, still > 1000): centre 1 m, widths 2 %.
+    expect(Math.abs(r.centre.y_m - 25)).toBeLessThan(1);
+    expect(Math.abs(r.centre.z_m - 100)).toBeLessThan(1);
+    expect(Math.abs(r.gaussian!.params.sigmaY_m / 50 - 1)).toBeLessThan(0.02);
+    expect(Math.abs(r.gaussian!.params.sigmaZ_m / 40 - 1)).toBeLessThan(0.02);
+    // Masked cells stay NaN in the deficit.
+    expect(r.deficit[0]).toBeNaN();
+  });
+
+  it('bad options are refused with the option named', () => {
+    expect(() => analyseWake([], syntheticCampaign(), {}, { minCells: 3 })).toThrow(/wake\.minCells.*got 3/);
+  });
+});

@@ -11,7 +11,7 @@ import type { FieldResult } from '../retrieval/types.ts';
 import type { Campaign } from '../campaign/types.ts';
 import type { Series } from '../io/series.ts';
 import type { WakeAnalysis } from './types.ts';
-import { defaultWakeOptions, type WakeOptions } from './options.ts';
+import { resolveWakeOptions, type WakeOptions } from './options.ts';
 import { analysePlaneWindow, type InflowSpec } from './planeWindow.ts';
 import { downstreamCurves } from './downstream.ts';
 import { binSteering } from './steering.ts';
@@ -27,7 +27,7 @@ export interface WakeInputs {
 }
 
 export function analyseWake(fields: FieldResult[], campaign: Campaign, inputs: WakeInputs, options: Partial<WakeOptions> = {}): WakeAnalysis {
-  const o: WakeOptions = { ...defaultWakeOptions, ...options };
+  const o: WakeOptions = resolveWakeOptions(options);
   const t = campaign.turbine;
   const D = t.rotorDiameter_m, H = t.hubHeight_m;
   const inflow = campaign.inflow as InflowSpec;

@@ -2,8 +2,9 @@
  * Options of the wake analysis, with units and defaults. Thresholds marked "common practice" are engineering
  * choices, not published values; they are stated in the output notes.
  */
+import { OptionError } from '../errors.ts';
 
-/** von Karman constant used by the log law (Hogstrom 1996 and common practice: 0.40). */
+/** von Karman constant used by the log law: 0.40 (Hogstrom 1996, Boundary-Layer Meteorol. 78 [from memory]). */
 export const KAPPA = 0.4;
 
 export interface WakeOptions {
@@ -13,7 +14,7 @@ export interface WakeOptions {
   minCells: number;
   /** Fit a constant background offset with the Gaussian. @default true */
   fitOffset: boolean;
-  /** Plane-inflow: cells closer than this to the rotor axis (|y|, metres) are excluded in the first pass; in D. @default 1 */
+  /** Plane-inflow, first pass: cells with |y| below this many rotor diameters (from the rotor axis) are excluded. @default 1 */
   inflowExclusion_D: number;
   /** Plane-inflow: after a first fit, also exclude cells within this many sigmas of the fitted centre. @default 3 */
   inflowExclusionSigmas: number;
@@ -49,3 +50,24 @@ export const defaultWakeOptions: WakeOptions = {
   topHatK: 0.075,
   jimenezBeta: 0.1,
 };
+
+/** Merges options over the defaults and checks them; throws OptionError naming the option, rule and value. */
+export function resolveWakeOptions(o: Partial<WakeOptions> = {}): WakeOptions {
+  const r: WakeOptions = { ...defaultWakeOptions, ...o };
+  const need = (name: keyof WakeOptions, ok: boolean, rule: string) => {
+    if (!ok) throw new OptionError(`wake.${name}`, `${rule} (got ${JSON.stringify(r[name])})`);
+  };
+  need('minDeficit', r.minDeficit > 0 && r.minDeficit < 1, 'must be in (0, 1)');
+  need('minCells', Number.isInteger(r.minCells) && r.minCells >= 7, 'must be an integer >= 7 (6 parameters + 1)');
+  need('inflowExclusion_D', r.inflowExclusion_D >= 0, 'must be >= 0');
+  need('inflowExclusionSigmas', r.inflowExclusionSigmas > 0, 'must be > 0');
+  need('inflowMinCellsPerRow', Number.isInteger(r.inflowMinCellsPerRow) && r.inflowMinCellsPerRow >= 1, 'must be an integer >= 1');
+  need('diskMinCoverage', r.diskMinCoverage > 0 && r.diskMinCoverage <= 1, 'must be in (0, 1]');
+  need('centroidFraction', r.centroidFraction >= 0 && r.centroidFraction < 1, 'must be in [0, 1)');
+  need('minWidthCells', r.minWidthCells >= 0, 'must be >= 0');
+  need('maxWidth_D', r.maxWidth_D > 0, 'must be > 0');
+  need('rewsSegments', Number.isInteger(r.rewsSegments) && r.rewsSegments >= 0, 'must be an integer >= 0 (0 = automatic)');
+  need('topHatK', r.topHatK > 0, 'must be > 0');
+  need('jimenezBeta', r.jimenezBeta > 0, 'must be > 0');
+  return r;
+}
