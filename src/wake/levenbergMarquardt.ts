@@ -1,6 +1,6 @@
 /**
  * Levenberg-Marquardt least squares with an analytic Jacobian and Marquardt's diagonal scaling
- * (Marquardt 1963, SIAM J. Appl. Math. 11(2), 431-441; Press et al., Numerical Recipes, 3rd ed., section 15.5.2).
+ * (Marquardt 1963, SIAM J. Appl. Math. 11(2), 431-441; Press et al., Numerical Recipes, 3rd ed., section 15.5 [from memory]).
  * Minimises SSR = sum (y_i - f(x_i; p))^2 and returns the parameter covariance (J^T J)^-1 SSR / (N - p) at the
  * solution, the same scaling scipy.optimize.curve_fit uses with absolute_sigma = False.
  *

@@ -1,10 +1,10 @@
 /**
  * Vertical wind-speed laws and their least-squares fits to (height, speed) points.
  *
- * Power law: V(z) = V_ref (z / z_ref)^alpha (IEC 61400-1 ed. 3, normal wind profile, eq. 24 [from memory]); fitted
+ * Power law: V(z) = V_ref (z / z_ref)^alpha (IEC 61400-1 ed. 3, normal wind profile [from memory]); fitted
  * linearly as ln V = ln V_ref + alpha ln(z / z_ref), weighted by the count behind each point.
  * Log law: V(z) = (u_star / kappa) ln(z / z0), kappa = 0.40 (neutral surface layer; Stull 1988, An Introduction to
- * Boundary Layer Meteorology, eq. 9.7.5c [from memory]); fitted linearly as V = b ln z + a with b = u_star / kappa,
+ * Boundary Layer Meteorology, section 9.7 [from memory]); fitted linearly as V = b ln z + a with b = u_star / kappa,
  * z0 = exp(-a / b).
  * Heights in metres above ground, speeds in m/s. Fit quality (RMSE, R^2) is in m/s on the points themselves.
  */

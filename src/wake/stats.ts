@@ -3,12 +3,12 @@
  *
  * t quantile: inverts the Student t CDF F(t; nu) = 1 - I_x(nu/2, 1/2)/2 for t > 0, x = nu/(nu + t^2), with the
  * regularised incomplete beta function I_x evaluated by its continued fraction (Press et al., Numerical Recipes,
- * 3rd ed., section 6.4, eq. 6.4.5 and 6.4.9; Abramowitz & Stegun 1964, 26.7.1).
+ * 3rd ed., section 6.4; Abramowitz & Stegun 1964, section 26.7 [from memory]). Checked against scipy.stats.t.ppf.
  */
 import type { Stat } from './types.ts';
 
 function logGamma(x: number): number {
-  // Lanczos approximation (Numerical Recipes 3rd ed., section 6.1, g = 7, n = 9 coefficients).
+  // Lanczos (1964) approximation with the widely used g = 7, 9-term coefficient set.
   const c = [0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059,
     12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7];
   if (x < 0.5) return Math.log(Math.PI / Math.sin(Math.PI * x)) - logGamma(1 - x);
