@@ -87,7 +87,7 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     ...(arrows ? { arrows } : {}),
   });
   out.push(...(await writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), {
-    plane: field.planeId, window: win, description: normalised ? 'u / u_inf with in-plane arrows, wake centre and width' : 'streamwise speed u with in-plane arrows',
+    plane: field.planeId, window: win, description: `${normalised ? 'u / u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}`,
   })));
 
   const suSvg = scalarMapSvg(withValues(field.grid, field.su), {

@@ -147,7 +147,7 @@ function accountingHtml(m: RunManifest): string {
   const per = Object.entries(m.samples.perInstrument);
   const all: [string, SampleAccount][] = [...per, ['all instruments', m.samples.total]];
   const reasons = REJECT_REASONS.filter((r) => all.some(([, a]) => (a.rejected[r] ?? 0) > 0));
-  const head = ['instrument', 'read', 'accepted', 'accepted %', ...reasons.map((r) => `rejected: ${r.replace(/_/g, ' ')}`), 'balances'];
+  const head = ['instrument', 'read', 'accepted', 'accepted %', ...reasons.map((r) => `rejected: ${r.replace(/_/g, ' ').replace(/\bcnr\b/, 'CNR')}`), 'balances'];
   const rows = all.map(([id, a], i) => {
     const ok = accountBalances(a);
     const cells = [

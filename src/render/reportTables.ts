@@ -13,12 +13,15 @@ export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downst
   const tables: ReportTable[] = [];
   tables.push({
     title: 'Per plane and window',
-    columns: ['plane', 'window', 'x/D', 'flag', 'yaw offset (deg)', 'hub inflow (m/s)', 'max deficit', 'y_c (m)', 'z_c (m)', '\u03c3y (m)', '\u03c3z (m)', 'disk y (m)', 'centres apart (D)', 'reason'],
-    rows: a.rows.map((r) => [
-      r.planeId, r.window.index, r.x_D, r.flag, r.yawOffset_deg, r.inflow.hubSpeed_ms, r.maxDeficit,
-      r.centre.y_m, r.centre.z_m, r.gaussian?.params.sigmaY_m ?? NaN, r.gaussian?.params.sigmaZ_m ?? NaN,
-      r.diskCentre.y_m, r.disagreement_D, r.reason,
-    ]),
+    columns: ['plane', 'window', 'x/D', 'flag', 'yaw offset (deg)', 'hub inflow (m/s)', 'max deficit', 'centre deficit', 'y_c (m)', 'z_c (m)', '\u03c3y (m)', '\u03c3z (m)', 'disk y (m)', 'centres apart (D)', 'reason'],
+    rows: a.rows.map((r) => {
+      const fit = r.centre.ok && r.gaussian ? r.gaussian.params : undefined;
+      return [
+        r.planeId, r.window.index, r.x_D, r.flag, r.yawOffset_deg, r.inflow.hubSpeed_ms, r.maxDeficit, r.centreDeficit,
+        r.centre.ok ? r.centre.y_m : NaN, r.centre.ok ? r.centre.z_m : NaN, fit?.sigmaY_m ?? NaN, fit?.sigmaZ_m ?? NaN,
+        r.diskCentre.ok ? r.diskCentre.y_m : NaN, r.disagreement_D, r.reason,
+      ];
+    }),
     ...(links.rows ? { link: links.rows } : {}),
   });
   if (a.downstream.points.length) {

@@ -288,7 +288,9 @@ function cellRun(X: (v: number) => number, Z: (v: number) => number, y0: number,
   // Cells iyA..iyB-1 of row iz; y increases to the left, so the run's left edge is its largest y.
   const xL = X(y0 + (iyB - 0.5) * dy), xR = X(y0 + (iyA - 0.5) * dy);
   const yT = Z(z0 + (iz + 0.5) * dz), yB = Z(z0 + (iz - 0.5) * dz);
-  return `<rect${cls ? ` class="${cls}"` : ''} x="${n(xL)}" y="${n(yT)}" width="${n(xR - xL + 0.25)}" height="${n(yB - yT + 0.25)}" fill="${fill}"/>`;
+  // Solid cells get a thin stroke of their own colour so that anti-aliased edges leave no seams between rows.
+  const seam = fill.startsWith('url(') ? '' : ` stroke="${fill}" stroke-width="0.5"`;
+  return `<rect${cls ? ` class="${cls}"` : ''} x="${n(xL)}" y="${n(yT)}" width="${n(xR - xL + 0.25)}" height="${n(yB - yT + 0.25)}" fill="${fill}"${seam}/>`;
 }
 
 function markerShape(shape: 'cross' | 'circle' | 'diamond', x: number, y: number, s: number): string {
