@@ -80,6 +80,8 @@ describe('flags instead of silent numbers', () => {
     expect(r.reason).toMatch(/deficit/);
     expect(r.centre.ok).toBe(false);
     expect(r.centre.y_m).toBeNaN();
+    expect(r.diskCentre.ok).toBe(false); // a noise minimum is not called a wake centre
+    expect(r.centroid.ok).toBe(false);
   });
 
   it('wake leaving the plane', () => {

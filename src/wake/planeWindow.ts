@@ -85,8 +85,8 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     flag = 'horizontal_plane'; reason = 'horizontal plane: lateral track per downstream row instead of a cross-section fit';
   } else if (!inflow.ok) {
     flag = 'no_inflow'; reason = `no usable inflow (${inflow.note || 'fit failed'})`;
-  } else if (validU < o.minCells) {
-    flag = 'too_few_cells'; reason = `${validU} valid cells < ${o.minCells}`;
+  } else if (countFinite(def.deficit) < o.minCells) {
+    flag = 'too_few_cells'; reason = `${countFinite(def.deficit)} valid cells < ${o.minCells}`;
   } else if (!(maxDeficit >= o.minDeficit)) {
     flag = 'no_wake'; reason = `98th-percentile deficit ${maxDeficit.toFixed(3)} < ${o.minDeficit}`;
   } else {
@@ -123,6 +123,8 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   }
 
   const cross = f.orientation === 'cross';
+  // The shape-independent centres are computed for every cross plane but only called ok where a wake was seen.
+  const hasWake = flag !== 'no_wake' && flag !== 'too_few_cells' && flag !== 'no_inflow';
   const disk = cross && validU > 0 && inflow.ok ? minPowerDiskCentre(g, def.deficit.map((d) => 1 - d), R, o.diskMinCoverage) : { ...NO_CENTRE('min-power-disk'), atEdge: false, meanCube: NaN };
   const centroid = cross && maxDeficit > 0 ? deficitCentroid(g, def.deficit, maxDeficit, o.centroidFraction) : NO_CENTRE('deficit-centroid');
   const centre: CentreEstimate = fit && flag === 'ok'
@@ -132,7 +134,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
 
   const segments = o.rewsSegments > 0 ? o.rewsSegments : Math.min(10, Math.max(1, Math.floor(D / g.dz)));
   const axisRews = cross ? rewsOnGrid(g, f.u, 0, H, R, segments) : { rews_ms: NaN, coverage: NaN, segments };
-  const cen = centre.ok ? centre : disk.ok ? disk : null;
+  const cen = centre.ok ? centre : disk.ok && hasWake ? disk : null;
   const cenRews = cross && cen ? rewsOnGrid(g, f.u, cen.y_m, cen.z_m, R, segments) : { rews_ms: NaN, coverage: NaN, segments };
 
   const { ct } = thrustCoefficientAt(c.thrustCoefficient, inflow.hubSpeed_ms);
@@ -144,7 +146,8 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     window: f.window, direction_deg: f.direction_deg,
     windDirection_deg: yaw.windDirection_deg, nacelle_deg: yaw.nacelle_deg, yawOffset_deg: yaw.yawOffset_deg, power_kW: yaw.power_kW,
     inflow, grid: g, deficit: def.deficit, maxDeficit, validCells: validU, gaussian: fit,
-    centre, diskCentre: { method: disk.method, y_m: disk.y_m, z_m: disk.z_m, sy_m: NaN, sz_m: NaN, ok: disk.ok }, centroid,
+    centre, diskCentre: { method: disk.method, y_m: disk.y_m, z_m: disk.z_m, sy_m: NaN, sz_m: NaN, ok: disk.ok && hasWake },
+    centroid: { ...centroid, ok: centroid.ok && hasWake },
     disagreement_m: dis, disagreement_D: dis / D,
     rews: { axis_ms: axisRews.rews_ms, centre_ms: cenRews.rews_ms, axisCoverage: axisRews.coverage, centreCoverage: cenRews.coverage, segments },
     hubDeficit: cross ? sampleBilinear(g, def.deficit, 0, H) : NaN,
