@@ -25,6 +25,8 @@ export interface ScalarMapOptions {
   domain?: [number, number];
   /** Default 'sequential' (cividis); 'diverging' (PuOr) for signed quantities. */
   scheme?: 'sequential' | 'diverging';
+  /** Marks across the colour bar, e.g. a masking threshold: a dark line with a pointer, explained in the legend. */
+  colorbarMarks?: { value: number; label: string }[];
   /** Filled contour bands (default true) or flat cells. */
   contours?: boolean;
   /** Mask reason per cell (0 = valid) and the reasons' names for the legend; masked cells are drawn hatched. */
@@ -61,11 +63,11 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   const D = opts.axes.diameter_m && opts.axes.diameter_m > 0 ? opts.axes.diameter_m : undefined;
   const left = 74;
   // Figure width: the plot, colour bar and legend, but at least wide enough for a readable title block.
-  const width = Math.max(left + pw + (D ? 62 : 22) + 96 + 218 + 12, 760);
+  const width = Math.max(left + pw + (D ? 72 : 22) + 96 + 218 + 12, 760);
   const subLines = opts.subtitle ? wrap(opts.subtitle, Math.floor((width - left - 12) / 6.6)) : [];
   const top = 50 + subLines.length * 15 + (D ? 40 : 6);
   const plotR = left + pw;
-  const cbX = plotR + (D ? 62 : 22);
+  const cbX = plotR + (D ? 72 : 22);
   const legendX = cbX + 96;
   const legendW = 218;
   const X = linear(yHi, yLo, left, plotR); // y increases to the left
@@ -248,6 +250,13 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
     cb.push(`<line x1="${n(cbX + 16)}" y1="${n(y)}" x2="${n(cbX + 20)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="0.6"/>`);
     cb.push(text(cbX + 23, y, formatTick(t, cStep), { dy: 0.35, size: 10 }));
   }
+  for (const mk of opts.colorbarMarks ?? []) {
+    if (!(mk.value >= domain[0] && mk.value <= domain[1])) continue;
+    const y = C(mk.value);
+    cb.push(`<line class="cb-mark" x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="#ffffff" stroke-width="3"/><line x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="1.4"/>`);
+    cb.push(`<path d="M${n(cbX - 1)},${n(y)}L${n(cbX - 8)},${n(y - 4)}L${n(cbX - 8)},${n(y + 4)}Z" fill="${theme.ink}"/>`);
+    legend.push({ kind: 'cbmark', label: `${mk.label} ${formatNumber(mk.value, decimalsOfStep(mk.value))} (line on the colour bar)` });
+  }
   cb.push(text(cbX + 78, top + cbH / 2, opts.colorbarLabel, { anchor: 'middle', size: 11, rotate: 90 }));
   body.push(`<g class="colorbar">${cb.join('')}</g>`);
 
@@ -315,6 +324,7 @@ type LegendItem =
   | { kind: 'arrow'; length: number; label: string }
   | { kind: 'rotor'; label: string }
   | { kind: 'ellipse'; label: string }
+  | { kind: 'cbmark'; label: string }
   | { kind: 'marker'; shape: 'cross' | 'circle' | 'diamond'; label: string };
 
 function drawLegend(all: LegendItem[], x: number, y: number, w: number): { markup: string; bottom: number } {
@@ -345,6 +355,7 @@ function drawLegend(all: LegendItem[], x: number, y: number, w: number): { marku
     else if (it.kind === 'rotor') out.push(`<circle cx="${n(sx)}" cy="${n(sy)}" r="7" fill="none" stroke="${theme.ink}" stroke-width="1.1" stroke-dasharray="4 2 1.5 2"/><circle cx="${n(sx)}" cy="${n(sy)}" r="2" fill="${theme.ink}"/>`);
     else if (it.kind === 'ellipse') out.push(`<ellipse cx="${n(sx)}" cy="${n(sy)}" rx="10" ry="6" fill="none" stroke="${theme.ink}" stroke-width="1.2" stroke-dasharray="3 2"/>`);
     else if (it.kind === 'marker') out.push(markerShape(it.shape, sx, sy, 5));
+    else if (it.kind === 'cbmark') out.push(`<path d="M${n(x + 8)},${n(sy)}L${n(x + 1)},${n(sy - 4)}L${n(x + 1)},${n(sy + 4)}Z" fill="${theme.ink}"/><line x1="${n(x + 8)}" y1="${n(sy)}" x2="${n(x + 22)}" y2="${n(sy)}" stroke="${theme.ink}" stroke-width="1.4"/>`);
     const lines = wrap(it.label, chars);
     lines.forEach((l, i) => out.push(text(x + 30, cy + 10 + i * 13, l, { size: 10.5 })));
     cy += Math.max(18, lines.length * 13 + 6);
@@ -369,6 +380,11 @@ function niceRound(v: number): number {
   const p = 10 ** Math.floor(Math.log10(v));
   const f = v / p;
   return (f < 1.5 ? 1 : f < 3.5 ? 2 : f < 7.5 ? 5 : 10) * p;
+}
+
+function decimalsOfStep(v: number): number {
+  for (let d = 0; d < 4; d++) if (Math.abs(v * 10 ** d - Math.round(v * 10 ** d)) < 1e-9) return d;
+  return 4;
 }
 
 function decimalsOf(v: number): number {
