@@ -297,3 +297,19 @@ describe('robustness', () => {
     expect(() => analyseWake([], syntheticCampaign(), {}, { minCells: 3 })).toThrow(/wake\.minCells.*got 3/);
   });
 });
+
+describe('narrow planes', () => {
+  it('a plane narrower than the exclusion band falls back to the per-row upper quantile, then the ellipse pass', () => {
+    // y = -100..100 m (|y| < 1 D everywhere): the band leaves no cells. Wake sy = 40 m, sz = 35 m at (10, 100).
+    const f = syntheticField({ grid: { ny: 11, nz: 25, y0: -100, z0: 10, dy: 20, dz: 10 }, wake: { A: 0.3, yc: 10, zc: 100, sy: 40, sz: 35 }, noise: 0.02 });
+    const r = analyseWake([f], syntheticCampaign(), {}).rows[0];
+    expect(r.flag).toBe('ok');
+    expect(r.inflow.note).toMatch(/sigma/); // the final inflow is the ellipse pass
+    // Fewer free cells, coarser grid: centre within 2 m, widths within 5 %, alpha within 0.02.
+    expect(Math.abs(r.centre.y_m - 10)).toBeLessThan(2);
+    expect(Math.abs(r.centre.z_m - 100)).toBeLessThan(2);
+    expect(Math.abs(r.gaussian!.params.sigmaY_m / 40 - 1)).toBeLessThan(0.05);
+    expect(Math.abs(r.gaussian!.params.sigmaZ_m / 35 - 1)).toBeLessThan(0.05);
+    expect(Math.abs(r.inflow.alpha - 0.2)).toBeLessThan(0.02);
+  });
+});

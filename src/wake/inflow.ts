@@ -2,9 +2,10 @@
  * The undisturbed inflow profile u_inf(z) per plane and window, from one of three sources:
  * - 'series': a reference series (time, height_m, speed_ms, direction_deg), averaged per window and height, then a
  *   law fitted (power law: the series source has no law key);
- * - 'plane': the plane's own cells outside the wake (|y| beyond inflowExclusion_D * D from the rotor axis and, on
- *   the second pass, outside inflowExclusionSigmas of the fitted wake ellipse); per height row the median u of those
- *   cells, rows then fitted robustly (one pass rejecting rows beyond 3 scaled MADs of the residuals);
+ * - 'plane': the plane's own cells outside the wake: first pass |y| beyond inflowExclusion_D * D from the rotor
+ *   axis (or, when that leaves too few rows, the per-row 80th percentile of all cells), second pass the cells outside
+ *   inflowExclusionSigmas of the wake ellipse fitted with the first; per height row the median u of those cells,
+ *   rows then fitted robustly (one pass rejecting rows beyond 3 scaled MADs of the residuals);
  * - 'fixed': speed_ms at height_m with alpha (power) or z0 (log) from the campaign.
  * Heights are rotor-frame z (above ground), speeds m/s. Laws and fits: see profileLaw.ts.
  */
@@ -14,7 +15,7 @@ import { rowsInWindow, circularMeanDeg } from '../io/series.ts';
 import type { InflowProfile } from './types.ts';
 import { evalLaw, fitLaw, type LawFit } from './profileLaw.ts';
 import { KAPPA } from './options.ts';
-import { median } from './stats.ts';
+import { median, quantile } from './stats.ts';
 
 function toProfile(source: InflowProfile['source'], fit: LawFit, zHub: number, z: number[], u: number[], c: number[], note: string, dir = NaN): InflowProfile {
   return {
@@ -55,6 +56,11 @@ export interface PlaneInflowOptions {
   ellipse?: WakeEllipse | null;
   sigmas?: number;
   minCellsPerRow: number;
+  /**
+   * Fallback first pass for planes too narrow for the band: per height row, this quantile (0..1) of all valid
+   * cells, which the wake (low speeds) does not reach while it covers less than (1 - q) of the row. Unset: off.
+   */
+  upperQuantile?: number;
 }
 
 export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowProfile {
@@ -71,7 +77,7 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
         const v = f.u[iy + jz * g.ny];
         if (!Number.isFinite(v)) continue;
         const y = g.y0 + iy * g.dy;
-        if (Math.abs(y) < o.exclusionHalfWidth_m) continue;
+        if (o.upperQuantile === undefined && Math.abs(y) < o.exclusionHalfWidth_m) continue;
         const e = o.ellipse;
         if (e && f.orientation === 'cross' && ((y - e.yc) / e.sy) ** 2 + ((zc - e.zc) / e.sz) ** 2 < k2) continue;
         if (e && f.orientation === 'horizontal' && Math.abs(y - e.yc) < Math.sqrt(k2) * e.sy) continue;
@@ -80,11 +86,15 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
     }
     if (vals.length >= o.minCellsPerRow) {
       z.push(f.orientation === 'cross' ? g.z0 + iz * g.dz : f.z_m);
-      u.push(median(vals));
+      u.push(o.upperQuantile === undefined ? median(vals) : quantile(vals, o.upperQuantile));
       c.push(vals.length);
     }
   }
-  const excl = `cells with |y| < ${o.exclusionHalfWidth_m.toFixed(1)} m` + (o.ellipse ? ` or within ${o.sigmas ?? 3} sigma of the wake centre` : '') + ' excluded';
+  const excl = o.upperQuantile !== undefined
+    ? `per-row ${Math.round(o.upperQuantile * 100)}th percentile of all cells (plane too narrow to exclude the wake band)`
+    : o.ellipse
+      ? `cells within ${o.sigmas ?? 3} sigma of the fitted wake centre excluded`
+      : `cells with |y| < ${o.exclusionHalfWidth_m.toFixed(1)} m excluded`;
   const { fit, dropped } = robustFit(o.law, z, u, c, o.hubHeight_m);
   return toProfile('plane', fit, o.hubHeight_m, z, u, c, excl + (dropped ? `; ${dropped} height rows rejected as outliers` : ''));
 }

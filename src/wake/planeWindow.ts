@@ -49,10 +49,15 @@ function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse |
     const p = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
     return { ...p, note: 'inflow series not loaded' };
   }
-  return inflowFromPlane(f, {
+  const base = {
     law: c.inflow.law, hubHeight_m: H, rotorDiameter_m: D, minCellsPerRow: c.options.inflowMinCellsPerRow,
     exclusionHalfWidth_m: ellipse ? 0 : c.options.inflowExclusion_D * D, ellipse, sigmas: c.options.inflowExclusionSigmas,
-  });
+  };
+  const p = inflowFromPlane(f, base);
+  if (p.ok || ellipse || p.heights_m.length >= 2) return p;
+  // Too narrow a plane (or edges masked): fall back to the per-row upper quantile for the first pass.
+  const q = inflowFromPlane(f, { ...base, minCellsPerRow: Math.max(3, base.minCellsPerRow), upperQuantile: 0.8 });
+  return q.ok ? q : p;
 }
 
 function countFinite(a: Float64Array): number {
