@@ -159,6 +159,9 @@ describe('wake steering bins (synthetic set)', () => {
     expect(b0.ci95_m).toBeCloseTo((4.302652729749 * Math.sqrt(19)) / Math.sqrt(3), 4);
     expect(b0.gammaMean_deg).toBeCloseTo(2 / 3, 9);
     expect(bins[3].ci95_m).toBeNaN(); // single window: no interval
+    // Deflection relative to the gamma = 0 bin (mean 1 m): bin -10 has yc mean (-26 - 16)/2 = -21 -> -22.
+    expect(bins[0].deflection_m).toBeCloseTo(-22, 5);
+    expect(bins[1].deflection_m).toBe(0);
     // Model curves carry the sign convention: positive gamma -> positive y.
     expect(bins[2].jimenez_m).toBeGreaterThan(0);
     expect(bins[0].bastankhah_m).toBeLessThan(0);

@@ -18,7 +18,7 @@
  *
  * wake/steering.csv — one row per cross plane and yaw-offset bin:
  *   plane, x_m, x_D, gamma_centre_deg, gamma_lo_deg, gamma_hi_deg, gamma_mean_deg, n, yc_m, sd_m, ci95_m, yc_D,
- *   jimenez_m, bastankhah_m.
+ *   jimenez_m, bastankhah_m, deflection_m (yc minus the plane's gamma = 0 bin mean), deflection_ci95_m.
  *
  * wake/downstream.csv — one row per cross plane (ok, near-aligned windows):
  *   plane, x_m, x_D, n, amplitude, amplitude_sd, amplitude_ci95, sigma_y_m, sigma_y_sd, sigma_z_m, sigma_z_sd,
@@ -70,9 +70,9 @@ export function wakeTableCsv(a: WakeAnalysis): string {
 }
 
 export function steeringCsv(a: WakeAnalysis): string {
-  let s = csvRow(['plane', 'x_m', 'x_D', 'gamma_centre_deg', 'gamma_lo_deg', 'gamma_hi_deg', 'gamma_mean_deg', 'n', 'yc_m', 'sd_m', 'ci95_m', 'yc_D', 'jimenez_m', 'bastankhah_m']);
+  let s = csvRow(['plane', 'x_m', 'x_D', 'gamma_centre_deg', 'gamma_lo_deg', 'gamma_hi_deg', 'gamma_mean_deg', 'n', 'yc_m', 'sd_m', 'ci95_m', 'yc_D', 'jimenez_m', 'bastankhah_m', 'deflection_m', 'deflection_ci95_m']);
   for (const b of a.steering.bins) {
-    s += csvRow([b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m]);
+    s += csvRow([b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
   }
   return s;
 }

@@ -4,7 +4,7 @@
  * y, + = left looking downstream), its sample standard deviation, count and 95 % confidence half-width
  * t_{0.975, n-1} sd / sqrt(n) (Student t), beside the deflections of Jimenez et al. (2010) and Bastankhah &
  * Porte-Agel (2016) at the bin's mean gamma (deflection.ts). Only rows whose flag is 'ok' and whose gamma is known
- * count.
+ * count. Each bin also gives its deflection relative to the plane's gamma = 0 bin (the no-yaw centre).
  */
 import type { SteeringBin, SteeringResult, WakePlaneWindow } from './types.ts';
 import { stat } from './stats.ts';
@@ -44,10 +44,16 @@ export function binSteering(rows: WakePlaneWindow[], o: SteeringOptions): Steeri
     bins.push({
       planeId: r0.planeId, x_m: r0.x_m, x_D: r0.x_m / D,
       gammaCentre_deg: k * w, gammaLo_deg: (k - 0.5) * w, gammaHi_deg: (k + 0.5) * w, gammaMean_deg: gs.mean,
-      n: ys.n, yc_m: ys.mean, sd_m: ys.sd, ci95_m: ys.ci95, yc_D: ys.mean / D,
+      n: ys.n, yc_m: ys.mean, sd_m: ys.sd, ci95_m: ys.ci95, yc_D: ys.mean / D, deflection_m: NaN, deflectionCi95_m: NaN,
       jimenez_m: jimenezDeflection(r0.x_m, D, gs.mean, o.ct, o.jimenezBeta),
       bastankhah_m: bastankhahDeflection(r0.x_m, D, gs.mean, o.ct, o.turbulenceIntensity, o.kStar),
     });
+  }
+  for (const b of bins) {
+    const zero = bins.find((z) => z.planeId === b.planeId && z.gammaCentre_deg === 0);
+    if (!zero) continue;
+    b.deflection_m = b.yc_m - zero.yc_m;
+    b.deflectionCi95_m = b === zero ? 0 : Math.hypot(b.ci95_m, zero.ci95_m);
   }
   bins.sort((a, b) => a.x_m - b.x_m || a.planeId.localeCompare(b.planeId) || a.gammaCentre_deg - b.gammaCentre_deg);
   const gmax = Math.max(30, ...bins.map((b) => Math.abs(b.gammaHi_deg)), ...bins.map((b) => Math.abs(b.gammaLo_deg)));

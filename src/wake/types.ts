@@ -274,6 +274,13 @@ export interface SteeringBin {
   sd_m: number;
   ci95_m: number;
   yc_D: number;
+  /**
+   * yc minus the mean centre of the plane's bin around gamma = 0 (the wake's position without yaw, which includes
+   * any offset not caused by yaw), metres; NaN when the plane has no such bin. Its 95 % half-width, approximate, combines both
+   * bins' intervals in quadrature.
+   */
+  deflection_m: number;
+  deflectionCi95_m: number;
   /** Model deflections at the bin's mean gamma, metres (Jimenez 2010; Bastankhah & Porte-Agel 2016). */
   jimenez_m: number;
   bastankhah_m: number;
