@@ -117,6 +117,19 @@ function slowRow(st: ReaderState, buf: Uint8Array, s: number, e: number): boolea
   return true;
 }
 
+/**
+ * The fast path declined the line [pos, nl): hand it to the careful path (kept out of fillBatch to keep the hot
+ * loop small). Returns the batch length after it.
+ */
+function carefulLine(st: ReaderState, buf: Buffer, pos: number, nl: number, n: number, line: number): number {
+  const le = nl > pos && buf[nl - 1] === 13 ? nl - 1 : nl;
+  st.batch.length = n;
+  st.line = line;
+  if (le - pos > MAX_LINE) reject(st, buf, pos, le, 'missing_field', `line longer than ${MAX_LINE} bytes`);
+  else slowRow(st, buf, pos, le);
+  return st.batch.length;
+}
+
 /** Instrument id field [s, e) against the cached id; -1 on a miss that is not a known id (slow path decides). */
 function instrumentOf(st: ReaderState, buf: Uint8Array, s: number, e: number): number {
   const len = e - s;
@@ -215,14 +228,7 @@ function fillBatch(st: ReaderState, buf: Buffer, pos: number, end: number): numb
       VR[n] = vr;
       CN[n] = cn;
       n++;
-    } else {
-      const le = nl > pos && buf[nl - 1] === 13 ? nl - 1 : nl;
-      b.length = n;
-      st.line = line;
-      if (le - pos > MAX_LINE) reject(st, buf, pos, le, 'missing_field', `line longer than ${MAX_LINE} bytes`);
-      else slowRow(st, buf, pos, le);
-      n = b.length;
-    }
+    } else n = carefulLine(st, buf, pos, nl, n, line);
     pos = nl + 1;
   }
   st.line = line;
