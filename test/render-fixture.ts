@@ -177,7 +177,7 @@ export function fixtureAnalysis(rows: WakePlaneWindow[]): WakeAnalysis {
     steering: {
       bins: gammas.map((g) => ({
         planeId: 'P5D', x_m: 600, x_D: 5, gammaCentre_deg: g, gammaLo_deg: g - 2.5, gammaHi_deg: g + 2.5, gammaMean_deg: g + 0.4, n: 6,
-        yc_m: 0.0128 * 120 * g + 3, sd_m: 6, ci95_m: 5, yc_D: (0.0128 * 120 * g + 3) / 120, jimenez_m: 0.02 * 120 * g, bastankhah_m: 0.0128 * 120 * g,
+        yc_m: 0.0128 * 120 * g + 3, sd_m: 6, ci95_m: 5, yc_D: (0.0128 * 120 * g + 3) / 120, deflection_m: 0.0128 * 120 * g, deflectionCi95_m: 7, jimenez_m: 0.02 * 120 * g, bastankhah_m: 0.0128 * 120 * g,
       })),
       curves: [{ planeId: 'P5D', x_D: 5, gamma_deg: [-25, -15, -5, 5, 15, 25], jimenez_m: [-25, -15, -5, 5, 15, 25].map((g) => 0.02 * 120 * g), bastankhah_m: [-25, -15, -5, 5, 15, 25].map((g) => 0.0128 * 120 * g) }],
       ct: 0.8, turbulenceIntensity: 0.1, note: '',
@@ -199,7 +199,7 @@ export function fixtureManifest(campaign: Campaign, outputs: OutputRecord[], ove
     campaign: { name: campaign.name, file: '/data/invented/campaign.yaml', sha256: 'ab'.repeat(32), description: campaign.description },
     startedAt: '2026-06-01T12:00:00.000Z', finishedAt: '2026-06-01T12:00:42.500Z',
     inputs: [{ file: 'data/lid-a.csv', instrument: 'lid-a', bytes: 123456, sha256: 'cd'.repeat(32) }],
-    settings: { name: campaign.name, description: campaign.description, retrieval: campaign.retrieval },
+    settings: { name: campaign.name, description: campaign.description, qc: campaign.qc, retrieval: campaign.retrieval },
     samples: { total, perInstrument: { 'lid-a': a, 'lid-b': b }, balanced: true },
     windows: [{ index: 0, start: '2026-06-01T12:00:00Z', end: '2026-06-01T12:10:00Z', start_s: 0, end_s: 600, direction_deg: 270, samples: 1600 }],
     outputs, timings_s: { read: 1.2, retrieve: 0.4, render: 2.1 }, peakRss_bytes: 200 * 2 ** 20, samplesPerSecond: 42000,

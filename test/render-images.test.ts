@@ -190,7 +190,7 @@ describe('plane images, geometry maps and summary plots from synthetic results',
   it('writes the summary plots', async () => {
     const recs = await renderSummaryPlots(fixtureAnalysis([wake]), c, dir);
     const names = recs.map((r) => r.path);
-    for (const what of ['deficit', 'width', 'centre', 'steering']) expect(names).toContain(`images/summary_${what}.png`);
+    for (const what of ['deficit', 'width', 'centre', 'steering', 'inflow']) expect(names).toContain(`images/summary_${what}.png`);
     const png = join(dir, 'images/summary_steering.png');
     expect(await distinctColours(png)).toBeGreaterThan(12); // not blank: paper, ink, series colours and anti-aliasing
   });

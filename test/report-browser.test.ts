@@ -65,8 +65,8 @@ describe.skipIf(!haveChromium)('report in headless chromium', () => {
         const im = e as unknown as Img;
         return { src: im.getAttribute('src'), w: im.naturalWidth, done: im.complete };
       }));
-      // One <img> per figure: 4 summary plots + (u_norm, su, inflow, 3 amplification maps, samples) + (u_norm, su, inflow).
-      expect(imgs.length).toBe(4 + 7 + 3);
+      // One <img> per figure: 5 summary plots (deficit, width, centre, steering, inflow) + (u_norm, su, inflow, 3 amplification maps, samples) + (u_norm, su, inflow).
+      expect(imgs.length).toBe(5 + 7 + 3);
       for (const im of imgs) {
         expect(im.done, im.src ?? '').toBe(true);
         expect(im.w, im.src ?? '').toBeGreaterThan(0);

@@ -23,6 +23,8 @@ export interface PlotSeries {
   /** SVG dash array for lines, e.g. "6 3". */
   dash?: string;
   marker?: MarkerShape;
+  /** Drawn shifted by this much along x (display only), so that series at the same x do not hide each other. */
+  xOffset?: number;
 }
 
 export interface PlotOptions {
@@ -87,7 +89,7 @@ export function linePlotSvg(o: PlotOptions): string {
     const pts: [number, number, number, number][] = [];
     for (let i = 0; i < s.x.length; i++) {
       const x = s.x[i], y = s.y[i];
-      if (Number.isFinite(x) && Number.isFinite(y)) pts.push([x, y, s.yErr ? s.yErr[i] : NaN, s.xErr ? s.xErr[i] : NaN]);
+      if (Number.isFinite(x) && Number.isFinite(y)) pts.push([x + (s.xOffset ?? 0), y, s.yErr ? s.yErr[i] : NaN, s.xErr ? s.xErr[i] : NaN]);
     }
     const g: string[] = [];
     if (s.kind !== 'points' && pts.length > 1) {

@@ -47,7 +47,7 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     wake && wake.inflow.ok ? `inflow ${formatNumber(wake.inflow.hubSpeed_ms, 1)} m/s at hub height (${wake.inflow.source}, ${wake.inflow.law} law)` : 'no inflow reference',
     `wind from ${formatNumber(field.direction_deg, 0)}\u00b0`,
     wake && Number.isFinite(wake.yawOffset_deg) ? `yaw offset ${formatNumber(wake.yawOffset_deg, 1)}\u00b0` : '',
-    wake && wake.flag !== 'ok' ? `wake: ${wake.flag.replace(/_/g, ' ')}` : '',
+    wake && wake.flag !== 'ok' && wake.flag !== 'horizontal_plane' ? `wake: ${wake.reason || wake.flag.replace(/_/g, ' ')}` : '',
   ].filter(Boolean).join(' \u00b7 ');
 
   const markers: NonNullable<ScalarMapOptions['markers']> = [];

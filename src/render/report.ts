@@ -67,8 +67,8 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
   ];
   section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
 
-  // Sample accounting.
-  section('samples', 'Samples and quality control', accountingHtml(m));
+  // Sample accounting and the quality-control settings.
+  section('samples', 'Samples and quality control', accountingHtml(m) + qcSettingsHtml(m.settings));
 
   // Windows.
   if (m.windows.length) {
@@ -165,6 +165,21 @@ function accountingHtml(m: RunManifest): string {
   return `<p>Every sample read is either accepted (used in a cell of a plane) or counted under exactly one rejection reason: read = accepted + rejected.</p>` +
     table +
     `<p class="${balanced ? 'ok' : 'bad'}">${balanced ? 'The accounting balances for every instrument.' : 'The accounting does NOT balance: see the warnings.'}</p>`;
+}
+
+/** The qc block of the settings, flattened to key = value lines (absent when the settings carry none). */
+function qcSettingsHtml(settings: unknown): string {
+  const qc = settings && typeof settings === 'object' ? (settings as Record<string, unknown>).qc : undefined;
+  if (!qc || typeof qc !== 'object') return '';
+  const items: [string, string][] = [];
+  const walk = (o: Record<string, unknown>, prefix: string) => {
+    for (const [k, v] of Object.entries(o)) {
+      if (v && typeof v === 'object' && !Array.isArray(v)) walk(v as Record<string, unknown>, `${prefix}${k}.`);
+      else items.push([`${prefix}${k}`, JSON.stringify(v)]);
+    }
+  };
+  walk(qc as Record<string, unknown>, 'qc.');
+  return `<h3>Quality-control settings</h3><dl class="facts">${items.map(([k, v]) => `<dt><code>${esc(k)}</code></dt><dd>${esc(v)}</dd>`).join('')}</dl>`;
 }
 
 function imagesHtml(images: OutputRecord[]): string {

@@ -35,8 +35,8 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
   if (pts.length) {
     const gf = ds.gaussianFit;
     const series: PlotSeries[] = [
-      { label: 'measured, deficit at the wake centre', x: xD, y: pts.map((p) => p.centreDeficit.mean), yErr: pts.map((p) => bar(p.centreDeficit)), kind: 'points', marker: 'circle', colour: theme.series[0] },
-      { label: 'measured, fitted Gaussian amplitude', x: xD, y: pts.map((p) => p.amplitude.mean), yErr: pts.map((p) => bar(p.amplitude)), kind: 'points', marker: 'square', colour: theme.series[2] },
+      { label: 'measured, deficit at the wake centre', x: xD, y: pts.map((p) => p.centreDeficit.mean), yErr: pts.map((p) => bar(p.centreDeficit)), kind: 'points', marker: 'circle', colour: theme.series[0], xOffset: -0.06 },
+      { label: 'measured, fitted Gaussian amplitude', x: xD, y: pts.map((p) => p.amplitude.mean), yErr: pts.map((p) => bar(p.amplitude)), kind: 'points', marker: 'square', colour: theme.series[2], xOffset: 0.06 },
       { label: `Gaussian model, fitted k* = ${formatNumber(gf.kStar, 4)}, \u03b5 = ${formatNumber(gf.eps, 3)}`, x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.deficit, kind: 'line', colour: theme.series[1] },
       { label: `top-hat model, k = ${formatNumber(ds.topHat.k, 3)}`, x: ds.topHatCurve.x_D, y: ds.topHatCurve.deficit, kind: 'line', dash: '6 4', colour: theme.series[4] },
     ];
@@ -68,13 +68,13 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
         xLabel: 'downstream distance x / D',
         yLabel: 'width / D (\u2013)',
         series: [
-          { label: '\u03c3y / D (lateral)', x: xD, y: pts.map((p) => p.sigmaY_m.mean / D), yErr: pts.map((p) => bar(p.sigmaY_m) / D), kind: 'points', marker: 'triangle', colour: theme.series[0] },
-          { label: '\u03c3z / D (vertical)', x: xD, y: pts.map((p) => p.sigmaZ_m.mean / D), yErr: pts.map((p) => bar(p.sigmaZ_m) / D), kind: 'points', marker: 'diamond', colour: theme.series[2] },
+          { label: '\u03c3y / D (lateral)', x: xD, y: pts.map((p) => p.sigmaY_m.mean / D), yErr: pts.map((p) => bar(p.sigmaY_m) / D), kind: 'points', marker: 'triangle', colour: theme.series[0], xOffset: -0.1 },
+          { label: '\u03c3z / D (vertical)', x: xD, y: pts.map((p) => p.sigmaZ_m.mean / D), yErr: pts.map((p) => bar(p.sigmaZ_m) / D), kind: 'points', marker: 'diamond', colour: theme.series[2], xOffset: 0.1 },
           { label: '\u221a(\u03c3y \u03c3z) / D', x: xD, y: pts.map((p) => p.sigma_D.mean), yErr: pts.map((p) => bar(p.sigma_D)), kind: 'points', marker: 'circle', colour: theme.series[3] },
           { label: 'linear fit of \u221a(\u03c3y \u03c3z) / D', x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.width_D, kind: 'line', colour: theme.series[1] },
         ],
         yIncludeZero: true,
-        notes: [barNote, `Fit: ${gf.ok ? 'ok' : 'not usable'}${gf.note ? `, ${gf.note}` : ''}; RMSE ${formatNumber(gf.rmse, 4)}. Linear growth as in Bastankhah & Port\u00e9-Agel (2014).`],
+        notes: [barNote, 'Points at the same distance are drawn slightly apart.', `Fit: ${gf.ok ? 'ok' : 'not usable'}${gf.note ? `, ${gf.note}` : ''}; RMSE ${formatNumber(gf.rmse, 4)}. Linear growth as in Bastankhah & Port\u00e9-Agel (2014).`],
       }),
     });
 
@@ -97,15 +97,64 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
     });
   }
 
+  // Inflow profiles: the plane with the most usable profiles, up to six windows, measured points and fitted laws.
+  const withProfile = a.rows.filter((r) => r.inflow.ok && r.inflow.heights_m.length > 0);
+  if (withProfile.length) {
+    const byPlane = new Map<string, typeof withProfile>();
+    for (const r of withProfile) byPlane.set(r.planeId, [...(byPlane.get(r.planeId) ?? []), r]);
+    const [pid, rows] = [...byPlane].sort((p, q) => q[1].length - p[1].length)[0];
+    const shown = rows.slice(0, 6);
+    const series: PlotSeries[] = [];
+    shown.forEach((r, k) => {
+      const p = r.inflow;
+      const colour = theme.series[k % theme.series.length];
+      const zs: number[] = [], vs: number[] = [];
+      const z0 = Math.max(1, Math.min(...p.heights_m) * 0.9), z1 = Math.max(...p.heights_m) * 1.05;
+      for (let j = 0; j <= 40; j++) {
+        const z = z0 + ((z1 - z0) * j) / 40;
+        zs.push(z);
+        vs.push(p.law === 'power' ? p.uRef_ms * (z / p.zRef_m) ** p.alpha : (p.uStar_ms / 0.4) * Math.log(z / p.z0_m));
+      }
+      const law = p.law === 'power' ? `\u03b1 = ${formatNumber(p.alpha, 3)}` : `u* = ${formatNumber(p.uStar_ms, 3)} m/s, z0 = ${formatNumber(p.z0_m, 3)} m`;
+      series.push({ label: `window ${r.window.index}: ${formatNumber(p.hubSpeed_ms, 1)} m/s at hub, ${law}`, x: p.speeds_ms, y: p.heights_m, kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4] });
+      series.push({ label: `window ${r.window.index}, fitted ${p.law} law`, x: vs, y: zs, kind: 'line', colour });
+    });
+    figs.push({
+      what: 'inflow',
+      description: 'inflow profiles and fitted laws',
+      svg: linePlotSvg({
+        title: 'Inflow profiles',
+        subtitle: `${shown[0].inflow.source === 'plane' ? `from the undisturbed cells of plane ${pid}` : `from the ${shown[0].inflow.source} reference`} \u00b7 ${shown.length} of ${rows.length} windows shown`,
+        xLabel: 'horizontal wind speed (m/s)',
+        yLabel: 'height above ground (m)',
+        series,
+        plotWidth: 400,
+        plotHeight: 340,
+        notes: ['Power law as in the normal wind profile of IEC 61400-1; log law with von K\u00e1rm\u00e1n constant 0.40.'],
+      }),
+    });
+  }
+
   const st = a.steering;
   if (st.bins.length) {
     const planes = [...new Set(st.bins.map((b) => b.planeId))];
     const series: PlotSeries[] = [];
+    let anyAbsolute = false;
     planes.forEach((pid, k) => {
       const bins = st.bins.filter((b) => b.planeId === pid).sort((p, q) => p.gammaMean_deg - q.gammaMean_deg);
       const colour = theme.series[k % theme.series.length];
       const x_D = bins[0].x_D;
-      series.push({ label: `${pid} (x = ${formatNumber(x_D, 1)} D), measured`, x: bins.map((b) => b.gammaMean_deg), y: bins.map((b) => b.yc_m / D), yErr: bins.map((b) => (Number.isFinite(b.ci95_m) ? b.ci95_m : b.sd_m) / D), kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4] });
+      // The models give the deflection caused by yaw: plot the centre relative to the plane's gamma = 0 bin when
+      // there is one (so an offset present without yaw does not count as deflection), else the centre itself.
+      const relative = bins.some((b) => Number.isFinite(b.deflection_m));
+      anyAbsolute ||= !relative;
+      series.push({
+        label: `${pid} (x = ${formatNumber(x_D, 1)} D), measured${relative ? '' : ' centre (no \u03b3 = 0 bin)'}`,
+        x: bins.map((b) => b.gammaMean_deg),
+        y: bins.map((b) => (relative ? b.deflection_m : b.yc_m) / D),
+        yErr: bins.map((b) => (relative ? b.deflectionCi95_m : Number.isFinite(b.ci95_m) ? b.ci95_m : b.sd_m) / D),
+        kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4],
+      });
       const c = st.curves.find((cv) => cv.planeId === pid);
       if (c) {
         series.push({ label: `${pid}, Bastankhah & Port\u00e9-Agel (2016)`, x: c.gamma_deg, y: c.bastankhah_m.map((v) => v / D), kind: 'line', colour });
@@ -119,11 +168,13 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
         title: 'Wake deflection against yaw offset',
         subtitle: `Ct = ${formatNumber(st.ct, 2)} \u00b7 turbulence intensity ${formatNumber(st.turbulenceIntensity, 2)} \u00b7 yaw offset positive = nacelle turned clockwise seen from above`,
         xLabel: 'yaw offset \u03b3 (degrees)',
-        yLabel: 'lateral wake centre y_c / D (+ left)',
+        yLabel: anyAbsolute ? 'lateral wake centre y_c / D (+ left)' : 'deflection \u0394y_c / D (+ left)',
         series,
         yReference: 0,
         notes: [
-          'Error bars: 95 % confidence interval of the bin mean (standard deviation where the bin has one window).',
+          anyAbsolute
+            ? 'Planes without a \u03b3 = 0 bin show the bin-mean centre itself. Error bars: 95 % confidence interval of the bin mean.'
+            : 'Deflection: bin-mean wake centre minus the mean centre of the \u03b3 = 0 bin of the same plane. Error bars: 95 % confidence interval (both bins combined).',
           'Models: Jim\u00e9nez, Crespo & Migoya (2010), Wind Energy 13(6); Bastankhah & Port\u00e9-Agel (2016), J. Fluid Mech. 806.',
           st.note,
         ].filter(Boolean),
