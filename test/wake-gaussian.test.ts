@@ -65,6 +65,26 @@ describe('2D Gaussian fit against scipy.optimize.curve_fit (REFERENCES.md sectio
     ours.forEach((v, k) => expect(Math.abs(v / analytic[k] - 1)).toBeLessThan(1e-7));
   });
 
+  it('weighted (sigma_ij = 0.01 (1 + 3 ((i + 2j) mod 3))): values and standard errors match curve_fit(sigma=...)', () => {
+    const pts = field(true);
+    const sigma = pts.y.map((_, k) => { const i = Math.floor(k / 31), j = k % 31; return 0.01 * (1 + 3 * ((i + 2 * j) % 3)); });
+    const fit = fitGaussian2D(pts, { p0: [0.3, 0, 80, 30, 30], sigma });
+    // scipy: params 0.40000151 12.00316787 94.99903537 35.00151851 27.99821011
+    //        stderr (analytic Jacobian) 0.0022170039 0.1935420843 0.1551415838 0.1935423255 0.1569041090
+    //        chi2 917.42662739
+    // The weighted and unweighted optima differ by ~2.5e-6 m in y0, so positions are compared to 5e-7 m (both
+    // solvers converge far tighter) and the standard errors (which differ by 5e-5 relative) to 1e-7 relative.
+    const p = fit.params, e = fit.stderr;
+    expect(Math.abs(p.amplitude - 0.40000151)).toBeLessThan(1e-8);
+    expect(Math.abs(p.yc_m - 12.00316787)).toBeLessThan(5e-7);
+    expect(Math.abs(p.zc_m - 94.99903537)).toBeLessThan(5e-7);
+    expect(Math.abs(p.sigmaY_m - 35.00151851)).toBeLessThan(5e-7);
+    expect(Math.abs(p.sigmaZ_m - 27.99821011)).toBeLessThan(5e-7);
+    const analytic = [0.0022170039, 0.1935420843, 0.1551415838, 0.1935423255, 0.156904109];
+    [e.amplitude, e.yc_m, e.zc_m, e.sigmaY_m, e.sigmaZ_m].forEach((v, k) => expect(Math.abs(v / analytic[k] - 1)).toBeLessThan(1e-7));
+    expect(Math.abs(fit.ssr / 917.42662739 - 1)).toBeLessThan(1e-8);
+  });
+
   it('noise-free field returns the true values (REFERENCES.md section 7)', () => {
     const fit = fitGaussian2D(field(false));
     // Default (moment-based) start; an exact model has SSR -> 0, so the parameters are exact to rounding: 1e-8.

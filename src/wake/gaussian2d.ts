@@ -18,6 +18,11 @@ export interface GaussianPoints {
 export interface Gaussian2DOptions {
   /** Fit a constant background c. @default false */
   fitOffset?: boolean;
+  /**
+   * Per-point standard uncertainties of d: weighted least squares with weights 1/sigma (as curve_fit's sigma with
+   * absolute_sigma = False: the covariance is still scaled by the weighted SSR/(N - p)). Default: unweighted.
+   */
+  sigma?: ArrayLike<number>;
   /** Initial [A, yc, zc, sy, sz(, c)]; default from moments of the positive deficit. */
   p0?: number[];
   maxIterations?: number;
@@ -57,6 +62,7 @@ export function fitGaussian2D(pts: GaussianPoints, options: Gaussian2DOptions = 
     {
       n,
       y: pts.d,
+      weight: options.sigma ? Float64Array.from({ length: n }, (_, i) => 1 / options.sigma![i]) : undefined,
       model: (p, i, g) => {
         const dy = pts.y[i] - p[1], dz = pts.z[i] - p[2];
         const e = Math.exp(-0.5 * ((dy * dy) / (p[3] * p[3]) + (dz * dz) / (p[4] * p[4])));
@@ -75,8 +81,11 @@ export function fitGaussian2D(pts: GaussianPoints, options: Gaussian2DOptions = 
   const p = res.params;
   let mean = 0;
   for (let i = 0; i < n; i++) mean += pts.d[i] / n;
-  let sst = 0;
-  for (let i = 0; i < n; i++) sst += (pts.d[i] - mean) ** 2;
+  let sst = 0, ssrU = 0;
+  for (let i = 0; i < n; i++) {
+    sst += (pts.d[i] - mean) ** 2;
+    ssrU += (pts.d[i] - gaussian2d(p, pts.y[i], pts.z[i])) ** 2;
+  }
   const toParams = (v: number[], isErr: boolean): Gaussian2DParams => ({
     amplitude: v[0], yc_m: v[1], zc_m: v[2],
     sigmaY_m: isErr ? v[3] : Math.abs(v[3]), sigmaZ_m: isErr ? v[4] : Math.abs(v[4]),
@@ -90,8 +99,9 @@ export function fitGaussian2D(pts: GaussianPoints, options: Gaussian2DOptions = 
     n,
     dof: n - m,
     ssr: res.ssr,
-    rmse: Math.sqrt(res.ssr / n),
-    r2: sst > 0 ? 1 - res.ssr / sst : NaN,
+    // RMSE and R^2 always on the unweighted residuals (deficit units), so weighted and unweighted fits compare.
+    rmse: Math.sqrt(ssrU / n),
+    r2: sst > 0 ? 1 - ssrU / sst : NaN,
     iterations: res.iterations,
     converged: res.converged,
   };

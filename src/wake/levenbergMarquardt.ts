@@ -1,8 +1,9 @@
 /**
  * Levenberg-Marquardt least squares with an analytic Jacobian and Marquardt's diagonal scaling
  * (Marquardt 1963, SIAM J. Appl. Math. 11(2), 431-441; Press et al., Numerical Recipes, 3rd ed., section 15.5 [from memory]).
- * Minimises SSR = sum (y_i - f(x_i; p))^2 and returns the parameter covariance (J^T J)^-1 SSR / (N - p) at the
- * solution, the same scaling scipy.optimize.curve_fit uses with absolute_sigma = False.
+ * Minimises SSR = sum (w_i (y_i - f(x_i; p)))^2 (w_i = 1 by default) and returns the parameter covariance
+ * (J_w^T J_w)^-1 SSR / (N - p) at the solution (J_w the weighted Jacobian), the same scaling
+ * scipy.optimize.curve_fit uses with sigma = 1/w and absolute_sigma = False.
  *
  * Written here rather than taken from ml-levenberg-marquardt because that library stops only on an absolute SSR
  * threshold or the iteration cap (no convergence test to report) and damps without per-parameter scaling, which
@@ -19,6 +20,8 @@ export interface LmProblem {
    * Model value at point i for parameters p; writes the partial derivatives df/dp_k into grad (length p).
    */
   model: (p: number[], i: number, grad: number[]) => number;
+  /** Optional weights w_i = 1 / sigma_i: minimises sum (w_i (y_i - f_i))^2. */
+  weight?: ArrayLike<number>;
 }
 
 export interface LmOptions {
@@ -46,8 +49,13 @@ function ssrAndNormal(prob: LmProblem, p: number[], jtj: number[][] | null, jtr:
   if (jtj) for (const row of jtj) row.fill(0);
   if (jtr) jtr.fill(0);
   let ssr = 0;
+  const wt = prob.weight;
   for (let i = 0; i < prob.n; i++) {
-    const r = prob.y[i] - prob.model(p, i, g);
+    let r = prob.y[i] - prob.model(p, i, g);
+    if (wt) {
+      r *= wt[i];
+      for (let a = 0; a < m; a++) g[a] *= wt[i];
+    }
     ssr += r * r;
     if (jtj && jtr) {
       for (let a = 0; a < m; a++) {

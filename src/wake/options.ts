@@ -14,6 +14,11 @@ export interface WakeOptions {
   minCells: number;
   /** Fit a constant background offset with the Gaussian. @default true */
   fitOffset: boolean;
+  /**
+   * Weight the Gaussian fit by the cells' deficit uncertainty su / u_inf (cells without one get the median).
+   * Off by default: per-cell uncertainties from few samples can be tiny by chance and then dominate. @default false
+   */
+  weightedFit: boolean;
   /** Plane-inflow, first pass: cells with |y| below this many rotor diameters (from the rotor axis) are excluded. @default 1 */
   inflowExclusion_D: number;
   /** Plane-inflow: after a first fit, also exclude cells within this many sigmas of the fitted centre. @default 3 */
@@ -39,6 +44,7 @@ export const defaultWakeOptions: WakeOptions = {
   minDeficit: 0.05,
   minCells: 30,
   fitOffset: true,
+  weightedFit: false,
   inflowExclusion_D: 1,
   inflowExclusionSigmas: 3,
   inflowMinCellsPerRow: 2,

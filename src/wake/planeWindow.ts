@@ -2,6 +2,8 @@
  * Wake analysis of one plane and window: inflow, deficit, Gaussian fit and its flags, the shape-independent centres,
  * rotor-equivalent speeds, hub and centreline deficits, momentum deficit and the cuts through the centre.
  *
+ * The Gaussian fit is unweighted unless options.weightedFit (then weights 1/(su/u_inf)).
+ *
  * Flags, in the order tested (the first that applies wins; a flagged row keeps whatever was computed):
  * no_inflow (no usable inflow profile) -> too_few_cells (valid cells < minCells) -> no_wake (98th-percentile deficit
  * < minDeficit, or fitted amplitude < minDeficit) -> off_edge (fitted centre outside the plane or within one cell of
@@ -22,7 +24,7 @@ import { horizontalCut, sampleBilinear, verticalCut } from './profiles.ts';
 import { horizontalTrack } from './horizontalTrack.ts';
 import { thrustCoefficientAt } from './thrust.ts';
 import { windowYaw } from './yawOffset.ts';
-import { quantile } from './stats.ts';
+import { median, quantile } from './stats.ts';
 
 export type InflowSpec =
   | { kind: 'plane'; law: 'power' | 'log' }
@@ -77,13 +79,19 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   let fit: Gaussian2DFit | null = null;
   let maxDeficit = quantile(def.deficit, 0.98);
 
-  const points = (d: Float64Array) => {
-    const y: number[] = [], z: number[] = [], v: number[] = [];
+  const points = (d: Float64Array, sd: Float64Array) => {
+    const y: number[] = [], z: number[] = [], v: number[] = [], s: number[] = [];
     for (let k = 0; k < d.length; k++) if (Number.isFinite(d[k])) {
       const iy = k % g.ny, iz = (k - iy) / g.ny;
-      y.push(g.y0 + iy * g.dy); z.push(g.z0 + iz * g.dz); v.push(d[k]);
+      y.push(g.y0 + iy * g.dy); z.push(g.z0 + iz * g.dz); v.push(d[k]); s.push(sd[k]);
     }
-    return { y, z, d: v };
+    const med = median(s.filter((x) => x > 0));
+    const sigma = o.weightedFit && med > 0 ? s.map((x) => (x > 0 && Number.isFinite(x) ? x : med)) : undefined;
+    return { pts: { y, z, d: v }, sigma };
+  };
+  const fitDeficit = (p0?: number[]) => {
+    const { pts, sigma } = points(def.deficit, def.sdeficit);
+    return fitGaussian2D(pts, { fitOffset: o.fitOffset, sigma, p0 });
   };
 
   if (f.orientation === 'horizontal') {
@@ -95,7 +103,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   } else if (!(maxDeficit >= o.minDeficit)) {
     flag = 'no_wake'; reason = `98th-percentile deficit ${maxDeficit.toFixed(3)} < ${o.minDeficit}`;
   } else {
-    fit = fitGaussian2D(points(def.deficit), { fitOffset: o.fitOffset });
+    fit = fitDeficit();
     const p = fit.params;
     const sane = fit.converged && p.sigmaY_m > 0 && p.sigmaZ_m > 0 && p.yc_m > yMin && p.yc_m < yMax && p.zc_m > zMin && p.zc_m < zMax;
     if (c.inflow.kind === 'plane' && sane) {
@@ -107,7 +115,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
         def = deficitField(f, inflow);
         maxDeficit = quantile(def.deficit, 0.98);
         const start = [p.amplitude, p.yc_m, p.zc_m, p.sigmaY_m, p.sigmaZ_m, ...(o.fitOffset ? [p.offset] : [])];
-        fit = fitGaussian2D(points(def.deficit), { fitOffset: o.fitOffset, p0: start });
+        fit = fitDeficit(start);
       }
     }
     const q = fit.params;

@@ -67,6 +67,7 @@ export interface Gaussian2DFit {
   /** Cells used (N) and degrees of freedom N - p. */
   n: number;
   dof: number;
+  /** Sum of squared (weighted, when weighted) residuals minimised by the fit. */
   ssr: number;
   rmse: number;
   r2: number;

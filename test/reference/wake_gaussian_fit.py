@@ -58,3 +58,15 @@ print("5-parameter stderr, analytic Jacobian ", " ".join(f"{v:.10f}" for v in np
 Ja6 = np.hstack([jac5(X, *p6[:5]), np.ones((len(f6), 1))])
 cova6 = np.linalg.inv(Ja6.T @ Ja6) * ssr6 / (len(f6) - 6)
 print("6-parameter stderr, analytic Jacobian ", " ".join(f"{v:.10f}" for v in np.sqrt(np.diag(cova6))))
+
+# Weighted fit: sigma_ij = 0.01 (1 + 3 ((i + 2 j) mod 3)), absolute_sigma=False (covariance scaled by chi2/(N - 5)).
+S = 0.01 * (1 + 3 * ((I + 2 * J) % 3))
+pw, covw = curve_fit(g5, X, f, p0=(0.3, 0, 80, 30, 30), sigma=S.ravel())
+chi2 = float(np.sum(((f - g5(X, *pw)) / S.ravel()) ** 2))
+print("weighted 5-parameter fit")
+print("params ", " ".join(f"{v:.8f}" for v in pw))
+print("stderr ", " ".join(f"{v:.8f}" for v in np.sqrt(np.diag(covw))))
+Jw = jac5(X, *pw) / S.ravel()[:, None]
+covwa = np.linalg.inv(Jw.T @ Jw) * chi2 / (len(f) - 5)
+print("stderr, analytic Jacobian ", " ".join(f"{v:.10f}" for v in np.sqrt(np.diag(covwa))))
+print(f"chi2 {chi2:.8f}")
