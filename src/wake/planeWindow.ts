@@ -5,7 +5,8 @@
  * The Gaussian fit is unweighted unless options.weightedFit (then weights 1/(su/u_inf)).
  *
  * Flags, in the order tested (the first that applies wins; a flagged row keeps whatever was computed):
- * no_inflow (no usable inflow profile) -> too_few_cells (valid cells < minCells) -> no_wake (98th-percentile deficit
+ * too_few_cells (valid u cells < minCells) -> no_inflow (no usable inflow profile) -> too_few_cells (cells with a
+ * deficit < minCells) -> no_wake (98th-percentile deficit
  * < minDeficit, or fitted amplitude < minDeficit) -> off_edge (fitted centre outside the plane or within one cell of
  * its edge) -> not_converged -> absurd_width (sigma < minWidthCells cells or > maxWidth_D D).
  */
@@ -96,6 +97,8 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
 
   if (f.orientation === 'horizontal') {
     flag = 'horizontal_plane'; reason = 'horizontal plane: lateral track per downstream row instead of a cross-section fit';
+  } else if (validU < o.minCells) {
+    flag = 'too_few_cells'; reason = `${validU} valid cells < ${o.minCells}`;
   } else if (!inflow.ok) {
     flag = 'no_inflow'; reason = `no usable inflow (${inflow.note || 'fit failed'})`;
   } else if (countFinite(def.deficit) < o.minCells) {
