@@ -9,6 +9,8 @@ import { scalarMapSvg } from '../src/render/scalarMap.ts';
 import { writeSvgAndPng } from '../src/render/write.ts';
 import { fixtureAnalysis, fixtureCampaign, fixtureField, fixtureWake } from './render-fixture.ts';
 
+/** Screen density for figures whose pixel size is not under test (keeps the suite fast). */
+const LOW = { density: 96 };
 const dir = mkdtempSync(join(tmpdir(), 'wakeplane-render-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -157,7 +159,7 @@ describe('plane images, geometry maps and summary plots from synthetic results',
   const wake = fixtureWake(f);
 
   it('writes the named SVG/PNG pairs under images/ with relative paths', async () => {
-    const recs = [...(await renderPlaneImages(f, wake, c, dir)), ...(await renderGeometryMaps(f, c, dir))];
+    const recs = [...(await renderPlaneImages(f, wake, c, dir, LOW)), ...(await renderGeometryMaps(f, c, dir, LOW))];
     const names = recs.map((r) => r.path).sort();
     for (const what of ['u_norm', 'su', 'inflow', 'dopU', 'dopV', 'dopW', 'samples']) {
       expect(names).toContain(`images/P5D_w3_${what}.svg`);
@@ -172,7 +174,7 @@ describe('plane images, geometry maps and summary plots from synthetic results',
   });
 
   it('draws the wake centre, the width ellipse with sigma_y, sigma_z and the second estimator', async () => {
-    const recs = await renderPlaneImages(f, wake, c, dir);
+    const recs = await renderPlaneImages(f, wake, c, dir, LOW);
     const svgPath = join(dir, recs.find((r) => r.path.endsWith('u_norm.svg'))!.path);
     const { readFileSync } = await import('node:fs');
     const svg = readFileSync(svgPath, 'utf8');
@@ -188,10 +190,29 @@ describe('plane images, geometry maps and summary plots from synthetic results',
   });
 
   it('writes the summary plots', async () => {
-    const recs = await renderSummaryPlots(fixtureAnalysis([wake]), c, dir);
+    const recs = await renderSummaryPlots(fixtureAnalysis([wake]), c, dir, LOW);
     const names = recs.map((r) => r.path);
     for (const what of ['deficit', 'width', 'centre', 'steering', 'inflow']) expect(names).toContain(`images/summary_${what}.png`);
     const png = join(dir, 'images/summary_steering.png');
     expect(await distinctColours(png)).toBeGreaterThan(12); // not blank: paper, ink, series colours and anti-aliasing
+  });
+});
+
+describe('renderRun', () => {
+  it('matches wake rows to fields by plane and window and draws geometry maps for the first window of each plane', async () => {
+    const { renderRun } = await import('../src/render/renderRun.ts');
+    const c = fixtureCampaign();
+    const f0 = fixtureField(c.planes[0], 0), f1 = fixtureField(c.planes[0], 1);
+    const runDir = join(dir, 'run');
+    const calls: number[] = [];
+    // Only window 1 has a wake row: its image is normalised (u_norm); window 0 shows u in m/s.
+    const recs = await renderRun([f1, f0], fixtureAnalysis([fixtureWake(f1)]), c, runDir, { onField: (d) => calls.push(d), density: 96 });
+    const names = new Set(recs.map((r) => r.path));
+    expect(names.has('images/P5D_w1_u_norm.png')).toBe(true);
+    expect(names.has('images/P5D_w0_u.png')).toBe(true);
+    expect(names.has('images/P5D_w0_dopU.png')).toBe(true);
+    expect(names.has('images/P5D_w1_dopU.png')).toBe(false);
+    expect(names.has('images/summary_deficit.png')).toBe(true);
+    expect(calls).toEqual([1, 2]);
   });
 });

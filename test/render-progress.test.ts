@@ -42,6 +42,14 @@ describe('terminal progress', () => {
     expect(writes.join('')).not.toContain('\n'); // status updates never scroll the terminal
   });
 
+  it('shows a row count when no total is given (the run pipeline reports rows read)', () => {
+    const { stream, writes } = fakeStream(true);
+    const p = createProgress(stream, { now: () => 0 });
+    p.stage('reading');
+    p.file('b.csv', 48_000);
+    expect(screen(writes)).toBe('[reading]  b.csv 48.0 k rows');
+  });
+
   it('keeps notes above the status line, truncates to the terminal width and clears at the end', () => {
     const { stream, writes } = fakeStream(true, 30);
     const p = createProgress(stream, { now: () => 0 });

@@ -18,6 +18,8 @@ const CHROMIUM = '/usr/bin/chromium';
 const haveChromium = existsSync(CHROMIUM);
 if (!haveChromium) console.warn(`report-browser: skipped, ${CHROMIUM} is not installed (apt-get install chromium)`);
 
+/** Screen density: the browser shows the SVGs; the PNGs are only linked (keeps the test fast). */
+const LOW = { density: 96 };
 const runDir = mkdtempSync(join(tmpdir(), 'wakeplane-report-'));
 afterAll(() => rmSync(runDir, { recursive: true, force: true }));
 
@@ -28,10 +30,10 @@ describe.skipIf(!haveChromium)('report in headless chromium', () => {
     const horiz = fixtureField(campaign.planes[1], 0);
     const wakes = [fixtureWake(cross), fixtureWake(horiz)];
     const outputs: OutputRecord[] = [
-      ...(await renderSummaryPlots(fixtureAnalysis(wakes), campaign, runDir)),
-      ...(await renderPlaneImages(cross, wakes[0], campaign, runDir)),
-      ...(await renderGeometryMaps(cross, campaign, runDir)),
-      ...(await renderPlaneImages(horiz, wakes[1], campaign, runDir)),
+      ...(await renderSummaryPlots(fixtureAnalysis(wakes), campaign, runDir, LOW)),
+      ...(await renderPlaneImages(cross, wakes[0], campaign, runDir, LOW)),
+      ...(await renderGeometryMaps(cross, campaign, runDir, LOW)),
+      ...(await renderPlaneImages(horiz, wakes[1], campaign, runDir, LOW)),
       { kind: 'field-table', path: 'tables/P5D.csv', plane: 'P5D', description: 'retrieved field' },
     ];
     const manifest = fixtureManifest(campaign, outputs);

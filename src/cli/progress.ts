@@ -7,8 +7,9 @@
 export interface Progress {
   /** A new stage begins (e.g. "reading", "retrieving", "rendering images"). */
   stage(name: string): void;
-  /** Progress within a file (or another unit of work): done of total (bytes, rows, ...). */
-  file(path: string, done: number, total: number): void;
+  /** Progress within a file (or another unit of work): done of total (bytes, rows, ...); without a total, done is
+   * shown as a count of rows. (So a Progress also serves where only file(path, rows) is called.) */
+  file(path: string, done: number, total?: number): void;
   /** A running counter shown after the file, e.g. count('samples', 1234567). */
   count(label: string, value: number): void;
   /** A message that stays on screen above the status line. */
@@ -35,13 +36,14 @@ export function createProgress(stream: NodeJS.WriteStream, opts: ProgressOptions
   let stage = '';
   let file = '';
   let pct = NaN;
+  let rows = NaN;
   const counters = new Map<string, number>();
   let last = -Infinity;
   let shown = false;
 
   const line = (): string => {
     const parts = [stage ? `[${stage}]` : ''];
-    if (file) parts.push(`${shorten(file, 48)}${Number.isFinite(pct) ? ` ${pct.toFixed(0)} %` : ''}`);
+    if (file) parts.push(`${shorten(file, 48)}${Number.isFinite(pct) ? ` ${pct.toFixed(0)} %` : Number.isFinite(rows) ? ` ${compact(rows)} rows` : ''}`);
     for (const [k, v] of counters) parts.push(`${k} ${compact(v)}`);
     return parts.filter(Boolean).join('  ');
   };
@@ -63,13 +65,15 @@ export function createProgress(stream: NodeJS.WriteStream, opts: ProgressOptions
       stage = name;
       file = '';
       pct = NaN;
+      rows = NaN;
       counters.clear();
       draw(true);
     },
     file(path, done, total) {
       const changed = path !== file;
       file = path;
-      pct = total > 0 ? Math.min(100, (100 * done) / total) : NaN;
+      pct = total !== undefined && total > 0 ? Math.min(100, (100 * done) / total) : NaN;
+      rows = total === undefined ? done : NaN;
       draw(changed);
     },
     count(label, value) {

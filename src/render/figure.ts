@@ -5,8 +5,13 @@ import { join } from 'node:path';
 import type { OutputRecord } from '../pipeline/manifest.ts';
 import { writeSvgAndPng } from './write.ts';
 
-export async function writeFigure(svg: string, runDir: string, name: string, meta: { plane?: string; window?: number; description: string }): Promise<OutputRecord[]> {
-  const paths = await writeSvgAndPng(svg, join(runDir, 'images', name));
+/** Figure options: PNG density in dots per inch (default 300, see write.ts). */
+export interface FigureOptions {
+  density?: number;
+}
+
+export async function writeFigure(svg: string, runDir: string, name: string, meta: { plane?: string; window?: number; description: string }, opts: FigureOptions = {}): Promise<OutputRecord[]> {
+  const paths = await writeSvgAndPng(svg, join(runDir, 'images', name), opts.density ? { density: opts.density } : {});
   return paths.map((p) => ({
     kind: 'image',
     path: `images/${p.slice(p.lastIndexOf('/') + 1)}`,

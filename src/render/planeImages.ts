@@ -12,7 +12,7 @@ import { axisLabels, imageName, planePosition, windowLabel } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import { scalarMapSvg, type ScalarMapOptions } from './scalarMap.ts';
 import { formatNumber } from './ticks.ts';
-import { writeFigure } from './figure.ts';
+import { writeFigure, type FigureOptions } from './figure.ts';
 
 export { renderSummaryPlots } from './summaryPlots.ts';
 export { writeFigure } from './figure.ts';
@@ -30,7 +30,7 @@ function baseOptions(field: FieldResult, campaign: Campaign): Pick<ScalarMapOpti
  * The result images of one plane and window.
  * @param wake the wake analysis of this plane and window, if any: adds u/u_inf, centres, width ellipse, inflow plot
  */
-export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, runDir: string): Promise<OutputRecord[]> {
+export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, runDir: string, fig: FigureOptions = {}): Promise<OutputRecord[]> {
   const D = campaign.turbine.rotorDiameter_m;
   const base = baseOptions(field, campaign);
   const win = field.window.index;
@@ -88,7 +88,7 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
   });
   out.push(...(await writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), {
     plane: field.planeId, window: win, description: `${normalised ? 'u / u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}`,
-  })));
+  }, fig)));
 
   const suSvg = scalarMapSvg(withValues(field.grid, field.su), {
     title: `${field.planeId} \u00b7 window ${win} \u00b7 uncertainty of u`,
@@ -98,12 +98,12 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     contours: false,
     ...base,
   });
-  out.push(...(await writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su'), { plane: field.planeId, window: win, description: 'standard uncertainty of u' })));
+  out.push(...(await writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su'), { plane: field.planeId, window: win, description: 'standard uncertainty of u' }, fig)));
 
   if (wake && (wake.inflow.heights_m.length > 0 || wake.inflow.source === 'fixed')) {
     out.push(...(await writeFigure(inflowSvg(wake, field, campaign), runDir, imageName(field.planeId, win, 'inflow'), {
       plane: field.planeId, window: win, description: 'inflow profile and fitted law',
-    })));
+    }, fig)));
   }
   return out;
 }
@@ -138,7 +138,7 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
 }
 
 /** Geometry maps of one plane and window: error amplification of u, v and w, and accepted samples per cell. */
-export async function renderGeometryMaps(field: FieldResult, campaign: Campaign, runDir: string): Promise<OutputRecord[]> {
+export async function renderGeometryMaps(field: FieldResult, campaign: Campaign, runDir: string, fig: FigureOptions = {}): Promise<OutputRecord[]> {
   const base = baseOptions(field, campaign);
   const D = campaign.turbine.rotorDiameter_m;
   const win = field.window.index;
@@ -163,7 +163,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
       mask: { codes, names: maskReasonName },
       ...base,
     });
-    out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`), { plane: field.planeId, window: win, description: `error amplification of ${c}` })));
+    out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`), { plane: field.planeId, window: win, description: `error amplification of ${c}` }, fig)));
   }
   const counts = new Float64Array(n);
   const codes = new Uint8Array(n);
@@ -179,6 +179,6 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
     mask: { codes, names: maskReasonName },
     ...base,
   });
-  out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, 'samples'), { plane: field.planeId, window: win, description: 'accepted samples per cell' })));
+  out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, 'samples'), { plane: field.planeId, window: win, description: 'accepted samples per cell' }, fig)));
   return out;
 }

@@ -7,7 +7,7 @@ import type { Campaign } from '../campaign/types.ts';
 import type { OutputRecord } from '../pipeline/manifest.ts';
 import type { Stat, WakeAnalysis } from '../wake/types.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
-import { writeFigure } from './figure.ts';
+import { writeFigure, type FigureOptions } from './figure.ts';
 import { formatNumber } from './ticks.ts';
 import { theme } from './theme.ts';
 
@@ -16,9 +16,9 @@ function bar(s: Stat): number {
   return Number.isFinite(s.ci95) ? s.ci95 : s.sd;
 }
 
-export async function renderSummaryPlots(analysis: WakeAnalysis, campaign: Campaign, runDir: string): Promise<OutputRecord[]> {
+export async function renderSummaryPlots(analysis: WakeAnalysis, campaign: Campaign, runDir: string, fig: FigureOptions = {}): Promise<OutputRecord[]> {
   const out: OutputRecord[] = [];
-  for (const fig of summaryFigures(analysis, campaign)) out.push(...(await writeFigure(fig.svg, runDir, `summary_${fig.what}`, { description: fig.description })));
+  for (const f of summaryFigures(analysis, campaign)) out.push(...(await writeFigure(f.svg, runDir, `summary_${f.what}`, { description: f.description }, fig)));
   return out;
 }
 
