@@ -291,13 +291,27 @@ describe('column mapping and sign', () => {
 });
 
 describe('batches', () => {
-  it('are fresh arrays for every chunk (a consumer may keep them)', async () => {
-    const lines = [HEADER];
-    for (let i = 0; i < 10; i++) lines.push(`${T0 + i},L1,${i},1,100,${i},-3`);
+  const lines = [HEADER];
+  for (let i = 0; i < 10; i++) lines.push(`${T0 + i},L1,${i},1,100,${i},-3`);
+
+  it('by default are recycled only after the consumer pulled on (valid until the next pull)', async () => {
+    const f = write(lines.join('\n'));
+    const seen: Float64Array[] = [];
+    const copies: number[][] = [];
+    for await (const c of readSamples(f, { ...base, batchSize: 3 })) {
+      seen.push(c.batch.azimuth);
+      copies.push(Array.from(c.batch.azimuth.subarray(0, c.batch.length)));
+    }
+    expect(copies).toEqual([[0, 1, 2], [3, 4, 5], [6, 7, 8], [9]]); // exact integers, as written
+    expect(seen[1]).not.toBe(seen[0]); // the batch being read is never the one just handed out
+    expect(seen[2]).toBe(seen[0]); // two batches per file, alternating
+  });
+
+  it('with reuseBatches: false are fresh arrays a consumer may keep', async () => {
     const kept = [];
-    for await (const c of readSamples(write(lines.join('\n')), { ...base, batchSize: 4 })) kept.push(c.batch);
+    for await (const c of readSamples(write(lines.join('\n')), { ...base, batchSize: 4, reuseBatches: false })) kept.push(c.batch);
     expect(kept.map((b) => b.length)).toEqual([4, 4, 2]);
-    expect(kept[0].azimuth).not.toBe(kept[1].azimuth);
+    expect(kept[2].azimuth).not.toBe(kept[0].azimuth);
     expect(Array.from(kept[0].azimuth.subarray(0, 4))).toEqual([0, 1, 2, 3]); // not overwritten by later batches
   });
 });

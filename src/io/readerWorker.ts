@@ -55,6 +55,7 @@ function open(id: number, path: string, o: WireOptions, ahead: number): void {
     sign: o.sign,
     batchSize: o.batchSize,
     highWaterMark: o.highWaterMark,
+    reuseBatches: false, // the arrays are transferred to the main thread
   });
   const s: Stream = { gen, credits: ahead, pumping: false, closed: false };
   streams.set(id, s);
