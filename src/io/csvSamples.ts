@@ -1,7 +1,8 @@
 /**
- * Streaming reader of line-of-sight sample files (CSV with a header row). Reads with large chunks, parses bytes
- * straight from the Buffers (no per-line strings on the fast path), carries partial lines across chunks, and yields
- * columnar batches plus the rows it could not read. Never holds more than a chunk and a batch of a file.
+ * Streaming reader of line-of-sight sample files (CSV with a header row). Reads 1 MiB at a time into one reused
+ * buffer (lineBlocks.ts: partial lines carried to the next read), parses bytes straight from it (no per-line strings
+ * on the fast path), and yields columnar batches plus the rows it could not read. Holds one read buffer and two
+ * batches per open file, never the file.
  *
  * Columns (header names by default; `columns` renames them and sets scale/offset to SI):
  *   time                 ISO 8601 (UTC, or with an offset, converted to UTC; no zone = UTC) or Unix seconds
@@ -21,11 +22,11 @@
  * Batch lifetime: a yielded batch is valid until the consumer pulls the next chunk of the same file; after that
  * its arrays are reused (copy what must outlive it). With `reuseBatches: false` every batch is fresh and may be kept.
  */
-import { createReadStream } from 'node:fs';
 import type { ColumnMap } from '../campaign/schema.ts';
 import { InputError } from '../errors.ts';
 import type { RejectReason } from '../qc/reasons.ts';
 import type { RejectedRow, SampleBatch } from './batch.ts';
+import { LineBlocks, type LineBlock } from './lineBlocks.ts';
 import { createDayCache, parseDecimal, parseIsoBytes, parsedTo } from './fastParse.ts';
 import { R_AZ, R_CNR, R_EL, R_IGNORE, R_INST, R_RANGE, R_TIME, R_VR, resolveColumns, type ColumnLayout } from './sampleColumns.ts';
 import { parseRowSlow, wrap360, type RowContext, type RowValues } from './sampleRow.ts';
@@ -243,50 +244,40 @@ function fillBatch(st: ReaderState, buf: Buffer, pos: number, end: number): numb
   return pos;
 }
 
-/** Reads the header line of the stream; returns its layout and the bytes after it. */
-async function readHeader(
-  path: string,
-  opts: SampleReaderOptions,
-  chunks: AsyncIterator<Buffer>,
-): Promise<{ layout: ColumnLayout; rest: Buffer }> {
-  let carry: Buffer = Buffer.alloc(0);
-  for (;;) {
-    const r = await chunks.next();
-    if (r.done) {
-      if (carry.length === 0) throw new InputError(path, 1, 'empty file: no header row');
-      const layout = resolveColumns(path, dec.decode(carry).replace(/\r$/, ''), opts.columns, opts.sign, opts.owner >= 0);
-      return { layout, rest: Buffer.alloc(0) };
-    }
-    carry = carry.length ? Buffer.concat([carry, r.value]) : r.value;
-    const nl = carry.indexOf(10);
-    if (nl >= 0) {
-      const le = nl > 0 && carry[nl - 1] === 13 ? nl - 1 : nl;
-      const layout = resolveColumns(path, dec.decode(carry.subarray(0, le)), opts.columns, opts.sign, opts.owner >= 0);
-      return { layout, rest: carry.subarray(nl + 1) };
-    }
-    if (carry.length > MAX_LINE) throw new InputError(path, 1, `header line longer than ${MAX_LINE} bytes`);
+/** Reads the header line; returns its layout, the first block and where the data start in it. */
+async function readHeader(path: string, opts: SampleReaderOptions, blocks: LineBlocks): Promise<{ layout: ColumnLayout; block: LineBlock | null; pos: number }> {
+  const block = await blocks.next();
+  if (block === null) throw new InputError(path, 1, 'empty file: no header row');
+  if (block.long) throw new InputError(path, 1, `header line longer than ${MAX_LINE} bytes`);
+  const nl = block.buf.indexOf(10);
+  const le = nl > 0 && block.buf[nl - 1] === 13 ? nl - 1 : nl;
+  const layout = resolveColumns(path, dec.decode(block.buf.subarray(0, le)), opts.columns, opts.sign, opts.owner >= 0);
+  return { layout, block, pos: nl + 1 };
+}
+
+async function openBlocks(path: string, readSize: number): Promise<LineBlocks> {
+  try {
+    return await LineBlocks.open(path, readSize, MAX_LINE);
+  } catch (e) {
+    throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
   }
 }
 
-function openChunks(path: string, opts: SampleReaderOptions) {
-  const stream = createReadStream(path, { highWaterMark: opts.highWaterMark ?? 1 << 20 });
-  return { stream, it: stream[Symbol.asyncIterator]() as AsyncIterator<Buffer> };
-}
-
-function wrapOpenError(path: string, e: unknown): never {
-  if (e instanceof InputError) throw e;
-  throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
+async function nextBlock(blocks: LineBlocks, path: string, line: number): Promise<LineBlock | null> {
+  try {
+    return await blocks.next();
+  } catch (e) {
+    throw new InputError(path, line, `read failed: ${(e as Error).message}`);
+  }
 }
 
 /** Reads only the header; throws InputError(file, 1, 'missing required column "x" ...') before any data is read. */
 export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<void> {
-  const { stream, it } = openChunks(path, { ...opts, highWaterMark: Math.min(opts.highWaterMark ?? 65536, 65536) });
+  const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536));
   try {
-    await readHeader(path, opts, it);
-  } catch (e) {
-    wrapOpenError(path, e);
+    await readHeader(path, opts, blocks);
   } finally {
-    stream.destroy();
+    await blocks.close();
   }
 }
 
@@ -296,14 +287,9 @@ export async function checkHeader(path: string, opts: SampleReaderOptions): Prom
  */
 export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const batchSize = opts.batchSize ?? 65536;
-  const { stream, it } = openChunks(path, opts);
+  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20);
   try {
-    let head: { layout: ColumnLayout; rest: Buffer };
-    try {
-      head = await readHeader(path, opts, it);
-    } catch (e) {
-      wrapOpenError(path, e);
-    }
+    const head = await readHeader(path, opts, blocks);
     const st: ReaderState = {
       ctx: { layout: head.layout, instrumentIndex: opts.instrumentIndex, owner: opts.owner, days: createDayCache() },
       batch: createBatch(path, batchSize),
@@ -316,29 +302,15 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
     };
     const reuse = opts.reuseBatches ?? true;
     let spare: SampleBatch | null = null;
-    let carry: Buffer = head.rest;
-    let skipping = false; // inside an over-long line already rejected
-    for (;;) {
-      let r: IteratorResult<Buffer>;
-      try {
-        r = await it.next();
-      } catch (e) {
-        throw new InputError(path, st.line + 1, `read failed: ${(e as Error).message}`);
+    let block = head.block;
+    let pos = head.pos;
+    while (block !== null) {
+      if (block.long) {
+        st.line++;
+        reject(st, block.buf, 0, block.end, 'missing_field', `line longer than ${MAX_LINE} bytes`);
       }
-      let buf: Buffer;
-      if (r.done) {
-        if (carry.length === 0) break;
-        buf = Buffer.concat([carry, Buffer.from([10])]); // the last line may lack its line break
-      } else buf = carry.length ? Buffer.concat([carry, r.value]) : r.value;
-      let pos = 0;
-      if (skipping) {
-        const nl = buf.indexOf(10);
-        if (nl < 0) { carry = Buffer.alloc(0); continue; }
-        pos = nl + 1;
-        skipping = false;
-      }
-      const end = buf.lastIndexOf(10) + 1;
-      while (pos < end) {
+      const { buf, end } = block;
+      while (!block.long && pos < end) {
         pos = fillBatch(st, buf, pos, end);
         if (st.batch.length === batchSize) {
           const out: SampleChunk = { batch: st.batch, rejected: st.rejected };
@@ -353,17 +325,11 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
           if (reuse) spare = out.batch;
         }
       }
-      carry = buf.subarray(end);
-      if (carry.length > MAX_LINE) {
-        st.line++;
-        reject(st, carry, 0, carry.length, 'missing_field', `line longer than ${MAX_LINE} bytes`);
-        carry = Buffer.alloc(0);
-        skipping = true;
-      }
-      if (r.done) break;
+      block = await nextBlock(blocks, path, st.line + 1);
+      pos = 0;
     }
     if (st.batch.length > 0 || st.rejected.length > 0) yield { batch: st.batch, rejected: st.rejected };
   } finally {
-    stream.destroy();
+    await blocks.close();
   }
 }
