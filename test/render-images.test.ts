@@ -216,3 +216,31 @@ describe('renderRun', () => {
     expect(calls).toEqual([1, 2]);
   });
 });
+
+describe('scalar map: degenerate fields', () => {
+  it('an all-empty field draws the hatched mask, an empty colour bar saying so, and no arrow legend', async () => {
+    const values = new Float64Array(N).fill(NaN);
+    const codes = new Uint8Array(N).fill(MaskReason.tooFewInstruments);
+    const nan = new Float64Array(N).fill(NaN);
+    const svg = scalarMapSvg({ ...G, values }, { title: 'empty', colorbarLabel: 'u (m/s)', axes: { yLabel: 'y', zLabel: 'z' }, mask: { codes, names: maskReasonName }, arrows: { v: nan, w: nan } });
+    expect(svg).toContain('>no values<');
+    expect(svg).not.toContain('arrow-ref');
+    expect(svg).not.toContain('class="band"');
+    const words = [...svg.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]).join(' ');
+    expect(words).toContain(`too few instruments (${N} cells)`);
+    const meta = await sharp(Buffer.from(svg), { density: 72 }).metadata();
+    expect(meta.width).toBeGreaterThan(0); // renders
+  });
+
+  it('a constant field gets a non-empty colour range around its value', () => {
+    const svg = scalarMapSvg({ ...G, values: new Float64Array(N).fill(2) }, { title: 'flat', colorbarLabel: 'x', axes: { yLabel: 'y', zLabel: 'z' } });
+    // 2 opened by 5 % each side -> [1.9, 2.1]; colour-bar ticks: span 0.2 / 6 = 0.033 -> step 0.02 (1-2-5 rule),
+    // so the labels run 1.90, 1.92, ..., 2.10.
+    const cb = /<g class="colorbar">(.*?)<\/g>/s.exec(svg)![1];
+    const labels = [...cb.matchAll(/<text[^>]*>([0-9.]+)<\/text>/g)].map((m) => m[1]);
+    expect(labels[0]).toBe('1.90');
+    expect(labels.at(-1)).toBe('2.10');
+    expect(labels).toContain('2.00');
+    expect(labels.length).toBe(11);
+  });
+});

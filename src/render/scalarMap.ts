@@ -164,8 +164,10 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
         parts.push(arrow(x1, y1, x1 - v * k, y1 - w * k, theme.ink, 'arrow', 0.9));
       }
     }
-    overlay.push(`<g class="arrows" clip-path="url(#${ID}-plot)">${parts.join('')}</g>`);
-    legend.push({ kind: 'arrow', length: refLen, label: `${formatNumber(ref, decimalsOf(ref))} m/s ${a.label ?? 'in-plane (v, w)'}` });
+    if (parts.length) {
+      overlay.push(`<g class="arrows" clip-path="url(#${ID}-plot)">${parts.join('')}</g>`);
+      legend.push({ kind: 'arrow', length: refLen, label: `${formatNumber(ref, decimalsOf(ref))} m/s ${a.label ?? 'in-plane (v, w)'}` });
+    }
   }
 
   // 4. Rotor, ellipses, markers (white halo under dark ink so they read on every colour).
@@ -235,27 +237,32 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   if (opts.axes.note) ax.push(text(left, top + ph + 54, opts.axes.note, { size: 10, fill: theme.muted }));
   body.push(`<g class="axes">${ax.join('')}</g>`);
 
-  // 6. Colour bar.
+  // 6. Colour bar (an empty frame saying so when the field has no finite value).
   const cbH = Math.max(ph, 160);
   const C = linear(domain[0], domain[1], top + cbH, top);
   const cb: string[] = [];
-  for (let k = 0; k < colours.length; k++) {
-    const yA = C(thresholds[k + 1]), yB = C(thresholds[k]);
-    cb.push(`<rect x="${n(cbX)}" y="${n(yA)}" width="16" height="${n(yB - yA + 0.3)}" fill="${colours[k]}"/>`);
-  }
-  cb.push(`<rect x="${n(cbX)}" y="${n(top)}" width="16" height="${n(cbH)}" fill="none" stroke="${theme.ink}" stroke-width="0.6"/>`);
-  const cStep = niceStep(domain[0], domain[1], 6);
-  for (const t of niceTicks(domain[0], domain[1], 6)) {
-    const y = C(t);
-    cb.push(`<line x1="${n(cbX + 16)}" y1="${n(y)}" x2="${n(cbX + 20)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="0.6"/>`);
-    cb.push(text(cbX + 23, y, formatTick(t, cStep), { dy: 0.35, size: 10 }));
-  }
-  for (const mk of opts.colorbarMarks ?? []) {
-    if (!(mk.value >= domain[0] && mk.value <= domain[1])) continue;
-    const y = C(mk.value);
-    cb.push(`<line class="cb-mark" x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="#ffffff" stroke-width="3"/><line x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="1.4"/>`);
-    cb.push(`<path d="M${n(cbX - 1)},${n(y)}L${n(cbX - 8)},${n(y - 4)}L${n(cbX - 8)},${n(y + 4)}Z" fill="${theme.ink}"/>`);
-    legend.push({ kind: 'cbmark', label: `${mk.label} ${formatNumber(mk.value, decimalsOfStep(mk.value))} (line on the colour bar)` });
+  if (!hasFinite) {
+    cb.push(`<rect x="${n(cbX)}" y="${n(top)}" width="16" height="${n(cbH)}" fill="${theme.faint}" stroke="${theme.rule}" stroke-width="0.6"/>`);
+    cb.push(text(cbX + 8, top + cbH / 2, 'no values', { anchor: 'middle', size: 10, fill: theme.muted, rotate: 90, dy: 0.35 }));
+  } else {
+    for (let k = 0; k < colours.length; k++) {
+      const yA = C(thresholds[k + 1]), yB = C(thresholds[k]);
+      cb.push(`<rect x="${n(cbX)}" y="${n(yA)}" width="16" height="${n(yB - yA + 0.3)}" fill="${colours[k]}"/>`);
+    }
+    cb.push(`<rect x="${n(cbX)}" y="${n(top)}" width="16" height="${n(cbH)}" fill="none" stroke="${theme.ink}" stroke-width="0.6"/>`);
+    const cStep = niceStep(domain[0], domain[1], 6);
+    for (const t of niceTicks(domain[0], domain[1], 6)) {
+      const y = C(t);
+      cb.push(`<line x1="${n(cbX + 16)}" y1="${n(y)}" x2="${n(cbX + 20)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="0.6"/>`);
+      cb.push(text(cbX + 23, y, formatTick(t, cStep), { dy: 0.35, size: 10 }));
+    }
+    for (const mk of opts.colorbarMarks ?? []) {
+      if (!(mk.value >= domain[0] && mk.value <= domain[1])) continue;
+      const y = C(mk.value);
+      cb.push(`<line class="cb-mark" x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="#ffffff" stroke-width="3"/><line x1="${n(cbX - 4)}" y1="${n(y)}" x2="${n(cbX + 16)}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="1.4"/>`);
+      cb.push(`<path d="M${n(cbX - 1)},${n(y)}L${n(cbX - 8)},${n(y - 4)}L${n(cbX - 8)},${n(y + 4)}Z" fill="${theme.ink}"/>`);
+      legend.push({ kind: 'cbmark', label: `${mk.label} ${formatNumber(mk.value, decimalsOfStep(mk.value))} (line on the colour bar)` });
+    }
   }
   cb.push(text(cbX + 78, top + cbH / 2, opts.colorbarLabel, { anchor: 'middle', size: 11, rotate: 90 }));
   body.push(`<g class="colorbar">${cb.join('')}</g>`);
