@@ -14,7 +14,8 @@ import { simulateCampaign } from '../sim/simulate.ts';
 import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
 import { createRunProgress } from './runProgress.ts';
-import { planAndWrite } from '../pipeline/plan.ts';
+import { formatPlanSummary, planAndWrite } from '../pipeline/plan.ts';
+import type { PlanSummary } from '../plan/index.ts';
 
 const REPO_ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
@@ -33,10 +34,13 @@ function dataMissing(c: Campaign): boolean {
   return c.instruments.some((i) => i.files.some((f) => !existsSync(f)));
 }
 
-async function runAndReport(c: Campaign, a: Common): Promise<RunResult> {
+async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
   const progress = createRunProgress(process.stderr, { quiet: a.quiet });
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages() });
+  const plan = a.plan === true;
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan }) });
   say(a.quiet, formatRunSummary(res));
+  const summary = res.shared.plan as PlanSummary | undefined;
+  if (summary) say(a.quiet, formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
   return res;
 }
 
@@ -58,18 +62,19 @@ export function commands(y: Argv): Argv {
           const s = await simulateCampaign(c);
           say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
         }
-        const res = await runAndReport(c, a as unknown as Common);
-        const plan = await planAndWrite(c, res.runDir, { images: a.images as boolean });
-        say(a.quiet as boolean, plan.summary);
+        await runAndReport(c, { ...(a as unknown as Common), plan: true });
       },
     )
     .command(
       'run <campaign>',
       'process a campaign: read, quality-control, grid, retrieve, analyse the wake, write tables, images and report',
-      (yy) => common(yy).positional('campaign', { type: 'string', describe: 'campaign file (YAML or JSON)' }),
+      (yy) =>
+        common(yy)
+          .positional('campaign', { type: 'string', describe: 'campaign file (YAML or JSON)' })
+          .option('plan', { type: 'boolean', default: false, describe: 'also run the planner on the campaign and put its outputs in the report' }),
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
-        await runAndReport(c, a as unknown as Common);
+        await runAndReport(c, a as unknown as Common & { plan: boolean });
       },
     )
     .command(

@@ -34,7 +34,7 @@ export interface RunOptions {
   images?: boolean;
   /** Progress sink (the CLI passes a terminal progress display; silent by default). */
   progress?: RunProgress;
-  /** Extra stages run on the finished fields before the manifest is written (wake analysis, images, report). */
+  /** Stages after retrieval (wake analysis, images, planner, report), in order; see stages.ts. */
   stages?: RunStage[];
 }
 
@@ -44,24 +44,33 @@ export interface RunProgress {
   done(): void;
 }
 
-/** A stage after retrieval: receives every field and writes its outputs into the run folder. */
+/**
+ * A stage after retrieval. `field` sees each field (one plane and window) as its window finishes, in time order;
+ * `finish` runs once after the last window, before the manifest is written. Fields are not kept after their window:
+ * a stage keeps what it needs (small summaries), so memory does not grow with the grids of a long campaign.
+ */
 export interface RunStage {
   name: string;
-  run(ctx: StageContext): Promise<OutputRecord[]>;
+  field?(f: FieldResult, ctx: StageContext): Promise<OutputRecord[]>;
+  finish?(ctx: StageContext): Promise<OutputRecord[]>;
 }
 
 export interface StageContext {
   campaign: Campaign;
-  fields: FieldResult[];
   runDir: string;
   images: boolean;
+  /** Filled progressively; complete (but for finishedAt, timings and peak memory) when `finish` runs. */
   manifest: RunManifest;
+  /** Results handed from one stage to the next (each stage documents what it puts here). */
+  shared: Record<string, unknown>;
 }
 
 export interface RunResult {
   manifest: RunManifest;
   runDir: string;
   notices: string[];
+  /** What the stages handed on (for example the wake analysis and the plan summary). */
+  shared: Record<string, unknown>;
 }
 
 const silent: RunProgress = { stage() {}, file() {}, done() {} };
@@ -129,7 +138,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     const counters = new Counters(c.instruments.length);
     const outputs: OutputRecord[] = [];
     const windows: WindowRecord[] = [];
-    const fields: FieldResult[] = [];
     const assumptions = new Set<string>();
     let rejectedOut: AtomicStream | undefined;
     let rejectedCount = 0;
@@ -138,6 +146,25 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
     let retrieveTime = 0, writeTime = 0;
+    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    const manifest: RunManifest = {
+      tool: { name: 'wakeplane', version: VERSION },
+      campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
+      startedAt: new Date(Date.now() - (performance.now() - t0)).toISOString(),
+      finishedAt: '',
+      inputs: [],
+      settings: c,
+      samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
+      windows,
+      outputs,
+      timings_s: timings,
+      peakRss_bytes: 0,
+      samplesPerSecond: 0,
+      assumptions: [],
+      warnings,
+    };
+    const stages = opts.stages ?? [];
+    const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
@@ -156,7 +183,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         onProgress: (file, rows) => progress.file(file, rows),
         async onWindow(w) {
           const tr = performance.now();
-          const info = { index: w.index, start_s: w.start_s, end_s: w.end_s };
+          // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
+          const info = { index: windows.length, start_s: w.start_s, end_s: w.end_s };
           const res = retrieveWindow(w.samples, planes, info, w.direction_deg, settings);
           for (let i = 0; i < res.outliers.length; i++) {
             counters.accepted[i] -= res.outliers[i];
@@ -166,7 +194,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           const tw = performance.now();
           const ordinal = windows.length;
           windows.push({
-            index: w.index, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
+            index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
             direction_deg: w.direction_deg, samples: w.samples.length - res.outliers.reduce((a, b) => a + b, 0),
           });
           for (const f of res.fields) {
@@ -174,9 +202,14 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
             await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
             outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
             for (const a of f.assumptions) assumptions.add(`${a} (${f.planeId}, window ${ordinal})`);
-            fields.push(f);
           }
           writeTime += (performance.now() - tw) / 1000;
+          for (const stage of stages) {
+            if (!stage.field) continue;
+            const ts = performance.now();
+            for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
+            lap(stage.name, ts);
+          }
         },
       },
       counters,
@@ -193,35 +226,20 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 
     t = performance.now();
-    const inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
+    manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
     lap('hash_wait', t);
     const { perInstrument, total } = accountsFrom(c, counters);
-    const balanced = Object.values(perInstrument).every(accountBalances);
-    if (!balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
-    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
+    if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
+    manifest.assumptions = [...assumptions];
+    manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
-    const manifest: RunManifest = {
-      tool: { name: 'wakeplane', version: VERSION },
-      campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
-      startedAt: new Date(Date.now() - (performance.now() - t0)).toISOString(),
-      finishedAt: '',
-      inputs,
-      settings: c,
-      samples: { total, perInstrument, balanced },
-      windows,
-      outputs,
-      timings_s: timings,
-      peakRss_bytes: 0,
-      samplesPerSecond: 0,
-      assumptions: [...assumptions],
-      warnings,
-    };
-
-    // 4. Later stages: wake analysis, images, report.
-    for (const stage of opts.stages ?? []) {
+    // 4. Later stages: wake summaries, summary plots, planner, report.
+    for (const stage of stages) {
+      if (!stage.finish) continue;
       progress.stage(stage.name);
       t = performance.now();
-      outputs.push(...(await stage.run({ campaign: c, fields, runDir, images, manifest })));
+      outputs.push(...(await stage.finish(stageCtx)));
       lap(stage.name, t);
     }
 
@@ -229,7 +247,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
-    manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 
@@ -240,7 +257,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     }
     renameSync(runDir, finalDir);
     progress.done();
-    return { manifest, runDir: finalDir, notices };
+    return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
     rmSync(runDir, { recursive: true, force: true });

@@ -1,8 +1,135 @@
 /**
- * The stages that follow retrieval in a normal run, in order: wake analysis, images, report.
+ * The stages that follow retrieval in a normal run, in order:
+ * 1. wake: each field through the per-plane-window analysis as its window finishes (shared.wakeRows maps a field to
+ *    its row); at the end the campaign-level summaries and model fits (shared.wake).
+ * 2. images: plane images and geometry maps per field (using shared.wakeRows), summary plots at the end.
+ * 3. plan (optional, `wakeplane demo` and `run --plan`): the planner's outputs under plan/ (shared.plan).
+ * 4. report: report.html listing every output recorded before it.
  */
+import { join } from 'node:path';
+import type { Campaign } from '../campaign/types.ts';
+import { readSeries, type Series } from '../io/series.ts';
+import { planCampaign, writePlanOutputs, type PlanSummary } from '../plan/index.ts';
+import { renderGeometryMaps, renderPlaneImages } from '../render/planeImages.ts';
+import { writeReport, type ReportExtras } from '../render/report.ts';
+import { wakeReportTables } from '../render/reportTables.ts';
+import { renderSummaryPlots } from '../render/summaryPlots.ts';
+import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
+import { analysePlaneWindow } from '../wake/planeWindow.ts';
+import { writeWakeOutputs } from '../wake/output.ts';
+import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
+import type { FieldResult } from '../retrieval/types.ts';
 
-export function defaultStages(): RunStage[] {
-  return [];
+/** The series files the wake analysis uses (inflow reference, turbine yaw), loaded once. */
+export function loadWakeInputs(c: Campaign): WakeInputs {
+  const inputs: WakeInputs = {};
+  if (c.inflow.kind === 'series') {
+    inputs.inflowSeries = readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']);
+  }
+  if (c.turbine.series) {
+    inputs.turbineSeries = readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
+  }
+  return inputs;
 }
+
+/** Wake rows by field; weak, so a field and its row go once the window's stages are done. */
+function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePlaneWindow> {
+  return (shared.wakeRows ??= new WeakMap<FieldResult, WakePlaneWindow>()) as WeakMap<FieldResult, WakePlaneWindow>;
+}
+
+export function wakeStage(): RunStage {
+  let inputs: WakeInputs | undefined;
+  let ctxW: ReturnType<typeof planeWindowContext> | undefined;
+  const rows: WakePlaneWindow[] = [];
+  return {
+    name: 'wake analysis',
+    async field(f, ctx) {
+      if (!inputs) {
+        inputs = loadWakeInputs(ctx.campaign);
+        ctxW = planeWindowContext(ctx.campaign, inputs);
+      }
+      const row = analysePlaneWindow(f, ctxW!);
+      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles.
+      rows.push({ ...row, deficit: new Float64Array(0) });
+      wakeRows(ctx.shared).set(f, row);
+      return [];
+    },
+    async finish(ctx) {
+      const a = summariseWake(rows, ctx.campaign, inputs ?? {});
+      ctx.shared.wake = a;
+      return writeWakeOutputs(a, ctx.runDir);
+    },
+  };
+}
+
+export function imageStage(): RunStage {
+  return {
+    name: 'images',
+    async field(f, ctx) {
+      if (!ctx.images) return [];
+      const wake = wakeRows(ctx.shared).get(f);
+      return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
+    },
+    async finish(ctx) {
+      const a = ctx.shared.wake as WakeAnalysis | undefined;
+      return ctx.images && a ? renderSummaryPlots(a, ctx.campaign, ctx.runDir) : [];
+    },
+  };
+}
+
+export function planStage(): RunStage {
+  return {
+    name: 'planner',
+    async finish(ctx) {
+      const result = planCampaign(ctx.campaign);
+      ctx.shared.plan = result.summary;
+      return writePlanOutputs(result, ctx.campaign, ctx.runDir, { images: ctx.images });
+    },
+  };
+}
+
+const pc = (x: number) => `${(100 * x).toFixed(1)} %`;
+
+function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
+  const items: [string, string][] = [
+    ['Planned wind direction', `${s.direction_deg.toFixed(1)}\u00b0 (${s.directionSource})`],
+    ['Rotor disk resolved in u, v and w (all planes)', pc(s.rotor.all)],
+    ['Planes resolved in u, v and w', pc(s.plane.all)],
+  ];
+  if (s.layout?.best) {
+    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the rotor disk (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
+  }
+  return {
+    title: 'Campaign geometry (planner)',
+    items,
+    tables: [{
+      title: 'Resolved fraction per plane',
+      columns: ['plane', 'rotor disk u', 'v', 'w', 'all three', 'whole plane all three'],
+      rows: s.planes.map((p) => [p.planeId, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
+      link: 'plan/summary.json',
+    }],
+    notes: s.notes,
+  };
+}
+
+export function reportStage(): RunStage {
+  return {
+    name: 'report',
+    async finish(ctx) {
+      if (!ctx.images) return [];
+      const a = ctx.shared.wake as WakeAnalysis | undefined;
+      const plan = ctx.shared.plan as PlanSummary | undefined;
+      const extras: ReportExtras = {};
+      if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
+      if (plan) extras.planSummary = planExtras(plan);
+      return [await writeReport(ctx.manifest, ctx.runDir, extras)];
+    },
+  };
+}
+
+export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
+  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+}
+
+export type { Series };

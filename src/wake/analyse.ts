@@ -10,7 +10,7 @@
 import type { FieldResult } from '../retrieval/types.ts';
 import type { Campaign } from '../campaign/types.ts';
 import type { Series } from '../io/series.ts';
-import type { WakeAnalysis } from './types.ts';
+import type { WakeAnalysis, WakePlaneWindow } from './types.ts';
 import { resolveWakeOptions, type WakeOptions } from './options.ts';
 import { analysePlaneWindow, type InflowSpec } from './planeWindow.ts';
 import { downstreamCurves } from './downstream.ts';
@@ -26,18 +26,36 @@ export interface WakeInputs {
   turbineSeries?: Series;
 }
 
+/** The per-plane-window context analysePlaneWindow needs, from the campaign and the loaded series. */
+export function planeWindowContext(campaign: Campaign, inputs: WakeInputs, options: Partial<WakeOptions> = {}) {
+  const o: WakeOptions = resolveWakeOptions(options);
+  const t = campaign.turbine;
+  return {
+    rotorDiameter_m: t.rotorDiameter_m, hubHeight_m: t.hubHeight_m, thrustCoefficient: t.thrustCoefficient as number | [number, number][],
+    inflow: campaign.inflow as InflowSpec, inflowSeries: inputs.inflowSeries, turbineSeries: inputs.turbineSeries, options: o,
+  };
+}
+
 export function analyseWake(fields: FieldResult[], campaign: Campaign, inputs: WakeInputs, options: Partial<WakeOptions> = {}): WakeAnalysis {
+  const ctx = planeWindowContext(campaign, inputs, options);
+  const rows = [...fields]
+    .sort((a, b) => a.planeIndex - b.planeIndex || a.window.start_s - b.window.start_s)
+    .map((f) => analysePlaneWindow(f, ctx));
+  return summariseWake(rows, campaign, inputs, options);
+}
+
+/**
+ * The campaign-level part of the analysis from the per-plane-window rows (analysePlaneWindow): downstream curves,
+ * model fits and steering bins. A run analyses each field as its window finishes and calls this at the end, so no
+ * field is kept longer than its window.
+ */
+export function summariseWake(rowsIn: WakePlaneWindow[], campaign: Campaign, inputs: WakeInputs, options: Partial<WakeOptions> = {}): WakeAnalysis {
   const o: WakeOptions = resolveWakeOptions(options);
   const t = campaign.turbine;
   const D = t.rotorDiameter_m, H = t.hubHeight_m;
   const inflow = campaign.inflow as InflowSpec;
   const notes: string[] = [];
-  const rows = [...fields]
-    .sort((a, b) => a.planeIndex - b.planeIndex || a.window.start_s - b.window.start_s)
-    .map((f) => analysePlaneWindow(f, {
-      rotorDiameter_m: D, hubHeight_m: H, thrustCoefficient: t.thrustCoefficient as number | [number, number][],
-      inflow, inflowSeries: inputs.inflowSeries, turbineSeries: inputs.turbineSeries, options: o,
-    }));
+  const rows = [...rowsIn].sort((a, b) => a.planeIndex - b.planeIndex || a.window.start_s - b.window.start_s);
   const okRows = rows.filter((r) => r.flag === 'ok');
   const hub = median(okRows.map((r) => r.inflow.hubSpeed_ms));
   const { ct, source } = thrustCoefficientAt(t.thrustCoefficient as number | [number, number][], Number.isFinite(hub) ? hub : median(rows.map((r) => r.inflow.hubSpeed_ms)));
