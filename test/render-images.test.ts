@@ -143,13 +143,19 @@ describe('scalar map: geometry in the SVG', () => {
     const words = [...legend.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]).join(' ');
     expect(words).toContain(`no data (${none} cells)`);
     expect(words).toContain(`amplification above threshold (${amp} cells)`);
-    // Every masked cell is covered by a hatched rectangle: the run widths add up to the cell count.
-    let covered = 0;
-    for (const m of svg.matchAll(/<rect class="masked m\d+"[^>]*>/g)) {
-      const a = attrs(m[0]);
-      covered += Math.round((a.width - 0.25) / (a.height - 0.25) * (G.dz / G.dy));
-    }
-    expect(covered).toBe(none + amp);
+    // Every masked cell is covered by a hatched run "M xL,yT H xR V yB H xL Z" (0.25 units of overlap right and
+    // below): each run's width over its height, times dz/dy, is its number of cells.
+    const runs = (code: number) => {
+      const d = new RegExp(`<path class="masked m${code}" d="([^"]+)"`).exec(svg)![1];
+      let cells = 0;
+      for (const m of d.matchAll(/M([-0-9.]+),([-0-9.]+)H([-0-9.]+)V([-0-9.]+)H[-0-9.]+Z/g)) {
+        const [xL, yT, xR, yB] = m.slice(1).map(Number);
+        cells += Math.round(((xR - 0.25 - xL) / (yB - 0.25 - yT)) * (G.dz / G.dy));
+      }
+      return cells;
+    };
+    expect(runs(MaskReason.noData)).toBe(none);
+    expect(runs(MaskReason.amplification)).toBe(amp);
   });
 });
 

@@ -35,7 +35,8 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
   const base = baseOptions(field, campaign);
   const win = field.window.index;
   const when = windowLabel(field.window);
-  const out: OutputRecord[] = [];
+  // Figures are rendered concurrently (sharp runs them on its thread pool); records keep this order.
+  const jobs: Promise<OutputRecord[]>[] = [];
   const n = field.grid.ny * field.grid.nz;
 
   // Streamwise speed, normalised by the inflow profile where there is one.
@@ -86,9 +87,9 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     ellipses,
     ...(arrows ? { arrows } : {}),
   });
-  out.push(...(await writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), {
+  jobs.push(writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), {
     plane: field.planeId, window: win, description: `${normalised ? 'u / u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}`,
-  }, fig)));
+  }, fig));
 
   const suSvg = scalarMapSvg(withValues(field.grid, field.su), {
     title: `${field.planeId} \u00b7 window ${win} \u00b7 uncertainty of u`,
@@ -98,14 +99,14 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     contours: false,
     ...base,
   });
-  out.push(...(await writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su'), { plane: field.planeId, window: win, description: 'standard uncertainty of u' }, fig)));
+  jobs.push(writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su'), { plane: field.planeId, window: win, description: 'standard uncertainty of u' }, fig));
 
   if (wake && (wake.inflow.heights_m.length > 0 || wake.inflow.source === 'fixed')) {
-    out.push(...(await writeFigure(inflowSvg(wake, field, campaign), runDir, imageName(field.planeId, win, 'inflow'), {
+    jobs.push(writeFigure(inflowSvg(wake, field, campaign), runDir, imageName(field.planeId, win, 'inflow'), {
       plane: field.planeId, window: win, description: 'inflow profile and fitted law',
-    }, fig)));
+    }, fig));
   }
-  return out;
+  return (await Promise.all(jobs)).flat();
 }
 
 /** Inflow profile points and the fitted law (power V = V_ref (z/z_ref)^alpha, or log V = (u_star / 0.40) ln(z / z0)). */
@@ -144,7 +145,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
   const win = field.window.index;
   const n = field.grid.ny * field.grid.nz;
   const maxA = campaign.retrieval.maxAmplification;
-  const out: OutputRecord[] = [];
+  const jobs: Promise<OutputRecord[]>[] = [];
   const comps = [
     ['u', field.dopU, field.maskU],
     ['v', field.dopV, field.maskV],
@@ -163,7 +164,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
       mask: { codes, names: maskReasonName },
       ...base,
     });
-    out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`), { plane: field.planeId, window: win, description: `error amplification of ${c}` }, fig)));
+    jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`), { plane: field.planeId, window: win, description: `error amplification of ${c}` }, fig));
   }
   const counts = new Float64Array(n);
   const codes = new Uint8Array(n);
@@ -179,6 +180,6 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
     mask: { codes, names: maskReasonName },
     ...base,
   });
-  out.push(...(await writeFigure(svg, runDir, imageName(field.planeId, win, 'samples'), { plane: field.planeId, window: win, description: 'accepted samples per cell' }, fig)));
-  return out;
+  jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, 'samples'), { plane: field.planeId, window: win, description: 'accepted samples per cell' }, fig));
+  return (await Promise.all(jobs)).flat();
 }

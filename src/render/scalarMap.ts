@@ -113,7 +113,8 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
 
   // 2. Masked and empty cells, hatched by reason.
   const counts = new Map<number, number>();
-  const maskRuns: string[] = [];
+  // One path per reason (librsvg renders a pattern once per element, so one element per reason keeps it fast).
+  const maskPaths = new Map<number, string[]>();
   for (let iz = 0; iz < nz; iz++) {
     let iy = 0;
     while (iy < ny) {
@@ -122,14 +123,17 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
       let end = iy + 1;
       while (end < ny && maskCode(opts.mask?.codes, values, end + iz * ny) === code) end++;
       counts.set(code, (counts.get(code) ?? 0) + (end - iy));
-      maskRuns.push(cellRun(X, Z, y0, z0, dy, dz, iy, end, iz, `url(#${patternId(ID, code)})`, `masked m${code}`));
+      const xL = X(y0 + (end - 0.5) * dy), xR = X(y0 + (iy - 0.5) * dy);
+      const yT = Z(z0 + (iz + 0.5) * dz), yB = Z(z0 + (iz - 0.5) * dz);
+      if (!maskPaths.has(code)) maskPaths.set(code, []);
+      maskPaths.get(code)!.push(`M${n(xL)},${n(yT)}H${n(xR + 0.25)}V${n(yB + 0.25)}H${n(xL)}Z`);
       iy = end;
     }
   }
   if (counts.size) {
     const codes = [...counts.keys()].sort((a, b) => a - b);
     for (const c of codes) defs.push(maskPattern(ID, c));
-    body.push(`<g class="mask">${maskRuns.join('')}</g>`);
+    body.push(`<g class="mask">${codes.map((c) => `<path class="masked m${c}" d="${maskPaths.get(c)!.join('')}" fill="url(#${patternId(ID, c)})"/>`).join('')}</g>`);
     legend.push({ kind: 'heading', label: 'Not shown' });
     for (const c of codes) {
       const name = c === NO_VALUE_CODE ? 'no value' : (opts.mask?.names[c] || `code ${c}`).replace(/_/g, ' ');
@@ -300,13 +304,13 @@ function maskCode(codes: Uint8Array | undefined, values: Float64Array, i: number
   return Number.isFinite(values[i]) ? 0 : NO_VALUE_CODE;
 }
 
-function cellRun(X: (v: number) => number, Z: (v: number) => number, y0: number, z0: number, dy: number, dz: number, iyA: number, iyB: number, iz: number, fill: string, cls?: string): string {
+function cellRun(X: (v: number) => number, Z: (v: number) => number, y0: number, z0: number, dy: number, dz: number, iyA: number, iyB: number, iz: number, fill: string): string {
   // Cells iyA..iyB-1 of row iz; y increases to the left, so the run's left edge is its largest y.
   const xL = X(y0 + (iyB - 0.5) * dy), xR = X(y0 + (iyA - 0.5) * dy);
   const yT = Z(z0 + (iz + 0.5) * dz), yB = Z(z0 + (iz - 0.5) * dz);
-  // Solid cells get a thin stroke of their own colour so that anti-aliased edges leave no seams between rows.
-  const seam = fill.startsWith('url(') ? '' : ` stroke="${fill}" stroke-width="0.5"`;
-  return `<rect${cls ? ` class="${cls}"` : ''} x="${n(xL)}" y="${n(yT)}" width="${n(xR - xL + 0.25)}" height="${n(yB - yT + 0.25)}" fill="${fill}"${seam}/>`;
+  // Cells get a thin stroke of their own colour so that anti-aliased edges leave no seams between rows.
+  const seam = ` stroke="${fill}" stroke-width="0.5"`;
+  return `<rect x="${n(xL)}" y="${n(yT)}" width="${n(xR - xL + 0.25)}" height="${n(yB - yT + 0.25)}" fill="${fill}"${seam}/>`;
 }
 
 function markerShape(shape: 'cross' | 'circle' | 'diamond', x: number, y: number, s: number): string {

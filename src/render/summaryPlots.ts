@@ -17,9 +17,8 @@ function bar(s: Stat): number {
 }
 
 export async function renderSummaryPlots(analysis: WakeAnalysis, campaign: Campaign, runDir: string, fig: FigureOptions = {}): Promise<OutputRecord[]> {
-  const out: OutputRecord[] = [];
-  for (const f of summaryFigures(analysis, campaign)) out.push(...(await writeFigure(f.svg, runDir, `summary_${f.what}`, { description: f.description }, fig)));
-  return out;
+  const jobs = summaryFigures(analysis, campaign).map((f) => writeFigure(f.svg, runDir, `summary_${f.what}`, { description: f.description }, fig));
+  return (await Promise.all(jobs)).flat();
 }
 
 /** The summary figures as SVG text (pure), for rendering or inspection. */

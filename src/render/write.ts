@@ -25,15 +25,21 @@ export async function writeSvgAndPng(svg: string, pathNoExt: string, opts: Write
  * Renders SVG text to PNG bytes at the given density (dots per inch of the figure's declared size).
  *
  * sharp 0.35 applies its density option twice to documents sized in inches (librsvg's DPI and a density/72 scale),
- * so a requested 300 gives 300^2/72 pixels per inch. The density passed to sharp is therefore chosen from a probe of
- * the rendered width at 72 (where both agree), which keeps the result right if that behaviour changes.
+ * so a requested 300 gives 300^2/72 pixels per inch. Which behaviour the installed sharp has is probed once with a
+ * one-inch document, and the density passed to sharp is chosen from that, so the result stays right if it changes.
  */
 export async function svgToPng(svg: string, density = 300): Promise<Buffer> {
-  const input = Buffer.from(svg, 'utf8');
-  const at72 = (await sharp(input, { density: 72 }).metadata()).width ?? 0;
-  const target = (at72 * density) / 72;
-  let d = density;
-  const trial = (await sharp(input, { density: d }).metadata()).width ?? 0;
-  if (at72 > 0 && Math.abs(trial - target) > 2) d = Math.sqrt(72 * density);
-  return sharp(input, { density: d }).flatten({ background: '#ffffff' }).png({ compressionLevel: 6 }).toBuffer();
+  const squared = await densityIsSquared();
+  const d = squared ? Math.sqrt(72 * density) : density;
+  return sharp(Buffer.from(svg, 'utf8'), { density: d }).flatten({ background: '#ffffff' }).png({ compressionLevel: 6 }).toBuffer();
+}
+
+let squaredProbe: Promise<boolean> | undefined;
+
+/** True when sharp renders a 1-inch SVG at density 144 as 288 pixels (density applied twice) rather than 144. */
+function densityIsSquared(): Promise<boolean> {
+  squaredProbe ??= sharp(Buffer.from('<svg xmlns="http://www.w3.org/2000/svg" width="1in" height="1in" viewBox="0 0 10 10"/>'), { density: 144 })
+    .metadata()
+    .then((m) => Math.abs((m.width ?? 144) - 288) < 2);
+  return squaredProbe;
 }
