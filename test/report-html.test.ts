@@ -78,6 +78,16 @@ describe('report HTML (pure)', () => {
     expect(html).not.toContain('<td class="num">25</td>');
   });
 
+  it('copes with an empty run: no instruments, windows, outputs or timings', () => {
+    const m = fixtureManifest(campaign, [], { windows: [], inputs: [], timings_s: {}, assumptions: [], warnings: [], startedAt: '', finishedAt: '' });
+    m.samples = { total: { ...m.samples.total, read: 0, accepted: 0, rejected: Object.fromEntries(Object.keys(m.samples.total.rejected).map((k) => [k, 0])) as typeof m.samples.total.rejected }, perInstrument: {}, balanced: true };
+    const html = reportHtml(m);
+    expect(html).toContain('No data files were written.');
+    expect(html).toContain('No warnings.');
+    expect(html).not.toContain('id="images"'); // no image section without images
+    expect(html).not.toContain('NaN');
+  });
+
   it('builds wake tables from an analysis', () => {
     const f = fixtureField(campaign.planes[0], 0);
     const tables = wakeReportTables(fixtureAnalysis([fixtureWake(f)]), { rows: 'wake/rows.csv' });

@@ -38,7 +38,7 @@ tr.total td { border-top: 1px solid var(--ink); font-weight: bold; }
 figure { margin: 14px 0 22px; padding: 10px; background: #ffffff; border: 1px solid var(--faint); }
 figure img { display: block; max-width: 100%; height: auto; margin: 0 auto; }
 figcaption { font-size: 12.5px; color: var(--muted); margin-top: 6px; }
-.gallery { display: grid; grid-template-columns: repeat(auto-fill, minmax(480px, 1fr)); gap: 0 16px; }
+.gallery { display: grid; grid-template-columns: 1fr; gap: 0; }
 details { margin: 8px 0; }
 summary { cursor: pointer; color: var(--accent); }
 pre { background: var(--panel); padding: 10px 12px; overflow: auto; font-size: 12px; max-height: 520px; }
