@@ -36,7 +36,7 @@ tr.total td { border-top: 1px solid var(--ink); font-weight: bold; }
 .ok { color: #2d6a3e; }
 .bad { color: var(--warn); font-weight: bold; }
 figure { margin: 14px 0 22px; padding: 10px; background: #ffffff; border: 1px solid var(--faint); }
-figure img { display: block; max-width: 100%; height: auto; margin: 0 auto; }
+figure img { display: block; width: 100%; max-width: 1000px; height: auto; margin: 0 auto; }
 figcaption { font-size: 12.5px; color: var(--muted); margin-top: 6px; }
 .gallery { display: grid; grid-template-columns: 1fr; gap: 0; }
 details { margin: 8px 0; }
