@@ -80,7 +80,7 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
   }
 
   // Images.
-  if (images.length) section('images', 'Images', imagesHtml(images));
+  if (images.length) section('images', 'Images', READING_GUIDE + imagesHtml(images));
 
   // Tables.
   if (extras.wakeTables?.length) section('wake', 'Wake results', extras.wakeTables.map((t) => tableHtml(t, maxRows)).join('\n'));
@@ -142,6 +142,14 @@ export async function writeReport(manifest: RunManifest, runDir: string, extras:
   writeFileAtomic(join(runDir, 'report.html'), reportHtml(manifest, extras));
   return { kind: 'report', path: 'report.html', description: 'run report (static HTML)' };
 }
+
+const READING_GUIDE = `<details><summary>How to read the maps</summary><ul class="note">
+<li>Cross planes are seen looking downstream and horizontal planes from above with the flow going up the page: in both, +y (rotor frame, to the left looking downstream) is on the left. Axes are in metres, with rotor diameters from the hub on the top and right.</li>
+<li>Colours are filled contour bands (cividis, readable with colour-vision deficiencies); values beyond the colour bar take its end colours.</li>
+<li>Grey and hatched cells were not retrieved; the legend names each reason and counts its cells. A mark on the colour bar shows a masking threshold.</li>
+<li>Arrows show the in-plane velocity (v, w); the reference arrow in the legend gives its scale. The dash-dotted circle is the rotor disk with its hub.</li>
+<li>\u00d7 is the wake centre of the 2D Gaussian fit, with its width ellipse (\u03c3y, \u03c3z) dashed; \u25c7 is the centre of the minimum-power rotor disk, a second estimate that assumes no wake shape.</li>
+</ul></details>`;
 
 function accountingHtml(m: RunManifest): string {
   const per = Object.entries(m.samples.perInstrument);
