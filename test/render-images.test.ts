@@ -88,9 +88,9 @@ describe('scalar map: geometry in the SVG', () => {
     const pxPerM = rotorR / R;
     const ref = attrs(/<line class="arrow-ref"[^>]*>/.exec(svg)![0]);
     const refLen = Math.hypot(ref.x2 - ref.x1, ref.y2 - ref.y1); // pixels for 1 m/s
-    const lines = [...svg.matchAll(/<line class="arrow" [^>]*>/g)].map((m) => attrs(m[0]));
+    const lines = [...svg.matchAll(/<line class="arrow( capped)?" [^>]*>/g)].map((m) => Object.assign(attrs(m[0]), { capped: m[1] ? 1 : 0 }));
     expect(lines.length).toBeGreaterThan(100); // every 2nd cell of 40 x 32: 20 x 16 = 320 arrows, minus the hub's zero arrow
-    let checked = 0;
+    let checked = 0, capped = 0;
     for (const a of lines) {
       const rX = a.x1 - hub.cx, rY = a.y1 - hub.cy;
       const dX = a.x2 - a.x1, dY = a.y2 - a.y1;
@@ -99,12 +99,18 @@ describe('scalar map: geometry in the SVG', () => {
       // Coordinates are written to 0.01 units, so each arrow direction is good to about 0.02 / d radians.
       expect(Math.abs(rX * dX + rY * dY) / (r * d)).toBeLessThan(0.02 / d + 0.02 / r + 1e-3);
       expect(rX * dY - rY * dX).toBeGreaterThan(0);
-      // Length: speed omega * r_m, drawn at refLen pixels per m/s; relative tolerance from the 0.01 rounding.
-      const expected = omega * (r / pxPerM) * refLen;
+      // Length: speed omega * r_m, drawn at refLen pixels per m/s, cut at twice the reference speed (2 m/s here)
+      // and then marked as capped; tolerance from the 0.01-unit rounding of the coordinates.
+      const speed = omega * (r / pxPerM);
+      const expected = Math.min(speed, 2) * refLen;
       expect(Math.abs(d - expected)).toBeLessThan(0.03 + 1e-3 * expected);
+      // (Speeds within 0.5 % of the cap are not judged: the radius is read back from rounded coordinates.)
+      if (Math.abs(speed - 2) > 0.01) expect(a.capped).toBe(speed > 2 ? 1 : 0);
+      if (a.capped) capped++;
       checked++;
     }
     expect(checked).toBeGreaterThan(100);
+    expect(capped).toBeGreaterThan(10); // corners are 0.02 x ~190 m = 3.8 m/s from the hub: beyond the 2 m/s cap
     // Directly above the hub (same column): z > zh, so v = -omega (z - zh) < 0 points to -y, i.e. to the RIGHT.
     const above = lines.filter((a) => Math.abs(a.x1 - hub.cx) < 0.01 && a.y1 < hub.cy - 1);
     expect(above.length).toBeGreaterThan(3);

@@ -41,7 +41,8 @@ export interface ScalarMapOptions {
   ellipses?: { y: number; z: number; ry: number; rz: number; label: string }[];
   /** In-plane vectors per cell (v along the horizontal axis, w along the vertical axis), m/s; every k-th cell in
    * each direction (default: about 16 arrows across); the reference arrow shows referenceSpeed (default: a nice
-   * number near the 90th percentile of the in-plane speed); label follows the reference speed in the legend. */
+   * number near the 90th percentile of the in-plane speed); label follows the reference speed in the legend. Arrows
+   * faster than twice the reference are cut to that length and drawn dashed (counted in the legend). */
   arrows?: { v: Float64Array; w: Float64Array; every?: number; referenceSpeed?: number; label?: string };
 }
 
@@ -154,8 +155,10 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
       if (Number.isFinite(s)) speeds.push(s);
     }
     const ref = a.referenceSpeed && a.referenceSpeed > 0 ? a.referenceSpeed : niceRound(percentile(speeds, 0.9));
-    const refLen = 0.9 * every * Math.min(dy, dz) * scale;
+    const refLen = 0.75 * every * Math.min(dy, dz) * scale;
     const k = refLen / ref;
+    const capFactor = 2;
+    let capped = 0;
     const off = Math.floor((every - 1) / 2);
     const parts: string[] = [];
     for (let iz = off; iz < nz; iz += every) {
@@ -164,13 +167,18 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
         const v = a.v[i], w = a.w[i];
         if (!Number.isFinite(v) || !Number.isFinite(w)) continue;
         const x1 = X(y0 + iy * dy), y1 = Z(z0 + iz * dz);
-        // +v points to +y, which is to the left on the page; +w points up, which is -SVG y.
-        parts.push(arrow(x1, y1, x1 - v * k, y1 - w * k, theme.ink, 'arrow', 0.9));
+        // +v points to +y, which is to the left on the page; +w points up, which is -SVG y. Arrows faster than
+        // capFactor x the reference are cut to that length and drawn dashed, so a few noisy cells cannot hide the rest.
+        const s = Math.hypot(v, w);
+        const f = s > capFactor * ref ? (capFactor * ref) / s : 1;
+        if (f < 1) capped++;
+        parts.push(arrow(x1, y1, x1 - v * k * f, y1 - w * k * f, theme.ink, f < 1 ? 'arrow capped' : 'arrow', 0.9, f < 1 ? '2.5 1.5' : undefined));
       }
     }
     if (parts.length) {
       overlay.push(`<g class="arrows" clip-path="url(#${ID}-plot)">${parts.join('')}</g>`);
       legend.push({ kind: 'arrow', length: refLen, label: `${formatNumber(ref, decimalsOf(ref))} m/s ${a.label ?? 'in-plane (v, w)'}` });
+      if (capped) legend.push({ kind: 'arrow', length: refLen, dashed: true, label: `${capped} arrow${capped === 1 ? '' : 's'} faster than ${formatNumber(capFactor * ref, decimalsOf(ref))} m/s, cut to that length` });
     }
   }
 
@@ -332,7 +340,7 @@ function markerShape(shape: 'cross' | 'circle' | 'diamond', x: number, y: number
 type LegendItem =
   | { kind: 'heading'; label: string }
   | { kind: 'swatch'; fill: string; label: string }
-  | { kind: 'arrow'; length: number; label: string }
+  | { kind: 'arrow'; length: number; label: string; dashed?: boolean }
   | { kind: 'rotor'; label: string }
   | { kind: 'ellipse'; label: string }
   | { kind: 'cbmark'; label: string }
@@ -355,7 +363,7 @@ function drawLegend(all: LegendItem[], x: number, y: number, w: number): { marku
     }
     if (it.kind === 'arrow') {
       const len = Math.min(it.length, w - 10);
-      out.push(arrow(x, cy + 6, x + len, cy + 6, theme.ink, 'arrow-ref', 1.1));
+      out.push(arrow(x, cy + 6, x + len, cy + 6, theme.ink, it.dashed ? 'arrow-cap' : 'arrow-ref', 1.1, it.dashed ? '2.5 1.5' : undefined));
       const lines = wrap(it.label, chars + 4);
       lines.forEach((l, i) => out.push(text(x, cy + 24 + i * 13, l, { size: 10.5 })));
       cy += 26 + lines.length * 13;

@@ -76,10 +76,10 @@ export function linear(d0: number, d1: number, r0: number, r1: number): (v: numb
 }
 
 /** Arrow from (x1, y1) to (x2, y2) as a shaft line (class "arrow" + extra) and a filled head. */
-export function arrow(x1: number, y1: number, x2: number, y2: number, colour: string, cls = 'arrow', width = 1.1): string {
+export function arrow(x1: number, y1: number, x2: number, y2: number, colour: string, cls = 'arrow', width = 1.1, dash?: string): string {
   const dx = x2 - x1, dy = y2 - y1;
   const len = Math.hypot(dx, dy);
-  let s = `<line class="${cls}" x1="${n(x1)}" y1="${n(y1)}" x2="${n(x2)}" y2="${n(y2)}" stroke="${colour}" stroke-width="${width}" stroke-linecap="round"/>`;
+  let s = `<line class="${cls}" x1="${n(x1)}" y1="${n(y1)}" x2="${n(x2)}" y2="${n(y2)}" stroke="${colour}" stroke-width="${width}" stroke-linecap="round"${dash ? ` stroke-dasharray="${dash}"` : ''}/>`;
   if (len >= 2) {
     const head = Math.min(6, Math.max(2.5, len * 0.3));
     const ux = dx / len, uy = dy / len;
