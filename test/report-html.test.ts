@@ -34,12 +34,14 @@ describe('report HTML (pure)', () => {
     const html = reportHtml(fixtureManifest(campaign, outputs));
     const text = bodyText(html);
     // Fixture: lid-a 1000 read, 900 accepted (60 low CNR, 40 outliers); lid-b 800, 700 (50 low CNR, 50 bad numbers).
-    expect(text).toMatch(/lid-a\s+1\u2009000\s+900\s+90\.0\s+0\s+60\s+40\s+yes/);
+    expect(text).toMatch(/lid-a\s+1\u202f000\s+900\s+90\.0\s+0\s+60\s+40\s+yes/);
     expect(text).toMatch(/lid-b\s+800\s+700\s+87\.5\s+50\s+50\s+0\s+yes/);
-    expect(text).toMatch(/all instruments\s+1\u2009800\s+1\u2009600\s+88\.9\s+50\s+110\s+40\s+yes/);
-    expect(html).toContain('rejected: bad number');
-    expect(html).toContain('rejected: low CNR');
-    expect(html).not.toContain('rejected: bad time'); // zero everywhere: no column
+    expect(text).toMatch(/all instruments\s+1\u202f800\s+1\u202f600\s+88\.9\s+50\s+110\s+40\s+yes/);
+    expect(html).toContain('<th colspan="3" class="group">rejected, by reason</th>'); // three reasons occurred
+    expect(html).toContain('>bad number</th>');
+    expect(html).toContain('>low CNR</th>');
+    expect(html).toContain('>outlier</th>');
+    expect(html).not.toContain('>bad time</th>'); // zero everywhere: no column
     expect(html).toContain('The accounting balances for every instrument.');
   });
 

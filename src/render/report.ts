@@ -56,13 +56,13 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
     ['Campaign file', `${esc(m.campaign.file)}`],
     ['Campaign file SHA-256', `<code>${esc(m.campaign.sha256)}</code>`],
     ['Started', esc(m.startedAt)],
-    ['Finished', `${esc(m.finishedAt)}${Number.isFinite(dur) ? ` (${(dur / 1000).toFixed(1)} s)` : ''}`],
+    ...(m.finishedAt ? [['Finished', `${esc(m.finishedAt)}${Number.isFinite(dur) ? ` (${(dur / 1000).toFixed(1)} s)` : ''}`] as [string, string]] : []),
     ['Input files', String(m.inputs.length)],
     ['Averaging windows', String(m.windows.length)],
     ['Samples read', num(tot.read)],
     ['Samples accepted', `${num(tot.accepted)}${tot.read ? ` (${((100 * tot.accepted) / tot.read).toFixed(1)} %)` : ''}`],
     ['Throughput', `${num(Math.round(m.samplesPerSecond))} samples/s`],
-    ['Peak memory', `${(m.peakRss_bytes / 2 ** 20).toFixed(0)} MiB`],
+    ...(m.peakRss_bytes > 0 ? [['Peak memory', `${(m.peakRss_bytes / 2 ** 20).toFixed(0)} MiB`] as [string, string]] : []),
     ['Tool', `${esc(m.tool.name)} ${esc(m.tool.version)}`],
   ];
   section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
@@ -75,7 +75,7 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
     section('windows', 'Averaging windows', tableHtml({
       title: '',
       columns: ['window', 'start (UTC)', 'end (UTC)', 'wind from (deg)', 'accepted samples'],
-      rows: m.windows.map((w) => [w.index, w.start, w.end, round(w.direction_deg, 1), w.samples]),
+      rows: m.windows.map((w) => [w.index, shortIso(w.start), shortIso(w.end), round(w.direction_deg, 1), w.samples]),
     }, maxRows));
   }
 
@@ -131,7 +131,7 @@ ${m.campaign.description ? `<p class="lead">${esc(m.campaign.description)}</p>` 
 </header>
 ${cautions}
 ${sections.join('\n')}
-<footer>Written by ${esc(m.tool.name)} ${esc(m.tool.version)} at ${esc(m.finishedAt)}. The manifest (manifest.json) in this folder lists every input and output with checksums.</footer>
+<footer>Written by ${esc(m.tool.name)} ${esc(m.tool.version)}${m.finishedAt ? ` at ${esc(m.finishedAt)}` : ''}. The manifest (manifest.json) in this folder lists every input and output with checksums.</footer>
 </body>
 </html>
 `;
@@ -155,7 +155,8 @@ function accountingHtml(m: RunManifest): string {
   const per = Object.entries(m.samples.perInstrument);
   const all: [string, SampleAccount][] = [...per, ['all instruments', m.samples.total]];
   const reasons = REJECT_REASONS.filter((r) => all.some(([, a]) => (a.rejected[r] ?? 0) > 0));
-  const head = ['instrument', 'read', 'accepted', 'accepted %', ...reasons.map((r) => `rejected: ${r.replace(/_/g, ' ').replace(/\bcnr\b/, 'CNR')}`), 'balances'];
+  const reasonLabel = (r: string) => r.replace(/_/g, ' ').replace(/\bcnr\b/, 'CNR');
+  const head = ['instrument', 'read', 'accepted', 'accepted %', ...reasons.map(reasonLabel), 'balances'];
   const rows = all.map(([id, a], i) => {
     const ok = accountBalances(a);
     const cells = [
@@ -166,7 +167,11 @@ function accountingHtml(m: RunManifest): string {
     return { cells, total: i === all.length - 1 };
   });
   const numeric = head.map((_, i) => i).filter((i) => i > 0 && i < head.length - 1);
-  const table = `<div class="scroll"><table><thead><tr>${head.map((h, i) => `<th${numeric.includes(i) ? ' class="num"' : ''}>${esc(h)}</th>`).join('')}</tr></thead><tbody>` +
+  // Two header rows: the fixed columns span both; the rejection reasons sit under one "rejected, by reason" heading.
+  const fixed = (i: number) => `<th rowspan="2"${numeric.includes(i) ? ' class="num"' : ''}>${esc(head[i])}</th>`;
+  const top = [0, 1, 2, 3].map(fixed).join('') + (reasons.length ? `<th colspan="${reasons.length}" class="group">rejected, by reason</th>` : '') + fixed(head.length - 1);
+  const sub = reasons.map((r) => `<th class="num reason">${esc(reasonLabel(r))}</th>`).join('');
+  const table = `<div class="scroll"><table class="accounting"><thead><tr>${top}</tr>${sub ? `<tr>${sub}</tr>` : ''}</thead><tbody>` +
     rows.map((r) => `<tr${r.total ? ' class="total"' : ''}>${r.cells.map((c, i) => `<td${numeric.includes(i) ? ' class="num"' : ''}>${c}</td>`).join('')}</tr>`).join('') +
     `</tbody></table></div>`;
   const balanced = m.samples.balanced;
@@ -255,7 +260,12 @@ function cell(v: string | number | boolean | null | undefined): string {
 }
 
 function num(v: number): string {
-  return Number.isFinite(v) ? Math.round(v).toLocaleString('en-US').replace(/,/g, '\u2009') : '\u2013';
+  return Number.isFinite(v) ? Math.round(v).toLocaleString('en-US').replace(/,/g, '\u202f') : '\u2013';
+}
+
+/** "2026-06-14T10:00:00.000Z" -> "2026-06-14 10:00:00" (other text unchanged). */
+function shortIso(t: string): string {
+  return t.replace(/^(\d{4}-\d{2}-\d{2})T(\d{2}:\d{2}:\d{2})(\.0+)?Z$/, '$1 $2');
 }
 
 function round(v: number, d: number): number {

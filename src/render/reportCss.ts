@@ -29,7 +29,10 @@ ul.warnings li { color: var(--warn); }
 table { border-collapse: collapse; margin: 6px 0 4px; font-size: 12.5px; font-variant-numeric: tabular-nums; }
 th, td { padding: 3px 10px; border-bottom: 1px solid var(--faint); text-align: left; vertical-align: top; }
 th { border-bottom: 1px solid var(--ink); font-weight: bold; white-space: nowrap; }
-td.num, th.num { text-align: right; }
+td.num, th.num { text-align: right; white-space: nowrap; }
+table.accounting th { vertical-align: bottom; }
+th.group { text-align: center; border-bottom: 1px solid var(--rule); font-weight: normal; color: var(--muted); }
+th.reason { white-space: normal; font-weight: normal; max-width: 9em; vertical-align: bottom; }
 tr.total td { border-top: 1px solid var(--ink); font-weight: bold; }
 .scroll { overflow-x: auto; max-width: 100%; }
 .note { color: var(--muted); font-size: 12.5px; }
