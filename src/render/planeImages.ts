@@ -134,7 +134,7 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
     series,
     plotWidth: 380,
     plotHeight: 320,
-    notes: ['Power law as in the normal wind profile of IEC 61400-1; log law with von K\u00e1rm\u00e1n constant 0.40.'],
+    notes: [p.law === 'power' ? 'Power law V = V_ref (z / z_ref)^\u03b1, as in the normal wind profile of IEC 61400-1.' : 'Log law V = (u* / 0.40) ln(z / z0), von K\u00e1rm\u00e1n constant 0.40.'],
   });
 }
 
