@@ -4,7 +4,7 @@
  * stays distinct for the common colour-vision deficiencies.
  */
 export const theme = {
-  font: "'DejaVu Sans', 'Verdana', sans-serif",
+  font: "'DejaVu Sans', sans-serif",
   paper: '#fbfaf6',
   panel: '#f2f0ea',
   ink: '#1f1e1b',
