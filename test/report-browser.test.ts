@@ -3,7 +3,7 @@
  * script run from campaign text, every image loaded. A screenshot goes to output/report-screenshot.png. Skipped,
  * with a message, only when /usr/bin/chromium is absent.
  */
-import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -36,6 +36,8 @@ describe.skipIf(!haveChromium)('report in headless chromium', () => {
       ...(await renderPlaneImages(horiz, wakes[1], campaign, runDir, LOW)),
       { kind: 'field-table', path: 'tables/P5D.csv', plane: 'P5D', description: 'retrieved field' },
     ];
+    mkdirSync(join(runDir, 'tables'), { recursive: true });
+    writeFileSync(join(runDir, 'tables/P5D.csv'), 'y_m,z_m,u_ms\n');
     const manifest = fixtureManifest(campaign, outputs);
     const rec = await writeReport(manifest, runDir, { wakeTables: wakeReportTables(fixtureAnalysis(wakes)) });
     expect(rec.path).toBe('report.html');
@@ -74,6 +76,13 @@ describe.skipIf(!haveChromium)('report in headless chromium', () => {
         expect(im.w, im.src ?? '').toBeGreaterThan(0);
       }
       expect(errors).toEqual([]);
+      // Every link in the page leads to an anchor in it or to a file in the run folder.
+      const hrefs = await page.$$eval('a', (els) => els.map((e) => (e as unknown as { getAttribute(n: string): string | null }).getAttribute('href') ?? ''));
+      expect(hrefs.length).toBeGreaterThan(20);
+      for (const h of hrefs) {
+        if (h.startsWith('#')) expect(await page.$(h), h).not.toBeNull();
+        else expect(existsSync(join(runDir, decodeURIComponent(h))), h).toBe(true);
+      }
       expect(dialogs).toEqual([]); // the campaign description carries <script>alert(...)</script>: it must not run
       const heading = await page.textContent('h1');
       expect(heading).toBe('testfield-alpha');
