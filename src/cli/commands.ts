@@ -13,7 +13,7 @@ import { runCampaign, type RunResult } from '../pipeline/run.ts';
 import { simulateCampaign } from '../sim/simulate.ts';
 import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
-import { createRunProgress } from './runProgress.ts';
+import { createProgress } from './progress.ts';
 import { formatPlanSummary, planAndWrite } from '../pipeline/plan.ts';
 import type { PlanSummary } from '../plan/index.ts';
 
@@ -35,7 +35,7 @@ function dataMissing(c: Campaign): boolean {
 }
 
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
-  const progress = createRunProgress(process.stderr, { quiet: a.quiet });
+  const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
   const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan }) });
   say(a.quiet, formatRunSummary(res));

@@ -145,7 +145,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
-    let retrieveTime = 0, writeTime = 0;
+    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
     const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
@@ -209,6 +209,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
             const ts = performance.now();
             for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
             lap(stage.name, ts);
+            stageFieldTime += (performance.now() - ts) / 1000;
           }
         },
       },
@@ -217,7 +218,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     lap('ingest_total', t);
     timings.retrieval = retrieveTime;
     timings.write_fields = writeTime;
-    timings.ingest = timings.ingest_total - retrieveTime - writeTime;
+    timings.ingest = timings.ingest_total - retrieveTime - writeTime - stageFieldTime;
     delete timings.ingest_total;
     if (rejectedOut) {
       await rejectedOut.close();
@@ -233,6 +234,10 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     manifest.assumptions = [...assumptions];
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
+
+    // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
+    manifest.finishedAt = new Date().toISOString();
+    manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
 
     // 4. Later stages: wake summaries, summary plots, planner, report.
     for (const stage of stages) {
