@@ -60,6 +60,7 @@ export function fixtureField(plane: PlaneSpec, window: number, shape: FieldShape
     window: { index: window, start_s: 1_780_000_200 + window * 600, end_s: 1_780_000_800 + window * 600 },
     direction_deg: 270, grid: g,
     u: f(NaN), v: f(NaN), w: f(NaN), su: f(NaN), sv: f(NaN), sw: f(NaN), dopU: f(NaN), dopV: f(NaN), dopW: f(NaN),
+    yEff: f(NaN), zEff: f(NaN),
     cond: f(NaN), minCrossing_deg: f(NaN), samples: new Uint32Array(n), instruments: new Uint8Array(n),
     maskU: new Uint8Array(n), maskV: new Uint8Array(n), maskW: new Uint8Array(n), assumptions: ['w = 0 in two-instrument cells'],
   };

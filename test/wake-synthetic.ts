@@ -42,7 +42,7 @@ export function syntheticField(opts: {
     planeId: `x${opts.x_m ?? 600}`, planeIndex: opts.planeIndex ?? 0, orientation: 'cross', x_m: opts.x_m ?? 600, z_m: NaN,
     window: { index: win, start_s: 1_800_000_000 + 600 * win, end_s: 1_800_000_000 + 600 * (win + 1) },
     direction_deg: opts.direction_deg ?? 270, grid: g, u, v: new Float64Array(n), w: new Float64Array(n), su, sv: su.slice(), sw: su.slice(),
-    dopU: nanArr(), dopV: nanArr(), dopW: nanArr(), cond: nanArr(), minCrossing_deg: nanArr(),
+    dopU: nanArr(), dopV: nanArr(), dopW: nanArr(), cond: nanArr(), minCrossing_deg: nanArr(), yEff: nanArr(), zEff: nanArr(),
     samples: new Uint32Array(n).fill(50), instruments: new Uint8Array(n).fill(3),
     maskU: new Uint8Array(n), maskV: new Uint8Array(n), maskW: new Uint8Array(n), assumptions: [],
   };

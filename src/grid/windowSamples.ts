@@ -4,7 +4,10 @@
  * the campaign.
  *
  * nx, ny, nz hold the beam unit vector in the rotor frame of the window (x downstream, y left, z up) after
- * calibration; vr is the radial velocity, m/s, positive away from the instrument.
+ * calibration; vr is the radial velocity, m/s, positive away from the instrument. py, pz are the sample's position in
+ * the plane (y and height for a cross plane, y and x for a horizontal one), metres: scanning instruments aim at fixed
+ * points while the rotor frame turns with the wind, so samples do not sit at cell centres and the retrieval reports
+ * where in each cell they were.
  */
 export interface WindowSamples {
   length: number;
@@ -15,6 +18,8 @@ export interface WindowSamples {
   nx: Float64Array;
   ny: Float64Array;
   nz: Float64Array;
+  py: Float64Array;
+  pz: Float64Array;
 }
 
 export function createWindowSamples(capacity = 4096): WindowSamples {
@@ -27,6 +32,8 @@ export function createWindowSamples(capacity = 4096): WindowSamples {
     nx: new Float64Array(capacity),
     ny: new Float64Array(capacity),
     nz: new Float64Array(capacity),
+    py: new Float64Array(capacity),
+    pz: new Float64Array(capacity),
   };
 }
 
@@ -38,13 +45,16 @@ function grow<T extends Uint16Array | Uint32Array | Uint8Array | Float64Array>(a
 
 export function pushSample(
   s: WindowSamples, plane: number, cell: number, instrument: number, vr: number, nx: number, ny: number, nz: number,
+  py = NaN, pz = NaN,
 ): void {
   if (s.length === s.vr.length) {
     const n = s.vr.length * 2;
     s.plane = grow(s.plane, n); s.cell = grow(s.cell, n); s.instrument = grow(s.instrument, n);
     s.vr = grow(s.vr, n); s.nx = grow(s.nx, n); s.ny = grow(s.ny, n); s.nz = grow(s.nz, n);
+    s.py = grow(s.py, n); s.pz = grow(s.pz, n);
   }
   const i = s.length++;
   s.plane[i] = plane; s.cell[i] = cell; s.instrument[i] = instrument;
   s.vr[i] = vr; s.nx[i] = nx; s.ny[i] = ny; s.nz[i] = nz;
+  s.py[i] = py; s.pz[i] = pz;
 }

@@ -5,7 +5,9 @@
  * ground; horizontal plane: y_m and x_m downstream), the same in rotor diameters (y_D, z_D or x_D), u, v, w (m/s,
  * rotor frame), su, sv, sw (standard uncertainties, m/s), dop_u, dop_v, dop_w (error amplification), cond
  * (condition number), min_crossing_deg, samples, instruments, mask_u, mask_v, mask_w (reason names, empty when
- * valid), masked (1 when any component is masked or assumed), direction_deg (window wind direction).
+ * valid), masked (1 when any component is masked or assumed), direction_deg (window wind direction), y_eff_m and
+ * z_eff_m (x_eff_m on a horizontal plane): the effective position of the retrieved u within the cell, metres (see
+ * FieldResult.yEff).
  */
 import { join } from 'node:path';
 import { cellCentre } from '../grid/grid.ts';
@@ -25,7 +27,7 @@ export async function writeFieldTable(f: FieldResult, path: string, diameter_m: 
     out.write(csvRow([
       'plane', 'window_start', 'window_end', 'y_m', `${second}_m`, 'y_D', `${second}_D`, 'u', 'v', 'w', 'su', 'sv', 'sw',
       'dop_u', 'dop_v', 'dop_w', 'cond', 'min_crossing_deg', 'samples', 'instruments', 'mask_u', 'mask_v', 'mask_w',
-      'masked', 'direction_deg',
+      'masked', 'direction_deg', 'y_eff_m', `${second}_eff_m`,
     ]));
     const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
     const n = f.grid.ny * f.grid.nz;
@@ -36,7 +38,7 @@ export async function writeFieldTable(f: FieldResult, path: string, diameter_m: 
       text += csvRow([
         f.planeId, ws, we, y, z, y / diameter_m, z / diameter_m, f.u[c], f.v[c], f.w[c], f.su[c], f.sv[c], f.sw[c],
         f.dopU[c], f.dopV[c], f.dopW[c], f.cond[c], f.minCrossing_deg[c], f.samples[c], f.instruments[c],
-        maskReasonName[f.maskU[c]], maskReasonName[f.maskV[c]], maskReasonName[f.maskW[c]], masked ? 1 : 0, f.direction_deg,
+        maskReasonName[f.maskU[c]], maskReasonName[f.maskV[c]], maskReasonName[f.maskW[c]], masked ? 1 : 0, f.direction_deg, f.yEff[c], f.zEff[c],
       ]);
       if (text.length > 1 << 16) { out.write(text); text = ''; }
     }

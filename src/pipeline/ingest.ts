@@ -196,7 +196,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
         if (cell < 0) continue;
         // Beam unit vector in the window's rotor frame.
         const rx = ne * w.dE + nn * w.dN, ry = -ne * w.dN + nn * w.dE;
-        pushSample(w.samples, p, cell, ins, vr, rx, ry, nu);
+        pushSample(w.samples, p, cell, ins, vr, rx, ry, nu, y, cross ? z : x);
         counters.accepted[ins]++;
         placed = true;
         break;

@@ -21,26 +21,31 @@ export interface InstrumentMeans {
   variance: Float64Array;
   /** Length of the mean unit vector (1 when every sample has the same beam direction). */
   len: Float64Array;
+  /** Mean in-plane position of the kept samples, metres (NaN when positions were not recorded). */
+  py: Float64Array;
+  pz: Float64Array;
 }
 
 export function instrumentMeans(samples: WindowSamples, keep: Uint8Array, groups: SampleGroups): InstrumentMeans {
   const K = groups.keyCount;
   const n = new Uint32Array(K);
   const sv = new Float64Array(K), sx = new Float64Array(K), sy = new Float64Array(K), sz = new Float64Array(K);
+  const spy = new Float64Array(K), spz = new Float64Array(K);
   const { keys } = groups;
-  const { vr, nx, ny, nz } = samples;
+  const { vr, nx, ny, nz, py, pz } = samples;
   const N = samples.length;
   // Accumulate in window order: sequential reads, per-key sums small enough to stay in cache.
   for (let i = 0; i < N; i++) {
     if (!keep[i]) continue;
     const k = keys[i];
     n[k]++; sv[k] += vr[i]; sx[k] += nx[i]; sy[k] += ny[i]; sz[k] += nz[i];
+    spy[k] += py[i]; spz[k] += pz[i];
   }
   const len = new Float64Array(K).fill(NaN);
   for (let k = 0; k < K; k++) {
     const c = n[k];
-    if (c === 0) { sv[k] = sx[k] = sy[k] = sz[k] = NaN; continue; }
-    sv[k] /= c; sx[k] /= c; sy[k] /= c; sz[k] /= c;
+    if (c === 0) { sv[k] = sx[k] = sy[k] = sz[k] = spy[k] = spz[k] = NaN; continue; }
+    sv[k] /= c; sx[k] /= c; sy[k] /= c; sz[k] /= c; spy[k] /= c; spz[k] /= c;
     len[k] = Math.hypot(sx[k], sy[k], sz[k]);
   }
   const ss = new Float64Array(K);
@@ -51,5 +56,5 @@ export function instrumentMeans(samples: WindowSamples, keep: Uint8Array, groups
     ss[k] += d * d;
   }
   for (let k = 0; k < K; k++) ss[k] = n[k] > 1 ? ss[k] / (n[k] - 1) : NaN;
-  return { n, vr: sv, nx: sx, ny: sy, nz: sz, variance: ss, len };
+  return { n, vr: sv, nx: sx, ny: sy, nz: sz, variance: ss, len, py: spy, pz: spz };
 }

@@ -17,6 +17,7 @@
  * per sample.
  */
 import type { WindowSamples } from '../grid/windowSamples.ts';
+import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { groupSamples } from './group.ts';
 import { instrumentMeans } from './instrumentMeans.ts';
 import { robustFilter } from './robustFilter.ts';
@@ -48,11 +49,46 @@ function emptyField(pg: PlaneGrid, window: WindowInfo, direction_deg: number): F
     grid: { ...pg.grid },
     u: nan(), v: nan(), w: nan(), su: nan(), sv: nan(), sw: nan(),
     dopU: nan(), dopV: nan(), dopW: nan(), cond: nan(), minCrossing_deg: nan(),
+    yEff: nan(), zEff: nan(),
     samples: new Uint32Array(nc),
     instruments: new Uint8Array(nc),
     maskU: mask(), maskV: mask(), maskW: mask(),
     assumptions: [],
   };
+}
+
+/**
+ * Effective position of the u estimate in cell c. The solution is U = H m with H = (A^T W A)^-1 A^T W, so with
+ * instrument i's mean radial velocity taken at its mean sample position p_i, and u varying linearly across the cell
+ * (the wake's dominant gradient), u_hat = u(sum_i c_i p_i) with c_i = H_ui A_iu and sum_i c_i = 1 (since H A = I).
+ * The weights are exact for that case; they tell where in the cell the retrieved u belongs. `dims` = 3 for the
+ * three-component solve, 2 for the two-component (w = 0) one.
+ */
+function effectivePosition(
+  rows: Float64Array, wts: Float64Array, py: Float64Array, pz: Float64Array, K: number, dims: 2 | 3, f: FieldResult, c: number,
+): void {
+  let inv0: [number, number, number];
+  if (dims === 3) {
+    const inv = invertSym3(normalMatrix(rows, K, wts));
+    inv0 = [inv[0], inv[1], inv[2]];
+  } else {
+    let a = 0, b = 0, d = 0;
+    for (let i = 0; i < K; i++) {
+      const x = rows[i * 3], y = rows[i * 3 + 1], w = wts[i];
+      a += w * x * x; b += w * x * y; d += w * y * y;
+    }
+    const det = a * d - b * b;
+    inv0 = [d / det, -b / det, 0];
+  }
+  let y = 0, z = 0, sum = 0;
+  for (let i = 0; i < K; i++) {
+    const h = wts[i] * (inv0[0] * rows[i * 3] + inv0[1] * rows[i * 3 + 1] + inv0[2] * rows[i * 3 + 2]);
+    const ci = h * rows[i * 3];
+    y += ci * py[i]; z += ci * pz[i]; sum += ci;
+  }
+  if (Number.isFinite(y) && Math.abs(sum - 1) < 1e-6) {
+    f.yEff[c] = y; f.zEff[c] = z;
+  }
 }
 
 function store(f: FieldResult, c: number, s: CellSolution): void {
@@ -80,6 +116,7 @@ export function retrieveWindow(
   const minN = settings.minSamplesPerInstrument;
   const wZero = settings.twoInstrumentAssumption === 'w-zero';
   const rows = new Float64Array(I * 3), geom = new Float64Array(I * 3), m = new Float64Array(I), wts = new Float64Array(I);
+  const posY = new Float64Array(I), posZ = new Float64Array(I);
   const sol = emptyCellSolution();
   const fields: FieldResult[] = [];
 
@@ -103,6 +140,7 @@ export function retrieveWindow(
         const v = st.variance[k];
         wts[K] = n / (v > floor2 ? v : floor2);
         used += n;
+        posY[K] = st.py[k]; posZ[K] = st.pz[k];
         K++;
       }
       if (present === 0) continue; // stays no_data
@@ -121,6 +159,7 @@ export function retrieveWindow(
         sol.maskU = sol.maskV = sol.maskW = reason;
       }
       store(f, c, sol);
+      if (Number.isFinite(sol.u)) effectivePosition(rows, wts, posY, posZ, K, K >= 3 ? 3 : 2, f, c);
     }
     if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
     fields.push(f);

@@ -65,6 +65,14 @@ export interface FieldResult {
   dopW: Float64Array;
   cond: Float64Array;
   minCrossing_deg: Float64Array;
+  /**
+   * Effective position of the retrieved u in the cell (y, and height for a cross plane or x for a horizontal one),
+   * metres: the instruments' mean sample positions weighted by their share in the u solution (exact when u varies
+   * linearly across the cell). Scanning instruments aim at fixed points while the rotor frame turns with the wind,
+   * so this can be up to half a cell from the cell centre. NaN where u is not retrieved or positions are unknown.
+   */
+  yEff: Float64Array;
+  zEff: Float64Array;
   /** Accepted samples used in the cell (after robust rejection). */
   samples: Uint32Array;
   /** Instruments used in the cell. */

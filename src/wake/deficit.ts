@@ -1,7 +1,7 @@
 /**
  * Velocity-deficit field d = 1 - u / u_inf(z) per cell (dimensionless, positive in the wake), shear-aware: each
- * cell is compared with the inflow at its own height (cross plane: the cell's z; horizontal plane: the plane's
- * height). NaN where u is masked or the inflow is not defined. Also the deficit's standard uncertainty su / u_inf
+ * cell is compared with the inflow at its own height (cross plane: the mean height of the cell's samples, or its
+ * centre when unknown; horizontal plane: the plane's height). NaN where u is masked or the inflow is not defined. Also the deficit's standard uncertainty su / u_inf
  * (inflow uncertainty not propagated).
  */
 import type { FieldResult } from '../retrieval/types.ts';
@@ -25,9 +25,11 @@ export function deficitField(f: FieldResult, inflow: InflowProfile): DeficitFiel
   const n = ny * nz;
   const deficit = new Float64Array(n).fill(NaN), sdeficit = new Float64Array(n).fill(NaN), uInf = new Float64Array(n).fill(NaN);
   for (let iz = 0; iz < nz; iz++) {
-    const ui = inflowAt(inflow, cellHeight(f, iz));
+    const uc = inflowAt(inflow, cellHeight(f, iz));
     for (let iy = 0; iy < ny; iy++) {
       const k = iy + iz * ny;
+      const zm = f.orientation === 'cross' ? f.zEff?.[k] : NaN;
+      const ui = Number.isFinite(zm) ? inflowAt(inflow, zm!) : uc;
       uInf[k] = ui;
       const u = f.u[k];
       if (!Number.isFinite(u) || !(ui > 0)) continue;

@@ -83,8 +83,12 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   const points = (d: Float64Array, sd: Float64Array) => {
     const y: number[] = [], z: number[] = [], v: number[] = [], s: number[] = [];
     for (let k = 0; k < d.length; k++) if (Number.isFinite(d[k])) {
+      // The retrieved value describes the wind where the cell's samples were (FieldResult.yEff/zEff), which can
+      // be up to half a cell from its centre when the scan points do not turn with the wind; cell centre otherwise.
       const iy = k % g.ny, iz = (k - iy) / g.ny;
-      y.push(g.y0 + iy * g.dy); z.push(g.z0 + iz * g.dz); v.push(d[k]); s.push(sd[k]);
+      const ym = f.yEff?.[k], zm = f.zEff?.[k];
+      y.push(Number.isFinite(ym) ? ym : g.y0 + iy * g.dy); z.push(Number.isFinite(zm) ? zm : g.z0 + iz * g.dz);
+      v.push(d[k]); s.push(sd[k]);
     }
     const med = median(s.filter((x) => x > 0));
     const sigma = o.weightedFit && med > 0 ? s.map((x) => (x > 0 && Number.isFinite(x) ? x : med)) : undefined;
