@@ -7,7 +7,7 @@ import { resolveCampaign } from '../src/campaign/load.ts';
 import { beamPoint, calibratedUnitVector, calibrationMatrix } from '../src/geometry/beam.ts';
 import { planCampaign } from '../src/plan/planCampaign.ts';
 import { gridOrders, planScanOrder, slewAngle, tourSlew, twoOpt, type Pointing } from '../src/plan/scanOrder.ts';
-import { mulberry32 } from '../src/plan/combinations.ts';
+import { mulberry32 } from '../src/math/random.ts';
 
 const campaign = () =>
   resolveCampaign(

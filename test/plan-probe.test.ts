@@ -2,10 +2,10 @@
  * Probe volumes of the planner against REFERENCES.md section 3 and scipy (test/reference/plan_probe.py).
  */
 import { describe, expect, it } from 'vitest';
-import { erf } from '../src/plan/erf.ts';
-import { cwHalfWidth, cwRayleighRange, cwWeight, probeLength, pulsedFwhm, pulsedWeight, pulseWidthParameter } from '../src/plan/probe.ts';
+import erf from '@stdlib/math-base-special-erf';
+import { cwHalfWidth, cwRayleighRange, cwWeight, probeLength, pulsedFwhm, pulsedWeight, pulseWidthParameter } from '../src/geometry/probe.ts';
 
-describe('erf', () => {
+describe('erf (the stdlib dependency the pulsed weighting rests on)', () => {
   it('matches scipy.special.erf (plan_probe.py output)', () => {
     // python3 test/reference/plan_probe.py:
     const ref: [number, number][] = [

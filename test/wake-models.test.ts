@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { bpEpsilon, gaussianAmplitude, gaussianSigma_D, topHatDeficit, kStarFromTurbulence } from '../src/wake/wakeModels.ts';
 import { jimenezDeflection, bastankhahDeflection } from '../src/wake/deflection.ts';
 import { momentumDeficit, thrustMomentum } from '../src/wake/momentum.ts';
-import { thrustCoefficientAt } from '../src/wake/thrust.ts';
+import { thrustCoefficientAt } from '../src/campaign/thrust.ts';
 import { wrapDeg180 } from '../src/wake/yawOffset.ts';
 
 describe('top-hat model (Jensen 1983; Katic, Hojstrup & Jensen 1986 [from memory]; values REFERENCES.md s.4 [numpy])', () => {

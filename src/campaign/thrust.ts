@@ -1,16 +1,17 @@
 /**
- * Thrust coefficient at a wind speed: the campaign gives one value or a curve of [speed m/s, Ct] pairs, interpolated
- * linearly and held constant beyond its ends.
+ * Thrust coefficient from the campaign: a single value, or a curve [[wind speed m/s, Ct], ...] interpolated
+ * linearly at the hub-height inflow speed and held constant beyond its ends.
  */
-export function thrustAt(ct: number | [number, number][], speed_ms: number): number {
-  if (typeof ct === 'number') return ct;
-  const pts = [...ct].sort((a, b) => a[0] - b[0]);
-  if (!(speed_ms > pts[0][0])) return pts[0][1];
-  for (let i = 1; i < pts.length; i++) {
-    if (speed_ms <= pts[i][0]) {
-      const [x0, y0] = pts[i - 1], [x1, y1] = pts[i];
-      return y0 + ((y1 - y0) * (speed_ms - x0)) / (x1 - x0);
+export function thrustCoefficientAt(ct: number | [number, number][], speed_ms: number): { ct: number; source: 'value' | 'curve' } {
+  if (typeof ct === 'number') return { ct, source: 'value' };
+  const c = [...ct].sort((a, b) => a[0] - b[0]);
+  if (!Number.isFinite(speed_ms)) return { ct: NaN, source: 'curve' };
+  if (speed_ms <= c[0][0]) return { ct: c[0][1], source: 'curve' };
+  for (let i = 1; i < c.length; i++) {
+    if (speed_ms <= c[i][0]) {
+      const t = (speed_ms - c[i - 1][0]) / (c[i][0] - c[i - 1][0]);
+      return { ct: c[i - 1][1] + t * (c[i][1] - c[i - 1][1]), source: 'curve' };
     }
   }
-  return pts[pts.length - 1][1];
+  return { ct: c[c.length - 1][1], source: 'curve' };
 }

@@ -1,7 +1,8 @@
 /**
- * A file as a sequence of blocks of complete lines, read with large reads into one reused buffer (no allocation per
- * read, no copy beyond moving the partial last line to the front). Each block is buf[0, end) and ends with '\n'
- * (one is supplied after a last line that lacks it). A block's bytes are valid until the next call to next().
+ * A file as a sequence of blocks of complete lines, read with large reads into two reused buffers (no allocation
+ * per read). While the caller parses one block, the next read already runs into the other buffer, behind the
+ * partial last line carried over. Each block is buf[0, end) and ends with '\n' (one is supplied after a last line
+ * that lacks it). A block's bytes are valid until the next call to next().
  *
  * A line longer than `maxLine` bytes is not held: next() reports it once as { long: true } with its first bytes
  * in buf[0, end), then skips the rest of it.
@@ -17,10 +18,14 @@ export interface LineBlock {
 
 export class LineBlocks {
   private buf: Buffer;
+  private other: Buffer;
   private total = 0; // bytes held in buf
   private used = 0; // bytes of buf handed out in the last block
   private eof = false;
   private skipping = false;
+  /** The read running into `other`, behind `carried` bytes copied there. */
+  private pending: Promise<number> | null = null;
+  private carried = 0;
 
   private constructor(
     private readonly fh: FileHandle,
@@ -28,64 +33,84 @@ export class LineBlocks {
     private readonly maxLine: number,
   ) {
     this.buf = Buffer.allocUnsafe(readSize);
+    this.other = Buffer.allocUnsafe(readSize);
   }
 
-  /** @param readSize bytes per read (the buffer grows only for long lines) @param maxLine longest line held whole */
+  /** @param readSize bytes per read (buffers grow only for long lines) @param maxLine longest line held whole */
   static async open(path: string, readSize = 1 << 20, maxLine = 1 << 20): Promise<LineBlocks> {
     return new LineBlocks(await open(path, 'r'), Math.max(1, readSize), maxLine);
   }
 
+  private async read(into: Buffer, at: number): Promise<number> {
+    const { bytesRead } = await this.fh.read(into, at, into.length - at, null);
+    return bytesRead;
+  }
+
+  /** Copies the unread tail of buf to the front of the other buffer and starts the next read behind it. */
+  private prefetch(): void {
+    if (this.eof) return;
+    const carry = this.total - this.used;
+    if (this.other.length < carry + this.readSize) this.other = Buffer.allocUnsafe(carry + this.readSize);
+    this.buf.copy(this.other, 0, this.used, this.total);
+    this.carried = carry;
+    this.pending = this.read(this.other, carry);
+    this.pending.catch(() => {}); // a failed read surfaces at the next next(), never as an unhandled rejection
+  }
+
+  private hand(end: number, long: boolean): LineBlock {
+    this.used = end;
+    this.prefetch();
+    return { buf: this.buf, end, long };
+  }
+
   async next(): Promise<LineBlock | null> {
-    if (this.used > 0) {
+    if (this.pending) {
+      const n = await this.pending;
+      this.pending = null;
+      const b = this.buf;
+      this.buf = this.other;
+      this.other = b;
+      this.total = this.carried + n;
+      this.used = 0;
+      if (n === 0) this.eof = true;
+    } else if (this.used > 0) {
       this.buf.copyWithin(0, this.used, this.total);
       this.total -= this.used;
       this.used = 0;
     }
     for (;;) {
-      if (this.eof) {
-        if (this.total === 0) return null;
-        this.ensure(this.total + 1);
-        this.buf[this.total++] = 10; // the last line had no line break
-        this.used = this.total;
-        return { buf: this.buf, end: this.total, long: false };
-      }
-      // read: the buffer holds at least readSize free bytes (it grows while a long line is being held)
-      this.ensure(this.total + this.readSize);
-      const start = this.total;
-      const { bytesRead } = await this.fh.read(this.buf, start, this.buf.length - start, null);
-      if (bytesRead === 0) {
-        this.eof = true;
-        if (this.skipping) {
-          this.total = 0;
+      if (this.skipping) {
+        const nl = this.buf.subarray(0, this.total).indexOf(10);
+        if (nl < 0) this.total = 0; // still inside the long line: drop what was read
+        else {
+          this.buf.copyWithin(0, nl + 1, this.total);
+          this.total -= nl + 1;
           this.skipping = false;
         }
-        continue;
       }
-      this.total += bytesRead;
-      if (this.skipping) {
-        const nl = this.buf.subarray(start, this.total).indexOf(10);
-        if (nl < 0) {
-          this.total = 0;
-          continue;
+      if (!this.skipping && this.total > 0) {
+        const nl = this.buf.subarray(0, this.total).lastIndexOf(10);
+        if (nl >= 0) return this.hand(nl + 1, false);
+        if (this.eof) {
+          this.ensure(this.total + 1);
+          this.buf[this.total++] = 10; // the last line had no line break
+          return this.hand(this.total, false);
         }
-        this.used = start + nl + 1;
-        this.buf.copyWithin(0, this.used, this.total);
-        this.total -= this.used;
-        this.used = 0;
-        this.skipping = false;
-        if (this.total === 0) continue;
+        if (this.total > this.maxLine) {
+          // an over-long line: report its start, then drop it up to its line break
+          this.skipping = true;
+          const block = { buf: this.buf, end: this.total, long: true };
+          this.used = this.total;
+          this.prefetch();
+          return block;
+        }
       }
-      const nl = this.buf.subarray(0, this.total).lastIndexOf(10);
-      if (nl >= 0) {
-        this.used = nl + 1;
-        return { buf: this.buf, end: nl + 1, long: false };
-      }
-      if (this.total > this.maxLine) {
-        // an over-long line: report its start, then drop it up to its line break
-        this.skipping = true;
-        this.used = this.total;
-        return { buf: this.buf, end: this.total, long: true };
-      }
+      if (this.eof) return null;
+      // no complete line yet: read more into this buffer
+      this.ensure(this.total + this.readSize);
+      const n = await this.read(this.buf, this.total);
+      if (n === 0) this.eof = true;
+      this.total += n;
     }
   }
 
@@ -97,6 +122,7 @@ export class LineBlocks {
   }
 
   async close(): Promise<void> {
+    if (this.pending) await this.pending.catch(() => 0);
     await this.fh.close();
   }
 }

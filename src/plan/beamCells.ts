@@ -14,7 +14,7 @@ import { DEG } from '../geometry/beam.ts';
 import { dirToRotor, type RotorFrame } from '../geometry/frames.ts';
 import { probeFootprint } from './footprint.ts';
 import type { PlaneGeometry } from './planeGeometry.ts';
-import { probeLength } from './probe.ts';
+import { probeLength } from '../geometry/probe.ts';
 import type { PlanSettings } from './settings.ts';
 
 /** Why a beam does not serve, or does not serve well, a cell (bit flags). */

@@ -1,19 +1,9 @@
 /**
  * Combinations of candidate indices (one per instrument): all of them when their number is within the cap, else a
- * seeded uniform random sample of `cap` distinct combinations (mulberry32 generator, a public-domain 32-bit PRNG by
- * T. Ettinger, 2017; common practice for reproducible sampling in JavaScript).
+ * seeded uniform random sample of `cap` distinct combinations (math/random.ts: a small public-domain 32-bit generator,
+ * common practice for reproducible sampling in JavaScript).
  */
-
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '../math/random.ts';
 
 export interface CombinationSet {
   combos: Int32Array[];

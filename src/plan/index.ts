@@ -4,8 +4,7 @@ export { writePlanOutputs, cellTableCsv, pointingCsv, layoutCsv } from './writeO
 export { writePlanImages, trustMapGrid } from './images.ts';
 export { resolvePlanSettings, meanDirection, type PlanOptions, type PlanSettings } from './settings.ts';
 export { planSchema, type PlanInput } from './schema.ts';
-export { cwHalfWidth, cwRayleighRange, cwWeight, pulsedWeight, pulsedFwhm, pulseWidthParameter, probeLength, SPEED_OF_LIGHT } from './probe.ts';
-export { erf } from './erf.ts';
+export { cwHalfWidth, cwRayleighRange, cwWeight, pulsedWeight, pulsedFwhm, pulseWidthParameter, probeLength, SPEED_OF_LIGHT } from '../geometry/probe.ts';
 export { probeFootprint, type Footprint } from './footprint.ts';
 export { beamCells, BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
 export { assessCells, passFractions, poolFractions, TrustCategory, trustCategoryName, CellReason, cellReasonNames, type CellTrust, type Fractions } from './cellTrust.ts';
@@ -15,4 +14,4 @@ export { pointingTable, type PointingTable, type PointingRow } from './pointing.
 export { planScanOrder, gridOrders, nearestNeighbourOrder, twoOpt, tourSlew, slewAngle, type Pointing, type ScanOrder } from './scanOrder.ts';
 export { searchLayouts, scoreLayout, compareLayouts, type LayoutScore, type LayoutSearchResult } from './layoutSearch.ts';
 export { candidatePositions } from './candidates.ts';
-export { combinations, mulberry32 } from './combinations.ts';
+export { combinations } from './combinations.ts';

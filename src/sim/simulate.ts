@@ -23,8 +23,9 @@ import { isoTime, parseTime } from '../io/time.ts';
 import { ConfigError } from '../errors.ts';
 import { trueVelocity, wakeAt, type WakeTruthParams } from './flow.ts';
 import { parseSimSettings, type SimSettings } from './settings.ts';
-import { mulberry32, gaussian } from './random.ts';
-import { thrustAt } from '../campaign/thrust.ts';
+import { mulberry32, gaussian } from '../math/random.ts';
+import { pulsedWeight } from '../geometry/probe.ts';
+import { thrustCoefficientAt } from '../campaign/thrust.ts';
 
 export interface SimulationSummary {
   files: string[];
@@ -39,21 +40,6 @@ interface WindowTruth {
   direction_deg: number;
   yaw_deg: number;
   params: WakeTruthParams;
-}
-
-const C_LIGHT = 299_792_458;
-
-/** Pulsed range weighting (Gaussian pulse convolved with the gate) at offset s, per metre. */
-function pulsedWeight(s: number, gate: number, pulseFwhm_ns: number): number {
-  const rp = (C_LIGHT * pulseFwhm_ns * 1e-9) / (4 * Math.sqrt(Math.LN2));
-  return (erf((s + gate / 2) / rp) - erf((s - gate / 2) / rp)) / (2 * gate);
-}
-
-/** Abramowitz & Stegun 7.1.26 (|error| < 1.5e-7), enough for simulation weights. */
-function erf(x: number): number {
-  const t = 1 / (1 + 0.3275911 * Math.abs(x));
-  const y = 1 - ((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t * Math.exp(-x * x);
-  return x >= 0 ? y : -y;
 }
 
 export function windowTruths(c: Campaign, s: SimSettings): WindowTruth[] {
@@ -72,7 +58,7 @@ export function windowTruths(c: Campaign, s: SimSettings): WindowTruth[] {
       hubHeight: c.turbine.hubHeight_m,
       diameter: c.turbine.rotorDiameter_m,
       shearExponent: s.shearExponent,
-      ct: thrustAt(c.turbine.thrustCoefficient, s.hubSpeed_ms),
+      ct: thrustCoefficientAt(c.turbine.thrustCoefficient, s.hubSpeed_ms).ct,
       yaw_deg: yaw,
       kStar: s.wakeGrowth_kstar,
       aspect: s.wakeAspect,
@@ -145,7 +131,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     const R = calibrationMatrix(ins.calibration);
     const gate = ins.pulsed.gateLength_m;
     const wOff = weightsOffsets.map((f) => f * gate);
-    const wts = wOff.map((o) => pulsedWeight(o, gate, ins.pulsed.pulseFwhm_ns));
+    const wts = wOff.map((o) => pulsedWeight(o, ins.pulsed.pulseFwhm_ns * 1e-9, gate));
     const wSum = wts.reduce((a, b) => a + b, 0);
     let n = 0;
     let t = tStart + rnd() * 2;

@@ -15,7 +15,7 @@ import { resolveWakeOptions, type WakeOptions } from './options.ts';
 import { analysePlaneWindow, type InflowSpec } from './planeWindow.ts';
 import { downstreamCurves } from './downstream.ts';
 import { binSteering } from './steering.ts';
-import { thrustCoefficientAt } from './thrust.ts';
+import { thrustCoefficientAt } from '../campaign/thrust.ts';
 import { kStarFromTurbulence } from './wakeModels.ts';
 import { median } from './stats.ts';
 

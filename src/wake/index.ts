@@ -15,7 +15,7 @@ export * from './rews.ts';
 export * from './momentum.ts';
 export * from './wakeModels.ts';
 export * from './deflection.ts';
-export * from './thrust.ts';
+export * from '../campaign/thrust.ts';
 export * from './yawOffset.ts';
 export * from './steering.ts';
 export * from './downstream.ts';

@@ -23,7 +23,7 @@ import { rewsOnGrid } from './rews.ts';
 import { momentumDeficit, thrustMomentum } from './momentum.ts';
 import { horizontalCut, sampleBilinear, verticalCut } from './profiles.ts';
 import { horizontalTrack } from './horizontalTrack.ts';
-import { thrustCoefficientAt } from './thrust.ts';
+import { thrustCoefficientAt } from '../campaign/thrust.ts';
 import { windowYaw } from './yawOffset.ts';
 import { median, quantile } from './stats.ts';
 

@@ -17,7 +17,7 @@
  * Units: metres, seconds; phi in 1/m.
  */
 import type { Instrument } from '../campaign/types.ts';
-import { erf } from './erf.ts';
+import erf from '@stdlib/math-base-special-erf';
 
 /** Speed of light in vacuum, m/s (exact, SI definition). */
 export const SPEED_OF_LIGHT = 299_792_458;
