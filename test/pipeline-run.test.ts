@@ -184,3 +184,22 @@ describe('regression: scan points fixed while the wind direction turns', () => {
     expect(cells.length).toBeGreaterThan(50);
   });
 });
+
+describe('window and direction options', () => {
+  it('a record window spans the whole record with a fixed wind direction, and the field states it', async () => {
+    const { dir, file } = writeTinyCampaign({ name: 'record-window' });
+    await simulateCampaign(loadCampaignFile(file)); // the simulator needs fixed windows; switch afterwards
+    const text = readFileSync(file, 'utf8').replace(/windows:\n\s+kind: fixed\n\s+length_s: 600\n/, 'windows:\n  kind: record\n').replace(/windDirection:\n\s+kind: series\n\s+file: data\/wind_direction.csv\n/, 'windDirection:\n  kind: fixed\n  deg: 270\n');
+    writeFileSync(file, text);
+    const c = loadCampaignFile(file);
+    expect(c.windows.kind).toBe('record');
+    expect(c.windDirection).toEqual({ kind: 'fixed', deg: 270 });
+    const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out'), images: false });
+    expect(manifest.windows.length).toBe(1);
+    // The simulated record is 3 windows of 600 s; the record window runs from the first to the last sample.
+    expect(manifest.windows[0].end_s - manifest.windows[0].start_s).toBeGreaterThan(1700);
+    expect(manifest.windows[0].end_s - manifest.windows[0].start_s).toBeLessThanOrEqual(1800);
+    expect(manifest.windows[0].direction_deg).toBe(270);
+    expect(manifest.samples.balanced).toBe(true);
+  });
+});

@@ -6,6 +6,9 @@
 import sharp from 'sharp';
 import { writeFileAtomic } from '../io/atomic.ts';
 
+// Figures are rendered one at a time and never reused: sharp's operation cache would only hold memory.
+sharp.cache(false);
+
 export interface WriteImageOptions {
   /** Rendering density, dots per inch; default 300. */
   density?: number;
