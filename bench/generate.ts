@@ -14,7 +14,8 @@
  * (default rows 10,000,000 or $WAKEPLANE_BENCH_ROWS; default dir $WAKEPLANE_BENCH_DIR or <tmp>/wakeplane-bench).
  * Files already generated with the same parameters are reused.
  */
-import { createWriteStream, existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { createReadStream, createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, statSync, writeFileSync } from 'node:fs';
+import { createInterface } from 'node:readline';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -197,6 +198,35 @@ export async function generateBench(rows: number, dir = benchDir(), log: (s: str
   }
   const bytes = all.reduce((s, f) => s + statSync(f).size, 0);
   return { dir: sub, campaign, files: all, rows, bytes, reused };
+}
+
+/**
+ * A copy of `file` with ISO 8601 times (millisecond precision, 'Z') instead of Unix seconds, written beside it
+ * once (iso-<name>) and reused; for measuring the reader on ISO stamps.
+ */
+export async function isoCopy(file: string): Promise<string> {
+  const out = join(resolve(file, '..'), `iso-${file.split('/').pop()}`);
+  if (existsSync(out) && statSync(out).mtimeMs >= statSync(file).mtimeMs) return out;
+  const tmp = `${out}.${process.pid}.tmp`;
+  const ws = createWriteStream(tmp);
+  let first = true, buf = '';
+  for await (const line of createInterface({ input: createReadStream(file), crlfDelay: Infinity })) {
+    if (first) {
+      buf += line + '\n';
+      first = false;
+      continue;
+    }
+    const c = line.indexOf(',');
+    buf += new Date(Math.round(Number(line.slice(0, c)) * 1000)).toISOString() + line.slice(c) + '\n';
+    if (buf.length > 1 << 18) {
+      if (!ws.write(buf)) await new Promise<void>((r) => ws.once('drain', () => r()));
+      buf = '';
+    }
+  }
+  ws.write(buf);
+  await new Promise<void>((res, rej) => ws.end((err?: Error | null) => (err ? rej(err) : res())));
+  renameSync(tmp, out);
+  return out;
 }
 
 export function rowsFromArgs(argv: string[]): number {

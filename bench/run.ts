@@ -15,7 +15,7 @@ import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parse } from 'yaml';
 import { readSamples } from '../src/io/csvSamples.ts';
-import { generateBench, rowsFromArgs, type BenchData } from './generate.ts';
+import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
 
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
 const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300 };
@@ -59,11 +59,11 @@ async function newlinePass(d: BenchData): Promise<{ seconds: number; newlines: n
   return best!;
 }
 
-async function readerOnly(d: BenchData, instrumentIds: string[]): Promise<{ seconds: number; rows: number; rejected: number }> {
+async function readerOnly(files: string[], instrumentIds: string[]): Promise<{ seconds: number; rows: number; rejected: number }> {
   const instrumentIndex = new Map(instrumentIds.map((id, k) => [id, k]));
   const t0 = process.hrtime.bigint();
   let rows = 0, rejected = 0;
-  for (const f of d.files) {
+  for (const f of files) {
     const owner = instrumentIds.findIndex((id) => f.includes(`/${id}-`));
     for await (const c of readSamples(f, { instrumentIndex, owner, columns: {}, sign: 'away' })) {
       rows += c.batch.length;
@@ -91,13 +91,21 @@ async function main() {
   console.log(`  ${nlp.newlines.toLocaleString('en')} line feeds (= rows + ${headerLines} headers: ${nlp.newlines === rows + headerLines ? 'yes' : 'NO'})`);
 
   console.log('2. reader only (in process, readSamples over every file)');
-  const ro = await readerOnly(d, ids);
+  const ro = await readerOnly(d.files, ids);
   console.log(`  ${ro.rows.toLocaleString('en')} rows in batches + ${ro.rejected} rejected = ${(ro.rows + ro.rejected).toLocaleString('en')} (${ro.rows + ro.rejected === rows ? 'all rows' : 'COUNT MISMATCH'})`);
+  console.log('   the first file again with ISO 8601 times (copy made once)');
+  const isoFile = await isoCopy(d.files[0]);
+  const unix1 = await readerOnly([d.files[0]], ids);
+  const iso1 = await readerOnly([isoFile], ids);
+  console.log(`  same rows: ${unix1.rows === iso1.rows && unix1.rejected === iso1.rejected ? 'yes' : 'NO'}`);
 
   let pipe: { seconds: number; read?: number; manifestRate?: number; peakRss_MB?: number; timeRss_MB?: number; timings?: Record<string, number>; failed?: string } | undefined;
   if (!skipPipeline) {
     console.log('3. whole job (child: node bin/wakeplane.js run <campaign> --quiet --no-images)');
     const runDir = join(resolve(campaignDoc.output.dir), campaignDoc.name);
+    // the output folder belongs to the benchmark (inside its data folder): start empty, so that earlier results
+    // are not kept as <name>.replaced-<time> run after run
+    if (resolve(campaignDoc.output.dir) === join(d.dir, 'output')) rmSync(resolve(campaignDoc.output.dir), { recursive: true, force: true });
     const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', d.campaign, '--quiet', '--no-images'], true);
     if (r.code !== 0) {
       pipe = { seconds: r.seconds, failed: `exit ${r.code}: ${r.stderr.split('\n').filter((l) => !/^\s+\S.*: /.test(l) || /rror/.test(l)).slice(-8).join('\n')}` };
@@ -117,6 +125,7 @@ async function main() {
   out(`bytes                    ${d.bytes.toLocaleString('en')} (${fmt(d.bytes / 2 ** 20, 1)} MiB, ${d.files.length} files)`);
   out(`newline pass             ${fmt(nlp.seconds, 3)} s   ${fmt(rows / nlp.seconds / 1e6)} M rows/s   ${fmt(nlp.bytes / nlp.seconds / 2 ** 20, 0)} MiB/s`);
   out(`reader only              ${fmt(ro.seconds, 3)} s   ${fmt(rows / ro.seconds / 1e6)} M rows/s   (${fmt(ro.seconds / nlp.seconds)} x newline pass)`);
+  out(`reader, first file       Unix times ${fmt(unix1.rows / unix1.seconds / 1e6)} M rows/s, ISO times ${fmt(iso1.rows / iso1.seconds / 1e6)} M rows/s`);
   if (pipe?.failed) out(`pipeline                 FAILED after ${fmt(pipe.seconds, 1)} s: ${pipe.failed}`);
   else if (pipe) {
     const rate = rows / pipe.seconds, ratio = pipe.seconds / nlp.seconds;
@@ -136,7 +145,6 @@ async function main() {
   const resultFile = join(d.dir, `bench-result-${new Date().toISOString().replace(/[:.]/g, '')}.txt`);
   writeFileSync(resultFile, lines.join('\n') + '\n');
   console.log(`(saved to ${resultFile})`);
-  if (process.argv.includes('--clean-output')) rmSync(join(resolve(campaignDoc.output.dir), campaignDoc.name), { recursive: true, force: true });
 }
 
 await main();
