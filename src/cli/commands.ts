@@ -10,12 +10,14 @@ import type { Campaign } from '../campaign/types.ts';
 import { OptionError } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { runCampaign, type RunResult } from '../pipeline/run.ts';
-import { simulateCampaign } from '../sim/simulate.ts';
 import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
 import { createProgress } from './progress.ts';
-import { formatPlanSummary, planAndWrite } from '../pipeline/plan.ts';
 import type { PlanSummary } from '../plan/index.ts';
+
+// The simulator, the planner and (through the stages) the image stack load only in the commands that use them.
+const simulator = () => import('../sim/simulate.ts');
+const planner = () => import('../pipeline/plan.ts');
 
 const REPO_ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
@@ -40,7 +42,7 @@ async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promis
   const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan }) });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
-  if (summary) say(a.quiet, formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
+  if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
   return res;
 }
 
@@ -59,7 +61,7 @@ export function commands(y: Argv): Argv {
         const c = loadCampaignFile(DEMO_CAMPAIGN);
         if (a.regenerate || dataMissing(c)) {
           say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
-          const s = await simulateCampaign(c);
+          const s = await (await simulator()).simulateCampaign(c);
           say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
         }
         await runAndReport(c, { ...(a as unknown as Common), plan: true });
@@ -84,7 +86,7 @@ export function commands(y: Argv): Argv {
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         if (!c.simulation) throw new OptionError('campaign', `${c.sourceFile} has no "simulation" section to simulate from`);
-        const s = await simulateCampaign(c);
+        const s = await (await simulator()).simulateCampaign(c);
         say(a.quiet as boolean, `wrote ${s.files.length} files (${Object.entries(s.rows).map(([k, v]) => `${k}: ${v.toLocaleString('en')} samples`).join(', ')}); truth in ${s.truthDir}`);
       },
     )
@@ -95,7 +97,7 @@ export function commands(y: Argv): Argv {
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         const outRoot = resolve((a.out as string | undefined) ?? c.output.dir);
-        const res = await planAndWrite(c, join(outRoot, c.name), { images: a.images as boolean });
+        const res = await (await planner()).planAndWrite(c, join(outRoot, c.name), { images: a.images as boolean });
         say(a.quiet as boolean, res.summary);
       },
     )

@@ -208,7 +208,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
   // Every file of every instrument, read in step.
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
   const cursors = files.map((f) => ({
-    it: readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign })[Symbol.asyncIterator](),
+    // 16k-row batches: the same speed as larger ones with less memory held per open file.
+    it: readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     path: f.path,

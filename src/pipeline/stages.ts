@@ -5,15 +5,13 @@
  * 2. images: plane images and geometry maps per field (using shared.wakeRows), summary plots at the end.
  * 3. plan (optional, `wakeplane demo` and `run --plan`): the planner's outputs under plan/ (shared.plan).
  * 4. report: report.html listing every output recorded before it.
+ * The image stack (sharp) and the planner load only when a run uses them, so a run without images starts faster.
  */
 import { join } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { readSeries, type Series } from '../io/series.ts';
-import { planCampaign, writePlanOutputs, type PlanSummary } from '../plan/index.ts';
-import { renderGeometryMaps, renderPlaneImages } from '../render/planeImages.ts';
-import { writeReport, type ReportExtras } from '../render/report.ts';
-import { wakeReportTables } from '../render/reportTables.ts';
-import { renderSummaryPlots } from '../render/summaryPlots.ts';
+import type { PlanSummary } from '../plan/index.ts';
+import type { ReportExtras } from '../render/report.ts';
 import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
 import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
@@ -68,12 +66,15 @@ export function imageStage(): RunStage {
     name: 'images',
     async field(f, ctx) {
       if (!ctx.images) return [];
+      const { renderGeometryMaps, renderPlaneImages } = await import('../render/planeImages.ts');
       const wake = wakeRows(ctx.shared).get(f);
       return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
     },
     async finish(ctx) {
       const a = ctx.shared.wake as WakeAnalysis | undefined;
-      return ctx.images && a ? renderSummaryPlots(a, ctx.campaign, ctx.runDir) : [];
+      if (!ctx.images || !a) return [];
+      const { renderSummaryPlots } = await import('../render/summaryPlots.ts');
+      return renderSummaryPlots(a, ctx.campaign, ctx.runDir);
     },
   };
 }
@@ -82,6 +83,7 @@ export function planStage(): RunStage {
   return {
     name: 'planner',
     async finish(ctx) {
+      const { planCampaign, writePlanOutputs } = await import('../plan/index.ts');
       const result = planCampaign(ctx.campaign);
       ctx.shared.plan = result.summary;
       return writePlanOutputs(result, ctx.campaign, ctx.runDir, { images: ctx.images });
@@ -118,6 +120,8 @@ export function reportStage(): RunStage {
     name: 'report',
     async finish(ctx) {
       if (!ctx.images) return [];
+      const { writeReport } = await import('../render/report.ts');
+      const { wakeReportTables } = await import('../render/reportTables.ts');
       const a = ctx.shared.wake as WakeAnalysis | undefined;
       const plan = ctx.shared.plan as PlanSummary | undefined;
       const extras: ReportExtras = {};
