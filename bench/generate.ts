@@ -20,6 +20,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { stringify } from 'yaml';
+import { mulberry32 as prng } from '../src/math/random.ts';
 
 export interface BenchParams {
   rows: number;
@@ -51,17 +52,6 @@ export function benchDir(): string {
   return resolve(process.env.WAKEPLANE_BENCH_DIR || join(tmpdir(), 'wakeplane-bench'));
 }
 
-/** mulberry32: small, fast, seeded. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Fixed-point text with `d` decimals (faster than toFixed for the 50 million numbers written). */
 function fixed(x: number, p: number, d: number): string {

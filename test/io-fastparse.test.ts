@@ -6,18 +6,8 @@
 import { describe, expect, it } from 'vitest';
 import { createDayCache, daysFromCivil, parseDecimal, parsedTo } from '../src/io/fastParse.ts';
 import { parseNumberField, parseTimeField, wrap360 } from '../src/io/sampleRow.ts';
+import { mulberry32 as rng } from '../src/math/random.ts';
 
-/** Small seeded PRNG (mulberry32) so failures reproduce. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const B = (s: string) => Buffer.from(s, 'latin1');
 const num = (s: string) => parseNumberField(B(s), 0, s.length);

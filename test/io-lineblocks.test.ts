@@ -7,20 +7,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { LineBlocks } from '../src/io/lineBlocks.ts';
+import { mulberry32 as rng } from '../src/math/random.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'wakeplane-blocks-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Lines as read through LineBlocks; a long line appears as '<long:first bytes>'. */
 async function linesOf(path: string, readSize: number, maxLine: number): Promise<string[]> {

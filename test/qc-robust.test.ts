@@ -5,18 +5,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { MAD_TO_SIGMA, mad, median, medianInPlace, robustSigma, selectInPlace } from '../src/qc/robust.ts';
+import { mulberry32 as rng } from '../src/math/random.ts';
 
-/** Deterministic generator (mulberry32) so failures reproduce. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function sortedMedian(x: ArrayLike<number>): number {
   const s = Array.from(x).sort((p, q) => p - q);
