@@ -138,7 +138,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     const counters = new Counters(c.instruments.length);
     const outputs: OutputRecord[] = [];
     const windows: WindowRecord[] = [];
-    const assumptions = new Set<string>();
+    // Each assumption with the plane-windows it applied to, stated once in the manifest.
+    const assumptions = new Map<string, string[]>();
     let rejectedOut: AtomicStream | undefined;
     let rejectedCount = 0;
     if (c.output.writeRejected) {
@@ -201,7 +202,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
             const rel = fieldTableName(f, ordinal);
             await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
             outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
-            for (const a of f.assumptions) assumptions.add(`${a} (${f.planeId}, window ${ordinal})`);
+            for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
           }
           writeTime += (performance.now() - tw) / 1000;
           for (const stage of stages) {
@@ -232,7 +233,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     const { perInstrument, total } = accountsFrom(c, counters);
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
-    manifest.assumptions = [...assumptions];
+    const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
+    manifest.assumptions = [...assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
     // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
