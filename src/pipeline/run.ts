@@ -181,7 +181,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           rejectedCount += rows.length;
           if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
         },
-        onProgress: (file, rows) => progress.file(file, rows),
+        onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
         async onWindow(w) {
           const tr = performance.now();
           // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
