@@ -212,7 +212,16 @@ function imagesHtml(images: OutputRecord[]): string {
     groups.set(key, [...(groups.get(key) ?? []), fig]);
   }
   const ordered = [...groups].sort(([a], [b]) => (a === 'Summary' ? -1 : b === 'Summary' ? 1 : 0));
-  return ordered.map(([k, figs]) => `<h3>${esc(k)}</h3><div class="gallery">${figs.join('\n')}</div>`).join('\n');
+  // Summary figures open; each plane and window in its own fold (the first one open) so a long campaign stays
+  // browsable.
+  let folds = 0;
+  return ordered
+    .map(([k, figs]) => {
+      const gallery = `<div class="gallery">${figs.join('\n')}</div>`;
+      if (k === 'Summary') return `<h3>${esc(k)}</h3>${gallery}`;
+      return `<details class="fold"${folds++ === 0 ? ' open' : ''}><summary>${esc(k)} <span class="note">(${figs.length} figures)</span></summary>${gallery}</details>`;
+    })
+    .join('\n');
 }
 
 function tableHtml(t: ReportTable, maxRows: number): string {

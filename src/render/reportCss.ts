@@ -35,6 +35,8 @@ th.group { text-align: center; border-bottom: 1px solid var(--rule); font-weight
 th.reason { white-space: normal; font-weight: normal; max-width: 9em; vertical-align: bottom; }
 tr.total td { border-top: 1px solid var(--ink); font-weight: bold; }
 .scroll { overflow-x: auto; max-width: 100%; }
+details.fold { margin: 8px 0; border-top: 1px solid var(--faint); }
+details.fold > summary { cursor: pointer; padding: 6px 0; font-weight: bold; }
 .note { color: var(--muted); font-size: 12.5px; }
 .ok { color: #2d6a3e; }
 .bad { color: var(--warn); font-weight: bold; }
