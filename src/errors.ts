@@ -12,7 +12,7 @@ export class ConfigError extends Error {
     readonly received?: unknown,
   ) {
     super(
-      `${file}: ${keyPath || '(root)'}: ${rule}` +
+      `${file}: ${keyPath ? `${keyPath}: ` : ''}${rule}` +
         (received === undefined ? '' : ` (got ${JSON.stringify(received)?.slice(0, 120)})`),
     );
     this.name = 'ConfigError';
