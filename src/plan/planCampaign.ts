@@ -30,17 +30,8 @@ export interface PlanSummary {
   /** Pooled over all planes. */
   rotor: Fractions;
   plane: Fractions;
-  pointing: {
-    instrumentId: string;
-    planeId: string;
-    points: number;
-    skipped: number;
-    slew_deg: number;
-    rasterSlew_deg: number;
-    serpentineSlew_deg: number;
-    passTime_s: number;
-    rasterPassTime_s: number;
-  }[];
+  /** Per instrument and plane: the pointing table's figures without its rows. */
+  pointing: (Omit<PointingTable, 'rows'> & { points: number })[];
   layout?: {
     total: number;
     evaluated: number;
