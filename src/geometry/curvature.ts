@@ -14,8 +14,12 @@ export function beamHeight(range_m: number, elevation_rad: number, ke = EFFECTIV
   return num / (Math.sqrt(range_m * range_m + R * R + 2 * range_m * R * Math.sin(elevation_rad)) + R);
 }
 
-export function groundDistance(range_m: number, elevation_rad: number, ke = EFFECTIVE_RADIUS_FACTOR, a = EARTH_RADIUS_M): number {
+/** `height_m` may be passed when beamHeight was already computed for the same beam and range. */
+export function groundDistance(
+  range_m: number, elevation_rad: number, ke = EFFECTIVE_RADIUS_FACTOR, a = EARTH_RADIUS_M,
+  height_m = beamHeight(range_m, elevation_rad, ke, a),
+): number {
   const R = ke * a;
-  const h = beamHeight(range_m, elevation_rad, ke, a);
+  const h = height_m;
   return R * Math.asin((range_m * Math.cos(elevation_rad)) / (R + h));
 }

@@ -176,7 +176,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
       let pe: number, pn: number, pu: number;
       if (curvature) {
         const elev = Math.asin(Math.max(-1, Math.min(1, nu)));
-        const s = groundDistance(r, elev), h = beamHeight(r, elev);
+        const h = beamHeight(r, elev), s = groundDistance(r, elev, undefined, undefined, h);
         const hn = Math.hypot(ne, nn) || 1;
         pe = posE[ins] + (s * ne) / hn; pn = posN[ins] + (s * nn) / hn; pu = posU[ins] + h;
       } else {
