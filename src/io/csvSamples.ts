@@ -27,7 +27,7 @@ import { InputError } from '../errors.ts';
 import type { RejectReason } from '../qc/reasons.ts';
 import type { RejectedRow, SampleBatch } from './batch.ts';
 import { LineBlocks, type LineBlock } from './lineBlocks.ts';
-import { createDayCache, parseDecimal, parseIsoBytes, parsedTo } from './fastParse.ts';
+import { NAN, POW10, createDayCache, parseDecimal, parseIsoBytes, parsedTo } from './fastParse.ts';
 import { R_AZ, R_CNR, R_EL, R_IGNORE, R_INST, R_RANGE, R_TIME, R_VR, resolveColumns, type ColumnLayout } from './sampleColumns.ts';
 import { parseRowSlow, wrap360, type RowContext, type RowValues } from './sampleRow.ts';
 
@@ -87,6 +87,8 @@ interface ReaderState {
   idBytes: Uint8Array;
   idLen: number;
   idIndex: number;
+  /** Field values of the row being parsed, by role (fillCanonical). */
+  values: Float64Array;
 }
 
 const dec = new TextDecoder();
@@ -154,6 +156,103 @@ function instrumentOf(st: ReaderState, buf: Uint8Array, s: number, e: number): n
   st.idLen = len;
   st.idIndex = idx;
   return idx;
+}
+
+/** True when the columns are exactly time, instrument, azimuth, elevation, range, radial velocity, cnr, in that order. */
+export function isCanonicalLayout(L: ColumnLayout): boolean {
+  if (L.needed !== 7) return false;
+  for (let c = 0; c < 7; c++) if (L.roleOf[c] !== c) return false;
+  return true;
+}
+
+/**
+ * fillBatch for the canonical column order (what the simulator writes and most files hold): the same grammar and
+ * checks as fillBatch with parseDecimal (plain decimals of at most 15 digits, no exponent), written as one small
+ * loop over the numeric fields inside this function so that the optimiser keeps it whole; measured about 1.5x
+ * faster than the role dispatch on the benchmark. Any line it cannot take whole goes to the careful path.
+ * Scanning may run to the block's last byte only: a block always ends with a line feed, where every field stops.
+ */
+function fillCanonical(st: ReaderState, buf: Buffer, pos: number, end: number): number {
+  const L: ColumnLayout = st.ctx.layout;
+  const days = st.ctx.days;
+  const b = st.batch, cap = b.time.length;
+  const LN = b.line, T = b.time, I = b.instrument, AZ = b.azimuth, EL = b.elevation, RG = b.range, VR = b.radialVelocity, CN = b.cnr;
+  const sc = L.scale, of = L.offset, V = st.values;
+  let n = b.length;
+  let line = st.line;
+  while (pos < end && n < cap) {
+    line++;
+    const first = buf[pos];
+    if (first === 10 || (first === 13 && buf[pos + 1] === 10)) { pos += first === 10 ? 1 : 2; continue; } // blank
+    let i = pos, ok = true, inst = -1;
+    // fields in order: time (0), instrument (1), azimuth .. cnr (2 .. 6); V[r] = SI value of role r
+    for (let r = 0; r < 7; r++) {
+      if (r === 1) {
+        const s0 = i;
+        let ch = buf[i];
+        while (ch !== 44 && ch !== 10 && ch !== 13 && ch !== 34) ch = buf[++i];
+        if (ch !== 44) { ok = false; break; }
+        inst = instrumentOf(st, buf, s0, i);
+        if (inst < 0) { ok = false; break; }
+        i++;
+        continue;
+      }
+      if (r === 0 && buf[i + 4] === 45) {
+        const t = parseIsoBytes(buf, i, end, days);
+        if (t !== t) { ok = false; break; }
+        V[0] = t + of[0];
+        i = parsedTo();
+      } else {
+        const f0 = i;
+        let c = buf[i], neg = false;
+        if (c === 45) { neg = true; c = buf[++i]; }
+        else if (c === 43) c = buf[++i];
+        let m = 0, nd = 0, fd = 0;
+        while (c >= 48 && c <= 57) { m = m * 10 + (c - 48); nd++; c = buf[++i]; }
+        if (c === 46) {
+          c = buf[++i];
+          while (c >= 48 && c <= 57) { m = m * 10 + (c - 48); fd++; c = buf[++i]; }
+        }
+        nd += fd;
+        if (nd === 0 || nd > 15) {
+          // an empty cnr cell is allowed (NaN); anything else goes to the careful path
+          if (r === 6 && i === f0 && (c === 44 || c === 10 || c === 13)) V[6] = NAN[0];
+          else { ok = false; break; }
+        } else {
+          const v = fd === 0 ? m : m / POW10[fd];
+          V[r] = (neg ? -v : v) * sc[r] + of[r];
+        }
+      }
+      if (r < 6) {
+        if (buf[i] !== 44) { ok = false; break; }
+        i++;
+      }
+    }
+    let nl: number;
+    const ch = buf[i];
+    if (ok && ch === 10) nl = i;
+    else if (ok && ch === 13 && buf[i + 1] === 10) nl = i + 1;
+    else {
+      if (ok && ch !== 44) ok = false; // 44: ignored trailing fields
+      nl = buf.indexOf(10, i);
+    }
+    const az = V[2], el = V[3], rg = V[4];
+    if (ok && az >= -360 && az <= 720 && el >= -90 && el <= 90 && rg > 0 && rg < Infinity) {
+      LN[n] = line;
+      T[n] = V[0];
+      I[n] = inst;
+      AZ[n] = az > 0 && az < 360 ? az : wrap360(az);
+      EL[n] = el;
+      RG[n] = rg;
+      VR[n] = V[5];
+      CN[n] = V[6];
+      n++;
+    } else n = carefulLine(st, buf, pos, nl, n, line);
+    pos = nl + 1;
+  }
+  st.line = line;
+  b.length = n;
+  return pos;
 }
 
 /**
@@ -299,8 +398,10 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
       idBytes: new Uint8Array(64),
       idLen: -1,
       idIndex: -1,
+      values: new Float64Array(7),
     };
     const reuse = opts.reuseBatches ?? true;
+    const canonical = isCanonicalLayout(head.layout);
     let spare: SampleBatch | null = null;
     let block = head.block;
     let pos = head.pos;
@@ -311,7 +412,7 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
       }
       const { buf, end } = block;
       while (!block.long && pos < end) {
-        pos = fillBatch(st, buf, pos, end);
+        pos = canonical ? fillCanonical(st, buf, pos, end) : fillBatch(st, buf, pos, end);
         if (st.batch.length === batchSize) {
           const out: SampleChunk = { batch: st.batch, rejected: st.rejected };
           if (spare) {

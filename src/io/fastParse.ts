@@ -21,7 +21,7 @@ let stop = 0;
  * two as tagged values, boxing every parsed number into a heap object (measured: ~90 bytes of garbage per row and
  * 25 % slower); a NaN loaded from a typed array keeps the return value an unboxed double.
  */
-const NAN = new Float64Array([NaN]);
+export const NAN = new Float64Array([NaN]);
 
 /** Index just after the last byte the most recent parse consumed. */
 export function parsedTo(): number {
