@@ -1,7 +1,30 @@
 #!/usr/bin/env node
-// Entry point: loads the TypeScript sources through tsx's ESM loader, then runs the CLI.
-import { register } from 'tsx/esm/api';
+// Entry point. Runs the bundled build in dist/ when it was made from the current src/ (see bin/build.js), else
+// loads the TypeScript sources through tsx's loader: slower to start (about 0.4 s), same behaviour.
+import { readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { sourceStamp } from './stamp.js';
 
-register();
-const { main } = await import('../src/cli/main.ts');
+const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+
+function freshBuild() {
+  if (process.env.WAKEPLANE_FROM_SOURCE) return null;
+  try {
+    const built = JSON.parse(readFileSync(join(root, 'dist', 'build.json'), 'utf8'));
+    const now = sourceStamp(join(root, 'src'));
+    return built.files === now.files && built.newest_ms === now.newest_ms ? join(root, 'dist', 'main.js') : null;
+  } catch {
+    return null; // no build
+  }
+}
+
+const entry = freshBuild();
+let main;
+if (entry) ({ main } = await import(pathToFileURL(entry).href));
+else {
+  const { register } = await import('tsx/esm/api');
+  register();
+  ({ main } = await import('../src/cli/main.ts'));
+}
 await main(process.argv.slice(2));

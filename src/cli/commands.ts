@@ -2,7 +2,7 @@
  * The commands. Each handler loads and validates its inputs, calls the library, and prints a short summary.
  */
 import { existsSync } from 'node:fs';
-import { join, relative, resolve } from 'node:path';
+import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Argv } from 'yargs';
 import { loadCampaignFile, campaignJsonSchema } from '../campaign/load.ts';
@@ -19,7 +19,13 @@ import type { PlanSummary } from '../plan/index.ts';
 const simulator = () => import('../sim/simulate.ts');
 const planner = () => import('../pipeline/plan.ts');
 
-const REPO_ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
+/** The package's own folder: the nearest one above this module holding package.json (src/cli/ or dist/). */
+function packageRoot(): string {
+  let dir = dirname(fileURLToPath(import.meta.url));
+  while (!existsSync(join(dir, 'package.json')) && dirname(dir) !== dir) dir = dirname(dir);
+  return dir;
+}
+const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
 
 interface Common {

@@ -1,0 +1,43 @@
+#!/usr/bin/env node
+// Bundles src/ into dist/ with esbuild (one ES module per entry, shared chunks, packages left in node_modules) so
+// that the command starts without transpiling TypeScript on every run. Run by `npm run build` and by npm's
+// `prepare` step (so `npm ci` leaves a fresh build). bin/wakeplane.js uses dist/ only while it matches src/
+// (dist/build.json records the sources it was made from) and otherwise runs the sources through tsx.
+import { build } from 'esbuild';
+import { mkdirSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { sourceStamp } from './stamp.js';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+const dist = join(root, 'dist');
+const tmp = join(root, `dist.tmp-${process.pid}`);
+const stamp = sourceStamp(join(root, 'src'));
+
+rmSync(tmp, { recursive: true, force: true });
+mkdirSync(tmp, { recursive: true });
+try {
+  await build({
+    entryPoints: [join(root, 'src', 'cli', 'main.ts')],
+    outdir: tmp,
+    bundle: true,
+    splitting: true, // the image stack, planner and simulator stay in chunks loaded only by the commands that use them
+    format: 'esm',
+    platform: 'node',
+    target: 'node20',
+    packages: 'external',
+    sourcemap: 'linked', // node --enable-source-maps maps stack traces back to src/
+    logLevel: 'warning',
+  });
+  writeFileSync(join(tmp, 'build.json'), JSON.stringify(stamp) + '\n');
+  // swap in whole: a reader sees the old build or the new one, never half of one
+  const old = join(root, `dist.old-${process.pid}`);
+  try { renameSync(dist, old); } catch { /* no earlier build */ }
+  renameSync(tmp, dist);
+  rmSync(old, { recursive: true, force: true });
+  console.log(`wakeplane: built dist/ from ${stamp.files} source files`);
+} catch (e) {
+  rmSync(tmp, { recursive: true, force: true });
+  console.error(`wakeplane: build failed (${e instanceof Error ? e.message : e}); the command will run from src/ through tsx`);
+  process.exitCode = 1;
+}
