@@ -1,13 +1,16 @@
 /**
  * Throughput benchmark (`npm run bench`, or `node bin/run-ts.js bench/run.ts [--rows N] [--skip-pipeline]`).
  *
+ * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline.
  * 1. Generates the benchmark campaign if missing (bench/generate.ts; $WAKEPLANE_BENCH_DIR, default
  *    <tmp>/wakeplane-bench; rows from --rows or $WAKEPLANE_BENCH_ROWS, default 10,000,000).
  * 2. The bare pass: a child process streams the files and counts line feeds (bench/newlines.mjs): the floor.
  * 3. The reader alone, in this process: readSamples over every file, no pipeline (where the reading time goes).
  * 4. The whole job as a child process: `node bin/wakeplane.js run <campaign> --quiet --no-images`, timed here (wall
- *    clock), peak memory from its manifest and from /usr/bin/time -v when present.
- * Prints the figures and PASS/MISS against the targets; a benchmark reports, it does not fail.
+ *    clock), peak memory from its manifest and from /usr/bin/time -v when present. Runs --runs times (default 5),
+ *    each followed by a newline pass, so that the ratio is taken pair by pair while the machine's speed drifts;
+ *    medians are quoted with the range.
+ * Prints the figures and PASS/MISS against the targets (on the medians); a benchmark reports, it does not fail.
  */
 import { spawn } from 'node:child_process';
 import { existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -16,6 +19,8 @@ import { fileURLToPath } from 'node:url';
 import { parse } from 'yaml';
 import { readSamples } from '../src/io/csvSamples.ts';
 import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
+// @ts-expect-error plain JavaScript helper of the entry point, without type declarations
+import { sourceStamp } from '../bin/stamp.js';
 
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
 const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300 };
@@ -46,18 +51,28 @@ function runChild(cmd: string, args: string[], withTime: boolean): Promise<Child
   });
 }
 
-async function newlinePass(d: BenchData): Promise<{ seconds: number; newlines: number; bytes: number }> {
-  let best: { seconds: number; newlines: number; bytes: number } | undefined;
-  for (let k = 0; k < 2; k++) {
-    // twice: the first run may also fill the page cache; we keep the faster (both numbers printed)
-    const r = await runChild(process.execPath, [join(ROOT, 'bench', 'newlines.mjs'), ...d.files], false);
-    if (r.code !== 0) throw new Error(`newline pass failed: ${r.stderr}`);
-    const j = JSON.parse(r.stdout) as { newlines: number; bytes: number; seconds: number };
-    console.log(`  newline pass run ${k + 1}: ${r.seconds.toFixed(3)} s wall (${j.seconds.toFixed(3)} s inside)`);
-    if (!best || r.seconds < best.seconds) best = { seconds: r.seconds, newlines: j.newlines, bytes: j.bytes };
-  }
-  return best!;
+interface NewlineResult { seconds: number; newlines: number; bytes: number }
+
+async function newlinePass(d: BenchData): Promise<NewlineResult> {
+  const r = await runChild(process.execPath, [join(ROOT, 'bench', 'newlines.mjs'), ...d.files], false);
+  if (r.code !== 0) throw new Error(`newline pass failed: ${r.stderr}`);
+  const j = JSON.parse(r.stdout) as { newlines: number; bytes: number; seconds: number };
+  return { seconds: r.seconds, newlines: j.newlines, bytes: j.bytes };
 }
+
+/** For scale only (not a target): counting lines the usual Node way, node:readline, one string per line. */
+async function readlinePass(d: BenchData): Promise<number> {
+  const code = `const rl=require('node:readline'),fs=require('node:fs');(async()=>{let n=0;for(const f of process.argv.slice(1))for await(const _ of rl.createInterface({input:fs.createReadStream(f,{highWaterMark:1<<20}),crlfDelay:Infinity}))n++;console.log(n)})()`;
+  const r = await runChild(process.execPath, ['-e', code, ...d.files], false);
+  if (r.code !== 0) throw new Error(`readline pass failed: ${r.stderr}`);
+  return r.seconds;
+}
+
+const median = (xs: number[]) => {
+  const a = [...xs].sort((p, q) => p - q), m = a.length >> 1;
+  return a.length % 2 ? a[m] : (a[m - 1] + a[m]) / 2;
+};
+const spread = (xs: number[], d = 3) => `${fmt(median(xs), d)} [${fmt(Math.min(...xs), d)} - ${fmt(Math.max(...xs), d)}]`;
 
 async function readerOnly(files: string[], instrumentIds: string[]): Promise<{ seconds: number; rows: number; rejected: number }> {
   const instrumentIndex = new Map(instrumentIds.map((id, k) => [id, k]));
@@ -76,8 +91,18 @@ async function readerOnly(files: string[], instrumentIds: string[]): Promise<{ s
 const fmt = (x: number, d = 2) => x.toLocaleString('en', { maximumFractionDigits: d, minimumFractionDigits: d });
 const verdict = (ok: boolean) => (ok ? 'PASS' : 'MISS');
 
+function runsFromArgs(argv: string[]): number {
+  const k = argv.indexOf('--runs');
+  const n = k >= 0 ? Number(argv[k + 1]) : 5;
+  if (!Number.isInteger(n) || n < 1 || n > 50) throw new Error(`--runs: expected an integer from 1 to 50, got ${JSON.stringify(argv[k + 1])}`);
+  return n;
+}
+
+interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; timings: Record<string, number> }
+
 async function main() {
   const rows = rowsFromArgs(process.argv);
+  const runs = runsFromArgs(process.argv);
   const skipPipeline = process.argv.includes('--skip-pipeline');
   console.log(`wakeplane throughput benchmark: ${rows.toLocaleString('en')} rows; node ${process.version}`);
   const d = await generateBench(rows, undefined, (s) => console.log(s));
@@ -85,10 +110,10 @@ async function main() {
   const campaignDoc = parse(readFileSync(d.campaign, 'utf8')) as { name: string; instruments: { id: string }[]; output: { dir: string } };
   const ids = campaignDoc.instruments.map((i) => i.id);
 
-  console.log('1. bare pass (child process, count 0x0A)');
-  const nlp = await newlinePass(d);
+  console.log('1. bare pass (child process, count 0x0A), once to fill the page cache');
+  const nlp0 = await newlinePass(d);
   const headerLines = d.files.length;
-  console.log(`  ${nlp.newlines.toLocaleString('en')} line feeds (= rows + ${headerLines} headers: ${nlp.newlines === rows + headerLines ? 'yes' : 'NO'})`);
+  console.log(`  ${nlp0.newlines.toLocaleString('en')} line feeds (= rows + ${headerLines} headers: ${nlp0.newlines === rows + headerLines ? 'yes' : 'NO'})`);
 
   console.log('2. reader only (in process, readSamples over every file)');
   const ro = await readerOnly(d.files, ids);
@@ -99,48 +124,63 @@ async function main() {
   const iso1 = await readerOnly([isoFile], ids);
   console.log(`  same rows: ${unix1.rows === iso1.rows && unix1.rejected === iso1.rejected ? 'yes' : 'NO'}`);
 
-  let pipe: { seconds: number; read?: number; manifestRate?: number; peakRss_MB?: number; timeRss_MB?: number; timings?: Record<string, number>; failed?: string } | undefined;
+  const stamp = existsSync(join(ROOT, 'dist', 'build.json')) ? readFileSync(join(ROOT, 'dist', 'build.json'), 'utf8').trim() : '';
+  const entry = stamp === JSON.stringify(sourceStamp(join(ROOT, 'src'))) ? 'the bundled build (dist/)' : 'the sources through tsx (no fresh build: npm run build)';
+  const nl: number[] = [];
+  const pipes: PipeRun[] = [];
+  let failed: string | undefined;
   if (!skipPipeline) {
-    console.log('3. whole job (child: node bin/wakeplane.js run <campaign> --quiet --no-images)');
+    console.log(`3. whole job (child: node bin/wakeplane.js run <campaign> --quiet --no-images, from ${entry}), ${runs} runs, each followed by a newline pass`);
     const runDir = join(resolve(campaignDoc.output.dir), campaignDoc.name);
-    // the output folder belongs to the benchmark (inside its data folder): start empty, so that earlier results
-    // are not kept as <name>.replaced-<time> run after run
-    if (resolve(campaignDoc.output.dir) === join(d.dir, 'output')) rmSync(resolve(campaignDoc.output.dir), { recursive: true, force: true });
-    const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', d.campaign, '--quiet', '--no-images'], true);
-    if (r.code !== 0) {
-      pipe = { seconds: r.seconds, failed: `exit ${r.code}: ${r.stderr.split('\n').filter((l) => !/^\s+\S.*: /.test(l) || /rror/.test(l)).slice(-8).join('\n')}` };
-    } else {
+    for (let k = 0; k < runs && !failed; k++) {
+      // the output folder belongs to the benchmark (inside its data folder): start empty, so that earlier results
+      // are not kept as <name>.replaced-<time> run after run
+      if (resolve(campaignDoc.output.dir) === join(d.dir, 'output')) rmSync(resolve(campaignDoc.output.dir), { recursive: true, force: true });
+      const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', d.campaign, '--quiet', '--no-images'], true);
+      if (r.code !== 0) {
+        failed = `exit ${r.code}: ${r.stderr.split('\n').filter((l) => !/^\s+\S.*: /.test(l) || /rror/.test(l)).slice(-8).join('\n')}`;
+        break;
+      }
       const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as {
-        samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number; samplesPerSecond: number;
+        samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number;
       };
-      pipe = { seconds: r.seconds, read: m.samples.total.read, manifestRate: m.samplesPerSecond, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s };
+      pipes.push({ seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s });
+      nl.push((await newlinePass(d)).seconds);
+      console.log(`  run ${k + 1}: whole job ${fmt(r.seconds, 3)} s, newline pass ${fmt(nl[k], 3)} s`);
     }
-  }
+  } else nl.push(nlp0.seconds);
+  const rl = await readlinePass(d);
 
   const lines: string[] = [];
   const out = (s: string) => lines.push(s);
   out('');
-  out('=== results ===');
+  out('=== results (median [min - max]) ===');
   out(`rows                     ${rows.toLocaleString('en')}`);
   out(`bytes                    ${d.bytes.toLocaleString('en')} (${fmt(d.bytes / 2 ** 20, 1)} MiB, ${d.files.length} files)`);
-  out(`newline pass             ${fmt(nlp.seconds, 3)} s   ${fmt(rows / nlp.seconds / 1e6)} M rows/s   ${fmt(nlp.bytes / nlp.seconds / 2 ** 20, 0)} MiB/s`);
-  out(`reader only              ${fmt(ro.seconds, 3)} s   ${fmt(rows / ro.seconds / 1e6)} M rows/s   (${fmt(ro.seconds / nlp.seconds)} x newline pass)`);
+  const nlm = median(nl);
+  out(`newline pass             ${spread(nl)} s   ${fmt(rows / nlm / 1e6)} M rows/s   ${fmt(d.bytes / nlm / 2 ** 20, 0)} MiB/s`);
+  out(`  for scale, not a target: node:readline line count ${fmt(rl, 3)} s (one run)`);
+  out(`reader only              ${fmt(ro.seconds, 3)} s   ${fmt(rows / ro.seconds / 1e6)} M rows/s   (${fmt(ro.seconds / nlm)} x newline pass)`);
   out(`reader, first file       Unix times ${fmt(unix1.rows / unix1.seconds / 1e6)} M rows/s, ISO times ${fmt(iso1.rows / iso1.seconds / 1e6)} M rows/s`);
-  if (pipe?.failed) out(`pipeline                 FAILED after ${fmt(pipe.seconds, 1)} s: ${pipe.failed}`);
-  else if (pipe) {
-    const rate = rows / pipe.seconds, ratio = pipe.seconds / nlp.seconds;
-    out(`pipeline                 ${fmt(pipe.seconds, 3)} s wall   ${fmt(rate / 1e6)} M samples/s   (manifest: ${fmt((pipe.manifestRate ?? NaN) / 1e6)} M/s, read ${pipe.read?.toLocaleString('en')})`);
-    out(`pipeline stages (s)      ${Object.entries(pipe.timings ?? {}).map(([k, v]) => `${k} ${fmt(v, 2)}`).join(', ')}`);
-    out(`ratio pipeline/newline   ${fmt(ratio)}`);
-    const rss = Math.max(pipe.peakRss_MB ?? 0, pipe.timeRss_MB ?? 0);
-    out(`peak RSS                 manifest ${fmt(pipe.peakRss_MB ?? NaN, 0)} MB, /usr/bin/time ${pipe.timeRss_MB === undefined ? 'n/a' : fmt(pipe.timeRss_MB, 0) + ' MB'}`);
-    out('targets');
+  if (failed) out(`pipeline                 FAILED: ${failed}`);
+  else if (pipes.length) {
+    const secs = pipes.map((p) => p.seconds);
+    const rate = rows / median(secs);
+    const ratios = pipes.map((p, k) => p.seconds / nl[k]);
+    const ratio = median(ratios);
+    const rss = Math.max(...pipes.map((p) => Math.max(p.peakRss_MB, p.timeRss_MB ?? 0)));
+    out(`pipeline (${entry})`);
+    out(`  whole job              ${spread(secs)} s wall   ${fmt(rate / 1e6)} M samples/s [${fmt(rows / Math.max(...secs) / 1e6)} - ${fmt(rows / Math.min(...secs) / 1e6)}]   read ${pipes[0].read.toLocaleString('en')}`);
+    const keys = Object.keys(pipes[0].timings);
+    out(`  stages (s, median)     ${keys.map((k) => `${k} ${fmt(median(pipes.map((p) => p.timings[k] ?? 0)), 2)}`).join(', ')}`);
+    out(`  ratio to newline pass  ${spread(ratios, 2)} (pair by pair)`);
+    out(`  peak RSS               ${spread(pipes.map((p) => Math.max(p.peakRss_MB, p.timeRss_MB ?? 0)), 0)} MB (manifest and /usr/bin/time)`);
+    out('targets (on the medians; peak memory on the largest run)');
     out(`  ratio <= ${TARGET.ratio}              ${fmt(ratio)}   ${verdict(ratio <= TARGET.ratio)}`);
     out(`  samples/s >= 3e6         ${fmt(rate / 1e6)}e6   ${verdict(rate >= TARGET.samplesPerSecond)}`);
     out(`  peak RSS < ${TARGET.peakRss_MB} MB         ${fmt(rss, 0)} MB   ${verdict(rss < TARGET.peakRss_MB)}`);
-    if (pipe.read !== undefined && pipe.read !== rows) out(`  NOTE: manifest read ${pipe.read} != rows ${rows}`);
+    if (pipes.some((p) => p.read !== rows)) out(`  NOTE: manifest read != rows ${rows}`);
   }
-  out(`reader target >= 3e6 rows/s: ${fmt(rows / ro.seconds / 1e6)}e6   ${verdict(rows / ro.seconds >= TARGET.samplesPerSecond)}`);
   console.log(lines.join('\n'));
   const resultFile = join(d.dir, `bench-result-${new Date().toISOString().replace(/[:.]/g, '')}.txt`);
   writeFileSync(resultFile, lines.join('\n') + '\n');
