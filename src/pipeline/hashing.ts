@@ -3,6 +3,7 @@
  * the main thread parses.
  */
 import { Worker } from 'node:worker_threads';
+import type { FileDigest } from '../io/parseProtocol.ts';
 
 const WORKER = `
 const { parentPort, workerData } = require('node:worker_threads');
@@ -23,12 +24,7 @@ const { createReadStream, statSync } = require('node:fs');
 })();
 `;
 
-export interface FileDigest {
-  file: string;
-  bytes: number;
-  sha256: string;
-  error?: string;
-}
+export type { FileDigest };
 
 export function hashFiles(files: string[]): Promise<FileDigest[]> {
   return new Promise((resolve, reject) => {
