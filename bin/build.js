@@ -18,9 +18,7 @@ rmSync(tmp, { recursive: true, force: true });
 mkdirSync(tmp, { recursive: true });
 try {
   await build({
-    // the command, and the parse worker's script (started from dist/ beside the chunk that starts it)
-    entryPoints: [join(root, 'src', 'cli', 'main.ts'), join(root, 'src', 'io', 'parseWorker.ts')],
-    entryNames: '[name]',
+    entryPoints: [join(root, 'src', 'cli', 'main.ts')],
     outdir: tmp,
     bundle: true,
     splitting: true, // the image stack, planner and simulator stay in chunks loaded only by the commands that use them

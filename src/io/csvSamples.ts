@@ -50,10 +50,6 @@ export interface SampleReaderOptions {
    * batch is a fresh allocation the consumer may keep. @default true
    */
   reuseBatches?: boolean;
-  /** Supplies the arrays of each new batch (a pool of returned ones); default: fresh arrays. */
-  newBatch?: (file: string, rows: number) => SampleBatch;
-  /** Sees every byte of the file once, in order, as it is read (the header included): a checksum in the same pass. */
-  onRead?: (bytes: Uint8Array) => void;
 }
 
 export interface SampleChunk {
@@ -65,7 +61,7 @@ export interface SampleChunk {
 const MAX_LINE = 1 << 20;
 const MAX_TEXT = 500;
 
-export function createBatch(file: string, n: number): SampleBatch {
+function createBatch(file: string, n: number): SampleBatch {
   return {
     length: 0,
     file,
@@ -358,9 +354,9 @@ async function readHeader(path: string, opts: SampleReaderOptions, blocks: LineB
   return { layout, block, pos: nl + 1 };
 }
 
-async function openBlocks(path: string, readSize: number, onRead?: (bytes: Uint8Array) => void): Promise<LineBlocks> {
+async function openBlocks(path: string, readSize: number): Promise<LineBlocks> {
   try {
-    return await LineBlocks.open(path, readSize, MAX_LINE, onRead);
+    return await LineBlocks.open(path, readSize, MAX_LINE);
   } catch (e) {
     throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
   }
@@ -390,13 +386,12 @@ export async function checkHeader(path: string, opts: SampleReaderOptions): Prom
  */
 export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const batchSize = opts.batchSize ?? 65536;
-  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20, opts.onRead);
-  const newBatch = opts.newBatch ?? createBatch;
+  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20);
   try {
     const head = await readHeader(path, opts, blocks);
     const st: ReaderState = {
       ctx: { layout: head.layout, instrumentIndex: opts.instrumentIndex, owner: opts.owner, days: createDayCache() },
-      batch: newBatch(path, batchSize),
+      batch: createBatch(path, batchSize),
       rejected: [],
       line: 1,
       scratch: { time: NaN, instrument: 0, azimuth: NaN, elevation: NaN, range: NaN, radialVelocity: NaN, cnr: NaN },
@@ -424,7 +419,7 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
             spare.length = 0;
             st.batch = spare;
             spare = null;
-          } else st.batch = newBatch(path, batchSize);
+          } else st.batch = createBatch(path, batchSize);
           st.rejected = [];
           yield out;
           // the consumer pulled again: out.batch is free to be filled after the batch now being filled

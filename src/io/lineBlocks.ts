@@ -35,24 +35,18 @@ export class LineBlocks {
     private readonly fh: FileHandle,
     private readonly readSize: number,
     private readonly maxLine: number,
-    private readonly onRead?: (bytes: Uint8Array) => void,
   ) {
     this.buf = Buffer.allocUnsafe(readSize);
     this.other = Buffer.allocUnsafe(readSize);
   }
 
-  /**
-   * @param readSize bytes per read (buffers grow only for long lines) @param maxLine longest line held whole
-   * @param onRead sees every byte of the file once, in file order, as it is read (for a checksum in the same pass)
-   */
-  static async open(path: string, readSize = 1 << 20, maxLine = 1 << 20, onRead?: (bytes: Uint8Array) => void): Promise<LineBlocks> {
-    return new LineBlocks(await open(path, 'r'), Math.max(1, readSize), maxLine, onRead);
+  /** @param readSize bytes per read (buffers grow only for long lines) @param maxLine longest line held whole */
+  static async open(path: string, readSize = 1 << 20, maxLine = 1 << 20): Promise<LineBlocks> {
+    return new LineBlocks(await open(path, 'r'), Math.max(1, readSize), maxLine);
   }
 
   private async read(into: Buffer, at: number): Promise<number> {
     const { bytesRead } = await this.fh.read(into, at, into.length - at, null);
-    // reads never overlap (the next starts after this one was awaited), so onRead sees the file in order
-    if (this.onRead && bytesRead > 0) this.onRead(into.subarray(at, at + bytesRead));
     return bytesRead;
   }
 

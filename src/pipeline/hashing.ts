@@ -3,7 +3,6 @@
  * the main thread parses.
  */
 import { Worker } from 'node:worker_threads';
-import type { FileDigest } from '../io/parseProtocol.ts';
 
 const WORKER = `
 const { parentPort, workerData } = require('node:worker_threads');
@@ -24,7 +23,12 @@ const { createReadStream, statSync } = require('node:fs');
 })();
 `;
 
-export type { FileDigest };
+export interface FileDigest {
+  file: string;
+  bytes: number;
+  sha256: string;
+  error?: string;
+}
 
 export function hashFiles(files: string[]): Promise<FileDigest[]> {
   return new Promise((resolve, reject) => {

@@ -50,11 +50,6 @@ export interface IngestOptions {
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
-  /**
-   * The chunks of data file k (instruments' files in campaign order), as readSamples() yields them; default:
-   * readSamples() on this thread. The parse thread (io/parseThread.ts) supplies them from a worker.
-   */
-  openFile?(k: number): AsyncIterator<SampleChunk>;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -71,9 +66,6 @@ export class Counters {
     this.rejected[ins * REJECT_REASONS.length + reason] += n;
   }
 }
-
-/** Rows per batch read from a file. */
-export const INGEST_BATCH_ROWS = 16384;
 
 const R = REJECT_INDEX;
 const NR = REJECT_REASONS.length;
@@ -215,9 +207,9 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
 
   // Every file of every instrument, read in step.
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
-  const cursors = files.map((f, k) => ({
+  const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    it: opts.openFile?.(k) ?? readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH_ROWS })[Symbol.asyncIterator](),
+    it: readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     path: f.path,

@@ -43,8 +43,6 @@ export interface RunManifest {
   windows: WindowRecord[];
   outputs: OutputRecord[];
   timings_s: Record<string, number>;
-  /** Where the sample files were parsed: 'worker thread' (a second core) or 'main thread'. */
-  parsing: 'worker thread' | 'main thread';
   peakRss_bytes: number;
   samplesPerSecond: number;
   assumptions: string[];

@@ -7,12 +7,11 @@
  * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
 import { checkHeader } from '../io/csvSamples.ts';
-import { ParseThread, useParseThread, type ParseThreadChoice } from '../io/parseThread.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { isoTime } from '../io/time.ts';
@@ -20,7 +19,7 @@ import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } fro
 import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
-import { Counters, INGEST_BATCH_ROWS, ingest } from './ingest.ts';
+import { Counters, ingest } from './ingest.ts';
 import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
@@ -37,11 +36,6 @@ export interface RunOptions {
   progress?: RunProgress;
   /** Stages after retrieval (wake analysis, images, planner, report), in order; see stages.ts. */
   stages?: RunStage[];
-  /**
-   * Parse the sample files on a worker thread (io/parseThread.ts): 'auto' (default) when there are two cores and at
-   * least 32 MiB of input; the results are the same either way.
-   */
-  parseThread?: ParseThreadChoice;
 }
 
 export interface RunProgress {
@@ -122,6 +116,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   }
   const dirSeries: Series | undefined =
     c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  const digests = hashFiles(dataFiles.map((d) => d.file));
   lap('check_inputs', t);
 
   // 2. Staging folder.
@@ -130,15 +125,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const runDir = join(outRoot, `.${c.name}.partial-${process.pid}`);
   rmSync(runDir, { recursive: true, force: true });
   mkdirSync(runDir, { recursive: true });
-
-  const inputBytes = dataFiles.reduce((a, d) => a + statSync(d.file).size, 0);
-  // with the parse thread each file is read once, checksummed and parsed on the worker; otherwise a hashing worker
-  // reads the files beside the parsing main thread
-  const parser = useParseThread(opts.parseThread ?? (process.env.WP_PT as ParseThreadChoice | undefined) ?? 'auto', inputBytes)
-    ? new ParseThread(dataFiles.map(({ file, ins }) => ({ path: file, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign })), c.instruments.map((i) => i.id), INGEST_BATCH_ROWS)
-    : undefined;
-  const digests = parser && !process.env.WP_SEPHASH ? parser.digests() : hashFiles(dataFiles.map((d) => d.file));
-  digests.catch(() => {}); // a failure surfaces through the ingest; never as an unhandled rejection
 
   try {
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
@@ -173,7 +159,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       windows,
       outputs,
       timings_s: timings,
-      parsing: parser ? 'worker thread' : 'main thread',
       peakRss_bytes: 0,
       samplesPerSecond: 0,
       assumptions: [],
@@ -197,7 +182,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
-        openFile: parser ? (k) => parser.file(k) : undefined,
         async onWindow(w) {
           const tr = performance.now();
           // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
@@ -285,7 +269,5 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     progress.done();
     rmSync(runDir, { recursive: true, force: true });
     throw e;
-  } finally {
-    await parser?.close();
   }
 }
