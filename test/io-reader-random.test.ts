@@ -3,7 +3,8 @@
  * reference splits lines with String.prototype.split, reads numbers with Number() (ECMA-262 sec. 7.1.4.1.1) and ISO
  * times with Date.parse (ECMA-262 sec. 21.4.3.2), and applies the rules documented in src/io/sampleRow.ts (reason
  * order: field count; time, instrument, azimuth, elevation, range, radial velocity, CNR; then angle and range
- * checks). It shares no code with the reader.
+ * checks). It shares no code with the reader. Half the rows repeat the previous row's time, instrument and angles,
+ * as scanning instruments write one row per range gate.
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -76,6 +77,7 @@ function randomRows(r: () => number, n: number): string[] {
     return dec(lo * 3 - 100, hi * 3 + 100); // often out of range
   };
   const rows: string[] = [];
+  let prev: string[] = [];
   for (let k = 0; k < n; k++) {
     const ms = 1781395200000 + Math.floor(r() * 4e8);
     const q = r();
@@ -87,6 +89,9 @@ function randomRows(r: () => number, n: number): string[] {
     const ins = r() < 0.97 ? pick(['L1', 'L2']) : pick(['L9', '']);
     const cnr = r() < 0.1 ? '' : numField(-40, 10);
     let fields = [time, ins, numField(-10, 370), numField(-5, 60), numField(-20, 3000), numField(-30, 30), cnr];
+    // rays: half the rows repeat the previous row's time, instrument and angles (one row per range gate)
+    if (prev.length >= 4 && r() < 0.5) fields.splice(0, 4, ...prev.slice(0, 4));
+    prev = fields;
     const shape = r();
     if (shape < 0.02) fields = fields.slice(0, 2 + Math.floor(r() * 5)); // too few
     else if (shape < 0.04) fields.push('extra');
