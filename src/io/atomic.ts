@@ -50,16 +50,24 @@ export function openAtomicStream(path: string): AtomicStream {
   };
 }
 
-/** Formats one CSV row: numbers with up to 6 significant decimals, NaN as empty, strings quoted when needed. */
+const NEEDS_QUOTES = /[",\n\r]/;
+
+/**
+ * Formats one CSV row: numbers rounded to 9 significant digits and written in the shortest form that reads back as
+ * that rounded value (String(Number(x.toPrecision(9))), ECMA-262 Number::toString), NaN and infinities as empty,
+ * booleans as 1/0, strings quoted when they hold a quote, comma or line break (RFC 4180). Integers below 1e9 are
+ * their own 9-digit rounding and skip toPrecision (field tables are written row by row for every cell).
+ */
 export function csvRow(values: ReadonlyArray<string | number | boolean | null | undefined>): string {
-  return (
-    values
-      .map((v) => {
-        if (v === null || v === undefined) return '';
-        if (typeof v === 'number') return Number.isFinite(v) ? String(Number(v.toPrecision(9))) : '';
-        if (typeof v === 'boolean') return v ? '1' : '0';
-        return /[",\n\r]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
-      })
-      .join(',') + '\n'
-  );
+  let out = '';
+  for (let k = 0; k < values.length; k++) {
+    if (k > 0) out += ',';
+    const v = values[k];
+    if (typeof v === 'number') {
+      if (v === Math.trunc(v) && v > -1e9 && v < 1e9) out += String(v);
+      else if (Number.isFinite(v)) out += String(Number(v.toPrecision(9)));
+    } else if (typeof v === 'string') out += NEEDS_QUOTES.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+    else if (typeof v === 'boolean') out += v ? '1' : '0';
+  }
+  return out + '\n';
 }
