@@ -19,6 +19,7 @@ import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parse } from 'yaml';
 import { readSamples } from '../src/io/csvSamples.ts';
+import { median } from '../src/qc/robust.ts';
 import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
 // @ts-expect-error plain JavaScript helper of the entry point, without type declarations
 import { sourceStamp } from '../bin/stamp.js';
@@ -70,10 +71,6 @@ async function readlinePass(d: BenchData): Promise<number> {
   return r.seconds;
 }
 
-const median = (xs: number[]) => {
-  const a = [...xs].sort((p, q) => p - q), m = a.length >> 1;
-  return a.length % 2 ? a[m] : (a[m - 1] + a[m]) / 2;
-};
 const spread = (xs: number[], d = 3) => `${fmt(median(xs), d)} [${fmt(Math.min(...xs), d)} - ${fmt(Math.max(...xs), d)}]`;
 
 async function readerOnly(files: string[], instrumentIds: string[]): Promise<{ seconds: number; rows: number; rejected: number }> {
