@@ -159,7 +159,7 @@ function instrumentOf(st: ReaderState, buf: Uint8Array, s: number, e: number): n
 }
 
 /** True when the columns are exactly time, instrument, azimuth, elevation, range, radial velocity, cnr, in that order. */
-export function isCanonicalLayout(L: ColumnLayout): boolean {
+function isCanonicalLayout(L: ColumnLayout): boolean {
   if (L.needed !== 7) return false;
   for (let c = 0; c < 7; c++) if (L.roleOf[c] !== c) return false;
   return true;
