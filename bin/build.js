@@ -1,9 +1,9 @@
 #!/usr/bin/env node
 // Bundles src/ and its JavaScript dependencies into dist/ with esbuild (ES modules, lazily loaded chunks) so
 // that the command starts without transpiling TypeScript on every run. Run by `npm run build` and by npm's
-// `prepare` step (so `npm ci` leaves a fresh build; there with --optional, so that a failed build only warns). bin/wakeplane.js uses dist/ only while it matches src/
-// (dist/build.json records the sources it was made from) and otherwise runs the sources through tsx.
-import { build } from 'esbuild';
+// `prepare` step (so `npm ci` leaves a fresh build; there with --optional, so that a failed build only warns).
+// bin/wakeplane.js uses dist/ only while it matches src/ (dist/build.json records the sources it was made from)
+// and otherwise runs the sources through tsx.
 import { mkdirSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -17,6 +17,7 @@ const stamp = sourceStamp(join(root, 'src'));
 rmSync(tmp, { recursive: true, force: true });
 mkdirSync(tmp, { recursive: true });
 try {
+  const { build } = await import('esbuild');
   await build({
     entryPoints: [join(root, 'src', 'cli', 'main.ts')],
     outdir: tmp,
