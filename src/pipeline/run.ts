@@ -16,14 +16,18 @@ import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '..
 import { readSeries, type Series } from '../io/series.ts';
 import { isoTime } from '../io/time.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
-import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
+import { keyCountOf, retrieveStats } from '../retrieval/retrieveWindow.ts';
+import { robustFilter } from '../retrieval/robustFilter.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
-import { directionForWindow, windowScheme } from './windows.ts';
+import { directionForWindow } from '../windows/direction.ts';
+import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
+import { Ensembles, loadConditionSeries } from './ensembles.ts';
+import type { WakePlaneWindow } from '../wake/types.ts';
 import { InputError } from '../errors.ts';
 import { VERSION } from '../version.ts';
 
@@ -116,6 +120,15 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   }
   const dirSeries: Series | undefined =
     c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
+  // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
+  const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
+    ? readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    : undefined;
+  const planInputs = { turbineSeries, directionSeries: dirSeries };
+  const early: BuiltWindowPlan | undefined =
+    c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
+  const conditionSeries = loadConditionSeries(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
   lap('check_inputs', t);
 
@@ -170,12 +183,40 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
     t = performance.now();
-    const scheme = windowScheme(c);
+    const keyCount = keyCountOf(planes, c.instruments.length);
+    const ensembles = new Ensembles(c, conditionSeries, keyCount, c.instruments.length);
+    let built: BuiltWindowPlan | undefined = early;
+    let disjoint = true;
+    /** Write a field's table and run the per-field stages; returns the wake rows the stages made. */
+    const handleFields = async (fields: FieldResult[], ordinal: number, tag: string): Promise<WakePlaneWindow[]> => {
+      const tw = performance.now();
+      for (const f of fields) {
+        const rel = fieldTableName(f, ordinal);
+        await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
+        const label = f.window.label ? ` (${f.window.label})` : '';
+        outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${tag}${label}` });
+        for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`]);
+      }
+      writeTime += (performance.now() - tw) / 1000;
+      for (const stage of stages) {
+        if (!stage.field) continue;
+        const ts = performance.now();
+        for (const f of fields) outputs.push(...(await stage.field(f, stageCtx)));
+        lap(stage.name, ts);
+        stageFieldTime += (performance.now() - ts) / 1000;
+      }
+      const rows = stageCtx.shared.wakeRows as WeakMap<FieldResult, WakePlaneWindow> | undefined;
+      return fields.map((f) => rows?.get(f)).filter((r): r is WakePlaneWindow => r !== undefined);
+    };
     await ingest(
       {
         campaign: c,
         planes,
-        scheme,
+        windowPlan(first) {
+          built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
+          disjoint = built.plan.disjoint;
+          return built.plan;
+        },
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
         onRejectedRows(rows) {
           rejectedCount += rows.length;
@@ -184,38 +225,50 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
         async onWindow(w) {
           const tr = performance.now();
-          // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
-          const info = { index: windows.length, start_s: w.start_s, end_s: w.end_s };
-          const res = retrieveWindow(w.samples, planes, info, w.direction_deg, settings);
-          for (let i = 0; i < res.outliers.length; i++) {
-            counters.accepted[i] -= res.outliers[i];
-            counters.reject(i, REJECT_REASONS.indexOf('outlier'), res.outliers[i]);
+          // Windows are numbered 0, 1, ... in the order they finish (the manifest keeps their times and kinds).
+          const ordinal = windows.length;
+          const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
+          const { stats, outliers } = robustFilter(w.acc, settings.robust);
+          const fields = retrieveStats(stats, planes, info, w.direction_deg, settings);
+          const outlierCount = outliers.reduce((a, b) => a + b, 0);
+          // With disjoint windows every sample is in one window: its outliers are run-level rejections. With
+          // overlapping windows a sample can be an outlier in one window and kept in another: counted per window.
+          if (disjoint) {
+            for (let i = 0; i < outliers.length; i++) {
+              counters.accepted[i] -= outliers[i];
+              counters.reject(i, REJECT_REASONS.indexOf('outlier'), outliers[i]);
+            }
           }
           retrieveTime += (performance.now() - tr) / 1000;
-          const tw = performance.now();
-          const ordinal = windows.length;
-          windows.push({
+          const record: WindowRecord = {
             index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
-            direction_deg: w.direction_deg, samples: w.samples.length - res.outliers.reduce((a, b) => a + b, 0),
-          });
-          for (const f of res.fields) {
-            const rel = fieldTableName(f, ordinal);
-            await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
-            outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
-            for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
-          }
-          writeTime += (performance.now() - tw) / 1000;
-          for (const stage of stages) {
-            if (!stage.field) continue;
-            const ts = performance.now();
-            for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
-            lap(stage.name, ts);
-            stageFieldTime += (performance.now() - ts) / 1000;
+            kind: w.def.kind, label: w.def.label, ...(Number.isFinite(w.def.level) ? { level_deg: w.def.level } : {}),
+            direction_deg: w.direction_deg, samples: w.acc.total() - outlierCount, outliers: outlierCount,
+          };
+          windows.push(record);
+          const rows = await handleFields(fields, ordinal, isoTime(w.start_s));
+          if (ensembles.enabled) {
+            const values = ensembles.values(w, rows);
+            const bin = ensembles.add(ordinal, w, stats, values);
+            record.conditions = Object.fromEntries(ensembles.specs.map((b, k) => [b.variable, values[k]]));
+            record.bin = bin;
           }
         },
       },
       counters,
     );
+    if (ensembles.enabled) {
+      const tr = performance.now();
+      const bins = ensembles.retrieve(planes, settings);
+      retrieveTime += (performance.now() - tr) / 1000;
+      manifest.ensembles = ensembles.summary().map((b) => ({ bin: b.index, label: b.label, windows: b.windows, empty: b.windows.length === 0 }));
+      const empty = manifest.ensembles.filter((b) => b.empty).length;
+      if (empty) notices.push(`${empty} of ${ensembles.binCount} condition bins received no window (listed in the manifest)`);
+      if (ensembles.outside.length) notices.push(`${ensembles.outside.length} windows fell outside every condition bin`);
+      for (const { bin, fields } of bins) await handleFields(fields, bin.index, `bin ${bin.index}, ${bin.windows.length} windows`);
+    }
+    if (built?.segments) manifest.segments = built.segments;
+    if (!disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
     lap('ingest_total', t);
     timings.retrieval = retrieveTime;
     timings.write_fields = writeTime;
