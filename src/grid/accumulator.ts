@@ -29,25 +29,22 @@ export const MAX_SAMPLES_PER_KEY = 2 ** 27;
 /** Largest |v_r| the fixed-point sums hold exactly, m/s. */
 export const MAX_ABS_VR = 64;
 
+/** Fields of a slot in CellAccumulator.sums (stride STRIDE): one cache line or two per slot. */
+export const F = { n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8 } as const;
+export const STRIDE = 9;
+
 export class CellAccumulator {
   /** key -> slot, or -1 when the key has no sample yet. */
   readonly slotOf: Int32Array;
   /** slot -> key. */
   keyOf = new Int32Array(64);
   slots = 0;
-  n = new Float64Array(64);
-  /** Sum of q = round(v_r * VR_SCALE). */
-  sv = new Float64Array(64);
-  /** Sum of floor(q^2 / SQ_SPLIT) and of the remainders. */
-  sv2h = new Float64Array(64);
-  sv2l = new Float64Array(64);
-  /** Sums of round(n * DIR_SCALE), rotor-frame beam unit vector. */
-  sx = new Float64Array(64);
-  sy = new Float64Array(64);
-  sz = new Float64Array(64);
-  /** Sums of round(p * POS_SCALE), in-plane position (y; z or x). */
-  spy = new Float64Array(64);
-  spz = new Float64Array(64);
+  /**
+   * Per slot, at [slot * STRIDE + F.x]: n (count); sv (sum of q = round(v_r * VR_SCALE)); sv2h, sv2l (sums of
+   * floor(q^2 / SQ_SPLIT) and of the remainders); sx, sy, sz (sums of round(n * DIR_SCALE), rotor-frame beam unit
+   * vector); spy, spz (sums of round(p * POS_SCALE), in-plane position).
+   */
+  sums = new Float64Array(64 * STRIDE);
   readonly hist = new VrHistograms();
 
   constructor(
@@ -60,17 +57,13 @@ export class CellAccumulator {
   }
 
   private grow(): void {
-    const cap = this.n.length * 2;
-    const g = (a: Float64Array) => {
-      const b = new Float64Array(cap);
-      b.set(a);
-      return b;
-    };
+    const cap = this.keyOf.length * 2;
     const k = new Int32Array(cap);
     k.set(this.keyOf);
     this.keyOf = k;
-    this.n = g(this.n); this.sv = g(this.sv); this.sv2h = g(this.sv2h); this.sv2l = g(this.sv2l);
-    this.sx = g(this.sx); this.sy = g(this.sy); this.sz = g(this.sz); this.spy = g(this.spy); this.spz = g(this.spz);
+    const m = new Float64Array(cap * STRIDE);
+    m.set(this.sums);
+    this.sums = m;
     this.hist.ensure(cap);
   }
 
@@ -78,7 +71,7 @@ export class CellAccumulator {
   slot(key: number): number {
     let s = this.slotOf[key];
     if (s < 0) {
-      if (this.slots === this.n.length) this.grow();
+      if (this.slots === this.keyOf.length) this.grow();
       s = this.slots++;
       this.slotOf[key] = s;
       this.keyOf[s] = key;
@@ -86,24 +79,31 @@ export class CellAccumulator {
     return s;
   }
 
+  /** Field f of slot s. */
+  get(s: number, f: number): number {
+    return this.sums[s * STRIDE + f];
+  }
+
   /**
    * Add one sample: radial velocity v_r (m/s, positive away), rotor-frame beam unit vector (nx, ny, nz), in-plane
    * position (py, pz) in metres.
    */
   add(key: number, vr: number, nx: number, ny: number, nz: number, py: number, pz: number): void {
-    const s = this.slot(key);
+    let s = this.slotOf[key];
+    if (s < 0) s = this.slot(key);
     const q = Math.round(vr * VR_SCALE);
     const q2 = q * q;
     const hi = Math.floor(q2 / SQ_SPLIT);
-    this.n[s]++;
-    this.sv[s] += q;
-    this.sv2h[s] += hi;
-    this.sv2l[s] += q2 - hi * SQ_SPLIT;
-    this.sx[s] += Math.round(nx * DIR_SCALE);
-    this.sy[s] += Math.round(ny * DIR_SCALE);
-    this.sz[s] += Math.round(nz * DIR_SCALE);
-    this.spy[s] += Math.round(py * POS_SCALE);
-    this.spz[s] += Math.round(pz * POS_SCALE);
+    const m = this.sums, o = s * STRIDE;
+    m[o]++;
+    m[o + 1] += q;
+    m[o + 2] += hi;
+    m[o + 3] += q2 - hi * SQ_SPLIT;
+    m[o + 4] += Math.round(nx * DIR_SCALE);
+    m[o + 5] += Math.round(ny * DIR_SCALE);
+    m[o + 6] += Math.round(nz * DIR_SCALE);
+    m[o + 7] += Math.round(py * POS_SCALE);
+    m[o + 8] += Math.round(pz * POS_SCALE);
     this.hist.add(s, q);
   }
 
@@ -112,20 +112,23 @@ export class CellAccumulator {
     if (other.keyCount !== this.keyCount) throw new RangeError(`cannot merge accumulators of ${other.keyCount} and ${this.keyCount} keys`);
     for (let t = 0; t < other.slots; t++) {
       const s = this.slot(other.keyOf[t]);
-      this.n[s] += other.n[t];
-      this.sv[s] += other.sv[t];
-      this.sv2h[s] += other.sv2h[t];
-      this.sv2l[s] += other.sv2l[t];
-      this.sx[s] += other.sx[t]; this.sy[s] += other.sy[t]; this.sz[s] += other.sz[t];
-      this.spy[s] += other.spy[t]; this.spz[s] += other.spz[t];
+      for (let f = 0; f < STRIDE; f++) this.sums[s * STRIDE + f] += other.sums[t * STRIDE + f];
       this.hist.mergeSlot(s, other.hist, t);
     }
+  }
+
+  /** Empty every slot for reuse with the same key space (keeps the allocations). */
+  reset(): void {
+    for (let s = 0; s < this.slots; s++) this.slotOf[this.keyOf[s]] = -1;
+    this.sums.fill(0, 0, this.slots * STRIDE);
+    this.hist.reset(this.slots);
+    this.slots = 0;
   }
 
   /** Samples held, all keys. */
   total(): number {
     let t = 0;
-    for (let s = 0; s < this.slots; s++) t += this.n[s];
+    for (let s = 0; s < this.slots; s++) t += this.sums[s * STRIDE];
     return t;
   }
 }

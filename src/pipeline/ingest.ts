@@ -29,16 +29,16 @@ import type { Campaign } from '../campaign/types.ts';
 import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
-import { cellIndex } from '../grid/grid.ts';
+import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { readSamples, type SampleChunk } from '../io/csvSamples.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
-import { cellOffsets } from '../retrieval/retrieveWindow.ts';
-import type { PlaneGrid } from '../retrieval/settings.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
 
 export interface OpenWindow {
   def: WindowDef;
+  /** One accumulator per target (IngestOptions.targets), in that order. */
+  accs: CellAccumulator[];
   /** Window bounds: the plan's, or for a whole-record window the first and last sample times seen. */
   start_s: number;
   end_s: number;
@@ -46,18 +46,19 @@ export interface OpenWindow {
   first_s: number;
   last_s: number;
   direction_deg: number;
-  /** The window's per-(cell, instrument) accumulators. */
-  acc: CellAccumulator;
 }
 
 export interface IngestOptions {
   campaign: Campaign;
-  planes: PlaneGrid[];
+  /** Where accepted samples go (grid/target.ts): the planes, and sibling geometries. */
+  targets: SampleTarget[];
+  /** Target index of each instrument's samples (-1: none; its samples are counted outside_planes). */
+  targetOf: Int32Array;
   /** The window plan, given the earliest sample time of the run (NaN when no file has a sample). */
   windowPlan(firstSample_s: number): WindowPlan;
   /** Wind direction (from, degrees) of the window [start, end); NaN when unknown. */
   directionOf(start: number, end: number): number;
-  /** Called with each finished window, in order of their ends. */
+  /** Called with each finished window, in order of their ends; its accumulator is reused once this resolves. */
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
@@ -106,14 +107,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const cnrMin = c.qc.cnr_db.min, cnrMax = c.qc.cnr_db.max, vLim = c.qc.radialVelocityLimit_ms;
   const groundMin = c.site.groundLevel_m + c.qc.groundClearance_m;
   const curvature = c.site.earthCurvature;
-  const tb = c.turbine.position;
-  const planes = opts.planes;
-  const P = planes.length;
-  const pCross = Uint8Array.from(planes, (p) => (p.spec.orientation === 'cross' ? 1 : 0));
-  const pLevel = Float64Array.from(planes, (p) => (p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m));
-  const pHalf = Float64Array.from(planes, (p) => p.spec.thickness_m / 2);
-  const pOff = cellOffsets(planes);
-  const keyCount = pOff[P] * I;
+  const targets = opts.targets;
+  const targetOf = opts.targetOf;
 
   // Every file of every instrument, read in step; primed with its first batch before the plan is made.
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
@@ -139,6 +134,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const record = plan.kind === 'record';
 
   const open = new Map<number, Live>();
+  // Accumulators of finished windows, emptied for reuse (their allocations sized to the data already).
+  const spare: CellAccumulator[][] = targets.map(() => []);
   // Every window ending at or before this time is finished.
   let finishedTo = -Infinity;
 
@@ -150,7 +147,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const D = (dir * Math.PI) / 180;
       w = {
         def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
-        acc: new CellAccumulator(keyCount, I), dE: -Math.sin(D), dN: -Math.cos(D),
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I)), dE: -Math.sin(D), dN: -Math.cos(D),
       };
       open.set(id, w);
     }
@@ -164,6 +161,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     for (const w of ready) {
       open.delete(w.def.id);
       await opts.onWindow(w);
+      // onWindow has taken what it needs: the accumulators serve the next window.
+      w.accs.forEach((a, k) => {
+        a.reset();
+        spare[k].push(a);
+      });
     }
   };
 
@@ -240,28 +242,16 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         pe = posE[ins] + r * ne; pn = posN[ins] + r * nn; pu = posU[ins] + r * nu;
       }
       if (pu < groundMin) { counters.rejected[ins * NR + R.below_ground]++; continue; }
-      const de = pe - tb[0], dn = pn - tb[1];
-      const z = pu - tb[2];
+      const tg = targetOf[ins];
+      if (tg < 0) { counters.rejected[ins * NR + R.outside_planes]++; continue; }
+      const target = targets[tg];
       let placedAny = false;
       for (let k = 0; k < nDirected; k++) {
         const w = live[k];
-        const x = de * w.dE + dn * w.dN;
-        const y = -de * w.dN + dn * w.dE;
-        for (let p = 0; p < P; p++) {
-          const cross = pCross[p] === 1;
-          const off = (cross ? x : z) - pLevel[p];
-          if (off > pHalf[p] || off < -pHalf[p]) continue;
-          const cell = cross ? cellIndex(planes[p].grid, y, z) : cellIndex(planes[p].grid, y, x);
-          if (cell < 0) continue;
-          // Beam unit vector in the window's rotor frame.
-          const rx = ne * w.dE + nn * w.dN, ry = -ne * w.dN + nn * w.dE;
-          w.acc.add((pOff[p] + cell) * I + ins, vr, rx, ry, nu, y, cross ? z : x);
-          placedAny = true;
-          break;
-        }
+        if (target.add(w.accs[tg], w, ins, vr, ne, nn, nu, pe, pn, pu, t)) placedAny = true;
       }
       if (placedAny) counters.accepted[ins]++;
-      else counters.rejected[ins * NR + R.outside_planes]++;
+      else counters.rejected[ins * NR + target.outsideReason]++;
     }
   };
 

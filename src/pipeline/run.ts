@@ -21,6 +21,7 @@ import { robustFilter } from '../retrieval/robustFilter.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
+import { PlaneTarget } from '../grid/planeTarget.ts';
 import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
@@ -208,10 +209,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       const rows = stageCtx.shared.wakeRows as WeakMap<FieldResult, WakePlaneWindow> | undefined;
       return fields.map((f) => rows?.get(f)).filter((r): r is WakePlaneWindow => r !== undefined);
     };
+    // The plane target takes every instrument's samples (sibling geometries would take theirs).
+    const planeTarget = new PlaneTarget(
+      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      c.instruments.length, c.turbine.position,
+    );
     await ingest(
       {
         campaign: c,
-        planes,
+        targets: [planeTarget],
+        targetOf: new Int32Array(c.instruments.length).fill(0),
         windowPlan(first) {
           built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
           disjoint = built.plan.disjoint;
@@ -228,7 +235,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           // Windows are numbered 0, 1, ... in the order they finish (the manifest keeps their times and kinds).
           const ordinal = windows.length;
           const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
-          const { stats, outliers } = robustFilter(w.acc, settings.robust);
+          const { stats, outliers } = robustFilter(w.accs[0], settings.robust);
           const fields = retrieveStats(stats, planes, info, w.direction_deg, settings);
           const outlierCount = outliers.reduce((a, b) => a + b, 0);
           // With disjoint windows every sample is in one window: its outliers are run-level rejections. With
@@ -243,7 +250,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           const record: WindowRecord = {
             index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
             kind: w.def.kind, label: w.def.label, ...(Number.isFinite(w.def.level) ? { level_deg: w.def.level } : {}),
-            direction_deg: w.direction_deg, samples: w.acc.total() - outlierCount, outliers: outlierCount,
+            direction_deg: w.direction_deg, samples: w.accs[0].total() - outlierCount, outliers: outlierCount,
           };
           windows.push(record);
           const rows = await handleFields(fields, ordinal, isoTime(w.start_s));

@@ -16,7 +16,7 @@
  * differently (test/retrieval-robust-hist.test.ts). The kept sums are the exact sums minus the rejected samples'
  * bin centres (their beam vectors and positions taken as the key's mean), so with nothing rejected they are exact.
  */
-import { MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
+import { F, MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, STRIDE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
 import { emptyHistogramStats, robustStats } from '../qc/vrHistogram.ts';
 import { emptyCellStats, type CellStats } from './cellStats.ts';
 import type { RobustSettings } from './settings.ts';
@@ -37,7 +37,8 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings): Robu
   const minN = Math.max(3, robust.minSamples);
   for (let s = 0; s < acc.slots; s++) {
     const key = acc.keyOf[s];
-    const n = acc.n[s];
+    const m = acc.sums, o = s * STRIDE;
+    const n = m[o + F.n];
     if (n > MAX_SAMPLES_PER_KEY) {
       throw new RangeError(`${n} samples in one window, cell and instrument: more than ${MAX_SAMPLES_PER_KEY}; use shorter windows or smaller cells`);
     }
@@ -49,13 +50,13 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings): Robu
     const kept = n - rej;
     const frac = kept / n;
     stats.n[key] = kept;
-    stats.sv[key] = acc.sv[s] / VR_SCALE - rs;
-    stats.sv2[key] = (acc.sv2h[s] * SQ_SPLIT + acc.sv2l[s]) / (VR_SCALE * VR_SCALE) - rss;
-    stats.sx[key] = (acc.sx[s] / DIR_SCALE) * frac;
-    stats.sy[key] = (acc.sy[s] / DIR_SCALE) * frac;
-    stats.sz[key] = (acc.sz[s] / DIR_SCALE) * frac;
-    stats.spy[key] = (acc.spy[s] / POS_SCALE) * frac;
-    stats.spz[key] = (acc.spz[s] / POS_SCALE) * frac;
+    stats.sv[key] = m[o + F.sv] / VR_SCALE - rs;
+    stats.sv2[key] = (m[o + F.sv2h] * SQ_SPLIT + m[o + F.sv2l]) / (VR_SCALE * VR_SCALE) - rss;
+    stats.sx[key] = (m[o + F.sx] / DIR_SCALE) * frac;
+    stats.sy[key] = (m[o + F.sy] / DIR_SCALE) * frac;
+    stats.sz[key] = (m[o + F.sz] / DIR_SCALE) * frac;
+    stats.spy[key] = (m[o + F.spy] / POS_SCALE) * frac;
+    stats.spz[key] = (m[o + F.spz] / POS_SCALE) * frac;
     outliers[key % I] += rej;
   }
   return { stats, outliers };
