@@ -14,21 +14,17 @@ import { gridSpecOf } from '../grid/grid.ts';
 import { checkHeader } from '../io/csvSamples.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
 import { readSeries, type Series } from '../io/series.ts';
-import { isoTime } from '../io/time.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
-import { keyCountOf, retrieveStats } from '../retrieval/retrieveWindow.ts';
-import { robustFilter } from '../retrieval/robustFilter.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
+import { WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
-import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
-import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
+import type { OutputRecord, RunManifest } from './manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
 import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
-import { Ensembles, loadConditionSeries } from './ensembles.ts';
-import type { WakePlaneWindow } from '../wake/types.ts';
+import { loadConditionSeries } from './ensembles.ts';
 import { InputError } from '../errors.ts';
 import { VERSION } from '../version.ts';
 
@@ -150,18 +146,14 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       instrumentCount: c.instruments.length,
     };
     const counters = new Counters(c.instruments.length);
-    const outputs: OutputRecord[] = [];
-    const windows: WindowRecord[] = [];
-    // Each assumption with the plane-windows it applied to, stated once in the manifest.
-    const assumptions = new Map<string, string[]>();
     let rejectedOut: AtomicStream | undefined;
     let rejectedCount = 0;
     if (c.output.writeRejected) {
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
-    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
     const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    const outputs: OutputRecord[] = [];
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
       campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
@@ -170,7 +162,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       inputs: [],
       settings: c,
       samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
-      windows,
+      windows: [],
       outputs,
       timings_s: timings,
       peakRss_bytes: 0,
@@ -180,35 +172,13 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     };
     const stages = opts.stages ?? [];
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
+    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries);
+    manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
     t = performance.now();
-    const keyCount = keyCountOf(planes, c.instruments.length);
-    const ensembles = new Ensembles(c, conditionSeries, keyCount, c.instruments.length);
     let built: BuiltWindowPlan | undefined = early;
-    let disjoint = true;
-    /** Write a field's table and run the per-field stages; returns the wake rows the stages made. */
-    const handleFields = async (fields: FieldResult[], ordinal: number, tag: string): Promise<WakePlaneWindow[]> => {
-      const tw = performance.now();
-      for (const f of fields) {
-        const rel = fieldTableName(f, ordinal);
-        await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
-        const label = f.window.label ? ` (${f.window.label})` : '';
-        outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${tag}${label}` });
-        for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`]);
-      }
-      writeTime += (performance.now() - tw) / 1000;
-      for (const stage of stages) {
-        if (!stage.field) continue;
-        const ts = performance.now();
-        for (const f of fields) outputs.push(...(await stage.field(f, stageCtx)));
-        lap(stage.name, ts);
-        stageFieldTime += (performance.now() - ts) / 1000;
-      }
-      const rows = stageCtx.shared.wakeRows as WeakMap<FieldResult, WakePlaneWindow> | undefined;
-      return fields.map((f) => rows?.get(f)).filter((r): r is WakePlaneWindow => r !== undefined);
-    };
     // The plane target takes every instrument's samples (sibling geometries would take theirs).
     const planeTarget = new PlaneTarget(
       planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
@@ -221,7 +191,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         targetOf: new Int32Array(c.instruments.length).fill(0),
         windowPlan(first) {
           built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
-          disjoint = built.plan.disjoint;
+          finisher.disjoint = built.plan.disjoint;
           return built.plan;
         },
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
@@ -230,62 +200,26 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
-        async onWindow(w) {
-          const tr = performance.now();
-          // Windows are numbered 0, 1, ... in the order they finish (the manifest keeps their times and kinds).
-          const ordinal = windows.length;
-          const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
-          const { stats, outliers } = robustFilter(w.accs[0], settings.robust);
-          const fields = retrieveStats(stats, planes, info, w.direction_deg, settings);
-          const outlierCount = outliers.reduce((a, b) => a + b, 0);
-          // With disjoint windows every sample is in one window: its outliers are run-level rejections. With
-          // overlapping windows a sample can be an outlier in one window and kept in another: counted per window.
-          if (disjoint) {
-            for (let i = 0; i < outliers.length; i++) {
-              counters.accepted[i] -= outliers[i];
-              counters.reject(i, REJECT_REASONS.indexOf('outlier'), outliers[i]);
-            }
-          }
-          retrieveTime += (performance.now() - tr) / 1000;
-          const record: WindowRecord = {
-            index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
-            kind: w.def.kind, label: w.def.label, ...(Number.isFinite(w.def.level) ? { level_deg: w.def.level } : {}),
-            direction_deg: w.direction_deg, samples: w.accs[0].total() - outlierCount, outliers: outlierCount,
-          };
-          windows.push(record);
-          const rows = await handleFields(fields, ordinal, isoTime(w.start_s));
-          if (ensembles.enabled) {
-            const values = ensembles.values(w, rows);
-            const bin = ensembles.add(ordinal, w, stats, values);
-            record.conditions = Object.fromEntries(ensembles.specs.map((b, k) => [b.variable, values[k]]));
-            record.bin = bin;
-          }
-        },
+        onWindow: (w) => finisher.window(w),
       },
       counters,
     );
-    if (ensembles.enabled) {
-      const tr = performance.now();
-      const bins = ensembles.retrieve(planes, settings);
-      retrieveTime += (performance.now() - tr) / 1000;
-      manifest.ensembles = ensembles.summary().map((b) => ({ bin: b.index, label: b.label, windows: b.windows, empty: b.windows.length === 0 }));
-      const empty = manifest.ensembles.filter((b) => b.empty).length;
-      if (empty) notices.push(`${empty} of ${ensembles.binCount} condition bins received no window (listed in the manifest)`);
-      if (ensembles.outside.length) notices.push(`${ensembles.outside.length} windows fell outside every condition bin`);
-      for (const { bin, fields } of bins) await handleFields(fields, bin.index, `bin ${bin.index}, ${bin.windows.length} windows`);
-    }
+    await finisher.end(manifest, notices);
+    outputs.push(...finisher.outputs);
     if (built?.segments) manifest.segments = built.segments;
-    if (!disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
+    if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
     lap('ingest_total', t);
-    timings.retrieval = retrieveTime;
-    timings.write_fields = writeTime;
-    timings.ingest = timings.ingest_total - retrieveTime - writeTime - stageFieldTime;
+    const stageFieldTime = Object.values(finisher.times.stages).reduce((a, b) => a + b, 0);
+    for (const [name, secs] of Object.entries(finisher.times.stages)) timings[name] = (timings[name] ?? 0) + secs;
+    timings.retrieval = finisher.times.retrieval;
+    timings.write_fields = finisher.times.write_fields;
+    timings.ingest = timings.ingest_total - finisher.times.retrieval - finisher.times.write_fields - stageFieldTime;
     delete timings.ingest_total;
     if (rejectedOut) {
       await rejectedOut.close();
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
     }
-    if (windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
+    if (finisher.windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 
     t = performance.now();
     manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
@@ -294,7 +228,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
-    manifest.assumptions = [...assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
+    manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
     // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
