@@ -10,7 +10,7 @@ import { z } from 'zod';
 import { ConfigError } from '../errors.ts';
 import { wgs84ToEnu } from '../geometry/geodetic.ts';
 import { campaignSchema, type CampaignInput } from './schema.ts';
-import type { Campaign, Instrument, PlaneSpec, Vec3 } from './types.ts';
+import type { Campaign, Instrument, PlaneSpec, TerrainRef, Turbine, Vec3 } from './types.ts';
 import { parseTime } from '../io/time.ts';
 import { conditionVariableProblem } from './conditionVariables.ts';
 
@@ -95,12 +95,17 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
   });
   if (instruments.length > 255) throw new ConfigError(file, 'instruments', 'at most 255 instruments', instruments.length);
 
-  const D = c.turbine.rotorDiameter_m;
+  const turbines = resolveTurbines(c, file, abs);
   const planeIds = new Set<string>();
   const planes: PlaneSpec[] = c.planes.map((p, index) => {
     const where = `planes[${index}]`;
     if (planeIds.has(p.id)) throw new ConfigError(file, `${where}.id`, 'plane ids must be unique', p.id);
     planeIds.add(p.id);
+    const frame = planeFrame(p.frame, p.heights, turbines, file, `${where}.frame`);
+    // Sizes in rotor diameters and the default height refer to the plane's turbine (the first one for the site frame).
+    const own = turbines[Math.max(0, frame.turbineIndex)];
+    const D = own.rotorDiameter_m;
+    const hubZ = p.heights === 'terrain' ? own.hubHeight_m : p.heights === 'site' ? own.position[2] + own.hubHeight_m : own.position[2] - frame.origin[2] + own.hubHeight_m;
     if (p.orientation === 'cross') {
       if ((p.x_m === undefined) === (p.x_D === undefined)) {
         throw new ConfigError(file, where, 'a cross plane needs exactly one of x_m or x_D');
@@ -109,13 +114,13 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
       const x_m = p.x_m ?? p.x_D! * D;
       if (x_m <= 0) throw new ConfigError(file, where, 'the plane must lie downstream of the rotor (x > 0)', x_m);
       return {
-        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z, cell_m: p.cell_m, thickness_m: p.thickness_m,
+        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z, cell_m: p.cell_m, thickness_m: p.thickness_m, ...frame,
       };
     }
     if (!p.xRange) throw new ConfigError(file, `${where}.xRange`, 'a horizontal plane needs its downstream extent xRange: {min, max}');
     return {
-      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? c.turbine.hubHeight_m, y: p.y, second: p.xRange,
-      cell_m: p.cell_m, thickness_m: p.thickness_m,
+      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? hubZ, y: p.y, second: p.xRange,
+      cell_m: p.cell_m, thickness_m: p.thickness_m, ...frame,
     };
   });
   for (const p of planes) {
@@ -129,7 +134,14 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
     throw new ConfigError(file, 'qc.cnr_db', 'max must be greater than min', c.qc.cnr_db);
   }
 
-  const { series: tSeries, position_m, ...turbineRest } = c.turbine;
+  const seriesTurbine = segmentTurbine(c, turbines, file);
+  const tSeries = seriesTurbine?.series;
+  if (c.power) {
+    for (const [k, id] of [['reference', c.power.reference], ...(c.power.turbines ?? []).map((t, i) => [`turbines[${i}]`, t])] as [string, string | undefined][]) {
+      if (id !== undefined && !turbines.some((t) => t.id === id)) throw new ConfigError(file, `power.${k}`, `no turbine with this id (known: ${turbines.map((t) => t.id).join(', ')})`, id);
+    }
+  }
+  const site = { ...c.site, terrain: c.site.terrain ? resolveTerrainRef(c.site.terrain, abs, file) : undefined };
   const windDirection =
     c.windDirection.kind === 'fixed'
       ? c.windDirection
@@ -143,7 +155,7 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
     }
     if (windows.file) windows = { ...windows, file: abs(windows.file) };
   } else if (windows.kind === 'segments') {
-    if (!tSeries) throw new ConfigError(file, 'windows', 'segment windows need the turbine series (turbine.series with yaw_deg)');
+    if (!tSeries) throw new ConfigError(file, windows.turbine ? 'windows.turbine' : 'windows', 'segment windows need the turbine series (turbine.series with yaw_deg)', windows.turbine);
   } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
     if (!Number.isFinite(parseTime(windows.anchor))) {
       throw new ConfigError(file, 'windows.anchor', 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
@@ -166,11 +178,68 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
     baseDir,
     instruments,
     planes,
-    turbine: { ...turbineRest, position: [...position_m], series: tSeries ? { file: abs(tSeries.file), columns: tSeries.columns } : undefined },
+    site,
+    turbines,
+    turbine: turbines[0],
     windDirection,
     inflow: inflow as Campaign['inflow'],
     windows,
   };
+}
+
+type Parsed = z.output<typeof campaignSchema>;
+
+/**
+ * The turbine list: the single `turbine` key first, then `turbines`. Ids must be unique, and no two rotors may
+ * overlap: two towers closer than the sum of the rotor radii could hit each other's rotor when yawed (the rotor
+ * turns about the tower, so the horizontal tower distance is what counts).
+ */
+function resolveTurbines(c: Parsed, file: string, abs: (p: string) => string): Turbine[] {
+  const listed = [...(c.turbine ? [{ t: c.turbine, where: 'turbine' }] : []), ...(c.turbines ?? []).map((t, i) => ({ t, where: `turbines[${i}]` }))];
+  if (listed.length === 0) throw new ConfigError(file, 'turbines', 'the campaign needs a turbine: give `turbine` or a list `turbines`');
+  const out: Turbine[] = [];
+  for (const [index, { t, where }] of listed.entries()) {
+    const dup = out.find((o) => o.id === t.id);
+    if (dup) throw new ConfigError(file, `${where}.id`, 'turbine ids must be unique (a turbine is listed twice)', t.id);
+    for (const o of out) {
+      const dist = Math.hypot(t.position_m[0] - o.position[0], t.position_m[1] - o.position[1]);
+      const reach = (t.rotorDiameter_m + o.rotorDiameter_m) / 2;
+      if (dist < reach) {
+        throw new ConfigError(file, `${where}.position_m`, `rotors overlap with turbine "${o.id}": towers ${dist.toFixed(1)} m apart, less than the sum of the rotor radii ${reach.toFixed(1)} m`, t.position_m);
+      }
+    }
+    out.push({
+      id: t.id, index, position: [...t.position_m], hubHeight_m: t.hubHeight_m, rotorDiameter_m: t.rotorDiameter_m,
+      thrustCoefficient: t.thrustCoefficient as number | [number, number][],
+      series: t.series ? { file: abs(t.series.file), columns: t.series.columns } : undefined,
+    });
+  }
+  return out;
+}
+
+/** A plane's frame: a turbine's (origin at its tower base) or the site's (origin at the site origin). */
+function planeFrame(frame: string | undefined, heights: 'base' | 'terrain' | 'site', turbines: Turbine[], file: string, where: string): { turbineIndex: number; origin: Vec3; heights: 'base' | 'terrain' | 'site' } {
+  if (frame === 'site') return { turbineIndex: -1, origin: [0, 0, 0], heights };
+  const t = frame === undefined ? turbines[0] : turbines.find((x) => x.id === frame);
+  if (!t) throw new ConfigError(file, where, `no turbine with this id (known: ${turbines.map((x) => x.id).join(', ')}, or "site")`, frame);
+  return { turbineIndex: t.index, origin: [...t.position], heights };
+}
+
+/** The turbine whose series gives segment windows their state: windows.turbine, else the first with a series. */
+function segmentTurbine(c: Parsed, turbines: Turbine[], file: string): Turbine | undefined {
+  const id = c.windows.kind === 'segments' ? c.windows.turbine : undefined;
+  if (id === undefined) return turbines.find((t) => t.series) ?? turbines[0];
+  const t = turbines.find((x) => x.id === id);
+  if (!t) throw new ConfigError(file, 'windows.turbine', `no turbine with this id (known: ${turbines.map((x) => x.id).join(', ')})`, id);
+  return t;
+}
+
+function resolveTerrainRef(t: NonNullable<Parsed['site']['terrain']>, abs: (p: string) => string, file: string): TerrainRef {
+  const format = t.format ?? (/\.tiff?$/i.test(t.file) ? 'geotiff' : 'xyz');
+  if (t.crs !== undefined && t.crs !== 'site' && !/^EPSG:\d+$/i.test(t.crs)) {
+    throw new ConfigError(file, 'site.terrain.crs', 'must be "site" or "EPSG:<code>"', t.crs);
+  }
+  return { file: abs(t.file), format, crs: t.crs, columns: t.columns, heightOffset_m: t.heightOffset_m };
 }
 
 /** For unions zod reports the union itself; dig into the branch that got furthest so the message names a real key. */

@@ -6,6 +6,7 @@
  * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
  * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
  */
+import { stateTurbine } from '../campaign/turbines.ts';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
@@ -119,8 +120,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
   // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
   // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
-  const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
-    ? readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+  const stateSeries = stateTurbine(c).series;
+  const turbineSeries = c.windows.kind === 'segments' && stateSeries
+    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
     : undefined;
   const planInputs = { turbineSeries, directionSeries: dirSeries };
   const early: BuiltWindowPlan | undefined =

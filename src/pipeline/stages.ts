@@ -7,6 +7,7 @@
  * 4. report: report.html listing every output recorded before it.
  * The image stack (sharp) and the planner load only when a run uses them, so a run without images starts faster.
  */
+import { stateTurbine } from '../campaign/turbines.ts';
 import { join } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { readSeries, type Series } from '../io/series.ts';
@@ -25,8 +26,9 @@ export function loadWakeInputs(c: Campaign): WakeInputs {
   if (c.inflow.kind === 'series') {
     inputs.inflowSeries = readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']);
   }
-  if (c.turbine.series) {
-    inputs.turbineSeries = readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
+  const ts = stateTurbine(c).series;
+  if (ts) {
+    inputs.turbineSeries = readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
   }
   return inputs;
 }
