@@ -6,7 +6,8 @@
  * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
  * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
  */
-import { stateTurbine } from '../campaign/turbines.ts';
+import { planeOrigin, stateTurbine } from '../campaign/turbines.ts';
+import { loadTerrain } from '../io/terrainFile.ts';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
@@ -128,6 +129,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const early: BuiltWindowPlan | undefined =
     c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
   const conditionSeries = loadConditionSeries(c);
+  const terrain = await loadTerrain(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
   lap('check_inputs', t);
 
@@ -183,12 +185,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     let built: BuiltWindowPlan | undefined = early;
     // The plane target takes every instrument's samples (sibling geometries would take theirs).
     const planeTarget = new PlaneTarget(
-      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      planes.map((p) => ({
+        orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
+        origin: planeOrigin(c, p.spec), heights: p.spec.heights,
+      })),
       c.instruments.length, c.turbine.position,
     );
     await ingest(
       {
         campaign: c,
+        terrain,
         targets: [planeTarget],
         targetOf: new Int32Array(c.instruments.length).fill(0),
         windowPlan(first) {

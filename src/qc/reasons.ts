@@ -8,6 +8,8 @@ export const REJECT_REASONS = [
   'bad_number', 'missing_field', 'bad_time', 'angle_out_of_range', 'bad_range', 'unknown_instrument',
   // quality control
   'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order', 'no_wind_direction',
+  // terrain: the beam passed below the ground before the point; the point lies outside the terrain model
+  'beam_blocked', 'outside_terrain',
   // time: outside every window (gaps between listed windows, turbine-state transitions)
   'outside_windows',
   // geometry
