@@ -53,7 +53,7 @@ export function siteToRaster(crs: RasterCrs, origin?: Wgs84): (e: number, n: num
   if (crs.kind === 'geographic') {
     return (e, n, out) => {
       const p = enuToWgs84(e, n, 0, origin);
-      out[0] = p.lon_deg; out[1] = p.lat_deg; out[2] = p.alt_m - origin.alt_m;
+      out[0] = p.lon_deg; out[1] = p.lat_deg; out[2] = p.alt_m;
     };
   }
   return (e, n, out) => {
@@ -61,6 +61,6 @@ export function siteToRaster(crs: RasterCrs, origin?: Wgs84): (e: number, n: num
     const utm = new LatLonUtm(p.lat_deg, p.lon_deg).toUtm(crs.zone);
     // A southern-hemisphere zone keeps its false northing even for points just north of the equator.
     out[0] = utm.easting; out[1] = crs.hemisphere === 'S' && utm.hemisphere === 'N' ? utm.northing + 10_000_000 : utm.northing;
-    out[2] = p.alt_m - origin.alt_m;
+    out[2] = p.alt_m;
   };
 }
