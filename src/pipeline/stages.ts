@@ -16,6 +16,9 @@ import type { ReportExtras } from '../render/report.ts';
 import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
 import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
+import { analyseSiteField, type SiteWakeInputs } from '../wake/siteWakes.ts';
+import { summariseSiteWake, turbineWakesCsv } from '../wake/siteSummary.ts';
+import { writeFileAtomic } from '../io/atomic.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
 import type { FieldResult } from '../retrieval/types.ts';
@@ -33,6 +36,20 @@ export function loadWakeInputs(c: Campaign): WakeInputs {
   return inputs;
 }
 
+/** Several turbines: every turbine's wake row of a field (images mark each). */
+export function siteWakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePlaneWindow[]> {
+  return (shared.siteWakeRows ??= new WeakMap<FieldResult, WakePlaneWindow[]>()) as WeakMap<FieldResult, WakePlaneWindow[]>;
+}
+
+/** Each turbine's series, for its yaw offset and power in its wake rows. */
+function loadSiteWakeInputs(c: Campaign, inputs: WakeInputs): SiteWakeInputs {
+  const turbineSeries = new Map<string, Series>();
+  for (const t of c.turbines) {
+    if (t.series) turbineSeries.set(t.id, readSeries(t.series.file, t.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']));
+  }
+  return { inflowSeries: inputs.inflowSeries, turbineSeries };
+}
+
 /** Wake rows by field; weak, so a field and its row go once the window's stages are done. */
 function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePlaneWindow> {
   return (shared.wakeRows ??= new WeakMap<FieldResult, WakePlaneWindow>()) as WeakMap<FieldResult, WakePlaneWindow>;
@@ -41,6 +58,7 @@ function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePla
 export function wakeStage(): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
+  let site: SiteWakeInputs | undefined;
   const rows: WakePlaneWindow[] = [];
   const ensembleRows: WakePlaneWindow[] = [];
   return {
@@ -49,19 +67,29 @@ export function wakeStage(): RunStage {
       if (!inputs) {
         inputs = loadWakeInputs(ctx.campaign);
         ctxW = planeWindowContext(ctx.campaign, inputs);
+        if (ctx.campaign.turbines.length > 1) site = loadSiteWakeInputs(ctx.campaign, inputs);
       }
-      const row = analysePlaneWindow(f, ctxW!);
-      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
+      // Several turbines: one row per turbine whose wake crosses the plane (wake/siteWakes.ts).
+      const made = site
+        ? analyseSiteField(f, ctx.campaign, site, (ctx.shared.windowFields as FieldResult[] | undefined) ?? [f])
+        : [analysePlaneWindow(f, ctxW!)];
+      // Keep the rows without their grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
       // (condition bins) are reported on their own and stay out of the per-window summaries.
-      (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
-      wakeRows(ctx.shared).set(f, row);
+      for (const row of made) (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
+      if (made.length) wakeRows(ctx.shared).set(f, made[0]);
+      if (site) siteWakeRows(ctx.shared).set(f, made);
       return [];
     },
     async finish(ctx) {
-      const a = summariseWake(rows, ctx.campaign, inputs ?? {});
+      const a = site ? summariseSiteWake(rows, ctx.campaign, inputs ?? {}) : summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
       ctx.shared.ensembleRows = ensembleRows;
-      return writeWakeOutputs(a, ctx.runDir, ensembleRows);
+      const out = writeWakeOutputs(a, ctx.runDir, ensembleRows);
+      if (site) {
+        writeFileAtomic(join(ctx.runDir, 'wake', 'turbine_wakes.csv'), turbineWakesCsv(rows));
+        out.push({ kind: 'turbine-wakes', path: 'wake/turbine_wakes.csv', description: 'every turbine\'s wake per plane and window: inflow source, wakes reaching it, centre upstream of the turbines it wakes' });
+      }
+      return out;
     },
   };
 }
