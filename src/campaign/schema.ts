@@ -240,7 +240,7 @@ const terrainSchema = z
   })
   .strict();
 
-const powerSchema = z
+export const powerSchema = z
   .object({
     reference: z.string().min(1).optional().describe('id of the reference turbine (unwaked, or the upstream one); default: the most upstream turbine for the mean wind direction'),
     turbines: z.array(z.string().min(1)).optional().describe('ids of the downstream turbines to analyse; default: every turbine but the reference'),
@@ -250,6 +250,7 @@ const powerSchema = z
     minAvailability: finite().min(0).max(1).default(0.9).describe('a window counts for a turbine only when this share of its rows reports status available with power, 0..1; default 0.9'),
     availableStatus: z.array(finite()).default([1]).describe('status values that mean available (status column of the turbine series); default [1]'),
     maxGap_s: finite().positive().default(120).describe('power rows further apart than this inside a window flag the window (gap), s; default 120'),
+    minWindowsPerState: z.number().int().min(1).default(2).describe('windows needed in a bin with and without yaw offset for its gain to count; default 2'),
     replicates: z.number().int().min(100).max(100000).default(2000).describe('bootstrap replicates; default 2000'),
     confidence: finite().gt(0).lt(1).default(0.95).describe('confidence level of the bootstrap intervals; default 0.95'),
     seed: z.number().int().default(1).describe('seed of the bootstrap resampling; default 1'),

@@ -213,6 +213,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       counters,
     );
     await finisher.end(manifest, notices);
+    // Stages that look at every window (the power gain) read the plan.
+    if (built) stageCtx.shared.windowPlan = built.plan;
     outputs.push(...finisher.outputs);
     if (built?.segments) manifest.segments = built.segments;
     if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');

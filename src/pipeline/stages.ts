@@ -18,6 +18,8 @@ import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
 import { analyseSiteField, type SiteWakeInputs } from '../wake/siteWakes.ts';
 import { summariseSiteWake, turbineWakesCsv } from '../wake/siteSummary.ts';
+import { powerStage } from './powerStage.ts';
+import type { PowerAnalysis } from '../power/analyse.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
@@ -160,13 +162,15 @@ export function reportStage(): RunStage {
       const extras: ReportExtras = {};
       if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
       if (plan) extras.planSummary = planExtras(plan);
+      const power = ctx.shared.power as PowerAnalysis | undefined;
+      if (power) extras.wakeTables = [...(extras.wakeTables ?? []), ...(await import('../power/output.ts')).powerReportTables(power)];
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
     },
   };
 }
 
 export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), powerStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };
