@@ -119,7 +119,8 @@ export function planStage(): RunStage {
     name: 'planner',
     async finish(ctx) {
       const { planCampaign, writePlanOutputs } = await import('../plan/index.ts');
-      const result = planCampaign(ctx.campaign);
+      const { loadTerrain } = await import('../io/terrainFile.ts');
+      const result = planCampaign(ctx.campaign, { terrain: await loadTerrain(ctx.campaign) });
       ctx.shared.plan = result.summary;
       return writePlanOutputs(result, ctx.campaign, ctx.runDir, { images: ctx.images });
     },
