@@ -27,6 +27,8 @@ function packageRoot(): string {
 }
 const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
+/** Every demo `demo` runs, in order: the single turbine, then the row of three on rolling ground. */
+export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'tarnwick', 'campaign.yaml')];
 
 interface Common {
   out?: string;
@@ -39,7 +41,8 @@ function say(quiet: boolean, text: string): void {
 }
 
 function dataMissing(c: Campaign): boolean {
-  return c.instruments.some((i) => i.files.some((f) => !existsSync(f)));
+  return c.instruments.some((i) => i.files.some((f) => !existsSync(f))) || (c.site.terrain !== undefined && !existsSync(c.site.terrain.file))
+    || c.turbines.some((t) => t.series !== undefined && !existsSync(t.series.file));
 }
 
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
@@ -64,13 +67,15 @@ export function commands(y: Argv): Argv {
       'simulate the built-in demo campaign if its data are missing, then run the whole job and the planner on it',
       (yy) => common(yy).option('regenerate', { type: 'boolean', default: false, describe: 'simulate again even if the data exist' }),
       async (a) => {
-        const c = loadCampaignFile(DEMO_CAMPAIGN);
-        if (a.regenerate || dataMissing(c)) {
-          say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
-          const s = await (await simulator()).simulateCampaign(c);
-          say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+        for (const file of DEMO_CAMPAIGNS) {
+          const c = loadCampaignFile(file);
+          if (a.regenerate || dataMissing(c)) {
+            say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
+            const s = await (await simulator()).simulateCampaign(c);
+            say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+          }
+          await runAndReport(c, { ...(a as unknown as Common), plan: true });
         }
-        await runAndReport(c, { ...(a as unknown as Common), plan: true });
       },
     )
     .command(
@@ -115,7 +120,8 @@ export function commands(y: Argv): Argv {
         const c = loadCampaignFile(a.campaign as string);
         const lines = [
           `campaign ${c.name}: valid`,
-          `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
+          ...c.turbines.map((t) => `  turbine ${t.id}: rotor ${t.rotorDiameter_m} m, hub ${t.hubHeight_m} m at (${t.position.join(', ')})${t.series ? ', series' : ''}`),
+          ...(c.site.terrain ? [`  terrain ${c.site.terrain.format} ${c.site.terrain.file}${c.site.terrain.crs ? ` (${c.site.terrain.crs})` : ''}`] : []),
           ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
           ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
         ];

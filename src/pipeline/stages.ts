@@ -78,7 +78,9 @@ export function wakeStage(): RunStage {
       // Keep the rows without their grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
       // (condition bins) are reported on their own and stay out of the per-window summaries.
       for (const row of made) (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
-      if (made.length) wakeRows(ctx.shared).set(f, made[0]);
+      // The row drawn with the field: its own turbine's (the only one with one turbine); several turbines add marks.
+      const own = site ? made.find((r) => r.planeId === f.planeId) : made[0];
+      if (own) wakeRows(ctx.shared).set(f, own);
       if (site) siteWakeRows(ctx.shared).set(f, made);
       return [];
     },
@@ -103,7 +105,8 @@ export function imageStage(): RunStage {
       if (!ctx.images) return [];
       const { renderGeometryMaps, renderPlaneImages } = await import('../render/planeImages.ts');
       const wake = wakeRows(ctx.shared).get(f);
-      return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
+      const all = siteWakeRows(ctx.shared).get(f) ?? [];
+      return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir, {}, all)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
     },
     async finish(ctx) {
       const a = ctx.shared.wake as WakeAnalysis | undefined;

@@ -13,6 +13,7 @@ import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import { scalarMapSvg, type ScalarMapOptions } from './scalarMap.ts';
 import { formatNumber } from './ticks.ts';
 import { writeFigure, type FigureOptions } from './figure.ts';
+import { turbineMarks } from './turbineMarks.ts';
 
 export { renderSummaryPlots } from './summaryPlots.ts';
 export { writeFigure } from './figure.ts';
@@ -30,7 +31,7 @@ function baseOptions(field: FieldResult, campaign: Campaign): Pick<ScalarMapOpti
  * The result images of one plane and window.
  * @param wake the wake analysis of this plane and window, if any: adds u/u_inf, centres, width ellipse, inflow plot
  */
-export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, runDir: string, fig: FigureOptions = {}): Promise<OutputRecord[]> {
+export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, runDir: string, fig: FigureOptions = {}, siteRows: readonly WakePlaneWindow[] = []): Promise<OutputRecord[]> {
   const D = campaign.turbine.rotorDiameter_m;
   const base = baseOptions(field, campaign);
   const win = field.window.index;
@@ -62,6 +63,13 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
   if (wake?.horizontalTrack) {
     const t = wake.horizontalTrack;
     for (let k = 0; k < t.x_m.length; k++) markers.push({ y: t.yc_m[k], z: t.x_m[k], label: 'wake centre per row (1D Gaussian fit)', shape: 'circle' });
+  }
+
+  // Several turbines: every rotor and wake (render/turbineMarks.ts).
+  if (siteRows.length) {
+    const marks = turbineMarks(field, campaign, siteRows);
+    markers.push(...marks.markers);
+    ellipses.push(...marks.ellipses);
   }
 
   let arrows: ScalarMapOptions['arrows'];

@@ -9,6 +9,10 @@
  * five points of its rotor (hub and half a radius up, down, left, right); its thrust coefficient follows from that
  * speed, and its power is P = min(rated, 1/2 rho A Cp U_eff^3 cos^3 gamma) (the cosine-cubed loss under yaw is
  * common practice; field studies report exponents between about 1.4 and 3).
+ *
+ * Close behind a rotor the Gaussian wake's amplitude (flow.ts) exceeds what momentum theory allows (it reaches 1
+ * where its formula has no real value); here it is capped at the actuator disc's far-wake deficit 1 - sqrt(1 - Ct)
+ * (one-dimensional momentum theory; common practice), so that turbines a few diameters apart see plausible wakes.
  */
 import type { Turbine } from '../campaign/types.ts';
 import { thrustCoefficientAt } from '../campaign/thrust.ts';
@@ -93,10 +97,11 @@ export function wakeDeficit(w: SiteTurbineTruth, p: ArrayLike<number>, ground: G
   const q = toRotor(w.frame, p);
   if (q[0] < 0.5 * w.params.diameter) return 0;
   const wk = wake ?? wakeAt(q[0], w.params);
+  const cap = 1 - Math.sqrt(Math.max(0, 1 - w.params.ct * Math.cos((w.params.yaw_deg * Math.PI) / 180) ** 2));
   // Terrain-following wake: its centre stays at hub height above the local ground.
   const z = agl(p, ground) + (w.frame.origin[2] - ground(w.frame.origin[0], w.frame.origin[1]));
   const dy = q[1] - wk.yc, dz = z - wk.zc;
-  return wk.amplitude * Math.exp(-(dy * dy) / (2 * wk.sigmaY * wk.sigmaY) - (dz * dz) / (2 * wk.sigmaZ * wk.sigmaZ));
+  return Math.min(wk.amplitude, cap) * Math.exp(-(dy * dy) / (2 * wk.sigmaY * wk.sigmaY) - (dz * dz) / (2 * wk.sigmaZ * wk.sigmaZ));
 }
 
 /**
