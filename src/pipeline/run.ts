@@ -2,19 +2,21 @@
  * The whole job for one campaign: check inputs, ingest (QC, geometry, windows), retrieve each window, write the
  * field tables, analyse the wake, render images and the report, and write the manifest.
  *
- * Output safety: everything is written into a staging folder beside the result (`.<name>.partial-<pid>`); only a
- * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
- * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
+ * Output safety (outputFolder.ts): everything is written into a marked staging folder beside the result
+ * (`.<name>.partial-<pid>`); only a run that finishes is renamed to `<output.dir>/<name>`. Whatever stands there
+ * must be a result wakeplane marked for this campaign: it is kept as `<name>.replaced-<time>-<pid>` and the run says
+ * so; anything else stops the run before any work. Inputs are checked first (preflight.ts); the suspicious-input
+ * inspector (qc/suspicion.ts) watches the samples and adds its warnings, or stops the run for a file without a
+ * usable row.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
-import { checkHeader } from '../io/csvSamples.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
-import { readSeries, type Series } from '../io/series.ts';
 import { isoTime } from '../io/time.ts';
+import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
@@ -24,12 +26,16 @@ import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
 import { directionForWindow, windowScheme } from './windows.ts';
-import { InputError } from '../errors.ts';
+import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
+import { openStaging } from './outputFolder.ts';
+import { preflight } from './preflight.ts';
 
 export interface RunOptions {
-  /** Output root; default: the campaign's output.dir resolved against the working directory. */
+  /** Output root; default: the campaign's output.dir (resolved against the campaign file's folder). */
   outRoot?: string;
+  /** Also remove unfinished staging folders whose run cannot be proven stopped (see outputFolder.ts). */
+  clean?: boolean;
   /** Render images and the report (default: campaign output.images). */
   images?: boolean;
   /** Progress sink (the CLI passes a terminal progress display; silent by default). */
@@ -41,6 +47,10 @@ export interface RunOptions {
 export interface RunProgress {
   stage(name: string): void;
   file(path: string, rows: number): void;
+  /** A running counter of the stage (windows, images, ...). */
+  count?(label: string, value: number): void;
+  /** Expected total rows of the reading stage (an estimate), for the share done. */
+  expect?(rows: number): void;
   done(): void;
 }
 
@@ -104,27 +114,27 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const notices: string[] = [];
   const warnings: string[] = [];
 
-  // 1. Inputs: every data file must exist and have the required columns before anything is written.
+  // 1. Inputs and the output target, before anything is written (all problems at once).
   progress.stage('checking inputs');
   let t = performance.now();
-  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
-  const dataFiles = c.instruments.flatMap((ins) => ins.files.map((file) => ({ file, ins })));
-  if (dataFiles.length === 0) throw new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files');
-  for (const { file, ins } of dataFiles) {
-    if (!existsSync(file)) throw new InputError(file, undefined, `data file of instrument "${ins.id}" not found`);
-    await checkHeader(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
-  }
-  const dirSeries: Series | undefined =
-    c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  const outRoot = resolve(opts.outRoot ?? c.output.dir);
+  const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true });
+  if (pre.errors.length) throw pre.errors.length === 1 ? pre.errors[0] : new Problems(pre.errors);
+  warnings.push(...pre.warnings);
+  const cRead = pre.campaign; // each data file once
+  const dataFiles = pre.files;
+  const dirSeries = pre.directionSeries;
   const digests = hashFiles(dataFiles.map((d) => d.file));
+  const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
 
-  // 2. Staging folder.
-  const outRoot = resolve(opts.outRoot ?? c.output.dir);
-  const finalDir = join(outRoot, c.name);
-  const runDir = join(outRoot, `.${c.name}.partial-${process.pid}`);
-  rmSync(runDir, { recursive: true, force: true });
-  mkdirSync(runDir, { recursive: true });
+  // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
+  const staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+  notices.push(...staging.notices);
+  const runDir = staging.dir;
+  const finalDir = staging.finalDir;
+  const show = (f: string) => relative(c.baseDir, f) || f;
+  const inspector = new SuspicionInspector(cRead, suspicionSettings(c, show));
 
   try {
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
@@ -146,8 +156,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
-    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
-    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0, imageCount = 0;
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
       campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
@@ -169,11 +178,13 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
+    progress.expect?.(pre.estimatedRows);
     t = performance.now();
     const scheme = windowScheme(c);
     await ingest(
       {
-        campaign: c,
+        campaign: cRead,
+        suspicion: inspector,
         planes,
         scheme,
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
@@ -205,13 +216,19 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
             for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
           }
           writeTime += (performance.now() - tw) / 1000;
+          progress.count?.('windows', windows.length);
           for (const stage of stages) {
             if (!stage.field) continue;
             const ts = performance.now();
-            for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
+            for (const f of res.fields) {
+              const made = await stage.field(f, stageCtx);
+              outputs.push(...made);
+              imageCount += made.filter((o) => o.kind === 'image').length;
+            }
             lap(stage.name, ts);
             stageFieldTime += (performance.now() - ts) / 1000;
           }
+          if (imageCount) progress.count?.('images', imageCount);
         },
       },
       counters,
@@ -231,6 +248,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
     lap('hash_wait', t);
     const { perInstrument, total } = accountsFrom(c, counters);
+    const suspicion = inspector.finish(perInstrument);
+    if (suspicion.errors.length) throw suspicion.errors.length === 1 ? suspicion.errors[0] : new Problems(suspicion.errors);
+    warnings.push(...suspicion.warnings, ...sameContentWarnings(manifest.inputs, show));
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
@@ -246,7 +266,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       if (!stage.finish) continue;
       progress.stage(stage.name);
       t = performance.now();
-      outputs.push(...(await stage.finish(stageCtx)));
+      const made = await stage.finish(stageCtx);
+      outputs.push(...made);
+      progress.count?.('files', made.length);
       lap(stage.name, t);
     }
 
@@ -257,17 +279,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 
-    if (existsSync(finalDir)) {
-      const kept = `${finalDir}.replaced-${new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}`;
-      renameSync(finalDir, kept);
-      notices.push(`an earlier result was kept as ${relative(process.cwd(), kept) || kept}`);
-    }
-    renameSync(runDir, finalDir);
+    notices.push(...staging.commit());
     progress.done();
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
-    rmSync(runDir, { recursive: true, force: true });
+    staging.abort();
     throw e;
   }
 }
