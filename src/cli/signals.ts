@@ -3,7 +3,7 @@
  * streamed file's temporary name; io/cleanup.ts), say so in one line on stderr, and exit with 128 + the signal
  * number (130, 143), as shells expect. Installed once by main.ts; a second signal while exiting changes nothing.
  */
-import { relative } from 'node:path';
+import { relative, sep } from 'node:path';
 import { removeRegistered } from '../io/cleanup.ts';
 
 const CODES = { SIGINT: 130, SIGTERM: 143 } as const;
@@ -15,7 +15,9 @@ export function installSignalHandlers(): void {
   installed = true;
   for (const sig of Object.keys(CODES) as (keyof typeof CODES)[]) {
     process.on(sig, () => {
-      const removed = removeRegistered().map((p) => relative(process.cwd(), p) || p);
+      const all = removeRegistered();
+      // name the folders, not the files inside them
+      const removed = all.filter((p) => !all.some((q) => q !== p && p.startsWith(q + sep))).map((p) => relative(process.cwd(), p) || p);
       if (process.stderr.isTTY) process.stderr.write('\r\x1b[2K');
       process.stderr.write(
         `wakeplane: interrupted by ${sig}; ${removed.length ? `removed the unfinished ${removed.join(', ')}` : 'nothing unfinished to remove'}; no result was written\n`,

@@ -56,6 +56,9 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+        ctx.manifest.warnings.push('wake/steering.csv has no rows: no window has a yaw offset (no turbine series rows with yaw_deg inside the windows, or no wind direction)');
+      }
       return writeWakeOutputs(a, ctx.runDir);
     },
   };
