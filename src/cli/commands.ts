@@ -110,7 +110,7 @@ export function commands(y: Argv): Argv {
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         const outRoot = outRootOf(c, a.out as string | undefined);
-        const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true });
+        const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true, scan: true });
         const target = join(outRoot, c.name);
         const lines = [
           `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,

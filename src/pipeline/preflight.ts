@@ -17,6 +17,9 @@ import { InputError } from '../errors.ts';
 import { checkHeader } from '../io/csvSamples.ts';
 import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
+import { readSamples } from '../io/csvSamples.ts';
+import { emptyAccount } from '../qc/reasons.ts';
+import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
 export interface PreflightOptions {
@@ -27,6 +30,12 @@ export interface PreflightOptions {
   kind: FolderKind;
   /** Check data and series files (a run; the planner needs none). */
   data: boolean;
+  /**
+   * Also read every data row (`check`): files without a usable row become errors, and the inspector's evidence
+   * (angle units, time order, duplicates) becomes warnings, as a run would report them. The reader alone runs at
+   * several million rows per second.
+   */
+  scan?: boolean;
 }
 
 export interface Preflight {
@@ -122,9 +131,29 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       const inf = c.inflow;
       series(() => readSeries(inf.file, inf.columns, ['height_m', 'speed_ms'], ['direction_deg']));
     }
+    if (opts.scan && errors.length === 0) {
+      const found = await scanData(campaign, files);
+      errors.push(...found.errors);
+      warnings.push(...found.warnings);
+    }
     if (!c.turbine.series) {
       warnings.push('no turbine series (turbine.series with yaw_deg): the yaw offset of each window is unknown, so wake/steering.csv has no rows');
     }
   }
   return { campaign, files, directionSeries, errors, warnings, notes, estimatedRows };
+}
+
+/** Reads every row of every data file through the inspector (no quality control, no geometry). */
+async function scanData(c: Campaign, files: { file: string; ins: Instrument }[]): Promise<{ errors: Error[]; warnings: string[] }> {
+  const inspector = new SuspicionInspector(c, suspicionSettings(c, (f) => shown(c, f)));
+  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
+  for (const { file, ins } of files) {
+    for await (const chunk of readSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign })) {
+      inspector.batch(chunk.batch, chunk.rejected);
+    }
+  }
+  // no accounting here (no quality control): the per-instrument share checks need a run
+  const accounts = Object.fromEntries(c.instruments.map((i) => [i.id, { ...emptyAccount(), read: NaN }]));
+  const r = inspector.finish(accounts);
+  return { errors: r.errors, warnings: r.warnings };
 }

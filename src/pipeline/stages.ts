@@ -57,7 +57,7 @@ export function wakeStage(): RunStage {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
       if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
-        ctx.manifest.warnings.push('wake/steering.csv has no rows: no window has a yaw offset (no turbine series rows with yaw_deg inside the windows, or no wind direction)');
+        ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
       return writeWakeOutputs(a, ctx.runDir);
     },
