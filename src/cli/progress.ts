@@ -64,13 +64,14 @@ function logProgress(stream: NodeJS.WriteStream, opts: ProgressOptions): Progres
   const t0 = now();
   let last = t0, lastRows = 0;
   let stage = '';
+  let rowsStage = '';
   let expected = NaN;
   const rows = new RowTally();
   const counters = new Map<string, number>();
   const line = () => {
     const t = now();
     const parts = [`wakeplane: [${clock(t - t0)}] ${stage || 'working'}`];
-    if (rows.total > 0) {
+    if (rows.total > 0 && stage === rowsStage) {
       const share = expected > 0 ? ` (~${Math.min(99, (100 * rows.total) / expected).toFixed(0)} % of ~${compact(expected)} rows)` : '';
       const rate = t > last ? (1000 * (rows.total - lastRows)) / (t - last) : NaN;
       parts.push(`${compact(rows.total)} rows read${share}, ${compact(rate)} rows/s`);
@@ -93,6 +94,7 @@ function logProgress(stream: NodeJS.WriteStream, opts: ProgressOptions): Progres
     },
     file(path, done) {
       rows.set(path, done);
+      rowsStage = stage;
       tick();
     },
     count(label, value) {

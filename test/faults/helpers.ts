@@ -72,17 +72,22 @@ export interface CliResult {
 export async function runCli(args: string[], cwd?: string): Promise<CliResult> {
   const out: string[] = [], err: string[] = [];
   const wOut = process.stdout.write, wErr = process.stderr.write;
+  const log = console.log, error = console.error; // yargs prints its help through the console
   const oldCwd = process.cwd();
   const oldCode = process.exitCode;
   process.exitCode = 0;
   process.stdout.write = ((s: string | Uint8Array) => (out.push(String(s)), true)) as typeof process.stdout.write;
   process.stderr.write = ((s: string | Uint8Array) => (err.push(String(s)), true)) as typeof process.stderr.write;
+  console.log = (...a: unknown[]) => void out.push(a.join(' ') + '\n');
+  console.error = (...a: unknown[]) => void err.push(a.join(' ') + '\n');
   try {
     if (cwd) process.chdir(cwd);
     await main(args, { signals: false });
   } finally {
     process.stdout.write = wOut;
     process.stderr.write = wErr;
+    console.log = log;
+    console.error = error;
     process.chdir(oldCwd);
   }
   const code = Number(process.exitCode ?? 0);
