@@ -101,14 +101,17 @@ class RayHistory {
   private genStart = NaN;
   constructor(private readonly horizon: number) {}
 
+  /** Hash of the last find(), reused by the add() that follows it. */
+  private h = 0;
+
   find(t: number, az: number, el: number): Ray | undefined {
-    const h = mix(mix(mix(0x2545f491, t), az), el);
-    for (const m of [this.cur, this.old]) {
-      for (let r = m.get(h); r; r = r.next) if (r.t === t && r.az === az && r.el === el) return r;
-    }
+    const h = (this.h = mix(mix(mix(0x2545f491, t), az), el));
+    for (let r = this.cur.get(h); r; r = r.next) if (r.t === t && r.az === az && r.el === el) return r;
+    for (let r = this.old.get(h); r; r = r.next) if (r.t === t && r.az === az && r.el === el) return r;
     return undefined;
   }
 
+  /** Adds a ray; call right after find() returned undefined for the same key. */
   add(t: number, az: number, el: number, range: number): Ray {
     if (!(t - this.genStart <= this.horizon)) {
       if (this.genStart === this.genStart) {
@@ -117,7 +120,7 @@ class RayHistory {
       }
       this.genStart = t;
     }
-    const h = mix(mix(mix(0x2545f491, t), az), el);
+    const h = this.h;
     const ray: Ray = { t, az, el, r0: range, dr: NaN, n: 1, rmax: range, list: undefined, next: this.cur.get(h) };
     this.cur.set(h, ray);
     return ray;
@@ -198,6 +201,9 @@ export class SuspicionInspector {
   private readonly ids: string[];
   private readonly filesOf: string[][];
   private mask = new Uint8Array(0);
+  /** Fast-path state of batch(): instrument, time, azimuth, elevation, first range, step, next gate index. */
+  private readonly fast = new Float64Array(7);
+  private fastRay: Ray | undefined;
   private readonly show: (f: string) => string;
 
   constructor(
@@ -230,55 +236,93 @@ export class SuspicionInspector {
     e.valid += n;
     if (this.mask.length < n) this.mask = new Uint8Array(Math.max(n, 2 * this.mask.length));
     const mask = this.mask;
-    const tol = this.s.timeOrderTolerance_s;
-    const T = b.time, AZ = b.azimuth, EL = b.elevation, RG = b.range, INS = b.instrument, LN = b.line;
+    mask.fill(0, 0, n);
+    const T = b.time, AZ = b.azimuth, EL = b.elevation, RG = b.range, INS = b.instrument;
+    const rows = e.rows;
+    // Hot loop: a row continuing the previous row's ray as the next gate of its arithmetic range sequence (the
+    // common case: one row per range gate) only counts; the run is written to the ray when it ends. Everything else
+    // goes to row(), kept out of this loop so that the loop stays small and its type feedback stable.
+    const f = this.fast;
+    f[0] = -1;
+    let run = 0;
     for (let i = 0; i < n; i++) {
-      const ins = INS[i], t = T[i], az = AZ[i], el = EL[i], r = RG[i];
-      mask[i] = 0;
-      // angles
-      e.rows[ins]++;
-      const azd = az > 180 ? 360 - az : az;
-      if (azd > e.maxAzDist[ins]) e.maxAzDist[ins] = azd;
-      if (azd < e.minAzDist[ins]) e.minAzDist[ins] = azd;
-      const ael = el < 0 ? -el : el;
-      if (ael > e.maxAbsEl[ins]) e.maxAbsEl[ins] = ael;
-      if (el < e.minEl[ins]) e.minEl[ins] = el;
-      if (el > e.maxEl[ins]) e.maxEl[ins] = el;
-      // duplicates: the stream's current ray, else the instrument's history
-      let dup = false;
-      const cur = e.cur[ins];
-      if (cur !== undefined && cur.t === t && cur.az === az && cur.el === el) {
-        if (r > cur.rmax + RANGE_EPS_M) addRange(cur, r);
-        else if (hasRange(cur, r)) dup = true;
-        else addRange(cur, r);
-      } else {
-        const h = this.history[ins];
-        const ray = h.find(t, az, el);
-        if (ray === undefined) e.cur[ins] = h.add(t, az, el, r);
-        else {
-          e.cur[ins] = ray;
-          if (hasRange(ray, r)) dup = true;
-          else addRange(ray, r);
-        }
+      const ins = INS[i];
+      if (ins === f[0] && T[i] === f[1] && AZ[i] === f[2] && EL[i] === f[3]) {
+        const r = RG[i], next = f[4] + f[6] * f[5];
+        if (r - next <= RANGE_EPS_M && next - r <= RANGE_EPS_M) { f[6]++; run++; continue; }
       }
-      if (dup) {
-        mask[i] = 1;
-        if (e.dups[ins]++ < MAX_LINES) e.dupLines[ins].push(LN[i]);
-        continue; // a repeat says nothing new about time order
-      }
-      // time order
-      const k = 4 * ins;
-      if (e.first[k] !== e.first[k]) { e.first[k] = t; e.first[k + 1] = az; e.first[k + 2] = el; e.first[k + 3] = r; }
-      const prev = e.prevT[ins];
-      if (t < prev - tol) {
-        const step = prev - t;
-        if (e.backSteps[ins]++ < MAX_LINES) e.backLines[ins].push(LN[i]);
-        if (step > e.backMax[ins]) { e.backMax[ins] = step; e.backMaxLine[ins] = LN[i]; }
-        if (t === e.first[k] && az === e.first[k + 1] && el === e.first[k + 2] && r === e.first[k + 3]) e.repeatsStart[ins] = 1;
-      }
-      e.prevT[ins] = t;
+      if (run > 0) { this.endRun(rows, run); run = 0; }
+      this.row(e, b, i, mask);
     }
+    if (run > 0) this.endRun(rows, run);
     return this.s.dropDuplicates ? mask : undefined;
+  }
+
+  /** Writes a run of `run` gates taken by the fast path to its ray. */
+  private endRun(rows: Float64Array, run: number): void {
+    const f = this.fast, ray = this.fastRay!;
+    ray.n += run;
+    ray.rmax = f[4] + (f[6] - 1) * f[5];
+    rows[f[0]] += run;
+  }
+
+  /**
+   * One row off the fast path: the next gate of the stream's current ray, a repeat, or the first row of a ray (the
+   * instrument's history says whether it is new). Time order and angle evidence cannot change within a ray, so
+   * they are looked at once per ray. Sets the fast path up for the ray's next gate.
+   */
+  private row(e: FileEvidence, b: SampleBatch, i: number, mask: Uint8Array): void {
+    const ins = b.instrument[i], t = b.time[i], az = b.azimuth[i], el = b.elevation[i], r = b.range[i];
+    e.rows[ins]++;
+    const cur = e.cur[ins];
+    let dup = false;
+    let ray: Ray | undefined;
+    let fresh = false;
+    if (cur !== undefined && cur.t === t && cur.az === az && cur.el === el) {
+      ray = cur;
+      if (r <= cur.rmax + RANGE_EPS_M && hasRange(cur, r)) dup = true;
+      else addRange(cur, r);
+    } else {
+      const h = this.history[ins];
+      ray = h.find(t, az, el);
+      fresh = true;
+      if (ray === undefined) e.cur[ins] = ray = h.add(t, az, el, r);
+      else {
+        e.cur[ins] = ray;
+        if (hasRange(ray, r)) dup = true;
+        else addRange(ray, r);
+      }
+    }
+    const f = this.fast;
+    this.fastRay = ray;
+    f[0] = ins; f[1] = t; f[2] = az; f[3] = el;
+    if (!dup && ray.list === undefined && ray.n > 1 && r === ray.rmax) { f[4] = ray.r0; f[5] = ray.dr; f[6] = ray.n; }
+    else { f[4] = NaN; f[5] = NaN; f[6] = 0; }
+    if (dup) {
+      mask[i] = 1;
+      if (e.dups[ins]++ < MAX_LINES) e.dupLines[ins].push(b.line[i]);
+      return; // a repeat says nothing new about time order or angles
+    }
+    if (!fresh) return; // another gate of the current ray
+    // angles
+    const azd = az > 180 ? 360 - az : az;
+    if (azd > e.maxAzDist[ins]) e.maxAzDist[ins] = azd;
+    if (azd < e.minAzDist[ins]) e.minAzDist[ins] = azd;
+    const ael = el < 0 ? -el : el;
+    if (ael > e.maxAbsEl[ins]) e.maxAbsEl[ins] = ael;
+    if (el < e.minEl[ins]) e.minEl[ins] = el;
+    if (el > e.maxEl[ins]) e.maxEl[ins] = el;
+    // time order
+    const k = 4 * ins;
+    if (e.first[k] !== e.first[k]) { e.first[k] = t; e.first[k + 1] = az; e.first[k + 2] = el; e.first[k + 3] = r; }
+    const prev = e.prevT[ins];
+    if (t < prev - this.s.timeOrderTolerance_s) {
+      const step = prev - t;
+      if (e.backSteps[ins]++ < MAX_LINES) e.backLines[ins].push(b.line[i]);
+      if (step > e.backMax[ins]) { e.backMax[ins] = step; e.backMaxLine[ins] = b.line[i]; }
+      if (t === e.first[k] && az === e.first[k + 1] && el === e.first[k + 2] && r === e.first[k + 3]) e.repeatsStart[ins] = 1;
+    }
+    e.prevT[ins] = t;
   }
 
   /** Warnings and errors once every file is read; `accounts` per instrument id (after the robust filter). */
