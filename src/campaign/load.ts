@@ -23,6 +23,8 @@ import { campaignSchema, type CampaignInput } from './schema.ts';
 import { plausibilityErrors } from './plausibility.ts';
 import { keyPathOf, problemsFromIssues, yamlLocator, type KeyPath, type Locator } from './problems.ts';
 import type { Campaign, Instrument, PlaneSpec, Vec3 } from './types.ts';
+import { parseTime } from '../io/time.ts';
+import { conditionVariableProblem } from './conditionVariables.ts';
 
 /** Most alias uses a campaign file may make (the yaml library's maxAliasCount). */
 export const MAX_ALIASES = 100;
@@ -154,6 +156,30 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns };
   const inflow = c.inflow.kind === 'series' ? { ...c.inflow, file: abs(c.inflow.file) } : c.inflow;
 
+  let windows = c.windows;
+  if (windows.kind === 'list') {
+    if ((windows.file === undefined) === (windows.items === undefined)) {
+      bad(['windows'], 'a list of windows needs exactly one of file or items');
+    }
+    if (windows.file) windows = { ...windows, file: abs(windows.file) };
+  } else if (windows.kind === 'segments') {
+    if (!tSeries) bad(['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)');
+  } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
+    if (!Number.isFinite(parseTime(windows.anchor))) {
+      bad(['windows', 'anchor'], 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
+    }
+  }
+  if (c.conditions) {
+    c.conditions.bins.forEach((b, i) => {
+      const where = ['conditions', 'bins', i];
+      for (let k = 1; k < b.edges.length; k++) {
+        if (!(b.edges[k] > b.edges[k - 1])) { bad([...where, 'edges'], 'edges must ascend', b.edges); break; }
+      }
+      const problem = conditionVariableProblem(b.variable, { turbine: !!tSeries, inflow: c.inflow.kind === 'series', direction: c.windDirection.kind === 'series' });
+      if (problem) bad([...where, 'variable'], problem, b.variable);
+    });
+  }
+
   const campaign: Campaign = {
     ...c,
     sourceFile: file,
@@ -163,6 +189,7 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     turbine: { ...turbineRest, position: [...position_m], series: tSeries ? { file: abs(tSeries.file), columns: tSeries.columns } : undefined },
     windDirection,
     inflow: inflow as Campaign['inflow'],
+    windows,
     output: { ...c.output, dir: abs(c.output.dir) },
   };
   if (problems.length === 0) {

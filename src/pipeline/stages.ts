@@ -40,6 +40,7 @@ export function wakeStage(): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
   const rows: WakePlaneWindow[] = [];
+  const ensembleRows: WakePlaneWindow[] = [];
   return {
     name: 'wake analysis',
     async field(f, ctx) {
@@ -48,8 +49,9 @@ export function wakeStage(): RunStage {
         ctxW = planeWindowContext(ctx.campaign, inputs);
       }
       const row = analysePlaneWindow(f, ctxW!);
-      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles.
-      rows.push({ ...row, deficit: new Float64Array(0) });
+      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
+      // (condition bins) are reported on their own and stay out of the per-window summaries.
+      (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
       wakeRows(ctx.shared).set(f, row);
       return [];
     },
@@ -59,7 +61,8 @@ export function wakeStage(): RunStage {
       if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
         ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
-      return writeWakeOutputs(a, ctx.runDir);
+      ctx.shared.ensembleRows = ensembleRows;
+      return writeWakeOutputs(a, ctx.runDir, ensembleRows);
     },
   };
 }
