@@ -58,12 +58,18 @@ function dataLineCount(bytes: Buffer): number {
   return lines.slice(1).filter((l) => !/^[ \t]*$/.test(l.replace(/\r$/, ''))).length;
 }
 
-const MASK_COL = 20; // mask_u in the field table (see src/pipeline/fieldTable.ts)
+const MASK_COL = 20;
+
+/**
+ * Windows anchored at the epoch: with the default anchor (the earliest sample of the run) a damaged time earlier
+ * than every other moves every window, so no cell could be compared; that case is a known limit of the anchor.
+ */
+const epochWindows = (c: Record<string, any>) => (c.windows = { kind: 'fixed', length_s: 300, anchor: 'epoch' }); // mask_u in the field table (see src/pipeline/fieldTable.ts)
 
 describe('random byte damage to a sample file', () => {
   let cleanTables: Tables;
   beforeAll(async () => {
-    const { dir, file } = await freshCampaign();
+    const { dir, file } = await freshCampaign(epochWindows);
     cleanTables = await run(file, join(dir, 'out'));
   });
 
@@ -71,7 +77,7 @@ describe('random byte damage to a sample file', () => {
     it(`case ${k}: no crash, accounting balanced, results unchanged outside the damaged rows' cells`, async () => {
       const rnd = mulberry32(SEED + 7919 * k);
       const int = (n: number) => Math.floor(rnd() * n);
-      const { dir, file } = await freshCampaign();
+      const { dir, file } = await freshCampaign(epochWindows);
       const target = ['a', 'b', 'c'][int(3)];
       const path = join(dir, 'data', `${target}.csv`);
       const original = readFileSync(path);

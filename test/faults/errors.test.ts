@@ -86,7 +86,7 @@ describe('the campaign file', () => {
       `wakeplane: ${file}: 3 problems in the campaign file:\n` +
       `  ${file}:${lineOf('hubheight')}:${colOf('hubheight')}: turbine.hubheight: unknown key; did you mean "hubHeight_m"?\n` +
       `  ${file}:${lineOf('rotorDiameter_m')}:${colOf('-120')}: turbine.rotorDiameter_m: Too small: expected number to be >0 (got -120)\n` +
-      `  ${file}:${lineOf('kind: fixd')}:${colOf('fixd')}: windows.kind: expected one of "fixed", "record"; did you mean "fixed"? (got "fixd")\n`,
+      `  ${file}:${lineOf('kind: fixd')}:${colOf('fixd')}: windows.kind: expected one of "fixed", "list", "segments", "record"; did you mean "fixed"? (got "fixd")\n`,
     );
   });
 
