@@ -21,9 +21,9 @@
  * - Duplicates: a row repeating an earlier row of the same instrument (from any of its files) in time, azimuth,
  *   elevation and range (ranges equal within RANGE_EPS_M). Rays are kept, not rows: a ray (time, azimuth,
  *   elevation) holds its ranges as an arithmetic sequence (first, step, count) or, when irregular, as a list, so the
- *   history costs a few tens of bytes per ray. History reaches back `horizon_s` (two generations of rays; a
- *   duplicate further back in time than that is found as a step back in time instead); with a whole-record window
- *   it reaches back over the whole record. With qc.dropDuplicates the repeats are dropped (reason 'duplicate'),
+ *   history costs about a hundred bytes per ray. History reaches back `horizon_s` (two generations of rays; a
+ *   duplicate further back in time than that is found as a step back in time instead); with windows other than
+ *   fixed ones it reaches back over the whole record. With qc.dropDuplicates the repeats are dropped (reason 'duplicate'),
  *   else kept and reported.
  * - Files without usable rows: an error (the run stops, no result), naming the file and what its lines were.
  * - At the end, per instrument: no sample read at all; an accepted share that collapsed against the other
@@ -54,7 +54,7 @@ export interface SuspicionSettings {
   show?: (file: string) => string;
 }
 
-/** The settings of a campaign: qc keys, and a horizon of two window lengths (whole record for a record window). */
+/** The settings of a campaign: qc keys, and a horizon of two window lengths (the whole record for other kinds). */
 export function suspicionSettings(c: Campaign, show?: (file: string) => string): SuspicionSettings {
   const horizon = c.windows.kind === 'fixed' ? Math.max(2 * c.windows.length_s, 600) : Infinity;
   return { dropDuplicates: c.qc.dropDuplicates, timeOrderTolerance_s: c.qc.timeOrderTolerance_s, horizon_s: horizon, show };
