@@ -68,7 +68,7 @@ export class WindowFinisher {
       const rel = fieldTableName(f, ordinal);
       await writeFieldTable(f, join(this.runDir, rel), this.c.turbine.rotorDiameter_m);
       const label = f.window.label ? ` (${f.window.label})` : '';
-      this.outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${tag}${label}` });
+      this.outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, ...(f.window.kind === 'ensemble' ? { bin: ordinal } : { window: ordinal }), description: `retrieved wind field, ${f.planeId}, ${tag}${label}` });
       for (const a of f.assumptions) this.assumptions.set(a, [...(this.assumptions.get(a) ?? []), `${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`]);
     }
     this.times.write_fields += (performance.now() - tw) / 1000;

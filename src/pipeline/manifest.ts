@@ -18,6 +18,8 @@ export interface OutputRecord {
   path: string;
   plane?: string;
   window?: number;
+  /** Condition bin of an ensemble output. */
+  bin?: number;
   description?: string;
 }
 
