@@ -15,12 +15,14 @@ export function installSignalHandlers(): void {
   installed = true;
   for (const sig of Object.keys(CODES) as (keyof typeof CODES)[]) {
     process.on(sig, () => {
-      const all = removeRegistered();
+      const { removed: all, failed } = removeRegistered();
       // name the folders, not the files inside them
-      const removed = all.filter((p) => !all.some((q) => q !== p && p.startsWith(q + sep))).map((p) => relative(process.cwd(), p) || p);
+      const show = (list: string[]) => list.filter((p) => !all.some((q) => q !== p && p.startsWith(q + sep))).map((p) => relative(process.cwd(), p) || p);
+      const removed = show(all);
       if (process.stderr.isTTY) process.stderr.write('\r\x1b[2K');
       process.stderr.write(
-        `wakeplane: interrupted by ${sig}; ${removed.length ? `removed the unfinished ${removed.join(', ')}` : 'nothing unfinished to remove'}; no result was written\n`,
+        `wakeplane: interrupted by ${sig}; ${removed.length ? `removed the unfinished ${removed.join(', ')}` : 'nothing unfinished to remove'}` +
+          `${failed.length ? `; could not remove ${show(failed).join(', ')}` : ''}; no result was written\n`,
       );
       process.exit(CODES[sig]);
     });

@@ -13,19 +13,23 @@ export function removeOnInterrupt(path: string): () => void {
   return () => registered.delete(path);
 }
 
-/** Removes every registered path (synchronously, as a signal handler must) and returns those removed. */
-export function removeRegistered(): string[] {
-  const done: string[] = [];
-  for (const p of registered) {
+/**
+ * Removes every registered path (synchronously, as a signal handler must), the innermost first; a write still in
+ * flight can add a file to a folder while it is removed, so a folder is tried again a few times. Returns the paths
+ * removed and those that could not be.
+ */
+export function removeRegistered(): { removed: string[]; failed: string[] } {
+  const removed: string[] = [], failed: string[] = [];
+  for (const p of [...registered].sort((a, b) => b.length - a.length)) {
     try {
-      rmSync(p, { recursive: true, force: true });
-      done.push(p);
+      rmSync(p, { recursive: true, force: true, maxRetries: 10, retryDelay: 20 });
+      removed.push(p);
     } catch {
-      /* nothing more can be done while exiting */
+      failed.push(p);
     }
   }
   registered.clear();
-  return done;
+  return { removed, failed };
 }
 
 /** What is registered now (tests). */
