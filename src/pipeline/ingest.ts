@@ -33,6 +33,7 @@ import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { readSamples, type SampleChunk } from '../io/csvSamples.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
+import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
 
 export interface OpenWindow {
@@ -62,6 +63,8 @@ export interface IngestOptions {
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
+  /** Suspicious-input inspector (qc/suspicion.ts): sees every chunk first; its mask drops duplicates. */
+  suspicion?: SuspicionInspector;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -178,11 +181,13 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
 
   const processChunk = (chunk: SampleChunk, owner: number) => {
     const b = chunk.batch;
+    const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) {
-      // Rows that could not be read are charged to the instrument owning the file.
+      // Rows that could not be read are charged to the instrument they name, else to the one owning the file.
       for (const r of chunk.rejected) {
-        counters.read[owner]++;
-        counters.reject(owner, R[r.reason as keyof typeof R] ?? R.bad_number);
+        const ins = r.instrument ?? owner;
+        counters.read[ins]++;
+        counters.reject(ins, R[r.reason as keyof typeof R] ?? R.bad_number);
       }
       opts.onRejectedRows(chunk.rejected);
     }
@@ -190,6 +195,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
+      if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
       if (cnr < cnrMin) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
       if (cnr > cnrMax) { counters.rejected[ins * NR + R.hard_target_cnr]++; continue; }
@@ -272,7 +278,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     if (chunk) {
       processChunk(chunk, cur.owner);
       const b = chunk.batch;
-      if (b.length > 0) cur.last = Math.max(cur.last, b.time[b.length - 1]);
+      if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
       cur.rows += b.length + chunk.rejected.length;
       opts.onProgress?.(cur.path, cur.rows);
     }
