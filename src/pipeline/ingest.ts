@@ -91,6 +91,22 @@ interface Live extends OpenWindow {
   dN: number;
 }
 
+/** Times further than this from the median of a file's first batch are not taken as its first sample, s. */
+export const FIRST_SAMPLE_SPAN_S = 86400;
+
+/**
+ * The earliest sample time of a batch (a file's first), ignoring stamps more than FIRST_SAMPLE_SPAN_S from the
+ * batch's median: one corrupted time (a zeroed clock, a wrong year) would otherwise move the anchor of every
+ * fixed window. NaN for an empty batch.
+ */
+export function firstSampleTime(b: { length: number; time: Float64Array }): number {
+  if (b.length === 0) return NaN;
+  const t = Float64Array.from(b.time.subarray(0, b.length)).sort();
+  const med = t[t.length >> 1];
+  for (let i = 0; i < t.length; i++) if (t[i] >= med - FIRST_SAMPLE_SPAN_S) return t[i];
+  return med;
+}
+
 export async function ingest(opts: IngestOptions, counters: Counters): Promise<{ plan: WindowPlan }> {
   const c = opts.campaign;
   const I = c.instruments.length;
@@ -130,8 +146,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     const r = await cur.it.next();
     if (r.done) { cur.done = true; continue; }
     cur.pending = r.value;
-    const b = r.value.batch;
-    for (let i = 0; i < b.length; i++) if (b.time[i] < first) first = b.time[i];
+    const f = firstSampleTime(r.value.batch);
+    if (f < first) first = f;
   }
   const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
   const record = plan.kind === 'record';

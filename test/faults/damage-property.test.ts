@@ -62,7 +62,8 @@ const MASK_COL = 20;
 
 /**
  * Windows anchored at the epoch: with the default anchor (the earliest sample of the run) a damaged time earlier
- * than every other moves every window, so no cell could be compared; that case is a known limit of the anchor.
+ * than every other (but within a day of them: farther ones are ignored, see firstSampleTime) moves every window, so
+ * no cell could be compared; that case is a known limit of the anchor.
  */
 const epochWindows = (c: Record<string, any>) => (c.windows = { kind: 'fixed', length_s: 300, anchor: 'epoch' }); // mask_u in the field table (see src/pipeline/fieldTable.ts)
 
