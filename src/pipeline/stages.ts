@@ -87,6 +87,9 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = site ? summariseSiteWake(rows, ctx.campaign, inputs ?? {}) : summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+        ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
+      }
       ctx.shared.ensembleRows = ensembleRows;
       const out = writeWakeOutputs(a, ctx.runDir, ensembleRows);
       if (site) {
