@@ -175,7 +175,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     }
     if (windows.file) windows = { ...windows, file: abs(windows.file) };
   } else if (windows.kind === 'segments') {
-    if (!tSeries) bad(windows.turbine ? ['windows', 'turbine'] : ['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)', windows.turbine);
+    const id = windows.turbine;
+    const known = id === undefined || turbines.some((t) => t.id === id);
+    if (!tSeries && known) bad(id ? ['windows', 'turbine'] : ['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)', id);
   } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
     if (!Number.isFinite(parseTime(windows.anchor))) {
       bad(['windows', 'anchor'], 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
