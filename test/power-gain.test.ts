@@ -143,7 +143,7 @@ describe('power analysis: window states from the plan', () => {
       id: i, start_s: i * 600, end_s: (i + 1) * 600, direction_deg: 270, level_deg: i % 2 === 0 ? 0 : 20, yawOffset_deg: NaN, inflowSpeed_ms: 8, centreAt: {},
     }));
     const a = analysePower(wins, [{ id: 'R', series: ref }, { id: 'D', series: down }], 'R', ['D'], {
-      availableStatus: [1], minAvailability: 0.9, maxGap_s: 90, replicates: 200, confidence: 0.9, seed: 1, baselineTolerance_deg: 2,
+      availableStatus: [1], minAvailability: 0.9, maxGap_s: 90, replicates: 200, confidence: 0.9, seed: 1, baselineTolerance_deg: 2, levelStep_deg: 5,
       directionEdges_deg: [260, 280], speedEdges_ms: [6, 10],
     });
     expect(a.gains).toHaveLength(1);
@@ -155,6 +155,20 @@ describe('power analysis: window states from the plan', () => {
     const flagged = a.windows.find((w) => w.window.id === 3)!.perTurbine.D;
     expect(flagged.flag).toBe('negative_power');
     expect(flagged.reason).toBe('down.csv:33: negative power -5 kW');
+  });
+  it('groups windows of other plans by their mean yaw offset rounded to the level step', () => {
+    const rows: [number, number][] = [];
+    for (let k = 0; k < 60; k++) rows.push([minute(k), 1000]);
+    const ref = series('ref.csv', rows);
+    const yaws = [0.5, 19.2, -1.1, 21.0, 1.4, -9.6];
+    const wins: PowerWindow[] = yaws.map((g, i) => ({ id: i, start_s: i * 600, end_s: (i + 1) * 600, direction_deg: 270, level_deg: NaN, yawOffset_deg: g, inflowSpeed_ms: 8, centreAt: {} }));
+    const a = analysePower(wins, [{ id: 'R', series: ref }, { id: 'D', series: ref }], 'R', ['D'], {
+      availableStatus: [1], minAvailability: 0.9, maxGap_s: 90, replicates: 100, confidence: 0.9, seed: 1, baselineTolerance_deg: 2, levelStep_deg: 5,
+      directionEdges_deg: [260, 280], speedEdges_ms: [6, 10],
+    });
+    // |gamma| <= 2: baseline (0.5, -1.1, 1.4); 19.2 and 21.0 -> level 20; -9.6 -> level -10.
+    expect(a.windows.map((w) => [w.state, w.level_deg])).toEqual([['baseline', NaN], ['steered', 20], ['baseline', NaN], ['steered', 20], ['baseline', NaN], ['steered', -10]]);
+    expect(a.gains.map((g) => g.level_deg)).toEqual([-10, 20]);
   });
   function minute(k: number) { return 30 + 60 * k; }
 });

@@ -69,7 +69,7 @@ export function powerStage(): RunStage {
         return id !== reference;
       });
       const a = analysePower(windows, ids.map((id) => ({ id, series: series.get(id)! })), reference, downstream, {
-        ...s, directionEdges_deg: s.directionEdges_deg, speedEdges_ms: s.speedEdges_ms,
+        ...s, directionEdges_deg: s.directionEdges_deg, speedEdges_ms: s.speedEdges_ms, levelStep_deg: c.wake.yawBin_deg,
       });
       ctx.shared.power = a;
       ctx.manifest.assumptions.push(...a.assumptions);

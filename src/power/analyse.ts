@@ -6,7 +6,8 @@
  *
  * Window state: a segment window's state level (windows/segments.ts); any other window's mean yaw offset of the
  * turbine whose series gives the state (campaign/turbines.ts stateTurbine). Within baselineTolerance_deg of 0 it is a
- * baseline window; otherwise a steered window of its level (other windows: one steered group, level NaN).
+ * baseline window; otherwise a steered window of its level (other windows: their mean yaw offset rounded to the
+ * nearest multiple of levelStep_deg, the campaign's wake.yawBin_deg).
  * Wind direction of a window: the campaign's direction source (windows/direction.ts). Wind speed: the reference
  * turbine's nacelle wind speed (wind_speed_ms) when its series has one, else the window's measured hub-height inflow
  * speed (the wake analysis); windows without either are left out.
@@ -39,6 +40,8 @@ export interface PowerTurbine {
 
 export interface PowerSettings extends WindowPowerSettings, BootstrapSettings {
   baselineTolerance_deg: number;
+  /** Other than segment windows: steered windows are grouped by their mean yaw offset rounded to this, degrees. */
+  levelStep_deg: number;
   /** Windows each state needs in a bin for its gain. @default 2 */
   minWindowsPerState?: number;
   /** Bin edges; computed from the windows when absent (10 degrees, 2 m/s). */
@@ -83,7 +86,9 @@ export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], r
     const state: 'baseline' | 'steered' | 'unknown' = !Number.isFinite(lvl) ? 'unknown' : Math.abs(lvl) <= s.baselineTolerance_deg ? 'baseline' : 'steered';
     const nacelle = perTurbine[ref.id].windSpeed_ms;
     const speed = Number.isFinite(nacelle) ? nacelle : w.inflowSpeed_ms;
-    return { window: w, state, level_deg: Number.isFinite(w.level_deg) ? w.level_deg : NaN, speed_ms: speed, perTurbine };
+    // Segment windows carry their level; other windows take their mean yaw offset to the nearest multiple of levelStep_deg.
+    const level = Number.isFinite(w.level_deg) ? w.level_deg : state === 'steered' ? Math.round(lvl / s.levelStep_deg) * s.levelStep_deg : NaN;
+    return { window: w, state, level_deg: level, speed_ms: speed, perTurbine };
   });
   const edges: GainEdges = {
     direction_deg: s.directionEdges_deg ?? autoEdges(rows.map((r) => r.window.direction_deg), 10, true),
