@@ -127,7 +127,9 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     }
     for (const t of c.turbines) {
       const ts = t.series;
-      if (ts) series(() => readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status']));
+      // The state turbine's series must give the yaw; the others may bring only their power.
+      const required = t === stateTurbine(c) ? ['yaw_deg'] : [];
+      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status']));
     }
     if (c.site.terrain) {
       try {

@@ -47,7 +47,8 @@ export function siteWakeRows(shared: Record<string, unknown>): WeakMap<FieldResu
 function loadSiteWakeInputs(c: Campaign, inputs: WakeInputs): SiteWakeInputs {
   const turbineSeries = new Map<string, Series>();
   for (const t of c.turbines) {
-    if (t.series) turbineSeries.set(t.id, readSeries(t.series.file, t.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']));
+    // yaw_deg is optional here: a turbine may bring only its power (its rows then have no yaw offset).
+    if (t.series) turbineSeries.set(t.id, readSeries(t.series.file, t.series.columns, [], ['yaw_deg', 'wind_direction_deg', 'power_kw']));
   }
   return { inflowSeries: inputs.inflowSeries, turbineSeries };
 }
