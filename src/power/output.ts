@@ -53,7 +53,8 @@ export function powerReportTables(a: PowerAnalysis, link = 'power/power_gain.csv
   for (const g of a.gains) {
     for (const b of g.result.bins) {
       if (!(b.nBaseline > 0 && b.nSteered > 0)) continue;
-      rows.push([g.turbine, g.level_deg, `${b.directionLo} to ${b.directionHi}`, `${b.speedLo} to ${b.speedHi}`, b.nBaseline, b.nSteered, pct(b.gain), `${pct(b.gainLo)} to ${pct(b.gainHi)}`, b.deflection_m]);
+      const interval = Number.isFinite(b.gain) ? `${pct(b.gainLo)} to ${pct(b.gainHi)}` : 'too few windows in a state: not in the combination';
+      rows.push([g.turbine, g.level_deg, `${b.directionLo} to ${b.directionHi}`, `${b.speedLo} to ${b.speedHi}`, b.nBaseline, b.nSteered, pct(b.gain), interval, b.deflection_m]);
     }
     const c = g.result.combined;
     rows.push([g.turbine, g.level_deg, 'all (combined)', 'all', c.nBaseline, c.nSteered, pct(c.gain), `${pct(c.lo)} to ${pct(c.hi)}`, c.deflection_m]);
