@@ -106,6 +106,13 @@ export const NacelleMiss = { none: -1, noDirection: 0, notForward: 1 } as const;
  * origin of a sample (out[0..2], out[3..5]) and returns NacelleMiss.none, or why it cannot.
  */
 export class NacelleFrame {
+  /**
+   * The reported (nacelle-relative) angles, degrees, and the beam origin (site frame, metres) of the last sample
+   * placed by `beam`: the nacelle target reads them to find the sample's beam and gate without recomputing them.
+   */
+  lastAz = NaN;
+  lastEl = NaN;
+  readonly lastOrigin = new Float64Array(3);
   private readonly yaw: SeriesInterpolator;
   private readonly tilt?: SeriesInterpolator;
   private readonly roll?: SeriesInterpolator;
@@ -143,6 +150,8 @@ export class NacelleFrame {
     out[3] = this.base[0] + m[0] * s - m[1] * co;
     out[4] = this.base[1] + m[0] * co + m[1] * s;
     out[5] = this.base[2] + m[2];
+    this.lastAz = az; this.lastEl = el;
+    this.lastOrigin[0] = out[3]; this.lastOrigin[1] = out[4]; this.lastOrigin[2] = out[5];
     return NacelleMiss.none;
   }
 }
