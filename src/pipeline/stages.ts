@@ -17,6 +17,7 @@ import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
+import { geometryStage } from './geometryStage.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 
 /** The series files the wake analysis uses (inflow reference, turbine yaw), loaded once. */
@@ -46,6 +47,7 @@ export function wakeStage(): RunStage {
     async field(f, ctx) {
       if (!inputs) {
         inputs = loadWakeInputs(ctx.campaign);
+        inputs.profileInflow = ctx.shared.profileInflow as WakeInputs['profileInflow'];
         ctxW = planeWindowContext(ctx.campaign, inputs);
       }
       const row = analysePlaneWindow(f, ctxW!);
@@ -130,13 +132,15 @@ export function reportStage(): RunStage {
       const extras: ReportExtras = {};
       if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
       if (plan) extras.planSummary = planExtras(plan);
+      const geo = ctx.shared.geometryReport as ReportExtras['geometry'];
+      if (geo?.length) extras.geometry = geo;
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
     },
   };
 }
 
 export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), geometryStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };
