@@ -101,21 +101,28 @@ const pc = (x: number) => `${(100 * x).toFixed(1)} %`;
 function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
   const items: [string, string][] = [
     ['Planned wind direction', `${s.direction_deg.toFixed(1)}\u00b0 (${s.directionSource})`],
-    ['Rotor disk resolved in u, v and w (all planes)', pc(s.rotor.all)],
-    ['Planes resolved in u, v and w', pc(s.plane.all)],
+    ['Region resolved in the target components (all planes)', pc(s.rotor.all)],
+    ['Planes resolved in the target components', pc(s.plane.all)],
   ];
   if (s.layout?.best) {
-    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the rotor disk (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
+    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the regions (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
   }
+  const geo = (s.geometries ?? []).map((g) => ({
+    title: `${g.role} ${g.instrumentId}`,
+    columns: g.rows.length ? Object.keys(g.rows[0]) : [],
+    rows: g.rows.map((r) => Object.values(r)),
+    link: 'plan/geometries.json',
+    note: g.notes.join(' '),
+  }));
   return {
     title: 'Campaign geometry (planner)',
     items,
     tables: [{
-      title: 'Resolved fraction per plane',
-      columns: ['plane', 'rotor disk u', 'v', 'w', 'all three', 'whole plane all three'],
-      rows: s.planes.map((p) => [p.planeId, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
+      title: 'Resolved fraction per plane (region: rotor disk of a cross plane, rotor shadow band of a horizontal plane)',
+      columns: ['plane', 'target components', 'region', 'region u', 'v', 'w', 'region, target', 'whole plane, target'],
+      rows: s.planes.map((p) => [p.planeId, p.components === 'uvw' ? 'u, v, w' : 'u, v', p.region, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
       link: 'plan/summary.json',
-    }],
+    }, ...geo],
     notes: s.notes,
   };
 }
