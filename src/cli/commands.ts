@@ -27,6 +27,8 @@ function packageRoot(): string {
 }
 const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
+/** Both demos: three scanners crossing in planes, and a site with profilers, nacelle instruments and a tracker. */
+export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'fernhollow', 'campaign.yaml')];
 
 interface Common {
   out?: string;
@@ -61,16 +63,18 @@ export function commands(y: Argv): Argv {
   return y
     .command(
       'demo',
-      'simulate the built-in demo campaign if its data are missing, then run the whole job and the planner on it',
+      'simulate the built-in demo campaigns if their data are missing, then run the whole job and the planner on each',
       (yy) => common(yy).option('regenerate', { type: 'boolean', default: false, describe: 'simulate again even if the data exist' }),
       async (a) => {
-        const c = loadCampaignFile(DEMO_CAMPAIGN);
-        if (a.regenerate || dataMissing(c)) {
-          say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
-          const s = await (await simulator()).simulateCampaign(c);
-          say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+        for (const file of DEMO_CAMPAIGNS) {
+          const c = loadCampaignFile(file);
+          if (a.regenerate || dataMissing(c)) {
+            say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
+            const s = await (await simulator()).simulateCampaign(c);
+            say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+          }
+          await runAndReport(c, { ...(a as unknown as Common), plan: true });
         }
-        await runAndReport(c, { ...(a as unknown as Common), plan: true });
       },
     )
     .command(
