@@ -66,7 +66,7 @@ export function trackFigures(rows: TrackPoint[], diameter_m: number): GeometryFi
     });
     const bias = win.map((r) => r.directionBiasCentre_m).filter(Number.isFinite);
     const biasNote = bias.length ? `Direction assumption: centre moves by up to ${Math.max(...bias).toFixed(1)} m for the assumed direction +/- its uncertainty.` : 'Direction bias not estimated (no ok fits).';
-    out.push({ name: `track_centre_${safe(id)}`, description: `wake centre against downstream distance, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: wake centre (${axis === 'y' ? 'lateral, positive to the left looking downstream' : 'height above ground'})`, xLabel: 'x / D', yLabel: `${axis} centre (m)`, series, notes: ['Error bars: standard error of the fitted centre.', biasNote], yReference: axis === 'y' ? 0 : undefined }) });
+    out.push({ name: `track_centre_${safe(id)}`, description: `wake centre against downstream distance, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: wake centre`, subtitle: axis === 'y' ? 'lateral centre y, positive to the left looking downstream; all scans of each window pooled' : 'centre height above ground; all scans of each window pooled', xLabel: 'x / D', yLabel: `${axis} centre (m)`, series, notes: ['Error bars: standard error of the fitted centre.', biasNote], yReference: axis === 'y' ? 0 : undefined }) });
     const first = win.find((r) => r.profile.c_m.length > 0);
     if (first) {
       const same = win.filter((r) => r.window.index === first.window.index && r.profile.c_m.length > 0);
