@@ -119,7 +119,7 @@ export function commands(y: Argv): Argv {
         const lines = [
           `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,
           `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
-          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
+          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}${i.role === 'plane' ? '' : `, ${i.role}`}) ${i.beamFrame === 'nacelle' ? `on the nacelle, mount forward ${i.mount[0]} left ${i.mount[1]} up ${i.mount[2]} m, beams relative to the nacelle axis` : `at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m`}, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
           ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
           `  results: ${relative(process.cwd(), target) || target}${existsSync(target) ? ' (an earlier result there would be kept as .replaced-...)' : ''}`,
           ...pre.warnings.map((w) => `warning: ${w}`),

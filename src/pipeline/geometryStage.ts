@@ -104,6 +104,7 @@ export function reportSections(g: GeometryResults): ReportSection[] {
       notes: ['Line-of-sight deficit under the assumption that the wind blows along the window wind direction; the bias column is the largest change of the centre when that direction is moved by its stated uncertainty.'],
     });
   }
-  for (const s of sections) s.notes = [...(s.notes ?? []), ...g.notes];
+  const prefix: Record<string, string> = { 'Wind profiles (VAD / DBS)': 'inflow reference', 'Nacelle instruments': 'nacelle', 'Single-instrument wake tracking': 'wake tracking' };
+  for (const s of sections) s.notes = [...(s.notes ?? []), ...g.notes.filter((n) => n.startsWith(prefix[s.title] ?? '\u0000'))];
   return sections;
 }
