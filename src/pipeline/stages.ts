@@ -60,7 +60,8 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+      // Steering needs cross planes; a campaign with only horizontal planes (or none) has nothing to say there.
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series && ctx.campaign.planes.some((p) => p.orientation === 'cross')) {
         ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
       ctx.shared.ensembleRows = ensembleRows;
