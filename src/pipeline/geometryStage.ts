@@ -22,6 +22,11 @@ export function geometryStage(): RunStage {
     async finish(ctx) {
       const g = ctx.shared.geometry as GeometryResults | undefined;
       if (!g) return [];
+      // Beam-frame slips show up as rejections; say what they most likely mean, once per instrument.
+      for (const [id, a] of Object.entries(ctx.manifest.samples.perInstrument)) {
+        if (a.rejected.wrong_beam_frame > 0) ctx.manifest.warnings.push(`${id}: ${a.rejected.wrong_beam_frame} samples with beam azimuths more than 90 deg off the nacelle axis (rejected as wrong_beam_frame): were site azimuths given as nacelle-relative? (beamFrame: site if the file holds site azimuths)`);
+        if (a.rejected.no_nacelle_direction > 0) ctx.manifest.warnings.push(`${id}: ${a.rejected.no_nacelle_direction} samples without a nacelle direction (turbine-series gaps; rejected as no_nacelle_direction); the windows concerned are flagged nacelle_series_gap`);
+      }
       const out: OutputRecord[] = [];
       const write = (rel: string, text: string, kind: string, description: string) => {
         writeFileAtomic(join(ctx.runDir, rel), text);
