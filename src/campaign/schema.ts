@@ -14,6 +14,7 @@
  */
 import { z } from 'zod';
 import { planSchema } from '../plan/schema.ts';
+import { beamFrameSchema, mountSchema, nacelleSchema, orientationSeriesSchema, profileInflowSchema, profileSchema, roleSchema, trackSchema } from './geometrySchema.ts';
 
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
@@ -97,6 +98,14 @@ const instrumentSchema = z
       .strict()
       .default({ dwell_s: 1, slewRate_degs: 30 })
       .describe('scanner timing for the planner'),
+    // Single-instrument geometries (geometrySchema.ts).
+    role: roleSchema,
+    beamFrame: beamFrameSchema,
+    mount_m: mountSchema,
+    orientationSeries: orientationSeriesSchema,
+    profile: profileSchema.optional().describe('profiler settings (role profiler)'),
+    nacelle: nacelleSchema.optional().describe('nacelle-mounted instrument settings (role nacelle)'),
+    track: trackSchema.optional().describe('wake-tracking settings (role tracker)'),
   })
   .strict();
 
@@ -249,7 +258,7 @@ export const campaignSchema = z
       })
       .strict(),
     instruments: z.array(instrumentSchema).min(1),
-    planes: z.array(planeSchema).min(1),
+    planes: z.array(planeSchema).default([]).describe('measurement planes of the plane scanners (at least one when an instrument has role plane)'),
     qc: z
       .object({
         cnr_db: z
@@ -310,6 +319,7 @@ export const campaignSchema = z
         z.object({ kind: z.literal('plane'), law: z.enum(['power', 'log']).default('power') }).strict().describe('fit the undisturbed cells of each plane'),
         z.object({ kind: z.literal('fixed'), speed_ms: finite().positive(), height_m: finite().positive(), law: z.enum(['power', 'log']).default('power'), alpha: finite().default(0.2), z0_m: finite().positive().default(0.03) }).strict(),
         seriesFile.extend({ kind: z.literal('series') }).describe('reference series with columns time, height_m, speed_ms, direction_deg'),
+        profileInflowSchema,
       ])
       .default({ kind: 'plane', law: 'power' })
       .describe('inflow reference for the deficit; default: fit the plane itself'),

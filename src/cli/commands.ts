@@ -33,6 +33,8 @@ function packageRoot(): string {
 }
 const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
+/** Both demos: three scanners crossing in planes, and a site with profilers, nacelle instruments and a tracker. */
+export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'fernhollow', 'campaign.yaml')];
 
 interface Common {
   out?: string;
@@ -76,16 +78,18 @@ export function commands(y: Argv): Argv {
   return y
     .command(
       'demo',
-      'simulate the built-in demo campaign if its data are missing, then run the whole job and the planner on it',
+      'simulate the built-in demo campaigns if their data are missing, then run the whole job and the planner on each',
       (yy) => common(yy).option('regenerate', { type: 'boolean', default: false, describe: 'simulate again even if the data exist' }),
       async (a) => {
-        const c = loadCampaignFile(DEMO_CAMPAIGN);
-        if (a.regenerate || dataMissing(c)) {
-          say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
-          const s = await (await simulator()).simulateCampaign(c);
-          say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+        for (const file of DEMO_CAMPAIGNS) {
+          const c = loadCampaignFile(file);
+          if (a.regenerate || dataMissing(c)) {
+            say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
+            const s = await (await simulator()).simulateCampaign(c);
+            say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
+          }
+          await runAndReport(c, { ...(a as unknown as Common), plan: true });
         }
-        await runAndReport(c, { ...(a as unknown as Common), plan: true });
       },
     )
     .command(
@@ -115,7 +119,7 @@ export function commands(y: Argv): Argv {
         const lines = [
           `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,
           `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
-          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
+          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}${i.role === 'plane' ? '' : `, ${i.role}`}) ${i.beamFrame === 'nacelle' ? `on the nacelle, mount forward ${i.mount[0]} left ${i.mount[1]} up ${i.mount[2]} m, beams relative to the nacelle axis` : `at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m`}, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
           ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
           `  results: ${relative(process.cwd(), target) || target}${existsSync(target) ? ' (an earlier result there would be kept as .replaced-...)' : ''}`,
           ...pre.warnings.map((w) => `warning: ${w}`),

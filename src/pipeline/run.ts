@@ -15,7 +15,7 @@ import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
-import { readSeries } from '../io/series.ts';
+import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
@@ -23,6 +23,8 @@ import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
+import { runTargets } from './geometryTargets.ts';
+import { GeometryFinisher } from './geometryFinish.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
@@ -107,6 +109,10 @@ export function accountsFrom(c: Campaign, counters: Counters): { perInstrument: 
   return { perInstrument: per, total };
 }
 
+function loadInflowSeries(c: Campaign): Series | undefined {
+  return c.inflow.kind === 'series' ? readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']) : undefined;
+}
+
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
   const progress = opts.progress ?? silent;
   const t0 = performance.now();
@@ -182,7 +188,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     };
     const stages = opts.stages ?? [];
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
-    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries);
+    // The plane target takes the plane scanners' samples; profilers, nacelle instruments and trackers go to their own.
+    const planeTarget = new PlaneTarget(
+      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      c.instruments.length, c.turbine.position,
+    );
+    const rt = runTargets(c, planeTarget);
+    const geometry = rt.targets.length > 1 ? new GeometryFinisher(c, rt, c.qc.robust, loadInflowSeries(c)) : undefined;
+    if (geometry) stageCtx.shared.geometry = geometry.results;
+    if (geometry) stageCtx.shared.profileInflow = geometry.profileInflow;
+    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries, geometry);
     manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
@@ -191,17 +206,13 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     t = performance.now();
     let built: BuiltWindowPlan | undefined = early;
     let outputsSeen = 0, imageCount = 0;
-    // The plane target takes every instrument's samples (sibling geometries would take theirs).
-    const planeTarget = new PlaneTarget(
-      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
-      c.instruments.length, c.turbine.position,
-    );
     await ingest(
       {
         campaign: cRead,
         suspicion: inspector,
-        targets: [planeTarget],
-        targetOf: new Int32Array(c.instruments.length).fill(0),
+        targets: rt.targets,
+        targetOf: rt.targetOf,
+        nacelleFrames: rt.nacelleFrames,
         windowPlan(first) {
           built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
           finisher.disjoint = built.plan.disjoint;

@@ -17,6 +17,7 @@ import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
+import { geometryStage } from './geometryStage.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 
 /** The series files the wake analysis uses (inflow reference, turbine yaw), loaded once. */
@@ -46,6 +47,7 @@ export function wakeStage(): RunStage {
     async field(f, ctx) {
       if (!inputs) {
         inputs = loadWakeInputs(ctx.campaign);
+        inputs.profileInflow = ctx.shared.profileInflow as WakeInputs['profileInflow'];
         ctxW = planeWindowContext(ctx.campaign, inputs);
       }
       const row = analysePlaneWindow(f, ctxW!);
@@ -58,7 +60,8 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+      // Steering needs cross planes; a campaign with only horizontal planes (or none) has nothing to say there.
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series && ctx.campaign.planes.some((p) => p.orientation === 'cross')) {
         ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
       ctx.shared.ensembleRows = ensembleRows;
@@ -102,21 +105,28 @@ const pc = (x: number) => `${(100 * x).toFixed(1)} %`;
 function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
   const items: [string, string][] = [
     ['Planned wind direction', `${s.direction_deg.toFixed(1)}\u00b0 (${s.directionSource})`],
-    ['Rotor disk resolved in u, v and w (all planes)', pc(s.rotor.all)],
-    ['Planes resolved in u, v and w', pc(s.plane.all)],
+    ['Region resolved in the target components (all planes)', pc(s.rotor.all)],
+    ['Planes resolved in the target components', pc(s.plane.all)],
   ];
   if (s.layout?.best) {
-    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the rotor disk (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
+    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the regions (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
   }
+  const geo = (s.geometries ?? []).map((g) => ({
+    title: `${g.role} ${g.instrumentId}`,
+    columns: g.rows.length ? Object.keys(g.rows[0]) : [],
+    rows: g.rows.map((r) => Object.values(r)),
+    link: 'plan/geometries.json',
+    note: g.notes.join(' '),
+  }));
   return {
     title: 'Campaign geometry (planner)',
     items,
     tables: [{
-      title: 'Resolved fraction per plane',
-      columns: ['plane', 'rotor disk u', 'v', 'w', 'all three', 'whole plane all three'],
-      rows: s.planes.map((p) => [p.planeId, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
+      title: 'Resolved fraction per plane (region: rotor disk of a cross plane, rotor shadow band of a horizontal plane)',
+      columns: ['plane', 'target components', 'region', 'region u', 'v', 'w', 'region, target', 'whole plane, target'],
+      rows: s.planes.map((p) => [p.planeId, p.components === 'uvw' ? 'u, v, w' : 'u, v', p.region, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
       link: 'plan/summary.json',
-    }],
+    }, ...geo],
     notes: s.notes,
   };
 }
@@ -133,13 +143,15 @@ export function reportStage(): RunStage {
       const extras: ReportExtras = {};
       if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
       if (plan) extras.planSummary = planExtras(plan);
+      const geo = ctx.shared.geometryReport as ReportExtras['geometry'];
+      if (geo?.length) extras.geometry = geo;
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
     },
   };
 }
 
 export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), geometryStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

@@ -10,6 +10,7 @@ import type { OutputRecord } from '../pipeline/manifest.ts';
 import { scalarMapSvg, type ScalarMapOptions } from '../render/scalarMap.ts';
 import { writeSvgAndPng } from '../render/write.ts';
 import { TrustCategory, trustCategoryName } from './cellTrust.ts';
+import { planeComponents, planeRegion } from './components.ts';
 import type { PlanResult } from './planCampaign.ts';
 import type { PlaneTrust } from './trustMap.ts';
 
@@ -45,7 +46,7 @@ export function trustMapGrid(pt: PlaneTrust): { values: Float64Array; codes: Uin
   const names: Record<number, string> = {};
   for (const [cat, code] of codeOf) names[code] = trustCategoryName[cat];
   for (let c = 0; c < n; c++) {
-    if (t.category[c] === TrustCategory.trusted) values[c] = Math.max(t.dopU[c], t.dopV[c], t.dopW[c]);
+    if (t.category[c] === TrustCategory.trusted) values[c] = t.passW[c] ? Math.max(t.dopU[c], t.dopV[c], t.dopW[c]) : Math.max(t.dopU[c], t.dopV[c]);
     else codes[c] = codeOf.get(t.category[c])!;
   }
   return { values, codes, names };
@@ -61,14 +62,16 @@ export async function writePlanImages(result: PlanResult, campaign: Campaign, di
     const base = mapBase(pt, campaign);
     const sub = `wind from ${result.settings.direction_deg.toFixed(0)} deg; max amplification ${maxA}`;
     const tm = trustMapGrid(pt);
+    const comps = planeComponents(pt.geometry.plane, result.instruments.length) === 'uvw' ? 'u, v and w' : 'u and v';
+    const region = planeRegion(pt.geometry.plane);
     const maps: [string, string, ScalarMapOptions][] = [
       [
         `trust_${safe(id)}`,
-        'trust map: cells where u, v and w are resolved, the others by reason',
+        `trust map: cells where ${comps} are resolved, the others by reason`,
         {
-          title: `Plane ${id}: where the planned geometry resolves u, v and w`,
-          subtitle: `${sub}; ${(100 * pt.plane.all).toFixed(0)} % of the plane, ${(100 * pt.rotor.all).toFixed(0)} % of the rotor disk trusted`,
-          colorbarLabel: 'largest amplification of u, v, w (–)',
+          title: `Plane ${id}: where the planned geometry resolves ${comps}`,
+          subtitle: `${sub}; ${(100 * pt.plane.all).toFixed(0)} % of the plane, ${(100 * pt.rotor.all).toFixed(0)} % of the ${region} trusted`,
+          colorbarLabel: 'largest amplification of the resolved components (–)',
           domain: [1, Math.max(1.5, maxA)],
           contours: false,
           mask: { codes: tm.codes, names: tm.names },

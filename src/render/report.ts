@@ -26,9 +26,14 @@ export interface ReportExtras {
   wakeTables?: ReportTable[];
   /** The planner's summary: label/value pairs, optional tables and notes. */
   planSummary?: { title?: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] };
+  /** Sections of the single-instrument geometries (profiles, nacelle instruments, wake tracking). */
+  geometry?: ReportSection[];
   /** Rows shown per table before "first N of M"; default 25. */
   maxRows?: number;
 }
+
+/** A titled section: label/value pairs, tables and notes. */
+export interface ReportSection { title: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] }
 
 /** The cautions printed in every report. */
 export const CAUTIONS = [
@@ -91,6 +96,11 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
         (p.tables ?? []).map((t) => tableHtml(t, maxRows)).join('\n') +
         (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : ''));
   }
+
+  (extras.geometry ?? []).forEach((p, k) => section(`geometry-${k}`, p.title,
+    `<dl class="facts">${p.items.map(([a, b]) => `<dt>${esc(a)}</dt><dd>${esc(b)}</dd>`).join('')}</dl>` +
+      (p.tables ?? []).map((t) => tableHtml(t, maxRows)).join('\n') +
+      (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : '')));
 
   // Data files and inputs.
   section('files', 'Data files',

@@ -10,7 +10,7 @@ import type { GridSpec } from '../grid/grid.ts';
 import type { WindowInfo } from '../retrieval/types.ts';
 
 /** Where the undisturbed inflow profile came from. */
-export type InflowSource = 'series' | 'plane' | 'fixed';
+export type InflowSource = 'series' | 'plane' | 'fixed' | 'profile';
 /** Vertical profile law: power V = V_ref (z/z_ref)^alpha, or log V = (u_star / kappa) ln(z/z0) with kappa = 0.40. */
 export type InflowLaw = 'power' | 'log';
 
@@ -34,6 +34,8 @@ export interface InflowProfile {
   speeds_ms: number[];
   /** Cells (plane) or rows (series) behind each point. */
   counts: number[];
+  /** Standard uncertainty of each point's speed, m/s (profile source; absent otherwise: not propagated). */
+  speedsSd_ms?: number[];
   /** Root-mean-square residual of the fit over the points, m/s (NaN for 'fixed'). */
   rmse_ms: number;
   /** Coefficient of determination over the points (NaN when undefined or 'fixed'). */
