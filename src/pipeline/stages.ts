@@ -2,7 +2,8 @@
  * The stages that follow retrieval in a normal run, in order:
  * 1. wake: each field through the per-plane-window analysis as its window finishes (shared.wakeRows maps a field to
  *    its row); at the end the campaign-level summaries and model fits (shared.wake).
- * 2. images: plane images and geometry maps per field (using shared.wakeRows), summary plots at the end.
+ * 2. figures: each field's values and a small panel collected as it passes (using shared.wakeRows); at the end the
+ *    summary plots, one multi-panel figure per plane and the requested single-window images (render/runFigures.ts).
  * 3. plan (optional, `wakeplane demo` and `run --plan`): the planner's outputs under plan/ (shared.plan).
  * 4. report: report.html listing every output recorded before it.
  * The image stack (sharp) and the planner load only when a run uses them, so a run without images starts faster.
@@ -18,6 +19,10 @@ import { writeWakeOutputs } from '../wake/output.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
 import type { FieldResult } from '../retrieval/types.ts';
+import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
+import type { FigureCollector } from '../render/runFigures.ts';
+import { readFieldTable } from './fieldTable.ts';
+import type { RunManifest } from './manifest.ts';
 
 /** The series files the wake analysis uses (inflow reference, turbine yaw), loaded once. */
 export function loadWakeInputs(c: Campaign): WakeInputs {
@@ -36,7 +41,8 @@ function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePla
   return (shared.wakeRows ??= new WeakMap<FieldResult, WakePlaneWindow>()) as WeakMap<FieldResult, WakePlaneWindow>;
 }
 
-export function wakeStage(): RunStage {
+/** The wake stage; with `write: false` (wakeplane render) it analyses but leaves the wake tables as they are. */
+export function wakeStage(opts: { write?: boolean } = {}): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
   const rows: WakePlaneWindow[] = [];
@@ -56,25 +62,58 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      return writeWakeOutputs(a, ctx.runDir);
+      return opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir);
     },
   };
 }
 
-export function imageStage(): RunStage {
+export interface ImageStageOptions {
+  /** Overrides output.figures.windowImages (the command line's --window-images). */
+  windowImages?: WindowImages;
+}
+
+/** The figure settings of a run: the campaign's, with the command line's choices over them. */
+export function figureSettings(c: Campaign, o: ImageStageOptions = {}): FiguresSettings {
+  const f = c.output.figures ?? FIGURES_DEFAULT;
+  return o.windowImages ? { ...f, windowImages: o.windowImages } : f;
+}
+
+/** The fields of the run folder's field tables a predicate selects, in window order, read one at a time. */
+export async function* fieldsFromTables(c: Campaign, runDir: string, manifest: RunManifest, want: (planeId: string, window: number) => boolean): AsyncIterable<FieldResult> {
+  const planes = new Map(c.planes.map((p) => [p.id, p]));
+  const tables = manifest.outputs.filter((o) => o.kind === 'field-table' && o.plane !== undefined && o.window !== undefined && planes.has(o.plane));
+  tables.sort((a, b) => a.window! - b.window! || planes.get(a.plane!)!.index - planes.get(b.plane!)!.index);
+  for (const t of tables) {
+    if (!want(t.plane!, t.window!)) continue;
+    const w = manifest.windows[t.window!];
+    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, w ? { index: t.window!, start_s: w.start_s, end_s: w.end_s } : undefined);
+  }
+}
+
+export function imageStage(opts: ImageStageOptions = {}): RunStage {
+  let collector: FigureCollector | undefined;
   return {
     name: 'images',
     async field(f, ctx) {
       if (!ctx.images) return [];
-      const { renderGeometryMaps, renderPlaneImages } = await import('../render/planeImages.ts');
-      const wake = wakeRows(ctx.shared).get(f);
-      return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
+      const { FigureCollector } = await import('../render/runFigures.ts');
+      collector ??= new FigureCollector(figureSettings(ctx.campaign, opts).maxPanels);
+      collector.add(f, wakeRows(ctx.shared).get(f));
+      return [];
     },
     async finish(ctx) {
-      const a = ctx.shared.wake as WakeAnalysis | undefined;
-      if (!ctx.images || !a) return [];
-      const { renderSummaryPlots } = await import('../render/summaryPlots.ts');
-      return renderSummaryPlots(a, ctx.campaign, ctx.runDir);
+      if (!ctx.images) return [];
+      const { FigureCollector, renderRunFigures } = await import('../render/runFigures.ts');
+      const { RenderQueue } = await import('../render/renderQueue.ts');
+      const settings = figureSettings(ctx.campaign, opts);
+      return renderRunFigures({
+        campaign: ctx.campaign,
+        settings,
+        collector: collector ?? new FigureCollector(settings.maxPanels),
+        analysis: ctx.shared.wake as WakeAnalysis | undefined,
+        windowFields: (want) => fieldsFromTables(ctx.campaign, ctx.runDir, ctx.manifest, want),
+        queue: new RenderQueue(ctx.runDir, settings.density, settings.workers),
+      });
     },
   };
 }
@@ -118,6 +157,7 @@ function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
 export function reportStage(): RunStage {
   return {
     name: 'report',
+    last: true,
     async finish(ctx) {
       if (!ctx.images) return [];
       const { writeReport } = await import('../render/report.ts');
@@ -125,15 +165,21 @@ export function reportStage(): RunStage {
       const a = ctx.shared.wake as WakeAnalysis | undefined;
       const plan = ctx.shared.plan as PlanSummary | undefined;
       const extras: ReportExtras = {};
-      if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
+      const written = new Set(ctx.manifest.outputs.map((o) => o.path));
+      const has = (p: string) => (written.has(p) ? p : undefined);
+      if (a) {
+        extras.wakeTables = wakeReportTables(a, {
+          rows: has('wake/wake_table.csv'), downstream: has('wake/downstream.csv'), steering: has('wake/steering.csv'), tracks: has('wake/tracks.csv'),
+        });
+      }
       if (plan) extras.planSummary = planExtras(plan);
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
     },
   };
 }
 
-export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+export function defaultStages(opts: { plan?: boolean } & ImageStageOptions = {}): RunStage[] {
+  return [wakeStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };
