@@ -105,7 +105,7 @@ export function topHatModel(points: DownstreamPoint[], ct: number, turbulenceInt
   const kNote = kSource === 'option'
     ? 'given in the wake options'
     : kSource === 'fit'
-      ? `fitted to the centreline deficits of ${fit.n} plane${fit.n === 1 ? '' : 's'}`
+      ? `fitted to the centreline deficits of ${fit.n} plane${fit.n === 1 ? '' : 's'}${fit.note ? ` (${fit.note})` : ''}`
       : `from the ambient turbulence intensity, k = 0.4 I with I = ${turbulenceIntensity} (Pe\u00f1a et al. 2016)${fit.note ? `; not fitted: ${fit.note}` : ''}`;
   return {
     k, ct, kNote, kDefault, turbulenceIntensity, kFit: fit.k, kFitSE: fit.se, kFitCI95: fit.ci95, fitPlanes: fit.n, fitRmse: fit.rmse,

@@ -82,6 +82,8 @@ export function fitTopHatK(x_D: number[], deficit: number[], ct: number, tQuanti
     }
   }
   const n = xs.length;
+  const left = x_D.filter((x, i) => Number.isFinite(x) && Number.isFinite(deficit[i])).length - n;
+  const leftNote = left > 0 ? `${left} plane${left === 1 ? '' : 's'} left out (centreline deficit not between 0 and 1 \u2212 \u221a(1 \u2212 Ct) = ${a.toFixed(3)})` : '';
   const none: TopHatFit = { k: NaN, se: NaN, ci95: [NaN, NaN], n, rmse: NaN, ok: false, note: '' };
   if (!(a > 0)) return { ...none, note: 'thrust coefficient not usable' };
   if (n === 0) return { ...none, note: 'no plane with a centreline deficit between 0 and 1 - sqrt(1 - Ct)' };
@@ -110,8 +112,9 @@ export function fitTopHatK(x_D: number[], deficit: number[], ct: number, tQuanti
     jj += ((4 * a * xs[i]) / (q * q * q)) ** 2;
   }
   const rmse = Math.sqrt(ssr / n);
-  if (n === 1) return { k, se: NaN, ci95: [NaN, NaN], n, rmse, ok: k > 0, note: '1 plane: k matches it exactly, no interval' };
+  const join = (...p: string[]) => p.filter(Boolean).join('; ');
+  if (n === 1) return { k, se: NaN, ci95: [NaN, NaN], n, rmse, ok: k > 0, note: join('1 plane: k matches it exactly, no interval', leftNote) };
   const se = Math.sqrt(ssr / (n - 1) / jj);
   const t = tQuantile(0.975, n - 1);
-  return { k, se, ci95: [k - t * se, k + t * se], n, rmse, ok: k > 0 && Number.isFinite(k), note: n < 4 ? `only ${n} planes: the interval is wide` : '' };
+  return { k, se, ci95: [k - t * se, k + t * se], n, rmse, ok: k > 0 && Number.isFinite(k), note: join(n < 4 ? `only ${n} planes: the interval is wide` : '', leftNote) };
 }
