@@ -22,24 +22,31 @@ export const QUANTITY = {
   yaw: 'γ, yaw offset (°)',
 } as const;
 
-/** "2026-06-01 12:00–12:10 UTC" (the end date is repeated only when it differs). */
+/** "2026-06-01 12:00–12:10 UTC" (the end date is repeated only when it differs; seconds when a time has them). */
 export function windowLabel(w: WindowInfo): string {
-  const a = isoMinute(w.start_s), b = isoMinute(w.end_s);
+  const sec = needsSeconds(w);
+  const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return `window ${w.index}`;
   const same = a.slice(0, 10) === b.slice(0, 10);
   return `${a}\u2013${same ? b.slice(11) : b} UTC`;
 }
 
-/** "12:00–12:10" (times only; with dates when the window spans midnight), for panel labels. */
+/** "12:00–12:10" (times only; with dates when the window spans midnight; seconds when needed), for panel labels. */
 export function windowTimes(w: WindowInfo): string {
-  const a = isoMinute(w.start_s), b = isoMinute(w.end_s);
+  const sec = needsSeconds(w);
+  const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return '';
   return a.slice(0, 10) === b.slice(0, 10) ? `${a.slice(11)}\u2013${b.slice(11)}` : `${a}\u2013${b}`;
 }
 
-export function isoMinute(s: number): string {
+/** "2026-06-01 12:00" (or with ":SS" when `seconds`), UTC; '' for NaN. */
+export function isoMinute(s: number, seconds = false): string {
   if (!Number.isFinite(s)) return '';
-  return new Date(Math.round(s * 1000)).toISOString().slice(0, 16).replace('T', ' ');
+  return new Date(Math.round(s * 1000)).toISOString().slice(0, seconds ? 19 : 16).replace('T', ' ');
+}
+
+function needsSeconds(w: WindowInfo): boolean {
+  return [w.start_s, w.end_s].some((t) => Number.isFinite(t) && Math.round(t) % 60 !== 0);
 }
 
 /** "x = 5.0 D (600 m)" for a cross plane, "horizontal plane at z = 90 m" for a horizontal one. */
