@@ -2,7 +2,8 @@
  * The `output.figures` block of the campaign file: which figures a run draws and on which scales.
  *
  * By default a run draws the summary plots and one multi-panel figure per plane (its windows as small multiples on
- * one colour scale); images of single windows are drawn on request (`windowImages`). Colour limits are shared
+ * one colour scale), and one more per plane for its condition bins when the campaign declares any; images of single
+ * windows or bins are drawn on request (`windowImages`, `binImages`). Colour limits are shared
  * across all planes and windows of a run (from the 1st to the 99th percentile of all values, widened to nice
  * numbers) unless fixed here; arrows share one reference speed and length per run.
  */
@@ -22,6 +23,9 @@ export const figuresSchema = z
     windowImages: windowImagesSchema
       .default('none')
       .describe('images of single windows (u/u_inf with arrows, its uncertainty, the inflow profile, error amplification, samples): "none" (default), "all", {every: n} or a list of window numbers; the command-line option --window-images overrides it'),
+    binImages: windowImagesSchema
+      .default('none')
+      .describe('the same images for single condition bins (ensembles), by bin number: "none" (default), "all", {every: n} or a list; on the command line --window-images bins:all (or bins:0,2, bins:every:2)'),
     limits: z
       .object({
         u_norm: range.optional().describe('colour range of u/u_inf, dimensionless'),
@@ -42,4 +46,4 @@ export const figuresSchema = z
 export type FiguresSettings = z.output<typeof figuresSchema>;
 export type WindowImages = z.output<typeof windowImagesSchema>;
 
-export const FIGURES_DEFAULT: FiguresSettings = { windowImages: 'none', limits: {}, maxPanels: 24, density: 300 };
+export const FIGURES_DEFAULT: FiguresSettings = { windowImages: 'none', binImages: 'none', limits: {}, maxPanels: 24, density: 300 };

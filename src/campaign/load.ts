@@ -11,6 +11,8 @@ import { ConfigError } from '../errors.ts';
 import { wgs84ToEnu } from '../geometry/geodetic.ts';
 import { campaignSchema, type CampaignInput } from './schema.ts';
 import type { Campaign, Instrument, PlaneSpec, Vec3 } from './types.ts';
+import { parseTime } from '../io/time.ts';
+import { conditionVariableProblem } from './conditionVariables.ts';
 
 export function loadCampaignFile(path: string): Campaign {
   const abs = resolve(path);
@@ -134,6 +136,30 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
       : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns };
   const inflow = c.inflow.kind === 'series' ? { ...c.inflow, file: abs(c.inflow.file) } : c.inflow;
 
+  let windows = c.windows;
+  if (windows.kind === 'list') {
+    if ((windows.file === undefined) === (windows.items === undefined)) {
+      throw new ConfigError(file, 'windows', 'a list of windows needs exactly one of file or items');
+    }
+    if (windows.file) windows = { ...windows, file: abs(windows.file) };
+  } else if (windows.kind === 'segments') {
+    if (!tSeries) throw new ConfigError(file, 'windows', 'segment windows need the turbine series (turbine.series with yaw_deg)');
+  } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
+    if (!Number.isFinite(parseTime(windows.anchor))) {
+      throw new ConfigError(file, 'windows.anchor', 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
+    }
+  }
+  if (c.conditions) {
+    c.conditions.bins.forEach((b, i) => {
+      const where = `conditions.bins[${i}]`;
+      for (let k = 1; k < b.edges.length; k++) {
+        if (!(b.edges[k] > b.edges[k - 1])) throw new ConfigError(file, `${where}.edges`, 'edges must ascend', b.edges);
+      }
+      const problem = conditionVariableProblem(b.variable, { turbine: !!tSeries, inflow: c.inflow.kind === 'series', direction: c.windDirection.kind === 'series' });
+      if (problem) throw new ConfigError(file, `${where}.variable`, problem, b.variable);
+    });
+  }
+
   return {
     ...c,
     sourceFile: file,
@@ -143,6 +169,7 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
     turbine: { ...turbineRest, position: [...position_m], series: tSeries ? { file: abs(tSeries.file), columns: tSeries.columns } : undefined },
     windDirection,
     inflow: inflow as Campaign['inflow'],
+    windows,
   };
 }
 

@@ -33,18 +33,18 @@ interface Common {
   out?: string;
   images: boolean;
   quiet: boolean;
-  'window-images'?: string;
+  'window-images'?: string[];
 }
 
-/** The --window-images choice (none | all | every:N | 0,3,7), parsed; undefined when not given. */
-async function windowImagesOption(a: { 'window-images'?: string }): Promise<WindowImages | undefined> {
+/** The --window-images choices (none | all | every:N | 0,3,7, and bins:...), parsed; {} when not given. */
+async function windowImagesOption(a: { 'window-images'?: string[] }): Promise<{ windowImages?: WindowImages; binImages?: WindowImages }> {
   const t = a['window-images'];
-  if (t === undefined) return undefined;
-  const { parseWindowImages } = await import('../render/figureSelection.ts');
-  return parseWindowImages(t);
+  if (t === undefined || t.length === 0) return {};
+  const { parseImageSelection } = await import('../render/figureSelection.ts');
+  return parseImageSelection(t);
 }
 
-const WINDOW_IMAGES_HELP = 'images of single windows: none, all, every:N or a list such as 0,3,7 (default: the campaign\'s output.figures.windowImages, else none)';
+const WINDOW_IMAGES_HELP = 'images of single windows: none, all, every:N or a list such as 0,3,7; of condition bins: bins:all, bins:0,2 (repeat the option for both; default: the campaign\'s output.figures)';
 
 function say(quiet: boolean, text: string): void {
   if (!quiet) process.stdout.write(text.endsWith('\n') ? text : text + '\n');
@@ -57,8 +57,8 @@ function dataMissing(c: Campaign): boolean {
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
   const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
-  const windowImages = await windowImagesOption(a);
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan, ...(windowImages ? { windowImages } : {}) }) });
+  const selection = await windowImagesOption(a);
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan, ...selection }) });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
   if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
@@ -71,7 +71,7 @@ export function commands(y: Argv): Argv {
       .option('out', { type: 'string', describe: 'output root folder (default: the campaign\'s output.dir)' })
       .option('images', { type: 'boolean', default: true, describe: 'render images and the report (--no-images to skip)' })
       .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' })
-      .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP });
+      .option('window-images', { type: 'string', array: true, describe: WINDOW_IMAGES_HELP });
   return y
     .command(
       'demo',
@@ -105,13 +105,13 @@ export function commands(y: Argv): Argv {
       (yy) =>
         yy
           .positional('folder', { type: 'string', describe: 'run folder (holding manifest.json)' })
-          .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP })
+          .option('window-images', { type: 'string', array: true, describe: WINDOW_IMAGES_HELP })
           .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
       async (a) => {
-        const windowImages = await windowImagesOption(a as { 'window-images'?: string });
+        const selection = await windowImagesOption(a as { 'window-images'?: string[] });
         const { renderRunFolder } = await import('../pipeline/renderFolder.ts');
         const progress = createProgress(process.stderr, { quiet: a.quiet as boolean });
-        const r = await renderRunFolder(a.folder as string, { ...(windowImages ? { windowImages } : {}), progress });
+        const r = await renderRunFolder(a.folder as string, { ...selection, progress });
         const rel = relative(process.cwd(), r.runDir);
         const where = rel && !rel.startsWith('..') ? rel : r.runDir;
         say(a.quiet as boolean, `rendered ${where}/: ${r.images} figures (SVG and PNG) and report.html in ${r.seconds.toFixed(1)} s${r.removed ? `; ${r.removed} files of images no longer drawn removed` : ''}`);

@@ -112,3 +112,15 @@ export function circularMeanDeg(values: Float64Array, lo: number, hi: number): n
   const d = (Math.atan2(s, c) * 180) / Math.PI;
   return d < 0 ? d + 360 : d;
 }
+
+/** The rows of a series inside any of the intervals [start, end) (sorted by start, not overlapping). */
+export function seriesWithin(s: Series, intervals: [number, number][]): Series {
+  const keep: number[] = [];
+  for (const [a, b] of intervals) {
+    const [lo, hi] = rowsInWindow(s, a, b);
+    for (let i = lo; i < hi; i++) keep.push(i);
+  }
+  const values: Record<string, Float64Array> = {};
+  for (const [k, v] of Object.entries(s.values)) values[k] = Float64Array.from(keep, (i) => v[i]);
+  return { file: s.file, time: Float64Array.from(keep, (i) => s.time[i]), values };
+}

@@ -32,6 +32,7 @@ export function fieldTableColumns(orientation: 'cross' | 'horizontal'): string[]
 }
 
 export function fieldTableName(f: FieldResult, ordinal: number): string {
+  if (f.window.kind === 'ensemble') return join('fields', `${f.planeId}_bin${String(ordinal).padStart(3, '0')}.csv`);
   const stamp = isoTime(f.window.start_s).replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
   return join('fields', `${f.planeId}_w${String(ordinal).padStart(3, '0')}_${stamp}.csv`);
 }

@@ -18,8 +18,9 @@ import type { RunProgress, StageContext } from './run.ts';
 import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
 
 export interface RenderOptions {
-  /** Overrides output.figures.windowImages. */
+  /** Override output.figures.windowImages and binImages. */
   windowImages?: WindowImages;
+  binImages?: WindowImages;
   progress?: RunProgress;
 }
 
@@ -62,7 +63,7 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
 
   // The wake analysis again from the field tables, without writing its tables, then the figures.
   const wake = wakeStage({ write: false });
-  const images = imageStage({ windowImages: opts.windowImages });
+  const images = imageStage({ ...(opts.windowImages ? { windowImages: opts.windowImages } : {}), ...(opts.binImages ? { binImages: opts.binImages } : {}) });
   progress?.stage('reading field tables');
   let t: number;
   for await (const f of fieldsFromTables(campaign, runDir, manifest, () => true)) {

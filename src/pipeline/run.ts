@@ -14,16 +14,17 @@ import { gridSpecOf } from '../grid/grid.ts';
 import { checkHeader } from '../io/csvSamples.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
 import { readSeries, type Series } from '../io/series.ts';
-import { isoTime } from '../io/time.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
-import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
-import { fieldTableName, writeFieldTable } from './fieldTable.ts';
+import { WindowFinisher } from './finishWindows.ts';
+import { PlaneTarget } from '../grid/planeTarget.ts';
 import { hashFiles } from './hashing.ts';
-import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
-import { directionForWindow, windowScheme } from './windows.ts';
+import type { OutputRecord, RunManifest } from './manifest.ts';
+import { directionForWindow } from '../windows/direction.ts';
+import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
+import { loadConditionSeries } from './ensembles.ts';
 import { InputError } from '../errors.ts';
 import { VERSION } from '../version.ts';
 
@@ -119,6 +120,15 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   }
   const dirSeries: Series | undefined =
     c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
+  // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
+  const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
+    ? readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    : undefined;
+  const planInputs = { turbineSeries, directionSeries: dirSeries };
+  const early: BuiltWindowPlan | undefined =
+    c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
+  const conditionSeries = loadConditionSeries(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
   lap('check_inputs', t);
 
@@ -139,18 +149,14 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       instrumentCount: c.instruments.length,
     };
     const counters = new Counters(c.instruments.length);
-    const outputs: OutputRecord[] = [];
-    const windows: WindowRecord[] = [];
-    // Each assumption with the plane-windows it applied to, stated once in the manifest.
-    const assumptions = new Map<string, string[]>();
     let rejectedOut: AtomicStream | undefined;
     let rejectedCount = 0;
     if (c.output.writeRejected) {
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
-    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
     const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    const outputs: OutputRecord[] = [];
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
       campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
@@ -159,7 +165,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       inputs: [],
       settings: c,
       samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
-      windows,
+      windows: [],
       outputs,
       timings_s: timings,
       peakRss_bytes: 0,
@@ -169,66 +175,54 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     };
     const stages = opts.stages ?? [];
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
+    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries);
+    manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
     t = performance.now();
-    const scheme = windowScheme(c);
+    let built: BuiltWindowPlan | undefined = early;
+    // The plane target takes every instrument's samples (sibling geometries would take theirs).
+    const planeTarget = new PlaneTarget(
+      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      c.instruments.length, c.turbine.position,
+    );
     await ingest(
       {
         campaign: c,
-        planes,
-        scheme,
+        targets: [planeTarget],
+        targetOf: new Int32Array(c.instruments.length).fill(0),
+        windowPlan(first) {
+          built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
+          finisher.disjoint = built.plan.disjoint;
+          return built.plan;
+        },
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
         onRejectedRows(rows) {
           rejectedCount += rows.length;
           if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
-        async onWindow(w) {
-          const tr = performance.now();
-          // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
-          const info = { index: windows.length, start_s: w.start_s, end_s: w.end_s };
-          const res = retrieveWindow(w.samples, planes, info, w.direction_deg, settings);
-          for (let i = 0; i < res.outliers.length; i++) {
-            counters.accepted[i] -= res.outliers[i];
-            counters.reject(i, REJECT_REASONS.indexOf('outlier'), res.outliers[i]);
-          }
-          retrieveTime += (performance.now() - tr) / 1000;
-          const tw = performance.now();
-          const ordinal = windows.length;
-          windows.push({
-            index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
-            direction_deg: w.direction_deg, samples: w.samples.length - res.outliers.reduce((a, b) => a + b, 0),
-          });
-          for (const f of res.fields) {
-            const rel = fieldTableName(f, ordinal);
-            await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
-            outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
-            for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
-          }
-          writeTime += (performance.now() - tw) / 1000;
-          for (const stage of stages) {
-            if (!stage.field) continue;
-            const ts = performance.now();
-            for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
-            lap(stage.name, ts);
-            stageFieldTime += (performance.now() - ts) / 1000;
-          }
-        },
+        onWindow: (w) => finisher.window(w),
       },
       counters,
     );
+    await finisher.end(manifest, notices);
+    outputs.push(...finisher.outputs);
+    if (built?.segments) manifest.segments = built.segments;
+    if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
     lap('ingest_total', t);
-    timings.retrieval = retrieveTime;
-    timings.write_fields = writeTime;
-    timings.ingest = timings.ingest_total - retrieveTime - writeTime - stageFieldTime;
+    const stageFieldTime = Object.values(finisher.times.stages).reduce((a, b) => a + b, 0);
+    for (const [name, secs] of Object.entries(finisher.times.stages)) timings[name] = (timings[name] ?? 0) + secs;
+    timings.retrieval = finisher.times.retrieval;
+    timings.write_fields = finisher.times.write_fields;
+    timings.ingest = timings.ingest_total - finisher.times.retrieval - finisher.times.write_fields - stageFieldTime;
     delete timings.ingest_total;
     if (rejectedOut) {
       await rejectedOut.close();
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
     }
-    if (windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
+    if (finisher.windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 
     t = performance.now();
     manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
@@ -237,7 +231,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
-    manifest.assumptions = [...assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
+    manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
     // 4. Later stages: wake summaries, figures, planner; then the end figures, then the report (a `last` stage).

@@ -18,7 +18,7 @@ import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
-import type { FieldResult } from '../retrieval/types.ts';
+import type { FieldResult, WindowInfo } from '../retrieval/types.ts';
 import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
 import type { FigureCollector } from '../render/runFigures.ts';
 import { readFieldTable } from './fieldTable.ts';
@@ -46,6 +46,7 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
   const rows: WakePlaneWindow[] = [];
+  const ensembleRows: WakePlaneWindow[] = [];
   return {
     name: 'wake analysis',
     async field(f, ctx) {
@@ -54,39 +55,58 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
         ctxW = planeWindowContext(ctx.campaign, inputs);
       }
       const row = analysePlaneWindow(f, ctxW!);
-      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles.
-      rows.push({ ...row, deficit: new Float64Array(0) });
+      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
+      // (condition bins) are reported on their own and stay out of the per-window summaries.
+      (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
       wakeRows(ctx.shared).set(f, row);
       return [];
     },
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      return opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir);
+      ctx.shared.ensembleRows = ensembleRows;
+      return opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir, ensembleRows);
     },
   };
 }
 
 export interface ImageStageOptions {
-  /** Overrides output.figures.windowImages (the command line's --window-images). */
+  /** Override output.figures.windowImages and binImages (the command line's --window-images). */
   windowImages?: WindowImages;
+  binImages?: WindowImages;
 }
 
 /** The figure settings of a run: the campaign's, with the command line's choices over them. */
 export function figureSettings(c: Campaign, o: ImageStageOptions = {}): FiguresSettings {
-  const f = c.output.figures ?? FIGURES_DEFAULT;
-  return o.windowImages ? { ...f, windowImages: o.windowImages } : f;
+  const f = { ...FIGURES_DEFAULT, ...(c.output.figures ?? {}) };
+  return { ...f, ...(o.windowImages ? { windowImages: o.windowImages } : {}), ...(o.binImages ? { binImages: o.binImages } : {}) };
 }
 
-/** The fields of the run folder's field tables a predicate selects, in window order, read one at a time. */
-export async function* fieldsFromTables(c: Campaign, runDir: string, manifest: RunManifest, want: (planeId: string, window: number) => boolean): AsyncIterable<FieldResult> {
+/**
+ * The fields of the run folder's field tables a predicate selects, read one at a time: the windows in order, then
+ * the condition bins (ensembles, with their label and pooled windows from the manifest).
+ */
+export async function* fieldsFromTables(c: Campaign, runDir: string, manifest: RunManifest, want: (planeId: string, index: number, ensemble: boolean) => boolean): AsyncIterable<FieldResult> {
   const planes = new Map(c.planes.map((p) => [p.id, p]));
-  const tables = manifest.outputs.filter((o) => o.kind === 'field-table' && o.plane !== undefined && o.window !== undefined && planes.has(o.plane));
-  tables.sort((a, b) => a.window! - b.window! || planes.get(a.plane!)!.index - planes.get(b.plane!)!.index);
-  for (const t of tables) {
-    if (!want(t.plane!, t.window!)) continue;
+  const order = (o: { plane?: string }) => planes.get(o.plane!)!.index;
+  const tables = manifest.outputs.filter((o) => o.kind === 'field-table' && o.plane !== undefined && planes.has(o.plane));
+  const windows = tables.filter((o) => o.window !== undefined).sort((a, b) => a.window! - b.window! || order(a) - order(b));
+  const bins = tables.filter((o) => o.bin !== undefined).sort((a, b) => a.bin! - b.bin! || order(a) - order(b));
+  for (const t of windows) {
+    if (!want(t.plane!, t.window!, false)) continue;
     const w = manifest.windows[t.window!];
-    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, w ? { index: t.window!, start_s: w.start_s, end_s: w.end_s } : undefined);
+    const info = w ? { index: t.window!, start_s: w.start_s, end_s: w.end_s, ...(w.kind ? { kind: w.kind as WindowInfo['kind'] } : {}), ...(w.label ? { label: w.label } : {}) } : undefined;
+    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, info);
+  }
+  for (const t of bins) {
+    if (!want(t.plane!, t.bin!, true)) continue;
+    const e = manifest.ensembles?.find((b) => b.bin === t.bin);
+    const members = (e?.windows ?? []).map((k) => manifest.windows[k]).filter(Boolean).map((w) => [w.start_s, w.end_s] as [number, number]).sort((a, b) => a[0] - b[0]);
+    const info: WindowInfo = {
+      index: t.bin!, start_s: members[0]?.[0] ?? NaN, end_s: members.length ? Math.max(...members.map((m) => m[1])) : NaN, kind: 'ensemble',
+      ...(e?.label ? { label: e.label } : {}), members,
+    };
+    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, info);
   }
 }
 
@@ -111,6 +131,7 @@ export function imageStage(opts: ImageStageOptions = {}): RunStage {
         settings,
         collector: collector ?? new FigureCollector(settings.maxPanels),
         analysis: ctx.shared.wake as WakeAnalysis | undefined,
+        ensembleRows: (ctx.shared.ensembleRows as WakePlaneWindow[] | undefined) ?? [],
         windowFields: (want) => fieldsFromTables(ctx.campaign, ctx.runDir, ctx.manifest, want),
         queue: new RenderQueue(ctx.runDir, settings.density, settings.workers),
       });

@@ -8,6 +8,8 @@ export const REJECT_REASONS = [
   'bad_number', 'missing_field', 'bad_time', 'angle_out_of_range', 'bad_range', 'unknown_instrument',
   // quality control
   'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order', 'no_wind_direction',
+  // time: outside every window (gaps between listed windows, turbine-state transitions)
+  'outside_windows',
   // geometry
   'outside_planes',
   // robust filter (median and scaled MAD per instrument, cell and window)

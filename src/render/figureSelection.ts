@@ -1,6 +1,7 @@
 /**
- * Which windows (or bins) get images of their own: "none", "all", every n-th ({every: n}: 0, n, 2n, ...) or a
- * list of window numbers. The command line writes the same as text: none | all | every:N | 0,3,7.
+ * Which windows (or condition bins) get images of their own: "none", "all", every n-th ({every: n}: 0, n, 2n, ...)
+ * or a list of numbers. The command line writes the same as text: none | all | every:N | 0,3,7, and for condition
+ * bins the same after "bins:" (bins:all, bins:0,2).
  */
 import type { WindowImages } from '../campaign/figures.ts';
 import { OptionError } from '../errors.ts';
@@ -32,4 +33,15 @@ export function describeWindowImages(spec: WindowImages): string {
   if (spec === 'all') return 'every window';
   if (Array.isArray(spec)) return `window${spec.length === 1 ? '' : 's'} ${spec.join(', ')}`;
   return spec.every === 1 ? 'every window' : `every ${spec.every}th window (0, ${spec.every}, ${2 * spec.every}, ...)`;
+}
+
+/** Parses the values of --window-images (the option may be given more than once): windows, and bins after "bins:". */
+export function parseImageSelection(values: string | string[], option = 'window-images'): { windowImages?: WindowImages; binImages?: WindowImages } {
+  const out: { windowImages?: WindowImages; binImages?: WindowImages } = {};
+  for (const v of Array.isArray(values) ? values : [values]) {
+    const m = /^\s*bins:(.*)$/i.exec(v);
+    if (m) out.binImages = parseWindowImages(m[1], option);
+    else out.windowImages = parseWindowImages(v, option);
+  }
+  return out;
 }

@@ -24,6 +24,7 @@ export const QUANTITY = {
 
 /** "2026-06-01 12:00–12:10 UTC" (the end date is repeated only when it differs; seconds when a time has them). */
 export function windowLabel(w: WindowInfo): string {
+  if (w.kind === 'ensemble') return `${w.label ?? `bin ${w.index}`} (${w.members?.length ?? 0}\u00a0windows)`;
   const sec = needsSeconds(w);
   const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return `window ${w.index}`;
@@ -33,6 +34,7 @@ export function windowLabel(w: WindowInfo): string {
 
 /** "12:00–12:10" (times only; with dates when the window spans midnight; seconds when needed), for panel labels. */
 export function windowTimes(w: WindowInfo): string {
+  if (w.kind === 'ensemble') return w.label ?? `bin ${w.index}`;
   const sec = needsSeconds(w);
   const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return '';
@@ -60,9 +62,9 @@ export function windFrom(deg: number): string {
   return `wind from\u00a0${formatNumber(deg, 0)}\u00b0`;
 }
 
-/** Base file name (no extension) under images/: <plane>_w<window>_<what>. */
-export function imageName(planeId: string, window: number, what: string): string {
-  return `${planeId}_w${window}_${what}`;
+/** File stem of a plane image: <plane>_w<window>_<what>, or <plane>_bin<bin>_<what> for a condition-bin ensemble. */
+export function imageName(planeId: string, window: number, what: string, ensemble = false): string {
+  return `${planeId}_${ensemble ? 'bin' : 'w'}${window}_${what}`;
 }
 
 /** Axis labels of plane maps (results and planner), one phrasing for both. */
@@ -70,4 +72,9 @@ export function axisLabels(orientation: PlaneSpec['orientation']): { yLabel: str
   return orientation === 'cross'
     ? { yLabel: 'y, lateral, positive to the left (m)', zLabel: QUANTITY.height, note: 'Seen looking downstream: +y is on the left.' }
     : { yLabel: 'y, lateral, positive to the left (m)', zLabel: 'x, downstream of the rotor (m)', zLabelD: 'x/D', note: 'Seen from above with the flow going up the page: +y is on the left.' };
+}
+
+/** "window 3", or "condition bin 2" for an ensemble. */
+export function whichField(w: WindowInfo): string {
+  return w.kind === 'ensemble' ? `condition bin ${w.index}` : `window ${w.index}`;
 }

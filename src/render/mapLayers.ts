@@ -223,7 +223,13 @@ export interface TurbineMark {
   label: string;
 }
 
+/** True when the turbine's rotor stands within the map's view (only those are drawn). */
+export function turbineInView(v: View, t: TurbineMark): boolean {
+  return t.x >= v.zLo && t.x <= v.zHi && t.y + t.diameter_m / 2 >= v.yLo && t.y - t.diameter_m / 2 <= v.yHi;
+}
+
 export function turbineLayer(f: MapFrame, t: TurbineMark): string {
+  if (!turbineInView(f, t)) return '';
   const yl = f.X(t.y + t.diameter_m / 2), yr = f.X(t.y - t.diameter_m / 2), yx = f.Z(t.x);
   const nac = Math.max(3, 0.08 * t.diameter_m * f.scale);
   const cx = f.X(t.y);

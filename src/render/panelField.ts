@@ -18,6 +18,10 @@ export interface PanelField {
   orientation: 'cross' | 'horizontal';
   /** Window (or bin) number and its start, Unix seconds. */
   index: number;
+  /** A condition bin (ensemble of windows) rather than a window, with its label and number of windows. */
+  ensemble: boolean;
+  label: string;
+  members: number;
   start_s: number;
   end_s: number;
   direction_deg: number;
@@ -69,6 +73,7 @@ export function panelField(f: FieldResult, wake: WakePlaneWindow | undefined): P
   }
   const p: PanelField = {
     planeId: f.planeId, orientation: f.orientation, index: f.window.index, start_s: f.window.start_s, end_s: f.window.end_s,
+    ensemble: f.window.kind === 'ensemble', label: f.window.label ?? '', members: f.window.members?.length ?? 0,
     direction_deg: f.direction_deg, yawOffset_deg: wake?.yawOffset_deg ?? NaN, grid: { ...f.grid },
     values, u, normalised, codes, codesU: Uint8Array.from(f.maskU), v, w, assumedW, hasData,
   };

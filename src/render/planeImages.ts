@@ -12,7 +12,7 @@ import type { OutputRecord } from '../pipeline/manifest.ts';
 import { MaskReason, maskReasonName, type FieldResult } from '../retrieval/types.ts';
 import { KAPPA } from '../wake/options.ts';
 import type { WakePlaneWindow } from '../wake/types.ts';
-import { axisLabels, imageName, planePosition, QUANTITY, windFrom, windowLabel } from './labels.ts';
+import { axisLabels, imageName, planePosition, QUANTITY, whichField, windFrom, windowLabel } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import type { TurbineMark, View } from './mapLayers.ts';
 import { qty, withUncertainty } from './numbers.ts';
@@ -32,6 +32,13 @@ export interface FigureSpec {
   svg: string;
   plane?: string;
   window?: number;
+  /** Condition bin of an ensemble field (instead of window). */
+  bin?: number;
+}
+
+/** How a figure of a field names what it shows: the window ordinal, or the condition bin of an ensemble. */
+export function fieldTag(field: FieldResult): { plane: string; window?: number; bin?: number } {
+  return field.window.kind === 'ensemble' ? { plane: field.planeId, bin: field.window.index } : { plane: field.planeId, window: field.window.index };
 }
 
 /** Mask names of the result maps, with the code for cells that have u but no inflow reference. */
@@ -73,7 +80,8 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
   const win = field.window.index;
   const when = windowLabel(field.window);
   const figs: FigureSpec[] = [];
-  const meta = { plane: field.planeId, window: win };
+  const meta = fieldTag(field);
+  const ens = field.window.kind === 'ensemble';
   const n = field.grid.ny * field.grid.nz;
 
   const normalised = p.normalised;
@@ -104,7 +112,7 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
   }
   const shared = (q: keyof RunScales['limits']) => (scales?.limits[q] ? { domain: scales.limits[q] } : {});
   const uSvg = scalarMapSvg(withValues(field.grid, values), {
-    title: `${field.planeId} \u00b7 window ${win} \u00b7 ${when}`,
+    title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 ${when}`,
     subtitle,
     colorbarLabel: normalised ? QUANTITY.uNorm : QUANTITY.u,
     ...shared(normalised ? 'u_norm' : 'u_ms'),
@@ -114,13 +122,13 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
     ellipses,
     ...(arrows ? { arrows } : {}),
   });
-  figs.push({ name: imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), svg: uSvg, ...meta,
+  figs.push({ name: imageName(field.planeId, win, normalised ? 'u_norm' : 'u', ens), svg: uSvg, ...meta,
     description: `${normalised ? 'u/u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}` });
 
   figs.push({
-    name: imageName(field.planeId, win, 'su'), ...meta, description: 'standard uncertainty of u',
+    name: imageName(field.planeId, win, 'su', ens), ...meta, description: 'standard uncertainty of u',
     svg: scalarMapSvg(withValues(field.grid, field.su), {
-      title: `${field.planeId} \u00b7 window ${win} \u00b7 uncertainty of u`,
+      title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 uncertainty of u`,
       subtitle: `${planePosition(field, D)} \u00b7 ${when} \u00b7 standard uncertainty from radial-velocity scatter and geometry`,
       colorbarLabel: QUANTITY.su,
       ...shared('su_ms'),
@@ -131,7 +139,7 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
   });
 
   if (wake && (wake.inflow.heights_m.length > 0 || wake.inflow.source === 'fixed')) {
-    figs.push({ name: imageName(field.planeId, win, 'inflow'), ...meta, description: 'inflow profile and fitted law', svg: inflowSvg(wake, field, campaign) });
+    figs.push({ name: imageName(field.planeId, win, 'inflow', ens), ...meta, description: 'inflow profile and fitted law', svg: inflowSvg(wake, field, campaign) });
   }
   return geometry ? [...figs, ...geometryFigures(field, campaign, scales, view)] : figs;
 }
@@ -149,7 +157,8 @@ export function geometryFigures(field: FieldResult, campaign: Campaign, scales?:
   const base = baseOptions(field, campaign, view);
   const win = field.window.index;
   const when = windowLabel(field.window);
-  const meta = { plane: field.planeId, window: win };
+  const meta = fieldTag(field);
+  const ens = field.window.kind === 'ensemble';
   const shared = (q: keyof RunScales['limits']) => (scales?.limits[q] ? { domain: scales.limits[q] } : {});
   const figs: FigureSpec[] = [];
   const maxA = campaign.retrieval.maxAmplification;
@@ -158,9 +167,9 @@ export function geometryFigures(field: FieldResult, campaign: Campaign, scales?:
     const codes = new Uint8Array(n);
     for (let i = 0; i < n; i++) codes[i] = Number.isFinite(dop[i]) ? 0 : mask[i] || (field.samples[i] === 0 ? MaskReason.noData : 0);
     figs.push({
-      name: imageName(field.planeId, win, `dop${c.toUpperCase()}`), ...meta, description: `error amplification of ${c}`,
+      name: imageName(field.planeId, win, `dop${c.toUpperCase()}`, ens), ...meta, description: `error amplification of ${c}`,
       svg: scalarMapSvg(withValues(field.grid, dop), {
-        title: `${field.planeId} \u00b7 window ${win} \u00b7 error amplification of ${c}`,
+        title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 error amplification of ${c}`,
         subtitle: `${planePosition(field, D)} \u00b7 ${when} \u00b7 ${c} is masked above ${formatNumber(maxA, 1)}`,
         colorbarLabel: QUANTITY.amplification(c),
         domain: [0, 2 * maxA],
@@ -178,9 +187,9 @@ export function geometryFigures(field: FieldResult, campaign: Campaign, scales?:
     codes[i] = field.samples[i] > 0 ? 0 : MaskReason.noData;
   }
   figs.push({
-    name: imageName(field.planeId, win, 'samples'), ...meta, description: 'accepted samples per cell',
+    name: imageName(field.planeId, win, 'samples', ens), ...meta, description: 'accepted samples per cell',
     svg: scalarMapSvg(withValues(field.grid, counts), {
-      title: `${field.planeId} \u00b7 window ${win} \u00b7 accepted samples per cell`,
+      title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 accepted samples per cell`,
       subtitle: `${planePosition(field, D)} \u00b7 ${when}`,
       colorbarLabel: QUANTITY.samples,
       ...shared('samples'),
@@ -203,7 +212,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
 }
 
 async function writeAll(figs: FigureSpec[], runDir: string, fig: FigureOptions): Promise<OutputRecord[]> {
-  const recs = await Promise.all(figs.map((f) => writeFigure(f.svg, runDir, f.name, { plane: f.plane, window: f.window, description: f.description }, fig)));
+  const recs = await Promise.all(figs.map((f) => writeFigure(f.svg, runDir, f.name, { plane: f.plane, window: f.window, bin: f.bin, description: f.description }, fig)));
   return recs.flat();
 }
 
@@ -239,7 +248,7 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
   if (p.heights_m.length) series.push({ label: `measured (${p.source}), bin means`, x: p.speeds_ms, y: p.heights_m, kind: 'points', marker: 'circle' });
   series.push({ label: lawText(p), x: vs, y: zs, kind: 'line' });
   return linePlotSvg({
-    title: `${field.planeId} \u00b7 window ${field.window.index} \u00b7 inflow profile`,
+    title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 inflow profile`,
     subtitle: `${windowLabel(field.window)} \u00b7 RMSE ${qty(p.rmse_ms, 'm/s', 3)} \u00b7 R^{2}\u00a0${formatNumber(p.r2, 3)}${p.note ? ` \u00b7 ${p.note}` : ''}`,
     xLabel: QUANTITY.speed,
     yLabel: QUANTITY.height,

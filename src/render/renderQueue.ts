@@ -16,6 +16,8 @@ import { writeSvgAndPng } from './write.ts';
 export interface FigureMeta {
   plane?: string;
   window?: number;
+  /** Condition bin of an ensemble figure. */
+  bin?: number;
   description: string;
 }
 
@@ -58,6 +60,7 @@ export class RenderQueue {
           path: `${name.slice(0, name.lastIndexOf('/') + 1)}${p.slice(p.lastIndexOf('/') + 1)}`,
           ...(meta.plane !== undefined ? { plane: meta.plane } : {}),
           ...(meta.window !== undefined ? { window: meta.window } : {}),
+          ...(meta.bin !== undefined ? { bin: meta.bin } : {}),
           description: meta.description,
         }));
         this.written++;

@@ -33,14 +33,14 @@ export async function renderRun(fields: FieldResult[], analysis: WakeAnalysis | 
   const ordered = [...fields].sort((a, b) => a.window.index - b.window.index || a.planeIndex - b.planeIndex);
   const rows = new Map((analysis?.rows ?? []).map((r) => [`${r.planeId}\u0000${r.window.index}`, r]));
   const collector = new FigureCollector(settings.maxPanels);
-  for (const f of ordered) collector.add(f, rows.get(`${f.planeId}\u0000${f.window.index}`));
+  for (const f of ordered) collector.add(f, f.window.kind === 'ensemble' ? undefined : rows.get(`${f.planeId}\u0000${f.window.index}`));
   return renderRunFigures({
     campaign,
     settings,
     collector,
     ...(analysis ? { analysis } : {}),
     windowFields: async function* (want) {
-      for (const f of ordered) if (want(f.planeId, f.window.index)) yield f;
+      for (const f of ordered) if (want(f.planeId, f.window.index, f.window.kind === 'ensemble')) yield f;
     },
     queue: new RenderQueue(runDir, settings.density, settings.workers, opts.onFigure),
   });

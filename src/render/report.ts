@@ -212,24 +212,24 @@ function qcSettingsHtml(settings: unknown): string {
 /** Figures grouped: summary plots, one multi-panel figure per plane, then single windows folded per window. */
 function imagesHtml(images: OutputRecord[]): string {
   const summary = images.filter((o) => o.plane === undefined);
-  const planes = images.filter((o) => o.plane !== undefined && o.window === undefined);
+  const planes = images.filter((o) => o.plane !== undefined && o.window === undefined && o.bin === undefined);
   const windows = images.filter((o) => o.plane !== undefined && o.window !== undefined);
+  const bins = images.filter((o) => o.plane !== undefined && o.bin !== undefined);
   const out: string[] = [];
   if (summary.length) out.push(`<h3>Summary</h3>${galleryHtml(summary)}`);
-  if (planes.length) out.push(`<h3>Planes</h3><p class="note">One figure per plane: its windows side by side on one colour scale and one arrow scale.</p>${galleryHtml(planes)}`);
-  if (windows.length) {
+  if (planes.length) out.push(`<h3>Planes</h3><p class="note">One figure per plane (and one per plane for the condition bins, when there are any): the windows or bins side by side on one colour scale and one arrow scale.</p>${galleryHtml(planes)}`);
+  const folded = (title: string, recs: OutputRecord[], key: (o: OutputRecord) => string) => {
     const byKey = new Map<string, OutputRecord[]>();
-    for (const o of windows) {
-      const key = `Plane ${o.plane}, window ${o.window}`;
-      byKey.set(key, [...(byKey.get(key) ?? []), o]);
-    }
-    out.push(`<h3>Single windows</h3>`);
+    for (const o of recs) byKey.set(key(o), [...(byKey.get(key(o)) ?? []), o]);
+    out.push(`<h3>${esc(title)}</h3>`);
     let folds = 0;
-    for (const [k, recs] of byKey) {
-      const n = new Set(recs.map((r) => r.path.replace(/\.(svg|png)$/i, ''))).size;
-      out.push(`<details class="fold"${folds++ === 0 ? ' open' : ''}><summary>${esc(k)} <span class="note">(${n} figures)</span></summary>${galleryHtml(recs)}</details>`);
+    for (const [k, group] of byKey) {
+      const n = new Set(group.map((r) => r.path.replace(/\.(svg|png)$/i, ''))).size;
+      out.push(`<details class="fold"${folds++ === 0 ? ' open' : ''}><summary>${esc(k)} <span class="note">(${n} figures)</span></summary>${galleryHtml(group)}</details>`);
     }
-  }
+  };
+  if (bins.length) folded('Single condition bins', bins, (o) => `Plane ${o.plane}, condition bin ${o.bin}`);
+  if (windows.length) folded('Single windows', windows, (o) => `Plane ${o.plane}, window ${o.window}`);
   return out.join('\n');
 }
 

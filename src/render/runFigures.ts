@@ -51,13 +51,15 @@ class Thinned<T> {
   }
 }
 
-/** Collects what the figures need from each field as it passes (see the file header). */
+/** Collects what the figures need from each field as it passes (see the file header); windows and condition
+ * bins (ensembles) are kept apart, each plane getting one multi-panel figure of each. */
 export class FigureCollector {
   readonly scales = new ScaleCollector();
   private readonly planes = new Map<string, Thinned<PanelField>>();
   constructor(private readonly maxPanels: number) {}
 
   add(f: FieldResult, wake?: WakePlaneWindow): void {
+    const key = panelKey(f.planeId, f.window.kind === 'ensemble');
     let p: PanelField | undefined;
     const panel = () => (p ??= panelField(f, wake));
     const q = panel();
@@ -68,13 +70,14 @@ export class FigureCollector {
     for (let i = 0; i < samples.length; i++) samples[i] = f.samples[i] > 0 ? f.samples[i] : NaN;
     this.scales.add('samples', samples);
     if (f.orientation === 'cross') this.scales.addArrows(q.v, q.w);
-    if (!this.planes.has(f.planeId)) this.planes.set(f.planeId, new Thinned<PanelField>(this.maxPanels));
-    this.planes.get(f.planeId)!.offer(panel);
+    if (!this.planes.has(key)) this.planes.set(key, new Thinned<PanelField>(this.maxPanels));
+    this.planes.get(key)!.offer(panel);
   }
 
-  /** The panels of a plane (at most maxPanels, evenly spaced) and how many fields the plane had. */
-  panels(planeId: string): { shown: PanelField[]; total: number } {
-    const t = this.planes.get(planeId);
+  /** The panels of a plane's windows (or, with `bins`, of its condition bins): at most maxPanels, evenly spaced,
+   * and how many there were. */
+  panels(planeId: string, bins = false): { shown: PanelField[]; total: number } {
+    const t = this.planes.get(panelKey(planeId, bins));
     return t ? { shown: t.selected(), total: t.count } : { shown: [], total: 0 };
   }
 
@@ -83,13 +86,17 @@ export class FigureCollector {
   }
 }
 
+const panelKey = (planeId: string, bins: boolean) => `${planeId}\u0000${bins ? 'bins' : 'windows'}`;
+
 export interface RunFiguresInput {
   campaign: Campaign;
   settings: FiguresSettings;
   collector: FigureCollector;
   analysis?: WakeAnalysis;
-  /** The fields of the windows a predicate selects, read when needed (field tables, or fields in memory). */
-  windowFields?: (want: (planeId: string, window: number) => boolean) => AsyncIterable<FieldResult>;
+  /** Wake rows of the condition bins (ensembles), if any. */
+  ensembleRows?: WakePlaneWindow[];
+  /** The fields of the windows (or bins) a predicate selects, read when needed (field tables, or fields in memory). */
+  windowFields?: (want: (planeId: string, index: number, ensemble: boolean) => boolean) => AsyncIterable<FieldResult>;
   queue: RenderQueue;
 }
 
@@ -100,19 +107,29 @@ export async function renderRunFigures(i: RunFiguresInput): Promise<OutputRecord
   if (analysis) {
     for (const f of summaryFigures(analysis, campaign)) await queue.add(f.svg, `images/summary_${f.what}`, { description: f.description });
   }
-  for (const plane of campaign.planes) {
-    const { shown, total } = collector.panels(plane.id);
-    if (!shown.length) continue;
-    await queue.add(planePanelsSvg(plane, shown, total, scales, campaign), `images/${plane.id}_panels`, {
-      plane: plane.id,
-      description: `${shown.some((p) => p.normalised) ? 'u/u_inf' : 'u'} of ${shown.length === total ? `all ${total}` : `${shown.length} of ${total}`} windows on one colour scale`,
-    });
+  for (const bins of [false, true]) {
+    for (const plane of campaign.planes) {
+      const { shown, total } = collector.panels(plane.id, bins);
+      if (!shown.length) continue;
+      const what = bins ? 'condition bins' : 'windows';
+      await queue.add(planePanelsSvg(plane, shown, total, scales, campaign), `images/${plane.id}_${bins ? 'bins_' : ''}panels`, {
+        plane: plane.id,
+        description: `${shown.some((p) => p.normalised) ? 'u/u_inf' : 'u'} of ${shown.length === total ? `all ${total}` : `${shown.length} of ${total}`} ${what} on one colour scale`,
+      });
+    }
   }
-  if (i.windowFields && settings.windowImages !== 'none') {
-    const rows = new Map((analysis?.rows ?? []).map((r) => [`${r.planeId}\u0000${r.window.index}`, r]));
-    for await (const f of i.windowFields((_pid, w) => windowSelected(settings.windowImages, w))) {
-      for (const fig of planeWindowFigures(f, rows.get(`${f.planeId}\u0000${f.window.index}`), campaign, scales, true)) {
-        await queue.add(fig.svg, `images/${fig.name}`, { plane: fig.plane, window: fig.window, description: fig.description });
+  const wantWindows = settings.windowImages !== 'none', wantBins = (settings.binImages ?? 'none') !== 'none';
+  if (i.windowFields && (wantWindows || wantBins)) {
+    const key = (pid: string, k: number, ens: boolean) => `${pid}\u0000${ens ? 'bin' : 'w'}${k}`;
+    const rows = new Map([
+      ...(analysis?.rows ?? []).map((r) => [key(r.planeId, r.window.index, false), r] as const),
+      ...(i.ensembleRows ?? []).map((r) => [key(r.planeId, r.window.index, true), r] as const),
+    ]);
+    const want = (_pid: string, k: number, ens: boolean) => windowSelected(ens ? (settings.binImages ?? 'none') : settings.windowImages, k);
+    for await (const f of i.windowFields(want)) {
+      const ens = f.window.kind === 'ensemble';
+      for (const fig of planeWindowFigures(f, rows.get(key(f.planeId, f.window.index, ens)), campaign, scales, true)) {
+        await queue.add(fig.svg, `images/${fig.name}`, { plane: fig.plane, window: fig.window, bin: fig.bin, description: fig.description });
       }
     }
   }
@@ -124,9 +141,17 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
   const D = campaign.turbine.rotorDiameter_m;
   const normalised = shown.some((p) => p.normalised);
   const cross = plane.orientation === 'cross';
+  const bins = shown.some((p) => p.ensemble);
+  const unit = bins ? 'condition bin' : 'window';
   const panels: Panel[] = shown.map((p) => ({
-    label: `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}`,
-    sublabel: [Number.isFinite(p.yawOffset_deg) ? `\u03b3\u00a0${qty(p.yawOffset_deg, '\u00b0', 0)}` : '', windFrom(p.direction_deg)].filter(Boolean).join(' \u00b7 '),
+    label: p.ensemble
+      ? `condition bin ${p.index}${p.label ? ` \u00b7 ${p.label}` : ''}`
+      : `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}`,
+    sublabel: [
+      p.ensemble ? `${p.members}\u00a0window${p.members === 1 ? '' : 's'}` : '',
+      Number.isFinite(p.yawOffset_deg) ? `\u03b3\u00a0${qty(p.yawOffset_deg, '\u00b0', 0)}` : '',
+      windFrom(p.direction_deg),
+    ].filter(Boolean).join(' \u00b7 '),
     grid: p.grid,
     values: normalised ? p.values : p.u,
     codes: normalised ? p.codes : p.codesU,
@@ -142,11 +167,12 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
   const limits = scales.limits[q];
   const labels = axisLabels(plane.orientation);
   const notes: string[] = [];
-  if (shown.length < total) notes.push(`${shown.length} of ${total} windows shown, evenly spaced: windows ${shown.map((p) => p.index).join(', ')}. Images of single windows: output.figures.windowImages or --window-images.`);
+  if (shown.length < total) notes.push(`${shown.length} of ${total} ${unit}s shown, evenly spaced: ${unit}s ${shown.map((p) => p.index).join(', ')}. Images of single ${unit}s: output.figures.${bins ? 'binImages' : 'windowImages'} or --window-images.`);
   notes.push(`Colour range ${scales.limitSource[q] === 'campaign' ? 'fixed in the campaign (output.figures.limits)' : 'shared by every plane and window of the run (1st to 99th percentile of all values)'}; arrows on one scale for the run${scales.arrowSource === 'campaign' ? ' (reference fixed in the campaign)' : ''}.`);
-  if (normalised && shown.some((p) => !p.normalised)) notes.push('Windows without an inflow reference have no u/u_inf: their cells are hatched.');
+  if (normalised && shown.some((p) => !p.normalised)) notes.push(`${bins ? 'Bins' : 'Windows'} without an inflow reference have no u/u_inf: their cells are hatched.`);
+  if (bins) notes.push('A condition bin pools the kept samples of its windows (an ensemble), each in its own rotor frame.');
   return smallMultiplesSvg(panels, {
-    title: `${plane.id}: ${normalised ? 'u/u_{∞}' : 'streamwise speed u'} in ${shown.length === total ? `${total}` : `${shown.length} of ${total}`} window${total === 1 ? '' : 's'}`,
+    title: `${plane.id}: ${normalised ? 'u/u_{∞}' : 'streamwise speed u'} in ${shown.length === total ? `${total}` : `${shown.length} of ${total}`} ${unit}${total === 1 ? '' : 's'}`,
     subtitle: `${planePosition({ orientation: plane.orientation, x_m: plane.x_m, z_m: plane.z_m }, D)} \u00b7 ${span} \u00b7 ${cross ? 'seen looking downstream, +y on the left' : 'seen from above, flow up the page, +y on the left'}`,
     colorbarLabel: normalised ? QUANTITY.uNorm : QUANTITY.u,
     ...(limits ? { domain: limits } : {}),

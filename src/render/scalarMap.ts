@@ -114,8 +114,8 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
     legend.push({ kind: 'rotor', label: 'rotor disk and hub' });
   }
   for (const t of opts.turbines ?? []) {
-    body.push(turbineLayer(f, t));
-    legend.push({ kind: 'turbine', label: `${t.label}: rotor seen from above` });
+    const m = turbineLayer(f, t);
+    if (m) (body.push(m), legend.push({ kind: 'turbine', label: `${t.label}: rotor seen from above` }));
   }
   for (const e of opts.ellipses ?? []) {
     const m = ellipseLayer(f, e);

@@ -13,7 +13,7 @@ import type { GridSpec } from '../grid/grid.ts';
 import { colourBar } from './colourBar.ts';
 import { colourScale, rangeCounts, type ColourScale } from './colourScale.ts';
 import {
-  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineLayer,
+  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineInView, turbineLayer,
   type ArrowScale, type TurbineMark, type View,
 } from './mapLayers.ts';
 import { drawLegendColumns, uniqueItems, type LegendItem } from './mapLegend.ts';
@@ -156,7 +156,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   legend.push({ kind: 'heading', label: 'Marks' });
   if (o.arrowScale) legend.push(...arrowLegend(o.arrowScale, s, arrowCounts, 'in-plane flow (v, w), measured; one scale for the run'));
   if (o.rotor) legend.push({ kind: 'rotor', label: 'rotor disk and hub' });
-  for (const t of o.turbines ?? []) legend.push({ kind: 'turbine', label: `${t.label}: rotor seen from above` });
+  for (const t of o.turbines ?? []) if (turbineInView(view, t)) legend.push({ kind: 'turbine', label: `${t.label}: rotor seen from above` });
   if (overlays.centre) legend.push({ kind: 'marker', shape: 'cross', label: 'wake centre, 2D Gaussian fit' });
   if (overlays.ellipse) legend.push({ kind: 'ellipse', label: 'width ellipse (σ_{y}, σ_{z}) of the fit' });
   if (overlays.disk) legend.push({ kind: 'marker', shape: 'diamond', label: 'wake centre, minimum-power disk' });

@@ -3,7 +3,8 @@
  * computed. Files and columns:
  *
  * wake/wake_table.csv — one row per plane and window:
- *   plane, orientation, window, start, end (ISO 8601 UTC), start_s, end_s (Unix s), x_m, x_D,
+ *   plane, orientation, window, start, end (ISO 8601 UTC), start_s, end_s (Unix s), window_kind (fixed|list|segment|
+ *   record), window_label (list label or state level), state_level_deg (segment windows' yaw-offset level), x_m, x_D,
  *   direction_deg (rotor-frame wind direction, from), wind_direction_deg (used for the yaw offset), nacelle_deg,
  *   yaw_offset_deg (nacelle - wind, [-180, 180), + = nacelle clockwise from above), power_kw,
  *   inflow_source (series|plane|fixed), inflow_law (power|log), inflow_zref_m, inflow_uref_ms, inflow_alpha,
@@ -15,6 +16,9 @@
  *   disagreement_m, disagreement_D (Gaussian vs disk centre), rews_axis_ms, rews_centre_ms, rews_axis_coverage,
  *   rews_centre_coverage, rews_segments, hub_deficit, centre_deficit, momentum_deficit_m4s2, momentum_ratio, ct,
  *   flag (ok|no_wake|off_edge|too_few_cells|not_converged|absurd_width|no_inflow|horizontal_plane), reason.
+ *
+ * wake/ensembles.csv — one row per plane and condition bin (when the campaign declares conditions): bin,
+ *   condition (the bin's intervals), windows_pooled, then the wake-table columns.
  *
  * wake/steering.csv — one row per cross plane and yaw-offset bin:
  *   plane, x_m, x_D, gamma_centre_deg, gamma_lo_deg, gamma_hi_deg, gamma_mean_deg, n, yc_m, sd_m, ci95_m, yc_D,
@@ -38,11 +42,11 @@ import { join } from 'node:path';
 import type { OutputRecord } from '../pipeline/manifest.ts';
 import { csvRow, writeFileAtomic } from '../io/atomic.ts';
 import { isoTime } from '../io/time.ts';
-import type { WakeAnalysis } from './types.ts';
+import type { WakeAnalysis, WakePlaneWindow } from './types.ts';
 import { gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatRadius_D } from './wakeModels.ts';
 
 const TABLE_HEADER = [
-  'plane', 'orientation', 'window', 'start', 'end', 'start_s', 'end_s', 'x_m', 'x_D', 'direction_deg', 'wind_direction_deg',
+  'plane', 'orientation', 'window', 'start', 'end', 'start_s', 'end_s', 'window_kind', 'window_label', 'state_level_deg', 'x_m', 'x_D', 'direction_deg', 'wind_direction_deg',
   'nacelle_deg', 'yaw_offset_deg', 'power_kw', 'inflow_source', 'inflow_law', 'inflow_zref_m', 'inflow_uref_ms', 'inflow_alpha',
   'inflow_ustar_ms', 'inflow_z0_m', 'inflow_hub_speed_ms', 'inflow_rmse_ms', 'inflow_r2', 'inflow_points', 'inflow_note',
   'valid_cells', 'max_deficit', 'amplitude', 'amplitude_se', 'yc_m', 'yc_se_m', 'zc_m', 'zc_se_m', 'sigma_y_m', 'sigma_y_se_m',
@@ -53,11 +57,25 @@ const TABLE_HEADER = [
 ];
 
 export function wakeTableCsv(a: WakeAnalysis): string {
-  let s = csvRow(TABLE_HEADER);
-  for (const r of a.rows) {
+  return wakeRowsCsv(a.rows, false);
+}
+
+/**
+ * Ensemble rows (one per plane and condition bin): the columns of the wake table after bin (the bin's index),
+ * condition (its intervals) and windows_pooled; their start and end are those of the first and last pooled window.
+ */
+export function ensembleTableCsv(rows: WakePlaneWindow[]): string {
+  return wakeRowsCsv(rows, true);
+}
+
+function wakeRowsCsv(rows: WakePlaneWindow[], ensemble: boolean): string {
+  let s = csvRow(ensemble ? ['bin', 'condition', 'windows_pooled', ...TABLE_HEADER] : TABLE_HEADER);
+  for (const r of rows) {
     const f = r.gaussian, p = f?.params, e = f?.stderr, i = r.inflow;
+    const w = r.window;
     s += csvRow([
-      r.planeId, r.orientation, r.window.index, isoTime(r.window.start_s), isoTime(r.window.end_s), r.window.start_s, r.window.end_s,
+      ...(ensemble ? [w.index, w.label ?? '', w.members?.length ?? 0] : []),
+      r.planeId, r.orientation, w.index, isoTime(w.start_s), isoTime(w.end_s), w.start_s, w.end_s, w.kind ?? '', w.label ?? '', w.level,
       r.x_m, r.x_D, r.direction_deg, r.windDirection_deg, r.nacelle_deg, r.yawOffset_deg, r.power_kW,
       i.source, i.law, i.zRef_m, i.uRef_ms, i.alpha, i.uStar_ms, i.z0_m, i.hubSpeed_ms, i.rmse_ms, i.r2, i.heights_m.length, i.note,
       r.validCells, r.maxDeficit, p?.amplitude, e?.amplitude, p?.yc_m, e?.yc_m, p?.zc_m, e?.zc_m, p?.sigmaY_m, e?.sigmaY_m,
@@ -127,8 +145,9 @@ export function modelFitsJson(a: WakeAnalysis): string {
   });
 }
 
-export function writeWakeOutputs(a: WakeAnalysis, runDir: string): OutputRecord[] {
+export function writeWakeOutputs(a: WakeAnalysis, runDir: string, ensembleRows: WakePlaneWindow[] = []): OutputRecord[] {
   const files: [string, string, string, string][] = [
+    ...(ensembleRows.length ? [['ensemble-table', 'wake/ensembles.csv', ensembleTableCsv(ensembleRows), 'wake centre, widths, inflow and flags per plane and condition bin (ensembles of windows)'] as [string, string, string, string]] : []),
     ['wake-table', 'wake/wake_table.csv', wakeTableCsv(a), 'wake centre, widths, inflow, REWS and flags per plane and window'],
     ['steering', 'wake/steering.csv', steeringCsv(a), 'lateral wake centre binned by yaw offset, with deflection models'],
     ['downstream', 'wake/downstream.csv', downstreamCsv(a), 'deficit amplitude, widths and centre against x/D, with model values'],
