@@ -14,7 +14,7 @@ import { FIGURES_DEFAULT, type FiguresSettings } from '../src/campaign/figures.t
 import { gridSpecOf, withValues } from '../src/grid/grid.ts';
 import { planCampaign } from '../src/plan/planCampaign.ts';
 import { writePlanImages } from '../src/plan/images.ts';
-import { parseWindowImages, windowSelected } from '../src/render/figureSelection.ts';
+import { parseImageSelection, parseWindowImages, windowSelected } from '../src/render/figureSelection.ts';
 import { hatchOf } from '../src/render/maskStyle.ts';
 import { decimalsForUncertainty, roundToUncertainty, withUncertainty } from '../src/render/numbers.ts';
 import { panelField } from '../src/render/panelField.ts';
@@ -26,7 +26,7 @@ import { summaryFigures } from '../src/render/summaryPlots.ts';
 import { theme } from '../src/render/theme.ts';
 import { niceExtent } from '../src/render/ticks.ts';
 import { wrapText } from '../src/render/richText.ts';
-import { MaskReason, maskReasonName, type FieldResult } from '../src/retrieval/types.ts';
+import { MaskReason, type FieldResult } from '../src/retrieval/types.ts';
 import { DEFAULT_SHAPE, fixtureAnalysis, fixtureCampaign, fixtureField, fixtureWake } from './render-fixture.ts';
 import { overlaps, svgTexts } from './helpers/svgText.ts';
 
@@ -339,6 +339,30 @@ describe('window selection', () => {
     expect([0, 1, 2, 3, 4, 5, 6].filter((w) => windowSelected({ every: 3 }, w))).toEqual([0, 3, 6]);
     expect(windowSelected([2, 5], 5)).toBe(true);
     expect(windowSelected('none', 0)).toBe(false);
+    // Condition bins after "bins:", the option given twice for both.
+    expect(parseImageSelection(['0,3', 'bins:all'])).toEqual({ windowImages: [0, 3], binImages: 'all' });
+    expect(parseImageSelection('bins:every:2')).toEqual({ binImages: { every: 2 } });
+  });
+});
+
+describe('condition bins (ensembles)', () => {
+  it('get a multi-panel figure of their own, labelled by bin, apart from the windows', () => {
+    const col = new FigureCollector(24);
+    for (const f of cross) col.add(f, wakes.get(f));
+    const bins = [0, 1].map((b) => {
+      const f = fixtureField(P5D, b);
+      f.window = { ...f.window, index: b, kind: 'ensemble', label: `yaw_offset_deg in [${10 * b - 5}, ${10 * b + 5})`, members: [[0, 600], [600, 1200], [1200, 1800]] };
+      return f;
+    });
+    for (const f of bins) col.add(f);
+    expect(col.panels('P5D').total).toBe(3);
+    expect(col.panels('P5D', true).total).toBe(2);
+    const svg = planePanelsSvg(P5D, col.panels('P5D', true).shown, 2, col.runScales(FIGURES_DEFAULT, campaign.planes), campaign);
+    const words = svgTexts(svg).map((t) => t.text).join(' ');
+    expect(words).toContain('P5D: streamwise speed u in 2 condition bins'); // no wake rows given: u in m/s
+    expect(words).toContain('condition bin 1 · yaw_offset_deg in [5, 15)');
+    expect(words).toContain('3\u00a0windows');
+    expect(overlaps(svgTexts(svg))).toEqual([]);
   });
 });
 
@@ -360,6 +384,5 @@ describe('multi-panel figures of long campaigns', () => {
     const svg = planePanelsSvg(P5D, shown, total, col.runScales(FIGURES_DEFAULT, campaign.planes), campaign);
     expect(svgTexts(svg).map((t) => t.text).join(' ')).toContain(`4 of 37 windows shown, evenly spaced: windows ${idx.join(', ')}`);
     expect((svg.match(/<g class="panel"/g) ?? []).length).toBe(4);
-    void maskReasonName;
   });
 });
