@@ -12,6 +12,7 @@ import type { Grid } from '../grid/grid.ts';
 import { bandOf, type ColourScale } from './colourScale.ts';
 import { contourRegions } from './contours.ts';
 import { hatchOf, hatchPath, hatchStyle, maskFill, NO_VALUE_CODE } from './maskStyle.ts';
+import { textWidth } from './richText.ts';
 import { arrow, linear, n, text } from './svg.ts';
 import { theme } from './theme.ts';
 import { formatTick, niceStep, niceTicks } from './ticks.ts';
@@ -277,6 +278,8 @@ export interface AxesOptions {
   tickSize?: number;
   /** Rotor diameters on the top and right edges, from (yc, zc). */
   diameters?: { D: number; yc: number; zc: number };
+  /** Bottom tick labels must stay within [x0, x1] (figure units), e.g. the room between neighbouring panels. */
+  yTickRoom?: [number, number];
 }
 
 /** Frame, ticks and tick labels (metres bottom and left; rotor diameters top and right when asked). */
@@ -289,7 +292,8 @@ export function axesLayer(f: MapFrame, o: AxesOptions): string {
   for (const t of niceTicks(f.yLo, f.yHi, yCount)) {
     const x = f.X(t);
     ax.push(`<line x1="${n(x)}" y1="${n(bottom)}" x2="${n(x)}" y2="${n(bottom + 5)}" stroke="${theme.ink}" stroke-width="0.8"/>`);
-    if (o.yTicks) ax.push(text(x, bottom + 6 + size, formatTick(t, yStep), { anchor: 'middle', size, cls: 'tick' }));
+    const label = formatTick(t, yStep), half = textWidth(label, size) / 2;
+    if (o.yTicks && (!o.yTickRoom || (x - half >= o.yTickRoom[0] && x + half <= o.yTickRoom[1]))) ax.push(text(x, bottom + 6 + size, label, { anchor: 'middle', size, cls: 'tick' }));
   }
   for (const t of niceTicks(f.zLo, f.zHi, zCount)) {
     const y = f.Z(t);

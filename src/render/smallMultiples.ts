@@ -129,7 +129,9 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
       if (c) (g.push(c), (overlays.track = true));
     }
     const below = k + cols < panels.length;
-    g.push(axesLayer(f, { yTicks: !below, zTicks: col === 0, tickSize: TICK }));
+    // Bottom tick labels keep half the gap to a neighbouring panel (edge labels that would meet are left out).
+    const room: [number, number] = [col === 0 ? 0 : left - GAP_X / 2, col === cols - 1 || k === panels.length - 1 ? Infinity : left + pw + GAP_X / 2];
+    g.push(axesLayer(f, { yTicks: !below, zTicks: col === 0, tickSize: TICK, yTickRoom: room }));
     labelLines[k].forEach((l, j) => g.push(text(left, top - labelH + 11 + 14 * j, l.t, { size: LABEL_SIZE, ...(l.bold ? { weight: 'bold' as const } : { fill: theme.muted }), cls: 'panel-label' })));
     g.push('</g>');
     body.push(g.join(''));
