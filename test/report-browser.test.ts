@@ -197,39 +197,52 @@ describe.skipIf(!haveChromium)('report in headless chromium', () => {
       expect(facts).toContain(`${secondsText(m.timings_s.total)} s`);
       const outDir = resolve(__dirname, '..', 'output');
       mkdirSync(outDir, { recursive: true });
-      await page.screenshot({ path: join(outDir, 'report-screenshot-run.png'), fullPage: true });
+      await page.screenshot({ path: join(outDir, 'report-screenshot-run.png'), fullPage: false });
 
-      // Every figure's labels measured by the browser: no two text boxes overlap (0.5 CSS pixel tolerance).
+      // Every figure's labels measured by the browser, all figures inlined in one page (one load): no two text boxes
+      // overlap (0.5-unit tolerance), and our width estimates agree with the browser's.
       const svgs = [...readdirSync(join(run, 'images')).map((n) => join(run, 'images', n)), ...readdirSync(join(run, 'plan')).map((n) => join(run, 'plan', n))].filter((p) => p.endsWith('.svg'));
       expect(svgs.length).toBeGreaterThan(15);
-      for (const p of svgs) {
-        await page.goto(pathToFileURL(p).href, { waitUntil: 'load' });
-        const boxes = await page.$$eval('text', (els) => els.map((e) => {
-          const r = (e as unknown as El).getBoundingClientRect();
-          return { t: (e as unknown as El).textContent ?? '', l: r.left, r: r.right, top: r.top, b: r.bottom };
-        }));
-        const hits: string[] = [];
+      const texts = svgs.map((p) => readFileSync(p, 'utf8'));
+      const page3 = join(dir, 'figures.html');
+      writeFileSync(page3, `<!DOCTYPE html><html><body>${texts.map((t, k) => `<div data-k="${k}">${t.replace(/^<\?xml[^>]*>\s*/, '')}</div>`).join('')}</body></html>`);
+      await page.goto(pathToFileURL(page3).href, { waitUntil: 'load' });
+      type Txt = El & { getComputedTextLength(): number; ownerSVGElement: El };
+      const measured = await page.$$eval('div[data-k]', (divs) => divs.map((d) => {
+        const svg = (d as unknown as { querySelector(s: string): El }).querySelector('svg');
+        const r0 = svg.getBoundingClientRect();
+        const scale = r0.width / Number(svg.getAttribute('viewBox')!.split(' ')[2]);
+        const els = (d as unknown as { querySelectorAll(s: string): Iterable<unknown> }).querySelectorAll('text');
+        return [...els].map((e) => {
+          const t = e as unknown as Txt;
+          const r = t.getBoundingClientRect();
+          // In figure units, relative to the SVG's corner.
+          return { t: t.textContent ?? '', l: (r.left - r0.left) / scale, r: (r.right - r0.left) / scale, top: (r.top - r0.top) / scale, b: (r.bottom - r0.top) / scale, len: t.getComputedTextLength() };
+        });
+      }));
+      measured.forEach((boxes, k) => {
+        const name = svgs[k];
         // getBoundingClientRect spans the font's whole line box (ascent + descent of DejaVu Sans, 1.16 em): shrink
         // each box by 12 % of its height top and bottom to the glyphs' extent before comparing.
         const shrunk = boxes.map((x) => ({ ...x, top: x.top + 0.12 * (x.b - x.top), b: x.b - 0.12 * (x.b - x.top) }));
+        const hits: string[] = [];
         for (let i = 0; i < shrunk.length; i++) for (let j = i + 1; j < shrunk.length; j++) {
           const a = shrunk[i], c = shrunk[j];
           if (!a.t.trim() || !c.t.trim()) continue;
           const ox = Math.min(a.r, c.r) - Math.max(a.l, c.l), oy = Math.min(a.b, c.b) - Math.max(a.top, c.top);
           if (ox > 0.5 && oy > 0.5) hits.push(`${a.t} / ${c.t}`);
         }
-        expect(hits, p).toEqual([]);
+        expect(hits, name).toEqual([]);
         // Our width estimates (glyph advance widths, used to lay labels out) against the browser's text length in
         // figure units, labels of 8 characters or more: within 6 % (kerning, hinting of glyph positions).
-        const est = svgTexts(readFileSync(p, 'utf8'));
-        const measured = await page.$$eval('text', (els) => els.map((e) => ((e as unknown as { getComputedTextLength(): number }).getComputedTextLength())));
-        expect(measured.length).toBe(est.length);
-        est.forEach((t, k) => {
-          if (t.rotate || t.text.length < 8 || !measured[k]) return;
+        const est = svgTexts(texts[k]);
+        expect(boxes.length, name).toBe(est.length);
+        est.forEach((t, i) => {
+          if (t.rotate || t.text.length < 8 || !boxes[i].len) return;
           const w = t.box[2] - t.box[0];
-          expect(Math.abs(w - measured[k]) / w, `${p}: ${t.text}`).toBeLessThan(0.06);
+          expect(Math.abs(w - boxes[i].len) / w, `${name}: ${t.text}`).toBeLessThan(0.06);
         });
-      }
+      });
     } finally {
       await context.close();
       rmSync(userDataDir, { recursive: true, force: true });
