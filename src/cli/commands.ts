@@ -33,11 +33,12 @@ interface Common {
   out?: string;
   images: boolean;
   quiet: boolean;
-  'window-images'?: string[];
+  'window-images'?: string | string[];
 }
 
 /** The --window-images choices (none | all | every:N | 0,3,7, and bins:...), parsed; {} when not given. */
-async function windowImagesOption(a: { 'window-images'?: string[] }): Promise<{ windowImages?: WindowImages; binImages?: WindowImages }> {
+async function windowImagesOption(a: { 'window-images'?: string | string[] }): Promise<{ windowImages?: WindowImages; binImages?: WindowImages }> {
+  // Given twice (windows and bins), yargs collects the values in an array.
   const t = a['window-images'];
   if (t === undefined || t.length === 0) return {};
   const { parseImageSelection } = await import('../render/figureSelection.ts');
@@ -71,7 +72,7 @@ export function commands(y: Argv): Argv {
       .option('out', { type: 'string', describe: 'output root folder (default: the campaign\'s output.dir)' })
       .option('images', { type: 'boolean', default: true, describe: 'render images and the report (--no-images to skip)' })
       .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' })
-      .option('window-images', { type: 'string', array: true, describe: WINDOW_IMAGES_HELP });
+      .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP });
   return y
     .command(
       'demo',
@@ -105,10 +106,10 @@ export function commands(y: Argv): Argv {
       (yy) =>
         yy
           .positional('folder', { type: 'string', describe: 'run folder (holding manifest.json)' })
-          .option('window-images', { type: 'string', array: true, describe: WINDOW_IMAGES_HELP })
+          .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP })
           .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
       async (a) => {
-        const selection = await windowImagesOption(a as { 'window-images'?: string[] });
+        const selection = await windowImagesOption(a as { 'window-images'?: string | string[] });
         const { renderRunFolder } = await import('../pipeline/renderFolder.ts');
         const progress = createProgress(process.stderr, { quiet: a.quiet as boolean });
         const r = await renderRunFolder(a.folder as string, { ...selection, progress });
