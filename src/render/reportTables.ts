@@ -5,7 +5,7 @@
  * uncertainty (numbers.ts); the column heading says which uncertainty (standard error, or 95 % interval).
  */
 import type { Stat, WakeAnalysis } from '../wake/types.ts';
-import { withUncertainty } from './numbers.ts';
+import { fixed, withUncertainty } from './numbers.ts';
 import type { ReportCell, ReportTable } from './report.ts';
 
 const pm = (value: number, uncertainty: number): ReportCell => ({ value, uncertainty });
@@ -51,7 +51,8 @@ export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downst
       title: 'Wake steering: yaw-offset bins',
       columns: ['plane', 'x/D', 'γ bin (°)', 'mean γ (°)', 'windows', 'y_{c} (m) ± 95 %', 'Δy_{c} (m) ± 95 %', 'Jiménez et al. 2010 (m)', 'Bastankhah & Porté-Agel 2016 (m)'],
       decimals: [undefined, 2, undefined, 1, 0, undefined, undefined, 1, 1],
-      rows: a.steering.bins.map((b) => [b.planeId, b.x_D, `${b.gammaLo_deg} to ${b.gammaHi_deg}`, b.gammaMean_deg, b.n, pm(b.yc_m, b.ci95_m), pm(b.deflection_m, b.deflectionCi95_m), b.jimenez_m, b.bastankhah_m]),
+      // The bin's edges kept on one line (no-break spaces) with typographic minus signs.
+      rows: a.steering.bins.map((b) => [b.planeId, b.x_D, `${fixed(b.gammaLo_deg, 0)}\u00a0to\u00a0${fixed(b.gammaHi_deg, 0)}`, b.gammaMean_deg, b.n, pm(b.yc_m, b.ci95_m), pm(b.deflection_m, b.deflectionCi95_m), b.jimenez_m, b.bastankhah_m]),
       ...(a.steering.note ? { note: a.steering.note } : {}),
       ...(links.steering ? { link: links.steering } : {}),
     });
