@@ -1,7 +1,8 @@
 /**
  * Throughput benchmark (`npm run bench`, or `node bin/run-ts.js bench/run.ts [--rows N] [--skip-pipeline]`).
  *
- * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-figures, --runs-figures N.
+ * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-figures, --runs-figures N,
+ * --before DIR (an earlier wakeplane checkout whose demo figures are timed alongside).
  * 1. Generates the benchmark campaign if missing (bench/generate.ts; $WAKEPLANE_BENCH_DIR, default
  *    <tmp>/wakeplane-bench; rows from --rows or $WAKEPLANE_BENCH_ROWS, default 10,000,000).
  * 2. The bare pass: a child process streams the files and counts line feeds (bench/newlines.mjs, Buffer.indexOf): the
@@ -112,10 +113,10 @@ function runsFromArgs(argv: string[], name = '--runs', dflt = 5): number {
 
 interface FigureRun { wall: number; images: number; total: number; windows: number; figures: number; peakRss_MB: number }
 
-/** One `wakeplane run` as a child process; the figure stage's time and counts from its manifest. */
-async function figureRun(campaign: string, outRoot: string, name: string, images: boolean): Promise<FigureRun> {
+/** One `wakeplane run` as a child process (of this checkout, or of `root`); the figure stage's time and counts from its manifest. */
+async function figureRun(campaign: string, outRoot: string, name: string, images: boolean, root = ROOT): Promise<FigureRun> {
   rmSync(join(outRoot, name), { recursive: true, force: true });
-  const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--out', outRoot, ...(images ? [] : ['--no-images'])], true);
+  const r = await runChild(process.execPath, [join(root, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--out', outRoot, ...(images ? [] : ['--no-images'])], true);
   if (r.code !== 0) throw new Error(`wakeplane run ${campaign} failed: ${r.stderr.slice(-600)}`);
   const m = JSON.parse(readFileSync(join(outRoot, name, 'manifest.json'), 'utf8')) as { timings_s: Record<string, number>; windows: unknown[]; outputs: { kind: string; path: string }[]; peakRss_bytes: number };
   return {
@@ -134,11 +135,16 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
     if (r.code !== 0) throw new Error(`simulate failed: ${r.stderr}`);
   }
   const outRoot = join(d.dir, 'output-figures');
-  const withImages: FigureRun[] = [], without: FigureRun[] = [];
+  // --before DIR: an earlier checkout of wakeplane (built, with node_modules) run on the same demo data in turn, so
+  // that the comparison is made under the same load instead of against the recorded figure.
+  const kb = process.argv.indexOf('--before');
+  const before = kb >= 0 ? resolve(process.argv[kb + 1]) : undefined;
+  const withImages: FigureRun[] = [], without: FigureRun[] = [], old: FigureRun[] = [];
   for (let k = 0; k < runs; k++) {
     withImages.push(await figureRun(demo, outRoot, demoDoc.name, true));
     without.push(await figureRun(demo, outRoot, demoDoc.name, false));
-    console.log(`  demo run ${k + 1}: with images ${fmt(withImages[k].wall, 2)} s (figure stage ${fmt(withImages[k].images, 2)} s, ${withImages[k].figures} figures), without ${fmt(without[k].wall, 2)} s`);
+    if (before) old.push(await figureRun(demo, join(outRoot, 'before'), demoDoc.name, true, before));
+    console.log(`  demo run ${k + 1}: with images ${fmt(withImages[k].wall, 2)} s (figure stage ${fmt(withImages[k].images, 2)} s, ${withImages[k].figures} figures), without ${fmt(without[k].wall, 2)} s${before ? `; before: figure stage ${fmt(old[k].images, 2)} s, ${old[k].figures} figures` : ''}`);
   }
   // More than 1,000 windows: the benchmark's samples (about 11.6 hours) in 40-second windows, default figures.
   const doc = parse(readFileSync(d.campaign, 'utf8')) as Record<string, unknown> & { name: string; output: Record<string, unknown> };
@@ -151,7 +157,12 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
   const extra = withImages.map((r, k) => r.wall - without[k].wall);
   out('figures (whole runs as child processes; figure stage = the manifest\'s timings_s.images)');
   out(`  demo, ${withImages[0].windows} windows: figure stage ${spread(imgs, 2)} s, ${withImages[0].figures} figures; wall with images minus without, pair by pair ${spread(extra, 2)} s; peak ${fmt(Math.max(...withImages.map((r) => r.peakRss_MB)), 0)} MB`);
-  out(`    before (532 images, see DEMO_IMAGES_BEFORE_s): ${fmt(DEMO_IMAGES_BEFORE_s, 1)} s; ratio ${fmt(median(imgs) / DEMO_IMAGES_BEFORE_s, 3)}   ${verdict(median(imgs) < DEMO_IMAGES_BEFORE_s / 4)} (target < 1/4)`);
+  if (before) {
+    const ratios = withImages.map((r, k) => r.images / old[k].images);
+    out(`    before (${before}, ${old[0].figures} figures): figure stage ${spread(old.map((r) => r.images), 2)} s; ratio pair by pair ${spread(ratios, 3)}   ${verdict(median(ratios) < 0.25)} (target < 1/4)`);
+  } else {
+    out(`    before (532 images, recorded: see DEMO_IMAGES_BEFORE_s; --before DIR to measure it alongside): ${fmt(DEMO_IMAGES_BEFORE_s, 1)} s; ratio ${fmt(median(imgs) / DEMO_IMAGES_BEFORE_s, 3)}   ${verdict(median(imgs) < DEMO_IMAGES_BEFORE_s / 4)} (target < 1/4; the recorded figure was taken under lighter load)`);
+  }
   out(`  ${m.windows} windows (40 s), default figures: figure stage ${fmt(m.images, 2)} s, ${m.figures} figures; whole run ${fmt(m.wall, 2)} s, peak ${fmt(m.peakRss_MB, 0)} MB   ${verdict(m.windows >= 1000 && m.images < TARGET.manyWindowsFigures_s)} (target < ${TARGET.manyWindowsFigures_s} s)`);
 }
 
