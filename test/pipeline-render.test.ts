@@ -3,7 +3,8 @@
  * reader beside its writer. The round trip through our own writer and reader is a regression check, not an outside
  * check (the values it carries are checked elsewhere).
  */
-import { existsSync, readFileSync, readdirSync, renameSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, readdirSync, renameSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
@@ -110,7 +111,15 @@ describe('wakeplane render', () => {
     for (const f of ['a.csv', 'b.csv', 'c.csv']) renameSync(join(dataDir, `${f}.away`), join(dataDir, f));
   }, 60_000);
 
-  it('names a folder that is not a finished run', async () => {
+  it('names a folder that is not a finished run, and leaves a folder wakeplane did not mark alone', async () => {
     await expect(renderRunFolder(join(runDir, 'images'))).rejects.toThrow(/manifest\.json: not a finished run folder/);
+    // A copy of the run's manifest in a folder of someone else's (no marker, another campaign name in it).
+    const other = mkdtempSync(join(tmpdir(), 'wakeplane-foreign-'));
+    const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8'));
+    m.tool.name = 'something-else';
+    writeFileSync(join(other, 'manifest.json'), JSON.stringify(m));
+    writeFileSync(join(other, 'report.html'), 'theirs');
+    await expect(renderRunFolder(other)).rejects.toThrow(/was not made by wakeplane.*nothing redrawn/);
+    expect(readFileSync(join(other, 'report.html'), 'utf8')).toBe('theirs');
   });
 });

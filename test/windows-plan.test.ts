@@ -152,3 +152,17 @@ describe('segment windows from a turbine series (worked by hand)', () => {
     expect(none.summary.excluded_s.gap).toBe(T[T.length - 1] - T[0]);
   });
 });
+
+describe('the first-sample anchor', () => {
+  it('ignores a stamp more than a day from the median of the first batch (a zeroed clock), else takes the earliest', async () => {
+    const { firstSampleTime } = await import('../src/pipeline/ingest.ts');
+    const t = Float64Array.from({ length: 1000 }, (_, i) => 1_781_431_397 + 0.25 * i);
+    expect(firstSampleTime({ length: t.length, time: t })).toBe(1_781_431_397);
+    t[500] = 0; // corrupted: 1970
+    t[501] = 1_781_431_397 - 3600; // an hour early: plausible, taken
+    expect(firstSampleTime({ length: t.length, time: t })).toBe(1_781_431_397 - 3600);
+    t[501] = 1_781_431_500;
+    expect(firstSampleTime({ length: t.length, time: t })).toBe(1_781_431_397);
+    expect(firstSampleTime({ length: 0, time: t })).toBeNaN();
+  });
+});

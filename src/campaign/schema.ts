@@ -219,7 +219,11 @@ const thrustSchema = z.union([
 
 export const campaignSchema = z
   .object({
-    name: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only (used as the output folder name)'),
+    name: z
+      .string()
+      .max(100, 'at most 100 characters (used as the output folder name)')
+      .regex(/^[A-Za-z0-9_-][A-Za-z0-9_.-]*$/, 'letters, digits, "_", "." and "-" only, not starting with "." (used as the output folder name)')
+      .describe('campaign name; the output folder is <output.dir>/<name>'),
     description: z.string().default(''),
     site: z
       .object({
@@ -258,6 +262,14 @@ export const campaignSchema = z
           .default({ min: -27, max: 5 }),
         radialVelocityLimit_ms: finite().positive().max(64).default(35).describe('|radial velocity| above is rejected, m/s (at most 64); default 35'),
         groundClearance_m: finite().min(0).default(2).describe('measurement points lower than this above ground are rejected, metres; default 2'),
+        dropDuplicates: z
+          .boolean()
+          .default(false)
+          .describe('reject rows repeating an earlier row of the same instrument (time, angles and range) as "duplicate"; default false (kept, with a warning)'),
+        timeOrderTolerance_s: finite()
+          .min(0)
+          .default(1)
+          .describe('time steps backward within a file up to this are not reported as out of order, s; default 1'),
         robust: z
           .object({
             enabled: z.boolean().default(true),
@@ -272,6 +284,8 @@ export const campaignSchema = z
         cnr_db: { min: -27, max: 5 },
         radialVelocityLimit_ms: 35,
         groundClearance_m: 2,
+        dropDuplicates: false,
+        timeOrderTolerance_s: 1,
         robust: { enabled: true, k: 3.5, minSamples: 5 },
       }),
     windows: windowSchema
@@ -309,7 +323,7 @@ export const campaignSchema = z
       .default({ yawBin_deg: 5, turbulenceIntensity: 0.1 }),
     output: z
       .object({
-        dir: z.string().default('output').describe('output root, relative to the working directory; results go to <dir>/<name>'),
+        dir: z.string().min(1).default('output').describe('output root, relative to the campaign file\'s folder (like the data files); results go to <dir>/<name>; default "output"'),
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
         figures: figuresSchema.default(FIGURES_DEFAULT).describe('which figures to draw and on which scales (see src/campaign/figures.ts)'),

@@ -33,6 +33,7 @@ import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { readSamples, type SampleChunk } from '../io/csvSamples.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
+import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
 
 export interface OpenWindow {
@@ -62,6 +63,8 @@ export interface IngestOptions {
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
+  /** Suspicious-input inspector (qc/suspicion.ts): sees every chunk first; its mask drops duplicates. */
+  suspicion?: SuspicionInspector;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -86,6 +89,22 @@ interface Live extends OpenWindow {
   /** Rotor-frame x axis in site east/north components: (dE, dN) = -(sin D, cos D). */
   dE: number;
   dN: number;
+}
+
+/** Times further than this from the median of a file's first batch are not taken as its first sample, s. */
+export const FIRST_SAMPLE_SPAN_S = 86400;
+
+/**
+ * The earliest sample time of a batch (a file's first), ignoring stamps more than FIRST_SAMPLE_SPAN_S from the
+ * batch's median: one corrupted time (a zeroed clock, a wrong year) would otherwise move the anchor of every
+ * fixed window. NaN for an empty batch.
+ */
+export function firstSampleTime(b: { length: number; time: Float64Array }): number {
+  if (b.length === 0) return NaN;
+  const t = Float64Array.from(b.time.subarray(0, b.length)).sort();
+  const med = t[t.length >> 1];
+  for (let i = 0; i < t.length; i++) if (t[i] >= med - FIRST_SAMPLE_SPAN_S) return t[i];
+  return med;
 }
 
 export async function ingest(opts: IngestOptions, counters: Counters): Promise<{ plan: WindowPlan }> {
@@ -127,8 +146,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     const r = await cur.it.next();
     if (r.done) { cur.done = true; continue; }
     cur.pending = r.value;
-    const b = r.value.batch;
-    for (let i = 0; i < b.length; i++) if (b.time[i] < first) first = b.time[i];
+    const f = firstSampleTime(r.value.batch);
+    if (f < first) first = f;
   }
   const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
   const record = plan.kind === 'record';
@@ -178,11 +197,13 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
 
   const processChunk = (chunk: SampleChunk, owner: number) => {
     const b = chunk.batch;
+    const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) {
-      // Rows that could not be read are charged to the instrument owning the file.
+      // Rows that could not be read are charged to the instrument they name, else to the one owning the file.
       for (const r of chunk.rejected) {
-        counters.read[owner]++;
-        counters.reject(owner, R[r.reason as keyof typeof R] ?? R.bad_number);
+        const ins = r.instrument ?? owner;
+        counters.read[ins]++;
+        counters.reject(ins, R[r.reason as keyof typeof R] ?? R.bad_number);
       }
       opts.onRejectedRows(chunk.rejected);
     }
@@ -190,6 +211,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
+      if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
       if (cnr < cnrMin) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
       if (cnr > cnrMax) { counters.rejected[ins * NR + R.hard_target_cnr]++; continue; }
@@ -272,7 +294,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     if (chunk) {
       processChunk(chunk, cur.owner);
       const b = chunk.batch;
-      if (b.length > 0) cur.last = Math.max(cur.last, b.time[b.length - 1]);
+      if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
       cur.rows += b.length + chunk.rejected.length;
       opts.onProgress?.(cur.path, cur.rows);
     }

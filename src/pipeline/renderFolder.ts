@@ -2,7 +2,8 @@
  * `wakeplane render <run folder>`: redoes the figures and the report of a finished run from its own outputs,
  * without reading any sample again. The campaign comes from the manifest (the settings the run used), the fields
  * from the field tables (read back one at a time), the wake analysis is recomputed from those fields and the
- * series files (pure and quick), and the planner's maps are redrawn when the run had them. The field tables, wake
+ * series files (pure and quick), and the planner's maps are redrawn when the run had them. Only a complete run
+ * folder that wakeplane marked for the manifest's campaign is touched (pipeline/outputFolder.ts). The field tables, wake
  * tables and accounting stay as they are; images and report.html are replaced, images the new selection no longer
  * draws are removed (only files the manifest lists as this run's images), and manifest.json lists the new outputs
  * with the time of the render.
@@ -11,9 +12,10 @@ import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
 import type { Campaign } from '../campaign/types.ts';
-import { InputError } from '../errors.ts';
+import { InputError, OutputError } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
+import { replaceRefusal } from './outputFolder.ts';
 import type { RunProgress, StageContext } from './run.ts';
 import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
 
@@ -53,6 +55,9 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   } catch (e) {
     throw new InputError(manifestPath, undefined, `cannot read the manifest: ${(e as Error).message}`);
   }
+  // Only a complete run folder wakeplane marked for this campaign is rewritten (outputFolder.ts).
+  const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
+  if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
   const campaign = campaignFromManifest(m, manifestPath);
   const progress = opts.progress;
   const oldImages = m.outputs.filter((o) => o.kind === 'image').map((o) => o.path);

@@ -2,18 +2,21 @@
  * The whole job for one campaign: check inputs, ingest (QC, geometry, windows), retrieve each window, write the
  * field tables, analyse the wake, render images and the report, and write the manifest.
  *
- * Output safety: everything is written into a staging folder beside the result (`.<name>.partial-<pid>`); only a
- * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
- * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
+ * Output safety (outputFolder.ts): everything is written into a marked staging folder beside the result
+ * (`.<name>.partial-<pid>`); only a run that finishes is renamed to `<output.dir>/<name>`. Whatever stands there
+ * must be a result wakeplane marked for this campaign: it is kept as `<name>.replaced-<time>-<pid>` and the run says
+ * so; anything else stops the run before any work. Inputs are checked first (preflight.ts); the suspicious-input
+ * inspector (qc/suspicion.ts) watches the samples and adds its warnings, or stops the run for a file without a
+ * usable row.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
-import { checkHeader } from '../io/csvSamples.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
-import { readSeries, type Series } from '../io/series.ts';
+import { readSeries } from '../io/series.ts';
+import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
@@ -25,12 +28,16 @@ import type { OutputRecord, RunManifest } from './manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
 import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
-import { InputError } from '../errors.ts';
+import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
+import { openStaging } from './outputFolder.ts';
+import { preflight } from './preflight.ts';
 
 export interface RunOptions {
-  /** Output root; default: the campaign's output.dir resolved against the working directory. */
+  /** Output root; default: the campaign's output.dir (resolved against the campaign file's folder). */
   outRoot?: string;
+  /** Also remove unfinished staging folders whose run cannot be proven stopped (see outputFolder.ts). */
+  clean?: boolean;
   /** Render images and the report (default: campaign output.images). */
   images?: boolean;
   /** Progress sink (the CLI passes a terminal progress display; silent by default). */
@@ -42,6 +49,10 @@ export interface RunOptions {
 export interface RunProgress {
   stage(name: string): void;
   file(path: string, rows: number): void;
+  /** A running counter of the stage (windows, images, ...). */
+  count?(label: string, value: number): void;
+  /** Expected total rows of the reading stage (an estimate), for the share done. */
+  expect?(rows: number): void;
   done(): void;
 }
 
@@ -108,18 +119,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const notices: string[] = [];
   const warnings: string[] = [];
 
-  // 1. Inputs: every data file must exist and have the required columns before anything is written.
+  // 1. Inputs and the output target, before anything is written (all problems at once).
   progress.stage('checking inputs');
   let t = performance.now();
-  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
-  const dataFiles = c.instruments.flatMap((ins) => ins.files.map((file) => ({ file, ins })));
-  if (dataFiles.length === 0) throw new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files');
-  for (const { file, ins } of dataFiles) {
-    if (!existsSync(file)) throw new InputError(file, undefined, `data file of instrument "${ins.id}" not found`);
-    await checkHeader(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
-  }
-  const dirSeries: Series | undefined =
-    c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  const outRoot = resolve(opts.outRoot ?? c.output.dir);
+  const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true });
+  if (pre.errors.length) throw pre.errors.length === 1 ? pre.errors[0] : new Problems(pre.errors);
+  warnings.push(...pre.warnings);
+  const cRead = pre.campaign; // each data file once
+  const dataFiles = pre.files;
+  const dirSeries = pre.directionSeries;
   // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
   // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
   const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
@@ -130,14 +139,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
   const conditionSeries = loadConditionSeries(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
+  const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
 
-  // 2. Staging folder.
-  const outRoot = resolve(opts.outRoot ?? c.output.dir);
-  const finalDir = join(outRoot, c.name);
-  const runDir = join(outRoot, `.${c.name}.partial-${process.pid}`);
-  rmSync(runDir, { recursive: true, force: true });
-  mkdirSync(runDir, { recursive: true });
+  // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
+  const staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+  notices.push(...staging.notices);
+  const runDir = staging.dir;
+  const finalDir = staging.finalDir;
+  const show = (f: string) => relative(c.baseDir, f) || f;
+  const inspector = new SuspicionInspector(cRead, suspicionSettings(c, show));
 
   try {
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
@@ -155,7 +166,6 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
     }
-    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
     const outputs: OutputRecord[] = [];
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
@@ -180,8 +190,10 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
+    progress.expect?.(pre.estimatedRows);
     t = performance.now();
     let built: BuiltWindowPlan | undefined = early;
+    let outputsSeen = 0, imageCount = 0;
     // The plane target takes every instrument's samples (sibling geometries would take theirs).
     const planeTarget = new PlaneTarget(
       planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
@@ -189,7 +201,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     );
     await ingest(
       {
-        campaign: c,
+        campaign: cRead,
+        suspicion: inspector,
         targets: [planeTarget],
         targetOf: new Int32Array(c.instruments.length).fill(0),
         windowPlan(first) {
@@ -203,7 +216,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
-        onWindow: (w) => finisher.window(w),
+        async onWindow(w) {
+          await finisher.window(w);
+          progress.count?.('windows', finisher.windows.length);
+          for (; outputsSeen < finisher.outputs.length; outputsSeen++) if (finisher.outputs[outputsSeen].kind === 'image') imageCount++;
+          if (imageCount) progress.count?.('images', imageCount);
+        },
       },
       counters,
     );
@@ -228,6 +246,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
     lap('hash_wait', t);
     const { perInstrument, total } = accountsFrom(c, counters);
+    const suspicion = inspector.finish(perInstrument);
+    if (suspicion.errors.length) throw suspicion.errors.length === 1 ? suspicion.errors[0] : new Problems(suspicion.errors);
+    warnings.push(...suspicion.warnings, ...sameContentWarnings(manifest.inputs, show));
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
@@ -239,7 +260,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       if (!stage.finish || stage.last) continue;
       progress.stage(stage.name);
       t = performance.now();
-      outputs.push(...(await stage.finish(stageCtx)));
+      const made = await stage.finish(stageCtx);
+      outputs.push(...made);
+      progress.count?.('files', made.length);
       lap(stage.name, t);
     }
     timings.total = (performance.now() - t0) / 1000;
@@ -255,17 +278,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 
-    if (existsSync(finalDir)) {
-      const kept = `${finalDir}.replaced-${new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}`;
-      renameSync(finalDir, kept);
-      notices.push(`an earlier result was kept as ${relative(process.cwd(), kept) || kept}`);
-    }
-    renameSync(runDir, finalDir);
+    notices.push(...staging.commit());
     progress.done();
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
-    rmSync(runDir, { recursive: true, force: true });
+    staging.abort();
     throw e;
   }
 }

@@ -64,6 +64,9 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+        ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
+      }
       ctx.shared.ensembleRows = ensembleRows;
       return opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir, ensembleRows);
     },

@@ -14,6 +14,8 @@ export const REJECT_REASONS = [
   'outside_planes',
   // robust filter (median and scaled MAD per instrument, cell and window)
   'outlier',
+  // an exact repeat of an earlier row of the same instrument, with qc.dropDuplicates (src/qc/suspicion.ts)
+  'duplicate',
 ] as const;
 export type RejectReason = (typeof REJECT_REASONS)[number];
 export const REJECT_INDEX: Record<RejectReason, number> = Object.fromEntries(REJECT_REASONS.map((r, i) => [r, i])) as Record<RejectReason, number>;
