@@ -63,7 +63,7 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   const oldImages = m.outputs.filter((o) => o.kind === 'image').map((o) => o.path);
   const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
   const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
-  const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s } };
+  const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s }, warnings: [...m.warnings] };
   const ctx: StageContext = { campaign, runDir, images: true, manifest, shared: {} };
 
   // The wake analysis again from the field tables, without writing its tables, then the figures.
@@ -95,6 +95,8 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
     rmSync(join(runDir, p), { force: true });
     removed++;
   }
+  // The analysis again may state a warning the run already recorded: keep each once.
+  manifest.warnings = [...new Set(manifest.warnings)];
   manifest.rendered = { at: new Date().toISOString(), seconds: (performance.now() - t0) / 1000 };
   progress?.stage('report');
   manifest.outputs.push(...(await reportStage().finish!(ctx)));
