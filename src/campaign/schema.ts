@@ -15,6 +15,7 @@
 import { z } from 'zod';
 import { planSchema } from '../plan/schema.ts';
 import { beamFrameSchema, mountSchema, nacelleSchema, orientationSeriesSchema, profileInflowSchema, profileSchema, roleSchema, trackSchema } from './geometrySchema.ts';
+import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
@@ -335,9 +336,10 @@ export const campaignSchema = z
         dir: z.string().min(1).default('output').describe('output root, relative to the campaign file\'s folder (like the data files); results go to <dir>/<name>; default "output"'),
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
+        figures: figuresSchema.default(FIGURES_DEFAULT).describe('which figures to draw and on which scales (see src/campaign/figures.ts)'),
       })
       .strict()
-      .default({ dir: 'output', writeRejected: true, images: true }),
+      .default({ dir: 'output', writeRejected: true, images: true, figures: FIGURES_DEFAULT }),
     simulation: z
       .record(z.string(), z.unknown())
       .optional()

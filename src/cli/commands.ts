@@ -17,13 +17,14 @@ import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
 import { createProgress } from './progress.ts';
 import type { PlanSummary } from '../plan/index.ts';
+import type { WindowImages } from '../campaign/figures.ts';
 
 // The simulator, the planner and (through the stages) the image stack load only in the commands that use them.
 const simulator = () => import('../sim/simulate.ts');
 const planner = () => import('../pipeline/plan.ts');
 
 /** Every command, in the order of the help. */
-export const COMMAND_NAMES = ['demo', 'run', 'check', 'plan', 'simulate', 'schema'];
+export const COMMAND_NAMES = ['demo', 'run', 'render', 'check', 'plan', 'simulate', 'schema'];
 
 /** The package's own folder: the nearest one above this module holding package.json (src/cli/ or dist/). */
 function packageRoot(): string {
@@ -41,7 +42,19 @@ interface Common {
   images?: boolean;
   quiet: boolean;
   clean: boolean;
+  'window-images'?: string | string[];
 }
+
+/** The --window-images choices (none | all | every:N | 0,3,7, and bins:...), parsed; {} when not given. */
+async function windowImagesOption(a: { 'window-images'?: string | string[] }): Promise<{ windowImages?: WindowImages; binImages?: WindowImages }> {
+  // Given twice (windows and bins), yargs collects the values in an array.
+  const t = a['window-images'];
+  if (t === undefined || t.length === 0) return {};
+  const { parseImageSelection } = await import('../render/figureSelection.ts');
+  return parseImageSelection(t);
+}
+
+const WINDOW_IMAGES_HELP = 'images of single windows: none, all, every:N or a list such as 0,3,7; of condition bins: bins:all, bins:0,2 (repeat the option for both; default: the campaign\'s output.figures)';
 
 function say(quiet: boolean, text: string): void {
   if (!quiet) process.stdout.write(text.endsWith('\n') ? text : text + '\n');
@@ -59,7 +72,8 @@ function outRootOf(c: Campaign, out: string | undefined): string {
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
   const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan }) });
+  const selection = await windowImagesOption(a);
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan, ...selection }) });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
   if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
@@ -74,7 +88,8 @@ export function commands(y: Argv): Argv {
       .option('out', { type: 'string', describe: 'output root folder, relative to the working directory (default: the campaign\'s output.dir, relative to the campaign file)' })
       .option('images', { type: 'boolean', describe: 'render images and the report (default: the campaign\'s output.images; --no-images to skip)' })
       .option('clean', { type: 'boolean', default: false, describe: 'also remove unfinished folders of stopped runs whose state cannot be proven (another host, an unknown process)' })
-      .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' });
+      .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' })
+      .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP });
   return y
     .command(
       'demo',
@@ -102,6 +117,24 @@ export function commands(y: Argv): Argv {
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         await runAndReport(c, a as unknown as Common & { plan: boolean });
+      },
+    )
+    .command(
+      'render <folder>',
+      'redo the figures and the report of a finished run folder from its tables, without reading the samples again',
+      (yy) =>
+        yy
+          .positional('folder', { type: 'string', describe: 'run folder (holding manifest.json)' })
+          .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP })
+          .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
+      async (a) => {
+        const selection = await windowImagesOption(a as { 'window-images'?: string | string[] });
+        const { renderRunFolder } = await import('../pipeline/renderFolder.ts');
+        const progress = createProgress(process.stderr, { quiet: a.quiet as boolean });
+        const r = await renderRunFolder(a.folder as string, { ...selection, progress });
+        const rel = relative(process.cwd(), r.runDir);
+        const where = rel && !rel.startsWith('..') ? rel : r.runDir;
+        say(a.quiet as boolean, `rendered ${where}/: ${r.images} figures (SVG and PNG) and report.html in ${r.seconds.toFixed(1)} s${r.removed ? `; ${r.removed} files of images no longer drawn removed` : ''}`);
       },
     )
     .command(

@@ -67,6 +67,9 @@ export interface RunStage {
   name: string;
   field?(f: FieldResult, ctx: StageContext): Promise<OutputRecord[]>;
   finish?(ctx: StageContext): Promise<OutputRecord[]>;
+  /** Runs after the manifest's end time, timings and peak memory are final, so what it writes (the report) shows
+   * exactly the manifest's figures; its own few milliseconds are not in the timings. */
+  last?: boolean;
 }
 
 export interface StageContext {
@@ -263,13 +266,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
-    // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
-    manifest.finishedAt = new Date().toISOString();
-    manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
-
-    // 4. Later stages: wake summaries, summary plots, planner, report.
+    // 4. Later stages: wake summaries, figures, planner; then the end figures, then the report (a `last` stage).
     for (const stage of stages) {
-      if (!stage.finish) continue;
+      if (!stage.finish || stage.last) continue;
       progress.stage(stage.name);
       t = performance.now();
       const made = await stage.finish(stageCtx);
@@ -277,11 +276,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       progress.count?.('files', made.length);
       lap(stage.name, t);
     }
-
-    // 5. Manifest, then make the result visible.
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
+    for (const stage of stages) {
+      if (!stage.finish || !stage.last) continue;
+      progress.stage(stage.name);
+      outputs.push(...(await stage.finish(stageCtx)));
+    }
+
+    // 5. Manifest, then make the result visible.
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 

@@ -82,7 +82,7 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
 
   const notes = [
     'straight beams in the flat site frame (no Earth curvature, no terrain)',
-    `rotor frame from wind direction ${s.direction_deg.toFixed(2)} deg (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
+    `rotor frame from wind direction ${s.direction_deg.toFixed(2)}\u00b0 (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
   ];
   if (campaign.site.earthCurvature) notes.push('site.earthCurvature is true but the planner does not apply it: check long beams');
   if (scanners.length < 3 && scanners.length > 0) notes.push(`${scanners.length} plane scanner${scanners.length === 1 ? '' : 's'}: w cannot be resolved; the planes are planned for u and v${s.twoInstrumentAssumption === 'w-zero' ? ' (w = 0 assumed)' : ', which needs twoInstrumentAssumption w-zero'}`);

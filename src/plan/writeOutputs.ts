@@ -114,6 +114,6 @@ export async function writePlanOutputs(result: PlanResult, campaign: Campaign, r
   }
   writeFileAtomic(join(dir, 'summary.json'), JSON.stringify(result.summary, null, 2) + '\n');
   out.push({ kind: 'plan-summary', path: join('plan', 'summary.json'), description: 'resolved fractions, scan times, layout gain' });
-  if (opts.images) out.push(...(await writePlanImages(result, campaign, dir)));
+  if (opts.images) out.push(...(await writePlanImages(result, campaign, runDir)));
   return out;
 }

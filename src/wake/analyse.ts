@@ -61,8 +61,8 @@ export function summariseWake(rowsIn: WakePlaneWindow[], campaign: Campaign, inp
   const okRows = rows.filter((r) => r.flag === 'ok');
   const hub = median(okRows.map((r) => r.inflow.hubSpeed_ms));
   const { ct, source } = thrustCoefficientAt(t.thrustCoefficient as number | [number, number][], Number.isFinite(hub) ? hub : median(rows.map((r) => r.inflow.hubSpeed_ms)));
-  const downstream = downstreamCurves(rows, D, campaign.wake.yawBin_deg, ct, source, hub, o.topHatK);
   const ti = campaign.wake.turbulenceIntensity;
+  const downstream = downstreamCurves(rows, D, campaign.wake.yawBin_deg, ct, source, hub, ti, o.topHatK);
   const fitted = downstream.gaussianFit.ok && downstream.gaussianFit.kStar > 0;
   const kStar = fitted ? downstream.gaussianFit.kStar : kStarFromTurbulence(ti);
   notes.push(fitted

@@ -245,10 +245,24 @@ export interface GaussianModelFit {
 }
 
 export interface TopHatModel {
+  /** The k of the curve: the fitted one when the fit is usable, else the default from the inflow. */
   k: number;
   ct: number;
-  /** Source of k ("common practice onshore default"). */
+  /** Where k came from, in words. */
   kNote: string;
+  /** The default from the ambient turbulence intensity, k = 0.4 I (Pena et al. 2016), and that intensity. */
+  kDefault: number;
+  turbulenceIntensity: number;
+  /** Least-squares fit to the planes' centreline deficits (NaN when not possible), with standard error and 95 % interval. */
+  kFit: number;
+  kFitSE: number;
+  kFitCI95: [number, number];
+  fitPlanes: number;
+  fitRmse: number;
+  fitOk: boolean;
+  fitNote: string;
+  /** 'fit', 'inflow' (the default) or 'option' (given explicitly). */
+  kSource: 'fit' | 'inflow' | 'option';
 }
 
 export interface DownstreamResult {
