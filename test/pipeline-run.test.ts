@@ -145,7 +145,7 @@ describe('input errors stop the run before any output', () => {
 describe('the demo campaign file', () => {
   it('is valid and names only its own invented instruments', () => {
     const c = loadCampaignFile(join(import.meta.dirname, '..', 'scenarios', 'quillmoor', 'campaign.yaml'));
-    expect(c.instruments.map((i) => i.id)).toEqual(['wl-north', 'wl-south', 'wl-east']);
+    expect(c.instruments.map((i) => i.id)).toEqual(['north-1', 'south-1', 'east-1']);
     expect(c.planes.map((p) => p.x_m)).toEqual([360, 600, 840]);
     expect(parse(readFileSync(c.sourceFile, 'utf8')).simulation.seed).toBeTypeOf('number');
   });

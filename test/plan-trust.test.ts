@@ -99,7 +99,9 @@ describe('two beams (REFERENCES.md section 2 crossing-angle table; Stawiarski et
     expect(t.dopW[0]).toBeNaN(); // not resolved with two beams
     expect(Math.abs(t.minCrossing_deg[0] - 60)).toBeLessThan(1e-9); // construction: exactly 60 degrees
     expect([t.passU[0], t.passV[0], t.passW[0]]).toEqual([1, 1, 0]);
-    expect(t.category[0]).toBe(TrustCategory.w_not_resolved);
+    // Two scanners are planned for u and v (plan/components.ts): the cell counts as trusted for those.
+    expect(t.category[0]).toBe(TrustCategory.trusted);
+    expect(t.passTarget[0]).toBe(1);
     // the same geometry with 'none': the retrieval masks two-instrument cells, so nothing passes
     const none = planCampaign({ ...camp, retrieval: { ...camp.retrieval, twoInstrumentAssumption: 'none' } }, { layout: false, pointing: false }).planes[0].trust;
     expect([none.passU[0], none.passV[0]]).toEqual([0, 0]);

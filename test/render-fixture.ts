@@ -171,7 +171,10 @@ export function fixtureAnalysis(rows: WakePlaneWindow[]): WakeAnalysis {
         kStar: 0.022, eps: 0.254, kStarSE: 0.001, epsSE: 0.006, kStarCI95: [0.018, 0.026], epsCI95: [0.23, 0.28], epsTheory: 0.2543,
         ct: 0.8, ctSource: 'value', hubSpeed_ms: 8, nPlanes: 4, dof: 2, rmse: 0.004, residuals: [], ok: true, note: '',
       },
-      topHat: { k: 0.075, ct: 0.8, kNote: 'common practice onshore default' },
+      topHat: {
+        k: 0.075, ct: 0.8, kNote: 'fitted to the centreline deficits of 4 planes', kDefault: 0.04, turbulenceIntensity: 0.1, kFit: 0.075, kFitSE: 0.004,
+        kFitCI95: [0.062, 0.088], fitPlanes: 4, fitRmse: 0.01, fitOk: true, fitNote: '', kSource: 'fit',
+      },
       gaussianCurve: { x_D: fine, deficit: fine.map((x) => 1 - Math.sqrt(1 - 0.8 / (8 * (0.022 * x + 0.254) ** 2))), width_D: fine.map((x) => 0.022 * x + 0.254) },
       topHatCurve: { x_D: fine, deficit: fine.map((x) => (1 - Math.sqrt(0.2)) / (1 + (0.075 * x) / 0.5) ** 2), width_D: fine.map((x) => 0.5 + 0.075 * x) },
     },

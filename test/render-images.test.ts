@@ -84,7 +84,7 @@ describe('scalar map: geometry in the SVG', () => {
       rotor: { y: yh, z: zh, radius: R }, arrows: { v, w, every: 2, referenceSpeed: 1 },
     });
     const hub = attrs(/<circle class="hub"[^>]*>/.exec(svg)![0]);
-    const rotorR = attrs(/<g class="rotor"><circle [^>]*>/.exec(svg)![0]).r;
+    const rotorR = attrs(/<g class="rotor"[^>]*><circle [^>]*>/.exec(svg)![0]).r;
     const pxPerM = rotorR / R;
     const ref = attrs(/<line class="arrow-ref"[^>]*>/.exec(svg)![0]);
     const refLen = Math.hypot(ref.x2 - ref.x1, ref.y2 - ref.y1); // pixels for 1 m/s
@@ -147,8 +147,9 @@ describe('scalar map: geometry in the SVG', () => {
     // The legend's text (wrapped lines joined back with spaces).
     const legend = /<g class="legend">(.*?)<\/g>/s.exec(svg)![1];
     const words = [...legend.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]).join(' ');
-    expect(words).toContain(`no data (${none} cells)`);
-    expect(words).toContain(`amplification above threshold (${amp} cells)`);
+    // (A no-break space keeps each count with its unit.)
+    expect(words).toContain(`no data (${none}\u00a0cells)`);
+    expect(words).toContain(`amplification above threshold (${amp}\u00a0cells)`);
     // Every masked cell is covered by a hatched run "M xL,yT H xR V yB H xL Z" (0.25 units of overlap right and
     // below): each run's width over its height, times dz/dy, is its number of cells.
     const runs = (code: number) => {
@@ -192,13 +193,14 @@ describe('plane images, geometry maps and summary plots from synthetic results',
     const svg = readFileSync(svgPath, 'utf8');
     expect(svg).toContain('class="marker marker-cross" data-y="15" data-z="95"');
     expect(svg).toContain('class="marker marker-diamond" data-y="9" data-z="92"');
-    const rotorR = attrs(/<g class="rotor"><circle [^>]*>/.exec(svg)![0]).r; // 60 m
-    const e = attrs(/<g class="ellipse"><ellipse [^>]*>/.exec(svg)![0]);
+    const rotorR = attrs(/<g class="rotor"[^>]*><circle [^>]*>/.exec(svg)![0]).r; // 60 m
+    const e = attrs(/<g class="ellipse"[^>]*><ellipse [^>]*>/.exec(svg)![0]);
     // Semi-axes in the rotor's scale: 35 m and 28 m against the 60 m radius, to the 0.01-unit rounding.
     expect(e.rx / rotorR).toBeCloseTo(35 / 60, 3);
     expect(e.ry / rotorR).toBeCloseTo(28 / 60, 3);
-    expect(svg).toContain('u / u_inf');
-    expect(svg).toContain('inflow 8.0 m/s at hub height');
+    // u/u_inf with a real subscript infinity (a tspan), and the inflow speed kept with its unit.
+    expect(svg).toMatch(/u\/u<tspan dy="[0-9.]+" font-size="[0-9.]+">∞<\/tspan>/);
+    expect(svg).toContain('inflow 8.0\u00a0m/s at hub height');
   });
 
   it('writes the summary plots', async () => {
@@ -211,21 +213,31 @@ describe('plane images, geometry maps and summary plots from synthetic results',
 });
 
 describe('renderRun', () => {
-  it('matches wake rows to fields by plane and window and draws geometry maps for the first window of each plane', async () => {
+  it('draws the summary plots and one multi-panel figure per plane, and single windows only on request', async () => {
     const { renderRun } = await import('../src/render/renderRun.ts');
     const c = fixtureCampaign();
     const f0 = fixtureField(c.planes[0], 0), f1 = fixtureField(c.planes[0], 1);
     const runDir = join(dir, 'run');
     const calls: number[] = [];
-    // Only window 1 has a wake row: its image is normalised (u_norm); window 0 shows u in m/s.
-    const recs = await renderRun([f1, f0], fixtureAnalysis([fixtureWake(f1)]), c, runDir, { onField: (d) => calls.push(d), density: 96 });
+    // Default: no single-window images.
+    const plain = await renderRun([f1, f0], fixtureAnalysis([fixtureWake(f1)]), c, join(dir, 'run-default'), { density: 96, onFigure: (w) => calls.push(w) });
+    const plainNames = new Set(plain.map((r) => r.path));
+    expect(plainNames.has('images/summary_deficit.png')).toBe(true);
+    expect(plainNames.has('images/P5D_panels.png')).toBe(true);
+    expect([...plainNames].some((p) => /_w\d+_/.test(p))).toBe(false);
+    expect(calls.at(-1)).toBe(plain.length / 2); // one call per figure (SVG and PNG each)
+    // Every window: only window 1 has a wake row, so its image is normalised (u_norm) and window 0 shows u in m/s.
+    const recs = await renderRun([f1, f0], fixtureAnalysis([fixtureWake(f1)]), c, runDir, { windowImages: 'all', density: 96 });
     const names = new Set(recs.map((r) => r.path));
     expect(names.has('images/P5D_w1_u_norm.png')).toBe(true);
     expect(names.has('images/P5D_w0_u.png')).toBe(true);
     expect(names.has('images/P5D_w0_dopU.png')).toBe(true);
-    expect(names.has('images/P5D_w1_dopU.png')).toBe(false);
-    expect(names.has('images/summary_deficit.png')).toBe(true);
-    expect(calls).toEqual([1, 2]);
+    expect(names.has('images/P5D_w1_dopU.png')).toBe(true);
+    expect(names.has('images/P5D_panels.png')).toBe(true);
+    // A list selects those windows only.
+    const one = await renderRun([f1, f0], undefined, c, join(dir, 'run-one'), { windowImages: [0], density: 96 });
+    expect(one.some((r) => r.path === 'images/P5D_w0_u.png')).toBe(true);
+    expect(one.some((r) => r.path.startsWith('images/P5D_w1_'))).toBe(false);
   });
 });
 
@@ -239,7 +251,7 @@ describe('scalar map: degenerate fields', () => {
     expect(svg).not.toContain('arrow-ref');
     expect(svg).not.toContain('class="band"');
     const words = [...svg.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]).join(' ');
-    expect(words).toContain(`too few instruments (${N} cells)`);
+    expect(words).toContain(`too few instruments (${N}\u00a0cells)`);
     const meta = await sharp(Buffer.from(svg), { density: 72 }).metadata();
     expect(meta.width).toBeGreaterThan(0); // renders
   });

@@ -26,8 +26,10 @@ describe('report HTML (pure)', () => {
     expect(campaign.description).toContain('<script>'); // the fixture really carries markup
     expect(html.toLowerCase()).not.toContain('<script');
     expect(html).toContain('&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;');
-    // Name (title and heading), description, file, warning, assumption, settings, table title/header/cell, plan item.
-    expect(html.split('&lt;script&gt;').length - 1).toBeGreaterThanOrEqual(12);
+    // Name (title and heading), description, warning, assumption, settings, table title/header/cell, plan item. (The
+    // campaign file is shown relative to its own folder, and the "/" of "</script>" ends that folder's name, so the
+    // file itself no longer shows the opening tag.)
+    expect(html.split('&lt;script&gt;').length - 1).toBeGreaterThanOrEqual(11);
   });
 
   it('accounts for samples per instrument: read = accepted + rejected by reason, only reasons that occurred', () => {
@@ -71,13 +73,60 @@ describe('report HTML (pure)', () => {
     expect(html).toMatch(/safety instructions and local regulations/);
   });
 
-  it('shows the first rows of long tables with a link to the full file', () => {
+  it('shows every row of a long table in a frame that scrolls, with a link to the full file', () => {
     const rows = Array.from({ length: 30 }, (_, i) => [i, i * 0.5]);
-    const html = reportHtml(fixtureManifest(campaign, outputs), { wakeTables: [{ title: 'long', columns: ['i', 'half'], rows, link: 'wake/rows.csv' }], maxRows: 25 });
-    expect(html).toContain('First 25 of 30 rows.');
+    const html = reportHtml(fixtureManifest(campaign, outputs), { wakeTables: [{ title: 'long', columns: ['i', 'half'], rows, link: 'wake/rows.csv' }] });
+    expect(html).not.toContain('First 25');
+    expect(html).toContain('<div class="scroll" data-rows="30">');
     expect(html).toContain('<a href="wake/rows.csv">wake/rows.csv</a>');
-    expect(html).toContain('<td class="num">24</td>');
-    expect(html).not.toContain('<td class="num">25</td>');
+    expect(html).toContain('<td class="num">29</td>');
+    expect(html).toMatch(/\.scroll \{ overflow: auto;/); // the frame scrolls both ways
+  });
+
+  it('rounds a value to its uncertainty in table cells, and plain numbers to the decimals of their column', () => {
+    const html = reportHtml(fixtureManifest(campaign, outputs), {
+      wakeTables: [{ title: 'u', columns: ['y_{c} (m) ± s.e.', 'γ (°)'], rows: [[{ value: 12.3456, uncertainty: 0.0712 }, -0.009]], decimals: [undefined, 1] }],
+    });
+    // Two significant digits of the uncertainty (0.071), the value to the same decimal place (GUM 7.2.6, from memory).
+    expect(html).toContain('<td class="num">12.346\u00a0\u00b1\u00a00.071</td>');
+    expect(html).toContain('<td class="num">0.0</td>'); // -0.009 to one decimal is 0.0, never "−0.0"
+    expect(html).toContain('<th class="num">y<sub>c</sub> (m) ± s.e.</th>');
+  });
+
+  it('shows paths relative to the campaign folder and the manifest\'s own times and memory', () => {
+    const m = fixtureManifest(campaign, outputs, {
+      campaign: { name: 'c', file: '/data/invented/site/campaign.yaml', sha256: 'ab', description: '' },
+      inputs: [{ file: '/data/invented/site/data/lid-a.csv', instrument: 'lid-a', bytes: 1, sha256: 'cd' }],
+      settings: { sourceFile: '/data/invented/site/campaign.yaml', baseDir: '/data/invented/site', instruments: [{ files: ['/data/invented/site/data/lid-a.csv'] }] },
+      timings_s: { ingest: 1.23456, images: 0.5, total: 2.71828 },
+      peakRss_bytes: 123.4 * 2 ** 20,
+    });
+    const html = reportHtml(m);
+    expect(html).not.toContain('/data/invented');
+    expect(html).toContain('>data/lid-a.csv<');
+    expect(html).toContain('&quot;baseDir&quot;: &quot;.&quot;');
+    expect(html).toContain('&quot;sourceFile&quot;: &quot;campaign.yaml&quot;');
+    // Three decimals of the manifest's seconds; memory in MiB with one decimal.
+    expect(html).toContain('<td>ingest</td><td class="num">1.235</td>');
+    expect(html).toContain('<td>total</td><td class="num">2.718</td>');
+    expect(html).toContain('2.718 s (manifest: timings_s.total)');
+    expect(html).toContain('123.4 MiB (manifest: peakRss_bytes)');
+  });
+
+  it('puts the planner\'s maps in the planner section and the others under Figures', () => {
+    const recs: OutputRecord[] = [
+      ...outputs,
+      { kind: 'image', path: 'plan/trust_P5D.svg', plane: 'P5D', description: 'trust map' },
+      { kind: 'image', path: 'images/P5D_panels.svg', plane: 'P5D', description: 'u/u_inf of all windows' },
+    ];
+    const html = reportHtml(fixtureManifest(campaign, recs), { planSummary: { items: [['a', 'b']] } });
+    const plan = /<section id="plan">([\s\S]*?)<\/section>/.exec(html)![1];
+    const figs = /<section id="images">([\s\S]*?)<\/section>/.exec(html)![1];
+    expect(plan).toContain('src="plan/trust_P5D.svg"');
+    expect(figs).not.toContain('plan/trust_P5D.svg');
+    expect(figs).toContain('src="images/P5D_panels.svg"');
+    expect(figs.indexOf('summary_deficit')).toBeLessThan(figs.indexOf('P5D_panels')); // summary, planes, windows
+    expect(figs.indexOf('P5D_panels')).toBeLessThan(figs.indexOf('P5D_w0_u_norm'));
   });
 
   it('copes with an empty run: no instruments, windows, outputs or timings', () => {
@@ -95,6 +144,19 @@ describe('report HTML (pure)', () => {
     const tables = wakeReportTables(fixtureAnalysis([fixtureWake(f)]), { rows: 'wake/rows.csv' });
     expect(tables.map((t) => t.title)).toEqual(['Per plane and window', 'Downstream summary (near-aligned windows)', 'Wake steering: yaw-offset bins']);
     expect(tables[0].rows[0].slice(0, 4)).toEqual(['P5D', 0, 5, 'ok']);
+    // The centre with its standard error from the fit (fixture: y_c = 15 m, s.e. 0.2 m).
+    expect(tables[0].rows[0][8]).toEqual({ value: 15, uncertainty: 0.2 });
     expect(tables[0].link).toBe('wake/rows.csv');
+  });
+
+  it('gives the wake track of a horizontal plane its own table and headers', () => {
+    const h = fixtureField(campaign.planes[1], 0);
+    const tables = wakeReportTables(fixtureAnalysis([fixtureWake(h)]), { tracks: 'wake/tracks.csv' });
+    const track = tables.find((t) => t.title.startsWith('Horizontal planes'))!;
+    expect(track.columns).toEqual(['plane', 'window', 'x (m)', 'x/D', 'y_{c} (m) ± s.e.', 'σ_{y} (m)', 'amplitude']);
+    // Fixture track: x = 255 m (D = 120 m), y_c = 14 m with s.e. 1 m, sigma_y 25 m, amplitude 0.4.
+    expect(track.rows[0]).toEqual(['H90', 0, 255, 255 / 120, { value: 14, uncertainty: 1 }, 25, 0.4]);
+    expect(track.rows.length).toBe(6);
+    expect(track.link).toBe('wake/tracks.csv');
   });
 });

@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { bpEpsilon, gaussianAmplitude, gaussianSigma_D, topHatDeficit, kStarFromTurbulence } from '../src/wake/wakeModels.ts';
+import { bpEpsilon, fitTopHatK, gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatKFromTurbulence, kStarFromTurbulence } from '../src/wake/wakeModels.ts';
+import { topHatModel } from '../src/wake/downstream.ts';
+import { studentTQuantile } from '../src/wake/stats.ts';
+import type { DownstreamPoint, Stat } from '../src/wake/types.ts';
 import { jimenezDeflection, bastankhahDeflection } from '../src/wake/deflection.ts';
 import { momentumDeficit, thrustMomentum } from '../src/wake/momentum.ts';
 import { thrustCoefficientAt } from '../src/campaign/thrust.ts';
@@ -10,6 +13,49 @@ describe('top-hat model (Jensen 1983; Katic, Hojstrup & Jensen 1986 [from memory
     const want = [0.262919, 0.180502, 0.131538, 0.088446];
     // Printed to 6 decimals: 1e-6 absolute.
     [3, 5, 7, 10].forEach((x, i) => expect(Math.abs(topHatDeficit(x, 0.8, 0.075) - want[i])).toBeLessThan(1e-6));
+  });
+});
+
+describe('top-hat decay constant from the inflow and from the data', () => {
+  it('defaults to k = u*/u_hub = I / 2.5 from the ambient turbulence (Pena, Rethore & van der Laan 2016 [from memory])', () => {
+    // Derivation: k = u*/u_hub (Pena et al. 2016); neutral surface layer sigma_u = 2.5 u* (Panofsky & Dutton 1984,
+    // from memory); I = sigma_u / u_hub, so k = I / 2.5. I = 0.08 -> 0.032, I = 0.1 -> 0.04.
+    expect(topHatKFromTurbulence(0.08)).toBeCloseTo(0.08 / 2.5, 12);
+    expect(topHatKFromTurbulence(0.1)).toBeCloseTo(0.04, 12);
+  });
+
+  it('fits k to centreline deficits as scipy.optimize.curve_fit does (test/reference/tophat_fit.py)', () => {
+    // test/reference/tophat_fit.out: deficits 0.305835533 0.220712023 0.179505900 0.125525513 at x/D = 3, 5, 7, 10,
+    // Ct = 0.76 -> k = 0.050105724, se = 0.000824331. Tolerances: 1e-8 on k (both converge to machine precision; the
+    // printed 9 decimals limit it), 1e-7 on the standard error (same Gauss-Newton covariance, 9 printed decimals).
+    const fit = fitTopHatK([3, 5, 7, 10], [0.305835533, 0.220712023, 0.1795059, 0.125525513], 0.76, studentTQuantile);
+    expect(fit.ok).toBe(true);
+    expect(Math.abs(fit.k - 0.050105724)).toBeLessThan(1e-8);
+    expect(Math.abs(fit.se - 0.000824331)).toBeLessThan(1e-7);
+    expect(fit.n).toBe(4);
+    // 95 % interval: Student t with 3 degrees of freedom, t = 3.182446 (scipy.stats.t.ppf(0.975, 3), test/reference/wake_stats.out).
+    expect(fit.ci95[1] - fit.k).toBeCloseTo(3.182446 * fit.se, 6);
+    // One plane: exact, k = (sqrt(a / d) - 1) / (2 x) = 0.059703170 for x = 5, d = 0.2 (same script).
+    const one = fitTopHatK([5], [0.2], 0.76, studentTQuantile);
+    expect(Math.abs(one.k - 0.05970317)).toBeLessThan(1e-8);
+    expect(one.se).toBeNaN();
+    // Deficits the model cannot reach (at or above 1 - sqrt(1 - Ct) = 0.51 for Ct = 0.76) are left out.
+    expect(fitTopHatK([3, 5], [0.6, 0.2], 0.76, studentTQuantile).n).toBe(1);
+    expect(fitTopHatK([3], [0.6], 0.76, studentTQuantile).ok).toBe(false);
+  });
+
+  it('uses the fit when the planes allow, else the default from the turbulence intensity', () => {
+    const st = (mean: number): Stat => ({ mean, sd: NaN, n: 1, ci95: NaN });
+    const pt = (x: number, d: number) => ({ x_D: x, centreDeficit: st(d) }) as unknown as DownstreamPoint;
+    const fitted = topHatModel([pt(5, 0.2), pt(7, 0.15)], 0.76, 0.08);
+    expect(fitted.kSource).toBe('fit');
+    expect(fitted.k).toBe(fitted.kFit);
+    expect(fitted.kDefault).toBeCloseTo(0.032, 12);
+    const none = topHatModel([pt(3, 0.7)], 0.76, 0.08);
+    expect(none.kSource).toBe('inflow');
+    expect(none.k).toBeCloseTo(0.032, 12);
+    expect(none.kNote).toMatch(/k = 0\.4 I with I = 0\.08/);
+    expect(topHatModel([pt(5, 0.2)], 0.76, 0.08, 0.075).k).toBe(0.075);
   });
 });
 

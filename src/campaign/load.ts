@@ -89,13 +89,25 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   const baseDir = file === '<memory>' ? process.cwd() : dirname(file);
   const abs = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
 
+  const turbines = resolveTurbines(c, abs, bad);
+  // Instruments on a nacelle sit on the first turbine.
+  const host = turbines[0];
   const ids = new Set<string>();
   const instruments: Instrument[] = c.instruments.map((ins, index) => {
     const where = ['instruments', index];
     if (ids.has(ins.id)) bad([...where, 'id'], 'instrument ids must be unique', ins.id);
     ids.add(ins.id);
     let position: Vec3 = [NaN, NaN, NaN];
-    if (ins.position_m && ins.position_wgs84) {
+    const beamFrame = ins.beamFrame ?? (ins.role === 'nacelle' ? 'nacelle' : 'site');
+    const mount: Vec3 = ins.mount_m ? [...ins.mount_m] : [0, 0, host.hubHeight_m];
+    if (beamFrame === 'nacelle') {
+      if (!host.series) {
+        bad([...where, 'beamFrame'], 'beam angles relative to the nacelle need the nacelle direction at each sample: give turbine.series (time, yaw_deg), or beamFrame: site if the angles are already site azimuths');
+      }
+      if (ins.position_m || ins.position_wgs84) bad(where, 'an instrument on the nacelle (beamFrame nacelle) is placed by mount_m [forward, left, up] from the tower base, not by position_m');
+      // Nominal site position: the mount with the nacelle facing north (the ingest turns it with the nacelle).
+      position = [host.position[0] - mount[1], host.position[1] + mount[0], host.position[2] + mount[2]];
+    } else if (ins.position_m && ins.position_wgs84) {
       bad(where, 'give either position_m or position_wgs84, not both');
     } else if (ins.position_m) {
       position = [...ins.position_m];
@@ -117,11 +129,18 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       columns: ins.columns,
       radialVelocitySign: ins.radialVelocitySign,
       scan: ins.scan,
+      role: ins.role,
+      beamFrame,
+      mount,
+      orientationSeries: ins.orientationSeries ? { file: abs(ins.orientationSeries.file), columns: ins.orientationSeries.columns } : undefined,
+      profile: ins.profile,
+      nacelle: ins.nacelle,
+      track: ins.track,
     };
   });
+  checkRoles(instruments, c.planes.length, bad);
   if (instruments.length > 255) bad(['instruments'], 'at most 255 instruments', instruments.length);
 
-  const turbines = resolveTurbines(c, abs, bad);
   const planeIds = new Set<string>();
   const planes: PlaneSpec[] = c.planes.map((p, index) => {
     const where = ['planes', index];
@@ -167,6 +186,12 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       ? c.windDirection
       : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns };
   const inflow = c.inflow.kind === 'series' ? { ...c.inflow, file: abs(c.inflow.file) } : c.inflow;
+  if (inflow.kind === 'profile') {
+    const ref = instruments.find((i) => i.id === inflow.instrument);
+    if (!ref || ref.role !== 'profiler') {
+      bad(['inflow', 'instrument'], `must name a profiler of this campaign (profilers: ${instruments.filter((i) => i.role === 'profiler').map((i) => i.id).join(', ') || 'none'})`, inflow.instrument);
+    }
+  }
 
   let windows = c.windows;
   if (windows.kind === 'list') {
@@ -286,3 +311,30 @@ export function campaignJsonSchema(): unknown {
 }
 
 export type { CampaignInput };
+
+/** Each role has its settings and no other role's; plane scanners need planes. */
+function checkRoles(instruments: Instrument[], planeCount: number, bad: (path: KeyPath, rule: string, received?: unknown) => void): void {
+  const need = { profiler: 'profile', nacelle: 'nacelle', tracker: 'track' } as const;
+  for (const ins of instruments) {
+    const where = ['instruments', ins.index];
+    for (const [role, key] of Object.entries(need)) {
+      const has = ins[key] !== undefined;
+      if (ins.role === role && !has) bad([...where, key], `an instrument with role ${role} needs its ${key} settings`);
+      if (ins.role !== role && has) bad([...where, key], `${key} settings belong to role ${role}, but the instrument has role ${ins.role}`);
+    }
+    if (ins.orientationSeries && ins.beamFrame !== 'nacelle') bad([...where, 'orientationSeries'], 'an inclinometer series applies to instruments on the nacelle (beamFrame nacelle)');
+    const n = ins.nacelle;
+    if (n) {
+      const upper = n.beams.filter((b) => b.elevation_deg > 0).length, lower = n.beams.filter((b) => b.elevation_deg < 0).length;
+      if (n.beams.length === 3) bad([...where, 'nacelle', 'beams'], 'give 2 beams (one pair) or 4 (an upper and a lower pair)', n.beams.length);
+      if (n.beams.length === 4 && (upper !== 2 || lower !== 2)) bad([...where, 'nacelle', 'beams'], '4 beams must form an upper pair (elevation > 0) and a lower pair (elevation < 0)');
+    }
+    const p = ins.profile;
+    if (p?.pattern && p.mode === 'dbs' && p.pattern.azimuths_deg.length !== 4) {
+      bad([...where, 'profile', 'pattern', 'azimuths_deg'], 'a DBS pattern has 4 slanted beams (add vertical: true for the fifth)', p.pattern.azimuths_deg);
+    }
+  }
+  if (planeCount === 0 && instruments.some((i) => i.role === 'plane')) {
+    bad(['planes'], 'plane scanners (role plane, the default) need at least one plane');
+  }
+}

@@ -58,7 +58,8 @@ export function plausibilityWarnings(c: Campaign): string[] {
   for (const ins of c.instruments) {
     const [e, n, u] = ins.position;
     const d = Math.hypot(e - hub[0], n - hub[1], u - hub[2]);
-    if (d < R) {
+    // Instruments on the nacelle (beamFrame nacelle) sit at the hub by design.
+    if (d < R && ins.beamFrame !== 'nacelle') {
       out.push(`instruments[${ins.index}] (${ins.id}): stands ${d.toFixed(1)} m from the hub, within the rotor radius (${R} m): the rotor would sweep through it; check position_m (east, north, up, metres) and turbine.position_m`);
     }
     if (u < c.site.groundLevel_m - 1) {

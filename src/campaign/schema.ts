@@ -14,6 +14,8 @@
  */
 import { z } from 'zod';
 import { planSchema } from '../plan/schema.ts';
+import { beamFrameSchema, mountSchema, nacelleSchema, orientationSeriesSchema, profileInflowSchema, profileSchema, roleSchema, trackSchema } from './geometrySchema.ts';
+import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
@@ -97,6 +99,14 @@ const instrumentSchema = z
       .strict()
       .default({ dwell_s: 1, slewRate_degs: 30 })
       .describe('scanner timing for the planner'),
+    // Single-instrument geometries (geometrySchema.ts).
+    role: roleSchema,
+    beamFrame: beamFrameSchema,
+    mount_m: mountSchema,
+    orientationSeries: orientationSeriesSchema,
+    profile: profileSchema.optional().describe('profiler settings (role profiler)'),
+    nacelle: nacelleSchema.optional().describe('nacelle-mounted instrument settings (role nacelle)'),
+    track: trackSchema.optional().describe('wake-tracking settings (role tracker)'),
   })
   .strict();
 
@@ -299,7 +309,7 @@ export const campaignSchema = z
       .optional()
       .describe('the turbines in view (a row, a farm): each with its own position, size, thrust curve and series; listed after `turbine` when both are given'),
     instruments: z.array(instrumentSchema).min(1),
-    planes: z.array(planeSchema).min(1),
+    planes: z.array(planeSchema).default([]).describe('measurement planes of the plane scanners (at least one when an instrument has role plane)'),
     qc: z
       .object({
         cnr_db: z
@@ -360,6 +370,7 @@ export const campaignSchema = z
         z.object({ kind: z.literal('plane'), law: z.enum(['power', 'log']).default('power') }).strict().describe('fit the undisturbed cells of each plane'),
         z.object({ kind: z.literal('fixed'), speed_ms: finite().positive(), height_m: finite().positive(), law: z.enum(['power', 'log']).default('power'), alpha: finite().default(0.2), z0_m: finite().positive().default(0.03) }).strict(),
         seriesFile.extend({ kind: z.literal('series') }).describe('reference series with columns time, height_m, speed_ms, direction_deg'),
+        profileInflowSchema,
       ])
       .default({ kind: 'plane', law: 'power' })
       .describe('inflow reference for the deficit; default: fit the plane itself'),
@@ -375,9 +386,10 @@ export const campaignSchema = z
         dir: z.string().min(1).default('output').describe('output root, relative to the campaign file\'s folder (like the data files); results go to <dir>/<name>; default "output"'),
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
+        figures: figuresSchema.default(FIGURES_DEFAULT).describe('which figures to draw and on which scales (see src/campaign/figures.ts)'),
       })
       .strict()
-      .default({ dir: 'output', writeRejected: true, images: true }),
+      .default({ dir: 'output', writeRejected: true, images: true, figures: FIGURES_DEFAULT }),
     simulation: z
       .record(z.string(), z.unknown())
       .optional()

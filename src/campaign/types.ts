@@ -3,6 +3,7 @@
  * up, metres), every plane in metres. This is what the rest of wakeplane consumes.
  */
 import type { CampaignParsed, ColumnMap } from './schema.ts';
+import type { NacelleSettings, ProfileSettings, TrackSettings } from './geometrySchema.ts';
 
 export type Vec3 = [number, number, number];
 
@@ -32,6 +33,17 @@ export interface Instrument {
   columns: ColumnMap;
   radialVelocitySign: 'away' | 'toward';
   scan: { dwell_s: number; slewRate_degs: number };
+  /** What the instrument does (campaign key role); plane scanners feed the planes. */
+  role: 'plane' | 'profiler' | 'nacelle' | 'tracker';
+  /** Frame of the reported beam angles: site, or nacelle (turned by the nacelle direction at each sample). */
+  beamFrame: 'site' | 'nacelle';
+  /** beamFrame nacelle: beam origin in the nacelle frame [forward, left, up] from the tower base, metres. */
+  mount: Vec3;
+  /** Inclinometer series (time, tilt_deg, roll_deg) of a nacelle-mounted instrument. */
+  orientationSeries?: SeriesRef;
+  profile?: ProfileSettings;
+  nacelle?: NacelleSettings;
+  track?: TrackSettings;
 }
 
 export interface PlaneSpec {

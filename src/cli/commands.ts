@@ -17,13 +17,14 @@ import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
 import { createProgress } from './progress.ts';
 import type { PlanSummary } from '../plan/index.ts';
+import type { WindowImages } from '../campaign/figures.ts';
 
 // The simulator, the planner and (through the stages) the image stack load only in the commands that use them.
 const simulator = () => import('../sim/simulate.ts');
 const planner = () => import('../pipeline/plan.ts');
 
 /** Every command, in the order of the help. */
-export const COMMAND_NAMES = ['demo', 'run', 'check', 'plan', 'simulate', 'schema'];
+export const COMMAND_NAMES = ['demo', 'run', 'render', 'check', 'plan', 'simulate', 'schema'];
 
 /** The package's own folder: the nearest one above this module holding package.json (src/cli/ or dist/). */
 function packageRoot(): string {
@@ -33,15 +34,30 @@ function packageRoot(): string {
 }
 const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
-/** Every demo `demo` runs, in order: the single turbine, then the row of three on rolling ground. */
-export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'tarnwick', 'campaign.yaml')];
+/**
+ * The demos, in order: three scanners crossing in planes behind one turbine; a site with profilers, nacelle
+ * instruments and a tracker; a row of three turbines on rolling ground with their power series.
+ */
+export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'fernhollow', 'campaign.yaml'), join(REPO_ROOT, 'scenarios', 'tarnwick', 'campaign.yaml')];
 
 interface Common {
   out?: string;
   images?: boolean;
   quiet: boolean;
   clean: boolean;
+  'window-images'?: string | string[];
 }
+
+/** The --window-images choices (none | all | every:N | 0,3,7, and bins:...), parsed; {} when not given. */
+async function windowImagesOption(a: { 'window-images'?: string | string[] }): Promise<{ windowImages?: WindowImages; binImages?: WindowImages }> {
+  // Given twice (windows and bins), yargs collects the values in an array.
+  const t = a['window-images'];
+  if (t === undefined || t.length === 0) return {};
+  const { parseImageSelection } = await import('../render/figureSelection.ts');
+  return parseImageSelection(t);
+}
+
+const WINDOW_IMAGES_HELP = 'images of single windows: none, all, every:N or a list such as 0,3,7; of condition bins: bins:all, bins:0,2 (repeat the option for both; default: the campaign\'s output.figures)';
 
 function say(quiet: boolean, text: string): void {
   if (!quiet) process.stdout.write(text.endsWith('\n') ? text : text + '\n');
@@ -60,7 +76,8 @@ function outRootOf(c: Campaign, out: string | undefined): string {
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
   const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan }) });
+  const selection = await windowImagesOption(a);
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan, ...selection }) });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
   if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
@@ -75,11 +92,12 @@ export function commands(y: Argv): Argv {
       .option('out', { type: 'string', describe: 'output root folder, relative to the working directory (default: the campaign\'s output.dir, relative to the campaign file)' })
       .option('images', { type: 'boolean', describe: 'render images and the report (default: the campaign\'s output.images; --no-images to skip)' })
       .option('clean', { type: 'boolean', default: false, describe: 'also remove unfinished folders of stopped runs whose state cannot be proven (another host, an unknown process)' })
-      .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' });
+      .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' })
+      .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP });
   return y
     .command(
       'demo',
-      'simulate the built-in demo campaigns (one turbine; a row of three on rolling ground) if their data are missing, then run the whole job and the planner on each',
+      'simulate the built-in demo campaigns if their data are missing, then run the whole job and the planner on each',
       (yy) => common(yy).option('regenerate', { type: 'boolean', default: false, describe: 'simulate again even if the data exist' }),
       async (a) => {
         for (const file of DEMO_CAMPAIGNS) {
@@ -106,6 +124,24 @@ export function commands(y: Argv): Argv {
       },
     )
     .command(
+      'render <folder>',
+      'redo the figures and the report of a finished run folder from its tables, without reading the samples again',
+      (yy) =>
+        yy
+          .positional('folder', { type: 'string', describe: 'run folder (holding manifest.json)' })
+          .option('window-images', { type: 'string', describe: WINDOW_IMAGES_HELP })
+          .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
+      async (a) => {
+        const selection = await windowImagesOption(a as { 'window-images'?: string | string[] });
+        const { renderRunFolder } = await import('../pipeline/renderFolder.ts');
+        const progress = createProgress(process.stderr, { quiet: a.quiet as boolean });
+        const r = await renderRunFolder(a.folder as string, { ...selection, progress });
+        const rel = relative(process.cwd(), r.runDir);
+        const where = rel && !rel.startsWith('..') ? rel : r.runDir;
+        say(a.quiet as boolean, `rendered ${where}/: ${r.images} figures (SVG and PNG) and report.html in ${r.seconds.toFixed(1)} s${r.removed ? `; ${r.removed} files of images no longer drawn removed` : ''}`);
+      },
+    )
+    .command(
       'check <campaign>',
       'validate a campaign and everything a run would read (data files, headers, series, output folder); print it as resolved; exit 1 when a run would fail',
       (yy) =>
@@ -121,7 +157,7 @@ export function commands(y: Argv): Argv {
           `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,
           ...c.turbines.map((t) => `  turbine ${t.id}: rotor ${t.rotorDiameter_m} m, hub ${t.hubHeight_m} m at (${t.position.join(', ')})${t.series ? ', series' : ''}`),
           ...(c.site.terrain ? [`  terrain ${c.site.terrain.format} ${c.site.terrain.file}${c.site.terrain.crs ? ` (${c.site.terrain.crs})` : ''}`] : []),
-          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
+          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}${i.role === 'plane' ? '' : `, ${i.role}`}) ${i.beamFrame === 'nacelle' ? `on the nacelle, mount forward ${i.mount[0]} left ${i.mount[1]} up ${i.mount[2]} m, beams relative to the nacelle axis` : `at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m`}, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
           ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
           `  results: ${relative(process.cwd(), target) || target}${existsSync(target) ? ' (an earlier result there would be kept as .replaced-...)' : ''}`,
           ...pre.warnings.map((w) => `warning: ${w}`),

@@ -11,6 +11,9 @@ import type { CellAccumulator } from './accumulator.ts';
 export interface WindowFrame {
   dE: number;
   dN: number;
+  /** Window start (Unix s; -Infinity for a whole-record window) and its first sample time so far. */
+  start_s: number;
+  first_s: number;
 }
 
 export interface SampleTarget {

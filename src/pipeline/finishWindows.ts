@@ -20,6 +20,7 @@ import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import type { Counters } from './ingest.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
 import type { RunStage, StageContext } from './run.ts';
+import type { GeometryFinisher } from './geometryFinish.ts';
 
 /** A window whose samples are all in: its definition, bounds, rotor-frame direction and accumulators per target. */
 export interface FinishedWindow {
@@ -57,6 +58,8 @@ export class WindowFinisher {
     private readonly stageCtx: StageContext,
     private readonly counters: Counters,
     conditionSeries: ConditionSeries,
+    /** The sibling geometries (profiles, nacelle instruments, trackers), finished before each window's planes. */
+    private readonly geometry?: GeometryFinisher,
   ) {
     this.ensembles = new Ensembles(c, conditionSeries, keyCountOf(planes, c.instruments.length), c.instruments.length);
   }
@@ -90,6 +93,7 @@ export class WindowFinisher {
     const ordinal = this.windows.length;
     const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
     const { stats, outliers } = robustFilter(w.accs[0], this.settings.robust);
+    const geoOutliers = this.geometry?.window(w, ordinal);
     const fields = retrieveStats(stats, this.planes, info, w.direction_deg, this.settings);
     const outlierCount = outliers.reduce((a, b) => a + b, 0);
     // With disjoint windows every sample is in one window: its outliers are run-level rejections. With
@@ -98,6 +102,10 @@ export class WindowFinisher {
       for (let i = 0; i < outliers.length; i++) {
         this.counters.accepted[i] -= outliers[i];
         this.counters.reject(i, REJECT_REASONS.indexOf('outlier'), outliers[i]);
+        if (geoOutliers?.[i]) {
+          this.counters.accepted[i] -= geoOutliers[i];
+          this.counters.reject(i, REJECT_REASONS.indexOf('outlier'), geoOutliers[i]);
+        }
       }
     }
     this.times.retrieval += (performance.now() - tr) / 1000;
@@ -111,6 +119,7 @@ export class WindowFinisher {
     if (this.ensembles.enabled) {
       const values = this.ensembles.values(w, rows);
       record.bin = this.ensembles.add(ordinal, w, stats, values);
+      this.geometry?.assignBin(record.bin, w);
       record.conditions = Object.fromEntries(this.ensembles.specs.map((b, k) => [b.variable, values[k]]));
     }
   }
@@ -121,6 +130,7 @@ export class WindowFinisher {
     if (!e.enabled) return;
     const tr = performance.now();
     const bins = e.retrieve(this.planes, this.settings);
+    this.geometry?.solveBins();
     this.times.retrieval += (performance.now() - tr) / 1000;
     manifest.ensembles = e.summary().map((b) => ({ bin: b.index, label: b.label, windows: b.windows, empty: b.windows.length === 0 }));
     const empty = manifest.ensembles.filter((b) => b.empty).length;

@@ -15,10 +15,13 @@
  * Per sample, in this order (the first failing rule names the rejection): CNR below qc.cnr_db.min (low_cnr);
  * CNR above qc.cnr_db.max (hard_target_cnr); |v_r| above qc.radialVelocityLimit_ms; in no window
  * (outside_windows); every window already finished (out_of_time_order); no wind direction for the window;
+ * for instruments on the nacelle, no nacelle direction at the sample time (no_nacelle_direction) or a forward-looking
+ * beam outside +/-90 degrees of the axis (wrong_beam_frame);
  * with a terrain model, the point outside it (outside_terrain); the measurement point lower than qc.groundClearance_m
- * above the ground under it (below_ground: ground or hard-target returns); with a terrain model, the beam passing
- * below the ground on its way to the point (beam_blocked: a hill between instrument and point); outside every
- * plane's thickness or grid (outside_planes). Samples without CNR (no column) pass the CNR rules.
+ * above the ground under it (below_ground: ground or hard-target returns); with a terrain model, the beam of a
+ * ground-based instrument passing below the ground on its way to the point (beam_blocked: a hill between instrument
+ * and point); outside its target (planes: outside_planes; profilers, nacelle instruments, trackers: their own
+ * reasons). Samples without CNR (no column) pass the CNR rules.
  * With overlapping windows a sample is added to every window containing it (in each window's own rotor frame) and
  * counted once: accepted when it fell in a plane in at least one of them.
  *
@@ -36,6 +39,7 @@ import type { Campaign } from '../campaign/types.ts';
 import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
+import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import type { SampleTarget } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow } from '../io/batch.ts';
@@ -63,6 +67,11 @@ export interface IngestOptions {
   targets: SampleTarget[];
   /** Target index of each instrument's samples (-1: none; its samples are counted outside_planes). */
   targetOf: Int32Array;
+  /**
+   * Per instrument: its nacelle frame when its beam angles are nacelle-relative (geometry/nacelle.ts), turning each
+   * sample's beam with the nacelle direction at its time; undefined for instruments with site-frame angles.
+   */
+  nacelleFrames?: (NacelleFrame | undefined)[];
   /** The window plan, given the earliest sample time of the run (NaN when no file has a sample). */
   windowPlan(firstSample_s: number): WindowPlan;
   /** Wind direction (from, degrees) of the window [start, end); NaN when unknown. */
@@ -146,6 +155,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const curvature = c.site.earthCurvature;
   const targets = opts.targets;
   const targetOf = opts.targetOf;
+  const nacelles = opts.nacelleFrames ?? [];
+  const onNacelle = Uint8Array.from(c.instruments, (i) => (nacelles[i.index] ? 1 : 0));
+  const nb = new Float64Array(6);
+  const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
 
   // Every file of every instrument, read in step; primed with its first batch before the plan is made.
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
@@ -261,26 +274,34 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       }
       if (nDirected === 0) { counters.rejected[ins * NR + R.no_wind_direction]++; continue; }
       const az = b.azimuth[i], el = b.elevation[i];
-      if (az !== lastAz[ins] || el !== lastEl[ins]) {
-        const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
-        const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
-        const m = Rm[ins];
-        nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
-        nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
-        nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
-        lastAz[ins] = az; lastEl[ins] = el;
-        clearTo[ins] = 0; blockedAt[ins] = Infinity;
+      let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
+      if (onNacelle[ins] === 0) {
+        if (az !== lastAz[ins] || el !== lastEl[ins]) {
+          const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
+          const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
+          const m = Rm[ins];
+          nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
+          nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
+          nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
+          lastAz[ins] = az; lastEl[ins] = el;
+          clearTo[ins] = 0; blockedAt[ins] = Infinity;
+        }
+        ne = nE[ins]; nn = nN[ins]; nu = nU[ins]; oe = posE[ins]; on = posN[ins]; ou = posU[ins];
+      } else {
+        // Beam angles relative to the nacelle: turned with the nacelle direction at this sample's time.
+        const miss = nacelles[ins]!.beam(t, az, el, nb);
+        if (miss !== NacelleMiss.none) { counters.rejected[ins * NR + missReason[miss]]++; continue; }
+        ne = nb[0]; nn = nb[1]; nu = nb[2]; oe = nb[3]; on = nb[4]; ou = nb[5];
       }
-      const ne = nE[ins], nn = nN[ins], nu = nU[ins];
       const r = b.range[i] + rOff[ins];
       let pe: number, pn: number, pu: number;
       if (curvature) {
         const elev = Math.asin(Math.max(-1, Math.min(1, nu)));
         const h = beamHeight(r, elev), s = groundDistance(r, elev, undefined, undefined, h);
         const hn = Math.hypot(ne, nn) || 1;
-        pe = posE[ins] + (s * ne) / hn; pn = posN[ins] + (s * nn) / hn; pu = posU[ins] + h;
+        pe = oe + (s * ne) / hn; pn = on + (s * nn) / hn; pu = ou + h;
       } else {
-        pe = posE[ins] + r * ne; pn = posN[ins] + r * nn; pu = posU[ins] + r * nu;
+        pe = oe + r * ne; pn = on + r * nn; pu = ou + r * nu;
       }
       let gz = ground0;
       if (flat) {
@@ -289,7 +310,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         gz = terrain.heightAt(pe, pn);
         if (gz !== gz) { counters.rejected[ins * NR + R.outside_terrain]++; continue; }
         if (pu < gz + clearance) { counters.rejected[ins * NR + R.below_ground]++; continue; }
-        if (r > clearTo[ins]) {
+        // Blocked beams of ground-based instruments (a nacelle instrument's beam moves with the nacelle: not cached).
+        if (onNacelle[ins] === 0 && r > clearTo[ins]) {
           if (r >= blockedAt[ins]) { counters.rejected[ins * NR + R.beam_blocked]++; continue; }
           if (blockedAt[ins] === Infinity) {
             const at = firstBlockedRange(terrain, posVec[ins], ne, nn, nu, clearTo[ins], r, marchStep, curvature);

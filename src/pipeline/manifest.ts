@@ -71,4 +71,6 @@ export interface RunManifest {
   samplesPerSecond: number;
   assumptions: string[];
   warnings: string[];
+  /** Set by `wakeplane render` when it redid the figures and the report of this run folder. */
+  rendered?: { at: string; seconds: number };
 }

@@ -14,10 +14,11 @@ const pc = (x: number) => `${(100 * x).toFixed(1)}%`;
 export function formatPlanSummary(s: PlanSummary, where: string): string {
   const lines = [
     `plan for ${s.campaign} (wind from ${s.direction_deg.toFixed(1)} deg) -> ${where}/plan/`,
-    '  resolved (all three components within the thresholds):',
-    ...s.planes.map((p) => `    ${p.planeId.padEnd(8)} rotor disk ${pc(p.rotor.all).padStart(6)}  plane ${pc(p.plane.all).padStart(6)}  (u ${pc(p.rotor.u)}, v ${pc(p.rotor.v)}, w ${pc(p.rotor.w)} of the disk)`),
-    `    all planes rotor disk ${pc(s.rotor.all)}, whole planes ${pc(s.plane.all)}`,
+    '  resolved (every target component within the thresholds):',
+    ...s.planes.map((p) => `    ${p.planeId.padEnd(8)} ${p.components === 'uvw' ? 'u, v, w' : 'u, v   '} ${p.region} ${pc(p.rotor.all).padStart(6)}  plane ${pc(p.plane.all).padStart(6)}  (u ${pc(p.rotor.u)}, v ${pc(p.rotor.v)}, w ${pc(p.rotor.w)} of the ${p.region})`),
+    ...(s.planes.length ? [`    all planes: region ${pc(s.rotor.all)}, whole planes ${pc(s.plane.all)}`] : []),
   ];
+  for (const g of s.geometries ?? []) lines.push(`  ${g.role} ${g.instrumentId}: ${g.rows.length} ${g.role === 'profiler' ? 'heights' : g.role === 'nacelle' ? 'gates' : 'downstream bins'}${g.notes.length ? `; ${g.notes[0]}` : ''}`);
   const byIns = new Map<string, { t: number; raster: number }>();
   for (const p of s.pointing) {
     const e = byIns.get(p.instrumentId) ?? { t: 0, raster: 0 };
@@ -27,7 +28,7 @@ export function formatPlanSummary(s: PlanSummary, where: string): string {
   if (byIns.size) lines.push(`  time for one pass over every plane: ${[...byIns].map(([id, e]) => `${id} ${e.t.toFixed(0)} s (raster ${e.raster.toFixed(0)} s)`).join(', ')}`);
   if (s.layout?.best) {
     lines.push(
-      `  layout search: ${s.layout.evaluated} layouts; best resolves ${pc(s.layout.best.rotorAll)} of the rotor disk (own layout ${pc(s.layout.own.rotorAll)}, gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`,
+      `  layout search: ${s.layout.evaluated} layouts; best resolves ${pc(s.layout.best.rotorAll)} of the planes' regions (own layout ${pc(s.layout.own.rotorAll)}, gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`,
       `    best positions: ${Object.entries(s.layout.best.positions).map(([id, p]) => `${id} (${p.map((v) => v.toFixed(0)).join(', ')})`).join('; ')}`,
     );
   }

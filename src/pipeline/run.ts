@@ -17,7 +17,7 @@ import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
 import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
-import { readSeries } from '../io/series.ts';
+import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
@@ -25,6 +25,8 @@ import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
+import { runTargets } from './geometryTargets.ts';
+import { GeometryFinisher } from './geometryFinish.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
@@ -67,6 +69,9 @@ export interface RunStage {
   name: string;
   field?(f: FieldResult, ctx: StageContext): Promise<OutputRecord[]>;
   finish?(ctx: StageContext): Promise<OutputRecord[]>;
+  /** Runs after the manifest's end time, timings and peak memory are final, so what it writes (the report) shows
+   * exactly the manifest's figures; its own few milliseconds are not in the timings. */
+  last?: boolean;
 }
 
 export interface StageContext {
@@ -107,6 +112,10 @@ export function accountsFrom(c: Campaign, counters: Counters): { perInstrument: 
     for (const r of REJECT_REASONS) total.rejected[r] += a.rejected[r];
   }
   return { perInstrument: per, total };
+}
+
+function loadInflowSeries(c: Campaign): Series | undefined {
+  return c.inflow.kind === 'series' ? readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']) : undefined;
 }
 
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
@@ -186,7 +195,19 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     };
     const stages = opts.stages ?? [];
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
-    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries);
+    // The plane target takes the plane scanners' samples; profilers, nacelle instruments and trackers go to their own.
+    const planeTarget = new PlaneTarget(
+      planes.map((p) => ({
+        orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
+        origin: planeOrigin(c, p.spec), heights: p.spec.heights,
+      })),
+      c.instruments.length, c.turbine.position,
+    );
+    const rt = runTargets(c, planeTarget);
+    const geometry = rt.targets.length > 1 ? new GeometryFinisher(c, rt, c.qc.robust, loadInflowSeries(c)) : undefined;
+    if (geometry) stageCtx.shared.geometry = geometry.results;
+    if (geometry) stageCtx.shared.profileInflow = geometry.profileInflow;
+    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries, geometry);
     manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
@@ -195,21 +216,14 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     t = performance.now();
     let built: BuiltWindowPlan | undefined = early;
     let outputsSeen = 0, imageCount = 0;
-    // The plane target takes every instrument's samples (sibling geometries would take theirs).
-    const planeTarget = new PlaneTarget(
-      planes.map((p) => ({
-        orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
-        origin: planeOrigin(c, p.spec), heights: p.spec.heights,
-      })),
-      c.instruments.length, c.turbine.position,
-    );
     await ingest(
       {
         campaign: cRead,
         terrain,
         suspicion: inspector,
-        targets: [planeTarget],
-        targetOf: new Int32Array(c.instruments.length).fill(0),
+        targets: rt.targets,
+        targetOf: rt.targetOf,
+        nacelleFrames: rt.nacelleFrames,
         windowPlan(first) {
           built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
           finisher.disjoint = built.plan.disjoint;
@@ -262,13 +276,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
-    // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
-    manifest.finishedAt = new Date().toISOString();
-    manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
-
-    // 4. Later stages: wake summaries, summary plots, planner, report.
+    // 4. Later stages: wake summaries, figures, planner; then the end figures, then the report (a `last` stage).
     for (const stage of stages) {
-      if (!stage.finish) continue;
+      if (!stage.finish || stage.last) continue;
       progress.stage(stage.name);
       t = performance.now();
       const made = await stage.finish(stageCtx);
@@ -276,11 +286,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       progress.count?.('files', made.length);
       lap(stage.name, t);
     }
-
-    // 5. Manifest, then make the result visible.
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
+    for (const stage of stages) {
+      if (!stage.finish || !stage.last) continue;
+      progress.stage(stage.name);
+      outputs.push(...(await stage.finish(stageCtx)));
+    }
+
+    // 5. Manifest, then make the result visible.
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 

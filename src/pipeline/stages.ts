@@ -2,7 +2,8 @@
  * The stages that follow retrieval in a normal run, in order:
  * 1. wake: each field through the per-plane-window analysis as its window finishes (shared.wakeRows maps a field to
  *    its row); at the end the campaign-level summaries and model fits (shared.wake).
- * 2. images: plane images and geometry maps per field (using shared.wakeRows), summary plots at the end.
+ * 2. figures: each field's values and a small panel collected as it passes (using shared.wakeRows); at the end the
+ *    summary plots, one multi-panel figure per plane and the requested single-window images (render/runFigures.ts).
  * 3. plan (optional, `wakeplane demo` and `run --plan`): the planner's outputs under plan/ (shared.plan).
  * 4. report: report.html listing every output recorded before it.
  * The image stack (sharp) and the planner load only when a run uses them, so a run without images starts faster.
@@ -23,7 +24,12 @@ import type { PowerAnalysis } from '../power/analyse.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
-import type { FieldResult } from '../retrieval/types.ts';
+import { geometryStage } from './geometryStage.ts';
+import type { FieldResult, WindowInfo } from '../retrieval/types.ts';
+import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
+import type { FigureCollector } from '../render/runFigures.ts';
+import { readFieldTable } from './fieldTable.ts';
+import type { RunManifest } from './manifest.ts';
 
 /** The series files the wake analysis uses (inflow reference, turbine yaw), loaded once. */
 export function loadWakeInputs(c: Campaign): WakeInputs {
@@ -58,7 +64,8 @@ function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePla
   return (shared.wakeRows ??= new WeakMap<FieldResult, WakePlaneWindow>()) as WeakMap<FieldResult, WakePlaneWindow>;
 }
 
-export function wakeStage(): RunStage {
+/** The wake stage; with `write: false` (wakeplane render) it analyses but leaves the wake tables as they are. */
+export function wakeStage(opts: { write?: boolean } = {}): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
   let site: SiteWakeInputs | undefined;
@@ -69,6 +76,7 @@ export function wakeStage(): RunStage {
     async field(f, ctx) {
       if (!inputs) {
         inputs = loadWakeInputs(ctx.campaign);
+        inputs.profileInflow = ctx.shared.profileInflow as WakeInputs['profileInflow'];
         ctxW = planeWindowContext(ctx.campaign, inputs);
         if (ctx.campaign.turbines.length > 1) site = loadSiteWakeInputs(ctx.campaign, inputs);
       }
@@ -88,10 +96,12 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = site ? summariseSiteWake(rows, ctx.campaign, inputs ?? {}) : summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+      // Steering needs cross planes; a campaign with only horizontal planes (or none) has nothing to say there.
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series && ctx.campaign.planes.some((p) => p.orientation === 'cross')) {
         ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
       ctx.shared.ensembleRows = ensembleRows;
+      if (opts.write === false) return [];
       const out = writeWakeOutputs(a, ctx.runDir, ensembleRows);
       if (site) {
         writeFileAtomic(join(ctx.runDir, 'wake', 'turbine_wakes.csv'), turbineWakesCsv(rows));
@@ -102,21 +112,71 @@ export function wakeStage(): RunStage {
   };
 }
 
-export function imageStage(): RunStage {
+export interface ImageStageOptions {
+  /** Override output.figures.windowImages and binImages (the command line's --window-images). */
+  windowImages?: WindowImages;
+  binImages?: WindowImages;
+}
+
+/** The figure settings of a run: the campaign's, with the command line's choices over them. */
+export function figureSettings(c: Campaign, o: ImageStageOptions = {}): FiguresSettings {
+  const f = { ...FIGURES_DEFAULT, ...(c.output.figures ?? {}) };
+  return { ...f, ...(o.windowImages ? { windowImages: o.windowImages } : {}), ...(o.binImages ? { binImages: o.binImages } : {}) };
+}
+
+/**
+ * The fields of the run folder's field tables a predicate selects, read one at a time: the windows in order, then
+ * the condition bins (ensembles, with their label and pooled windows from the manifest).
+ */
+export async function* fieldsFromTables(c: Campaign, runDir: string, manifest: RunManifest, want: (planeId: string, index: number, ensemble: boolean) => boolean): AsyncIterable<FieldResult> {
+  const planes = new Map(c.planes.map((p) => [p.id, p]));
+  const order = (o: { plane?: string }) => planes.get(o.plane!)!.index;
+  const tables = manifest.outputs.filter((o) => o.kind === 'field-table' && o.plane !== undefined && planes.has(o.plane));
+  const windows = tables.filter((o) => o.window !== undefined).sort((a, b) => a.window! - b.window! || order(a) - order(b));
+  const bins = tables.filter((o) => o.bin !== undefined).sort((a, b) => a.bin! - b.bin! || order(a) - order(b));
+  for (const t of windows) {
+    if (!want(t.plane!, t.window!, false)) continue;
+    const w = manifest.windows[t.window!];
+    const info = w ? { index: t.window!, start_s: w.start_s, end_s: w.end_s, ...(w.kind ? { kind: w.kind as WindowInfo['kind'] } : {}), ...(w.label ? { label: w.label } : {}) } : undefined;
+    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, info);
+  }
+  for (const t of bins) {
+    if (!want(t.plane!, t.bin!, true)) continue;
+    const e = manifest.ensembles?.find((b) => b.bin === t.bin);
+    const members = (e?.windows ?? []).map((k) => manifest.windows[k]).filter(Boolean).map((w) => [w.start_s, w.end_s] as [number, number]).sort((a, b) => a[0] - b[0]);
+    const info: WindowInfo = {
+      index: t.bin!, start_s: members[0]?.[0] ?? NaN, end_s: members.length ? Math.max(...members.map((m) => m[1])) : NaN, kind: 'ensemble',
+      ...(e?.label ? { label: e.label } : {}), members,
+    };
+    yield readFieldTable(join(runDir, t.path), planes.get(t.plane!)!, info);
+  }
+}
+
+export function imageStage(opts: ImageStageOptions = {}): RunStage {
+  let collector: FigureCollector | undefined;
   return {
     name: 'images',
     async field(f, ctx) {
       if (!ctx.images) return [];
-      const { renderGeometryMaps, renderPlaneImages } = await import('../render/planeImages.ts');
-      const wake = wakeRows(ctx.shared).get(f);
-      const all = siteWakeRows(ctx.shared).get(f) ?? [];
-      return [...(await renderPlaneImages(f, wake, ctx.campaign, ctx.runDir, {}, all)), ...(await renderGeometryMaps(f, ctx.campaign, ctx.runDir))];
+      const { FigureCollector } = await import('../render/runFigures.ts');
+      collector ??= new FigureCollector(figureSettings(ctx.campaign, opts).maxPanels, ctx.campaign);
+      collector.add(f, wakeRows(ctx.shared).get(f), siteWakeRows(ctx.shared).get(f));
+      return [];
     },
     async finish(ctx) {
-      const a = ctx.shared.wake as WakeAnalysis | undefined;
-      if (!ctx.images || !a) return [];
-      const { renderSummaryPlots } = await import('../render/summaryPlots.ts');
-      return renderSummaryPlots(a, ctx.campaign, ctx.runDir);
+      if (!ctx.images) return [];
+      const { FigureCollector, renderRunFigures } = await import('../render/runFigures.ts');
+      const { RenderQueue } = await import('../render/renderQueue.ts');
+      const settings = figureSettings(ctx.campaign, opts);
+      return renderRunFigures({
+        campaign: ctx.campaign,
+        settings,
+        collector: collector ?? new FigureCollector(settings.maxPanels),
+        analysis: ctx.shared.wake as WakeAnalysis | undefined,
+        ensembleRows: (ctx.shared.ensembleRows as WakePlaneWindow[] | undefined) ?? [],
+        windowFields: (want) => fieldsFromTables(ctx.campaign, ctx.runDir, ctx.manifest, want),
+        queue: new RenderQueue(ctx.runDir, settings.density, settings.workers),
+      });
     },
   };
 }
@@ -139,21 +199,28 @@ const pc = (x: number) => `${(100 * x).toFixed(1)} %`;
 function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
   const items: [string, string][] = [
     ['Planned wind direction', `${s.direction_deg.toFixed(1)}\u00b0 (${s.directionSource})`],
-    ['Rotor disk resolved in u, v and w (all planes)', pc(s.rotor.all)],
-    ['Planes resolved in u, v and w', pc(s.plane.all)],
+    ['Region resolved in the target components (all planes)', pc(s.rotor.all)],
+    ['Planes resolved in the target components', pc(s.plane.all)],
   ];
   if (s.layout?.best) {
-    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the rotor disk (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
+    items.push(['Best layout found', `${pc(s.layout.best.rotorAll)} of the regions (${s.layout.evaluated} layouts evaluated; gain ${(100 * s.layout.gain.rotorAll).toFixed(1)} points)`]);
   }
+  const geo = (s.geometries ?? []).map((g) => ({
+    title: `${g.role} ${g.instrumentId}`,
+    columns: g.rows.length ? Object.keys(g.rows[0]) : [],
+    rows: g.rows.map((r) => Object.values(r)),
+    link: 'plan/geometries.json',
+    note: g.notes.join(' '),
+  }));
   return {
     title: 'Campaign geometry (planner)',
     items,
     tables: [{
-      title: 'Resolved fraction per plane',
-      columns: ['plane', 'rotor disk u', 'v', 'w', 'all three', 'whole plane all three'],
-      rows: s.planes.map((p) => [p.planeId, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
+      title: 'Resolved fraction per plane (region: rotor disk of a cross plane, rotor shadow band of a horizontal plane)',
+      columns: ['plane', 'target components', 'region', 'region u', 'v', 'w', 'region, target', 'whole plane, target'],
+      rows: s.planes.map((p) => [p.planeId, p.components === 'uvw' ? 'u, v, w' : 'u, v', p.region, pc(p.rotor.u), pc(p.rotor.v), pc(p.rotor.w), pc(p.rotor.all), pc(p.plane.all)]),
       link: 'plan/summary.json',
-    }],
+    }, ...geo],
     notes: s.notes,
   };
 }
@@ -161,6 +228,7 @@ function planExtras(s: PlanSummary): NonNullable<ReportExtras['planSummary']> {
 export function reportStage(): RunStage {
   return {
     name: 'report',
+    last: true,
     async finish(ctx) {
       if (!ctx.images) return [];
       const { writeReport } = await import('../render/report.ts');
@@ -168,8 +236,16 @@ export function reportStage(): RunStage {
       const a = ctx.shared.wake as WakeAnalysis | undefined;
       const plan = ctx.shared.plan as PlanSummary | undefined;
       const extras: ReportExtras = {};
-      if (a) extras.wakeTables = wakeReportTables(a, { rows: join('wake', 'wake_table.csv'), downstream: join('wake', 'downstream.csv'), steering: join('wake', 'steering.csv') });
+      const written = new Set(ctx.manifest.outputs.map((o) => o.path));
+      const has = (p: string) => (written.has(p) ? p : undefined);
+      if (a) {
+        extras.wakeTables = wakeReportTables(a, {
+          rows: has('wake/wake_table.csv'), downstream: has('wake/downstream.csv'), steering: has('wake/steering.csv'), tracks: has('wake/tracks.csv'),
+        });
+      }
       if (plan) extras.planSummary = planExtras(plan);
+      const geo = ctx.shared.geometryReport as ReportExtras['geometry'];
+      if (geo?.length) extras.geometry = geo;
       const power = ctx.shared.power as PowerAnalysis | undefined;
       if (power) extras.wakeTables = [...(extras.wakeTables ?? []), ...(await import('../power/output.ts')).powerReportTables(power)];
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
@@ -177,8 +253,8 @@ export function reportStage(): RunStage {
   };
 }
 
-export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), powerStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+export function defaultStages(opts: { plan?: boolean } & ImageStageOptions = {}): RunStage[] {
+  return [wakeStage(), geometryStage(), powerStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

@@ -11,6 +11,10 @@
  * Each cell gets one category, the first that applies in this order: trusted; fewer than two usable beams (named
  * after the hard limit that removed beams: ground, terrain, rotor, elevation, range, else too_few_instruments); parallel_beams;
  * footprint; probe_model; amplification (u or v fails); w_not_resolved (u and v pass, w does not).
+ *
+ * Target components: what the layout is asked to resolve in a plane (components.ts): u, v and w in a cross plane
+ * with three or more plane scanners; u and v in a horizontal plane (near-horizontal beams do not resolve w) and with
+ * two scanners (w = 0 assumed). "Trusted" and the fraction `all` refer to the target components.
  */
 import { amplification2, amplification3, invertSym3, minCrossingAngle, normalMatrix } from '../geometry/amplification.ts';
 import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
@@ -69,11 +73,16 @@ export interface CellTrust {
   passU: Uint8Array;
   passV: Uint8Array;
   passW: Uint8Array;
+  /** Every target component passes (u, v, w; or u, v: TrustSettings.components). */
+  passTarget: Uint8Array;
   category: Uint8Array;
   reasons: Uint16Array;
 }
 
-type TrustSettings = Pick<PlanSettings, 'maxAmplification' | 'minCrossing_deg' | 'twoInstrumentAssumption'>;
+type TrustSettings = Pick<PlanSettings, 'maxAmplification' | 'minCrossing_deg' | 'twoInstrumentAssumption'> & {
+  /** Components the plane is to resolve. @default 'uvw' */
+  components?: 'uvw' | 'uv';
+};
 
 /**
  * Options: `withCond` (default true) computes the condition number (an eigen-decomposition per cell); the layout
@@ -90,11 +99,13 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     passU: new Uint8Array(nCells),
     passV: new Uint8Array(nCells),
     passW: new Uint8Array(nCells),
+    passTarget: new Uint8Array(nCells),
     category: new Uint8Array(nCells),
     reasons: new Uint16Array(nCells),
   };
   const rows = new Float64Array(3 * beams.length);
   const maxA = s.maxAmplification;
+  const uvOnly = s.components === 'uv';
   for (let c = 0; c < nCells; c++) {
     let k = 0, hard = 0, soft = 0;
     for (const b of beams) {
@@ -147,8 +158,10 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     t.passV[c] = okV && !softFail ? 1 : 0;
     t.passW[c] = okW && !softFail ? 1 : 0;
     t.reasons[c] = reasons;
+    const target = t.passU[c] & t.passV[c] & (uvOnly ? 1 : t.passW[c]);
+    t.passTarget[c] = target;
     let cat: number;
-    if (t.passU[c] && t.passV[c] && t.passW[c]) cat = TrustCategory.trusted;
+    if (target) cat = TrustCategory.trusted;
     else if (k < 2 || (k === 2 && s.twoInstrumentAssumption === 'none'))
       cat = hard & BeamFlag.ground ? TrustCategory.ground : hard & BeamFlag.terrain ? TrustCategory.terrain : hard & BeamFlag.rotor ? TrustCategory.rotor
         : hard & BeamFlag.elevation ? TrustCategory.elevation : hard & BeamFlag.range ? TrustCategory.range : TrustCategory.too_few_instruments;
@@ -166,20 +179,20 @@ export interface Fractions {
   u: number;
   v: number;
   w: number;
-  /** All three components pass. */
+  /** Every target component passes (u, v and w; or u and v where the plane targets only those: passTarget). */
   all: number;
   /** Number of cells counted. */
   cells: number;
 }
 
 /** Fractions of the cells (those with mask[c] = 1, or all) where each component passes. NaN when no cell counts. */
-export function passFractions(t: Pick<CellTrust, 'passU' | 'passV' | 'passW'>, mask?: Uint8Array): Fractions {
+export function passFractions(t: Pick<CellTrust, 'passU' | 'passV' | 'passW'> & { passTarget?: Uint8Array }, mask?: Uint8Array): Fractions {
   let n = 0, u = 0, v = 0, w = 0, all = 0;
   for (let c = 0; c < t.passU.length; c++) {
     if (mask && !mask[c]) continue;
     n++;
     u += t.passU[c]; v += t.passV[c]; w += t.passW[c];
-    all += t.passU[c] & t.passV[c] & t.passW[c];
+    all += t.passTarget ? t.passTarget[c] : t.passU[c] & t.passV[c] & t.passW[c];
   }
   return n ? { u: u / n, v: v / n, w: w / n, all: all / n, cells: n } : { u: NaN, v: NaN, w: NaN, all: NaN, cells: 0 };
 }

@@ -3,13 +3,14 @@
  * coloured by their largest amplification, the others hatched by category), the amplification of w and the condition
  * number of the beam matrix, each written as SVG and PNG under <runDir>/plan/.
  */
-import { join } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { withValues } from '../grid/grid.ts';
 import type { OutputRecord } from '../pipeline/manifest.ts';
+import { axisLabels, windFrom } from '../render/labels.ts';
+import { RenderQueue } from '../render/renderQueue.ts';
 import { scalarMapSvg, type ScalarMapOptions } from '../render/scalarMap.ts';
-import { writeSvgAndPng } from '../render/write.ts';
 import { TrustCategory, trustCategoryName } from './cellTrust.ts';
+import { planeComponents, planeRegion } from './components.ts';
 import type { PlanResult } from './planCampaign.ts';
 import type { PlaneTrust } from './trustMap.ts';
 
@@ -20,13 +21,9 @@ function mapBase(pt: PlaneTrust, campaign: Campaign): Pick<ScalarMapOptions, 'ax
   const p = pt.geometry.plane;
   const D = campaign.turbine.rotorDiameter_m;
   const cross = p.orientation === 'cross';
+  const labels = axisLabels(p.orientation);
   return {
-    axes: {
-      yLabel: 'y (m), positive to the left looking downstream',
-      zLabel: cross ? 'z (m) above ground' : 'x (m) downstream',
-      diameter_m: D,
-      ...(cross ? {} : { zLabelD: 'x / D' }),
-    },
+    axes: { yLabel: labels.yLabel, zLabel: labels.zLabel, diameter_m: D, note: labels.note, ...(labels.zLabelD ? { zLabelD: labels.zLabelD } : {}) },
     rotor: cross ? { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } : undefined,
   };
 }
@@ -45,30 +42,36 @@ export function trustMapGrid(pt: PlaneTrust): { values: Float64Array; codes: Uin
   const names: Record<number, string> = {};
   for (const [cat, code] of codeOf) names[code] = trustCategoryName[cat];
   for (let c = 0; c < n; c++) {
-    if (t.category[c] === TrustCategory.trusted) values[c] = Math.max(t.dopU[c], t.dopV[c], t.dopW[c]);
+    if (t.category[c] === TrustCategory.trusted) values[c] = t.passW[c] ? Math.max(t.dopU[c], t.dopV[c], t.dopW[c]) : Math.max(t.dopU[c], t.dopV[c]);
     else codes[c] = codeOf.get(t.category[c])!;
   }
   return { values, codes, names };
 }
 
-/** Writes the three maps of every plane into `dir` (<runDir>/plan); paths in the records are relative to runDir. */
-export async function writePlanImages(result: PlanResult, campaign: Campaign, dir: string): Promise<OutputRecord[]> {
-  const out: OutputRecord[] = [];
+/**
+ * Writes the three maps of every plane into <runDir>/plan (rendered in parallel, see render/renderQueue.ts); paths in
+ * the records are relative to runDir.
+ */
+export async function writePlanImages(result: PlanResult, campaign: Campaign, runDir: string): Promise<OutputRecord[]> {
+  const figures = campaign.output.figures;
+  const queue = new RenderQueue(runDir, figures?.density ?? 300, figures?.workers);
   const maxA = result.settings.maxAmplification;
   for (const pt of result.planes) {
     const g = pt.geometry.grid;
     const id = pt.geometry.plane.id;
     const base = mapBase(pt, campaign);
-    const sub = `wind from ${result.settings.direction_deg.toFixed(0)} deg; max amplification ${maxA}`;
+    const sub = `${windFrom(result.settings.direction_deg)} \u00b7 maximum error amplification ${maxA}`;
     const tm = trustMapGrid(pt);
+    const comps = planeComponents(pt.geometry.plane, result.instruments.length) === 'uvw' ? 'u, v and w' : 'u and v';
+    const region = planeRegion(pt.geometry.plane);
     const maps: [string, string, ScalarMapOptions][] = [
       [
         `trust_${safe(id)}`,
-        'trust map: cells where u, v and w are resolved, the others by reason',
+        `trust map: cells where ${comps} are resolved, the others by reason`,
         {
-          title: `Plane ${id}: where the planned geometry resolves u, v and w`,
-          subtitle: `${sub}; ${(100 * pt.plane.all).toFixed(0)} % of the plane, ${(100 * pt.rotor.all).toFixed(0)} % of the rotor disk trusted`,
-          colorbarLabel: 'largest amplification of u, v, w (–)',
+          title: `Plane ${id}: where the planned geometry resolves ${comps}`,
+          subtitle: `${sub} \u00b7 ${(100 * pt.plane.all).toFixed(0)}\u00a0% of the plane, ${(100 * pt.rotor.all).toFixed(0)}\u00a0% of the ${region} trusted`,
+          colorbarLabel: 'largest error amplification of the resolved components (–)',
           domain: [1, Math.max(1.5, maxA)],
           contours: false,
           mask: { codes: tm.codes, names: tm.names },
@@ -80,8 +83,8 @@ export async function writePlanImages(result: PlanResult, campaign: Campaign, di
         'error amplification of w',
         {
           title: `Plane ${id}: error amplification of w`,
-          subtitle: `sqrt of the w diagonal of (AᵀA)⁻¹; ${sub}`,
-          colorbarLabel: 'amplification of w (–)',
+          subtitle: `square root of the w diagonal of (A^{T}A)^{\u22121} \u00b7 ${sub}`,
+          colorbarLabel: 'error amplification of w (–)',
           domain: [1, Math.max(2, 2 * maxA)],
           contours: false,
           ...base,
@@ -103,11 +106,9 @@ export async function writePlanImages(result: PlanResult, campaign: Campaign, di
     const values = [tm.values, pt.trust.dopW, pt.trust.cond];
     for (let k = 0; k < maps.length; k++) {
       const [name, description, opts] = maps[k];
-      const svg = scalarMapSvg(withValues(g, values[k]), opts);
-      const paths = await writeSvgAndPng(svg, join(dir, name));
-      for (const p of paths) out.push({ kind: 'image', path: join('plan', p.slice(dir.length + 1)), plane: id, description });
+      await queue.add(scalarMapSvg(withValues(g, values[k]), opts), `plan/${name}`, { plane: id, description });
     }
   }
-  return out;
+  return queue.done();
 }
 

@@ -2,7 +2,8 @@
  * Layout search: move the instruments that have candidate positions (plan.candidates), evaluate each combination
  * with the same trust kernels as the trust maps (beamCells + assessCells), and rank them.
  *
- * Score of a layout: the fraction of the rotor-disk cells (pooled over all planes) where all three components pass;
+ * Score of a layout: the fraction of the region cells (rotor disk of cross planes, rotor shadow band of horizontal
+ * planes; pooled over all planes) where every target component passes (components.ts: u, v, w, or u, v);
  * ties are broken by the fraction of all plane cells where all three pass, then by the u-v fraction of the rotor
  * disk. When the number of combinations exceeds plan.maxCombinations, a seeded random sample of that size is
  * evaluated (reported as `sampled`). Layouts that put two instruments within 1 m of each other are skipped.
@@ -16,6 +17,7 @@ import { assessCells, passFractions, poolFractions, type Fractions } from './cel
 import { combinations } from './combinations.ts';
 import type { PlaneGeometry } from './planeGeometry.ts';
 import type { PlanSettings } from './settings.ts';
+import { planeComponents } from './components.ts';
 
 export interface LayoutScore {
   /** Site-frame positions per instrument (campaign order), metres. */
@@ -66,7 +68,7 @@ export function scoreLayout(
 ): LayoutScore {
   const perPlane = geoms.map((g, gi) => {
     const beams = instruments.map((_, i) => source(i, positions, gi));
-    const t = assessCells(beams, g.grid.ny * g.grid.nz, s, false);
+    const t = assessCells(beams, g.grid.ny * g.grid.nz, { ...s, components: planeComponents(g.plane, instruments.length) }, false);
     return { planeId: g.plane.id, rotor: passFractions(t, g.inRotor), plane: passFractions(t) };
   });
   return { positions, choice, rotor: poolFractions(perPlane.map((p) => p.rotor)), plane: poolFractions(perPlane.map((p) => p.plane)), perPlane };

@@ -12,10 +12,15 @@ import { planeGeometry } from './planeGeometry.ts';
 import { pointingTable, type PointingTable } from './pointing.ts';
 import { resolvePlanSettings, type PlanOptions, type PlanSettings } from './settings.ts';
 import { planeTrust, type PlaneTrust } from './trustMap.ts';
+import { planeComponents, planeRegion } from './components.ts';
+import { planSingleInstruments, type SingleInstrumentPlan } from './singleInstruments.ts';
 
 export interface PlanePlanSummary {
   planeId: string;
   orientation: 'cross' | 'horizontal';
+  /** The components the layout is asked to resolve here (components.ts) and the region its coverage counts. */
+  components: 'uvw' | 'uv';
+  region: string;
   cells: number;
   rotorCells: number;
   rotor: Fractions;
@@ -45,10 +50,15 @@ export interface PlanSummary {
     gain: { rotorAll: number; planeAll: number };
   };
   notes: string[];
+  geometries?: SingleInstrumentPlan[];
 }
 
 export interface PlanResult {
   settings: PlanSettings;
+  /** The plane scanners (role plane), in campaign order: the instruments of the trust maps, pointing and layouts. */
+  instruments: Campaign['instruments'];
+  /** Profilers, nacelle instruments and trackers: their own geometry figures (singleInstruments.ts). */
+  geometries: SingleInstrumentPlan[];
   frame: RotorFrame;
   planes: PlaneTrust[];
   pointing: PointingTable[];
@@ -78,22 +88,28 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
     }
     return g;
   });
-  const positions = campaign.instruments.map((i) => i.position);
-  const planes = geoms.map((g) => planeTrust(campaign.instruments, positions, g, frame, s));
+  // Only plane scanners serve the planes; the other roles have their own figures below.
+  const scanners = campaign.instruments.filter((i) => i.role === 'plane');
+  const positions = scanners.map((i) => i.position);
+  const planes = geoms.map((g) => planeTrust(scanners, positions, g, frame, s));
   const pointing: PointingTable[] = [];
   if (s.pointing)
-    for (const ins of campaign.instruments)
-      for (const pt of planes) pointing.push(pointingTable(ins, ins.position, pt.geometry, pt.beams[ins.index]));
-  const layout = s.layout && Object.keys(s.candidates).length > 0 ? searchLayouts(campaign.instruments, geoms, frame, s, campaign.sourceFile) : undefined;
+    for (const [k, ins] of scanners.entries())
+      for (const pt of planes) pointing.push(pointingTable(ins, ins.position, pt.geometry, pt.beams[k]));
+  const layout = s.layout && Object.keys(s.candidates).length > 0 && scanners.length > 0 ? searchLayouts(scanners, geoms, frame, s, campaign.sourceFile) : undefined;
+  const geometries = planSingleInstruments(campaign, s.direction_deg);
 
   const notes = [
     opts.terrain && !opts.terrain.flat ? 'straight beams over the terrain model (no Earth curvature); beams below the ground flagged terrain' : 'straight beams in the flat site frame (no Earth curvature, no terrain)',
     `beams through the rotor disk of any of the ${campaign.turbines.length} turbine(s) (facing the planned wind) flagged rotor`,
-    `rotor frame from wind direction ${s.direction_deg.toFixed(2)} deg (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
+    `rotor frame from wind direction ${s.direction_deg.toFixed(2)}\u00b0 (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
   ];
   if (campaign.site.earthCurvature) notes.push('site.earthCurvature is true but the planner does not apply it: check long beams');
-  if (campaign.instruments.length < 3) notes.push('fewer than three instruments: w cannot be resolved anywhere');
+  if (scanners.length < 3 && scanners.length > 0) notes.push(`${scanners.length} plane scanner${scanners.length === 1 ? '' : 's'}: w cannot be resolved; the planes are planned for u and v${s.twoInstrumentAssumption === 'w-zero' ? ' (w = 0 assumed)' : ', which needs twoInstrumentAssumption w-zero'}`);
   if (s.twoInstrumentAssumption === 'w-zero') notes.push('cells with two usable beams: u, v from the two-component system assuming w = 0; w not resolved');
+  if (planes.some((p) => p.geometry.plane.orientation === 'horizontal')) notes.push('horizontal planes: planned for u and v over the rotor shadow band (|y| within the rotor outline at the plane height), not a rotor disk; near-horizontal beams leave w poorly resolved');
+  const skipped = Object.keys(s.candidates).filter((id) => !scanners.some((i) => i.id === id));
+  if (skipped.length) notes.push(`candidates of ${skipped.join(', ')} ignored: only plane scanners take part in the layout search`);
   if (layout?.sampled) notes.push(`layout search: ${layout.total} combinations exceed plan.maxCombinations; a random sample of ${layout.evaluated + layout.skippedCoincident} drawn with seed ${layout.seed}`);
 
   const summary: PlanSummary = {
@@ -107,6 +123,8 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
       return {
         planeId: p.geometry.plane.id,
         orientation: p.geometry.plane.orientation,
+        components: planeComponents(p.geometry.plane, scanners.length),
+        region: planeRegion(p.geometry.plane),
         cells: p.plane.cells,
         rotorCells: p.rotor.cells,
         rotor: p.rotor,
@@ -128,6 +146,7 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
       rasterPassTime_s: t.rasterPassTime_s,
     })),
     notes,
+    ...(geometries.length ? { geometries } : {}),
   };
   if (layout) {
     const best = layout.ranked[0];
@@ -141,10 +160,10 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
       best: best && {
         rotorAll: best.rotor.all,
         planeAll: best.plane.all,
-        positions: Object.fromEntries(campaign.instruments.map((ins, i) => [ins.id, best.positions[i]])),
+        positions: Object.fromEntries(scanners.map((ins, i) => [ins.id, best.positions[i]])),
       },
       gain: layout.gain,
     };
   }
-  return { settings: s, frame, planes, pointing, layout, summary };
+  return { settings: s, instruments: scanners, geometries, frame, planes, pointing, layout, summary };
 }

@@ -8,6 +8,7 @@ import { beamCells, type BeamCells } from './beamCells.ts';
 import { assessCells, passFractions, type CellTrust, type Fractions } from './cellTrust.ts';
 import type { PlaneGeometry } from './planeGeometry.ts';
 import type { PlanSettings } from './settings.ts';
+import { planeComponents } from './components.ts';
 
 export interface PlaneTrust {
   geometry: PlaneGeometry;
@@ -28,6 +29,6 @@ export function planeTrust(
   s: PlanSettings,
 ): PlaneTrust {
   const beams = instruments.map((ins, i) => beamCells(ins, positions[i], geom, frame, s));
-  const trust = assessCells(beams, geom.grid.ny * geom.grid.nz, s);
+  const trust = assessCells(beams, geom.grid.ny * geom.grid.nz, { ...s, components: planeComponents(geom.plane, instruments.length) });
   return { geometry: geom, beams, trust, rotor: passFractions(trust, geom.inRotor), plane: passFractions(trust) };
 }

@@ -91,7 +91,7 @@ export function layoutCsv(result: PlanResult, instrumentIds: readonly string[]):
 
 export async function writePlanOutputs(result: PlanResult, campaign: Campaign, runDir: string, opts: { images: boolean }): Promise<OutputRecord[]> {
   const dir = join(runDir, 'plan');
-  const ids = campaign.instruments.map((i) => i.id);
+  const ids = result.instruments.map((i) => i.id);
   const out: OutputRecord[] = [];
   for (const pt of result.planes) {
     const name = `cells_${safe(pt.geometry.plane.id)}.csv`;
@@ -108,8 +108,12 @@ export async function writePlanOutputs(result: PlanResult, campaign: Campaign, r
     writeFileAtomic(join(dir, 'layouts.csv'), layoutCsv(result, ids));
     out.push({ kind: 'plan-layouts', path: join('plan', 'layouts.csv'), description: 'own layout (rank 0) and the best candidate layouts' });
   }
+  if (result.geometries.length) {
+    writeFileAtomic(join(dir, 'geometries.json'), JSON.stringify(result.geometries, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n');
+    out.push({ kind: 'plan-geometries', path: join('plan', 'geometries.json'), description: 'profilers, nacelle instruments and trackers: heights, gates, amplification and coverage' });
+  }
   writeFileAtomic(join(dir, 'summary.json'), JSON.stringify(result.summary, null, 2) + '\n');
   out.push({ kind: 'plan-summary', path: join('plan', 'summary.json'), description: 'resolved fractions, scan times, layout gain' });
-  if (opts.images) out.push(...(await writePlanImages(result, campaign, dir)));
+  if (opts.images) out.push(...(await writePlanImages(result, campaign, runDir)));
   return out;
 }

@@ -14,6 +14,10 @@ export const REJECT_REASONS = [
   'outside_windows',
   // geometry
   'outside_planes',
+  // single-instrument geometries: no nacelle direction at the sample time (turbine-series gap), nacelle-relative
+  // angles outside the forward half (site angles given as nacelle-relative?), and samples outside a profiler's
+  // height bins, a nacelle instrument's beams and gates, or a tracker's bins
+  'no_nacelle_direction', 'wrong_beam_frame', 'outside_heights', 'outside_beams', 'outside_track',
   // robust filter (median and scaled MAD per instrument, cell and window)
   'outlier',
   // an exact repeat of an earlier row of the same instrument, with qc.dropDuplicates (src/qc/suspicion.ts)

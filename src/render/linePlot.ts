@@ -51,7 +51,7 @@ export function linePlotSvg(o: PlotOptions): string {
   const pw = o.plotWidth ?? 470, ph = o.plotHeight ?? 300;
   const left = 72;
   const legendX = left + pw + 24, legendW = 220;
-  const subLines = o.subtitle ? wrap(o.subtitle, Math.floor((legendX + legendW - left - 12) / 6.6)) : [];
+  const subLines = o.subtitle ? wrap(o.subtitle, legendX + legendW - left - 12, 11.5) : [];
   const top = 50 + subLines.length * 15;
   const xd = o.xDomain ?? dataDomain(o.series, 'x', false);
   const yd = o.yDomain ?? dataDomain(o.series, 'y', !!o.yIncludeZero);
@@ -66,13 +66,13 @@ export function linePlotSvg(o: PlotOptions): string {
     const x = X(t);
     grid.push(`<line x1="${n(x)}" y1="${top}" x2="${n(x)}" y2="${top + ph}" stroke="${theme.faint}" stroke-width="0.8"/>`);
     grid.push(`<line x1="${n(x)}" y1="${top + ph}" x2="${n(x)}" y2="${top + ph + 5}" stroke="${theme.ink}" stroke-width="0.8"/>`);
-    grid.push(text(x, top + ph + 17, formatTick(t, xStep), { anchor: 'middle' }));
+    grid.push(text(x, top + ph + 17, formatTick(t, xStep), { anchor: 'middle', cls: 'tick' }));
   }
   for (const t of niceTicks(yd[0], yd[1], yCount)) {
     const y = Y(t);
     grid.push(`<line x1="${left}" y1="${n(y)}" x2="${left + pw}" y2="${n(y)}" stroke="${theme.faint}" stroke-width="0.8"/>`);
     grid.push(`<line x1="${left - 5}" y1="${n(y)}" x2="${left}" y2="${n(y)}" stroke="${theme.ink}" stroke-width="0.8"/>`);
-    grid.push(text(left - 8, y, formatTick(t, yStep), { anchor: 'end', dy: 0.35 }));
+    grid.push(text(left - 8, y, formatTick(t, yStep), { anchor: 'end', dy: 0.35, cls: 'tick' }));
   }
   out.push(`<g class="grid">${grid.join('')}</g>`);
   if (o.yReference !== undefined && o.yReference > yd[0] && o.yReference < yd[1]) {
@@ -113,23 +113,23 @@ export function linePlotSvg(o: PlotOptions): string {
     const sw = legendX;
     if (s.kind !== 'points') legend.push(`<line x1="${sw}" y1="${ly + 5}" x2="${sw + 26}" y2="${ly + 5}" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''}/>`);
     if (s.kind !== 'line') legend.push(markerPath(marker, sw + 13, ly + 5, 4, colour));
-    const lines = wrap(s.label, 28);
+    const lines = wrap(s.label, legendW - 40, 10.5);
     lines.forEach((l, i) => legend.push(text(sw + 34, ly + 9 + i * 13, l, { size: 10.5 })));
     ly += Math.max(18, lines.length * 13 + 6);
   });
   out.push(`<g clip-path="url(#${clipId})">${data.join('')}</g>`);
   out.push(`<rect x="${left}" y="${top}" width="${pw}" height="${ph}" fill="none" stroke="${theme.ink}" stroke-width="0.8"/>`);
-  out.push(text(left + pw / 2, top + ph + 38, o.xLabel, { anchor: 'middle', size: 12 }));
-  out.push(text(18, top + ph / 2, o.yLabel, { anchor: 'middle', size: 12, rotate: -90 }));
+  out.push(text(left + pw / 2, top + ph + 38, o.xLabel, { anchor: 'middle', size: 12, cls: 'axis-label' }));
+  out.push(text(18, top + ph / 2, o.yLabel, { anchor: 'middle', size: 12, rotate: -90, cls: 'axis-label' }));
   out.push(`<g class="legend">${legend.join('')}</g>`);
   let ny = top + ph + 60;
   for (const note of o.notes ?? []) {
-    for (const l of wrap(note, 110)) {
-      out.push(text(left, ny, l, { size: 10, fill: theme.muted }));
+    for (const l of wrap(note, legendX + legendW - left - 12, 10)) {
+      out.push(text(left, ny, l, { size: 10, fill: theme.muted, cls: 'note' }));
       ny += 13;
     }
   }
-  const head = text(left, 26, o.title, { size: 16, weight: 'bold' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted })).join('');
+  const head = text(left, 26, o.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
   const defs = `<clipPath id="${clipId}"><rect x="${left - 6}" y="${top - 6}" width="${pw + 12}" height="${ph + 12}"/></clipPath>`;
   const width = legendX + legendW;
   const height = Math.max(ny + 4, ly + 10);

@@ -1,39 +1,47 @@
 /**
- * All images of a run in one call: per plane and window the result images (with the matching wake row), the geometry
- * maps, and the summary plots. For the pipeline's image stage.
+ * All figures of a set of fields held in memory, in one call (for library use and tests; a run streams its
+ * fields through the figure stage instead): the summary plots, one multi-panel figure per plane and the images of
+ * the selected windows, on the scales shared by all the fields.
  */
+import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
 import type { Campaign } from '../campaign/types.ts';
 import type { OutputRecord } from '../pipeline/manifest.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import type { WakeAnalysis } from '../wake/types.ts';
-import { renderGeometryMaps, renderPlaneImages } from './planeImages.ts';
-import { renderSummaryPlots } from './summaryPlots.ts';
+import { RenderQueue } from './renderQueue.ts';
+import { FigureCollector, renderRunFigures } from './runFigures.ts';
 
 export interface RenderRunOptions {
-  /** Which windows get geometry maps (amplification of u, v, w and samples per cell): the first window of each
-   * plane, every window, or none; default 'first'. The amplification changes between windows only through the
-   * wind direction that orients the rotor frame. */
-  geometry?: 'first' | 'all' | 'none';
-  /** PNG density, dots per inch; default 300. */
+  /** Images of single windows (default: the campaign's output.figures.windowImages). */
+  windowImages?: WindowImages;
+  /** PNG density, dots per inch (default: the campaign's, 300). */
   density?: number;
-  /** Called after each field's images, with the count done and the total (for progress displays). */
-  onField?: (done: number, total: number, field: FieldResult) => void;
+  /** Figures rendered at the same time (default: the machine's cores). */
+  workers?: number;
+  /** Called after each figure is written, with the counts so far (for progress displays). */
+  onFigure?: (written: number, added: number) => void;
 }
 
 export async function renderRun(fields: FieldResult[], analysis: WakeAnalysis | undefined, campaign: Campaign, runDir: string, opts: RenderRunOptions = {}): Promise<OutputRecord[]> {
-  const out: OutputRecord[] = [];
+  const base: FiguresSettings = campaign.output.figures ?? FIGURES_DEFAULT;
+  const settings: FiguresSettings = {
+    ...base,
+    ...(opts.windowImages ? { windowImages: opts.windowImages } : {}),
+    ...(opts.density ? { density: opts.density } : {}),
+    ...(opts.workers ? { workers: opts.workers } : {}),
+  };
+  const ordered = [...fields].sort((a, b) => a.window.index - b.window.index || a.planeIndex - b.planeIndex);
   const rows = new Map((analysis?.rows ?? []).map((r) => [`${r.planeId}\u0000${r.window.index}`, r]));
-  const geometry = opts.geometry ?? 'first';
-  const seen = new Set<string>();
-  const fig = opts.density ? { density: opts.density } : {};
-  const ordered = [...fields].sort((a, b) => a.planeIndex - b.planeIndex || a.window.index - b.window.index);
-  if (analysis) out.push(...(await renderSummaryPlots(analysis, campaign, runDir, fig)));
-  let done = 0;
-  for (const f of ordered) {
-    out.push(...(await renderPlaneImages(f, rows.get(`${f.planeId}\u0000${f.window.index}`), campaign, runDir, fig)));
-    if (geometry === 'all' || (geometry === 'first' && !seen.has(f.planeId))) out.push(...(await renderGeometryMaps(f, campaign, runDir, fig)));
-    seen.add(f.planeId);
-    opts.onField?.(++done, ordered.length, f);
-  }
-  return out;
+  const collector = new FigureCollector(settings.maxPanels);
+  for (const f of ordered) collector.add(f, f.window.kind === 'ensemble' ? undefined : rows.get(`${f.planeId}\u0000${f.window.index}`));
+  return renderRunFigures({
+    campaign,
+    settings,
+    collector,
+    ...(analysis ? { analysis } : {}),
+    windowFields: async function* (want) {
+      for (const f of ordered) if (want(f.planeId, f.window.index, f.window.kind === 'ensemble')) yield f;
+    },
+    queue: new RenderQueue(runDir, settings.density, settings.workers, opts.onFigure),
+  });
 }

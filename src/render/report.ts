@@ -1,34 +1,48 @@
 /**
- * The run report: one static HTML file (report.html in the run folder) that opens without a server. It shows the run
- * summary, the sample accounting and quality control, every image, the result tables (first rows, with links to the
- * full files), links to every data file, the settings, assumptions, warnings and the cautions. Every string that
- * came from the campaign file, the data or the manifest is HTML-escaped.
+ * The run report: one static HTML file (report.html in the run folder) that opens without a server or network. It
+ * shows the run summary, the sample accounting and quality control, the figures (summary plots, one multi-panel
+ * figure per plane, single windows when drawn), the result tables with all their rows in frames that scroll, links
+ * to every data file, the planner's results with its maps, the settings, assumptions, warnings, the time per stage
+ * and the cautions. Every string from the campaign file, the data or the manifest is HTML-escaped; file paths are
+ * shown relative to the campaign file's folder (never the machine's absolute paths); times and memory are the
+ * manifest's own figures.
  */
-import { join } from 'node:path';
+import { dirname, isAbsolute, join, relative } from 'node:path';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { OutputRecord, RunManifest } from '../pipeline/manifest.ts';
 import { REJECT_REASONS, accountBalances, type SampleAccount } from '../qc/reasons.ts';
 import { esc } from './escape.ts';
+import { fixed, significant, withUncertainty } from './numbers.ts';
 import { REPORT_CSS } from './reportCss.ts';
+import { spans } from './richText.ts';
 
-/** A table for the report: shown up to `maxRows` rows, with a link to the full file. */
+/** A table for the report: every row, in a frame that scrolls, with a link to the full file. */
 export interface ReportTable {
   title: string;
+  /** Column headings; sub/superscript markup (`y_{c}`) becomes <sub>/<sup>. */
   columns: string[];
-  rows: (string | number | boolean | null | undefined)[][];
+  rows: ReportCell[][];
+  /** Decimal places per column for plain numbers (default: 4 significant digits). */
+  decimals?: (number | undefined)[];
   /** Path of the full table relative to the run folder. */
   link?: string;
   note?: string;
 }
+
+/** A table cell: text, a number, a yes/no, or a value with its uncertainty (both rounded to the uncertainty). */
+export type ReportCell = string | number | boolean | null | undefined | { value: number; uncertainty: number };
 
 export interface ReportExtras {
   /** Wake result tables (see reportTables.ts for tables made from a WakeAnalysis). */
   wakeTables?: ReportTable[];
   /** The planner's summary: label/value pairs, optional tables and notes. */
   planSummary?: { title?: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] };
-  /** Rows shown per table before "first N of M"; default 25. */
-  maxRows?: number;
+  /** Sections of the single-instrument geometries (profiles, nacelle instruments, wake tracking). */
+  geometry?: ReportSection[];
 }
+
+/** A titled section: label/value pairs, tables and notes. */
+export interface ReportSection { title: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] }
 
 /** The cautions printed in every report. */
 export const CAUTIONS = [
@@ -39,8 +53,9 @@ export const CAUTIONS = [
 
 export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): string {
   const m = manifest;
-  const maxRows = extras.maxRows ?? 25;
-  const images = m.outputs.filter((o) => o.kind === 'image');
+  const show = pathShower(m);
+  const images = m.outputs.filter((o) => o.kind === 'image' && !o.path.startsWith('plan/'));
+  const planImages = m.outputs.filter((o) => o.kind === 'image' && o.path.startsWith('plan/'));
   const dataFiles = m.outputs.filter((o) => o.kind !== 'image' && o.kind !== 'report');
   const sections: string[] = [];
   const toc: [string, string][] = [];
@@ -53,7 +68,7 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
   const tot = m.samples.total;
   const dur = Date.parse(m.finishedAt) - Date.parse(m.startedAt);
   const facts: [string, string][] = [
-    ['Campaign file', `${esc(m.campaign.file)}`],
+    ['Campaign file', `${esc(show(m.campaign.file))}`],
     ['Campaign file SHA-256', `<code>${esc(m.campaign.sha256)}</code>`],
     ['Started', esc(m.startedAt)],
     ...(m.finishedAt ? [['Finished', `${esc(m.finishedAt)}${Number.isFinite(dur) ? ` (${(dur / 1000).toFixed(1)} s)` : ''}`] as [string, string]] : []),
@@ -62,7 +77,8 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
     ['Samples read', num(tot.read)],
     ['Samples accepted', `${num(tot.accepted)}${tot.read ? ` (${((100 * tot.accepted) / tot.read).toFixed(1)} %)` : ''}`],
     ['Throughput', `${num(Math.round(m.samplesPerSecond))} samples/s`],
-    ...(m.peakRss_bytes > 0 ? [['Peak memory', `${(m.peakRss_bytes / 2 ** 20).toFixed(0)} MiB`] as [string, string]] : []),
+    ...(Number.isFinite(m.timings_s.total) ? [['Run time', `${secondsText(m.timings_s.total)} s (manifest: timings_s.total)`] as [string, string]] : []),
+    ...(m.peakRss_bytes > 0 ? [['Peak memory', `${mibText(m.peakRss_bytes)} MiB (manifest: peakRss_bytes)`] as [string, string]] : []),
     ['Tool', `${esc(m.tool.name)} ${esc(m.tool.version)}`],
   ];
   section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
@@ -74,31 +90,38 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
   if (m.windows.length) {
     section('windows', 'Averaging windows', tableHtml({
       title: '',
-      columns: ['window', 'start (UTC)', 'end (UTC)', 'wind from (deg)', 'accepted samples'],
-      rows: m.windows.map((w) => [w.index, shortIso(w.start), shortIso(w.end), round(w.direction_deg, 1), w.samples]),
-    }, maxRows));
+      columns: ['window', 'start (UTC)', 'end (UTC)', 'wind from (°)', 'accepted samples'],
+      rows: m.windows.map((w) => [w.index, shortIso(w.start), shortIso(w.end), w.direction_deg, w.samples]),
+      decimals: [0, undefined, undefined, 1, 0],
+    }));
   }
 
-  // Images.
-  if (images.length) section('images', 'Images', READING_GUIDE + imagesHtml(images));
+  // Figures.
+  if (images.length) section('images', 'Figures', READING_GUIDE + imagesHtml(images));
 
   // Tables.
-  if (extras.wakeTables?.length) section('wake', 'Wake results', extras.wakeTables.map((t) => tableHtml(t, maxRows)).join('\n'));
-  if (extras.planSummary) {
-    const p = extras.planSummary;
+  if (extras.wakeTables?.length) section('wake', 'Wake results', extras.wakeTables.map((t) => tableHtml(t)).join('\n'));
+  if (extras.planSummary || planImages.length) {
+    const p = extras.planSummary ?? { items: [] };
     section('plan', p.title ?? 'Campaign plan',
       `<dl class="facts">${p.items.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(v)}</dd>`).join('')}</dl>` +
-        (p.tables ?? []).map((t) => tableHtml(t, maxRows)).join('\n') +
-        (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : ''));
+        (p.tables ?? []).map((t) => tableHtml(t)).join('\n') +
+        (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : '') +
+        (planImages.length ? `<h3>Planner maps</h3>${galleryHtml(planImages)}` : ''));
   }
+
+  (extras.geometry ?? []).forEach((p, k) => section(`geometry-${k}`, p.title,
+    `<dl class="facts">${p.items.map(([a, b]) => `<dt>${esc(a)}</dt><dd>${esc(b)}</dd>`).join('')}</dl>` +
+      (p.tables ?? []).map((t) => tableHtml(t)).join('\n') +
+      (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : '')));
 
   // Data files and inputs.
   section('files', 'Data files',
     (dataFiles.length
       ? tableHtmlRaw(['kind', 'file', 'plane', 'window', 'description'], dataFiles.map((o) => [esc(o.kind), link(o.path), esc(o.plane ?? ''), o.window === undefined ? '' : String(o.window), esc(o.description ?? '')]))
       : '<p class="note">No data files were written.</p>') +
-      `<h3>Inputs</h3>` +
-      tableHtmlRaw(['file', 'instrument', 'bytes', 'SHA-256'], m.inputs.map((f) => [esc(f.file), esc(f.instrument), num(f.bytes), `<code>${esc(f.sha256)}</code>`]), [2]));
+      `<h3>Inputs</h3><p class="note">Paths relative to the campaign file's folder.</p>` +
+      tableHtmlRaw(['file', 'instrument', 'bytes', 'SHA-256'], m.inputs.map((f) => [esc(show(f.file)), esc(f.instrument), num(f.bytes), `<code>${esc(f.sha256)}</code>`]), [2]));
 
   // Assumptions and warnings.
   section('assumptions', 'Assumptions and warnings',
@@ -107,10 +130,11 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
 
   // Settings and timings.
   section('settings', 'Settings',
-    `<p class="note">The campaign after defaults, as this run used it.</p>` +
-      `<details><summary>Show the settings</summary><pre>${esc(JSON.stringify(m.settings, null, 2))}</pre></details>` +
+    `<p class="note">The campaign after defaults, as this run used it (paths relative to the campaign file's folder).</p>` +
+      `<details><summary>Show the settings</summary><pre>${esc(JSON.stringify(relativePaths(m.settings, show), null, 2))}</pre></details>` +
       `<h3>Time per stage</h3>` +
-      tableHtml({ title: '', columns: ['stage', 'seconds'], rows: Object.entries(m.timings_s).map(([k, v]) => [k, round(v, 2)]) }, 100));
+      `<p class="note">As in manifest.json (timings_s), seconds; the total runs to the start of this report.${m.rendered ? ` Figures and report redone by <code>wakeplane render</code> at ${esc(m.rendered.at)} in ${secondsText(m.rendered.seconds)} s.` : ''}</p>` +
+      tableHtmlRaw(['stage', 'seconds'], Object.entries(m.timings_s).map(([k, v]) => [esc(k), secondsText(v)]), [1]));
 
   const cautions = `<aside class="caution" id="cautions"><h2>Read before use</h2><ul>${CAUTIONS.map((c) => `<li>${esc(c)}</li>`).join('')}</ul></aside>`;
   const title = `${m.campaign.name} \u2014 run report`;
@@ -145,10 +169,10 @@ export async function writeReport(manifest: RunManifest, runDir: string, extras:
 
 const READING_GUIDE = `<details><summary>How to read the maps</summary><ul class="note">
 <li>Cross planes are seen looking downstream and horizontal planes from above with the flow going up the page: in both, +y (rotor frame, to the left looking downstream) is on the left. Axes are in metres, with rotor diameters from the hub on the top and right.</li>
-<li>Colours are filled contour bands (cividis, readable with colour-vision deficiencies); values beyond the colour bar take its end colours.</li>
+<li>Colours are filled contour bands (cividis, readable with colour-vision deficiencies) on one range for every plane and window of the run (or the range fixed in the campaign), so maps compare. Values beyond the range take the end colours; the triangles at the ends of the colour bar count them.</li>
 <li>Grey and hatched cells were not retrieved; the legend names each reason and counts its cells. A mark on the colour bar shows a masking threshold.</li>
-<li>Arrows show the in-plane velocity (v, w); the reference arrow in the legend gives its scale. The dash-dotted circle is the rotor disk with its hub.</li>
-<li>\u00d7 is the wake centre of the 2D Gaussian fit, with its width ellipse (\u03c3y, \u03c3z) dashed; \u25c7 is the centre of the minimum-power rotor disk, a second estimate that assumes no wake shape.</li>
+<li>Arrows show the in-plane velocity (v, w) on one scale for the whole run; the reference arrow in the legend gives it. Grey arrows with an open head are cells where only two instruments saw the flow: w was not measured but taken as 0, so the arrow shows v alone. The dash-dotted circle is the rotor disk with its hub; on horizontal planes the bar is the turbine's rotor seen from above.</li>
+<li>\u00d7 is the wake centre of the 2D Gaussian fit, with its width ellipse (\u03c3<sub>y</sub>, \u03c3<sub>z</sub>) dashed; \u25c7 is the centre of the minimum-power rotor disk, a second estimate that assumes no wake shape. Values in labels and tables are rounded to their uncertainty.</li>
 </ul></details>`;
 
 function accountingHtml(m: RunManifest): string {
@@ -195,45 +219,59 @@ function qcSettingsHtml(settings: unknown): string {
   return `<h3>Quality-control settings</h3><dl class="facts">${items.map(([k, v]) => `<dt><code>${esc(k)}</code></dt><dd>${esc(v)}</dd>`).join('')}</dl>`;
 }
 
+/** Figures grouped: summary plots, one multi-panel figure per plane, then single windows folded per window. */
 function imagesHtml(images: OutputRecord[]): string {
-  // One figure per image base name, shown from its SVG (or PNG) with links to both files.
+  const summary = images.filter((o) => o.plane === undefined);
+  const planes = images.filter((o) => o.plane !== undefined && o.window === undefined && o.bin === undefined);
+  const windows = images.filter((o) => o.plane !== undefined && o.window !== undefined);
+  const bins = images.filter((o) => o.plane !== undefined && o.bin !== undefined);
+  const out: string[] = [];
+  if (summary.length) out.push(`<h3>Summary</h3>${galleryHtml(summary)}`);
+  if (planes.length) out.push(`<h3>Planes</h3><p class="note">One figure per plane (and one per plane for the condition bins, when there are any): the windows or bins side by side on one colour scale and one arrow scale.</p>${galleryHtml(planes)}`);
+  const folded = (title: string, recs: OutputRecord[], key: (o: OutputRecord) => string) => {
+    const byKey = new Map<string, OutputRecord[]>();
+    for (const o of recs) byKey.set(key(o), [...(byKey.get(key(o)) ?? []), o]);
+    out.push(`<h3>${esc(title)}</h3>`);
+    let folds = 0;
+    for (const [k, group] of byKey) {
+      const n = new Set(group.map((r) => r.path.replace(/\.(svg|png)$/i, ''))).size;
+      out.push(`<details class="fold"${folds++ === 0 ? ' open' : ''}><summary>${esc(k)} <span class="note">(${n} figures)</span></summary>${galleryHtml(group)}</details>`);
+    }
+  };
+  if (bins.length) folded('Single condition bins', bins, (o) => `Plane ${o.plane}, condition bin ${o.bin}`);
+  if (windows.length) folded('Single windows', windows, (o) => `Plane ${o.plane}, window ${o.window}`);
+  return out.join('\n');
+}
+
+/** One figure per image base name, shown from its SVG (or PNG) at the full width of the page, with links to both files. */
+function galleryHtml(images: OutputRecord[]): string {
   const byBase = new Map<string, OutputRecord[]>();
   for (const o of images) {
     const base = o.path.replace(/\.(svg|png)$/i, '');
     byBase.set(base, [...(byBase.get(base) ?? []), o]);
   }
-  const groups = new Map<string, string[]>();
+  const figs: string[] = [];
   for (const [base, recs] of byBase) {
     const shown = recs.find((r) => /\.svg$/i.test(r.path)) ?? recs[0];
     const r0 = recs[0];
-    const key = r0.plane === undefined ? 'Summary' : `Plane ${r0.plane}${r0.bin !== undefined ? `, condition bin ${r0.bin}` : r0.window === undefined ? '' : `, window ${r0.window}`}`;
     const links = recs.map((r) => `<a href="${href(r.path)}">${esc(r.path.slice(r.path.lastIndexOf('.') + 1).toUpperCase())}</a>`).join(' \u00b7 ');
-    const fig = `<figure><img src="${href(shown.path)}" alt="${esc(r0.description ?? base)}"><figcaption>${esc(r0.description ?? '')} \u2014 <code>${esc(base.slice(base.lastIndexOf('/') + 1))}</code> \u00b7 ${links}</figcaption></figure>`;
-    groups.set(key, [...(groups.get(key) ?? []), fig]);
+    figs.push(`<figure><img src="${href(shown.path)}" alt="${esc(r0.description ?? base)}"><figcaption>${esc(r0.description ?? '')} \u2014 <code>${esc(base.slice(base.lastIndexOf('/') + 1))}</code> \u00b7 ${links}</figcaption></figure>`);
   }
-  const ordered = [...groups].sort(([a], [b]) => (a === 'Summary' ? -1 : b === 'Summary' ? 1 : 0));
-  // Summary figures open; each plane and window in its own fold (the first one open) so a long campaign stays
-  // browsable.
-  let folds = 0;
-  return ordered
-    .map(([k, figs]) => {
-      const gallery = `<div class="gallery">${figs.join('\n')}</div>`;
-      if (k === 'Summary') return `<h3>${esc(k)}</h3>${gallery}`;
-      return `<details class="fold"${folds++ === 0 ? ' open' : ''}><summary>${esc(k)} <span class="note">(${figs.length} figures)</span></summary>${gallery}</details>`;
-    })
-    .join('\n');
+  return `<div class="gallery">${figs.join('\n')}</div>`;
 }
 
-function tableHtml(t: ReportTable, maxRows: number): string {
-  const shown = t.rows.slice(0, maxRows);
-  const numericCol = t.columns.map((_, j) => t.rows.length > 0 && t.rows.every((r) => r[j] === null || r[j] === undefined || typeof r[j] === 'number'));
-  const head = `<tr>${t.columns.map((c, j) => `<th${numericCol[j] ? ' class="num"' : ''}>${esc(c)}</th>`).join('')}</tr>`;
-  const body = shown.map((r) => `<tr>${r.map((v, j) => `<td${numericCol[j] ? ' class="num"' : ''}>${esc(cell(v))}</td>`).join('')}</tr>`).join('');
-  const more = t.rows.length > shown.length ? `First ${shown.length} of ${t.rows.length} rows. ` : '';
-  const foot = more || t.link || t.note
-    ? `<p class="note">${esc(more)}${t.link ? `Full table: ${link(t.link)}. ` : ''}${esc(t.note ?? '')}</p>`
-    : '';
-  return `${t.title ? `<h3>${esc(t.title)}</h3>` : ''}<div class="scroll"><table><thead>${head}</thead><tbody>${body}</tbody></table></div>${foot}`;
+/** A table with all its rows, in a frame that scrolls both ways when the table is wider or longer than the page. */
+function tableHtml(t: ReportTable): string {
+  const numericCol = t.columns.map((_, j) => t.rows.length > 0 && t.rows.every((r) => r[j] === null || r[j] === undefined || typeof r[j] === 'number' || typeof r[j] === 'object'));
+  const head = `<tr>${t.columns.map((c, j) => `<th${numericCol[j] ? ' class="num"' : ''}>${richHtml(c)}</th>`).join('')}</tr>`;
+  const body = t.rows.map((r) => `<tr>${r.map((v, j) => `<td${numericCol[j] ? ' class="num"' : ''}>${esc(cell(v, t.decimals?.[j]))}</td>`).join('')}</tr>`).join('');
+  const foot = t.link || t.note ? `<p class="note">${t.link ? `Full table: ${link(t.link)}. ` : ''}${esc(t.note ?? '')}</p>` : '';
+  return `${t.title ? `<h3>${esc(t.title)}</h3>` : ''}<div class="scroll" data-rows="${t.rows.length}"><table><thead>${head}</thead><tbody>${body}</tbody></table></div>${foot}`;
+}
+
+/** A label with sub/superscript markup as HTML (escaped). */
+function richHtml(label: string): string {
+  return spans(label).map((p) => (p.shift === 'base' ? esc(p.text) : `<${p.shift}>${esc(p.text)}</${p.shift}>`)).join('');
 }
 
 /** A table whose cells are already markup (escaped by the caller). */
@@ -257,14 +295,49 @@ function link(path: string): string {
   return `<a href="${href(path)}">${esc(path)}</a>`;
 }
 
-function cell(v: string | number | boolean | null | undefined): string {
+function cell(v: ReportCell, decimals?: number): string {
   if (v === null || v === undefined) return '';
   if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  if (typeof v === 'object') return Number.isFinite(v.value) ? withUncertainty(v.value, v.uncertainty) : '\u2013';
   if (typeof v === 'number') {
     if (!Number.isFinite(v)) return '\u2013';
+    if (decimals !== undefined) return fixed(v, decimals);
     if (Number.isInteger(v)) return String(v);
-    return String(Number(v.toPrecision(4)));
+    return significant(v, 4);
   }
+  return v;
+}
+
+/** Seconds as the report and its test show them: three decimals. */
+export function secondsText(s: number): string {
+  return Number.isFinite(s) ? s.toFixed(3) : '\u2013';
+}
+
+/** Bytes as MiB with one decimal. */
+export function mibText(bytes: number): string {
+  return (bytes / 2 ** 20).toFixed(1);
+}
+
+/**
+ * Shows a path relative to the campaign file's folder (paths already relative stay as they are), so that the
+ * report never carries the machine's folders. A campaign given in memory shows paths relative to the working
+ * folder of the run.
+ */
+export function pathShower(m: RunManifest): (p: string) => string {
+  const file = m.campaign.file;
+  const base = isAbsolute(file) ? dirname(file) : process.cwd();
+  return (p: string) => {
+    if (!isAbsolute(p)) return p;
+    const r = relative(base, p);
+    return r === '' ? '.' : r;
+  };
+}
+
+/** A copy of a settings object with every absolute path shown relative (see pathShower). */
+export function relativePaths(v: unknown, show: (p: string) => string): unknown {
+  if (typeof v === 'string') return isAbsolute(v) && v.length > 1 ? show(v) : v;
+  if (Array.isArray(v)) return v.map((x) => relativePaths(x, show));
+  if (v && typeof v === 'object') return Object.fromEntries(Object.entries(v).map(([k, x]) => [k, relativePaths(x, show)]));
   return v;
 }
 
@@ -277,6 +350,3 @@ function shortIso(t: string): string {
   return t.replace(/^(\d{4}-\d{2}-\d{2})T(\d{2}:\d{2}:\d{2})(\.0+)?Z$/, '$1 $2');
 }
 
-function round(v: number, d: number): number {
-  return Number.isFinite(v) ? Number(v.toFixed(d)) : NaN;
-}

@@ -28,20 +28,26 @@ dl.facts dd { margin: 0; font-variant-numeric: tabular-nums; overflow-wrap: anyw
 ul.warnings li { color: var(--warn); }
 table { border-collapse: collapse; margin: 6px 0 4px; font-size: 12.5px; font-variant-numeric: tabular-nums; }
 th, td { padding: 3px 10px; border-bottom: 1px solid var(--faint); text-align: left; vertical-align: top; }
-th { border-bottom: 1px solid var(--ink); font-weight: bold; white-space: nowrap; }
+th { border-bottom: 1px solid var(--ink); font-weight: bold; white-space: nowrap; background: var(--paper); }
 td.num, th.num { text-align: right; white-space: nowrap; }
 table.accounting th { vertical-align: bottom; }
 th.group { text-align: center; border-bottom: 1px solid var(--rule); font-weight: normal; color: var(--muted); }
 th.reason { white-space: normal; font-weight: normal; max-width: 9em; vertical-align: bottom; }
 tr.total td { border-top: 1px solid var(--ink); font-weight: bold; }
-.scroll { overflow-x: auto; max-width: 100%; }
+/* Tables keep every row: wide or long ones scroll inside their frame (header row stays on top). */
+.scroll { overflow: auto; max-width: 100%; max-height: 32em; border: 1px solid var(--faint); margin: 6px 0 4px; }
+.scroll table { margin: 0; }
+.scroll thead th { position: sticky; top: 0; z-index: 1; }
+.scroll table.accounting thead th { position: static; }
 details.fold { margin: 8px 0; border-top: 1px solid var(--faint); }
 details.fold > summary { cursor: pointer; padding: 6px 0; font-weight: bold; }
 .note { color: var(--muted); font-size: 12.5px; }
 .ok { color: #2d6a3e; }
 .bad { color: var(--warn); font-weight: bold; }
-figure { margin: 14px 0 22px; padding: 10px; background: #ffffff; border: 1px solid var(--faint); }
-figure img { display: block; width: 100%; max-width: 1000px; height: auto; margin: 0 auto; }
+/* Figures at the full width of the page, so their tick labels read at print size. */
+figure { margin: 14px 0 22px; padding: 0; background: #ffffff; border: 1px solid var(--faint); }
+figure img { display: block; width: 100%; height: auto; margin: 0; }
+figcaption { padding: 4px 8px 6px; }
 figcaption { font-size: 12.5px; color: var(--muted); margin-top: 6px; }
 .gallery { display: grid; grid-template-columns: 1fr; gap: 0; }
 details { margin: 8px 0; }
@@ -49,5 +55,6 @@ summary { cursor: pointer; color: var(--accent); }
 pre { background: var(--panel); padding: 10px 12px; overflow: auto; font-size: 12px; max-height: 520px; }
 code { font-family: 'DejaVu Sans Mono', monospace; font-size: 12px; }
 footer { margin-top: 40px; padding-top: 10px; border-top: 1px solid var(--rule); color: var(--muted); font-size: 12px; }
-@media print { html { background: none; } body { box-shadow: none; max-width: none; } figure { break-inside: avoid; } }
+@media print { html { background: none; } body { box-shadow: none; max-width: none; } figure { break-inside: avoid; }
+  .scroll { max-height: none; overflow: visible; } }
 `;

@@ -1,46 +1,71 @@
 /**
- * Report tables made from a wake analysis: one row per plane and window, the downstream summary, and the yaw-offset
- * bins. Numbers are in SI units, lengths also in rotor diameters where the column says so.
+ * Report tables made from a wake analysis: one row per plane and window, the downstream summary, the yaw-offset
+ * bins, and the wake track of horizontal planes. Numbers are in SI units, lengths also in rotor diameters where the
+ * column says so. A value with a known uncertainty is shown as "value ± uncertainty", both rounded to the
+ * uncertainty (numbers.ts); the column heading says which uncertainty (standard error, or 95 % interval).
  */
-import type { WakeAnalysis } from '../wake/types.ts';
-import type { ReportTable } from './report.ts';
+import type { Stat, WakeAnalysis } from '../wake/types.ts';
+import { fixed, withUncertainty } from './numbers.ts';
+import type { ReportCell, ReportTable } from './report.ts';
+
+const pm = (value: number, uncertainty: number): ReportCell => ({ value, uncertainty });
+/** The 95 % half-width of a mean over windows (NaN for one window). */
+const ci = (s: Stat, scale = 1): ReportCell => pm(s.mean * scale, s.ci95 * scale);
 
 /**
- * @param links paths (relative to the run folder) of the full CSV tables, if written: rows, downstream, steering
+ * @param links paths (relative to the run folder) of the full CSV tables, if written: rows, downstream, steering, tracks
  */
-export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downstream?: string; steering?: string } = {}): ReportTable[] {
+export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downstream?: string; steering?: string; tracks?: string } = {}): ReportTable[] {
   const D = a.rotorDiameter_m;
   const tables: ReportTable[] = [];
   tables.push({
     title: 'Per plane and window',
-    columns: ['plane', 'window', 'x/D', 'flag', 'yaw offset (deg)', 'hub inflow (m/s)', 'max deficit', 'centre deficit', 'y_c (m)', 'z_c (m)', '\u03c3y (m)', '\u03c3z (m)', 'disk y (m)', 'centres apart (D)', 'reason'],
+    columns: ['plane', 'window', 'x/D', 'flag', 'γ, yaw offset (°)', 'hub inflow (m/s)', 'max deficit', 'centre deficit', 'y_{c} (m) ± s.e.', 'z_{c} (m) ± s.e.', 'σ_{y} (m) ± s.e.', 'σ_{z} (m) ± s.e.', 'disk y (m)', 'centres apart (D)', 'reason'],
+    decimals: [undefined, 0, 2, undefined, 1, 2, 3, 3, undefined, undefined, undefined, undefined, 1, 3],
     rows: a.rows.map((r) => {
-      const fit = r.centre.ok && r.gaussian ? r.gaussian.params : undefined;
+      const fit = r.centre.ok && r.gaussian ? r.gaussian : undefined;
+      const p = fit?.params, e = fit?.stderr;
       return [
         r.planeId, r.window.index, r.x_D, r.flag, r.yawOffset_deg, r.inflow.hubSpeed_ms, r.maxDeficit, r.centreDeficit,
-        r.centre.ok ? r.centre.y_m : NaN, r.centre.ok ? r.centre.z_m : NaN, fit?.sigmaY_m ?? NaN, fit?.sigmaZ_m ?? NaN,
+        p ? pm(p.yc_m, e!.yc_m) : NaN, p ? pm(p.zc_m, e!.zc_m) : NaN, p ? pm(p.sigmaY_m, e!.sigmaY_m) : NaN, p ? pm(p.sigmaZ_m, e!.sigmaZ_m) : NaN,
         r.diskCentre.ok ? r.diskCentre.y_m : NaN, r.disagreement_D, r.reason,
       ];
     }),
     ...(links.rows ? { link: links.rows } : {}),
   });
   if (a.downstream.points.length) {
-    const g = a.downstream.gaussianFit;
+    const g = a.downstream.gaussianFit, t = a.downstream.topHat;
+    const gauss = `Gaussian width fit: k* = ${withUncertainty(g.kStar, g.kStarSE)}, \u03b5 = ${withUncertainty(g.eps, g.epsSE)} (standard errors), ${g.nPlanes} planes${g.note ? `; ${g.note}` : ''}.`;
+    const hat = `Top-hat k = ${t.kSource === 'fit' ? `${withUncertainty(t.kFit, t.kFitSE)} (standard error)` : t.k.toPrecision(3)}: ${t.kNote}.`;
     tables.push({
       title: 'Downstream summary (near-aligned windows)',
-      columns: ['plane', 'x/D', 'windows', 'centre deficit', '\u00b1 95 %', 'amplitude', '\u03c3/D', '\u00b1 95 %', 'y_c/D', 'momentum ratio', 'Ct'],
-      rows: a.downstream.points.map((p) => [p.planeId, p.x_D, p.amplitude.n, p.centreDeficit.mean, p.centreDeficit.ci95, p.amplitude.mean, p.sigma_D.mean, p.sigma_D.ci95, p.yc_m.mean / D, p.momentumRatio.mean, p.ct]),
-      note: `Gaussian width fit: k* = ${g.kStar.toPrecision(4)} \u00b1 ${g.kStarSE.toPrecision(2)}, \u03b5 = ${g.eps.toPrecision(4)} \u00b1 ${g.epsSE.toPrecision(2)} (standard errors), ${g.nPlanes} planes${g.note ? `; ${g.note}` : ''}.`,
+      columns: ['plane', 'x/D', 'windows', 'centre deficit ± 95 %', 'amplitude ± 95 %', 'σ/D ± 95 %', 'y_{c}/D ± 95 %', 'momentum ratio ± 95 %', 'C_{T}'],
+      decimals: [undefined, 2, 0, undefined, undefined, undefined, undefined, undefined, 2],
+      rows: a.downstream.points.map((p) => [p.planeId, p.x_D, p.amplitude.n, ci(p.centreDeficit), ci(p.amplitude), ci(p.sigma_D), ci(p.yc_m, 1 / D), ci(p.momentumRatio), p.ct]),
+      note: `${gauss} ${hat}`,
       ...(links.downstream ? { link: links.downstream } : {}),
     });
   }
   if (a.steering.bins.length) {
     tables.push({
       title: 'Wake steering: yaw-offset bins',
-      columns: ['plane', 'x/D', '\u03b3 bin (deg)', 'mean \u03b3 (deg)', 'windows', 'y_c (m)', '\u00b1 95 % (m)', 'Jim\u00e9nez 2010 (m)', 'Bastankhah 2016 (m)'],
-      rows: a.steering.bins.map((b) => [b.planeId, b.x_D, `${b.gammaLo_deg} to ${b.gammaHi_deg}`, b.gammaMean_deg, b.n, b.yc_m, b.ci95_m, b.jimenez_m, b.bastankhah_m]),
+      columns: ['plane', 'x/D', 'γ bin (°)', 'mean γ (°)', 'windows', 'y_{c} (m) ± 95 %', 'Δy_{c} (m) ± 95 %', 'Jiménez et al. 2010 (m)', 'Bastankhah & Porté-Agel 2016 (m)'],
+      decimals: [undefined, 2, undefined, 1, 0, undefined, undefined, 1, 1],
+      // The bin's edges kept on one line (no-break spaces) with typographic minus signs.
+      rows: a.steering.bins.map((b) => [b.planeId, b.x_D, `${fixed(b.gammaLo_deg, 0)}\u00a0to\u00a0${fixed(b.gammaHi_deg, 0)}`, b.gammaMean_deg, b.n, pm(b.yc_m, b.ci95_m), pm(b.deflection_m, b.deflectionCi95_m), b.jimenez_m, b.bastankhah_m]),
       ...(a.steering.note ? { note: a.steering.note } : {}),
       ...(links.steering ? { link: links.steering } : {}),
+    });
+  }
+  const tracks = a.rows.filter((r) => r.horizontalTrack && r.horizontalTrack.x_m.length);
+  if (tracks.length) {
+    tables.push({
+      title: 'Horizontal planes: wake track per downstream row',
+      columns: ['plane', 'window', 'x (m)', 'x/D', 'y_{c} (m) ± s.e.', 'σ_{y} (m)', 'amplitude'],
+      decimals: [undefined, 0, 0, 2, undefined, 1, 3],
+      rows: tracks.flatMap((r) => r.horizontalTrack!.x_m.map((x, k) => [r.planeId, r.window.index, x, x / D, pm(r.horizontalTrack!.yc_m[k], r.horizontalTrack!.syc_m[k]), r.horizontalTrack!.sigmaY_m[k], r.horizontalTrack!.amplitude[k]])),
+      note: '1D Gaussian fit across y per row of cells; rows without a usable fit are empty.',
+      ...(links.tracks ? { link: links.tracks } : {}),
     });
   }
   return tables;

@@ -6,10 +6,20 @@
 import type { Campaign } from '../campaign/types.ts';
 import type { OutputRecord } from '../pipeline/manifest.ts';
 import type { Stat, WakeAnalysis } from '../wake/types.ts';
+import { QUANTITY } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import { writeFigure, type FigureOptions } from './figure.ts';
+import { decimalsForUncertainty, fixed, qty, withUncertainty } from './numbers.ts';
+import { LAW_NOTE, lawSpeed } from './planeImages.ts';
 import { formatNumber } from './ticks.ts';
 import { theme } from './theme.ts';
+
+/** The top-hat k for a legend: the fit with its standard error, or the default with where it came from. */
+function topHatK(t: WakeAnalysis['downstream']['topHat']): string {
+  if (t.kSource === 'fit') return `${withUncertainty(t.kFit, t.kFitSE)} (fitted)`;
+  if (t.kSource === 'option') return `${formatNumber(t.k, 3)} (given)`;
+  return `${formatNumber(t.k, 3)} (0.4\u00a0I)`;
+}
 
 /** Half-length of an error bar for a Stat: the 95 % confidence half-width, else the standard deviation. */
 function bar(s: Stat): number {
@@ -29,48 +39,49 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
   const figs: { what: string; description: string; svg: string }[] = [];
   const ds = a.downstream;
   const xD = pts.map((p) => p.x_D);
-  const barNote = 'Error bars: 95 % confidence interval of the mean over windows (standard deviation where only one window).';
+  const barNote = 'Error bars: 95\u00a0% confidence interval of the mean over windows (standard deviation where only one window).';
 
   if (pts.length) {
     const gf = ds.gaussianFit;
     const series: PlotSeries[] = [
       { label: 'measured, deficit at the wake centre', x: xD, y: pts.map((p) => p.centreDeficit.mean), yErr: pts.map((p) => bar(p.centreDeficit)), kind: 'points', marker: 'circle', colour: theme.series[0], xOffset: -0.06 },
       { label: 'measured, fitted Gaussian amplitude', x: xD, y: pts.map((p) => p.amplitude.mean), yErr: pts.map((p) => bar(p.amplitude)), kind: 'points', marker: 'square', colour: theme.series[2], xOffset: 0.06 },
-      { label: `Gaussian model, fitted k* = ${formatNumber(gf.kStar, 4)}, \u03b5 = ${formatNumber(gf.eps, 3)}`, x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.deficit, kind: 'line', colour: theme.series[1] },
-      { label: `top-hat model, k = ${formatNumber(ds.topHat.k, 3)}`, x: ds.topHatCurve.x_D, y: ds.topHatCurve.deficit, kind: 'line', dash: '6 4', colour: theme.series[4] },
+      { label: `Gaussian model, fitted k^{*}\u00a0=\u00a0${withUncertainty(gf.kStar, gf.kStarSE)}, \u03b5\u00a0=\u00a0${withUncertainty(gf.eps, gf.epsSE)}`, x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.deficit, kind: 'line', colour: theme.series[1] },
+      { label: `top-hat model, k\u00a0=\u00a0${topHatK(ds.topHat)}`, x: ds.topHatCurve.x_D, y: ds.topHatCurve.deficit, kind: 'line', dash: '6 4', colour: theme.series[4] },
     ];
     figs.push({
       what: 'deficit',
       description: 'centreline deficit against downstream distance with model curves',
       svg: linePlotSvg({
         title: 'Wake deficit downstream',
-        subtitle: `Ct = ${formatNumber(gf.ct, 2)} (${gf.ctSource}) \u00b7 hub-height inflow ${formatNumber(gf.hubSpeed_ms, 1)} m/s \u00b7 ${gf.nPlanes} planes`,
-        xLabel: 'downstream distance x / D',
-        yLabel: 'deficit 1 \u2212 u / u_inf (\u2013)',
+        subtitle: `C_{T}\u00a0=\u00a0${formatNumber(gf.ct, 2)} (${gf.ctSource}) \u00b7 hub-height inflow ${qty(gf.hubSpeed_ms, 'm/s', 1)} \u00b7 ${gf.nPlanes}\u00a0planes`,
+        xLabel: QUANTITY.downstream,
+        yLabel: QUANTITY.deficit,
         series,
         yIncludeZero: true,
         notes: [
           barNote,
           'Gaussian model: Bastankhah & Port\u00e9-Agel (2014), Renewable Energy 70. Top-hat model: Jensen (1983); Kati\u0107, H\u00f8jstrup & Jensen (1986).',
-          ds.topHat.kNote ? `Top-hat k: ${ds.topHat.kNote}.` : '',
+          `Top-hat k: ${ds.topHat.kNote}; from the inflow it would be 0.4\u00a0I\u00a0=\u00a0${formatNumber(ds.topHat.kDefault, 3)} (Pe\u00f1a, R\u00e9thor\u00e9 & van der Laan 2016).`,
         ].filter(Boolean),
       }),
     });
 
-    const ci = (c: [number, number]) => (Number.isFinite(c[0]) ? ` [${formatNumber(c[0], 4)}, ${formatNumber(c[1], 4)}]` : '');
+    // The 95 % interval to the decimals of the standard error it comes from.
+    const ci = (c: [number, number], se: number) => (Number.isFinite(c[0]) && se > 0 ? ` [95\u00a0%: ${fixed(c[0], decimalsForUncertainty(se))}, ${fixed(c[1], decimalsForUncertainty(se))}]` : '');
     figs.push({
       what: 'width',
       description: 'wake widths against downstream distance with the fitted linear growth',
       svg: linePlotSvg({
         title: 'Wake width downstream',
-        subtitle: `\u03c3/D = k* x/D + \u03b5 fitted: k* = ${formatNumber(gf.kStar, 4)}${ci(gf.kStarCI95)}, \u03b5 = ${formatNumber(gf.eps, 3)}${ci(gf.epsCI95)} (\u03b5 from Ct: ${formatNumber(gf.epsTheory, 3)})`,
-        xLabel: 'downstream distance x / D',
-        yLabel: 'width / D (\u2013)',
+        subtitle: `\u03c3/D\u00a0=\u00a0k^{*}\u00a0x/D\u00a0+\u00a0\u03b5 fitted: k^{*}\u00a0=\u00a0${withUncertainty(gf.kStar, gf.kStarSE)}${ci(gf.kStarCI95, gf.kStarSE)}, \u03b5\u00a0=\u00a0${withUncertainty(gf.eps, gf.epsSE)}${ci(gf.epsCI95, gf.epsSE)} (\u03b5 from C_{T}: ${formatNumber(gf.epsTheory, 3)}); \u00b1 standard errors`,
+        xLabel: QUANTITY.downstream,
+        yLabel: 'width/D (\u2013)',
         series: [
-          { label: '\u03c3y / D (lateral)', x: xD, y: pts.map((p) => p.sigmaY_m.mean / D), yErr: pts.map((p) => bar(p.sigmaY_m) / D), kind: 'points', marker: 'triangle', colour: theme.series[0], xOffset: -0.1 },
-          { label: '\u03c3z / D (vertical)', x: xD, y: pts.map((p) => p.sigmaZ_m.mean / D), yErr: pts.map((p) => bar(p.sigmaZ_m) / D), kind: 'points', marker: 'diamond', colour: theme.series[2], xOffset: 0.1 },
-          { label: '\u221a(\u03c3y \u03c3z) / D', x: xD, y: pts.map((p) => p.sigma_D.mean), yErr: pts.map((p) => bar(p.sigma_D)), kind: 'points', marker: 'circle', colour: theme.series[3] },
-          { label: 'linear fit of \u221a(\u03c3y \u03c3z) / D', x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.width_D, kind: 'line', colour: theme.series[1] },
+          { label: '\u03c3_{y}/D (lateral)', x: xD, y: pts.map((p) => p.sigmaY_m.mean / D), yErr: pts.map((p) => bar(p.sigmaY_m) / D), kind: 'points', marker: 'triangle', colour: theme.series[0], xOffset: -0.1 },
+          { label: '\u03c3_{z}/D (vertical)', x: xD, y: pts.map((p) => p.sigmaZ_m.mean / D), yErr: pts.map((p) => bar(p.sigmaZ_m) / D), kind: 'points', marker: 'diamond', colour: theme.series[2], xOffset: 0.1 },
+          { label: '\u221a(\u03c3_{y}\u03c3_{z})/D', x: xD, y: pts.map((p) => p.sigma_D.mean), yErr: pts.map((p) => bar(p.sigma_D)), kind: 'points', marker: 'circle', colour: theme.series[3] },
+          { label: 'linear fit of \u221a(\u03c3_{y}\u03c3_{z})/D', x: ds.gaussianCurve.x_D, y: ds.gaussianCurve.width_D, kind: 'line', colour: theme.series[1] },
         ],
         yIncludeZero: true,
         notes: [barNote, 'Points at the same distance are drawn slightly apart.', `Fit: ${gf.ok ? 'ok' : 'not usable'}${gf.note ? `, ${gf.note}` : ''}; RMSE ${formatNumber(gf.rmse, 4)}. Linear growth as in Bastankhah & Port\u00e9-Agel (2014).`],
@@ -83,11 +94,11 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       svg: linePlotSvg({
         title: 'Wake centre downstream',
         subtitle: 'Centre of the 2D Gaussian fit, relative to the hub, in rotor diameters',
-        xLabel: 'downstream distance x / D',
-        yLabel: 'centre offset / D (\u2013)',
+        xLabel: QUANTITY.downstream,
+        yLabel: 'centre offset/D (\u2013)',
         series: [
-          { label: 'lateral y_c / D (+ left looking downstream)', x: xD, y: pts.map((p) => p.yc_m.mean / D), yErr: pts.map((p) => bar(p.yc_m) / D), kind: 'both', marker: 'circle', colour: theme.series[0] },
-          { label: 'vertical (z_c \u2212 z_hub) / D', x: xD, y: pts.map((p) => (p.zc_m.mean - H) / D), yErr: pts.map((p) => bar(p.zc_m) / D), kind: 'both', marker: 'square', colour: theme.series[2], dash: '5 3' },
+          { label: 'lateral y_{c}/D (+ left looking downstream)', x: xD, y: pts.map((p) => p.yc_m.mean / D), yErr: pts.map((p) => bar(p.yc_m) / D), kind: 'both', marker: 'circle', colour: theme.series[0] },
+          { label: 'vertical (z_{c} \u2212 z_{hub})/D', x: xD, y: pts.map((p) => (p.zc_m.mean - H) / D), yErr: pts.map((p) => bar(p.zc_m) / D), kind: 'both', marker: 'square', colour: theme.series[2], dash: '5 3' },
         ],
         yIncludeZero: true,
         yReference: 0,
@@ -112,10 +123,10 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       for (let j = 0; j <= 40; j++) {
         const z = z0 + ((z1 - z0) * j) / 40;
         zs.push(z);
-        vs.push(p.law === 'power' ? p.uRef_ms * (z / p.zRef_m) ** p.alpha : (p.uStar_ms / 0.4) * Math.log(z / p.z0_m));
+        vs.push(lawSpeed(p, z));
       }
-      const law = p.law === 'power' ? `\u03b1 = ${formatNumber(p.alpha, 3)}` : `u* = ${formatNumber(p.uStar_ms, 3)} m/s, z0 = ${formatNumber(p.z0_m, 3)} m`;
-      series.push({ label: `window ${r.window.index}: ${formatNumber(p.hubSpeed_ms, 1)} m/s at hub, ${law}`, x: p.speeds_ms, y: p.heights_m, kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4] });
+      const law = p.law === 'power' ? `\u03b1\u00a0=\u00a0${formatNumber(p.alpha, 3)}` : `u_{*}\u00a0=\u00a0${qty(p.uStar_ms, 'm/s', 3)}, z_{0}\u00a0=\u00a0${qty(p.z0_m, 'm', 3)}`;
+      series.push({ label: `window ${r.window.index}: ${qty(p.hubSpeed_ms, 'm/s', 1)} at hub, ${law}`, x: p.speeds_ms, y: p.heights_m, kind: 'points', colour, marker: (['circle', 'square', 'triangle', 'diamond'] as const)[k % 4] });
       series.push({ label: `window ${r.window.index}, fitted ${p.law} law`, x: vs, y: zs, kind: 'line', colour });
     });
     figs.push({
@@ -124,12 +135,12 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       svg: linePlotSvg({
         title: 'Inflow profiles',
         subtitle: `${shown[0].inflow.source === 'plane' ? `from the undisturbed cells of plane ${pid}` : `from the ${shown[0].inflow.source} reference`} \u00b7 ${shown.length} of ${rows.length} windows shown`,
-        xLabel: 'horizontal wind speed (m/s)',
-        yLabel: 'height above ground (m)',
+        xLabel: QUANTITY.speed,
+        yLabel: QUANTITY.height,
         series,
         plotWidth: 400,
         plotHeight: 340,
-        notes: [shown[0].inflow.law === 'power' ? 'Power law V = V_ref (z / z_ref)^\u03b1, as in the normal wind profile of IEC 61400-1.' : 'Log law V = (u* / 0.40) ln(z / z0), von K\u00e1rm\u00e1n constant 0.40.'],
+        notes: [LAW_NOTE[shown[0].inflow.law]],
       }),
     });
   }
@@ -148,7 +159,7 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       const relative = bins.some((b) => Number.isFinite(b.deflection_m));
       anyAbsolute ||= !relative;
       series.push({
-        label: `${pid} (x = ${formatNumber(x_D, 1)} D), measured${relative ? '' : ' centre (no \u03b3 = 0 bin)'}`,
+        label: `${pid} (x\u00a0=\u00a0${qty(x_D, 'D', 1)}), measured${relative ? '' : ' centre (no \u03b3\u00a0=\u00a00 bin)'}`,
         x: bins.map((b) => b.gammaMean_deg),
         y: bins.map((b) => (relative ? b.deflection_m : b.yc_m) / D),
         yErr: bins.map((b) => (relative ? b.deflectionCi95_m : Number.isFinite(b.ci95_m) ? b.ci95_m : b.sd_m) / D),
@@ -165,15 +176,15 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       description: 'wake-centre deflection against yaw offset with published model curves',
       svg: linePlotSvg({
         title: 'Wake deflection against yaw offset',
-        subtitle: `Ct = ${formatNumber(st.ct, 2)} \u00b7 turbulence intensity ${formatNumber(st.turbulenceIntensity, 2)} \u00b7 yaw offset positive = nacelle turned clockwise seen from above`,
-        xLabel: 'yaw offset \u03b3 (degrees)',
-        yLabel: anyAbsolute ? 'lateral wake centre y_c / D (+ left)' : 'deflection \u0394y_c / D (+ left)',
+        subtitle: `C_{T}\u00a0=\u00a0${formatNumber(st.ct, 2)} \u00b7 turbulence intensity ${formatNumber(st.turbulenceIntensity, 2)} \u00b7 yaw offset positive = nacelle turned clockwise seen from above`,
+        xLabel: QUANTITY.yaw,
+        yLabel: anyAbsolute ? 'y_{c}/D, lateral wake centre (+ left)' : '\u0394y_{c}/D, deflection (+ left)',
         series,
         yReference: 0,
         notes: [
           anyAbsolute
-            ? 'Planes without a \u03b3 = 0 bin show the bin-mean centre itself. Error bars: 95 % confidence interval of the bin mean.'
-            : 'Deflection: bin-mean wake centre minus the mean centre of the \u03b3 = 0 bin of the same plane. Error bars: 95 % confidence interval (both bins combined).',
+            ? 'Planes without a \u03b3\u00a0=\u00a00 bin show the bin-mean centre itself. Error bars: 95\u00a0% confidence interval of the bin mean.'
+            : 'Deflection: bin-mean wake centre minus the mean centre of the \u03b3\u00a0=\u00a00 bin of the same plane. Error bars: 95\u00a0% confidence interval (both bins combined).',
           'Models: Jim\u00e9nez, Crespo & Migoya (2010), Wind Energy 13(6); Bastankhah & Port\u00e9-Agel (2016), J. Fluid Mech. 806.',
           st.note,
         ].filter(Boolean),

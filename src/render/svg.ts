@@ -4,6 +4,7 @@
  * renders it at any density (dots per inch).
  */
 import { esc } from './escape.ts';
+import { plainText, richSvg, wrapText } from './richText.ts';
 import { theme } from './theme.ts';
 
 /** A coordinate for markup: at most two decimals, no trailing zeros. */
@@ -20,7 +21,7 @@ export function svgDocument(width: number, height: number, title: string, body: 
     `<?xml version="1.0" encoding="UTF-8"?>\n` +
     `<svg xmlns="http://www.w3.org/2000/svg" width="${w.toFixed(3)}in" height="${h.toFixed(3)}in" ` +
     `viewBox="0 0 ${n(width)} ${n(height)}" font-family="${esc(theme.font)}" fill="${theme.ink}">\n` +
-    `<title>${esc(title)}</title>\n` +
+    `<title>${esc(plainText(title))}</title>\n` +
     (defs ? `<defs>${defs}</defs>\n` : '') +
     `<rect x="0" y="0" width="${n(width)}" height="${n(height)}" fill="${theme.paper}"/>\n` +
     body +
@@ -39,11 +40,13 @@ export interface TextOptions {
   dy?: number;
 }
 
+/** A <text> element. `content` may carry sub- and superscript markup (`z_{hub}`, see richText.ts). */
 export function text(x: number, y: number, content: string, o: TextOptions = {}): string {
+  const size = o.size ?? 11;
   const attrs = [
     `x="${n(x)}"`,
     `y="${n(y)}"`,
-    `font-size="${o.size ?? 11}"`,
+    `font-size="${size}"`,
     o.anchor && o.anchor !== 'start' ? `text-anchor="${o.anchor}"` : '',
     o.weight === 'bold' ? 'font-weight="bold"' : '',
     o.fill ? `fill="${o.fill}"` : '',
@@ -51,22 +54,15 @@ export function text(x: number, y: number, content: string, o: TextOptions = {})
     o.cls ? `class="${o.cls}"` : '',
     o.dy ? `dy="${o.dy}em"` : '',
   ].filter(Boolean);
-  return `<text ${attrs.join(' ')}>${esc(content)}</text>\n`;
+  const inner = richSvg(content, size);
+  // librsvg drops spaces at the edges of a <tspan> (even no-break spaces) unless white space is preserved.
+  if (inner.includes('<tspan')) attrs.push('xml:space="preserve"');
+  return `<text ${attrs.join(' ')}>${inner}</text>\n`;
 }
 
-/** Splits a label into lines of at most `width` characters at spaces. */
-export function wrap(label: string, width: number): string[] {
-  const words = label.split(/\s+/).filter(Boolean);
-  const lines: string[] = [];
-  let cur = '';
-  for (const w of words) {
-    if (cur && cur.length + 1 + w.length > width) {
-      lines.push(cur);
-      cur = w;
-    } else cur = cur ? `${cur} ${w}` : w;
-  }
-  if (cur) lines.push(cur);
-  return lines.length ? lines : [''];
+/** Splits a label into lines at most `width` user units wide at font size `size` (see richText.wrapText). */
+export function wrap(label: string, width: number, size = 11, bold = false): string[] {
+  return wrapText(label, width, size, bold);
 }
 
 /** A linear map from [d0, d1] to [r0, r1]. */

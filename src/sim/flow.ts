@@ -25,6 +25,8 @@ export interface WakeTruthParams {
   lateralOffset: number;
   /** Peak tangential speed at x = 3 D, m/s. */
   swirl: number;
+  /** Veer: the wind direction (from) turns clockwise by this many degrees per 100 m of height above the hub. */
+  veer_degPer100m?: number;
 }
 
 export interface WakeAtX {
@@ -92,18 +94,31 @@ function deflectionTable(p: WakeTruthParams, x: number): number {
 /** Writes the true (u, v, w) at rotor-frame point (x, y, z) into out; `wake` from wakeAt(x) may be passed in. */
 export function trueVelocity(p: WakeTruthParams, x: number, y: number, z: number, out: Float64Array, wake?: WakeAtX): void {
   const zz = Math.max(z, 0.5);
-  const inflow = p.hubSpeed * Math.pow(zz / p.hubHeight, p.shearExponent);
+  let inflow = p.hubSpeed * Math.pow(zz / p.hubHeight, p.shearExponent);
+  // Veer: a clockwise turn (seen from above) of the wind by delta gives (u, v) = S (cos delta, -sin delta) in the
+  // rotor frame of the hub-height direction (y points left).
+  const veer = p.veer_degPer100m ? ((p.veer_degPer100m * (z - p.hubHeight)) / 100) * (Math.PI / 180) : 0;
+  const cv = Math.cos(veer), sv = -Math.sin(veer);
+  if (x < 0) {
+    // Upstream induction: the on-axis vortex-sheet ratio 1 - a (1 - xi / sqrt(1 + xi^2)), xi = -x/R, a from
+    // momentum theory (nacelle/induction.ts), tapered off the axis with a Gaussian of width R (a simulator choice,
+    // not a published model).
+    const R = p.diameter / 2, xi = -x / R;
+    const a = (1 - Math.sqrt(1 - Math.min(1, p.ct * Math.cos((p.yaw_deg * Math.PI) / 180) ** 2))) / 2;
+    const taper = Math.exp(-(y * y + (z - p.hubHeight) ** 2) / (2 * R * R));
+    inflow *= 1 - a * (1 - xi / Math.sqrt(1 + xi * xi)) * taper;
+  }
   if (x < 0.5 * p.diameter) {
-    out[0] = inflow; out[1] = 0; out[2] = 0;
+    out[0] = inflow * cv; out[1] = inflow * sv; out[2] = 0;
     return;
   }
   const wk = wake ?? wakeAt(x, p);
   const dy = y - wk.yc, dz = z - wk.zc;
   const g = Math.exp(-(dy * dy) / (2 * wk.sigmaY * wk.sigmaY) - (dz * dz) / (2 * wk.sigmaZ * wk.sigmaZ));
-  out[0] = inflow * (1 - wk.amplitude * g);
+  out[0] = inflow * cv * (1 - wk.amplitude * g);
   const r = Math.hypot(dy, dz);
   const s = Math.sqrt(wk.sigmaY * wk.sigmaZ);
   const vt = r > 0 ? p.swirl * Math.min(1, (3 * p.diameter) / x) * (r / s) * Math.exp(0.5 - (r * r) / (2 * s * s)) : 0;
-  out[1] = r > 0 ? (vt * dz) / r : 0;
+  out[1] = (r > 0 ? (vt * dz) / r : 0) + inflow * sv;
   out[2] = r > 0 ? (-vt * dy) / r : 0;
 }

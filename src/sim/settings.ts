@@ -28,6 +28,9 @@ export const simSettingsSchema = z
     gatesAfter: z.number().int().min(0).default(4).describe('range gates recorded after the target gate'),
     noise_ms: finite().min(0).default(0.12).describe('radial-velocity estimator noise at good CNR, m/s'),
     spikeFraction: finite().min(0).max(0.2).default(0.004).describe('fraction of samples replaced by spikes'),
+    veer_degPer100m: finite().default(0).describe('veer: the wind direction turns clockwise by this per 100 m above the hub, degrees; default 0'),
+    shearChange: finite().default(0).describe('the shear exponent changes by this per window (cycled +, 0, -), for nacelle-instrument checks; default 0'),
+    turbineSeriesGap_s: z.tuple([finite().min(0), finite().positive()]).optional().describe('leave a gap in the turbine series: [start after the record start, length], s (bad-input tests)'),
     hardTargetRaysPerScan: z.number().int().min(0).default(2).describe('rays per scan aimed slightly below the horizon'),
     yawOffsetsByTurbine_deg: z
       .record(z.string(), z.array(finite()).min(1))

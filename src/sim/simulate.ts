@@ -29,6 +29,9 @@ import { thrustCoefficientAt } from '../campaign/thrust.ts';
 import { planeOrigin } from '../campaign/turbines.ts';
 import { siteTruth, siteVelocity, type GroundFn, type SiteState, type SiteTurbineTruth } from './siteFlow.ts';
 import { writeSiteSeries, writeTerrainRaster, writeSiteTruth } from './siteOutputs.ts';
+import type { Vec3 } from '../campaign/types.ts';
+import type { Series } from '../io/series.ts';
+import { inclinometerSeries, scanSingleInstrument, turbineSeriesOf, writeGeometryTruth } from './singleInstrument.ts';
 
 export interface SimulationSummary {
   files: string[];
@@ -96,7 +99,8 @@ export function windowTruths(c: Campaign, s: SimSettings): WindowTruth[] {
       hubSpeed,
       hubHeight: c.turbine.hubHeight_m,
       diameter: c.turbine.rotorDiameter_m,
-      shearExponent: s.shearExponent,
+      shearExponent: s.shearExponent + s.shearChange * [1, 0, -1][w % 3],
+      veer_degPer100m: s.veer_degPer100m,
       ct: thrustCoefficientAt(c.turbine.thrustCoefficient, s.hubSpeed_ms).ct,
       yaw_deg: yaw,
       kStar: s.wakeGrowth_kstar,
@@ -164,6 +168,11 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
   }
   if (c.site.terrain && s.terrain) await writeTerrainRaster(c, s, ground);
 
+  // The turbine series (and inclinometer series) are made first: instruments on the nacelle turn with it.
+  const turbineSeries = c.turbine.series ? turbineSeriesOf(c, s, truths, L) : undefined;
+  const orientationSeries = new Map<string, Series>();
+  for (const ins of c.instruments) if (ins.orientationSeries) orientationSeries.set(ins.id, inclinometerSeries(tStart, tEnd, ins.index));
+
   const u = new Float64Array(3);
   const weightsOffsets = [-1, -0.5, 0, 0.5, 1];
   for (const ins of c.instruments) {
@@ -197,7 +206,9 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     };
     const windowAt = (time: number) => truths[Math.min(truths.length - 1, Math.max(0, Math.floor((time - tStart) / L)))];
 
-    const measureRay = (time: number, az: number, el: number, targetRange: number) => {
+    // One ray: samples at the given true ranges along nSite from origin (default: the instrument's calibrated beam
+    // at the reported angles, from its position); the reported angles are written as given.
+    const measureRay = (time: number, az: number, el: number, ranges: number[], nSite: Vec3 = calibratedUnitVector(R, az, el), origin: Vec3 = ins.position, cnrRef_m = 250) => {
       const wt = windowAt(time);
       const frame = rotorFrame(wt.direction_deg, c.turbine.position);
       const velocity = (pk: ArrayLike<number>) => {
@@ -209,12 +220,10 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
         trueVelocity(wt.params, q[0], q[1], q[2], u);
         return dirFromRotor(frame, u);
       };
-      const nSite = calibratedUnitVector(R, az, el);
       const lowAerosol = rnd() < 0.015;
-      for (let j = -s.gatesBefore; j <= s.gatesAfter; j++) {
-        const rTrue = targetRange + j * gate;
+      for (const rTrue of ranges) {
         if (rTrue <= 20) continue;
-        const p = beamPoint(ins.position, nSite, rTrue);
+        const p = beamPoint(origin, nSite, rTrue);
         let vr: number, cnr: number;
         if (p[2] < ground(p[0], p[1])) {
           // Ground returns: usually strong (caught by the CNR ceiling), at grazing incidence sometimes not.
@@ -223,12 +232,12 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
         } else {
           let acc = 0;
           for (let k = 0; k < wOff.length; k++) {
-            const pk = beamPoint(ins.position, nSite, rTrue + wOff[k]);
+            const pk = beamPoint(origin, nSite, rTrue + wOff[k]);
             const us = velocity(pk);
             acc += wts[k] * (nSite[0] * us[0] + nSite[1] * us[1] + nSite[2] * us[2]);
           }
           const turb = s.turbulence_ms * gaussian(rnd);
-          cnr = lowAerosol ? -30 + 2 * gaussian(rnd) : -4 - 30 * Math.log10(rTrue / 250) + 1.5 * gaussian(rnd);
+          cnr = lowAerosol ? -30 + 2 * gaussian(rnd) : -4 - 30 * Math.log10(rTrue / cnrRef_m) + 1.5 * gaussian(rnd);
           const sigma = s.noise_ms * Math.max(1, Math.pow(10, (-15 - cnr) / 20));
           vr = acc / wSum + turb + sigma * gaussian(rnd);
           if (cnr < -27) vr = -20 + 40 * rnd();
@@ -238,6 +247,16 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
       }
     };
 
+    const gatesAround = (target: number) => Array.from({ length: s.gatesBefore + s.gatesAfter + 1 }, (_, k) => target + (k - s.gatesBefore) * gate);
+    if (ins.role !== 'plane') {
+      // Profilers, nacelle instruments and trackers run their own pattern (singleInstrument.ts).
+      scanSingleInstrument(ins, c, { start_s: tStart + rnd() * 2, end_s: tEnd }, turbineSeries, orientationSeries.get(ins.id), measureRay);
+      out.write(buf);
+      await out.close();
+      files.push(path);
+      rows[ins.id] = n;
+      continue;
+    }
     let prev: { az: number; el: number } | undefined;
     const slew = (az: number, el: number) => {
       if (!prev) return 0;
@@ -250,7 +269,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
         // A ray just below the horizon toward the turbine: its far gates are ground returns.
         const st = steerTo(ins.position, ins.calibration, [c.turbine.position[0], c.turbine.position[1], c.turbine.position[2]]);
         t += slew(st.azimuth_deg, -0.6);
-        measureRay(t, st.azimuth_deg, -0.6, 250);
+        measureRay(t, st.azimuth_deg, -0.6, gatesAround(250));
         prev = { az: st.azimuth_deg, el: -0.6 };
         t += s.dwell_s;
       }
@@ -262,7 +281,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
         for (let k = 0; k < rays; k++) {
           const tr = t + k / s.rayRate_hz;
           if (tr >= tEnd) break;
-          measureRay(tr, st.azimuth_deg, st.elevation_deg, st.range_m + ins.calibration.rangeOffset_m);
+          measureRay(tr, st.azimuth_deg, st.elevation_deg, gatesAround(st.range_m + ins.calibration.rangeOffset_m));
         }
         prev = { az: st.azimuth_deg, el: st.elevation_deg };
         t += s.dwell_s;
@@ -284,19 +303,22 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     writeFileAtomic(c.windDirection.file, lines.join('\n') + '\n');
     files.push(c.windDirection.file);
   }
-  if (!site && c.turbine.series) {
+  if (!site && c.turbine.series && turbineSeries) {
     const lines = ['time,yaw_deg,power_kw'];
-    const area = (Math.PI * D * D) / 4;
-    for (const wt of truths)
-      for (let m = 0; m < L / 60; m++) {
-        const g = (wt.yaw_deg * Math.PI) / 180;
-        const p = Math.min(3600, (0.5 * 1.225 * area * wt.params.hubSpeed ** 3 * 0.45 * Math.cos(g) ** 3) / 1000);
-        lines.push(`${isoTime(wt.start_s + m * 60 + 30)},${fmt((wt.direction_deg + wt.yaw_deg + 0.5 * gaussian(rnd) + 360) % 360, 2)},${fmt(p, 1)}`);
-      }
+    for (let i = 0; i < turbineSeries.time.length; i++) lines.push(`${isoTime(turbineSeries.time[i])},${fmt(turbineSeries.values.yaw_deg[i], 2)},${fmt(turbineSeries.values.power_kw[i], 1)}`);
     writeFileAtomic(c.turbine.series.file, lines.join('\n') + '\n');
     files.push(c.turbine.series.file);
   }
   if (site) files.push(...writeSiteSeries(c, s, truths, L, rnd));
+  for (const ins of c.instruments) {
+    const o = orientationSeries.get(ins.id);
+    if (!o || !ins.orientationSeries) continue;
+    const lines = ['time,tilt_deg,roll_deg'];
+    for (let i = 0; i < o.time.length; i++) lines.push(`${isoTime(o.time[i])},${fmt(o.values.tilt_deg[i], 3)},${fmt(o.values.roll_deg[i], 3)}`);
+    writeFileAtomic(ins.orientationSeries.file, lines.join('\n') + '\n');
+    files.push(ins.orientationSeries.file);
+  }
+  if (c.instruments.some((i) => i.role !== 'plane')) writeGeometryTruth(c, s, truths, L, turbineSeries);
   void dataDir;
 
   // Truth: window-mean field at every cell centre, and the wake parameters per plane and window.

@@ -10,7 +10,7 @@
 import type { FieldResult } from '../retrieval/types.ts';
 import type { Campaign } from '../campaign/types.ts';
 import type { Series } from '../io/series.ts';
-import type { WakeAnalysis, WakePlaneWindow } from './types.ts';
+import type { InflowProfile, WakeAnalysis, WakePlaneWindow } from './types.ts';
 import { resolveWakeOptions, type WakeOptions } from './options.ts';
 import { analysePlaneWindow, type InflowSpec } from './planeWindow.ts';
 import { downstreamCurves } from './downstream.ts';
@@ -24,6 +24,8 @@ export interface WakeInputs {
   inflowSeries?: Series;
   /** Turbine series (values yaw_deg, optional wind_direction_deg, power_kw). */
   turbineSeries?: Series;
+  /** Inflow kind profile: the profile inflow of a field's window (from the profile target of the same run). */
+  profileInflow?: (f: FieldResult) => InflowProfile | undefined;
 }
 
 /** The per-plane-window context analysePlaneWindow needs, from the campaign and the loaded series. */
@@ -32,7 +34,7 @@ export function planeWindowContext(campaign: Campaign, inputs: WakeInputs, optio
   const t = campaign.turbine;
   return {
     rotorDiameter_m: t.rotorDiameter_m, hubHeight_m: t.hubHeight_m, thrustCoefficient: t.thrustCoefficient as number | [number, number][],
-    inflow: campaign.inflow as InflowSpec, inflowSeries: inputs.inflowSeries, turbineSeries: inputs.turbineSeries, options: o,
+    inflow: campaign.inflow as InflowSpec, inflowSeries: inputs.inflowSeries, turbineSeries: inputs.turbineSeries, profileInflow: inputs.profileInflow, options: o,
   };
 }
 
@@ -59,8 +61,8 @@ export function summariseWake(rowsIn: WakePlaneWindow[], campaign: Campaign, inp
   const okRows = rows.filter((r) => r.flag === 'ok');
   const hub = median(okRows.map((r) => r.inflow.hubSpeed_ms));
   const { ct, source } = thrustCoefficientAt(t.thrustCoefficient as number | [number, number][], Number.isFinite(hub) ? hub : median(rows.map((r) => r.inflow.hubSpeed_ms)));
-  const downstream = downstreamCurves(rows, D, campaign.wake.yawBin_deg, ct, source, hub, o.topHatK);
   const ti = campaign.wake.turbulenceIntensity;
+  const downstream = downstreamCurves(rows, D, campaign.wake.yawBin_deg, ct, source, hub, ti, o.topHatK);
   const fitted = downstream.gaussianFit.ok && downstream.gaussianFit.kStar > 0;
   const kStar = fitted ? downstream.gaussianFit.kStar : kStarFromTurbulence(ti);
   notes.push(fitted

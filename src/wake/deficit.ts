@@ -2,11 +2,12 @@
  * Velocity-deficit field d = 1 - u / u_inf(z) per cell (dimensionless, positive in the wake), shear-aware: each
  * cell is compared with the inflow at its own height (cross plane: the mean height of the cell's samples, or its
  * centre when unknown; horizontal plane: the plane's height). NaN where u is masked or the inflow is not defined. Also the deficit's standard uncertainty su / u_inf
- * (inflow uncertainty not propagated).
+ * and, when the inflow source gives one (a profiling instrument), the inflow's own: s_d^2 = (s_u / u_inf)^2 +
+ * (u s_uinf / u_inf^2)^2 (first-order propagation, GUM JCGM 100:2008, independent errors).
  */
 import type { FieldResult } from '../retrieval/types.ts';
 import type { InflowProfile } from './types.ts';
-import { inflowAt } from './inflow.ts';
+import { inflowAt, inflowSdAt } from './inflow.ts';
 
 export interface DeficitField {
   deficit: Float64Array;
@@ -38,7 +39,8 @@ export function deficitField(f: FieldResult, inflow: InflowProfile, uIn?: Float6
       const u = f.u[k];
       if (!Number.isFinite(u) || !(ui > 0)) continue;
       deficit[k] = 1 - u / ui;
-      sdeficit[k] = f.su[k] / ui;
+      const si = inflow.speedsSd_ms ? inflowSdAt(inflow, Number.isFinite(zm) ? zm! : cellHeight(f, iz)) : 0;
+      sdeficit[k] = si > 0 ? Math.hypot(f.su[k] / ui, (u * si) / (ui * ui)) : f.su[k] / ui;
     }
   }
   return { deficit, sdeficit, uInf };

@@ -5,11 +5,14 @@
  * Renewable Energy 70, 116-123 [from memory]), with sigma = sqrt(sigma_y sigma_z), standard errors from
  * (X^T X)^-1 SSR/(n - 2) and 95 % intervals t_{0.975, n-2} SE. With two planes the line is exact (no interval); with
  * one plane eps is held at the paper's 0.2 sqrt(beta) and k* = (sigma/d0 - eps)/(x/d0). The top-hat model (Jensen
- * 1983; Katic et al. 1986) is given beside it with k from the options (0.075 onshore, common practice).
+ * 1983; Katic et al. 1986) is given beside it, its decay constant k fitted to the planes' mean centreline deficits
+ * where they allow (wakeModels.fitTopHatK), else derived from the ambient turbulence intensity, k = 0.4 I
+ * (Pena, Rethore & van der Laan 2016 [from memory]), unless given explicitly.
  */
 import type { DownstreamPoint, DownstreamResult, GaussianModelFit, ModelCurve, WakePlaneWindow } from './types.ts';
 import { stat, studentTQuantile } from './stats.ts';
-import { bpEpsilon, gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatRadius_D } from './wakeModels.ts';
+import { bpEpsilon, fitTopHatK, gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatKFromTurbulence, topHatRadius_D } from './wakeModels.ts';
+import type { TopHatModel } from './types.ts';
 
 export function downstreamPoints(rows: WakePlaneWindow[], D: number, binWidth_deg: number): DownstreamPoint[] {
   const ok = rows.filter((r) => r.orientation === 'cross' && r.flag === 'ok' && r.gaussian);
@@ -93,12 +96,30 @@ function axis(pts: DownstreamPoint[]): number[] {
   return out;
 }
 
-export function downstreamCurves(rows: WakePlaneWindow[], D: number, binWidth_deg: number, ct: number, ctSource: 'value' | 'curve', hubSpeed_ms: number, topHatK: number): DownstreamResult {
+/** The top-hat model of the run: k fitted to the planes, else from the turbulence intensity, unless given. */
+export function topHatModel(points: DownstreamPoint[], ct: number, turbulenceIntensity: number, given?: number): TopHatModel {
+  const kDefault = topHatKFromTurbulence(turbulenceIntensity);
+  const fit = fitTopHatK(points.map((p) => p.x_D), points.map((p) => p.centreDeficit.mean), ct, studentTQuantile);
+  const kSource: TopHatModel['kSource'] = given !== undefined ? 'option' : fit.ok ? 'fit' : 'inflow';
+  const k = kSource === 'option' ? given! : kSource === 'fit' ? fit.k : kDefault;
+  const kNote = kSource === 'option'
+    ? 'given in the wake options'
+    : kSource === 'fit'
+      ? `fitted to the centreline deficits of ${fit.n} plane${fit.n === 1 ? '' : 's'}${fit.note ? ` (${fit.note})` : ''}`
+      : `from the ambient turbulence intensity, k = 0.4 I with I = ${turbulenceIntensity} (Pe\u00f1a et al. 2016)${fit.note ? `; not fitted: ${fit.note}` : ''}`;
+  return {
+    k, ct, kNote, kDefault, turbulenceIntensity, kFit: fit.k, kFitSE: fit.se, kFitCI95: fit.ci95, fitPlanes: fit.n, fitRmse: fit.rmse,
+    fitOk: fit.ok, fitNote: fit.note, kSource,
+  };
+}
+
+export function downstreamCurves(rows: WakePlaneWindow[], D: number, binWidth_deg: number, ct: number, ctSource: 'value' | 'curve', hubSpeed_ms: number, turbulenceIntensity: number, topHatK?: number): DownstreamResult {
   const points = downstreamPoints(rows, D, binWidth_deg);
   const gaussianFit = fitGaussianModel(points, ct, ctSource, hubSpeed_ms);
   const xs = axis(points);
   const gaussianCurve: ModelCurve = { x_D: xs, width_D: xs.map((x) => gaussianSigma_D(x, gaussianFit.kStar, gaussianFit.eps)), deficit: [] };
   gaussianCurve.deficit = gaussianCurve.width_D.map((s) => gaussianAmplitude(s, ct));
-  const topHatCurve: ModelCurve = { x_D: xs, deficit: xs.map((x) => topHatDeficit(x, ct, topHatK)), width_D: xs.map((x) => topHatRadius_D(x, topHatK)) };
-  return { points, gaussianFit, topHat: { k: topHatK, ct, kNote: 'onshore default 0.075 (common practice)' }, gaussianCurve, topHatCurve };
+  const topHat = topHatModel(points, ct, turbulenceIntensity, topHatK);
+  const topHatCurve: ModelCurve = { x_D: xs, deficit: xs.map((x) => topHatDeficit(x, ct, topHat.k)), width_D: xs.map((x) => topHatRadius_D(x, topHat.k)) };
+  return { points, gaussianFit, topHat, gaussianCurve, topHatCurve };
 }

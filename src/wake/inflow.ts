@@ -130,6 +130,19 @@ export function inflowFixed(spec: { speed_ms: number; height_m: number; law: 'po
   return toProfile('fixed', fit, hubHeight_m, [], [], [], `fixed: ${spec.speed_ms} m/s at ${spec.height_m} m`);
 }
 
+/**
+ * Standard uncertainty of u_inf at height z from the points' own uncertainties (speedsSd_ms), interpolated linearly
+ * in height and held constant beyond the end points: conservative, as the law fitted through several points is
+ * surer than one point. 0 when the source gives none.
+ */
+export function inflowSdAt(p: InflowProfile, z: number): number {
+  const s = p.speedsSd_ms, h = p.heights_m;
+  if (!s || s.length === 0 || s.length !== h.length) return 0;
+  if (z <= h[0]) return s[0];
+  for (let i = 1; i < h.length; i++) if (z <= h[i]) return s[i - 1] + ((z - h[i - 1]) / (h[i] - h[i - 1])) * (s[i] - s[i - 1]);
+  return s[s.length - 1];
+}
+
 /** u_inf at height z for a profile (NaN when the profile is not ok). */
 export function inflowAt(p: InflowProfile, z: number): number {
   return p.ok ? evalLaw(p, z) : NaN;

@@ -34,8 +34,11 @@ export interface WakeOptions {
   maxWidth_D: number;
   /** REWS segments; 0 = automatic: floor(D / dz) clamped to [1, 10]. @default 0 */
   rewsSegments: number;
-  /** Top-hat wake expansion k (Jensen 1983): 0.075 onshore default (common practice). @default 0.075 */
-  topHatK: number;
+  /**
+   * Top-hat wake decay constant k (Jensen 1983), given explicitly. Default (undefined): fitted to the planes'
+   * centreline deficits where they allow, else 0.4 I from the ambient turbulence intensity (Pena et al. 2016).
+   */
+  topHatK?: number;
   /** Jimenez et al. (2010) wake-expansion coefficient beta. @default 0.1 (common practice) */
   jimenezBeta: number;
 }
@@ -53,7 +56,6 @@ export const defaultWakeOptions: WakeOptions = {
   minWidthCells: 0.5,
   maxWidth_D: 3,
   rewsSegments: 0,
-  topHatK: 0.075,
   jimenezBeta: 0.1,
 };
 
@@ -73,7 +75,7 @@ export function resolveWakeOptions(o: Partial<WakeOptions> = {}): WakeOptions {
   need('minWidthCells', r.minWidthCells >= 0, 'must be >= 0');
   need('maxWidth_D', r.maxWidth_D > 0, 'must be > 0');
   need('rewsSegments', Number.isInteger(r.rewsSegments) && r.rewsSegments >= 0, 'must be an integer >= 0 (0 = automatic)');
-  need('topHatK', r.topHatK > 0, 'must be > 0');
+  need('topHatK', r.topHatK === undefined || r.topHatK > 0, 'must be > 0');
   need('jimenezBeta', r.jimenezBeta > 0, 'must be > 0');
   return r;
 }

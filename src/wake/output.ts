@@ -30,9 +30,10 @@
  *   hub_speed_ms, ct, model_sigma_D (fitted Gaussian model), model_amplitude, tophat_deficit, tophat_radius_D.
  *
  * wake/profiles.csv — cuts through the wake centre, long format:
- *   plane, window, cut (horizontal: along y | vertical: along z | track: horizontal-plane lateral centre along x),
- *   coord_m, u_ms, su_ms, deficit, model (for track rows: u_ms = yc_m, su_ms = its standard error,
- *   deficit = amplitude, model = sigma_y_m).
+ *   plane, window, cut (horizontal: along y | vertical: along z), coord_m, u_ms, su_ms, deficit, model.
+ *
+ * wake/tracks.csv — horizontal planes only, one row per plane, window and downstream row of cells (a 1D Gaussian
+ *   across y): plane, window, x_m, x_D, yc_m, yc_se_m (standard error), sigma_y_m, amplitude (peak deficit).
  *
  * wake/model_fits.json — { gaussian: GaussianModelFit, topHat, gaussianCurve, topHatCurve, steering: {ct,
  *   turbulenceIntensity, note, curves}, notes }.
@@ -116,8 +117,15 @@ export function profilesCsv(a: WakeAnalysis): string {
     for (const [name, p] of [['horizontal', r.horizontal], ['vertical', r.vertical]] as const) {
       for (let i = 0; i < p.coord_m.length; i++) s += csvRow([r.planeId, r.window.index, name, p.coord_m[i], p.u_ms[i], p.su_ms[i], p.deficit[i], p.model[i]]);
     }
+  }
+  return s;
+}
+
+export function tracksCsv(a: WakeAnalysis): string {
+  let s = csvRow(['plane', 'window', 'x_m', 'x_D', 'yc_m', 'yc_se_m', 'sigma_y_m', 'amplitude']);
+  for (const r of a.rows) {
     const t = r.horizontalTrack;
-    if (t) for (let i = 0; i < t.x_m.length; i++) s += csvRow([r.planeId, r.window.index, 'track', t.x_m[i], t.yc_m[i], t.syc_m[i], t.amplitude[i], t.sigmaY_m[i]]);
+    if (t) for (let i = 0; i < t.x_m.length; i++) s += csvRow([r.planeId, r.window.index, t.x_m[i], t.x_m[i] / a.rotorDiameter_m, t.yc_m[i], t.syc_m[i], t.sigmaY_m[i], t.amplitude[i]]);
   }
   return s;
 }
@@ -144,8 +152,9 @@ export function writeWakeOutputs(a: WakeAnalysis, runDir: string, ensembleRows: 
     ['steering', 'wake/steering.csv', steeringCsv(a), 'lateral wake centre binned by yaw offset, with deflection models'],
     ['downstream', 'wake/downstream.csv', downstreamCsv(a), 'deficit amplitude, widths and centre against x/D, with model values'],
     ['profiles', 'wake/profiles.csv', profilesCsv(a), 'horizontal and vertical cuts through the wake centre'],
-    ['model-fit', 'wake/model_fits.json', modelFitsJson(a), 'Gaussian wake-model fit (k*, eps) with intervals, top-hat model, model curves'],
+    ['model-fit', 'wake/model_fits.json', modelFitsJson(a), 'Gaussian wake-model fit (k*, eps) with intervals, top-hat model (k fitted or from the inflow), model curves'],
   ];
+  if (a.rows.some((r) => r.horizontalTrack)) files.push(['tracks', 'wake/tracks.csv', tracksCsv(a), 'horizontal planes: lateral wake centre per downstream row']);
   return files.map(([kind, path, text, description]) => {
     writeFileAtomic(join(runDir, path), text);
     return { kind, path, description };

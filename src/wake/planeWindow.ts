@@ -30,7 +30,8 @@ import { median, quantile } from './stats.ts';
 export type InflowSpec =
   | { kind: 'plane'; law: 'power' | 'log' }
   | { kind: 'fixed'; speed_ms: number; height_m: number; law: 'power' | 'log'; alpha: number; z0_m: number }
-  | { kind: 'series' };
+  | { kind: 'series' }
+  | { kind: 'profile'; instrument: string; law: 'power' | 'log' };
 
 export interface PlaneWindowContext {
   rotorDiameter_m: number;
@@ -39,6 +40,8 @@ export interface PlaneWindowContext {
   inflow: InflowSpec;
   inflowSeries?: Series;
   turbineSeries?: Series;
+  /** Inflow kind profile: the profiling instrument's inflow of a field's window (undefined when it has none). */
+  profileInflow?: (f: FieldResult) => InflowProfile | undefined;
   options: WakeOptions;
   /**
    * The inflow measured upstream of the turbine (several turbines, wake/siteWakes.ts): one speed per cell of the
@@ -60,6 +63,12 @@ function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse |
     };
   }
   if (c.inflow.kind === 'fixed') return inflowFixed(c.inflow, H);
+  if (c.inflow.kind === 'profile') {
+    const p = c.profileInflow?.(f);
+    if (p) return p;
+    const none = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
+    return { ...none, source: 'profile', note: `no profile of ${c.inflow.instrument} for this window` };
+  }
   if (c.inflow.kind === 'series') {
     if (c.inflowSeries) {
       const [series, a, b] = pooled(c.inflowSeries, f);

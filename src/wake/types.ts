@@ -10,7 +10,7 @@ import type { GridSpec } from '../grid/grid.ts';
 import type { WindowInfo } from '../retrieval/types.ts';
 
 /** Where the undisturbed inflow profile came from. */
-export type InflowSource = 'series' | 'plane' | 'fixed' | 'upstream';
+export type InflowSource = 'series' | 'plane' | 'fixed' | 'profile' | 'upstream';
 /** Vertical profile law: power V = V_ref (z/z_ref)^alpha, or log V = (u_star / kappa) ln(z/z0) with kappa = 0.40. */
 export type InflowLaw = 'power' | 'log';
 
@@ -34,6 +34,8 @@ export interface InflowProfile {
   speeds_ms: number[];
   /** Cells (plane) or rows (series) behind each point. */
   counts: number[];
+  /** Standard uncertainty of each point's speed, m/s (profile source; absent otherwise: not propagated). */
+  speedsSd_ms?: number[];
   /** Root-mean-square residual of the fit over the points, m/s (NaN for 'fixed'). */
   rmse_ms: number;
   /** Coefficient of determination over the points (NaN when undefined or 'fixed'). */
@@ -252,10 +254,24 @@ export interface GaussianModelFit {
 }
 
 export interface TopHatModel {
+  /** The k of the curve: the fitted one when the fit is usable, else the default from the inflow. */
   k: number;
   ct: number;
-  /** Source of k ("common practice onshore default"). */
+  /** Where k came from, in words. */
   kNote: string;
+  /** The default from the ambient turbulence intensity, k = 0.4 I (Pena et al. 2016), and that intensity. */
+  kDefault: number;
+  turbulenceIntensity: number;
+  /** Least-squares fit to the planes' centreline deficits (NaN when not possible), with standard error and 95 % interval. */
+  kFit: number;
+  kFitSE: number;
+  kFitCI95: [number, number];
+  fitPlanes: number;
+  fitRmse: number;
+  fitOk: boolean;
+  fitNote: string;
+  /** 'fit', 'inflow' (the default) or 'option' (given explicitly). */
+  kSource: 'fit' | 'inflow' | 'option';
 }
 
 export interface DownstreamResult {

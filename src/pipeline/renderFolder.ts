@@ -1,0 +1,107 @@
+/**
+ * `wakeplane render <run folder>`: redoes the figures and the report of a finished run from its own outputs,
+ * without reading any sample again. The campaign comes from the manifest (the settings the run used), the fields
+ * from the field tables (read back one at a time), the wake analysis is recomputed from those fields and the
+ * series files (pure and quick), and the planner's maps are redrawn when the run had them. Only a complete run
+ * folder that wakeplane marked for the manifest's campaign is touched (pipeline/outputFolder.ts). The field tables, wake
+ * tables and accounting stay as they are; images and report.html are replaced, images the new selection no longer
+ * draws are removed (only files the manifest lists as this run's images), and manifest.json lists the new outputs
+ * with the time of the render.
+ */
+import { existsSync, readFileSync, rmSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type { WindowImages } from '../campaign/figures.ts';
+import type { Campaign } from '../campaign/types.ts';
+import { InputError, OutputError } from '../errors.ts';
+import { writeFileAtomic } from '../io/atomic.ts';
+import type { OutputRecord, RunManifest } from './manifest.ts';
+import { replaceRefusal } from './outputFolder.ts';
+import type { RunProgress, StageContext } from './run.ts';
+import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
+
+export interface RenderOptions {
+  /** Override output.figures.windowImages and binImages. */
+  windowImages?: WindowImages;
+  binImages?: WindowImages;
+  progress?: RunProgress;
+}
+
+export interface RenderResult {
+  runDir: string;
+  manifest: RunManifest;
+  images: number;
+  removed: number;
+  seconds: number;
+}
+
+/** The campaign a run used, from its manifest (JSON turned NaN into null: planes get theirs back). */
+export function campaignFromManifest(m: RunManifest, file: string): Campaign {
+  const c = m.settings as Campaign | undefined;
+  if (!c || typeof c !== 'object' || !Array.isArray(c.planes) || !c.turbine) throw new InputError(file, undefined, 'the manifest carries no campaign settings to render from');
+  const num = (v: unknown) => (typeof v === 'number' ? v : NaN);
+  return { ...c, planes: c.planes.map((p) => ({ ...p, x_m: num(p.x_m), z_m: num(p.z_m) })) };
+}
+
+const REDRAWN = new Set(['image', 'report', 'manifest']);
+
+export async function renderRunFolder(folder: string, opts: RenderOptions = {}): Promise<RenderResult> {
+  const t0 = performance.now();
+  const runDir = resolve(folder);
+  const manifestPath = join(runDir, 'manifest.json');
+  if (!existsSync(manifestPath)) throw new InputError(manifestPath, undefined, 'not a finished run folder (no manifest.json)');
+  let m: RunManifest;
+  try {
+    m = JSON.parse(readFileSync(manifestPath, 'utf8')) as RunManifest;
+  } catch (e) {
+    throw new InputError(manifestPath, undefined, `cannot read the manifest: ${(e as Error).message}`);
+  }
+  // Only a complete run folder wakeplane marked for this campaign is rewritten (outputFolder.ts).
+  const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
+  if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
+  const campaign = campaignFromManifest(m, manifestPath);
+  const progress = opts.progress;
+  const oldImages = m.outputs.filter((o) => o.kind === 'image').map((o) => o.path);
+  const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
+  const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
+  const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s }, warnings: [...m.warnings] };
+  const ctx: StageContext = { campaign, runDir, images: true, manifest, shared: {} };
+
+  // The wake analysis again from the field tables, without writing its tables, then the figures.
+  const wake = wakeStage({ write: false });
+  const images = imageStage({ ...(opts.windowImages ? { windowImages: opts.windowImages } : {}), ...(opts.binImages ? { binImages: opts.binImages } : {}) });
+  progress?.stage('reading field tables');
+  let t: number;
+  for await (const f of fieldsFromTables(campaign, runDir, manifest, () => true)) {
+    await wake.field!(f, ctx);
+    await images.field!(f, ctx);
+    progress?.file('fields', 1);
+  }
+  await wake.finish!(ctx);
+  progress?.stage('images');
+  t = performance.now();
+  const recs = await images.finish!(ctx);
+  manifest.outputs.push(...recs);
+  manifest.timings_s.images = (performance.now() - t) / 1000;
+  if (hadPlan) {
+    progress?.stage('planner');
+    t = performance.now();
+    manifest.outputs.push(...(await planStage().finish!(ctx)));
+    manifest.timings_s.planner = (performance.now() - t) / 1000;
+  }
+  const fresh = new Set(manifest.outputs.map((o) => o.path));
+  let removed = 0;
+  for (const p of oldImages) {
+    if (fresh.has(p) || !/^(images|plan)\/[^/]+\.(svg|png)$/.test(p)) continue;
+    rmSync(join(runDir, p), { force: true });
+    removed++;
+  }
+  // The analysis again may state a warning the run already recorded: keep each once.
+  manifest.warnings = [...new Set(manifest.warnings)];
+  manifest.rendered = { at: new Date().toISOString(), seconds: (performance.now() - t0) / 1000 };
+  progress?.stage('report');
+  manifest.outputs.push(...(await reportStage().finish!(ctx)));
+  manifest.outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
+  writeFileAtomic(manifestPath, JSON.stringify(manifest, null, 2) + '\n');
+  progress?.done();
+  return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, seconds: manifest.rendered.seconds };
+}

@@ -1,0 +1,36 @@
+/**
+ * One-dimensional Gaussian fit d(c) = A exp(-(c - c0)^2 / (2 s^2)) by Levenberg-Marquardt (wake/levenbergMarquardt.ts),
+ * with standard errors from (J^T J)^-1 SSR / (N - 3) as scipy.optimize.curve_fit gives with absolute_sigma = False.
+ */
+import { levenbergMarquardt } from '../wake/levenbergMarquardt.ts';
+
+export interface Gaussian1DFit {
+  amplitude: number;
+  centre: number;
+  width: number;
+  stderr: [number, number, number];
+  r2: number;
+  converged: boolean;
+}
+
+export function fitGaussian1D(c: number[], d: number[], p0?: [number, number, number]): Gaussian1DFit {
+  let peak = -Infinity, at = 0;
+  d.forEach((v, i) => { if (v > peak) { peak = v; at = c[i]; } });
+  const span = Math.max(...c) - Math.min(...c);
+  const start = p0 ?? [peak, at, span / 8];
+  const r = levenbergMarquardt({
+    n: c.length, y: d,
+    model: (p, i, gr) => {
+      const dc = c[i] - p[1];
+      const e = Math.exp((-0.5 * dc * dc) / (p[2] * p[2]));
+      gr[0] = e; gr[1] = (p[0] * e * dc) / (p[2] * p[2]); gr[2] = (p[0] * e * dc * dc) / (p[2] * p[2] * p[2]);
+      return p[0] * e;
+    },
+  }, [...start]);
+  const [A, c0, s] = r.params;
+  let mean = 0;
+  for (const v of d) mean += v / d.length;
+  let sst = 0;
+  for (const v of d) sst += (v - mean) ** 2;
+  return { amplitude: A, centre: c0, width: Math.abs(s), stderr: [r.stderr[0], r.stderr[1], r.stderr[2]], r2: sst > 0 ? 1 - r.ssr / sst : NaN, converged: r.converged };
+}

@@ -1,0 +1,143 @@
+/**
+ * Single-instrument wake tracking: one scanner sees only the line-of-sight component, so the wind is taken to blow
+ * along an assumed direction D (the window's wind direction, horizontal, d = -(sin D, cos D, 0)). Per bin, the
+ * apparent streamwise speed is S_app = mean(v_r) / (mean(n) . d); the deficit is 1 - S_app / S_inf(z), with S_inf the
+ * campaign's inflow reference at the bin's height when it has one (a profiler, a fixed profile), else the mean
+ * apparent speed of the outer fifth of the bins on each side of the sector (at least two each; assumed outside the
+ * wake). Bins whose beam makes more than maxBeamAngle_deg with d are masked: the projection n . d becomes small and
+ * divides the noise up.
+ *
+ * Bias of the direction assumption: if the flow comes from D + delta, a beam at angle beta from d sees
+ * S cos(beta - delta) instead of S cos(beta), so S_app = S (cos delta + tan beta sin delta): across a sector tan beta
+ * varies, which tilts the deficit profile and moves its centre. The analysis is repeated with D +/- delta (delta =
+ * track.directionUncertainty_deg; the bins kept, only the projection changed) and the largest change of the fitted
+ * centre and width is reported as the direction bias.
+ *
+ * Per downstream bin: a 1D Gaussian across the wake (gaussian1d.ts; at least 5 bins) and the deficit-weighted
+ * centroid of the bins above half the peak. Flags (first that applies): no_free_stream, too_few_bins, no_wake (peak
+ * below minDeficit), not_converged, off_edge.
+ */
+import type { CellStats } from '../retrieval/cellStats.ts';
+import { fitGaussian1D } from './gaussian1d.ts';
+import type { TrackerLayout } from './target.ts';
+import type { TrackFlag, TrackPoint } from './types.ts';
+
+export interface TrackSolveContext {
+  window: TrackPoint['window'];
+  /** Assumed flow direction (from), degrees. */
+  direction_deg: number;
+  rotorDiameter_m: number;
+  /** Free-stream speed at a height from the campaign's inflow reference (undefined: estimate from the sector). */
+  freeStreamAt?: (z_m: number) => number;
+  freeStreamSource?: string;
+  /** Smallest peak deficit that counts as a wake. @default 0.05 */
+  minDeficit?: number;
+  /** Minimum kept samples in a bin. @default 3 */
+  minSamples?: number;
+}
+
+interface Bin { c: number; vr: number; n: number; a: [number, number, number]; z: number; sdv: number }
+
+function analyseRow(bins: Bin[], dir_deg: number, maxAngle_deg: number, ctx: TrackSolveContext) {
+  const D = (dir_deg * Math.PI) / 180, dE = -Math.sin(D), dN = -Math.cos(D);
+  const cosMax = Math.cos((maxAngle_deg * Math.PI) / 180);
+  const use = bins.filter((b) => {
+    const len = Math.hypot(...b.a);
+    return Math.abs(b.a[0] * dE + b.a[1] * dN) / len >= cosMax;
+  });
+  const app = use.map((b) => b.vr / (b.a[0] * dE + b.a[1] * dN));
+  const sapp = use.map((b) => b.sdv / Math.sqrt(b.n) / Math.abs(b.a[0] * dE + b.a[1] * dN));
+  let sInf: number[];
+  let source: string;
+  if (ctx.freeStreamAt) {
+    sInf = use.map((b) => ctx.freeStreamAt!(b.z));
+    source = ctx.freeStreamSource ?? 'inflow reference';
+  } else {
+    const k = Math.max(2, Math.floor(use.length / 5));
+    if (use.length < 2 * k + 1) return null;
+    const edge = [...app.slice(0, k), ...app.slice(app.length - k)];
+    const m = edge.reduce((s, v) => s + v, 0) / edge.length;
+    sInf = use.map(() => m);
+    source = `outer ${k} bins on each side`;
+  }
+  const c = use.map((b) => b.c);
+  const d = app.map((s, i) => 1 - s / sInf[i]);
+  const sd = sapp.map((s, i) => s / sInf[i]);
+  return { c, d, sd, sInf: sInf.length ? sInf.reduce((s, v) => s + v, 0) / sInf.length : NaN, source, samples: use.reduce((s, b) => s + b.n, 0) };
+}
+
+function fitRow(c: number[], d: number[], lo: number, hi: number, step: number, minDef: number) {
+  const ok = c.map((_, i) => i).filter((i) => Number.isFinite(d[i]));
+  const cc = ok.map((i) => c[i]), dd = ok.map((i) => d[i]);
+  if (cc.length < 5) return { flag: 'too_few_bins' as TrackFlag, reason: `${cc.length} usable bins < 5`, fit: null, centroid: NaN };
+  const peak = Math.max(...dd);
+  if (!(peak >= minDef)) return { flag: 'no_wake' as TrackFlag, reason: `peak deficit ${peak.toFixed(3)} < ${minDef}`, fit: null, centroid: NaN };
+  let sw = 0, swc = 0;
+  dd.forEach((v, i) => { if (v >= peak / 2) { sw += v; swc += v * cc[i]; } });
+  const centroid = swc / sw;
+  const fit = fitGaussian1D(cc, dd);
+  if (!fit.converged || !(fit.width > 0) || !Number.isFinite(fit.centre)) return { flag: 'not_converged' as TrackFlag, reason: 'Gaussian fit did not converge', fit, centroid };
+  if (!(fit.centre > lo + step && fit.centre < hi - step)) return { flag: 'off_edge' as TrackFlag, reason: `centre ${fit.centre.toFixed(1)} m outside or within one bin of the edge`, fit, centroid };
+  if (!(fit.amplitude >= minDef)) return { flag: 'no_wake' as TrackFlag, reason: `fitted amplitude ${fit.amplitude.toFixed(3)} < ${minDef}`, fit, centroid };
+  return { flag: 'ok' as TrackFlag, reason: '', fit, centroid };
+}
+
+/** Per scan (scan >= 0) and for the whole window (scan -1), per downstream bin. */
+export function solveTrack(st: CellStats, layout: TrackerLayout, ctx: TrackSolveContext): TrackPoint[] {
+  const ins = layout.instrument, tr = ins.track!;
+  const I = st.instrumentCount, nx = layout.x.length, na = layout.across.length;
+  const minN = ctx.minSamples ?? 3, minDef = ctx.minDeficit ?? 0.05;
+  const delta = tr.directionUncertainty_deg;
+  const lo = layout.across[0], hi = layout.across[na - 1], step = tr.across_m.step;
+  const out: TrackPoint[] = [];
+  const scanList = layout.scans > 1 ? [-1, ...Array.from({ length: layout.scans }, (_, s) => s)] : [-1];
+  for (const scan of scanList) {
+    for (let ix = 0; ix < nx; ix++) {
+      const bins: Bin[] = [];
+      for (let ia = 0; ia < na; ia++) {
+        let n = 0, sv = 0, sv2 = 0, sx = 0, sy = 0, sz = 0, spy = 0, spz = 0;
+        const s0 = scan < 0 ? 0 : scan, s1 = scan < 0 ? layout.scans : scan + 1;
+        for (let s = s0; s < s1; s++) {
+          const key = (layout.offset + s * nx * na + ix * na + ia) * I + ins.index;
+          if (!st.n[key]) continue;
+          n += st.n[key]; sv += st.sv[key]; sv2 += st.sv2[key]; sx += st.sx[key]; sy += st.sy[key]; sz += st.sz[key]; spy += st.spy[key]; spz += st.spz[key];
+        }
+        if (n < minN) continue;
+        const m = sv / n;
+        const sdv = Math.max(0.01, Math.sqrt(Math.max(0, sv2 - sv * m) / Math.max(1, n - 1)));
+        bins.push({ c: spy / n, vr: m, n, a: [sx / n, sy / n, sz / n], z: spz / n, sdv });
+      }
+      const x = layout.x[ix];
+      const base: TrackPoint = {
+        instrumentId: ins.id, window: ctx.window, scan, x_m: x, x_D: x / ctx.rotorDiameter_m, axis: tr.sector === 'horizontal' ? 'y' : 'z',
+        freeStream_ms: NaN, freeStreamSource: '', amplitude: NaN, centre_m: NaN, scentre_m: NaN, width_m: NaN, swidth_m: NaN, centroid_m: NaN,
+        r2: NaN, bins: bins.length, samples: bins.reduce((s, b) => s + b.n, 0), directionBiasCentre_m: NaN, directionBiasWidth_m: NaN,
+        flag: 'ok', reason: '', profile: { c_m: [], deficit: [], sdeficit: [] },
+      };
+      const row = analyseRow(bins, ctx.direction_deg, tr.maxBeamAngle_deg, ctx);
+      if (!row) { out.push({ ...base, flag: bins.length < 5 ? 'too_few_bins' : 'no_free_stream', reason: bins.length < 5 ? `${bins.length} bins with data < 5` : 'too few bins to estimate the free stream from the sector edges' }); continue; }
+      const res = fitRow(row.c, row.d, lo, hi, step, minDef);
+      const p: TrackPoint = {
+        ...base, freeStream_ms: row.sInf, freeStreamSource: row.source, flag: res.flag, reason: res.reason, centroid_m: res.centroid,
+        profile: { c_m: row.c, deficit: row.d, sdeficit: row.sd },
+      };
+      if (res.fit) {
+        p.amplitude = res.fit.amplitude; p.centre_m = res.fit.centre; p.width_m = res.fit.width;
+        p.scentre_m = res.fit.stderr[1]; p.swidth_m = res.fit.stderr[2]; p.r2 = res.fit.r2;
+      }
+      if (res.flag === 'ok' && delta > 0) {
+        let bc = 0, bw = 0;
+        for (const sgn of [-1, 1]) {
+          const alt = analyseRow(bins, ctx.direction_deg + sgn * delta, tr.maxBeamAngle_deg, ctx);
+          const f = alt ? fitRow(alt.c, alt.d, lo, hi, step, minDef) : null;
+          if (!f?.fit || f.flag !== 'ok') { bc = NaN; bw = NaN; break; }
+          bc = Math.max(bc, Math.abs(f.fit.centre - p.centre_m));
+          bw = Math.max(bw, Math.abs(f.fit.width - p.width_m));
+        }
+        p.directionBiasCentre_m = bc; p.directionBiasWidth_m = bw;
+      }
+      out.push(p);
+    }
+  }
+  return out;
+}
