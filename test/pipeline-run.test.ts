@@ -101,12 +101,12 @@ describe('a whole run on a simulated campaign', () => {
       for (const r of readCsv(join(run, 'fields', f))) {
         const t = truth.get(`${r.window_start.slice(0, 16)}|${Number(r.y_m)}|${Number(r.z_m)}`)!;
         ['u', 'v', 'w'].forEach((c, k) => {
-          if (r[c] !== '' && !(c === 'w' && r.mask_w)) err[c].push(Number(r[c]) - t[k]);
+          if (r[`${c}_ms`] !== '' && !(c === 'w' && r.w_mask)) err[c].push(Number(r[`${c}_ms`]) - t[k]);
         });
-        if (r.dop_w !== '' && Number(r.dop_w) > 3) {
+        if (r.w_amplification !== '' && Number(r.w_amplification) > 3) {
           checkedMasks++;
-          expect(r.w).toBe('');
-          expect(r.mask_w).toBe('amplification_above_threshold');
+          expect(r.w_ms).toBe('');
+          expect(r.w_mask).toBe('amplification_above_threshold');
         }
       }
     }

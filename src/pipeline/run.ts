@@ -12,7 +12,10 @@ import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
 import { checkHeader } from '../io/csvSamples.ts';
-import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
+import { openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
+import { dictionaryJson, dictionaryMarkdown } from '../records/describe.ts';
+import { rejectedRowsTable } from '../records/tables/run.ts';
+import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { isoTime } from '../io/time.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
@@ -22,7 +25,7 @@ import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { fieldTableName, writeFieldTable } from './fieldTable.ts';
 import { hashFiles } from './hashing.ts';
-import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
+import type { OutputRecord, RunManifest, WindowRecord } from '../records/manifest.ts';
 import { directionForWindow, windowScheme } from './windows.ts';
 import { InputError } from '../errors.ts';
 import { VERSION } from '../version.ts';
@@ -72,6 +75,8 @@ export interface RunResult {
   /** What the stages handed on (for example the wake analysis and the plan summary). */
   shared: Record<string, unknown>;
 }
+
+const rejectedLayout = tableLayout(rejectedRowsTable);
 
 const silent: RunProgress = { stage() {}, file() {}, done() {} };
 
@@ -144,7 +149,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     let rejectedCount = 0;
     if (c.output.writeRejected) {
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
-      rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
+      rejectedOut.write(headerLine(rejectedLayout));
     }
     let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
     const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
@@ -179,7 +184,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
         onRejectedRows(rows) {
           rejectedCount += rows.length;
-          if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
+          if (rejectedOut) for (const r of rows) rejectedOut.write(rowLine(rejectedLayout, [relative(c.baseDir, r.file) || r.file, r.line, r.variable, r.ray, r.gate, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
         async onWindow(w) {
@@ -254,6 +259,10 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
+    writeFileAtomic(join(runDir, 'dictionary.md'), dictionaryMarkdown());
+    writeFileAtomic(join(runDir, 'dictionary.json'), dictionaryJson());
+    outputs.push({ kind: 'dictionary', path: 'dictionary.md', description: 'every output column and variable: unit, frame, meaning, precision' });
+    outputs.push({ kind: 'dictionary', path: 'dictionary.json', description: 'the same dictionary for programs' });
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 

@@ -6,7 +6,7 @@
 import { join } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { withValues } from '../grid/grid.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { scalarMapSvg, type ScalarMapOptions } from '../render/scalarMap.ts';
 import { writeSvgAndPng } from '../render/write.ts';
 import { TrustCategory, trustCategoryName } from './cellTrust.ts';

@@ -5,7 +5,7 @@
  */
 import type { Campaign } from '../campaign/types.ts';
 import { withValues } from '../grid/grid.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { MaskReason, maskReasonName, type FieldResult } from '../retrieval/types.ts';
 import type { WakePlaneWindow } from '../wake/types.ts';
 import { axisLabels, imageName, planePosition, windowLabel } from './labels.ts';

@@ -3,7 +3,7 @@
  * maps, and the summary plots. For the pipeline's image stage.
  */
 import type { Campaign } from '../campaign/types.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import type { WakeAnalysis } from '../wake/types.ts';
 import { renderGeometryMaps, renderPlaneImages } from './planeImages.ts';
