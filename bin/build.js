@@ -27,8 +27,9 @@ try {
     platform: 'node',
     target: 'node20',
     // JavaScript dependencies are bundled too (loading ~200 small files cost ~0.2 s at every start); the image
-    // library has native parts and stays in node_modules, as does the browser driver used only by tests
-    external: ['sharp', 'playwright-core'],
+    // library has native parts and stays in node_modules, as do the browser driver used only by tests and the HDF5
+    // library (4 MB of WebAssembly, loaded only for NetCDF files)
+    external: ['sharp', 'playwright-core', 'h5wasm'],
     // bundled CommonJS dependencies call require() for Node's own modules
     banner: { js: "import { createRequire as __wakeplaneRequire } from 'node:module'; const require = __wakeplaneRequire(import.meta.url);" },
     sourcemap: 'linked', // node --enable-source-maps maps stack traces back to src/

@@ -40,6 +40,8 @@ export interface SampleReaderOptions {
   columns: ColumnMap;
   /** 'toward': the file's radial velocities are positive toward the instrument; the reader flips them to 'away'. */
   sign: 'away' | 'toward';
+  /** The file is gzip-compressed (.csv.gz): decompressed as a stream. @default false */
+  gzip?: boolean;
   /** Rows per batch. @default 65536 */
   batchSize?: number;
   /** Bytes per read (tests use tiny values to exercise chunk boundaries). @default 1048576 */
@@ -370,9 +372,9 @@ async function readHeader(path: string, opts: SampleReaderOptions, blocks: LineB
   return { layout, block, pos: nl + 1 };
 }
 
-async function openBlocks(path: string, readSize: number): Promise<LineBlocks> {
+async function openBlocks(path: string, readSize: number, gzip = false): Promise<LineBlocks> {
   try {
-    return await LineBlocks.open(path, readSize, MAX_LINE);
+    return await LineBlocks.open(path, readSize, MAX_LINE, gzip);
   } catch (e) {
     throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
   }
@@ -388,7 +390,7 @@ async function nextBlock(blocks: LineBlocks, path: string, line: number): Promis
 
 /** Reads only the header; throws InputError(file, 1, 'missing required column "x" ...') before any data is read. */
 export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<void> {
-  const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536));
+  const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536), opts.gzip);
   try {
     await readHeader(path, opts, blocks);
   } finally {
@@ -402,7 +404,7 @@ export async function checkHeader(path: string, opts: SampleReaderOptions): Prom
  */
 export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const batchSize = opts.batchSize ?? 65536;
-  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20);
+  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20, opts.gzip);
   try {
     const head = await readHeader(path, opts, blocks);
     const st: ReaderState = {

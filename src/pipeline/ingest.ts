@@ -24,7 +24,8 @@ import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { cellIndex } from '../grid/grid.ts';
 import { createWindowSamples, pushSample, type WindowSamples } from '../grid/windowSamples.ts';
 import type { RejectedRow } from '../io/batch.ts';
-import { readSamples, type SampleChunk } from '../io/csvSamples.ts';
+import type { SampleChunk } from '../io/csvSamples.ts';
+import { openSamples } from '../io/sampleSource.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import type { PlaneGrid } from '../retrieval/settings.ts';
 import type { WindowScheme } from './windows.ts';
@@ -209,7 +210,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    it: readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     path: f.path,

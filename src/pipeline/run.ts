@@ -11,7 +11,7 @@ import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
-import { checkHeader } from '../io/csvSamples.ts';
+import { checkSamples } from '../io/sampleSource.ts';
 import { openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
 import { dictionaryJson, dictionaryMarkdown } from '../records/describe.ts';
 import { rejectedRowsTable } from '../records/tables/run.ts';
@@ -117,7 +117,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   if (dataFiles.length === 0) throw new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files');
   for (const { file, ins } of dataFiles) {
     if (!existsSync(file)) throw new InputError(file, undefined, `data file of instrument "${ins.id}" not found`);
-    await checkHeader(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
+    await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
   }
   const dirSeries: Series | undefined =
     c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
