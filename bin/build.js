@@ -19,7 +19,8 @@ mkdirSync(tmp, { recursive: true });
 try {
   const { build } = await import('esbuild');
   await build({
-    entryPoints: [join(root, 'src', 'cli', 'main.ts')],
+    // the NetCDF output worker is a second entry: its thread loads dist/netcdfWorker.js (src/io/netcdfWrite.ts)
+    entryPoints: { main: join(root, 'src', 'cli', 'main.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs') },
     outdir: tmp,
     bundle: true,
     splitting: true, // the image stack, planner and simulator stay in chunks loaded only by the commands that use them

@@ -246,9 +246,10 @@ export const campaignSchema = z
         dir: z.string().default('output').describe('output root, relative to the working directory; results go to <dir>/<name>'),
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
+        netcdf: z.boolean().default(true).describe('also write the fields and wake tables as NetCDF-4/CF files; default true'),
       })
       .strict()
-      .default({ dir: 'output', writeRejected: true, images: true }),
+      .default({ dir: 'output', writeRejected: true, images: true, netcdf: true }),
     simulation: z
       .record(z.string(), z.unknown())
       .optional()

@@ -1,139 +1,134 @@
 /**
- * A small NetCDF-4 writer on h5wasm: dimensions as HDF5 dimension scales (a coordinate variable, or netCDF's
- * marker for a dimension without a variable), variables as chunked, deflate-compressed datasets attached to their
- * dimensions, text attributes as NC_CHAR (fixed-length ASCII/UTF-8 strings, what netCDF-C writes), numeric
- * attributes as double or as the type of the typed array given (a _FillValue must match its variable), text
- * variables as variable-length strings (NC_STRING). Link creation order is tracked, so ncdump lists variables in
- * the order written. An unlimited dimension grows by `append`.
+ * Writing NetCDF-4 on h5wasm (the writer itself is netcdfCore.mjs, plain JavaScript shared with the output worker):
+ * dimensions as HDF5 dimension scales (a coordinate variable, or netCDF's marker for a dimension without a variable),
+ * variables as chunked, deflate-compressed datasets attached to their dimensions, text attributes as NC_CHAR
+ * (fixed-length strings, what netCDF-C writes), numeric attributes as double or as the type of the typed array
+ * given (a _FillValue must match its variable), text variables as variable-length strings (NC_STRING). Link creation
+ * order is tracked, so ncdump lists variables in the order written. An unlimited dimension grows by `append`. Files
+ * are written as `<path>.<pid>.tmp` and renamed on close: a NetCDF output appears whole or not at all.
  *
- * Used for the run's NetCDF outputs and by the tests' sample-file generator. Writes to `<path>.<pid>.tmp` and
- * renames on close, so a NetCDF output appears whole or not at all.
+ * Two faces: `NcWriter` writes on the calling thread (the tests' sample generator, small files); `NcWorker` hands
+ * the same operations to a worker thread (the run's outputs: loading the 4 MB HDF5 library and writing then cost the
+ * ingest almost nothing on a second core). Errors of the worker surface, with the file named, when it is closed.
  */
-import { renameSync, rmSync } from 'node:fs';
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
-import { hdf5Message, loadHdf5, type H5Module } from './hdf5.ts';
+import { hdf5Message, loadHdf5 } from './hdf5.ts';
+import { NcFileWriter, type NcAttr, type NcData, type VariableOptions } from './netcdfCore.mjs';
 
-type H5File = InstanceType<H5Module['File']>;
-type H5Dataset = InstanceType<H5Module['Dataset']>;
-export type NcData = Float64Array | Float32Array | Int32Array | Int16Array | Int8Array | Uint8Array | string[];
-export type NcAttr = string | number | number[] | Float64Array | Float32Array | Int32Array | Int16Array | Int8Array | Uint8Array;
+export type { NcAttr, NcData, VariableOptions };
 
-const DIM_WITHOUT_VARIABLE = 'This is a netCDF dimension but not a netCDF variable.';
-
-function dtypeOf(d: NcData): string {
-  if (Array.isArray(d)) return 'S';
-  if (d instanceof Float64Array) return '<d';
-  if (d instanceof Float32Array) return '<f';
-  if (d instanceof Int32Array) return '<i';
-  if (d instanceof Int16Array) return '<h';
-  if (d instanceof Int8Array) return '<b';
-  return '<B';
+/** The operations both faces offer. */
+export interface NcTarget {
+  coordinate(name: string, values: NcData, attrs: Record<string, NcAttr | undefined>, opts?: { unlimited?: boolean }): void;
+  dimension(name: string, size: number): void;
+  variable(name: string, dims: string[], data: NcData, attrs: Record<string, NcAttr | undefined>, opts?: VariableOptions): void;
+  append(name: string, values: NcData): void;
+  global(attrs: Record<string, NcAttr | undefined>): void;
 }
 
-export function setAttributes(obj: { create_attribute: H5Dataset['create_attribute'] }, attrs: Record<string, NcAttr | undefined>): void {
-  for (const [name, v] of Object.entries(attrs)) {
-    if (v === undefined) continue;
-    if (typeof v === 'string') {
-      const text = v === '' ? ' ' : v;
-      obj.create_attribute(name, text, null, `A${Buffer.byteLength(text)}`);
-    } else if (typeof v === 'number') obj.create_attribute(name, new Float64Array([v]));
-    else if (Array.isArray(v)) obj.create_attribute(name, Float64Array.from(v));
-    else obj.create_attribute(name, v);
-  }
-}
-
-export interface VariableOptions {
-  /** Chunk shape (default: the whole variable, or 1 along an unlimited first dimension). */
-  chunks?: number[];
-  /** Deflate level 0-9. @default 4 */
-  deflate?: number;
-}
-
-export class NcWriter {
-  private readonly sizes = new Map<string, number>();
-  private readonly unlimited = new Set<string>();
-  private readonly vars = new Map<string, { ds: H5Dataset; dims: string[] }>();
-  private constructor(
-    private readonly f: H5File,
-    readonly path: string,
-    private readonly tmp: string,
-  ) {}
+export class NcWriter implements NcTarget {
+  private constructor(private readonly w: NcFileWriter) {}
 
   static async create(path: string): Promise<NcWriter> {
     const h5 = await loadHdf5();
-    const tmp = `${path}.${process.pid}.tmp`;
     try {
-      return new NcWriter(new h5.File(tmp, 'w', { track_order: true }), path, tmp);
+      return new NcWriter(new NcFileWriter(h5, path));
     } catch (e) {
       throw new InputError(path, undefined, `cannot create NetCDF file: ${hdf5Message(e)}`);
     }
   }
 
-  /** A dimension with its coordinate variable (a 1-D variable of the same name). `size` 0 + unlimited: grows by append. */
-  coordinate(name: string, values: NcData, attrs: Record<string, NcAttr | undefined>, opts: { unlimited?: boolean } = {}): void {
-    this.sizes.set(name, values.length);
-    if (opts.unlimited) this.unlimited.add(name);
-    const ds = this.f.create_dataset({
-      name, data: values, shape: [values.length], dtype: dtypeOf(values),
-      ...(opts.unlimited ? { maxshape: [null], chunks: [Math.max(1, Math.min(1024, values.length || 1))] } : {}),
+  coordinate(...a: Parameters<NcTarget['coordinate']>): void { this.w.coordinate(...a); }
+  dimension(...a: Parameters<NcTarget['dimension']>): void { this.w.dimension(...a); }
+  variable(...a: Parameters<NcTarget['variable']>): void { this.w.variable(...a); }
+  append(...a: Parameters<NcTarget['append']>): void { this.w.append(...a); }
+  global(...a: Parameters<NcTarget['global']>): void { this.w.global(...a); }
+  close(): void { this.w.close(); }
+  abort(): void { this.w.abort(); }
+}
+
+/** The worker script beside this module: .mjs in src/io, .js in the bundle (bin/build.js). */
+function workerUrl(): URL {
+  const src = new URL('./netcdfWorker.mjs', import.meta.url);
+  return existsSync(fileURLToPath(src)) ? src : new URL('./netcdfWorker.js', import.meta.url);
+}
+
+/** A worker thread writing NetCDF files; operations are queued in order and never block the caller. */
+export class NcWorker {
+  private readonly worker: Worker;
+  private nextFile = 0;
+  private nextReply = 0;
+  private readonly waiting = new Map<number, { resolve: () => void; reject: (e: Error) => void }>();
+  private dead: Error | null = null;
+
+  constructor() {
+    this.worker = new Worker(workerUrl(), { execArgv: [] });
+    this.worker.unref();
+    this.worker.on('message', (m: { reply?: number; error?: string | null }) => {
+      if (m.reply === undefined) return;
+      const w = this.waiting.get(m.reply);
+      this.waiting.delete(m.reply);
+      if (m.error) w?.reject(new Error(m.error));
+      else w?.resolve();
     });
-    ds.make_scale(name);
-    setAttributes(ds, attrs);
-    this.vars.set(name, { ds, dims: [name] });
+    this.worker.on('error', (e) => this.fail(e));
+    this.worker.on('exit', (code) => { if (code !== 0) this.fail(new Error(`NetCDF writer stopped (exit code ${code})`)); });
   }
 
-  /** A dimension without a coordinate variable (for example the two bounds of an interval). */
-  dimension(name: string, size: number): void {
-    this.sizes.set(name, size);
-    const ds = this.f.create_dataset({ name, data: new Float32Array(size), shape: [size], dtype: '<f' });
-    ds.make_scale(`${DIM_WITHOUT_VARIABLE}${String(size).padStart(10)}`);
+  private fail(e: Error): void {
+    this.dead ??= e;
+    for (const w of this.waiting.values()) w.reject(e);
+    this.waiting.clear();
   }
 
-  variable(name: string, dims: string[], data: NcData, attrs: Record<string, NcAttr | undefined>, opts: VariableOptions = {}): void {
-    const shape = dims.map((d) => {
-      const n = this.sizes.get(d);
-      if (n === undefined) throw new Error(`NetCDF variable ${name}: unknown dimension ${d}`);
-      return n;
-    });
-    const total = shape.reduce((a, b) => a * b, 1);
-    if (data.length !== total) throw new Error(`NetCDF variable ${name}: ${data.length} values for shape [${shape}]`);
-    const grows = dims.length > 0 && this.unlimited.has(dims[0]);
-    const text = Array.isArray(data);
-    const chunks = opts.chunks ?? (grows ? [1, ...shape.slice(1)] : shape.map((n) => Math.max(1, n)));
-    const ds = this.f.create_dataset({
-      name, data, shape, dtype: dtypeOf(data),
-      ...(grows ? { maxshape: [null, ...shape.slice(1)] } : {}),
-      ...(text || total === 0 ? {} : { chunks, compression: opts.deflate ?? 4 }),
-      ...(grows && !text ? { chunks } : {}),
-    });
-    dims.forEach((d, k) => ds.attach_scale(k, `/${d}`));
-    setAttributes(ds, attrs);
-    this.vars.set(name, { ds, dims });
+  /** Arrays are copied (structured clone): the caller may reuse them. */
+  private post(op: string, file: number, args: unknown[], reply?: number): void {
+    if (this.dead) return;
+    this.worker.postMessage({ op, file, args, reply });
   }
 
-  /** Appends values along the unlimited dimension of `name` (its first), growing it. */
-  append(name: string, values: NcData): void {
-    const v = this.vars.get(name);
-    if (!v) throw new Error(`NetCDF variable ${name} not defined`);
-    const shape = v.ds.shape ?? [];
-    const per = shape.slice(1).reduce((a, b) => a * b, 1);
-    const rows = values.length / per;
-    const at = shape[0];
-    v.ds.resize([at + rows, ...shape.slice(1)]);
-    v.ds.write_slice([[at, at + rows], ...shape.slice(1).map((n) => [0, n] as [number, number])], values);
+  get failed(): boolean {
+    return this.dead !== null;
   }
 
-  global(attrs: Record<string, NcAttr | undefined>): void {
-    setAttributes(this.f, attrs);
+  private ask(op: string, file: number): Promise<void> {
+    if (this.dead) return Promise.reject(this.dead);
+    const reply = this.nextReply++;
+    const p = new Promise<void>((resolve, reject) => this.waiting.set(reply, { resolve, reject }));
+    this.post(op, file, [], reply);
+    return p;
   }
 
-  close(): void {
-    this.f.close();
-    renameSync(this.tmp, this.path);
+  /** A file written by the worker. */
+  create(path: string): NcTarget & { close(): Promise<void>; abort(): Promise<void> } {
+    const id = this.nextFile++;
+    this.post('create', id, [path]);
+    return {
+      coordinate: (name, values, attrs, opts) => this.post('coordinate', id, [name, values, attrs, opts]),
+      dimension: (name, size) => this.post('dimension', id, [name, size]),
+      variable: (name, dims, data, attrs, opts) => this.post('variable', id, [name, dims, data, attrs, opts]),
+      append: (name, values) => this.post('append', id, [name, values]),
+      global: (attrs) => this.post('global', id, [attrs]),
+      close: () => this.ask('close', id),
+      abort: () => this.ask('abort', id).catch(() => {}),
+    };
   }
 
-  abort(): void {
-    try { this.f.close(); } catch { /* already closed */ }
-    rmSync(this.tmp, { force: true });
+  async terminate(): Promise<void> {
+    await this.worker.terminate();
   }
+}
+
+let shared: NcWorker | undefined;
+
+/**
+ * The process's NetCDF output worker, started on first use (it begins loading the HDF5 library at once, so call
+ * this early) and replaced if it failed. It does not keep the process alive.
+ */
+export function ncWorker(): NcWorker {
+  if (!shared || shared.failed) shared = new NcWorker();
+  return shared;
 }

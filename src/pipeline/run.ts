@@ -24,6 +24,7 @@ import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { fieldTableName, writeFieldTable } from './fieldTable.ts';
+import { FieldNetcdf } from './fieldNetcdf.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest, WindowRecord } from '../records/manifest.ts';
 import { directionForWindow, windowScheme } from './windows.ts';
@@ -131,6 +132,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   rmSync(runDir, { recursive: true, force: true });
   mkdirSync(runDir, { recursive: true });
 
+  let fieldNc: FieldNetcdf | undefined;
   try {
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
     const settings: RetrievalSettings = {
@@ -170,6 +172,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       warnings,
     };
     const stages = opts.stages ?? [];
+    fieldNc = c.output.netcdf ? new FieldNetcdf(c, runDir, manifest.campaign.sha256) : undefined;
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
 
     // 3. Ingest and retrieve, window by window.
@@ -206,6 +209,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           for (const f of res.fields) {
             const rel = fieldTableName(f, ordinal);
             await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
+            await fieldNc?.add(f, ordinal);
             outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
             for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
           }
@@ -221,6 +225,11 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       },
       counters,
     );
+    if (fieldNc) {
+      const tc = performance.now();
+      outputs.push(...(await fieldNc.close()));
+      writeTime += (performance.now() - tc) / 1000;
+    }
     lap('ingest_total', t);
     timings.retrieval = retrieveTime;
     timings.write_fields = writeTime;
@@ -276,6 +285,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
+    await fieldNc?.abort();
     rmSync(runDir, { recursive: true, force: true });
     throw e;
   }

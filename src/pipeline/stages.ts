@@ -15,6 +15,7 @@ import type { ReportExtras } from '../render/report.ts';
 import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
 import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
+import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
 import type { FieldResult } from '../retrieval/types.ts';
@@ -56,7 +57,9 @@ export function wakeStage(): RunStage {
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      return writeWakeOutputs(a, ctx.runDir);
+      const out = writeWakeOutputs(a, ctx.runDir);
+      if (ctx.campaign.output.netcdf) out.push(...(await writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256)));
+      return out;
     },
   };
 }

@@ -17,7 +17,7 @@ export const UNITS = {
   ms: { csv: 'ms', cf: 'm s-1', text: 'm/s' },
   deg: { csv: 'deg', cf: 'degree', text: 'degree' },
   s: { csv: 's', cf: 's', text: 's' },
-  unix_s: { csv: 's', cf: 'seconds since 1970-01-01 00:00:00 UTC', text: 's since 1970-01-01 UTC' },
+  unix_s: { csv: 's', cf: 'seconds since 1970-01-01 00:00:00', text: 's since 1970-01-01 UTC' },
   D: { csv: 'D', cf: '1', text: 'rotor diameters' },
   kw: { csv: 'kw', cf: 'kW', text: 'kW' },
   m4s2: { csv: 'm4s2', cf: 'm4 s-2', text: 'm⁴/s²' },

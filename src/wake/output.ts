@@ -14,20 +14,19 @@ import type { OutputRecord } from '../records/manifest.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { isoTime } from '../io/time.ts';
 import { downstreamTable, profilesTable, steeringTable, trackTable, wakeTable } from '../records/tables/wake.ts';
-import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
+import { headerLine, rowLine, tableLayout, type Cell, type TableLayout } from '../records/tableText.ts';
 import type { WakeAnalysis } from './types.ts';
 import { gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatRadius_D } from './wakeModels.ts';
 
-const L = {
+export const L = {
   table: tableLayout(wakeTable), steering: tableLayout(steeringTable), downstream: tableLayout(downstreamTable),
   profiles: tableLayout(profilesTable), track: tableLayout(trackTable),
 };
 
-export function wakeTableCsv(a: WakeAnalysis): string {
-  let s = headerLine(L.table);
-  for (const r of a.rows) {
+export function wakeTableRows(a: WakeAnalysis): Cell[][] {
+  return a.rows.map((r) => {
     const f = r.gaussian, p = f?.params, e = f?.stderr, i = r.inflow;
-    s += rowLine(L.table, [
+    return [
       r.planeId, r.orientation, r.window.index, isoTime(r.window.start_s), isoTime(r.window.end_s), r.window.start_s, r.window.end_s,
       r.x_m, r.x_D, r.direction_deg, r.windDirection_deg, r.nacelle_deg, r.yawOffset_deg, r.power_kW,
       i.source, i.law, i.zRef_m, i.uRef_ms, i.alpha, i.uStar_ms, i.z0_m, i.hubSpeed_ms, i.rmse_ms, i.r2, i.heights_m.length, i.note,
@@ -36,17 +35,22 @@ export function wakeTableCsv(a: WakeAnalysis): string {
       r.diskCentre.y_m, r.diskCentre.z_m, r.centroid.y_m, r.centroid.z_m, r.disagreement_m, r.disagreement_D,
       r.rews.axis_ms, r.rews.centre_ms, r.rews.axisCoverage, r.rews.centreCoverage, r.rews.segments,
       r.hubDeficit, r.centreDeficit, r.momentumDeficit_m4s2, r.momentumRatio, r.ct, r.flag, r.reason,
-    ]);
-  }
-  return s;
+    ];
+  });
+}
+
+const csv = (layout: TableLayout, rows: Cell[][]) => headerLine(layout) + rows.map((r) => rowLine(layout, r)).join('');
+
+export function wakeTableCsv(a: WakeAnalysis): string {
+  return csv(L.table, wakeTableRows(a));
+}
+
+export function steeringRows(a: WakeAnalysis): Cell[][] {
+  return a.steering.bins.map((b) => [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
 }
 
 export function steeringCsv(a: WakeAnalysis): string {
-  let s = headerLine(L.steering);
-  for (const b of a.steering.bins) {
-    s += rowLine(L.steering, [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
-  }
-  return s;
+  return csv(L.steering, steeringRows(a));
 }
 
 export function downstreamCsv(a: WakeAnalysis): string {
@@ -62,14 +66,18 @@ export function downstreamCsv(a: WakeAnalysis): string {
   return s;
 }
 
-export function profilesCsv(a: WakeAnalysis): string {
-  let s = headerLine(L.profiles);
+export function profilesRows(a: WakeAnalysis): Cell[][] {
+  const out: Cell[][] = [];
   for (const r of a.rows) {
     for (const [name, p] of [['horizontal', r.horizontal], ['vertical', r.vertical]] as const) {
-      for (let i = 0; i < p.coord_m.length; i++) s += rowLine(L.profiles, [r.planeId, r.window.index, name, p.coord_m[i], p.u_ms[i], p.su_ms[i], p.deficit[i], p.model[i]]);
+      for (let i = 0; i < p.coord_m.length; i++) out.push([r.planeId, r.window.index, name, p.coord_m[i], p.u_ms[i], p.su_ms[i], p.deficit[i], p.model[i]]);
     }
   }
-  return s;
+  return out;
+}
+
+export function profilesCsv(a: WakeAnalysis): string {
+  return csv(L.profiles, profilesRows(a));
 }
 
 /** Horizontal planes: the lateral wake centre of each downstream row. */
