@@ -4,12 +4,40 @@
 // `prepare` step (so `npm ci` leaves a fresh build; there with --optional, so that a failed build only warns).
 // bin/wakeplane.js uses dist/ only while it matches src/ (dist/build.json records the sources it was made from)
 // and otherwise runs the sources through tsx.
-import { mkdirSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { copyFileSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { sourceStamp } from './stamp.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+
+/**
+ * The library's type declarations (package.json `types`): tsc emits .d.ts files for src/ (tsconfig.types.json),
+ * whose relative imports are rewritten from .ts to .js as a consumer resolves them. Skipped with a note where
+ * TypeScript is not installed (an install without dev dependencies); the bundle works without them.
+ */
+function emitTypes(out) {
+  let tsc;
+  try {
+    tsc = createRequire(import.meta.url).resolve('typescript/bin/tsc');
+  } catch {
+    console.error('wakeplane: TypeScript not installed, no type declarations built');
+    return;
+  }
+  const r = spawnSync(process.execPath, [tsc, '-p', join(root, 'tsconfig.types.json'), '--outDir', out], { encoding: 'utf8' });
+  if (r.status !== 0) throw new Error(`type declarations: ${(r.stdout + r.stderr).trim().split('\n')[0]}`);
+  const walk = (d) => {
+    for (const e of readdirSync(d, { withFileTypes: true })) {
+      const p = join(d, e.name);
+      if (e.isDirectory()) walk(p);
+      else if (e.name.endsWith('.d.ts')) writeFileSync(p, readFileSync(p, 'utf8').replace(/(from\s+|import\()(['"])(\.{1,2}\/[^'"]+)\.ts\2/g, '$1$2$3.js$2'));
+    }
+  };
+  walk(out);
+  copyFileSync(join(root, 'src', 'io', 'netcdfCore.d.mts'), join(out, 'io', 'netcdfCore.d.mts'));
+}
 const dist = join(root, 'dist');
 const tmp = join(root, `dist.tmp-${process.pid}`);
 const stamp = sourceStamp(join(root, 'src'));
@@ -19,8 +47,9 @@ mkdirSync(tmp, { recursive: true });
 try {
   const { build } = await import('esbuild');
   await build({
-    // the NetCDF output worker is a second entry: its thread loads dist/netcdfWorker.js (src/io/netcdfWrite.ts)
-    entryPoints: { main: join(root, 'src', 'cli', 'main.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs') },
+    // index: the library (package.json exports); netcdfWorker: the NetCDF output thread, which loads
+    // dist/netcdfWorker.js (src/io/netcdfWrite.ts)
+    entryPoints: { main: join(root, 'src', 'cli', 'main.ts'), index: join(root, 'src', 'index.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs') },
     outdir: tmp,
     bundle: true,
     splitting: true, // the image stack, planner and simulator stay in chunks loaded only by the commands that use them
@@ -36,6 +65,7 @@ try {
     sourcemap: 'linked', // node --enable-source-maps maps stack traces back to src/
     logLevel: 'warning',
   });
+  emitTypes(join(tmp, 'types'));
   writeFileSync(join(tmp, 'build.json'), JSON.stringify(stamp) + '\n');
   // swap in whole: a reader sees the old build or the new one, never half of one
   const old = join(root, `dist.old-${process.pid}`);

@@ -66,22 +66,25 @@ export class NcWorker {
 
   constructor() {
     this.worker = new Worker(workerUrl(), { execArgv: [] });
-    this.worker.unref();
     this.worker.on('message', (m: { reply?: number; error?: string | null }) => {
       if (m.reply === undefined) return;
       const w = this.waiting.get(m.reply);
       this.waiting.delete(m.reply);
+      if (this.waiting.size === 0) this.worker.unref();
       if (m.error) w?.reject(new Error(m.error));
       else w?.resolve();
     });
     this.worker.on('error', (e) => this.fail(e));
     this.worker.on('exit', (code) => { if (code !== 0) this.fail(new Error(`NetCDF writer stopped (exit code ${code})`)); });
+    // after the listeners (adding a 'message' listener refs the port again): an idle writer keeps no process alive
+    this.worker.unref();
   }
 
   private fail(e: Error): void {
     this.dead ??= e;
     for (const w of this.waiting.values()) w.reject(e);
     this.waiting.clear();
+    this.worker.unref();
   }
 
   /** Arrays are copied (structured clone): the caller may reuse them. */
@@ -98,6 +101,7 @@ export class NcWorker {
     if (this.dead) return Promise.reject(this.dead);
     const reply = this.nextReply++;
     const p = new Promise<void>((resolve, reject) => this.waiting.set(reply, { resolve, reject }));
+    this.worker.ref(); // an answer is awaited: keep the process alive until it comes
     this.post(op, file, [], reply);
     return p;
   }
