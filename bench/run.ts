@@ -1,7 +1,7 @@
 /**
  * Throughput benchmark (`npm run bench`, or `node bin/run-ts.js bench/run.ts [--rows N] [--skip-pipeline]`).
  *
- * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline.
+ * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus.
  * 1. Generates the benchmark campaign if missing (bench/generate.ts; $WAKEPLANE_BENCH_DIR, default
  *    <tmp>/wakeplane-bench; rows from --rows or $WAKEPLANE_BENCH_ROWS, default 10,000,000).
  * 2. The bare pass: a child process streams the files and counts line feeds (bench/newlines.mjs, Buffer.indexOf): the
@@ -11,6 +11,8 @@
  *    clock), peak memory from its manifest and from /usr/bin/time -v when present. Runs --runs times (default 5),
  *    each followed by a newline pass, so that the ratio is taken pair by pair while the machine's speed drifts;
  *    medians are quoted with the range.
+ * 5. Files without ray structure (bench/generateFocus.ts): every row its own angles and almost every sample in the
+ *    plane, as the whole job with one whole-record window and with 10-minute windows, --runs times each.
  * Prints the figures and PASS/MISS against the targets (on the medians); a benchmark reports, it does not fail.
  */
 import { spawn } from 'node:child_process';
@@ -22,6 +24,7 @@ import { readSamples } from '../src/io/csvSamples.ts';
 import { median } from '../src/qc/robust.ts';
 import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
 import { benchVariants } from './netcdf.ts';
+import { generateFocus } from './generateFocus.ts';
 // @ts-expect-error plain JavaScript helper of the entry point, without type declarations
 import { sourceStamp } from '../bin/stamp.js';
 
@@ -178,6 +181,29 @@ async function main() {
   }
   const rl = await readlinePass(d);
 
+  // 4. Files without ray structure: every row its own angles, almost every sample in the plane; one whole-record
+  // window (memory must not grow with the samples) and 10-minute windows.
+  const focusRuns: { name: string; secs: number[]; rss: number[]; read: number }[] = [];
+  if (!skipPipeline && !process.argv.includes('--skip-focus')) {
+    const f = await generateFocus(rows, undefined, (s) => console.log(s));
+    console.log(`4. without ray structure (${f.dir}, ${fmt(f.bytes / 2 ** 20, 1)} MiB): whole job, ${runs} runs per case`);
+    for (const [name, campaign] of [['one whole-record window', f.record], ['10-minute windows', f.tenMinutes]] as const) {
+      const doc = parse(readFileSync(campaign, 'utf8')) as { name: string; output: { dir: string } };
+      const r0 = { name, secs: [] as number[], rss: [] as number[], read: 0 };
+      for (let k = 0; k < runs; k++) {
+        rmSync(join(doc.output.dir, doc.name), { recursive: true, force: true });
+        const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images'], true);
+        if (r.code !== 0) { console.log(`  ${name}: FAILED exit ${r.code}: ${r.stderr.slice(-400)}`); break; }
+        const m = JSON.parse(readFileSync(join(doc.output.dir, doc.name, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; peakRss_bytes: number };
+        r0.secs.push(r.seconds);
+        r0.rss.push(Math.max(m.peakRss_bytes / 2 ** 20, r.maxRss_MB ?? 0));
+        r0.read = m.samples.total.read;
+        console.log(`  ${name}, run ${k + 1}: ${fmt(r.seconds, 3)} s, peak ${fmt(r0.rss[k], 0)} MB`);
+      }
+      focusRuns.push(r0);
+    }
+  }
+
   const lines: string[] = [];
   const out = (s: string) => lines.push(s);
   out('');
@@ -217,6 +243,14 @@ async function main() {
       out(`NetCDF outputs           whole job with / without, pair by pair: +${spread(costs.map((c) => 100 * c), 1)} %   (write_fields ${fmt(median(pipes.map((p) => p.timings.write_fields ?? 0)), 3)} s with, ${fmt(median(csvOnly.map((p) => p.timings.write_fields ?? 0)), 3)} s without)`);
       out(`  NetCDF-4 samples/s >= 5e6 ${fmt(ncRate / 1e6)}e6   ${verdict(ncRate >= TARGET.netcdfSamplesPerSecond)}`);
       out(`  output cost < 5 %        ${fmt(100 * cost, 1)} %   ${verdict(cost < TARGET.outputCost)}`);
+    }
+  }
+  if (focusRuns.length) {
+    out('without ray structure (every row its own angles, almost all samples in the plane)');
+    for (const f of focusRuns) {
+      if (!f.secs.length) continue;
+      const rate = f.read / median(f.secs);
+      out(`  ${f.name.padEnd(24)} ${spread(f.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...f.rss), 0)} MB   ${verdict(rate >= TARGET.samplesPerSecond)} (>= 3e6/s), ${verdict(Math.max(...f.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
     }
   }
   console.log(lines.join('\n'));

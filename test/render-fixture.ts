@@ -202,7 +202,7 @@ export function fixtureManifest(campaign: Campaign, outputs: OutputRecord[], ove
     inputs: [{ file: 'data/lid-a.csv', instrument: 'lid-a', bytes: 123456, sha256: 'cd'.repeat(32) }],
     settings: { name: campaign.name, description: campaign.description, qc: campaign.qc, retrieval: campaign.retrieval },
     samples: { total, perInstrument: { 'lid-a': a, 'lid-b': b }, balanced: true },
-    windows: [{ index: 0, start: '2026-06-01T12:00:00Z', end: '2026-06-01T12:10:00Z', start_s: 0, end_s: 600, direction_deg: 270, samples: 1600 }],
+    windows: [{ index: 0, start: '2026-06-01T12:00:00Z', end: '2026-06-01T12:10:00Z', start_s: 0, end_s: 600, kind: 'fixed', label: '', direction_deg: 270, samples: 1600, outliers: 3 }],
     outputs, timings_s: { read: 1.2, retrieve: 0.4, render: 2.1 }, peakRss_bytes: 200 * 2 ** 20, samplesPerSecond: 42000,
     assumptions: ['w = 0 in two-instrument cells'], warnings: [`plane P5D: wake leaves the plane in 1 window ${EVIL}`],
     ...overrides,

@@ -1,81 +1,109 @@
 /**
  * Reading and validating a campaign file. Validation happens here, once: the result is fully defaulted and resolved
- * (absolute paths, site-frame positions, planes in metres). Errors name the file, the key path, the rule and the
- * value received.
+ * (absolute paths, site-frame positions, planes in metres). Errors name the file, the line and column, the key path,
+ * the rule and the value received; every schema problem is reported at once (problems.ts), then the checks that
+ * need the resolved campaign (unique ids, positions, planes) and the geometry's plausibility (plausibility.ts).
+ *
+ * The file must be UTF-8 (a bad byte is reported with its position, never replaced); YAML aliases may not expand
+ * beyond MAX_ALIASES uses (a few kilobytes of "alias bomb" would otherwise expand into gigabytes).
+ *
+ * Paths: data files, series files and output.dir are resolved against the campaign file's folder (a campaign is
+ * self-contained and runs the same from any working directory); a campaign given in memory resolves them against
+ * the working directory.
  */
 import { readFileSync } from 'node:fs';
 import { dirname, isAbsolute, resolve } from 'node:path';
 import { parseDocument, LineCounter } from 'yaml';
 import { z } from 'zod';
-import { ConfigError } from '../errors.ts';
+import { ConfigError, ConfigErrors } from '../errors.ts';
 import { wgs84ToEnu } from '../geometry/geodetic.ts';
+import { fileProblem } from '../io/fileKind.ts';
+import { firstInvalidUtf8, linePosOfByte } from '../io/utf8.ts';
 import { campaignSchema, type CampaignInput } from './schema.ts';
+import { plausibilityErrors } from './plausibility.ts';
+import { keyPathOf, problemsFromIssues, yamlLocator, type KeyPath, type Locator } from './problems.ts';
 import type { Campaign, Instrument, PlaneSpec, Vec3 } from './types.ts';
+import { parseTime } from '../io/time.ts';
+import { conditionVariableProblem } from './conditionVariables.ts';
+
+/** Most alias uses a campaign file may make (the yaml library's maxAliasCount). */
+export const MAX_ALIASES = 100;
+/** Largest campaign file read, bytes (a campaign is a page of text; anything larger is not one). */
+const MAX_CAMPAIGN_BYTES = 16 << 20;
 
 export function loadCampaignFile(path: string): Campaign {
   const abs = resolve(path);
-  let text: string;
+  const bad = fileProblem(abs);
+  if (bad) throw new ConfigError(abs, '', `the campaign file ${bad.reason}`);
+  let bytes: Buffer;
   try {
-    text = readFileSync(abs, 'utf8');
+    bytes = readFileSync(abs);
   } catch (e) {
-    throw new ConfigError(abs, '', `cannot read the campaign file: ${(e as Error).message}`);
+    throw new ConfigError(abs, '', `cannot read the campaign file (${(e as NodeJS.ErrnoException).code ?? 'error'})`);
   }
-  return parseCampaignText(text, abs);
+  if (bytes.length > MAX_CAMPAIGN_BYTES) throw new ConfigError(abs, '', `${bytes.length} bytes: too large for a campaign file (at most ${MAX_CAMPAIGN_BYTES})`);
+  const at = firstInvalidUtf8(bytes);
+  if (at >= 0) {
+    const pos = linePosOfByte(bytes, at);
+    throw new ConfigError(abs, '', `not UTF-8 text: byte ${at} (0x${bytes[at].toString(16).padStart(2, '0')}) is not valid UTF-8; save the file as UTF-8`, undefined, pos);
+  }
+  return parseCampaignText(bytes.toString('utf8'), abs);
 }
 
 /** Parses YAML or JSON text (JSON is YAML) and resolves it; `file` names it in errors and anchors relative paths. */
 export function parseCampaignText(text: string, file: string): Campaign {
   const lc = new LineCounter();
-  const doc = parseDocument(text, { lineCounter: lc, prettyErrors: true });
+  const doc = parseDocument(text.replace(/^\uFEFF/, ''), { lineCounter: lc, prettyErrors: true, uniqueKeys: true });
   if (doc.errors.length > 0) {
-    const err = doc.errors[0]!;
-    const pos = err.linePos?.[0];
-    throw new ConfigError(file, pos ? `line ${pos.line}` : '', `not valid YAML/JSON: ${err.message.split('\n')[0]}`);
+    const problems = doc.errors.map((err) => {
+      const p = err.linePos?.[0];
+      return new ConfigError(file, '', `not valid YAML/JSON: ${err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`, undefined, p ? { line: p.line, col: p.col } : undefined);
+    });
+    throw problems.length === 1 ? problems[0] : new ConfigErrors(file, problems);
   }
-  return resolveCampaign(doc.toJS() as unknown, file);
-}
-
-function keyPathOf(path: PropertyKey[]): string {
-  return path.map((p, i) => (typeof p === 'number' ? `[${p}]` : `${i ? '.' : ''}${String(p)}`)).join('');
-}
-
-function valueAt(obj: unknown, path: PropertyKey[]): unknown {
-  let cur: unknown = obj;
-  for (const p of path) {
-    if (cur === null || typeof cur !== 'object') return undefined;
-    cur = (cur as Record<PropertyKey, unknown>)[p];
+  let raw: unknown;
+  try {
+    raw = doc.toJS({ maxAliasCount: MAX_ALIASES });
+  } catch (e) {
+    if (e instanceof ReferenceError && /alias/i.test(e.message)) {
+      throw new ConfigError(file, '', `YAML aliases (*name) expand too far (more than ${MAX_ALIASES} alias uses): refused, as such a file can expand into gigabytes`);
+    }
+    throw new ConfigError(file, '', `not valid YAML/JSON: ${(e as Error).message.split('\n')[0]}`);
   }
-  return cur;
+  return resolveCampaign(raw, file, yamlLocator(doc, lc));
 }
 
-/** Validates a plain object (already parsed) and resolves it into a Campaign. */
-export function resolveCampaign(raw: unknown, file: string): Campaign {
+/**
+ * Validates a plain object (already parsed) and resolves it into a Campaign. Throws one ConfigError, or
+ * ConfigErrors listing every problem; `locate` adds line and column to each (parseCampaignText passes one).
+ */
+export function resolveCampaign(raw: unknown, file: string, locate?: Locator): Campaign {
   const parsed = campaignSchema.safeParse(raw);
   if (!parsed.success) {
-    const issue = deepestIssue(parsed.error.issues);
-    throw new ConfigError(file, keyPathOf(issue.path), issue.message, valueAt(raw, issue.path));
+    throwAll(file, problemsFromIssues(file, raw, parsed.error.issues, campaignJsonSchema(), locate));
   }
-  const c = parsed.data;
+  const c = parsed.data!;
+  const problems: ConfigError[] = [];
+  const bad = (path: KeyPath, rule: string, received?: unknown) =>
+    problems.push(new ConfigError(file, keyPathOf(path), rule, received, locate?.(path)));
   const baseDir = file === '<memory>' ? process.cwd() : dirname(file);
   const abs = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
 
   const ids = new Set<string>();
   const instruments: Instrument[] = c.instruments.map((ins, index) => {
-    const where = `instruments[${index}]`;
-    if (ids.has(ins.id)) throw new ConfigError(file, `${where}.id`, 'instrument ids must be unique', ins.id);
+    const where = ['instruments', index];
+    if (ids.has(ins.id)) bad([...where, 'id'], 'instrument ids must be unique', ins.id);
     ids.add(ins.id);
-    let position: Vec3;
+    let position: Vec3 = [NaN, NaN, NaN];
     if (ins.position_m && ins.position_wgs84) {
-      throw new ConfigError(file, where, 'give either position_m or position_wgs84, not both');
+      bad(where, 'give either position_m or position_wgs84, not both');
     } else if (ins.position_m) {
       position = [...ins.position_m];
     } else if (ins.position_wgs84) {
-      if (!c.site.origin_wgs84) {
-        throw new ConfigError(file, `${where}.position_wgs84`, 'needs site.origin_wgs84 to place it in the site frame');
-      }
-      position = wgs84ToEnu(ins.position_wgs84, c.site.origin_wgs84);
+      if (!c.site.origin_wgs84) bad([...where, 'position_wgs84'], 'needs site.origin_wgs84 to place it in the site frame');
+      else position = wgs84ToEnu(ins.position_wgs84, c.site.origin_wgs84);
     } else {
-      throw new ConfigError(file, where, 'needs position_m (east, north, up metres) or position_wgs84');
+      bad(where, 'needs position_m (east, north, up metres) or position_wgs84');
     }
     return {
       id: ins.id,
@@ -91,41 +119,35 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
       scan: ins.scan,
     };
   });
-  if (instruments.length > 255) throw new ConfigError(file, 'instruments', 'at most 255 instruments', instruments.length);
+  if (instruments.length > 255) bad(['instruments'], 'at most 255 instruments', instruments.length);
 
   const D = c.turbine.rotorDiameter_m;
   const planeIds = new Set<string>();
   const planes: PlaneSpec[] = c.planes.map((p, index) => {
-    const where = `planes[${index}]`;
-    if (planeIds.has(p.id)) throw new ConfigError(file, `${where}.id`, 'plane ids must be unique', p.id);
+    const where = ['planes', index];
+    if (planeIds.has(p.id)) bad([...where, 'id'], 'plane ids must be unique', p.id);
     planeIds.add(p.id);
     if (p.orientation === 'cross') {
-      if ((p.x_m === undefined) === (p.x_D === undefined)) {
-        throw new ConfigError(file, where, 'a cross plane needs exactly one of x_m or x_D');
-      }
-      if (!p.z) throw new ConfigError(file, `${where}.z`, 'a cross plane needs its vertical extent z: {min, max}');
-      const x_m = p.x_m ?? p.x_D! * D;
-      if (x_m <= 0) throw new ConfigError(file, where, 'the plane must lie downstream of the rotor (x > 0)', x_m);
+      if ((p.x_m === undefined) === (p.x_D === undefined)) bad(where, 'a cross plane needs exactly one of x_m or x_D');
+      if (!p.z) bad([...where, 'z'], 'a cross plane needs its vertical extent z: {min, max}');
+      const x_m = p.x_m ?? (p.x_D ?? NaN) * D;
+      if (x_m <= 0) bad([...where, p.x_m !== undefined ? 'x_m' : 'x_D'], 'the plane must lie downstream of the rotor (x > 0)', x_m);
       return {
-        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z, cell_m: p.cell_m, thickness_m: p.thickness_m,
+        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z ?? { min: 0, max: 1 }, cell_m: p.cell_m, thickness_m: p.thickness_m,
       };
     }
-    if (!p.xRange) throw new ConfigError(file, `${where}.xRange`, 'a horizontal plane needs its downstream extent xRange: {min, max}');
+    if (!p.xRange) bad([...where, 'xRange'], 'a horizontal plane needs its downstream extent xRange: {min, max}');
     return {
-      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? c.turbine.hubHeight_m, y: p.y, second: p.xRange,
+      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? c.turbine.hubHeight_m, y: p.y, second: p.xRange ?? { min: 0, max: 1 },
       cell_m: p.cell_m, thickness_m: p.thickness_m,
     };
   });
   for (const p of planes) {
     const ny = Math.round((p.y.max - p.y.min) / p.cell_m[0]);
     const nz = Math.round((p.second.max - p.second.min) / p.cell_m[1]);
-    if (ny * nz > 1_000_000) {
-      throw new ConfigError(file, `planes[${p.index}].cell_m`, 'more than 1e6 cells in one plane; use larger cells', p.cell_m);
-    }
+    if (ny * nz > 1_000_000) bad(['planes', p.index, 'cell_m'], 'more than 1e6 cells in one plane; use larger cells', p.cell_m);
   }
-  if (c.qc.cnr_db.max <= c.qc.cnr_db.min) {
-    throw new ConfigError(file, 'qc.cnr_db', 'max must be greater than min', c.qc.cnr_db);
-  }
+  if (c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
 
   const { series: tSeries, position_m, ...turbineRest } = c.turbine;
   const windDirection =
@@ -134,7 +156,31 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
       : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns };
   const inflow = c.inflow.kind === 'series' ? { ...c.inflow, file: abs(c.inflow.file) } : c.inflow;
 
-  return {
+  let windows = c.windows;
+  if (windows.kind === 'list') {
+    if ((windows.file === undefined) === (windows.items === undefined)) {
+      bad(['windows'], 'a list of windows needs exactly one of file or items');
+    }
+    if (windows.file) windows = { ...windows, file: abs(windows.file) };
+  } else if (windows.kind === 'segments') {
+    if (!tSeries) bad(['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)');
+  } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
+    if (!Number.isFinite(parseTime(windows.anchor))) {
+      bad(['windows', 'anchor'], 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
+    }
+  }
+  if (c.conditions) {
+    c.conditions.bins.forEach((b, i) => {
+      const where = ['conditions', 'bins', i];
+      for (let k = 1; k < b.edges.length; k++) {
+        if (!(b.edges[k] > b.edges[k - 1])) { bad([...where, 'edges'], 'edges must ascend', b.edges); break; }
+      }
+      const problem = conditionVariableProblem(b.variable, { turbine: !!tSeries, inflow: c.inflow.kind === 'series', direction: c.windDirection.kind === 'series' });
+      if (problem) bad([...where, 'variable'], problem, b.variable);
+    });
+  }
+
+  const campaign: Campaign = {
     ...c,
     sourceFile: file,
     baseDir,
@@ -143,24 +189,19 @@ export function resolveCampaign(raw: unknown, file: string): Campaign {
     turbine: { ...turbineRest, position: [...position_m], series: tSeries ? { file: abs(tSeries.file), columns: tSeries.columns } : undefined },
     windDirection,
     inflow: inflow as Campaign['inflow'],
+    windows,
+    output: { ...c.output, dir: abs(c.output.dir) },
   };
+  if (problems.length === 0) {
+    for (const e of plausibilityErrors(campaign)) bad(e.path, e.rule, e.received);
+  }
+  throwAll(file, problems);
+  return campaign;
 }
 
-/** For unions zod reports the union itself; dig into the branch that got furthest so the message names a real key. */
-function deepestIssue(issues: z.core.$ZodIssue[]): z.core.$ZodIssue {
-  let best = issues[0]!;
-  const visit = (list: z.core.$ZodIssue[], prefix: PropertyKey[]) => {
-    for (const iss of list) {
-      const full = { ...iss, path: [...prefix, ...iss.path] } as z.core.$ZodIssue;
-      if (iss.code === 'invalid_union' && 'errors' in iss) {
-        for (const branch of (iss as unknown as { errors: z.core.$ZodIssue[][] }).errors) visit(branch, full.path);
-      } else if (full.path.length > best.path.length) {
-        best = full;
-      }
-    }
-  };
-  visit(issues, []);
-  return best;
+function throwAll(file: string, problems: ConfigError[]): void {
+  if (problems.length === 1) throw problems[0];
+  if (problems.length > 1) throw new ConfigErrors(file, problems);
 }
 
 /** The JSON Schema of the campaign file (published as schema/campaign.schema.json). */

@@ -134,10 +134,78 @@ const planeSchema = z
   })
   .strict();
 
+const isoOrUnix = z.union([z.string().min(1), finite()]);
+
 const windowSchema = z.union([
-  z.object({ kind: z.literal('fixed'), length_s: finite().positive().describe('window length, s (aligned to multiples of the length since the Unix epoch)') }).strict(),
+  z
+    .object({
+      kind: z.literal('fixed'),
+      length_s: finite().positive().describe('window length, s'),
+      step_s: finite()
+        .positive()
+        .optional()
+        .describe('start-to-start spacing, s; default: the length (contiguous windows); smaller overlaps, larger leaves gaps'),
+      anchor: z
+        .string()
+        .min(1)
+        .default('first-sample')
+        .describe('where one window starts: "first-sample" (the earliest sample of the run; default), "epoch" (multiples of the length since 1970-01-01 UTC) or an ISO 8601 UTC time'),
+    })
+    .strict()
+    .describe('windows of fixed length'),
+  z
+    .object({
+      kind: z.literal('list'),
+      file: z.string().min(1).optional().describe('CSV file with columns start, end and optional label (ISO 8601 UTC or Unix seconds), relative to the campaign file'),
+      columns: z.record(z.string(), z.string()).default({}).describe('map of start/end/label to the file headers'),
+      items: z
+        .array(z.object({ start: isoOrUnix, end: isoOrUnix, label: z.string().optional() }).strict())
+        .optional()
+        .describe('windows given inline: [{start, end, label}]'),
+      allowOverlap: z.boolean().default(false).describe('allow listed windows to overlap; default false (an overlap is an error)'),
+    })
+    .strict()
+    .describe('explicit windows, e.g. from the experiment log'),
+  z
+    .object({
+      kind: z.literal('segments'),
+      levels_deg: z.array(finite()).min(1).describe('yaw-offset levels of the experiment (nacelle minus wind direction), degrees'),
+      tolerance_deg: finite().positive().default(2).describe('a series row belongs to a level within this, degrees; default 2'),
+      minDuration_s: finite().min(0).default(300).describe('shortest steady span kept, s; default 300'),
+      maxGap_s: finite().positive().default(60).describe('series rows further apart leave a gap, s; default 60'),
+      settle_s: finite().min(0).default(0).describe('excluded at the start of each span while the wake adjusts, s; default 0 (set it to the travel time to the farthest plane)'),
+      windSector_deg: z
+        .object({ from: finite(), to: finite() })
+        .strict()
+        .optional()
+        .describe('keep rows whose wind direction lies clockwise from "from" to "to", degrees'),
+      power_kw: z.object({ min: finite().optional(), max: finite().optional() }).strict().optional().describe('keep rows whose power lies in [min, max], kW'),
+      subWindow_s: finite().positive().optional().describe('cut each span into windows of this length, s'),
+    })
+    .strict()
+    .describe('spans of steady turbine state from the turbine series'),
   z.object({ kind: z.literal('record') }).strict().describe('one window over the whole record'),
 ]);
+
+const conditionsSchema = z
+  .object({
+    bins: z
+      .array(
+        z
+          .object({
+            variable: z
+              .string()
+              .min(1)
+              .describe('hub_speed_ms, wind_direction_deg, turbulence_intensity, yaw_offset_deg, or <series>.<column> with series turbine, inflow or direction'),
+            edges: z.array(finite()).min(2).describe('bin edges, ascending; a window belongs to [edge_i, edge_i+1)'),
+          })
+          .strict(),
+      )
+      .min(1)
+      .describe('one entry per variable; a condition bin is one interval of each'),
+    minWindows: z.number().int().min(1).default(1).describe('retrieve an ensemble only for bins with at least this many windows; default 1'),
+  })
+  .strict();
 
 const seriesFile = z
   .object({
@@ -158,7 +226,11 @@ const thrustSchema = z.union([
 
 export const campaignSchema = z
   .object({
-    name: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only (used as the output folder name)'),
+    name: z
+      .string()
+      .max(100, 'at most 100 characters (used as the output folder name)')
+      .regex(/^[A-Za-z0-9_-][A-Za-z0-9_.-]*$/, 'letters, digits, "_", "." and "-" only, not starting with "." (used as the output folder name)')
+      .describe('campaign name; the output folder is <output.dir>/<name>'),
     description: z.string().default(''),
     site: z
       .object({
@@ -195,8 +267,16 @@ export const campaignSchema = z
           })
           .strict()
           .default({ min: -27, max: 5 }),
-        radialVelocityLimit_ms: finite().positive().default(35).describe('|radial velocity| above is rejected, m/s; default 35'),
+        radialVelocityLimit_ms: finite().positive().max(64).default(35).describe('|radial velocity| above is rejected, m/s (at most 64); default 35'),
         groundClearance_m: finite().min(0).default(2).describe('measurement points lower than this above ground are rejected, metres; default 2'),
+        dropDuplicates: z
+          .boolean()
+          .default(false)
+          .describe('reject rows repeating an earlier row of the same instrument (time, angles and range) as "duplicate"; default false (kept, with a warning)'),
+        timeOrderTolerance_s: finite()
+          .min(0)
+          .default(1)
+          .describe('time steps backward within a file up to this are not reported as out of order, s; default 1'),
         robust: z
           .object({
             enabled: z.boolean().default(true),
@@ -211,9 +291,16 @@ export const campaignSchema = z
         cnr_db: { min: -27, max: 5 },
         radialVelocityLimit_ms: 35,
         groundClearance_m: 2,
+        dropDuplicates: false,
+        timeOrderTolerance_s: 1,
         robust: { enabled: true, k: 3.5, minSamples: 5 },
       }),
-    windows: windowSchema.default({ kind: 'fixed', length_s: 600 }).describe('averaging windows; default fixed 600 s'),
+    windows: windowSchema
+      .default({ kind: 'fixed', length_s: 600, anchor: 'first-sample' })
+      .describe('averaging windows; default fixed 600 s from the first sample'),
+    conditions: conditionsSchema
+      .optional()
+      .describe('condition bins: windows with the same condition are pooled into one ensemble field per plane'),
     windDirection: windDirectionSchema.describe('wind-direction source defining the rotor frame'),
     retrieval: z
       .object({
@@ -243,7 +330,7 @@ export const campaignSchema = z
       .default({ yawBin_deg: 5, turbulenceIntensity: 0.1 }),
     output: z
       .object({
-        dir: z.string().default('output').describe('output root, relative to the working directory; results go to <dir>/<name>'),
+        dir: z.string().min(1).default('output').describe('output root, relative to the campaign file\'s folder (like the data files); results go to <dir>/<name>; default "output"'),
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
         netcdf: z.boolean().default(true).describe('also write the fields and wake tables as NetCDF-4/CF files; default true'),

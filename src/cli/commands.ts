@@ -1,5 +1,6 @@
 /**
- * The commands. Each handler loads and validates its inputs, calls the library, and prints a short summary.
+ * The commands. Each handler loads and validates its inputs, calls the library, and prints a short summary. Every
+ * positional and option carries a description (test/faults/cli.test.ts checks the help).
  */
 import { existsSync } from 'node:fs';
 import { dirname, join, relative, resolve } from 'node:path';
@@ -7,8 +8,10 @@ import { fileURLToPath } from 'node:url';
 import type { Argv } from 'yargs';
 import { loadCampaignFile, campaignJsonSchema } from '../campaign/load.ts';
 import type { Campaign } from '../campaign/types.ts';
-import { OptionError } from '../errors.ts';
+import { OptionError, Problems } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
+import { openStaging } from '../pipeline/outputFolder.ts';
+import { preflight } from '../pipeline/preflight.ts';
 import { runCampaign, type RunResult } from '../pipeline/run.ts';
 import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
@@ -18,6 +21,9 @@ import type { PlanSummary } from '../plan/index.ts';
 // The simulator, the planner and (through the stages) the image stack load only in the commands that use them.
 const simulator = () => import('../sim/simulate.ts');
 const planner = () => import('../pipeline/plan.ts');
+
+/** Every command, in the order of the help. */
+export const COMMAND_NAMES = ['demo', 'run', 'check', 'plan', 'simulate', 'schema'];
 
 /** The package's own folder: the nearest one above this module holding package.json (src/cli/ or dist/). */
 function packageRoot(): string {
@@ -30,8 +36,9 @@ export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign
 
 interface Common {
   out?: string;
-  images: boolean;
+  images?: boolean;
   quiet: boolean;
+  clean: boolean;
 }
 
 function say(quiet: boolean, text: string): void {
@@ -42,21 +49,29 @@ function dataMissing(c: Campaign): boolean {
   return c.instruments.some((i) => i.files.some((f) => !existsSync(f)));
 }
 
+/** The output root: --out against the working directory, else the campaign's output.dir (already absolute). */
+function outRootOf(c: Campaign, out: string | undefined): string {
+  return resolve(out ?? c.output.dir);
+}
+
 async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
   const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, progress, stages: defaultStages({ plan }) });
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan }) });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
   if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
   return res;
 }
 
+const CAMPAIGN = { type: 'string', describe: 'campaign file (YAML or JSON)' } as const;
+
 export function commands(y: Argv): Argv {
   const common = (yy: Argv) =>
     yy
-      .option('out', { type: 'string', describe: 'output root folder (default: the campaign\'s output.dir)' })
-      .option('images', { type: 'boolean', default: true, describe: 'render images and the report (--no-images to skip)' })
+      .option('out', { type: 'string', describe: 'output root folder, relative to the working directory (default: the campaign\'s output.dir, relative to the campaign file)' })
+      .option('images', { type: 'boolean', describe: 'render images and the report (default: the campaign\'s output.images; --no-images to skip)' })
+      .option('clean', { type: 'boolean', default: false, describe: 'also remove unfinished folders of stopped runs whose state cannot be proven (another host, an unknown process)' })
       .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' });
   return y
     .command(
@@ -78,7 +93,7 @@ export function commands(y: Argv): Argv {
       'process a campaign: read, quality-control, grid, retrieve, analyse the wake, write tables, images and report',
       (yy) =>
         common(yy)
-          .positional('campaign', { type: 'string', describe: 'campaign file (YAML or JSON)' })
+          .positional('campaign', CAMPAIGN)
           .option('plan', { type: 'boolean', default: false, describe: 'also run the planner on the campaign and put its outputs in the report' }),
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
@@ -86,9 +101,66 @@ export function commands(y: Argv): Argv {
       },
     )
     .command(
+      'check <campaign>',
+      'validate a campaign and everything a run would read (data files, headers, series, output folder); print it as resolved; exit 1 when a run would fail',
+      (yy) =>
+        yy
+          .positional('campaign', CAMPAIGN)
+          .option('out', { type: 'string', describe: 'output root folder to check, as for run (default: the campaign\'s output.dir)' }),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        const outRoot = outRootOf(c, a.out as string | undefined);
+        const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true, scan: true });
+        const target = join(outRoot, c.name);
+        const lines = [
+          `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,
+          `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
+          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
+          ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
+          `  results: ${relative(process.cwd(), target) || target}${existsSync(target) ? ' (an earlier result there would be kept as .replaced-...)' : ''}`,
+          ...pre.warnings.map((w) => `warning: ${w}`),
+          ...pre.notes.map((n) => `note: ${n}`),
+        ];
+        process.stdout.write(lines.join('\n') + '\n');
+        if (pre.errors.length) throw new Problems(pre.errors);
+      },
+    )
+    .command(
+      'plan <campaign>',
+      'before deployment: trust maps, probe volumes, pointing tables and a layout ranking, written to <output.dir>/<name>-plan/plan/',
+      (yy) => common(yy).positional('campaign', CAMPAIGN),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        const outRoot = outRootOf(c, a.out as string | undefined);
+        const folder = `${c.name}-plan`;
+        const pre = await preflight(c, { outRoot, folder, kind: 'plan', data: false });
+        if (pre.errors.length) throw new Problems(pre.errors);
+        for (const w of pre.warnings) say(a.quiet as boolean, `warning: ${w}`);
+        const { createHash } = await import('node:crypto');
+        const { readFileSync } = await import('node:fs');
+        const sha = c.sourceFile === '<memory>' ? '' : createHash('sha256').update(readFileSync(c.sourceFile)).digest('hex');
+        const staging = openStaging({ root: outRoot, folder, kind: 'plan', campaign: c.name, campaignSha256: sha, clean: a.clean as boolean });
+        let notes: string[];
+        let summary: string;
+        try {
+          const res = await (await planner()).planAndWrite(c, staging.dir, { images: (a.images as boolean | undefined) ?? c.output.images });
+          notes = [...staging.notices, ...staging.commit()];
+          summary = res.summary.replace(relative(process.cwd(), staging.dir) || staging.dir, relative(process.cwd(), staging.finalDir) || staging.finalDir);
+        } catch (e) {
+          staging.abort();
+          throw e;
+        }
+        say(a.quiet as boolean, summary);
+        for (const n of notes) say(a.quiet as boolean, `note: ${n}`);
+      },
+    )
+    .command(
       'simulate <campaign>',
       'write synthetic raw samples and their truth for a campaign with a `simulation` section',
-      (yy) => yy.positional('campaign', { type: 'string' }).option('quiet', { type: 'boolean', default: false }),
+      (yy) =>
+        yy
+          .positional('campaign', { type: 'string', describe: 'campaign file (YAML or JSON) with a `simulation` section' })
+          .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         if (!c.simulation) throw new OptionError('campaign', `${c.sourceFile} has no "simulation" section to simulate from`);
@@ -97,35 +169,9 @@ export function commands(y: Argv): Argv {
       },
     )
     .command(
-      'plan <campaign>',
-      'before deployment: trust maps, probe volumes, pointing tables and a layout ranking for a campaign',
-      (yy) => common(yy).positional('campaign', { type: 'string' }),
-      async (a) => {
-        const c = loadCampaignFile(a.campaign as string);
-        const outRoot = resolve((a.out as string | undefined) ?? c.output.dir);
-        const res = await (await planner()).planAndWrite(c, join(outRoot, c.name), { images: a.images as boolean });
-        say(a.quiet as boolean, res.summary);
-      },
-    )
-    .command(
-      'check <campaign>',
-      'validate a campaign file and print it as resolved (positions in the site frame, planes in metres)',
-      (yy) => yy.positional('campaign', { type: 'string' }),
-      (a) => {
-        const c = loadCampaignFile(a.campaign as string);
-        const lines = [
-          `campaign ${c.name}: valid`,
-          `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
-          ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}) at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
-          ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
-        ];
-        process.stdout.write(lines.join('\n') + '\n');
-      },
-    )
-    .command(
       'schema',
       'print the JSON Schema of the campaign file (or write it with --write FILE)',
-      (yy) => yy.option('write', { type: 'string', describe: 'write to this file instead of printing' }),
+      (yy) => yy.option('write', { type: 'string', describe: 'write the schema to this file instead of printing it' }),
       (a) => {
         const text = JSON.stringify(campaignJsonSchema(), null, 2) + '\n';
         if (a.write) writeFileAtomic(resolve(a.write as string), text);

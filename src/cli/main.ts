@@ -1,31 +1,46 @@
 /**
  * Command-line entry. yargs lives only here; handlers call library functions; only this file exits. Errors print one
- * line naming the file, line, key or option at fault; --debug prints the stack as well.
+ * line naming the file, line, key or option at fault (several lines when several problems are found at once);
+ * --debug prints the stack as well. Exit codes: 0 done, 1 an error, 130/143 interrupted by SIGINT/SIGTERM.
  */
 import yargs from 'yargs';
-import { hideBin } from 'yargs/helpers';
-import { ConfigError, GeometryError, InputError, OptionError } from '../errors.ts';
+import { ConfigError, GeometryError, InputError, OptionError, OutputError, Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
-import { commands } from './commands.ts';
+import { COMMAND_NAMES, commands } from './commands.ts';
+import { installSignalHandlers } from './signals.ts';
 
-export async function main(argv: string[]): Promise<void> {
+/** The first argument that is not an option (the command), or undefined. */
+function commandOf(argv: string[]): string | undefined {
+  return argv.find((a) => !a.startsWith('-'));
+}
+
+export async function main(argv: string[], opts: { signals?: boolean } = {}): Promise<void> {
   const debug = argv.includes('--debug');
+  if (opts.signals !== false) installSignalHandlers();
   try {
+    const cmd = commandOf(argv);
+    if (cmd !== undefined && !COMMAND_NAMES.includes(cmd)) {
+      throw new OptionError('usage', `unknown command ${JSON.stringify(cmd.slice(0, 40))}; the commands are: ${COMMAND_NAMES.join(', ')} (wakeplane --help)`);
+    }
     await commands(yargs(argv).scriptName('wakeplane').version(VERSION))
       .option('debug', { type: 'boolean', default: false, describe: 'print the stack trace of an error' })
-      .demandCommand(1, 'name a command (see --help)')
+      .demandCommand(1, `name a command: ${COMMAND_NAMES.join(', ')} (wakeplane --help)`)
       .strict()
-      .recommendCommands()
       .fail((msg, err) => {
         if (err) throw err;
         throw new OptionError('usage', msg);
       })
       .help()
+      .alias('h', 'help')
+      .alias('version', 'V')
+      .exitProcess(false)
       .wrap(Math.min(110, process.stdout.columns || 110))
       .parseAsync();
   } catch (e) {
     const err = e as Error;
-    const known = err instanceof ConfigError || err instanceof InputError || err instanceof OptionError || err instanceof GeometryError;
+    const known =
+      err instanceof ConfigError || err instanceof InputError || err instanceof OptionError || err instanceof GeometryError ||
+      err instanceof OutputError || err instanceof Problems;
     const text = err instanceof OptionError && err.option === 'usage' ? err.message.replace(/^option --usage: /, '') : err.message;
     process.stderr.write(`wakeplane: ${known ? '' : 'error: '}${text}\n`);
     if (debug) process.stderr.write(`${err.stack}\n`);
@@ -33,5 +48,3 @@ export async function main(argv: string[]): Promise<void> {
     process.exitCode = 1;
   }
 }
-
-void hideBin;

@@ -4,6 +4,7 @@
  */
 import { mkdirSync, renameSync, writeFileSync, createWriteStream, rmSync, type WriteStream } from 'node:fs';
 import { dirname } from 'node:path';
+import { removeOnInterrupt } from './cleanup.ts';
 
 export function writeFileAtomic(path: string, data: string | Uint8Array): void {
   mkdirSync(dirname(path), { recursive: true });
@@ -23,6 +24,7 @@ export function openAtomicStream(path: string): AtomicStream {
   mkdirSync(dirname(path), { recursive: true });
   const tmp = `${path}.${process.pid}.tmp`;
   const ws: WriteStream = createWriteStream(tmp);
+  const unregister = removeOnInterrupt(tmp); // a signal mid-write leaves no stray temporary file
   let failed: Error | undefined;
   ws.on('error', (e) => (failed = e));
   return {
@@ -36,6 +38,7 @@ export function openAtomicStream(path: string): AtomicStream {
           if (failed) return rej(failed);
           try {
             renameSync(tmp, path);
+            unregister();
             res();
           } catch (e) {
             rej(e as Error);
@@ -44,6 +47,7 @@ export function openAtomicStream(path: string): AtomicStream {
       });
     },
     abort() {
+      unregister();
       ws.destroy();
       rmSync(tmp, { force: true });
     },

@@ -37,4 +37,6 @@ export interface RejectedRow {
   detail: string;
   /** Raw text of the line (without its line break), truncated to 500 characters. */
   text: string;
+  /** Index of the instrument the row names, when its instrument field could be read; else the file's owner is charged. */
+  instrument?: number;
 }

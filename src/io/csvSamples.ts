@@ -24,6 +24,7 @@
  */
 import type { ColumnMap } from '../campaign/schema.ts';
 import { InputError } from '../errors.ts';
+import { fileProblem } from './fileKind.ts';
 import type { RejectReason } from '../qc/reasons.ts';
 import type { RejectedRow, SampleBatch } from './batch.ts';
 import { LineBlocks, type LineBlock } from './lineBlocks.ts';
@@ -95,14 +96,16 @@ interface ReaderState {
 
 const dec = new TextDecoder();
 
-function reject(st: ReaderState, buf: Uint8Array, s: number, e: number, reason: RejectReason, detail: string): void {
-  st.rejected.push({
+function reject(st: ReaderState, buf: Uint8Array, s: number, e: number, reason: RejectReason, detail: string, instrument?: number): void {
+  const row: RejectedRow = {
     file: st.ctx.layout.file,
     line: st.line,
     reason,
     detail,
     text: dec.decode(buf.subarray(s, Math.min(e, s + MAX_TEXT))),
-  });
+  };
+  if (instrument !== undefined) row.instrument = instrument;
+  st.rejected.push(row);
 }
 
 /** Careful path for one line [s, e): stores the row or records its rejection. Returns true when stored. */
@@ -114,7 +117,7 @@ function slowRow(st: ReaderState, buf: Uint8Array, s: number, e: number): boolea
   const v = st.scratch;
   const p = parseRowSlow(buf, s, e, st.ctx, v);
   if (p !== null) {
-    reject(st, buf, s, e, p.reason, p.detail);
+    reject(st, buf, s, e, p.reason, p.detail, p.instrument);
     return false;
   }
   const b = st.batch, n = b.length++;
@@ -373,10 +376,12 @@ async function readHeader(path: string, opts: SampleReaderOptions, blocks: LineB
 }
 
 async function openBlocks(path: string, readSize: number, gzip = false): Promise<LineBlocks> {
+  const bad = fileProblem(path);
+  if (bad) throw new InputError(path, undefined, `data file ${bad.reason}`);
   try {
     return await LineBlocks.open(path, readSize, MAX_LINE, gzip);
   } catch (e) {
-    throw new InputError(path, undefined, `cannot read: ${(e as Error).message}`);
+    throw new InputError(path, undefined, `cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
   }
 }
 
@@ -388,11 +393,42 @@ async function nextBlock(blocks: LineBlocks, path: string, line: number): Promis
   }
 }
 
-/** Reads only the header; throws InputError(file, 1, 'missing required column "x" ...') before any data is read. */
-export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<void> {
+/** What checkHeader saw at the start of a file. */
+export interface HeaderInfo {
+  /** Header names as read. */
+  header: string[];
+  /** A non-blank line follows the header (within the first MiB; beyond that assumed). */
+  hasDataLine: boolean;
+  /** Mean bytes per line after the header in the first block (NaN when none): for progress estimates. */
+  bytesPerLine: number;
+}
+
+/**
+ * Reads only the start of a file: the header (throws InputError(file, 1, 'missing required column "x" ...') before
+ * any data is read) and whether a data line follows. Throws InputError naming the file for a path that is not a
+ * readable regular file (see fileKind.ts).
+ */
+export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<HeaderInfo> {
   const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536), opts.gzip);
   try {
-    await readHeader(path, opts, blocks);
+    const head = await readHeader(path, opts, blocks);
+    let block = head.block, pos = head.pos, seen = 0, bytesPerLine = NaN;
+    while (block !== null && seen < 1 << 20) {
+      const { buf, end } = block;
+      if (!block.long) {
+        let lines = 0;
+        for (let i = pos; i < end; i++) if (buf[i] === 10) lines++;
+        if (lines > 0 && bytesPerLine !== bytesPerLine) bytesPerLine = (end - pos) / lines;
+        for (let i = pos; i < end; i++) {
+          const c = buf[i];
+          if (c !== 10 && c !== 13 && c !== 32 && c !== 9) return { header: head.layout.header, hasDataLine: true, bytesPerLine };
+        }
+      } else return { header: head.layout.header, hasDataLine: true, bytesPerLine };
+      seen += end;
+      block = await nextBlock(blocks, path, 2);
+      pos = 0;
+    }
+    return { header: head.layout.header, hasDataLine: block !== null, bytesPerLine };
   } finally {
     await blocks.close();
   }

@@ -45,9 +45,10 @@ async function open(path: string, opts: SampleReaderOptions): Promise<{ f: H5Fil
 }
 
 /** Resolves the variables, dimensions and units without reading samples; throws InputError naming the variable. */
-export async function checkNetcdf(path: string, opts: SampleReaderOptions): Promise<void> {
-  const { f } = await open(path, opts);
+export async function checkNetcdf(path: string, opts: SampleReaderOptions): Promise<{ rays: number; gates: number }> {
+  const { f, layout } = await open(path, opts);
   f.close();
+  return { rays: layout.rays, gates: layout.gates };
 }
 
 /** A slice of a variable as float64 (int64 and packed integers included). */

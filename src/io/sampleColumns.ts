@@ -4,6 +4,7 @@
  */
 import type { ColumnMap } from '../campaign/schema.ts';
 import { InputError } from '../errors.ts';
+import { excerpt } from './excerpt.ts';
 import { splitCsvLine } from './series.ts';
 
 /** Quantities a sample file holds, in the order rows are checked. */
@@ -42,7 +43,12 @@ export function resolveColumns(
   sign: 'away' | 'toward',
   ownerKnown: boolean,
 ): ColumnLayout {
-  const header = splitCsvLine(headerLine.replace(/^\uFEFF/, '')).map((h) => h.trim());
+  const line = headerLine.replace(/^\uFEFF/, '');
+  // eslint-disable-next-line no-control-regex
+  if (/[\x00-\x08\x0e-\x1f\uFFFD]/.test(line)) {
+    throw new InputError(file, 1, `the first line is not a CSV header: it holds control or undecodable bytes (starts ${excerpt(line, 24)}); is this a data file?`);
+  }
+  const header = splitCsvLine(line).map((h) => h.trim());
   const colOf = new Int32Array(ROLE_KEYS.length).fill(-1);
   const scale = new Float64Array(ROLE_KEYS.length).fill(1);
   const offset = new Float64Array(ROLE_KEYS.length);
@@ -63,11 +69,11 @@ export function resolveColumns(
         1,
         `missing required column "${name}" for ${key} (${describe(columns, key)})` +
           (r === R_INST ? ' and the file has no owning instrument' : '') +
-          `; the header has: ${header.map((h) => JSON.stringify(h)).join(', ')}`,
+          `; the header has: ${excerpt(header.join(','), 100)}`,
       );
     }
     if (roleOf[c] !== R_IGNORE) {
-      throw new InputError(file, 1, `column "${name}" is mapped twice: ${ROLE_KEYS[roleOf[c]]} and ${key}`);
+      throw new InputError(file, 1, `column ${excerpt(name, 40)} is mapped twice: ${ROLE_KEYS[roleOf[c]]} and ${key}`);
     }
     roleOf[c] = r;
     colOf[r] = c;

@@ -8,6 +8,7 @@
  * into [0, 360).
  */
 import type { RejectReason } from '../qc/reasons.ts';
+import { excerpt } from './excerpt.ts';
 import { DECIMAL_TEXT, parseDecimal, parseIsoBytes, parsedTo, type DayCache } from './fastParse.ts';
 import { R_AZ, R_CNR, R_EL, R_INST, R_RANGE, R_TIME, R_VR, ROLE_KEYS, type ColumnLayout } from './sampleColumns.ts';
 
@@ -25,6 +26,8 @@ export interface RowValues {
 export interface RowProblem {
   reason: RejectReason;
   detail: string;
+  /** Index of the instrument the row names, when that field could be read (the row is charged to it). */
+  instrument?: number;
 }
 
 export interface RowContext {
@@ -122,8 +125,20 @@ const problem = (reason: RejectReason, detail: string): RowProblem => ({ reason,
  * rejection reason and a human detail.
  */
 export function parseRowSlow(buf: Uint8Array, s: number, e: number, ctx: RowContext, out: RowValues): RowProblem | null {
-  const L = ctx.layout;
   const fields = splitFields(buf, s, e);
+  const p = checkFields(fields, ctx, out);
+  if (p !== null && fields !== null) {
+    // charge the row to the instrument it names, when that field can be read
+    const c = ctx.layout.colOf[R_INST];
+    const f = c >= 0 ? fields[c] : undefined;
+    const k = f && f.e > f.s ? ctx.instrumentIndex.get(text(f)) : undefined;
+    if (k !== undefined) p.instrument = k;
+  }
+  return p;
+}
+
+function checkFields(fields: Field[] | null, ctx: RowContext, out: RowValues): RowProblem | null {
+  const L = ctx.layout;
   if (fields === null) return problem('missing_field', 'unterminated quoted field');
   if (fields.length < L.needed) {
     return problem('missing_field', `${fields.length} field(s), the header needs at least ${L.needed}`);
@@ -135,7 +150,7 @@ export function parseRowSlow(buf: Uint8Array, s: number, e: number, ctx: RowCont
   if (ft.s === ft.e) return problem('missing_field', `column "${name(R_TIME)}" is empty`);
   const iso = ft.e - ft.s >= 16 && ft.b[ft.s + 4] === 45;
   const t = parseTimeField(ft.b, ft.s, ft.e, ctx.days);
-  if (!Number.isFinite(t)) return problem('bad_time', `column "${name(R_TIME)}": not a time: ${JSON.stringify(text(ft))}`);
+  if (!Number.isFinite(t)) return problem('bad_time', `column "${name(R_TIME)}": not a time: ${excerpt(text(ft))}`);
   out.time = iso ? t + L.offset[R_TIME] : si(R_TIME, t);
 
   if (L.colOf[R_INST] >= 0) {
@@ -143,7 +158,7 @@ export function parseRowSlow(buf: Uint8Array, s: number, e: number, ctx: RowCont
     if (fi.s === fi.e) return problem('missing_field', `column "${name(R_INST)}" is empty`);
     const id = text(fi);
     const k = ctx.instrumentIndex.get(id);
-    if (k === undefined) return problem('unknown_instrument', `instrument ${JSON.stringify(id.slice(0, 80))} is not in the campaign`);
+    if (k === undefined) return problem('unknown_instrument', `instrument ${excerpt(id, 40)} is not in the campaign`);
     out.instrument = k;
   } else out.instrument = ctx.owner;
 
@@ -157,7 +172,7 @@ export function parseRowSlow(buf: Uint8Array, s: number, e: number, ctx: RowCont
       return problem('missing_field', `column "${name(r)}" (${ROLE_KEYS[r]}) is empty`);
     }
     const v = parseNumberField(f.b, f.s, f.e);
-    if (v !== v) return problem('bad_number', `column "${name(r)}" (${ROLE_KEYS[r]}): not a number: ${JSON.stringify(text(f).slice(0, 80))}`);
+    if (v !== v) return problem('bad_number', `column "${name(r)}" (${ROLE_KEYS[r]}): not a number: ${excerpt(text(f))}`);
     vals[r] = si(r, v);
   }
   const az = vals[R_AZ], el = vals[R_EL], rg = vals[R_RANGE];

@@ -6,7 +6,8 @@
  */
 import { extname } from 'node:path';
 import { InputError } from '../errors.ts';
-import { checkHeader, readSamples, type SampleChunk, type SampleReaderOptions } from './csvSamples.ts';
+import { statSync } from 'node:fs';
+import { checkHeader, readSamples, type HeaderInfo, type SampleChunk, type SampleReaderOptions } from './csvSamples.ts';
 import { sniffFormat } from './hdf5.ts';
 
 export type SampleFormat = 'csv' | 'csv.gz' | 'netcdf';
@@ -29,14 +30,20 @@ export function sampleFormat(path: string): SampleFormat {
   return kind === 'gzip' ? 'csv.gz' : 'csv';
 }
 
-/** Checks a file's structure (header row, or NetCDF variables, dimensions and units) before any output is written. */
-export async function checkSamples(path: string, opts: SampleReaderOptions): Promise<SampleFormat> {
+/**
+ * Checks a file's structure (header row, or NetCDF variables, dimensions and units) before any output is written.
+ * For NetCDF, `header` lists the variables used, a "data line" is any sample, and bytesPerLine is the file's bytes
+ * per sample (for progress estimates); for CSV.gz, bytesPerLine is per decompressed line.
+ */
+export async function checkSamples(path: string, opts: SampleReaderOptions): Promise<HeaderInfo & { format: SampleFormat }> {
   const format = sampleFormat(path);
   if (format === 'netcdf') {
     const { checkNetcdf } = await import('./netcdfSamples.ts');
-    await checkNetcdf(path, opts);
-  } else await checkHeader(path, { ...opts, gzip: format === 'csv.gz' });
-  return format;
+    const { rays, gates } = await checkNetcdf(path, opts);
+    const n = rays * gates;
+    return { format, header: [], hasDataLine: n > 0, bytesPerLine: n > 0 ? statSync(path).size / n : NaN };
+  }
+  return { format, ...(await checkHeader(path, { ...opts, gzip: format === 'csv.gz' })) };
 }
 
 /** Streams the samples of any supported file (see SampleReaderOptions and the readers' docblocks). */

@@ -5,6 +5,8 @@
  */
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.ts';
+import { excerpt } from './excerpt.ts';
+import { fileProblem } from './fileKind.ts';
 import { parseTime } from './time.ts';
 
 export interface Series {
@@ -39,21 +41,24 @@ export function readSeries(
   required: string[],
   optional: string[] = [],
 ): Series {
+  const bad = fileProblem(file);
+  if (bad) throw new InputError(file, undefined, `series file ${bad.reason}`);
   let text: string;
   try {
     text = readFileSync(file, 'utf8');
   } catch (e) {
-    throw new InputError(file, undefined, `cannot read: ${(e as Error).message}`);
+    throw new InputError(file, undefined, `cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
   }
   const lines = text.split(/\r?\n/);
   const header = splitCsvLine(lines[0] ?? '').map((h) => h.trim());
   const colOf = (name: string) => header.indexOf(columns[name] ?? name);
   const tCol = colOf('time');
-  if (tCol < 0) throw new InputError(file, 1, `missing required column "${columns.time ?? 'time'}"`);
+  const has = `; the header has: ${excerpt(header.join(','), 100)}`;
+  if (tCol < 0) throw new InputError(file, 1, `missing required column "${columns.time ?? 'time'}"${has}`);
   const idx: Record<string, number> = {};
   for (const name of required) {
     idx[name] = colOf(name);
-    if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"`);
+    if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"${has}`);
   }
   for (const name of optional) idx[name] = colOf(name);
   const rows: { t: number; v: number[] }[] = [];
@@ -63,17 +68,17 @@ export function readSeries(
     if (line.trim() === '') continue;
     const cells = splitCsvLine(line);
     const t = parseTime(cells[tCol] ?? '');
-    if (!Number.isFinite(t)) throw new InputError(file, i + 1, `column "${header[tCol]}": not a time: ${JSON.stringify(cells[tCol])}`);
+    if (!Number.isFinite(t)) throw new InputError(file, i + 1, `column ${excerpt(header[tCol], 40)}: not a time: ${excerpt(cells[tCol] ?? '')}`);
     const v = names.map((name) => {
       const c = idx[name];
       if (c < 0) return NaN;
       const s = (cells[c] ?? '').trim();
       if (s === '') {
-        if (required.includes(name)) throw new InputError(file, i + 1, `column "${header[c]}": empty`);
+        if (required.includes(name)) throw new InputError(file, i + 1, `column ${excerpt(header[c], 40)}: empty`);
         return NaN;
       }
       const x = Number(s);
-      if (!Number.isFinite(x)) throw new InputError(file, i + 1, `column "${header[c]}": not a number: ${JSON.stringify(s)}`);
+      if (!Number.isFinite(x)) throw new InputError(file, i + 1, `column ${excerpt(header[c], 40)}: not a number: ${excerpt(s)}`);
       return x;
     });
     rows.push({ t, v });
@@ -111,4 +116,16 @@ export function circularMeanDeg(values: Float64Array, lo: number, hi: number): n
   if (n === 0) return NaN;
   const d = (Math.atan2(s, c) * 180) / Math.PI;
   return d < 0 ? d + 360 : d;
+}
+
+/** The rows of a series inside any of the intervals [start, end) (sorted by start, not overlapping). */
+export function seriesWithin(s: Series, intervals: [number, number][]): Series {
+  const keep: number[] = [];
+  for (const [a, b] of intervals) {
+    const [lo, hi] = rowsInWindow(s, a, b);
+    for (let i = lo; i < hi; i++) keep.push(i);
+  }
+  const values: Record<string, Float64Array> = {};
+  for (const [k, v] of Object.entries(s.values)) values[k] = Float64Array.from(keep, (i) => v[i]);
+  return { file: s.file, time: Float64Array.from(keep, (i) => s.time[i]), values };
 }

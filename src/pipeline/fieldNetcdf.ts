@@ -48,6 +48,8 @@ interface PlaneFile {
   /** Values of windows not yet written, per variable (written every FLUSH_WINDOWS windows and at the end). */
   pending: Map<string, TypedArray[]>;
   pendingWindows: number;
+  /** Condition bins (ensembles) rather than windows. */
+  bins: boolean;
 }
 
 type TypedArray = Float64Array | Float32Array | Int32Array | Int8Array;
@@ -83,28 +85,35 @@ export class FieldNetcdf {
 
   private readonly worker: NcWorker;
 
-  private async open(f: FieldResult): Promise<PlaneFile> {
-    const rel = join('fields', `${f.planeId}.nc`);
+  private async open(f: FieldResult, key: string): Promise<PlaneFile> {
+    const bins = f.window.kind === 'ensemble';
+    const dim = bins ? 'bin' : 'window';
+    const rel = join('fields', bins ? `${f.planeId}_bins.nc` : `${f.planeId}.nc`);
     const w = this.worker.create(join(this.runDir, rel));
     const g = f.grid, D = this.c.turbine.rotorDiameter_m;
     const second = f.orientation === 'cross' ? 'z' : 'x';
     const ys = Float64Array.from({ length: g.ny }, (_, i) => g.y0 + i * g.dy);
     const ss = Float64Array.from({ length: g.nz }, (_, i) => g.z0 + i * g.dz);
-    w.coordinate('window', new Float64Array(0), attrs('window', { axis: 'T', calendar: 'standard', bounds: 'window_bounds' }), { unlimited: true });
-    w.dimension('nv', 2);
+    if (bins) w.coordinate('bin', new Float64Array(0), attrs('bin'), { unlimited: true });
+    else {
+      w.coordinate('window', new Float64Array(0), attrs('window', { axis: 'T', calendar: 'standard', bounds: 'window_bounds' }), { unlimited: true });
+      w.dimension('nv', 2);
+    }
     w.coordinate(second, ss, attrs(second, second === 'z' ? { axis: 'Z', positive: 'up', standard_name: 'height' } : { axis: 'X' }));
     w.coordinate('y', ys, attrs('y', { axis: 'Y' }));
     w.variable('y_D', ['y'], ys.map((v) => v / D), attrs('y_D'));
     w.variable(`${second}_D`, [second], ss.map((v) => v / D), attrs(`${second}_D`));
-    const grid = ['window', second, 'y'];
+    const grid = [dim, second, 'y'];
     const empty = new Float32Array(0);
     const geo = this.c.site.origin_wgs84 !== undefined;
     const coords = geo ? 'longitude latitude' : 'east north';
     const data = (name: string, extra: Record<string, NcAttr | undefined> = {}, type: 'f' | 'i' | 'b' = 'f') =>
       w.variable(name, grid, type === 'f' ? empty : type === 'i' ? new Int32Array(0) : new Int8Array(0), attrs(name, { ...(type === 'f' ? { _FillValue: new Float32Array([NaN]) } : {}), coordinates: coords, ...extra }));
-    w.variable('window_bounds', ['window', 'nv'], new Float64Array(0), { units: UNITS.unix_s.cf, calendar: 'standard' });
-    w.variable('window_index', ['window'], new Int32Array(0), attrs('window_index'));
-    w.variable('direction', ['window'], new Float64Array(0), attrs('direction', { standard_name: 'wind_from_direction' }));
+    if (!bins) {
+      w.variable('window_bounds', ['window', 'nv'], new Float64Array(0), { units: UNITS.unix_s.cf, calendar: 'standard' });
+      w.variable('window_index', ['window'], new Int32Array(0), attrs('window_index'));
+    }
+    w.variable('direction', [dim], new Float64Array(0), attrs('direction', { standard_name: 'wind_from_direction' }));
     for (const k of ['u', 'v', 'w']) data(k, { ancillary_variables: `${k}_se ${k}_amplification ${k}_mask` });
     for (const k of ['u', 'v', 'w']) data(`${k}_se`, k === 'w' ? { standard_name: 'upward_air_velocity standard_error' } : {});
     for (const k of ['u', 'v', 'w']) data(`${k}_amplification`);
@@ -130,20 +139,24 @@ export class FieldNetcdf {
       ...(f.orientation === 'cross' ? { plane_x_m: f.x_m } : { plane_z_m: f.z_m }),
       turbine_position_m: Float64Array.from(this.c.turbine.position),
     });
-    const pf: PlaneFile = { w, path: rel, planeId: f.planeId, windows: 0, cells: g.ny * g.nz, pending: new Map(), pendingWindows: 0 };
-    this.files.set(f.planeId, pf);
+    const pf: PlaneFile = { w, path: rel, planeId: f.planeId, windows: 0, cells: g.ny * g.nz, pending: new Map(), pendingWindows: 0, bins };
+    this.files.set(key, pf);
     return pf;
   }
 
   /** Appends one field (one plane, one window) to its plane's file. */
   async add(f: FieldResult, ordinal: number): Promise<void> {
-    const pf = this.files.get(f.planeId) ?? (await this.open(f));
+    const key = `${f.planeId}|${f.window.kind === 'ensemble' ? 'bin' : 'window'}`;
+    const pf = this.files.get(key) ?? (await this.open(f, key));
     const n = pf.cells, g = f.grid;
     const w = { append: (name: string, values: TypedArray) => { const l = pf.pending.get(name); if (l) l.push(values); else pf.pending.set(name, [values]); } };
     const D = (f.direction_deg * Math.PI) / 180, sD = Math.sin(D), cD = Math.cos(D);
-    w.append('window', Float64Array.of((f.window.start_s + f.window.end_s) / 2));
-    w.append('window_bounds', Float64Array.of(f.window.start_s, f.window.end_s));
-    w.append('window_index', Int32Array.of(ordinal));
+    if (pf.bins) w.append('bin', Float64Array.of(ordinal));
+    else {
+      w.append('window', Float64Array.of((f.window.start_s + f.window.end_s) / 2));
+      w.append('window_bounds', Float64Array.of(f.window.start_s, f.window.end_s));
+      w.append('window_index', Int32Array.of(ordinal));
+    }
     w.append('direction', Float64Array.of(f.direction_deg));
     w.append('u', f32(f.u)); w.append('v', f32(f.v)); w.append('w', f32(f.w));
     w.append('u_se', f32(f.su)); w.append('v_se', f32(f.sv)); w.append('w_se', f32(f.sw));
@@ -194,7 +207,7 @@ export class FieldNetcdf {
     for (const pf of this.files.values()) {
       this.flush(pf);
       await pf.w.close();
-      out.push({ kind: 'field-netcdf', path: pf.path, plane: pf.planeId, description: `retrieved wind fields of plane ${pf.planeId}, ${pf.windows} windows, NetCDF-4/CF` });
+      out.push({ kind: 'field-netcdf', path: pf.path, plane: pf.planeId, description: `retrieved wind fields of plane ${pf.planeId}, ${pf.windows} ${pf.bins ? 'condition bins' : 'windows'}, NetCDF-4/CF` });
     }
     this.files.clear();
     return out;

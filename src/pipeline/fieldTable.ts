@@ -11,6 +11,7 @@ import { headerLine, rowLine, tableLayout, type TableLayout } from '../records/t
 import { maskReasonName, type FieldResult } from '../retrieval/types.ts';
 
 export function fieldTableName(f: FieldResult, ordinal: number): string {
+  if (f.window.kind === 'ensemble') return join('fields', `${f.planeId}_bin${String(ordinal).padStart(3, '0')}.csv`);
   const stamp = isoTime(f.window.start_s).replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
   return join('fields', `${f.planeId}_w${String(ordinal).padStart(3, '0')}_${stamp}.csv`);
 }

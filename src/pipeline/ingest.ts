@@ -1,17 +1,24 @@
 /**
- * Ingest: read every instrument's files in step, apply quality control and geometry to each sample, and collect
- * the accepted in-plane samples per averaging window. A window is handed on (finished) as soon as every file has
- * read past its end, so memory holds only the open windows' in-plane samples, never the campaign.
+ * Ingest: read every instrument's files in step, apply quality control and geometry to each sample, and add the
+ * accepted in-plane samples to the mergeable accumulators (grid/accumulator.ts) of the windows containing their
+ * time. A window is handed on (finished) as soon as every file has read past its end, so memory holds the open
+ * windows' accumulators (growing with the cells that received samples, never with the samples), never the campaign.
+ *
+ * Windows come from a plan (windows/plan.ts) built before the samples are read: the ingest primes every file (reads
+ * its first batch), gives the plan builder the earliest sample time (for windows anchored at the first sample), and
+ * then only looks each sample's time up.
  *
  * Reading in step: the next batch is always pulled from the file that is furthest behind in time. Files are
  * expected in time order (as instruments write them); a sample whose window was already finished is counted as
  * out_of_time_order, never silently dropped.
  *
  * Per sample, in this order (the first failing rule names the rejection): CNR below qc.cnr_db.min (low_cnr);
- * CNR above qc.cnr_db.max (hard_target_cnr); |v_r| above qc.radialVelocityLimit_ms; window already finished;
- * no wind direction for the window; the measurement point lower than qc.groundClearance_m above ground
- * (below_ground: ground or hard-target returns); outside every plane's thickness or grid (outside_planes).
- * Samples without CNR (no column) pass the CNR rules.
+ * CNR above qc.cnr_db.max (hard_target_cnr); |v_r| above qc.radialVelocityLimit_ms; in no window
+ * (outside_windows); every window already finished (out_of_time_order); no wind direction for the window;
+ * the measurement point lower than qc.groundClearance_m above ground (below_ground: ground or hard-target returns);
+ * outside every plane's thickness or grid (outside_planes). Samples without CNR (no column) pass the CNR rules.
+ * With overlapping windows a sample is added to every window containing it (in each window's own rotor frame) and
+ * counted once: accepted when it fell in a plane in at least one of them.
  *
  * Geometry: the beam's site-frame unit vector is the calibration rotation applied to the reported angles; the point
  * is origin + (range + rangeOffset) * n, or with site.earthCurvature the 4/3-Earth beam height and ground distance
@@ -21,36 +28,44 @@
 import type { Campaign } from '../campaign/types.ts';
 import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
-import { cellIndex } from '../grid/grid.ts';
-import { createWindowSamples, pushSample, type WindowSamples } from '../grid/windowSamples.ts';
+import { CellAccumulator } from '../grid/accumulator.ts';
+import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { openSamples } from '../io/sampleSource.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
-import type { PlaneGrid } from '../retrieval/settings.ts';
-import type { WindowScheme } from './windows.ts';
+import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
+import type { WindowDef, WindowPlan } from '../windows/plan.ts';
 
 export interface OpenWindow {
-  index: number;
+  def: WindowDef;
+  /** One accumulator per target (IngestOptions.targets), in that order. */
+  accs: CellAccumulator[];
+  /** Window bounds: the plan's, or for a whole-record window the first and last sample times seen. */
   start_s: number;
   end_s: number;
-  /** First and last sample times seen (for 'record' windows). */
+  /** First and last accepted-window sample times seen. */
   first_s: number;
   last_s: number;
   direction_deg: number;
-  samples: WindowSamples;
 }
 
 export interface IngestOptions {
   campaign: Campaign;
-  planes: PlaneGrid[];
-  scheme: WindowScheme;
+  /** Where accepted samples go (grid/target.ts): the planes, and sibling geometries. */
+  targets: SampleTarget[];
+  /** Target index of each instrument's samples (-1: none; its samples are counted outside_planes). */
+  targetOf: Int32Array;
+  /** The window plan, given the earliest sample time of the run (NaN when no file has a sample). */
+  windowPlan(firstSample_s: number): WindowPlan;
   /** Wind direction (from, degrees) of the window [start, end); NaN when unknown. */
   directionOf(start: number, end: number): number;
-  /** Called with each finished window, in time order. */
+  /** Called with each finished window, in order of their ends; its accumulator is reused once this resolves. */
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
+  /** Suspicious-input inspector (qc/suspicion.ts): sees every chunk first; its mask drops duplicates. */
+  suspicion?: SuspicionInspector;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -71,7 +86,29 @@ export class Counters {
 const R = REJECT_INDEX;
 const NR = REJECT_REASONS.length;
 
-export async function ingest(opts: IngestOptions, counters: Counters): Promise<void> {
+interface Live extends OpenWindow {
+  /** Rotor-frame x axis in site east/north components: (dE, dN) = -(sin D, cos D). */
+  dE: number;
+  dN: number;
+}
+
+/** Times further than this from the median of a file's first batch are not taken as its first sample, s. */
+export const FIRST_SAMPLE_SPAN_S = 86400;
+
+/**
+ * The earliest sample time of a batch (a file's first), ignoring stamps more than FIRST_SAMPLE_SPAN_S from the
+ * batch's median: one corrupted time (a zeroed clock, a wrong year) would otherwise move the anchor of every
+ * fixed window. NaN for an empty batch.
+ */
+export function firstSampleTime(b: { length: number; time: Float64Array }): number {
+  if (b.length === 0) return NaN;
+  const t = Float64Array.from(b.time.subarray(0, b.length)).sort();
+  const med = t[t.length >> 1];
+  for (let i = 0; i < t.length; i++) if (t[i] >= med - FIRST_SAMPLE_SPAN_S) return t[i];
+  return med;
+}
+
+export async function ingest(opts: IngestOptions, counters: Counters): Promise<{ plan: WindowPlan }> {
   const c = opts.campaign;
   const I = c.instruments.length;
   const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
@@ -90,78 +127,122 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
   const cnrMin = c.qc.cnr_db.min, cnrMax = c.qc.cnr_db.max, vLim = c.qc.radialVelocityLimit_ms;
   const groundMin = c.site.groundLevel_m + c.qc.groundClearance_m;
   const curvature = c.site.earthCurvature;
-  const tb = c.turbine.position;
-  const planes = opts.planes;
-  const P = planes.length;
-  const pCross = Uint8Array.from(planes, (p) => (p.spec.orientation === 'cross' ? 1 : 0));
-  const pLevel = Float64Array.from(planes, (p) => (p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m));
-  const pHalf = Float64Array.from(planes, (p) => p.spec.thickness_m / 2);
+  const targets = opts.targets;
+  const targetOf = opts.targetOf;
 
-  const open = new Map<number, OpenWindow & { dE: number; dN: number }>();
-  let finishedUpTo = -Infinity; // every window index <= this is finished
-  const scheme = opts.scheme;
+  // Every file of every instrument, read in step; primed with its first batch before the plan is made.
+  const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
+  const cursors = files.map((f) => ({
+    // 16k-row batches: the same speed as larger ones with less memory held per open file.
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
+    last: -Infinity,
+    done: false,
+    pending: undefined as SampleChunk | undefined,
+    path: f.path,
+    owner: f.owner,
+    rows: 0,
+  }));
+  let first = Infinity;
+  for (const cur of cursors) {
+    const r = await cur.it.next();
+    if (r.done) { cur.done = true; continue; }
+    cur.pending = r.value;
+    const f = firstSampleTime(r.value.batch);
+    if (f < first) first = f;
+  }
+  const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
+  const record = plan.kind === 'record';
 
-  const windowFor = (wi: number) => {
-    let w = open.get(wi);
+  const open = new Map<number, Live>();
+  // Accumulators of finished windows, emptied for reuse (their allocations sized to the data already).
+  const spare: CellAccumulator[][] = targets.map(() => []);
+  // Every window ending at or before this time is finished.
+  let finishedTo = -Infinity;
+
+  const openWindow = (id: number): Live => {
+    let w = open.get(id);
     if (!w) {
-      const [start, end] = scheme.bounds(wi);
-      const dir = scheme.fixed ? opts.directionOf(start, end) : NaN; // record windows: set at the end
+      const def = plan.def(id);
+      const dir = opts.directionOf(def.start_s, def.end_s);
       const D = (dir * Math.PI) / 180;
-      w = { index: wi, start_s: start, end_s: end, first_s: Infinity, last_s: -Infinity, direction_deg: dir, samples: createWindowSamples(), dE: -Math.sin(D), dN: -Math.cos(D) };
-      open.set(wi, w);
+      w = {
+        def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I)), dE: -Math.sin(D), dN: -Math.cos(D),
+      };
+      open.set(id, w);
     }
     return w;
   };
 
   const finishUpTo = async (watermark: number) => {
-    const ready = [...open.values()].filter((w) => w.end_s <= watermark).sort((a, b) => a.index - b.index);
+    if (watermark <= finishedTo) return;
+    const ready = [...open.values()].filter((w) => w.end_s <= watermark).sort((a, b) => a.end_s - b.end_s || a.start_s - b.start_s);
+    finishedTo = watermark;
     for (const w of ready) {
-      open.delete(w.index);
-      finishedUpTo = Math.max(finishedUpTo, w.index);
+      open.delete(w.def.id);
       await opts.onWindow(w);
+      // onWindow has taken what it needs: the accumulators serve the next window.
+      w.accs.forEach((a, k) => {
+        a.reset();
+        spare[k].push(a);
+      });
     }
   };
 
-  // 'record' windows need the direction before binning: it comes from the whole series.
-  let recordDir = NaN;
-  if (!scheme.fixed) recordDir = opts.directionOf(-Infinity, Infinity);
+  // The windows of the current time range (reused while samples stay inside it): how many contain it (nFound),
+  // which of them are still open (live, nLive) and how many of those have a wind direction (nDirected).
+  const ids = new Int32Array(Math.max(1, plan.maxOverlap));
+  const range = new Float64Array(2);
+  const live: Live[] = [];
+  let nFound = 0, nLive = 0, nDirected = 0, rFrom = Infinity, rTo = -Infinity;
 
   const processChunk = (chunk: SampleChunk, owner: number) => {
     const b = chunk.batch;
+    const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) {
-      // Rows that could not be read are charged to the instrument owning the file.
+      // Rows that could not be read are charged to the instrument they name, else to the one owning the file.
       for (const r of chunk.rejected) {
-        counters.read[owner]++;
-        counters.reject(owner, R[r.reason as keyof typeof R] ?? R.bad_number);
+        const ins = r.instrument ?? owner;
+        counters.read[ins]++;
+        counters.reject(ins, R[r.reason as keyof typeof R] ?? R.bad_number);
       }
       opts.onRejectedRows(chunk.rejected);
     }
-    let curWi = NaN;
-    let cur: (OpenWindow & { dE: number; dN: number }) | undefined;
+    rFrom = Infinity; rTo = -Infinity; // windows may have finished since the last batch
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
+      if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
       if (cnr < cnrMin) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
       if (cnr > cnrMax) { counters.rejected[ins * NR + R.hard_target_cnr]++; continue; }
       const vr = b.radialVelocity[i];
       if (vr > vLim || vr < -vLim) { counters.rejected[ins * NR + R.radial_velocity_limit]++; continue; }
       const t = b.time[i];
-      const wi = scheme.indexOf(t);
-      if (wi !== curWi) {
-        if (wi <= finishedUpTo) { counters.rejected[ins * NR + R.out_of_time_order]++; continue; }
-        cur = windowFor(wi);
-        if (!scheme.fixed && !Number.isFinite(cur.direction_deg)) {
-          cur.direction_deg = recordDir;
-          const D = (recordDir * Math.PI) / 180;
-          cur.dE = -Math.sin(D); cur.dN = -Math.cos(D);
+      if (!(t >= rFrom && t < rTo)) {
+        nFound = plan.find(t, ids, range);
+        rFrom = range[0]; rTo = range[1];
+        nLive = 0; nDirected = 0;
+        for (let k = 0; k < nFound; k++) {
+          if (!record && plan.def(ids[k]).end_s <= finishedTo) continue; // finished already
+          const w = openWindow(ids[k]);
+          if (w.direction_deg === w.direction_deg) { live[nLive++] = w; nDirected++; }
+          else live[nLive++] = w;
         }
-        curWi = wi;
+        // Windows with a direction first, so the loop below can stop at nDirected.
+        live.sort((a, b) => Number(b.direction_deg === b.direction_deg) - Number(a.direction_deg === a.direction_deg));
+        if (live.length > nLive) live.length = nLive;
       }
-      const w = cur!;
-      if (!(w.direction_deg === w.direction_deg)) { counters.rejected[ins * NR + R.no_wind_direction]++; continue; }
-      if (t < w.first_s) w.first_s = t;
-      if (t > w.last_s) w.last_s = t;
+      if (nLive === 0) {
+        counters.rejected[ins * NR + (nFound > 0 ? R.out_of_time_order : R.outside_windows)]++;
+        continue;
+      }
+      for (let k = 0; k < nLive; k++) {
+        const w = live[k];
+        if (t < w.first_s) w.first_s = t;
+        if (t > w.last_s) w.last_s = t;
+      }
+      if (nDirected === 0) { counters.rejected[ins * NR + R.no_wind_direction]++; continue; }
       const az = b.azimuth[i], el = b.elevation[i];
       if (az !== lastAz[ins] || el !== lastEl[ins]) {
         const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
@@ -184,65 +265,52 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<v
         pe = posE[ins] + r * ne; pn = posN[ins] + r * nn; pu = posU[ins] + r * nu;
       }
       if (pu < groundMin) { counters.rejected[ins * NR + R.below_ground]++; continue; }
-      const de = pe - tb[0], dn = pn - tb[1];
-      const x = de * w.dE + dn * w.dN;
-      const y = -de * w.dN + dn * w.dE;
-      const z = pu - tb[2];
-      let placed = false;
-      for (let p = 0; p < P; p++) {
-        const cross = pCross[p] === 1;
-        const off = (cross ? x : z) - pLevel[p];
-        if (off > pHalf[p] || off < -pHalf[p]) continue;
-        const cell = cross ? cellIndex(planes[p].grid, y, z) : cellIndex(planes[p].grid, y, x);
-        if (cell < 0) continue;
-        // Beam unit vector in the window's rotor frame.
-        const rx = ne * w.dE + nn * w.dN, ry = -ne * w.dN + nn * w.dE;
-        pushSample(w.samples, p, cell, ins, vr, rx, ry, nu, y, cross ? z : x);
-        counters.accepted[ins]++;
-        placed = true;
-        break;
+      const tg = targetOf[ins];
+      if (tg < 0) { counters.rejected[ins * NR + R.outside_planes]++; continue; }
+      const target = targets[tg];
+      let placedAny = false;
+      for (let k = 0; k < nDirected; k++) {
+        const w = live[k];
+        if (target.add(w.accs[tg], w, ins, vr, ne, nn, nu, pe, pn, pu, t)) placedAny = true;
       }
-      if (!placed) counters.rejected[ins * NR + R.outside_planes]++;
+      if (placedAny) counters.accepted[ins]++;
+      else counters.rejected[ins * NR + target.outsideReason]++;
     }
   };
 
-  // Every file of every instrument, read in step.
-  const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
-  const cursors = files.map((f) => ({
-    // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
-    last: -Infinity,
-    done: false,
-    path: f.path,
-    owner: f.owner,
-    rows: 0,
-  }));
   for (;;) {
     let k = -1;
     for (let j = 0; j < cursors.length; j++) if (!cursors[j].done && (k < 0 || cursors[j].last < cursors[k].last)) k = j;
     if (k < 0) break;
     const cur = cursors[k];
-    const r = await cur.it.next();
-    if (r.done) {
-      cur.done = true;
+    let chunk: SampleChunk | undefined;
+    if (cur.pending) {
+      chunk = cur.pending;
+      cur.pending = undefined;
     } else {
-      processChunk(r.value, cur.owner);
-      const b = r.value.batch;
-      if (b.length > 0) cur.last = Math.max(cur.last, b.time[b.length - 1]);
-      cur.rows += b.length + r.value.rejected.length;
+      const r = await cur.it.next();
+      if (r.done) cur.done = true;
+      else chunk = r.value;
+    }
+    if (chunk) {
+      processChunk(chunk, cur.owner);
+      const b = chunk.batch;
+      if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
+      cur.rows += b.length + chunk.rejected.length;
       opts.onProgress?.(cur.path, cur.rows);
     }
-    if (scheme.fixed) {
+    if (!record) {
       let watermark = Infinity;
       for (const q of cursors) if (!q.done) watermark = Math.min(watermark, q.last);
       if (Number.isFinite(watermark)) await finishUpTo(watermark);
     }
   }
-  if (!scheme.fixed) {
+  if (record) {
     for (const w of open.values()) {
       w.start_s = w.first_s;
       w.end_s = w.last_s;
     }
   }
   await finishUpTo(Infinity);
+  return { plan };
 }

@@ -2,38 +2,45 @@
  * The whole job for one campaign: check inputs, ingest (QC, geometry, windows), retrieve each window, write the
  * field tables, analyse the wake, render images and the report, and write the manifest.
  *
- * Output safety: everything is written into a staging folder beside the result (`.<name>.partial-<pid>`); only a
- * run that finishes is renamed to `<output.dir>/<name>`. An earlier result of the same name is never overwritten in
- * place: it is kept as `<name>.replaced-<time>` and the run says so (manifest warnings and the returned notice).
+ * Output safety (outputFolder.ts): everything is written into a marked staging folder beside the result
+ * (`.<name>.partial-<pid>`); only a run that finishes is renamed to `<output.dir>/<name>`. Whatever stands there
+ * must be a result wakeplane marked for this campaign: it is kept as `<name>.replaced-<time>-<pid>` and the run says
+ * so; anything else stops the run before any work. Inputs are checked first (preflight.ts); the suspicious-input
+ * inspector (qc/suspicion.ts) watches the samples and adds its warnings, or stops the run for a file without a
+ * usable row.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, renameSync, rmSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
-import { checkSamples } from '../io/sampleSource.ts';
 import { openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
 import { dictionaryJson, dictionaryMarkdown } from '../records/describe.ts';
 import { rejectedRowsTable } from '../records/tables/run.ts';
 import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
-import { readSeries, type Series } from '../io/series.ts';
-import { isoTime } from '../io/time.ts';
+import { readSeries } from '../io/series.ts';
+import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
-import { retrieveWindow } from '../retrieval/retrieveWindow.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
-import { fieldTableName, writeFieldTable } from './fieldTable.ts';
-import { FieldNetcdf } from './fieldNetcdf.ts';
+import { WindowFinisher } from './finishWindows.ts';
+import { PlaneTarget } from '../grid/planeTarget.ts';
 import { hashFiles } from './hashing.ts';
-import type { OutputRecord, RunManifest, WindowRecord } from '../records/manifest.ts';
-import { directionForWindow, windowScheme } from './windows.ts';
-import { InputError } from '../errors.ts';
+import type { OutputRecord, RunManifest } from '../records/manifest.ts';
+import { directionForWindow } from '../windows/direction.ts';
+import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
+import { loadConditionSeries } from './ensembles.ts';
+import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
+import { openStaging } from './outputFolder.ts';
+import { preflight } from './preflight.ts';
 
 export interface RunOptions {
-  /** Output root; default: the campaign's output.dir resolved against the working directory. */
+  /** Output root; default: the campaign's output.dir (resolved against the campaign file's folder). */
   outRoot?: string;
+  /** Also remove unfinished staging folders whose run cannot be proven stopped (see outputFolder.ts). */
+  clean?: boolean;
   /** Render images and the report (default: campaign output.images). */
   images?: boolean;
   /** Progress sink (the CLI passes a terminal progress display; silent by default). */
@@ -45,6 +52,10 @@ export interface RunOptions {
 export interface RunProgress {
   stage(name: string): void;
   file(path: string, rows: number): void;
+  /** A running counter of the stage (windows, images, ...). */
+  count?(label: string, value: number): void;
+  /** Expected total rows of the reading stage (an estimate), for the share done. */
+  expect?(rows: number): void;
   done(): void;
 }
 
@@ -110,29 +121,37 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const notices: string[] = [];
   const warnings: string[] = [];
 
-  // 1. Inputs: every data file must exist and have the required columns before anything is written.
+  // 1. Inputs and the output target, before anything is written (all problems at once).
   progress.stage('checking inputs');
   let t = performance.now();
-  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
-  const dataFiles = c.instruments.flatMap((ins) => ins.files.map((file) => ({ file, ins })));
-  if (dataFiles.length === 0) throw new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files');
-  for (const { file, ins } of dataFiles) {
-    if (!existsSync(file)) throw new InputError(file, undefined, `data file of instrument "${ins.id}" not found`);
-    await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
-  }
-  const dirSeries: Series | undefined =
-    c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+  const outRoot = resolve(opts.outRoot ?? c.output.dir);
+  const pre = await preflight(c, { outRoot, folder: c.name, kind: 'run', data: true });
+  if (pre.errors.length) throw pre.errors.length === 1 ? pre.errors[0] : new Problems(pre.errors);
+  warnings.push(...pre.warnings);
+  const cRead = pre.campaign; // each data file once
+  const dataFiles = pre.files;
+  const dirSeries = pre.directionSeries;
+  // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
+  // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
+  const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
+    ? readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    : undefined;
+  const planInputs = { turbineSeries, directionSeries: dirSeries };
+  const early: BuiltWindowPlan | undefined =
+    c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
+  const conditionSeries = loadConditionSeries(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
+  const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
 
-  // 2. Staging folder.
-  const outRoot = resolve(opts.outRoot ?? c.output.dir);
-  const finalDir = join(outRoot, c.name);
-  const runDir = join(outRoot, `.${c.name}.partial-${process.pid}`);
-  rmSync(runDir, { recursive: true, force: true });
-  mkdirSync(runDir, { recursive: true });
+  // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
+  const staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+  notices.push(...staging.notices);
+  const runDir = staging.dir;
+  const finalDir = staging.finalDir;
+  const show = (f: string) => relative(c.baseDir, f) || f;
+  const inspector = new SuspicionInspector(cRead, suspicionSettings(c, show));
 
-  let fieldNc: FieldNetcdf | undefined;
   try {
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
     const settings: RetrievalSettings = {
@@ -143,18 +162,13 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       instrumentCount: c.instruments.length,
     };
     const counters = new Counters(c.instruments.length);
-    const outputs: OutputRecord[] = [];
-    const windows: WindowRecord[] = [];
-    // Each assumption with the plane-windows it applied to, stated once in the manifest.
-    const assumptions = new Map<string, string[]>();
     let rejectedOut: AtomicStream | undefined;
     let rejectedCount = 0;
     if (c.output.writeRejected) {
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
       rejectedOut.write(headerLine(rejectedLayout));
     }
-    let retrieveTime = 0, writeTime = 0, stageFieldTime = 0;
-    const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
+    const outputs: OutputRecord[] = [];
     const manifest: RunManifest = {
       tool: { name: 'wakeplane', version: VERSION },
       campaign: { name: c.name, file: c.sourceFile, sha256: sha256Text(campaignText), description: c.description },
@@ -163,7 +177,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       inputs: [],
       settings: c,
       samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
-      windows,
+      windows: [],
       outputs,
       timings_s: timings,
       peakRss_bytes: 0,
@@ -172,18 +186,32 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       warnings,
     };
     const stages = opts.stages ?? [];
-    fieldNc = c.output.netcdf ? new FieldNetcdf(c, runDir, manifest.campaign.sha256) : undefined;
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
+    const finisher = new WindowFinisher(c, planes, settings, runDir, stages, stageCtx, counters, conditionSeries);
+    manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
     progress.stage('reading samples');
+    progress.expect?.(pre.estimatedRows);
     t = performance.now();
-    const scheme = windowScheme(c);
+    let built: BuiltWindowPlan | undefined = early;
+    let outputsSeen = 0, imageCount = 0;
+    // The plane target takes every instrument's samples (sibling geometries would take theirs).
+    const planeTarget = new PlaneTarget(
+      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      c.instruments.length, c.turbine.position,
+    );
     await ingest(
       {
-        campaign: c,
-        planes,
-        scheme,
+        campaign: cRead,
+        suspicion: inspector,
+        targets: [planeTarget],
+        targetOf: new Int32Array(c.instruments.length).fill(0),
+        windowPlan(first) {
+          built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
+          finisher.disjoint = built.plan.disjoint;
+          return built.plan;
+        },
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
         onRejectedRows(rows) {
           rejectedCount += rows.length;
@@ -191,64 +219,42 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
         async onWindow(w) {
-          const tr = performance.now();
-          // Windows are numbered 0, 1, ... in time order within the run (the manifest keeps their times).
-          const info = { index: windows.length, start_s: w.start_s, end_s: w.end_s };
-          const res = retrieveWindow(w.samples, planes, info, w.direction_deg, settings);
-          for (let i = 0; i < res.outliers.length; i++) {
-            counters.accepted[i] -= res.outliers[i];
-            counters.reject(i, REJECT_REASONS.indexOf('outlier'), res.outliers[i]);
-          }
-          retrieveTime += (performance.now() - tr) / 1000;
-          const tw = performance.now();
-          const ordinal = windows.length;
-          windows.push({
-            index: ordinal, start: isoTime(w.start_s), end: isoTime(w.end_s), start_s: w.start_s, end_s: w.end_s,
-            direction_deg: w.direction_deg, samples: w.samples.length - res.outliers.reduce((a, b) => a + b, 0),
-          });
-          for (const f of res.fields) {
-            const rel = fieldTableName(f, ordinal);
-            await writeFieldTable(f, join(runDir, rel), c.turbine.rotorDiameter_m);
-            await fieldNc?.add(f, ordinal);
-            outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, window: ordinal, description: `retrieved wind field, ${f.planeId}, ${isoTime(f.window.start_s)}` });
-            for (const a of f.assumptions) assumptions.set(a, [...(assumptions.get(a) ?? []), `${f.planeId} w${ordinal}`]);
-          }
-          writeTime += (performance.now() - tw) / 1000;
-          for (const stage of stages) {
-            if (!stage.field) continue;
-            const ts = performance.now();
-            for (const f of res.fields) outputs.push(...(await stage.field(f, stageCtx)));
-            lap(stage.name, ts);
-            stageFieldTime += (performance.now() - ts) / 1000;
-          }
+          await finisher.window(w);
+          progress.count?.('windows', finisher.windows.length);
+          for (; outputsSeen < finisher.outputs.length; outputsSeen++) if (finisher.outputs[outputsSeen].kind === 'image') imageCount++;
+          if (imageCount) progress.count?.('images', imageCount);
         },
       },
       counters,
     );
-    if (fieldNc) {
-      const tc = performance.now();
-      outputs.push(...(await fieldNc.close()));
-      writeTime += (performance.now() - tc) / 1000;
-    }
+    await finisher.end(manifest, notices);
+    outputs.push(...finisher.outputs);
+    if (built?.segments) manifest.segments = built.segments;
+    if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
     lap('ingest_total', t);
-    timings.retrieval = retrieveTime;
-    timings.write_fields = writeTime;
-    timings.ingest = timings.ingest_total - retrieveTime - writeTime - stageFieldTime;
+    const stageFieldTime = Object.values(finisher.times.stages).reduce((a, b) => a + b, 0);
+    for (const [name, secs] of Object.entries(finisher.times.stages)) timings[name] = (timings[name] ?? 0) + secs;
+    timings.retrieval = finisher.times.retrieval;
+    timings.write_fields = finisher.times.write_fields;
+    timings.ingest = timings.ingest_total - finisher.times.retrieval - finisher.times.write_fields - stageFieldTime;
     delete timings.ingest_total;
     if (rejectedOut) {
       await rejectedOut.close();
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
     }
-    if (windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
+    if (finisher.windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 
     t = performance.now();
     manifest.inputs = (await digests).map((d, k) => ({ file: d.file, instrument: dataFiles[k].ins.id, bytes: d.bytes, sha256: d.sha256 }));
     lap('hash_wait', t);
     const { perInstrument, total } = accountsFrom(c, counters);
+    const suspicion = inspector.finish(perInstrument);
+    if (suspicion.errors.length) throw suspicion.errors.length === 1 ? suspicion.errors[0] : new Problems(suspicion.errors);
+    warnings.push(...suspicion.warnings, ...sameContentWarnings(manifest.inputs, show));
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
-    manifest.assumptions = [...assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
+    manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
 
     // Provisional end figures, so that the report (the last stage) can show them; final values follow below.
@@ -260,7 +266,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       if (!stage.finish) continue;
       progress.stage(stage.name);
       t = performance.now();
-      outputs.push(...(await stage.finish(stageCtx)));
+      const made = await stage.finish(stageCtx);
+      outputs.push(...made);
+      progress.count?.('files', made.length);
       lap(stage.name, t);
     }
 
@@ -275,18 +283,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 
-    if (existsSync(finalDir)) {
-      const kept = `${finalDir}.replaced-${new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}`;
-      renameSync(finalDir, kept);
-      notices.push(`an earlier result was kept as ${relative(process.cwd(), kept) || kept}`);
-    }
-    renameSync(runDir, finalDir);
+    notices.push(...staging.commit());
     progress.done();
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
-    await fieldNc?.abort();
-    rmSync(runDir, { recursive: true, force: true });
+    staging.abort();
     throw e;
   }
 }

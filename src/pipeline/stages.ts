@@ -15,6 +15,7 @@ import type { ReportExtras } from '../render/report.ts';
 import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
 import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
+import { FieldNetcdf } from './fieldNetcdf.ts';
 import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
@@ -41,6 +42,7 @@ export function wakeStage(): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
   const rows: WakePlaneWindow[] = [];
+  const ensembleRows: WakePlaneWindow[] = [];
   return {
     name: 'wake analysis',
     async field(f, ctx) {
@@ -49,15 +51,20 @@ export function wakeStage(): RunStage {
         ctxW = planeWindowContext(ctx.campaign, inputs);
       }
       const row = analysePlaneWindow(f, ctxW!);
-      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles.
-      rows.push({ ...row, deficit: new Float64Array(0) });
+      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
+      // (condition bins) are reported on their own and stay out of the per-window summaries.
+      (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
       wakeRows(ctx.shared).set(f, row);
       return [];
     },
     async finish(ctx) {
       const a = summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
-      const out = writeWakeOutputs(a, ctx.runDir);
+      if (a.steering.bins.length === 0 && ctx.campaign.turbine.series) {
+        ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
+      }
+      ctx.shared.ensembleRows = ensembleRows;
+      const out = writeWakeOutputs(a, ctx.runDir, ensembleRows);
       if (ctx.campaign.output.netcdf) out.push(...(await writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256)));
       return out;
     },
@@ -135,8 +142,31 @@ export function reportStage(): RunStage {
   };
 }
 
+/**
+ * The fields as NetCDF-4/CF (campaign output.netcdf): each field appended to its plane's file as its window (or
+ * condition bin) finishes, the files closed at the end (pipeline/fieldNetcdf.ts). The writer thread starts loading
+ * the HDF5 library with the first field, so that it is ready long before the last one.
+ */
+export function netcdfStage(): RunStage {
+  let nc: FieldNetcdf | undefined;
+  return {
+    name: 'netcdf',
+    async field(f, ctx) {
+      if (!ctx.campaign.output.netcdf) return [];
+      nc ??= new FieldNetcdf(ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256);
+      await nc.add(f, f.window.index);
+      return [];
+    },
+    async finish() {
+      const out = nc ? await nc.close() : [];
+      nc = undefined;
+      return out;
+    },
+  };
+}
+
 export function defaultStages(opts: { plan?: boolean } = {}): RunStage[] {
-  return [wakeStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), netcdfStage(), imageStage(), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

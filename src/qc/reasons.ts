@@ -10,10 +10,14 @@ export const REJECT_REASONS = [
   'missing_value',
   // quality control
   'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order', 'no_wind_direction',
+  // time: outside every window (gaps between listed windows, turbine-state transitions)
+  'outside_windows',
   // geometry
   'outside_planes',
   // robust filter (median and scaled MAD per instrument, cell and window)
   'outlier',
+  // an exact repeat of an earlier row of the same instrument, with qc.dropDuplicates (src/qc/suspicion.ts)
+  'duplicate',
 ] as const;
 export type RejectReason = (typeof REJECT_REASONS)[number];
 export const REJECT_INDEX: Record<RejectReason, number> = Object.fromEntries(REJECT_REASONS.map((r, i) => [r, i])) as Record<RejectReason, number>;

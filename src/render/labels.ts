@@ -7,6 +7,7 @@ import { formatNumber } from './ticks.ts';
 
 /** "2026-06-01 12:00–12:10 UTC" (the end date is repeated only when it differs). */
 export function windowLabel(w: WindowInfo): string {
+  if (w.kind === 'ensemble') return `${w.label ?? `bin ${w.index}`} (${w.members?.length ?? 0} windows)`;
   const a = isoMinute(w.start_s), b = isoMinute(w.end_s);
   if (!a) return `window ${w.index}`;
   const same = a.slice(0, 10) === b.slice(0, 10);
@@ -25,8 +26,9 @@ export function planePosition(f: Pick<FieldResult, 'orientation' | 'x_m' | 'z_m'
 }
 
 /** Base file name (no extension) under images/: <plane>_w<window>_<what>. */
-export function imageName(planeId: string, window: number, what: string): string {
-  return `${planeId}_w${window}_${what}`;
+/** File stem of a plane image: <plane>_w<window>_<what>, or <plane>_bin<bin>_<what> for a condition-bin ensemble. */
+export function imageName(planeId: string, window: number, what: string, ensemble = false): string {
+  return `${planeId}_${ensemble ? 'bin' : 'w'}${window}_${what}`;
 }
 
 export function axisLabels(orientation: PlaneSpec['orientation']): { yLabel: string; zLabel: string; note: string } {

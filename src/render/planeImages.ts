@@ -78,7 +78,7 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
   }
 
   const uSvg = scalarMapSvg(withValues(field.grid, values), {
-    title: `${field.planeId} \u00b7 window ${win} \u00b7 ${when}`,
+    title: `${field.planeId} \u00b7 ${which(field)} \u00b7 ${when}`,
     subtitle,
     colorbarLabel: normalised ? 'u / u_inf (\u2013)' : 'u, streamwise (m/s)',
     mask: { codes: field.maskU, names: maskReasonName },
@@ -87,23 +87,23 @@ export async function renderPlaneImages(field: FieldResult, wake: WakePlaneWindo
     ellipses,
     ...(arrows ? { arrows } : {}),
   });
-  jobs.push(writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u'), {
-    plane: field.planeId, window: win, description: `${normalised ? 'u / u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}`,
+  jobs.push(writeFigure(uSvg, runDir, imageName(field.planeId, win, normalised ? 'u_norm' : 'u', field.window.kind === 'ensemble'), {
+    plane: field.planeId, ...windowTag(field), description: `${normalised ? 'u / u_inf' : 'streamwise speed u'}${arrows ? ' with in-plane arrows' : ''}${markers.length ? ', wake centre' : ''}${ellipses.length ? ' and width' : ''}`,
   }, fig));
 
   const suSvg = scalarMapSvg(withValues(field.grid, field.su), {
-    title: `${field.planeId} \u00b7 window ${win} \u00b7 uncertainty of u`,
+    title: `${field.planeId} \u00b7 ${which(field)} \u00b7 uncertainty of u`,
     subtitle: `${planePosition(field, D)} \u00b7 ${when} \u00b7 standard uncertainty from radial-velocity scatter and geometry`,
     colorbarLabel: 'standard uncertainty of u (m/s)',
     mask: { codes: field.maskU, names: maskReasonName },
     contours: false,
     ...base,
   });
-  jobs.push(writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su'), { plane: field.planeId, window: win, description: 'standard uncertainty of u' }, fig));
+  jobs.push(writeFigure(suSvg, runDir, imageName(field.planeId, win, 'su', field.window.kind === 'ensemble'), { plane: field.planeId, ...windowTag(field), description: 'standard uncertainty of u' }, fig));
 
   if (wake && (wake.inflow.heights_m.length > 0 || wake.inflow.source === 'fixed')) {
-    jobs.push(writeFigure(inflowSvg(wake, field, campaign), runDir, imageName(field.planeId, win, 'inflow'), {
-      plane: field.planeId, window: win, description: 'inflow profile and fitted law',
+    jobs.push(writeFigure(inflowSvg(wake, field, campaign), runDir, imageName(field.planeId, win, 'inflow', field.window.kind === 'ensemble'), {
+      plane: field.planeId, ...windowTag(field), description: 'inflow profile and fitted law',
     }, fig));
   }
   return (await Promise.all(jobs)).flat();
@@ -127,7 +127,7 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
   if (p.heights_m.length) series.push({ label: `measured (${p.source}), bin means`, x: p.speeds_ms, y: p.heights_m, kind: 'points', marker: 'circle' });
   series.push({ label: lawText, x: vs, y: zs, kind: 'line' });
   return linePlotSvg({
-    title: `${field.planeId} \u00b7 window ${field.window.index} \u00b7 inflow profile`,
+    title: `${field.planeId} \u00b7 ${which(field)} \u00b7 inflow profile`,
     subtitle: `${windowLabel(field.window)} \u00b7 RMSE ${formatNumber(p.rmse_ms, 3)} m/s \u00b7 R\u00b2 ${formatNumber(p.r2, 3)}${p.note ? ` \u00b7 ${p.note}` : ''}`,
     xLabel: 'horizontal wind speed (m/s)',
     yLabel: 'height above ground (m)',
@@ -156,7 +156,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
     for (let i = 0; i < n; i++) codes[i] = Number.isFinite(dop[i]) ? 0 : mask[i] || (field.samples[i] === 0 ? MaskReason.noData : 0);
     const svg = scalarMapSvg(withValues(field.grid, dop), {
       title: `${field.planeId} \u00b7 error amplification of ${c}`,
-      subtitle: `${planePosition(field, D)} \u00b7 window ${win}, ${windowLabel(field.window)} \u00b7 ${c} is masked above ${formatNumber(maxA, 1)}`,
+      subtitle: `${planePosition(field, D)} \u00b7 ${which(field)}, ${windowLabel(field.window)} \u00b7 ${c} is masked above ${formatNumber(maxA, 1)}`,
       colorbarLabel: `error amplification of ${c} (\u2013)`,
       domain: [0, 2 * maxA],
       colorbarMarks: [{ value: maxA, label: `${c} masked above` }],
@@ -164,7 +164,7 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
       mask: { codes, names: maskReasonName },
       ...base,
     });
-    jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`), { plane: field.planeId, window: win, description: `error amplification of ${c}` }, fig));
+    jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, `dop${c.toUpperCase()}`, field.window.kind === 'ensemble'), { plane: field.planeId, ...windowTag(field), description: `error amplification of ${c}` }, fig));
   }
   const counts = new Float64Array(n);
   const codes = new Uint8Array(n);
@@ -174,12 +174,22 @@ export async function renderGeometryMaps(field: FieldResult, campaign: Campaign,
   }
   const svg = scalarMapSvg(withValues(field.grid, counts), {
     title: `${field.planeId} \u00b7 accepted samples per cell`,
-    subtitle: `${planePosition(field, D)} \u00b7 window ${win}, ${windowLabel(field.window)}`,
+    subtitle: `${planePosition(field, D)} \u00b7 ${which(field)}, ${windowLabel(field.window)}`,
     colorbarLabel: 'accepted samples per cell',
     contours: false,
     mask: { codes, names: maskReasonName },
     ...base,
   });
-  jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, 'samples'), { plane: field.planeId, window: win, description: 'accepted samples per cell' }, fig));
+  jobs.push(writeFigure(svg, runDir, imageName(field.planeId, win, 'samples', field.window.kind === 'ensemble'), { plane: field.planeId, ...windowTag(field), description: 'accepted samples per cell' }, fig));
   return (await Promise.all(jobs)).flat();
+}
+
+/** How an output names its window: window ordinal, or condition bin for an ensemble. */
+function windowTag(field: FieldResult): { window?: number; bin?: number } {
+  return field.window.kind === 'ensemble' ? { bin: field.window.index } : { window: field.window.index };
+}
+
+/** "window 3" or "condition bin 2". */
+function which(field: FieldResult): string {
+  return field.window.kind === 'ensemble' ? `condition bin ${field.window.index}` : `window ${field.window.index}`;
 }

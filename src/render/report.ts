@@ -206,7 +206,7 @@ function imagesHtml(images: OutputRecord[]): string {
   for (const [base, recs] of byBase) {
     const shown = recs.find((r) => /\.svg$/i.test(r.path)) ?? recs[0];
     const r0 = recs[0];
-    const key = r0.plane === undefined ? 'Summary' : `Plane ${r0.plane}${r0.window === undefined ? '' : `, window ${r0.window}`}`;
+    const key = r0.plane === undefined ? 'Summary' : `Plane ${r0.plane}${r0.bin !== undefined ? `, condition bin ${r0.bin}` : r0.window === undefined ? '' : `, window ${r0.window}`}`;
     const links = recs.map((r) => `<a href="${href(r.path)}">${esc(r.path.slice(r.path.lastIndexOf('.') + 1).toUpperCase())}</a>`).join(' \u00b7 ');
     const fig = `<figure><img src="${href(shown.path)}" alt="${esc(r0.description ?? base)}"><figcaption>${esc(r0.description ?? '')} \u2014 <code>${esc(base.slice(base.lastIndexOf('/') + 1))}</code> \u00b7 ${links}</figcaption></figure>`;
     groups.set(key, [...(groups.get(key) ?? []), fig]);

@@ -1,7 +1,6 @@
 export * from './types.ts';
 export * from './settings.ts';
-export { retrieveWindow, type WindowRetrieval } from './retrieveWindow.ts';
-export { groupSamples, type SampleGroups } from './group.ts';
+export { retrieveWindow, retrieveStats, accumulateSamples, cellOffsets, keyCountOf, type WindowRetrieval } from './retrieveWindow.ts';
 export { robustFilter, type RobustResult } from './robustFilter.ts';
-export { instrumentMeans, type InstrumentMeans } from './instrumentMeans.ts';
+export { emptyCellStats, mergeCellStats, instrumentMeans, type CellStats, type InstrumentMeans } from './cellStats.ts';
 export { solve2, solve3, emptyCellSolution, type CellSolution } from './solveCell.ts';

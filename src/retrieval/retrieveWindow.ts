@@ -1,6 +1,7 @@
 /**
- * Retrieval of one averaging window: robust filter per (plane, cell, instrument), per-instrument means, then a
- * weighted least-squares wind vector per cell with uncertainties, geometry figures and per-component masks.
+ * Retrieval of one averaging window (or of an ensemble of windows): from the per-key statistics of the kept samples
+ * (cellStats.ts, produced by the robust filter from a window's accumulator), per-instrument means, then a weighted
+ * least-squares wind vector per cell with uncertainties, geometry figures and per-component masks.
  * See solveCell.ts for the estimator, its sources and its limits, robustFilter.ts for the outlier rule.
  *
  * Masks per component (MaskReason): no_data (no kept sample in the cell); too_few_samples (the cell has enough
@@ -13,13 +14,14 @@
  * `instruments` = how many instruments were used. Samples of instruments below the minimum are not outliers and
  * are not counted as used.
  *
- * Cost: O(samples) with a counting sort and selection-based medians; allocation per window and per cell, never
- * per sample.
+ * Cost: O(keys); allocation per window and per cell, never per sample. `retrieveWindow` takes a window's samples
+ * as arrays (grid/windowSamples.ts), accumulates them and runs the same path: the entry point for callers holding
+ * samples in memory.
  */
 import type { WindowSamples } from '../grid/windowSamples.ts';
+import { CellAccumulator } from '../grid/accumulator.ts';
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
-import { groupSamples } from './group.ts';
-import { instrumentMeans } from './instrumentMeans.ts';
+import { instrumentMeans, type CellStats } from './cellStats.ts';
 import { robustFilter } from './robustFilter.ts';
 import { DEFAULT_SIGMA_FLOOR_MS, W_ZERO_ASSUMPTION, type PlaneGrid, type RetrievalSettings } from './settings.ts';
 import { emptyCellSolution, solve2, solve3, type CellSolution } from './solveCell.ts';
@@ -31,7 +33,45 @@ export interface WindowRetrieval {
   /** One field per plane, in the order of `planes`. */
   fields: FieldResult[];
   /** Samples rejected by the robust filter, per instrument. */
-  outliers: Uint32Array;
+  outliers: Float64Array;
+}
+
+/** First key-space cell of each plane (in the order of `planes`), length planes.length + 1. */
+export function cellOffsets(planes: PlaneGrid[]): Uint32Array {
+  const off = new Uint32Array(planes.length + 1);
+  for (let j = 0; j < planes.length; j++) off[j + 1] = off[j] + planes[j].grid.ny * planes[j].grid.nz;
+  return off;
+}
+
+/** Number of keys of a window over these planes: all cells times instruments. */
+export function keyCountOf(planes: PlaneGrid[], instrumentCount: number): number {
+  return cellOffsets(planes)[planes.length] * instrumentCount;
+}
+
+/**
+ * Accumulate samples held in arrays (plane = PlaneSpec.index, cell, instrument, v_r, rotor-frame unit vector,
+ * in-plane position). Throws RangeError for a sample whose plane is not among `planes`, whose cell is outside its
+ * grid or whose instrument index is >= instrumentCount (an upstream bug, not a data problem).
+ */
+export function accumulateSamples(samples: WindowSamples, planes: PlaneGrid[], instrumentCount: number): CellAccumulator {
+  const I = instrumentCount;
+  const off = cellOffsets(planes);
+  let maxIndex = 0;
+  for (const p of planes) maxIndex = Math.max(maxIndex, p.spec.index);
+  const planePos = new Int32Array(maxIndex + 1).fill(-1);
+  planes.forEach((p, j) => (planePos[p.spec.index] = j));
+  const acc = new CellAccumulator(off[planes.length] * I, I);
+  for (let i = 0; i < samples.length; i++) {
+    const p = samples.plane[i];
+    const j = p < planePos.length ? planePos[p] : -1;
+    if (j < 0) throw new RangeError(`sample ${i}: plane index ${p} is not among the planes retrieved`);
+    const c = samples.cell[i];
+    if (c >= off[j + 1] - off[j]) throw new RangeError(`sample ${i}: cell ${c} outside plane ${p}'s grid`);
+    const ins = samples.instrument[i];
+    if (ins >= I) throw new RangeError(`sample ${i}: instrument ${ins} >= instrumentCount ${I}`);
+    acc.add((off[j] + c) * I + ins, samples.vr[i], samples.nx[i], samples.ny[i], samples.nz[i], samples.py[i], samples.pz[i]);
+  }
+  return acc;
 }
 
 function emptyField(pg: PlaneGrid, window: WindowInfo, direction_deg: number): FieldResult {
@@ -100,16 +140,30 @@ function store(f: FieldResult, c: number, s: CellSolution): void {
 }
 
 /**
- * Retrieve every plane of one window. `samples` hold rotor-frame unit vectors (see grid/windowSamples.ts);
- * `direction_deg` is the wind direction that defined that frame (recorded in each field).
+ * Retrieve every plane of one window from its samples in arrays. `samples` hold rotor-frame unit vectors (see
+ * grid/windowSamples.ts); `direction_deg` is the wind direction that defined that frame (recorded in each field).
  */
 export function retrieveWindow(
   samples: WindowSamples, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
 ): WindowRetrieval {
+  const acc = accumulateSamples(samples, planes, settings.instrumentCount);
+  const { stats, outliers } = robustFilter(acc, settings.robust);
+  return { fields: retrieveStats(stats, planes, window, direction_deg, settings), outliers };
+}
+
+/**
+ * Retrieve every plane from kept-sample statistics (one window, or the merged statistics of an ensemble).
+ * `direction_deg` is the wind direction that defined the rotor frame (recorded in each field).
+ */
+export function retrieveStats(
+  stats: CellStats, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
+): FieldResult[] {
   const I = settings.instrumentCount;
-  const groups = groupSamples(samples, planes, I);
-  const { keep, outliers } = robustFilter(groups, settings.robust);
-  const st = instrumentMeans(samples, keep, groups);
+  if (stats.instrumentCount !== I || stats.keyCount !== keyCountOf(planes, I)) {
+    throw new RangeError(`statistics of ${stats.keyCount} keys do not match ${planes.length} planes and ${I} instruments`);
+  }
+  const cellOffset = cellOffsets(planes);
+  const st = instrumentMeans(stats);
 
   const floor = settings.sigmaFloor_ms ?? DEFAULT_SIGMA_FLOOR_MS;
   const floor2 = floor * floor;
@@ -125,7 +179,7 @@ export function retrieveWindow(
     const nc = planes[j].grid.ny * planes[j].grid.nz;
     let usedWZero = false;
     for (let c = 0; c < nc; c++) {
-      const base = (groups.cellOffset[j] + c) * I;
+      const base = (cellOffset[j] + c) * I;
       let present = 0, K = 0, used = 0;
       for (let i = 0; i < I; i++) {
         const k = base + i;
@@ -164,5 +218,5 @@ export function retrieveWindow(
     if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
     fields.push(f);
   }
-  return { fields, outliers };
+  return fields;
 }

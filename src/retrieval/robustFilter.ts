@@ -1,54 +1,63 @@
 /**
- * Robust outlier filter per (plane, cell, instrument) group of one window: reject a sample when
- * |v_r - median| > k * sigma_hat, sigma_hat = 1.4826 * MAD (consistent with the standard deviation for Gaussian
- * data; common practice). Groups with fewer than robust.minSamples samples are not filtered.
+ * Robust outlier filter per (plane, cell, instrument) key of one window, on the key's radial-velocity histogram
+ * (qc/vrHistogram.ts): reject the samples farther than k * sigma_hat from the median, sigma_hat = 1.4826 * MAD
+ * (consistent with the standard deviation for Gaussian data; common practice). Keys with fewer than
+ * robust.minSamples samples are not filtered.
  *
- * MAD = 0 (more than half of the group shares one value, e.g. quantised or noise-free data): the MAD gives no scale,
- * and rejecting every value that differs from the median would throw away real data. The scale then falls back to
- * 1.2533 * mean absolute deviation about the median (see qc/robust.ts), which is positive as soon as one value
- * differs, so an isolated spike in otherwise constant data is still rejected; a group of identical values loses
- * nothing. For k * 1.4826 >= 1 at least half of a group is kept (half of it lies within one MAD of the median by
- * definition), so a filtered group never becomes empty.
+ * MAD = 0 (more than half of the key's samples in one bin, e.g. quantised or noise-free data): the MAD gives no
+ * scale, and rejecting every value that differs from the median would throw away real data. The scale then falls
+ * back to 1.2533 * mean absolute deviation about the median, positive as soon as one value differs, so an isolated
+ * spike in otherwise constant data is still rejected; a key of identical values loses nothing. For
+ * k * 1.4826 >= 1 at least half of a key is kept, so a filtered key never becomes empty.
+ *
+ * Tolerance against the exact filter on the samples (qc/robust.ts): the median and MAD are those of the bin centres
+ * (bins of width delta = 2^(L-7) m/s, 0.0078 m/s at the finest level), so the median is within delta/2 and the MAD
+ * within delta of the exact ones, and only samples within about (1 + 1.5 k) delta of the exact limit can be decided
+ * differently (test/retrieval-robust-hist.test.ts). The kept sums are the exact sums minus the rejected samples'
+ * bin centres (their beam vectors and positions taken as the key's mean), so with nothing rejected they are exact.
  */
-import { medianInPlace, robustSigma } from '../qc/robust.ts';
-import type { SampleGroups } from './group.ts';
+import { F, MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, STRIDE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
+import { emptyHistogramStats, robustStats } from '../qc/vrHistogram.ts';
+import { emptyCellStats, type CellStats } from './cellStats.ts';
 import type { RobustSettings } from './settings.ts';
 
 export interface RobustResult {
-  /** 1 = kept, 0 = rejected; indexed by sample index. */
-  keep: Uint8Array;
-  /** Rejections per instrument. */
-  outliers: Uint32Array;
+  /** Kept-sample statistics per key. */
+  stats: CellStats;
+  /** Samples rejected by the filter, per instrument. */
+  outliers: Float64Array;
 }
 
-/** Apply the filter to every group. */
-export function robustFilter(groups: SampleGroups, robust: RobustSettings): RobustResult {
-  const { vrSorted, order } = groups;
-  const n = vrSorted.length;
-  const keep = new Uint8Array(n).fill(1);
-  const outliers = new Uint32Array(groups.instrumentCount);
-  if (!robust.enabled) return { keep, outliers };
-  const { start, keyCount, instrumentCount: I } = groups;
-  let maxLen = 0;
-  for (let k = 0; k < keyCount; k++) maxLen = Math.max(maxLen, start[k + 1] - start[k]);
-  const buf = new Float64Array(maxLen);
-  const work = new Float64Array(maxLen);
+/** Apply the filter to every key of a finished window's accumulator. */
+export function robustFilter(acc: CellAccumulator, robust: RobustSettings): RobustResult {
+  const I = acc.instrumentCount;
+  const stats = emptyCellStats(acc.keyCount, I);
+  const outliers = new Float64Array(I);
+  const hs = emptyHistogramStats();
   const minN = Math.max(3, robust.minSamples);
-  for (let k = 0; k < keyCount; k++) {
-    const s = start[k], e = start[k + 1], len = e - s;
-    if (len < minN) continue;
-    for (let i = 0; i < len; i++) buf[i] = vrSorted[s + i];
-    const med = medianInPlace(buf, 0, len);
-    const sigma = robustSigma(vrSorted.subarray(s, e), 0, len, med, work);
-    if (!(sigma > 0)) continue;
-    const limit = robust.k * sigma;
-    let rejected = 0;
-    for (let p = s; p < e; p++)
-      if (Math.abs(vrSorted[p] - med) > limit) {
-        keep[order[p]] = 0;
-        rejected++;
-      }
-    outliers[k % I] += rejected;
+  for (let s = 0; s < acc.slots; s++) {
+    const key = acc.keyOf[s];
+    const m = acc.sums, o = s * STRIDE;
+    const n = m[o + F.n];
+    if (n > MAX_SAMPLES_PER_KEY) {
+      throw new RangeError(`${n} samples in one window, cell and instrument: more than ${MAX_SAMPLES_PER_KEY}; use shorter windows or smaller cells`);
+    }
+    let rej = 0, rs = 0, rss = 0;
+    if (robust.enabled && n >= minN) {
+      robustStats(acc.hist, s, robust.k, hs);
+      rej = hs.rejected; rs = hs.rejectedSum; rss = hs.rejectedSumSq;
+    }
+    const kept = n - rej;
+    const frac = kept / n;
+    stats.n[key] = kept;
+    stats.sv[key] = m[o + F.sv] / VR_SCALE - rs;
+    stats.sv2[key] = (m[o + F.sv2h] * SQ_SPLIT + m[o + F.sv2l]) / (VR_SCALE * VR_SCALE) - rss;
+    stats.sx[key] = (m[o + F.sx] / DIR_SCALE) * frac;
+    stats.sy[key] = (m[o + F.sy] / DIR_SCALE) * frac;
+    stats.sz[key] = (m[o + F.sz] / DIR_SCALE) * frac;
+    stats.spy[key] = (m[o + F.spy] / POS_SCALE) * frac;
+    stats.spz[key] = (m[o + F.spz] / POS_SCALE) * frac;
+    outliers[key % I] += rej;
   }
-  return { keep, outliers };
+  return { stats, outliers };
 }

@@ -32,11 +32,20 @@ export const maskReasonName: Record<number, string> = {
 };
 
 export interface WindowInfo {
+  /** Ordinal of the window in the run (windows), or of the condition bin (ensembles). */
   index: number;
-  /** Unix seconds, inclusive. */
+  /** Unix seconds, inclusive (an ensemble: the start of its first window). */
   start_s: number;
-  /** Unix seconds, exclusive. */
+  /** Unix seconds, exclusive (an ensemble: the end of its last window). */
   end_s: number;
+  /** Why the window exists: fixed, list, segment, record; or ensemble (windows pooled by condition). */
+  kind?: 'fixed' | 'list' | 'segment' | 'record' | 'ensemble';
+  /** Label for people: a list label, a state level, or a condition bin ("yaw_offset_deg in [-15, -5)"). */
+  label?: string;
+  /** Segment windows: the yaw-offset level, degrees. */
+  level?: number;
+  /** Ensembles: the [start, end) of every pooled window, Unix seconds (series are averaged over these only). */
+  members?: [number, number][];
 }
 
 export interface FieldResult {

@@ -10,7 +10,8 @@ export const simSettingsSchema = z
   .object({
     seed: z.number().int().default(1).describe('random seed; the same seed writes the same files'),
     start: z.string().default('2026-01-01T00:00:00Z').describe('ISO 8601 UTC start of the record'),
-    windows: z.number().int().min(1).max(500).default(6).describe('number of averaging windows to simulate'),
+    windows: z.number().int().min(1).max(500).default(6).describe('number of states (direction, speed, yaw offset) to simulate'),
+    step_s: finite().positive().optional().describe('duration of each state, s; default: the fixed window length'),
     hubSpeed_ms: finite().positive().default(8).describe('free-stream speed at hub height, m/s'),
     shearExponent: finite().default(0.14).describe('power-law shear exponent'),
     directionMean_deg: finite().default(270).describe('mean wind direction (from), degrees'),

@@ -42,12 +42,19 @@ interface WindowTruth {
   params: WakeTruthParams;
 }
 
+/** Duration of one simulated state (direction, speed, yaw offset), s: simulation.step_s or the fixed window length. */
+export function simStep(c: Campaign, s: SimSettings): number {
+  if (s.step_s !== undefined) return s.step_s;
+  if (c.windows.kind === 'fixed') return c.windows.length_s;
+  throw new ConfigError(c.sourceFile, 'simulation.step_s', 'needed when the windows are not of fixed length');
+}
+
 export function windowTruths(c: Campaign, s: SimSettings): WindowTruth[] {
-  if (c.windows.kind !== 'fixed') throw new ConfigError(c.sourceFile, 'windows', 'the simulator needs fixed windows');
-  const L = c.windows.length_s;
+  const L = simStep(c, s);
   const t0 = parseTime(s.start);
   if (!Number.isFinite(t0)) throw new ConfigError(c.sourceFile, 'simulation.start', 'not an ISO 8601 time', s.start);
-  const first = Math.ceil(t0 / L) * L;
+  // States start at the given time exactly (not aligned to anything): real schedules start at arbitrary times.
+  const first = t0;
   const rnd = mulberry32(s.seed ^ 0x5eed);
   const out: WindowTruth[] = [];
   for (let w = 0; w < s.windows; w++) {
@@ -98,7 +105,7 @@ function fmt(x: number, digits: number): string {
 export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> {
   const s = parseSimSettings(c.simulation, c.sourceFile);
   const truths = windowTruths(c, s);
-  const L = (c.windows as { length_s: number }).length_s;
+  const L = simStep(c, s);
   const tStart = truths[0].start_s;
   const tEnd = tStart + truths.length * L;
   const D = c.turbine.rotorDiameter_m;

@@ -3,8 +3,9 @@
  * meanings and precision are declared in records/tables/wake.ts (the data dictionary); the values here follow that
  * order. Empty cell = NaN / not computed.
  *
- * wake/wake_table.csv — one row per plane and window; wake/steering.csv — one row per cross plane and yaw-offset
- * bin; wake/downstream.csv — one row per cross plane; wake/profiles.csv — cuts through the wake centre (long
+ * wake/wake_table.csv — one row per plane and window; wake/ensembles.csv — one row per plane and condition bin
+ * (when the campaign declares conditions: bin, condition, windows_pooled, then the wake-table columns, start and end
+ * those of the first and last pooled window); wake/steering.csv — one row per cross plane and yaw-offset bin; wake/downstream.csv — one row per cross plane; wake/profiles.csv — cuts through the wake centre (long
  * format); wake/track.csv — lateral centre along x on horizontal planes; wake/model_fits.json — { gaussian:
  * GaussianModelFit, topHat, gaussianCurve, topHatCurve, steering: {ct, turbulenceIntensity, note, curves (per
  * plane: gamma_deg, model_tophat_deflection_m, model_gaussian_deflection_m)}, notes }.
@@ -13,21 +14,39 @@ import { join } from 'node:path';
 import type { OutputRecord } from '../records/manifest.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { isoTime } from '../io/time.ts';
-import { downstreamTable, profilesTable, steeringTable, trackTable, wakeTable } from '../records/tables/wake.ts';
+import { downstreamTable, ensembleTable, profilesTable, steeringTable, trackTable, wakeTable } from '../records/tables/wake.ts';
 import { headerLine, rowLine, tableLayout, type Cell, type TableLayout } from '../records/tableText.ts';
-import type { WakeAnalysis } from './types.ts';
+import type { WakeAnalysis, WakePlaneWindow } from './types.ts';
 import { gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatRadius_D } from './wakeModels.ts';
 
 export const L = {
-  table: tableLayout(wakeTable), steering: tableLayout(steeringTable), downstream: tableLayout(downstreamTable),
+  table: tableLayout(wakeTable), ensembles: tableLayout(ensembleTable), steering: tableLayout(steeringTable), downstream: tableLayout(downstreamTable),
   profiles: tableLayout(profilesTable), track: tableLayout(trackTable),
 };
 
 export function wakeTableRows(a: WakeAnalysis): Cell[][] {
-  return a.rows.map((r) => {
+  return wakeRows(a.rows, false);
+}
+
+/**
+ * Ensemble rows (one per plane and condition bin): the columns of the wake table after bin (the bin's index),
+ * condition (its intervals) and windows_pooled; their start and end are those of the first and last pooled window.
+ */
+export function ensembleTableRows(rows: WakePlaneWindow[]): Cell[][] {
+  return wakeRows(rows, true);
+}
+
+export function ensembleTableCsv(rows: WakePlaneWindow[]): string {
+  return csv(L.ensembles, ensembleTableRows(rows));
+}
+
+function wakeRows(rows: WakePlaneWindow[], ensemble: boolean): Cell[][] {
+  return rows.map((r) => {
     const f = r.gaussian, p = f?.params, e = f?.stderr, i = r.inflow;
+    const w = r.window;
     return [
-      r.planeId, r.orientation, r.window.index, isoTime(r.window.start_s), isoTime(r.window.end_s), r.window.start_s, r.window.end_s,
+      ...(ensemble ? [w.index, w.label ?? '', w.members?.length ?? 0] : []),
+      r.planeId, r.orientation, w.index, isoTime(w.start_s), isoTime(w.end_s), w.start_s, w.end_s, w.kind ?? '', w.label ?? '', w.level,
       r.x_m, r.x_D, r.direction_deg, r.windDirection_deg, r.nacelle_deg, r.yawOffset_deg, r.power_kW,
       i.source, i.law, i.zRef_m, i.uRef_ms, i.alpha, i.uStar_ms, i.z0_m, i.hubSpeed_ms, i.rmse_ms, i.r2, i.heights_m.length, i.note,
       r.validCells, r.maxDeficit, p?.amplitude, e?.amplitude, p?.yc_m, e?.yc_m, p?.zc_m, e?.zc_m, p?.sigmaY_m, e?.sigmaY_m,
@@ -109,8 +128,9 @@ export function modelFitsJson(a: WakeAnalysis): string {
   });
 }
 
-export function writeWakeOutputs(a: WakeAnalysis, runDir: string): OutputRecord[] {
+export function writeWakeOutputs(a: WakeAnalysis, runDir: string, ensembleRows: WakePlaneWindow[] = []): OutputRecord[] {
   const files: [string, string, string, string][] = [
+    ...(ensembleRows.length ? [['ensemble-table', 'wake/ensembles.csv', ensembleTableCsv(ensembleRows), 'wake centre, widths, inflow and flags per plane and condition bin (ensembles of windows)'] as [string, string, string, string]] : []),
     ['wake-table', 'wake/wake_table.csv', wakeTableCsv(a), 'wake centre, widths, inflow, REWS and flags per plane and window'],
     ['steering', 'wake/steering.csv', steeringCsv(a), 'lateral wake centre binned by yaw offset, with deflection models'],
     ['downstream', 'wake/downstream.csv', downstreamCsv(a), 'deficit amplitude, widths and centre against x/D, with model values'],

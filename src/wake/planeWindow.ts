@@ -11,7 +11,7 @@
  * its edge) -> not_converged -> absurd_width (sigma < minWidthCells cells or > maxWidth_D D).
  */
 import type { FieldResult } from '../retrieval/types.ts';
-import type { Series } from '../io/series.ts';
+import { seriesWithin, type Series } from '../io/series.ts';
 import type { CentreEstimate, Gaussian2DFit, InflowProfile, WakeFlag, WakePlaneWindow } from './types.ts';
 import type { WakeOptions } from './options.ts';
 import { inflowFixed, inflowFromPlane, inflowFromSeries, type WakeEllipse } from './inflow.ts';
@@ -48,7 +48,10 @@ function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse |
   const H = c.hubHeight_m, D = c.rotorDiameter_m;
   if (c.inflow.kind === 'fixed') return inflowFixed(c.inflow, H);
   if (c.inflow.kind === 'series') {
-    if (c.inflowSeries) return inflowFromSeries(c.inflowSeries, f.window.start_s, f.window.end_s, H, 'power');
+    if (c.inflowSeries) {
+      const [series, a, b] = pooled(c.inflowSeries, f);
+      return inflowFromSeries(series, a, b, H, 'power');
+    }
     const p = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
     return { ...p, note: 'inflow series not loaded' };
   }
@@ -69,9 +72,19 @@ function countFinite(a: Float64Array): number {
   return n;
 }
 
+/**
+ * A series and the interval to average it over: the window's, or for an ensemble the rows of its pooled windows
+ * only (not the time between them).
+ */
+function pooled(s: Series, f: FieldResult): [Series, number, number] {
+  const m = f.window.members;
+  if (!m || m.length === 0) return [s, f.window.start_s, f.window.end_s];
+  return [seriesWithin(s, [...m].sort((p, q) => p[0] - q[0])), -Infinity, Infinity];
+}
+
 export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakePlaneWindow {
   const D = c.rotorDiameter_m, H = c.hubHeight_m, R = D / 2, o = c.options, g = f.grid;
-  const yaw = windowYaw(c.turbineSeries, f.window.start_s, f.window.end_s, f.direction_deg);
+  const yaw = c.turbineSeries ? windowYaw(...pooled(c.turbineSeries, f), f.direction_deg) : windowYaw(undefined, f.window.start_s, f.window.end_s, f.direction_deg);
   let inflow = inflowFor(f, c, null);
   let def = deficitField(f, inflow);
   const validU = countFinite(f.u);

@@ -16,12 +16,9 @@
  */
 import type { Series } from '../io/series.ts';
 import { rowsInWindow, circularMeanDeg } from '../io/series.ts';
+import { wrapDeg180 } from '../geometry/angles.ts';
 
-/** Wraps an angle in degrees to [-180, 180). */
-export function wrapDeg180(a: number): number {
-  const r = (((a + 180) % 360) + 360) % 360 - 180;
-  return r;
-}
+export { wrapDeg180 };
 
 export interface WindowYaw {
   nacelle_deg: number;

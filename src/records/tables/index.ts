@@ -3,10 +3,10 @@ import type { Table } from '../dictionary.ts';
 import { fieldTable } from './fields.ts';
 import { layoutsTable, planCellsTable, pointingTable } from './plan.ts';
 import { rejectedRowsTable } from './run.ts';
-import { downstreamTable, profilesTable, steeringTable, trackTable, wakeTable } from './wake.ts';
+import { downstreamTable, ensembleTable, profilesTable, steeringTable, trackTable, wakeTable } from './wake.ts';
 
-export { fieldTable, layoutsTable, planCellsTable, pointingTable, rejectedRowsTable, downstreamTable, profilesTable, steeringTable, trackTable, wakeTable };
+export { ensembleTable, fieldTable, layoutsTable, planCellsTable, pointingTable, rejectedRowsTable, downstreamTable, profilesTable, steeringTable, trackTable, wakeTable };
 
 export const TABLES: readonly Table[] = [
-  fieldTable, wakeTable, steeringTable, downstreamTable, profilesTable, trackTable, rejectedRowsTable, planCellsTable, pointingTable, layoutsTable,
+  fieldTable, wakeTable, ensembleTable, steeringTable, downstreamTable, profilesTable, trackTable, rejectedRowsTable, planCellsTable, pointingTable, layoutsTable,
 ];

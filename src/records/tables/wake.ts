@@ -16,6 +16,9 @@ export const wakeTable: Table = {
     col('end', 'iso', TIME, 'window end'),
     col('start', 'unix_s', dec(3), 'window start, seconds since 1970-01-01 UTC'),
     col('end', 'unix_s', dec(3), 'window end, seconds since 1970-01-01 UTC'),
+    col('window_kind', 'text', TEXT, 'why the window exists: fixed, list, segment or record'),
+    col('window_label', 'text', TEXT, 'the window\'s label (list label or state level)'),
+    col('state_level', 'deg', dec(3), 'segment windows: the yaw-offset level of the state'),
     col('x', 'm', dec(3), 'downstream distance of a cross plane (NaN for a horizontal plane)', rotor),
     col('x', 'D', dec(5), 'downstream distance in rotor diameters', rotor),
     col('direction', 'deg', dec(3), 'wind direction (from) defining the rotor frame', site),
@@ -162,5 +165,17 @@ export const trackTable: Table = {
     col('yc_se', 'm', SE, 'its standard error'),
     col('amplitude', 'one', dec(4), 'deficit amplitude of the fit'),
     col('sigma_y', 'm', dec(2), 'lateral width of the fit'),
+  ],
+};
+
+export const ensembleTable: Table = {
+  id: 'ensembles',
+  path: 'wake/ensembles.csv',
+  row: 'one plane in one condition bin (an ensemble of windows pooled before the retrieval)',
+  columns: [
+    col('bin', 'count', INT, 'condition bin number'),
+    col('condition', 'text', TEXT, 'the bin\'s condition intervals'),
+    col('windows_pooled', 'count', INT, 'windows pooled in the bin'),
+    ...wakeTable.columns,
   ],
 };

@@ -1,0 +1,312 @@
+/**
+ * Output folders: wakeplane renames, replaces or deletes only folders it marked as its own.
+ *
+ * Every folder wakeplane creates (a run's `<root>/<name>`, the planner's `<root>/<name>-plan`, and their staging
+ * folders `<root>/.<folder>.partial-<pid>`) holds a marker file, MARKER, naming the tool, the kind of folder, the
+ * campaign with the SHA-256 of its file, the state (partial or complete) and the writing process (host, boot, pid
+ * and its start time). Rules:
+ * - Names must be safe folder names: not empty, not "." or "..", no leading dot, no path separator.
+ * - Whatever stands at the target and is not a folder marked by wakeplane for the same campaign and kind (a file, a
+ *   symbolic link, a user's folder, another campaign's result) stops the command before any work, with one line
+ *   naming it; it is never moved. (Results written before markers existed are recognised by their manifest.json
+ *   naming wakeplane and the campaign.)
+ * - An earlier result is kept as `<folder>.replaced-<UTC time to the millisecond>-<pid>` (a counter is added should
+ *   that exist), so two runs finishing in the same second never collide.
+ * - Staging folders of runs that stopped without cleaning up (killed, power loss) are reported. One is provably
+ *   stale, and removed at once, when its marker names this host and either another boot, a process that no longer
+ *   exists, or a process of that pid that started at another time (the pid was reused). Others (another host, a
+ *   process that cannot be checked) are removed only with `clean`; one whose process is still running never is.
+ * - While a command runs, its staging folder is registered for removal on SIGINT/SIGTERM (io/cleanup.ts; the CLI
+ *   installs the handlers).
+ */
+import { hostname } from 'node:os';
+import { existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { basename, join, relative, sep } from 'node:path';
+import { OutputError } from '../errors.ts';
+import { removeOnInterrupt } from '../io/cleanup.ts';
+
+export const MARKER = '.wakeplane-folder.json';
+
+export type FolderKind = 'run' | 'plan';
+
+export interface FolderMarker {
+  tool: 'wakeplane';
+  kind: FolderKind;
+  campaign: string;
+  campaignSha256: string;
+  state: 'partial' | 'complete';
+  host: string;
+  bootId: string;
+  pid: number;
+  /** Start time of the writing process in clock ticks since boot (Linux /proc/<pid>/stat field 22); '' elsewhere. */
+  processStart: string;
+  startedAt: string;
+  finishedAt?: string;
+}
+
+export interface FolderRequest {
+  /** Output root (absolute). */
+  root: string;
+  /** Folder name under the root (the campaign name, or `<name>-plan`). */
+  folder: string;
+  kind: FolderKind;
+  campaign: string;
+  campaignSha256: string;
+  /** Also remove stale staging folders whose state cannot be proven (other host, unknown process). */
+  clean?: boolean;
+}
+
+export interface PartialFolder {
+  path: string;
+  status: 'stale' | 'running' | 'unknown' | 'unmarked';
+  why: string;
+}
+
+const rel = (p: string) => relative(process.cwd(), p) || p;
+
+/** Throws OutputError unless `name` is a safe folder name. */
+export function checkFolderName(name: string, root = '.'): void {
+  const why =
+    name === '' ? 'is empty'
+    : name === '.' || name === '..' ? 'is "." or ".."'
+    : name.startsWith('.') ? 'starts with "." (hidden; reserved for staging folders)'
+    : /[/\\\0]/.test(name) || name.includes(sep) ? 'contains a path separator'
+    : name.length > 200 ? 'is longer than 200 characters'
+    : '';
+  if (why) throw new OutputError(join(root, name), `not a safe output folder name: the name ${JSON.stringify(name)} ${why}`);
+}
+
+function readText(path: string): string | undefined {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch {
+    return undefined;
+  }
+}
+
+function bootId(): string {
+  return readText('/proc/sys/kernel/random/boot_id')?.trim() ?? '';
+}
+
+/** Start time of process `pid` in clock ticks since boot, from /proc/<pid>/stat (field 22); '' when unknown. */
+export function processStartOf(pid: number): string {
+  const stat = readText(`/proc/${pid}/stat`);
+  if (!stat) return '';
+  const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' '); // fields from 3 on (the name may hold spaces)
+  return fields[22 - 3] ?? '';
+}
+
+function pidAlive(pid: number): boolean | undefined {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    return code === 'ESRCH' ? false : code === 'EPERM' ? true : undefined;
+  }
+}
+
+export function readMarker(dir: string): FolderMarker | undefined {
+  const text = readText(join(dir, MARKER));
+  if (!text) return undefined;
+  try {
+    const m = JSON.parse(text) as FolderMarker;
+    return m && m.tool === 'wakeplane' && typeof m.campaign === 'string' ? m : undefined;
+  } catch {
+    return undefined;
+  }
+}
+
+/** A result written before markers existed: its manifest.json names wakeplane and the campaign. */
+function legacyResultOf(dir: string): string | undefined {
+  const text = readText(join(dir, 'manifest.json'));
+  if (!text) return undefined;
+  try {
+    const m = JSON.parse(text) as { tool?: { name?: string }; campaign?: { name?: string } };
+    return m.tool?.name === 'wakeplane' && typeof m.campaign?.name === 'string' ? m.campaign.name : undefined;
+  } catch {
+    return undefined;
+  }
+}
+
+/**
+ * Why wakeplane may not replace what stands at `path`, or '' when it may (nothing there, or a complete folder it
+ * marked for the same campaign and kind).
+ */
+export function replaceRefusal(path: string, kind: FolderKind, campaign: string): string {
+  let st;
+  try {
+    st = lstatSync(path);
+  } catch {
+    return '';
+  }
+  if (st.isSymbolicLink()) return 'exists and is a symbolic link, not a folder wakeplane made; left alone. Move it away or choose another output.dir (--out)';
+  if (!st.isDirectory()) return 'exists and is a file, not a folder wakeplane made; left alone. Move it away or choose another output.dir (--out)';
+  const m = readMarker(path);
+  if (!m) {
+    const legacy = legacyResultOf(path);
+    if (legacy === campaign && kind === 'run') return '';
+    return `exists and was not made by wakeplane (no ${MARKER}); left alone. Move it away or choose another output.dir (--out)`;
+  }
+  if (m.kind !== kind || m.campaign !== campaign) {
+    return `holds wakeplane's ${m.kind === 'plan' ? 'plan' : 'results'} of campaign "${m.campaign}", not the ${kind === 'plan' ? 'plan' : 'results'} of "${campaign}"; left alone. Choose another name or output.dir (--out)`;
+  }
+  if (m.state !== 'complete') return 'is marked as an unfinished folder; left alone';
+  return '';
+}
+
+/** Throws OutputError when the target of a command exists and is not wakeplane's to replace (before any work). */
+export function checkTarget(req: FolderRequest): void {
+  checkFolderName(req.folder, req.root);
+  const target = join(req.root, req.folder);
+  const why = replaceRefusal(target, req.kind, req.campaign);
+  if (why) throw new OutputError(rel(target), why);
+}
+
+/** The staging folders of `folder` under `root` and whether each is provably stale. */
+export function findPartials(root: string, folder: string): PartialFolder[] {
+  let names: string[];
+  try {
+    names = readdirSync(root);
+  } catch {
+    return [];
+  }
+  const prefix = `.${folder}.partial-`;
+  const out: PartialFolder[] = [];
+  const host = hostname(), boot = bootId();
+  for (const n of names) {
+    if (!n.startsWith(prefix) || !/^\d+$/.test(n.slice(prefix.length))) continue;
+    const path = join(root, n);
+    let st;
+    try {
+      st = lstatSync(path);
+    } catch {
+      continue;
+    }
+    const m = st.isDirectory() ? readMarker(path) : undefined;
+    if (!m || m.state !== 'partial') {
+      out.push({ path, status: 'unmarked', why: 'not marked by wakeplane; left alone' });
+      continue;
+    }
+    if (m.pid === process.pid && m.processStart === processStartOf(process.pid) && m.host === host) {
+      out.push({ path, status: 'running', why: 'this process' });
+      continue;
+    }
+    if (m.host !== host) {
+      out.push({ path, status: 'unknown', why: `written on host ${m.host}` });
+      continue;
+    }
+    if (m.bootId && boot && m.bootId !== boot) {
+      out.push({ path, status: 'stale', why: `its run (pid ${m.pid}) stopped before the last restart of this machine` });
+      continue;
+    }
+    const alive = pidAlive(m.pid);
+    if (alive === false) {
+      out.push({ path, status: 'stale', why: `its run (pid ${m.pid}) no longer exists` });
+    } else if (alive && m.processStart && processStartOf(m.pid) && processStartOf(m.pid) !== m.processStart) {
+      out.push({ path, status: 'stale', why: `its run (pid ${m.pid}) no longer exists (the pid now belongs to another process)` });
+    } else if (alive && m.processStart && processStartOf(m.pid) === m.processStart) {
+      out.push({ path, status: 'running', why: `its run (pid ${m.pid}) is still running` });
+    } else {
+      out.push({ path, status: 'unknown', why: `cannot tell whether its run (pid ${m.pid}) still runs` });
+    }
+  }
+  return out;
+}
+
+/**
+ * Removes the provably stale staging folders of `folder` (and, with `clean`, those of unknown state) and returns one
+ * notice per staging folder found.
+ */
+export function sweepPartials(root: string, folder: string, clean: boolean): string[] {
+  const notes: string[] = [];
+  for (const p of findPartials(root, folder)) {
+    if (p.status === 'running' && p.why === 'this process') continue;
+    if (p.status === 'stale' || (p.status === 'unknown' && clean)) {
+      rmSync(p.path, { recursive: true, force: true });
+      notes.push(`removed the unfinished folder ${rel(p.path)} (${p.why})`);
+    } else if (p.status === 'unknown') {
+      notes.push(`unfinished folder ${rel(p.path)} left in place (${p.why}); remove it with --clean`);
+    } else {
+      notes.push(`unfinished folder ${rel(p.path)} left in place (${p.why})`);
+    }
+  }
+  return notes;
+}
+
+function stamp(d: Date): string {
+  return d.toISOString().replace(/[-:]/g, ''); // 20260614T101500.123Z
+}
+
+/** A staging folder being written; commit() makes it the result, abort() removes it. */
+export interface Staging {
+  /** The staging folder to write into. */
+  dir: string;
+  /** Where the result will be. */
+  finalDir: string;
+  /** Notices so far (stale folders removed or reported). */
+  notices: string[];
+  /** Marks the folder complete, keeps an earlier result as `.replaced-...`, renames into place; returns notices. */
+  commit(): string[];
+  /** Removes the staging folder. */
+  abort(): void;
+}
+
+/** Checks the target, sweeps stale staging folders, and creates a marked staging folder. */
+export function openStaging(req: FolderRequest): Staging {
+  checkTarget(req);
+  const finalDir = join(req.root, req.folder);
+  mkdirSync(req.root, { recursive: true });
+  const notices = sweepPartials(req.root, req.folder, req.clean ?? false);
+  const dir = join(req.root, `.${req.folder}.partial-${process.pid}`);
+  if (existsSync(dir)) {
+    throw new OutputError(rel(dir), 'a staging folder of this process id exists and is not provably stale; left alone. Remove it (or run with --clean) and try again');
+  }
+  mkdirSync(dir);
+  const marker: FolderMarker = {
+    tool: 'wakeplane', kind: req.kind, campaign: req.campaign, campaignSha256: req.campaignSha256, state: 'partial',
+    host: hostname(), bootId: bootId(), pid: process.pid, processStart: processStartOf(process.pid), startedAt: new Date().toISOString(),
+  };
+  writeFileSync(join(dir, MARKER), JSON.stringify(marker, null, 2) + '\n');
+  const unregister = removeOnInterrupt(dir);
+  let open = true;
+  return {
+    dir,
+    finalDir,
+    notices,
+    commit() {
+      const out: string[] = [];
+      writeFileSync(join(dir, MARKER), JSON.stringify({ ...marker, state: 'complete', finishedAt: new Date().toISOString() }, null, 2) + '\n');
+      for (let attempt = 0; ; attempt++) {
+        const why = replaceRefusal(finalDir, req.kind, req.campaign);
+        if (why) throw new OutputError(rel(finalDir), `${why} (it appeared while this command ran; the new result was not kept)`);
+        if (existsSync(finalDir)) {
+          let kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}`;
+          for (let k = 2; existsSync(kept); k++) kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}-${k}`;
+          renameSync(finalDir, kept);
+          out.push(`an earlier result was kept as ${rel(kept)}`);
+        }
+        try {
+          renameSync(dir, finalDir);
+          break;
+        } catch (e) {
+          const code = (e as NodeJS.ErrnoException).code;
+          // another command put a folder there between the two renames: go round again (it is checked first)
+          if ((code === 'ENOTEMPTY' || code === 'EEXIST') && attempt < 3) continue;
+          open = false;
+          unregister();
+          throw new OutputError(rel(finalDir), `cannot move the finished result into place (${code ?? 'error'}); it stays in ${rel(dir)}`);
+        }
+      }
+      open = false;
+      unregister();
+      return out;
+    },
+    abort() {
+      if (!open) return;
+      open = false;
+      unregister();
+      if (basename(dir).startsWith(`.${req.folder}.partial-`)) rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}

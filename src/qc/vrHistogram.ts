@@ -1,0 +1,372 @@
+/**
+ * Mergeable radial-velocity histograms, one per accumulator slot (window, cell, instrument), from which the robust
+ * filter takes its median and MAD without holding the samples.
+ *
+ * Values arrive as fixed-point integers q = round(v_r * 2^20) (grid/accumulator.ts). At level L a bin holds the
+ * values with floor(q / 2^(11 + L)) equal: bins of width delta_L = 2^(L - 9) m/s (0.002 m/s at level 0) with edges
+ * at multiples of delta_L. A slot holds at most MAX_DISTINCT distinct bins: beyond that it moves up a level (pairs
+ * of bins merge) until its bins fit, so memory per slot is bounded whatever the number of samples.
+ *
+ * Storage (does not change the content): the bulk of a slot's bins in a dense array over a contiguous bin range
+ * (fast to update), the rest (far outliers, junk) in a small open-addressing table, so a few far values neither
+ * coarsen the bins nor make the dense array wide. The dense range starts at DENSE_START bins around the first value
+ * and grows as values arrive, up to DENSE_MAX bins (and no more than a few times the slot's sample count); when
+ * most bins end up in the table (the first values were junk) it is moved to the median.
+ *
+ * Exactness of merging: counts are integers and bin edges are global, so the histogram of a set of samples does not
+ * depend on the order in which they arrived nor on how they were split into parts: a slot ends at the smallest level
+ * at which its distinct bins fit (a slot only moves up when they no longer fit, and the distinct bins of a growing
+ * set only grow), and merging brings both parts to the higher level, then moves up again while the union does not
+ * fit. Where a bin is stored (dense or table) does not matter to any result.
+ *
+ * Statistics (robustStats): each value is represented by the centre of its bin, so the median is within delta/2 of
+ * the exact sample median and the MAD within delta of the exact MAD (delta = the slot's bin width; tested in
+ * test/qc-histogram.test.ts against the exact sample statistics of qc/robust.ts).
+ */
+
+/** Distinct bins per slot at most; more moves the slot up a level. */
+export const MAX_DISTINCT = 4096;
+/** Widest dense range of one slot, bins. */
+export const DENSE_MAX = 4096;
+/** Bits below the finest bin: q >> FINE_SHIFT is the level-0 bin (width 2^-9 m/s for q in units of 2^-20 m/s). */
+export const FINE_SHIFT = 11;
+/** Bin width at level 0, m/s. */
+export const FINE_WIDTH = 2 ** (FINE_SHIFT - 20);
+const MAX_LEVEL = 20;
+const EMPTY = new Uint32Array(0);
+/** Marks a recycled dense array whose range is not placed yet (no bin index can be this low). */
+const NEW_RANGE = -(2 ** 31);
+
+/** Bins of a new dense range (2 m/s at level 0: the bulk of a cell's radial velocities over a window). */
+const DENSE_START = 1024;
+
+/** Widest dense range for a slot holding `total` samples. */
+function denseLimit(total: number): number {
+  return Math.min(DENSE_MAX, Math.max(DENSE_START, 4 * total));
+}
+
+/** Histograms of many slots. A slot's storage is allocated when it receives its first value. */
+export class VrHistograms {
+  /** Dense counts per slot over bins [base, base + dense.length). */
+  dense: Uint32Array[] = [];
+  base = new Int32Array(0);
+  /** Table of the bins outside the dense range: keys and counts (count 0 = empty entry), size a power of two. */
+  tkeys: (Int32Array | null)[] = [];
+  tcounts: (Uint32Array | null)[] = [];
+  /** Entries used in each table. */
+  tused = new Int32Array(0);
+  level = new Uint8Array(0);
+  /** Distinct bins per slot (dense and table). */
+  distinct = new Int32Array(0);
+  /** Samples per slot (limits the dense width for slots with few samples). */
+  total = new Float64Array(0);
+
+  /** Make room for slots [0, n). */
+  ensure(n: number): void {
+    if (n <= this.level.length) return;
+    const cap = Math.max(n, this.level.length * 2, 64);
+    const grow = <T extends Int32Array | Uint8Array | Float64Array>(a: T): T => {
+      const b = new (a.constructor as new (n: number) => T)(cap);
+      b.set(a);
+      return b;
+    };
+    this.base = grow(this.base); this.tused = grow(this.tused); this.level = grow(this.level);
+    this.distinct = grow(this.distinct); this.total = grow(this.total);
+    while (this.dense.length < cap) { this.dense.push(EMPTY); this.tkeys.push(null); this.tcounts.push(null); }
+  }
+
+  /**
+   * Empty slots [0, n) for reuse (a window's accumulator recycled for the next window): counts are zeroed, the
+   * dense arrays kept (their range is placed anew by the next first value), tables dropped.
+   */
+  reset(n: number): void {
+    for (let s = 0; s < n; s++) {
+      if (this.total[s] === 0) continue;
+      const d = this.dense[s];
+      if (d.length) {
+        d.fill(0);
+        this.base[s] = NEW_RANGE;
+      }
+      this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
+      this.level[s] = 0; this.distinct[s] = 0; this.total[s] = 0;
+    }
+  }
+
+  /** Add one value (fixed-point q, |q| < 2^31) to slot s. */
+  add(s: number, q: number): void {
+    this.total[s]++;
+    const bin = q >> (FINE_SHIFT + this.level[s]);
+    const d = this.dense[s];
+    const j = bin - this.base[s];
+    if (j >= 0 && j < d.length) {
+      if (d[j]++ === 0 && ++this.distinct[s] > MAX_DISTINCT) this.coarsen(s, 1);
+      return;
+    }
+    this.addBin(s, bin, 1);
+  }
+
+  /** True while a slot is rebuilt: no level change may start inside (coarsen checks again after it). */
+  private rebuilding = false;
+
+  /** Add `count` to bin `bin` (at the slot's current level) of slot s, growing the dense range or the table. */
+  private addBin(s: number, bin: number, count: number): void {
+    let d = this.dense[s];
+    if (this.base[s] === NEW_RANGE) this.base[s] = bin - (d.length >> 1); // a recycled, empty dense array
+    let j = bin - this.base[s];
+    if (!(j >= 0 && j < d.length)) {
+      // Grow the dense range to take the bin, when the new range stays within the limits; else use the table.
+      const lo = d.length ? Math.min(this.base[s], bin) : bin;
+      const hi = d.length ? Math.max(this.base[s] + d.length - 1, bin) : bin;
+      const span = hi - lo + 1;
+      const limit = denseLimit(this.total[s]);
+      if (span <= limit) {
+        const want = Math.min(limit, Math.max(span + (span >> 1), DENSE_START));
+        const slack = want - span;
+        const newBase = d.length && bin < this.base[s] ? lo - slack : d.length ? lo : bin - (slack >> 1);
+        const nd = new Uint32Array(want);
+        if (d.length) nd.set(d, this.base[s] - newBase);
+        this.dense[s] = d = nd;
+        this.base[s] = newBase;
+        j = bin - newBase;
+        this.absorbTable(s);
+      } else {
+        this.tableAdd(s, bin, count);
+        return;
+      }
+    }
+    const was = d[j];
+    d[j] += count;
+    if (was === 0) this.newBin(s); // after the count is in: a level change rebuilds from the stored counts
+  }
+
+  /** Move the table's bins that now lie in the dense range into it (a bin is stored in one place only). */
+  private absorbTable(s: number): void {
+    const k = this.tkeys[s], c = this.tcounts[s];
+    if (!k || !c || this.tused[s] === 0) return;
+    const d = this.dense[s], b0 = this.base[s];
+    let moved = 0;
+    for (let i = 0; i < k.length; i++) {
+      if (c[i] === 0) continue;
+      const j = k[i] - b0;
+      if (j >= 0 && j < d.length) { d[j] += c[i]; c[i] = 0; moved++; }
+    }
+    if (moved) {
+      this.tused[s] -= moved;
+      this.rehashTable(s, k.length); // open addressing: rebuild instead of leaving holes in probe chains
+    }
+  }
+
+  private newBin(s: number): void {
+    if (++this.distinct[s] > MAX_DISTINCT && !this.rebuilding) this.coarsen(s, 1);
+  }
+
+  private tableAdd(s: number, bin: number, count: number): void {
+    let k = this.tkeys[s], c = this.tcounts[s];
+    if (k === null || c === null) {
+      k = this.tkeys[s] = new Int32Array(16);
+      c = this.tcounts[s] = new Uint32Array(16);
+    }
+    const mask = k.length - 1;
+    let h = (Math.imul(bin, 0x9e3779b1) >>> 0) & mask;
+    for (;;) {
+      if (c[h] === 0) break;
+      if (k[h] === bin) { c[h] += count; return; }
+      h = (h + 1) & mask;
+    }
+    k[h] = bin;
+    c[h] = count;
+    if (2 * ++this.tused[s] > k.length) this.rehashTable(s, k.length * 2);
+    this.newBin(s);
+    // Most bins in the table: the dense range sits away from the bulk (its first values were junk): move it.
+    const t = this.tused[s];
+    if (!this.rebuilding && t >= 64 && (t & (t - 1)) === 0 && 2 * t > this.distinct[s]) this.recentre(s);
+  }
+
+  /** Rebuild slot s with its dense range around the median bin (storage only: the counts do not change). */
+  private recentre(s: number): void {
+    const { bins, counts } = this.sorted(s);
+    let n = 0;
+    for (let i = 0; i < counts.length; i++) n += counts[i];
+    let cum = 0, med = bins[0];
+    for (let i = 0; i < bins.length; i++) {
+      cum += counts[i];
+      if (cum * 2 >= n) { med = bins[i]; break; }
+    }
+    const outer = this.rebuilding;
+    this.rebuilding = true;
+    const limit = denseLimit(this.total[s]);
+    this.dense[s] = new Uint32Array(limit);
+    this.base[s] = med - (limit >> 1);
+    this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0; this.distinct[s] = 0;
+    for (let i = 0; i < bins.length; i++) this.addBin(s, bins[i], counts[i]);
+    this.rebuilding = outer;
+  }
+
+  private rehashTable(s: number, size: number): void {
+    const k = this.tkeys[s]!, c = this.tcounts[s]!;
+    const nk = new Int32Array(size), nc = new Uint32Array(size);
+    const mask = size - 1;
+    for (let i = 0; i < k.length; i++) {
+      if (c[i] === 0) continue;
+      let h = (Math.imul(k[i], 0x9e3779b1) >>> 0) & mask;
+      while (nc[h] !== 0) h = (h + 1) & mask;
+      nk[h] = k[i]; nc[h] = c[i];
+    }
+    this.tkeys[s] = nk; this.tcounts[s] = nc;
+  }
+
+  /** Move slot s up `shift` levels (bin b -> b >> shift), further while its bins do not fit. */
+  private coarsen(s: number, shift: number): void {
+    this.rebuild(s, shift);
+    while (this.distinct[s] > MAX_DISTINCT && this.level[s] < MAX_LEVEL) this.rebuild(s, 1);
+  }
+
+  private rebuild(s: number, shift: number): void {
+    const d = this.dense[s], b0 = this.base[s], k = this.tkeys[s], c = this.tcounts[s];
+    const outer = this.rebuilding;
+    this.rebuilding = true;
+    this.dense[s] = EMPTY; this.base[s] = 0; this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
+    this.distinct[s] = 0;
+    this.level[s] += shift;
+    for (let j = 0; j < d.length; j++) if (d[j] !== 0) this.addBin(s, (b0 + j) >> shift, d[j]);
+    if (k && c) for (let i = 0; i < k.length; i++) if (c[i] !== 0) this.addBin(s, k[i] >> shift, c[i]);
+    this.rebuilding = outer;
+  }
+
+  /** Add every count of `other`'s slot t into this slot s (exact; see the file header). */
+  mergeSlot(s: number, other: VrHistograms, t: number): void {
+    if (other.total[t] === 0) return;
+    const ol = other.level[t];
+    if (this.total[s] === 0) this.level[s] = ol;
+    else if (this.level[s] < ol) this.coarsen(s, ol - this.level[s]);
+    this.total[s] += other.total[t];
+    const { bins, counts } = other.sorted(t);
+    for (let i = 0; i < bins.length; i++) {
+      // Recomputed per bin: adding a bin can move this slot up a level.
+      this.addBin(s, bins[i] >> (this.level[s] - ol), counts[i]);
+    }
+  }
+
+  /** Bin width of slot s, m/s. */
+  width(s: number): number {
+    return FINE_WIDTH * 2 ** this.level[s];
+  }
+
+  /** The slot's bins in ascending order with their counts (allocates; for the filter, merging and tests). */
+  sorted(s: number): { bins: Int32Array; counts: Float64Array } {
+    const d = this.dense[s], b0 = this.base[s], k = this.tkeys[s], c = this.tcounts[s];
+    const n = this.distinct[s];
+    const bins = new Int32Array(n), counts = new Float64Array(n);
+    // Table entries sorted, then merged with the (already sorted) dense bins; the two never share a bin.
+    const tb: number[] = [];
+    if (k && c) for (let i = 0; i < k.length; i++) if (c[i] !== 0) tb.push(i);
+    tb.sort((x, y) => k![x] - k![y]);
+    let j = 0, p = 0, m = 0;
+    while (j < d.length && d[j] === 0) j++;
+    while (j < d.length || p < tb.length) {
+      if (p >= tb.length || (j < d.length && b0 + j < k![tb[p]])) {
+        bins[m] = b0 + j; counts[m++] = d[j];
+        j++;
+        while (j < d.length && d[j] === 0) j++;
+      } else {
+        bins[m] = k![tb[p]]; counts[m++] = c![tb[p]];
+        p++;
+      }
+    }
+    return { bins, counts };
+  }
+}
+
+/** Median, robust scale and the kept range of one slot (see robustStats). */
+export interface HistogramStats {
+  n: number;
+  median: number;
+  /** 1.4826 * MAD, or the mean-absolute-deviation fallback when the MAD is 0 (qc/robust.ts). */
+  sigma: number;
+  /** Samples kept by |v - median| <= k * sigma (bin centres), and rejected. */
+  kept: number;
+  rejected: number;
+  /** Sum and sum of squares of the rejected samples' bin centres, m/s and m^2/s^2. */
+  rejectedSum: number;
+  rejectedSumSq: number;
+  /** Bin width of the slot, m/s. */
+  width: number;
+}
+
+const MAD_TO_SIGMA = 1.482602218505602;
+const MEANAD_TO_SIGMA = 1.2533141373155003;
+
+/**
+ * Robust statistics of slot s: the median of the bin centres (mean of the two middle ones for an even count), the
+ * MAD about it (the same rule), the scale sigma = 1.4826 * MAD (fallback 1.2533 * mean absolute deviation when the
+ * MAD is 0, as qc/robust.ts does), and the bins farther than k * sigma from the median as rejected.
+ * k = Infinity keeps everything.
+ */
+export function robustStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
+  out.n = out.kept = out.rejected = 0;
+  out.median = out.sigma = NaN;
+  out.rejectedSum = out.rejectedSumSq = 0;
+  out.width = h.width(s);
+  const { bins, counts } = h.sorted(s);
+  const used = bins.length;
+  let n = 0;
+  for (let j = 0; j < used; j++) n += counts[j];
+  out.n = n;
+  if (n === 0) return out;
+  const w = out.width;
+  const centre = (j: number) => (bins[j] + 0.5) * w;
+  // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
+  const r1 = Math.floor((n - 1) / 2), r2 = Math.floor(n / 2);
+  let cum = 0, j1 = -1, j2 = -1;
+  for (let j = 0; j < used && j2 < 0; j++) {
+    const c = counts[j];
+    if (j1 < 0 && cum + c > r1) j1 = j;
+    if (cum + c > r2) j2 = j;
+    cum += c;
+  }
+  const med = (centre(j1) + centre(j2)) / 2;
+  out.median = med;
+  // MAD: the same two ranks among |centre - med|, walking outward from the median (distances ascend). Entries up
+  // to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or j1 + 1).
+  let l = j1, r = j1 + 1;
+  let rank = 0, m1 = NaN, m2 = NaN;
+  while (Number.isNaN(m2)) {
+    const dl = l >= 0 ? med - centre(l) : Infinity;
+    const dr = r < used ? centre(r) - med : Infinity;
+    let j: number, dist: number;
+    if (dl <= dr) { j = l--; dist = dl; } else { j = r++; dist = dr; }
+    const c = counts[j];
+    if (Number.isNaN(m1) && rank + c > r1) m1 = dist;
+    if (rank + c > r2) m2 = dist;
+    rank += c;
+  }
+  const madv = (m1 + m2) / 2;
+  let sigma: number;
+  if (madv > 0) sigma = MAD_TO_SIGMA * madv;
+  else {
+    let sum = 0;
+    for (let j = 0; j < used; j++) sum += counts[j] * Math.abs(centre(j) - med);
+    sigma = (MEANAD_TO_SIGMA * sum) / n;
+  }
+  out.sigma = sigma;
+  const limit = k * sigma;
+  let rej = 0, rs = 0, rss = 0;
+  if (sigma > 0 && Number.isFinite(limit)) {
+    for (let j = 0; j < used; j++) {
+      const x = centre(j);
+      if (Math.abs(x - med) > limit) {
+        const c = counts[j];
+        rej += c; rs += c * x; rss += c * x * x;
+      }
+    }
+  }
+  out.rejected = rej;
+  out.kept = n - rej;
+  out.rejectedSum = rs;
+  out.rejectedSumSq = rss;
+  return out;
+}
+
+export function emptyHistogramStats(): HistogramStats {
+  return { n: 0, median: NaN, sigma: NaN, kept: 0, rejected: 0, rejectedSum: 0, rejectedSumSq: 0, width: NaN };
+}

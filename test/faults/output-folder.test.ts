@@ -1,0 +1,246 @@
+/**
+ * Faults at the output: wakeplane renames, replaces or deletes only folders it marked as its own. Each case builds
+ * the situation on a fresh copy of the clean simulated campaign and asserts the exact outcome: the one-line error
+ * naming what is in the way, the exit code, and that nothing was changed or left behind.
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { hostname } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it, vi } from 'vitest';
+import { MARKER, processStartOf } from '../../src/pipeline/outputFolder.ts';
+import { freshCampaign, manifestOf, runCli, snapshot } from './helpers.ts';
+
+const bootId = () => (existsSync('/proc/sys/kernel/random/boot_id') ? readFileSync('/proc/sys/kernel/random/boot_id', 'utf8').trim() : '');
+
+function partialMarker(pid: number, extra: Record<string, unknown> = {}): string {
+  return JSON.stringify({
+    tool: 'wakeplane', kind: 'run', campaign: 'faulty', campaignSha256: '', state: 'partial', host: hostname(), bootId: bootId(), pid,
+    processStart: processStartOf(pid), startedAt: new Date().toISOString(), ...extra,
+  });
+}
+
+/** The pid of a process that has exited (so no process has it, unless reused at once). */
+function deadPid(): number {
+  const r = spawnSync(process.execPath, ['-e', 'process.stdout.write(String(process.pid))'], { encoding: 'utf8' });
+  return Number(r.stdout);
+}
+
+describe('what stands at the target', () => {
+  it('a folder wakeplane did not make: one-line error naming it, exit 1, the folder untouched, nothing left behind', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'out', 'faulty'), { recursive: true });
+    writeFileSync(join(dir, 'out', 'faulty', 'my-notes.txt'), 'mine');
+    const before = snapshot(join(dir, 'out'));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe(`wakeplane: out/faulty: exists and was not made by wakeplane (no ${MARKER}); left alone. Move it away or choose another output.dir (--out)\n`);
+    expect(snapshot(join(dir, 'out'))).toEqual(before); // nothing renamed, nothing added (no staging folder)
+  });
+
+  it('the campaign file itself as the target (output.dir ".", name "campaign.yaml"): refused, the file unchanged', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.name = 'campaign.yaml'; c.output.dir = '.'; });
+    const text = readFileSync(file, 'utf8');
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('wakeplane: campaign.yaml: exists and is a file, not a folder wakeplane made; left alone. Move it away or choose another output.dir (--out)\n');
+    expect(readFileSync(file, 'utf8')).toBe(text);
+    expect(readdirSync(dir).sort()).toEqual(['campaign.yaml', 'data']);
+  });
+
+  it('an input data file as the target (output.dir "data", name "a.csv"): refused, the data unchanged', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.name = 'a.csv'; c.output.dir = 'data'; });
+    const before = snapshot(join(dir, 'data'));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/^wakeplane: data\/a\.csv: exists and is a file, not a folder wakeplane made; left alone\./);
+    expect(snapshot(join(dir, 'data'))).toEqual(before);
+  });
+
+  it('a symbolic link at the target is not followed or moved', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'elsewhere'));
+    mkdirSync(join(dir, 'out'));
+    spawnSync('ln', ['-s', join(dir, 'elsewhere'), join(dir, 'out', 'faulty')]);
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/^wakeplane: out\/faulty: exists and is a symbolic link/);
+    expect(readdirSync(join(dir, 'out'))).toEqual(['faulty']);
+  });
+
+  it('another campaign\'s result of the same folder name is refused, not replaced', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'out', 'faulty'), { recursive: true });
+    writeFileSync(join(dir, 'out', 'faulty', MARKER), JSON.stringify({ tool: 'wakeplane', kind: 'plan', campaign: 'faulty', state: 'complete' }));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('wakeplane: out/faulty: holds wakeplane\'s plan of campaign "faulty", not the results of "faulty"; left alone. Choose another name or output.dir (--out)\n');
+  });
+
+  it('check reports the same refusal and exits 1', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'out', 'faulty'), { recursive: true });
+    const r = await runCli(['check', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/^campaign faulty: 1 problem: a run would stop \(below\)\n/);
+    expect(r.stderr).toMatch(/^wakeplane: out\/faulty: exists and was not made by wakeplane/);
+  });
+});
+
+describe('names', () => {
+  for (const [name, rule] of [
+    ['..', 'not starting with "."'],
+    ['.', 'not starting with "."'],
+    ['.hidden', 'not starting with "."'],
+    ['a/b', 'letters, digits'],
+    ['', 'letters, digits'],
+  ] as const) {
+    it(`campaign name ${JSON.stringify(name)} is refused by validation, nothing written`, async () => {
+      const { dir, file } = await freshCampaign((c) => (c.name = name));
+      const r = await runCli(['run', file], dir);
+      expect(r.code).toBe(1);
+      expect(r.stderr).toMatch(new RegExp(`campaign\\.yaml:\\d+:\\d+: name: .*${rule.replace(/[.*"]/g, (m) => `\\${m}`)}`));
+      expect(existsSync(join(dir, 'out'))).toBe(false);
+      expect(readdirSync(dir).sort()).toEqual(['campaign.yaml', 'data']);
+    });
+  }
+});
+
+describe('replacing an earlier result', () => {
+  it('keeps it under a name that never collides, even for runs finishing in the same millisecond', async () => {
+    const { dir, file } = await freshCampaign();
+    vi.useFakeTimers({ toFake: ['Date'], now: new Date('2026-05-01T00:00:00Z') });
+    try {
+      for (let k = 0; k < 3; k++) expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    } finally {
+      vi.useRealTimers();
+    }
+    const names = readdirSync(join(dir, 'out')).sort();
+    const stamp = `faulty.replaced-20260501T000000.000Z-${process.pid}`;
+    expect(names).toEqual(['faulty', stamp, `${stamp}-2`]);
+    for (const n of names) expect(JSON.parse(readFileSync(join(dir, 'out', n, MARKER), 'utf8')).state).toBe('complete');
+  });
+
+  it('a result written before markers existed (its manifest names wakeplane and the campaign) is kept, not refused', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'out', 'faulty'), { recursive: true });
+    writeFileSync(join(dir, 'out', 'faulty', 'manifest.json'), JSON.stringify({ tool: { name: 'wakeplane' }, campaign: { name: 'faulty' } }));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/note: an earlier result was kept as out\/faulty\.replaced-\d{8}T\d{6}\.\d{3}Z-\d+\n/);
+  });
+});
+
+describe('unfinished folders of stopped runs', () => {
+  it('provably stale (its process is gone): removed by the next run, which says so', async () => {
+    const { dir, file } = await freshCampaign();
+    const pid = deadPid();
+    const p = join(dir, 'out', `.faulty.partial-${pid}`);
+    mkdirSync(p, { recursive: true });
+    writeFileSync(join(p, MARKER), partialMarker(pid, { processStart: '1' }));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(0);
+    expect(existsSync(p)).toBe(false);
+    expect(r.stdout).toContain(`note: removed the unfinished folder out/.faulty.partial-${pid} (its run (pid ${pid}) no longer exists`);
+  });
+
+  it('from another host: reported and left; removed with --clean', async () => {
+    const { dir, file } = await freshCampaign();
+    const p = join(dir, 'out', '.faulty.partial-4242');
+    mkdirSync(p, { recursive: true });
+    writeFileSync(join(p, MARKER), partialMarker(4242, { host: 'another-host' }));
+    const r1 = await runCli(['run', file], dir);
+    expect(r1.stdout).toContain('note: unfinished folder out/.faulty.partial-4242 left in place (written on host another-host); remove it with --clean');
+    expect(existsSync(p)).toBe(true);
+    const c = await runCli(['check', file], dir);
+    expect(c.stdout).toContain('note: unfinished folder out/.faulty.partial-4242: written on host another-host (remove it with --clean)');
+    const r2 = await runCli(['run', file, '--clean'], dir);
+    expect(r2.stdout).toContain('note: removed the unfinished folder out/.faulty.partial-4242 (written on host another-host)');
+    expect(existsSync(p)).toBe(false);
+  });
+
+  it('a folder of that name without a marker is never touched, even with --clean', async () => {
+    const { dir, file } = await freshCampaign();
+    const p = join(dir, 'out', '.faulty.partial-99999999');
+    mkdirSync(p, { recursive: true });
+    writeFileSync(join(p, 'keep.txt'), 'x');
+    const r = await runCli(['run', file, '--clean'], dir);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toContain('note: unfinished folder out/.faulty.partial-99999999 left in place (not marked by wakeplane; left alone)');
+    expect(readFileSync(join(p, 'keep.txt'), 'utf8')).toBe('x');
+  });
+
+  it('one whose process still runs is left, even with --clean', async () => {
+    const { dir, file } = await freshCampaign();
+    const child = spawn('sleep', ['30']);
+    try {
+      await new Promise((r) => setTimeout(r, 50));
+      const p = join(dir, 'out', `.faulty.partial-${child.pid}`);
+      mkdirSync(p, { recursive: true });
+      writeFileSync(join(p, MARKER), partialMarker(child.pid!));
+      const r = await runCli(['run', file, '--clean'], dir);
+      expect(r.code).toBe(0);
+      expect(existsSync(p)).toBe(true);
+      expect(r.stdout).toContain(`note: unfinished folder out/.faulty.partial-${child.pid} left in place (its run (pid ${child.pid}) is still running)`);
+    } finally {
+      child.kill();
+    }
+  });
+});
+
+describe('the planner', () => {
+  it('writes its own folder <name>-plan/plan/ and never touches a run\'s result', async () => {
+    const { dir, file } = await freshCampaign((c) => (c.plan = { directions_deg: [270] }));
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const run = snapshot(join(dir, 'out', 'faulty'));
+    const r = await runCli(['plan', file, '--no-images'], dir);
+    expect(r.code).toBe(0);
+    expect(snapshot(join(dir, 'out', 'faulty'))).toEqual(run);
+    expect(readdirSync(join(dir, 'out', 'faulty-plan', 'plan'))).toContain('summary.json');
+    expect(JSON.parse(readFileSync(join(dir, 'out', 'faulty-plan', MARKER), 'utf8')).kind).toBe('plan');
+    const again = await runCli(['plan', file, '--no-images'], dir);
+    expect(again.stdout).toMatch(/note: an earlier result was kept as out\/faulty-plan\.replaced-/);
+  });
+
+  it('refuses a folder of that name it did not make', async () => {
+    const { dir, file } = await freshCampaign();
+    mkdirSync(join(dir, 'out', 'faulty-plan'), { recursive: true });
+    const r = await runCli(['plan', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/^wakeplane: out\/faulty-plan: exists and was not made by wakeplane/);
+  });
+});
+
+describe('interrupts', () => {
+  const bin = join(import.meta.dirname, '..', '..', 'bin', 'wakeplane.js');
+  for (const [sig, code] of [['SIGINT', 130], ['SIGTERM', 143]] as const) {
+    it(`${sig}: the partial folder is removed, one line says so, exit ${code}`, async () => {
+      const { dir, file } = await freshCampaign((c) => (c.output.images = true));
+      const child = spawn(process.execPath, [bin, 'run', file], { cwd: dir, stdio: ['ignore', 'pipe', 'pipe'] });
+      let stderr = '';
+      child.stderr.on('data', (d) => (stderr += d));
+      const exited = new Promise<number | null>((res) => child.on('close', (c) => res(c)));
+      // wait for the staging folder to appear, then interrupt
+      const out = join(dir, 'out');
+      for (let k = 0; k < 400; k++) {
+        if (existsSync(out) && readdirSync(out).some((n) => n.startsWith('.faulty.partial-'))) break;
+        await new Promise((r) => setTimeout(r, 25));
+      }
+      expect(readdirSync(out).some((n) => n.startsWith('.faulty.partial-'))).toBe(true);
+      child.kill(sig);
+      expect(await exited).toBe(code);
+      expect(stderr).toMatch(new RegExp(`^wakeplane: interrupted by ${sig}; removed the unfinished out/\\.faulty\\.partial-\\d+; no result was written\\n$`));
+      expect(readdirSync(out)).toEqual([]);
+    }, 60_000);
+  }
+});
+
+describe('manifest', () => {
+  it('the result folder carries the marker with the campaign hash', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const m = JSON.parse(readFileSync(join(dir, 'out', 'faulty', MARKER), 'utf8'));
+    expect(m.campaignSha256).toBe(manifestOf(join(dir, 'out', 'faulty')).campaign.sha256);
+    expect(m).toMatchObject({ tool: 'wakeplane', kind: 'run', campaign: 'faulty', state: 'complete', pid: process.pid });
+  });
+});
