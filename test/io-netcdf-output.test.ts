@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
-import { wakeStage } from '../src/pipeline/stages.ts';
+import { netcdfStage, wakeStage } from '../src/pipeline/stages.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { debianPython, hasCommand } from './helpers/python.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
@@ -35,7 +35,7 @@ describe('NetCDF-4/CF outputs', () => {
   beforeAll(async () => {
     const { dir, file } = writeTinyCampaign({ name: 'nc-out', site: { origin_wgs84: { lat_deg: 47.5, lon_deg: -3.2, alt_m: 20 } } });
     await simulateCampaign(loadCampaignFile(file));
-    runDir = (await runCampaign(loadCampaignFile(file), { outRoot: join(dir, 'out'), images: false, stages: [wakeStage()] })).runDir;
+    runDir = (await runCampaign(loadCampaignFile(file), { outRoot: join(dir, 'out'), images: false, stages: [wakeStage(), netcdfStage()] })).runDir;
   });
 
   it.skipIf(!ncdump)(`ncdump reads the field file: CF conventions, unlimited window, standard names and flags${ncdump ? '' : ' (skipped: no ncdump; Debian netcdf-bin)'}`, () => {

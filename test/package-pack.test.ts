@@ -44,7 +44,9 @@ describe('npm pack: the packed library, installed into a fresh project', () => {
     await simulateCampaign(loadCampaignFile(file));
 
     // Analytic check: three unit beams (rotor frame) measuring V = (8, -1, 0.5) m/s without noise, 5 samples each
-    // in cell 40 of plane 0: the least-squares solution is V itself (to rounding, 1e-9 m/s).
+    // in cell 40 of plane 0: the least-squares solution is V itself, to the retrieval's fixed-point quantisation
+    // (grid/accumulator.ts: v_r to 2^-20 m/s, beam components to 2^-26: at most 4.8e-7 + 8 * 7.5e-9 m/s per
+    // equation, times the error amplification of these beams, below 10): 1e-5 m/s.
     writeFileSync(join(project, 'check.mjs'), `
 import { loadCampaign, runCampaign, wakeStage, retrieveFromArrays, analyseField, planCampaign, OUTPUT_TABLES, VERSION } from 'wakeplane';
 const c = loadCampaign(${JSON.stringify(file)});
@@ -65,7 +67,7 @@ console.log(JSON.stringify({ version: VERSION, balanced: run.manifest.samples.ba
     expect(x.version).toBe(pkg.version);
     expect(x.balanced).toBe(true);
     expect(x.read).toBeGreaterThan(1000);
-    x.uvw.forEach((v: number, k: number) => expect(Math.abs(v - [8, -1, 0.5][k])).toBeLessThan(1e-9));
+    x.uvw.forEach((v: number, k: number) => expect(Math.abs(v - [8, -1, 0.5][k])).toBeLessThan(1e-5));
     expect(typeof x.flag).toBe('string'); // one cell retrieved: the analysis flags it rather than failing
     expect(x.planes).toBe(1);
     expect(x.tables).toBeGreaterThan(5);

@@ -74,7 +74,6 @@ describe('a whole run on a simulated campaign', () => {
     const m = JSON.parse(readFileSync(join(run, 'manifest.json'), 'utf8'));
     expect(m.windows.length).toBe(3);
     expect(readdirSync(join(run, 'fields')).filter((f) => f.endsWith('.csv')).length).toBe(3);
-    expect(readdirSync(join(run, 'fields')).filter((f) => f.endsWith('.nc'))).toEqual(['p5.nc']); // all windows of the plane
     for (const i of m.inputs) {
       expect(i.sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(i.bytes).toBeGreaterThan(0);
