@@ -1,6 +1,7 @@
 // Minimal declarations for the parts of the `geodesy` package wakeplane uses (the package ships no types).
 declare module 'geodesy/latlon-ellipsoidal.js' {
   export class Cartesian {
+    constructor(x: number, y: number, z: number);
     x: number;
     y: number;
     z: number;

@@ -1,0 +1,12 @@
+/** Every table wakeplane writes, in the order the dictionary lists them. */
+import type { Table } from '../dictionary.ts';
+import { fieldTable } from './fields.ts';
+import { layoutsTable, planCellsTable, pointingTable } from './plan.ts';
+import { rejectedRowsTable } from './run.ts';
+import { downstreamTable, ensembleTable, profilesTable, steeringTable, trackTable, wakeTable } from './wake.ts';
+
+export { ensembleTable, fieldTable, layoutsTable, planCellsTable, pointingTable, rejectedRowsTable, downstreamTable, profilesTable, steeringTable, trackTable, wakeTable };
+
+export const TABLES: readonly Table[] = [
+  fieldTable, wakeTable, ensembleTable, steeringTable, downstreamTable, profilesTable, trackTable, rejectedRowsTable, planCellsTable, pointingTable, layoutsTable,
+];
