@@ -27,12 +27,13 @@ import { parse, stringify } from 'yaml';
 import { readSamples } from '../src/io/csvSamples.ts';
 import { median } from '../src/qc/robust.ts';
 import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
+import { benchVariants } from './netcdf.ts';
 import { generateFocus } from './generateFocus.ts';
 // @ts-expect-error plain JavaScript helper of the entry point, without type declarations
 import { sourceStamp } from '../bin/stamp.js';
 
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
-const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300, manyWindowsFigures_s: 60 };
+const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300, manyWindowsFigures_s: 60, netcdfSamplesPerSecond: 5e6, outputCost: 0.05 };
 /**
  * The demo's figure stage before the default became one multi-panel figure per plane (commit 56dd1c3: 532 images,
  * seven per plane and window), on the 2-core development machine under other load: 21.7 s in the manifest's
@@ -168,6 +169,17 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
 
 interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; timings: Record<string, number> }
 
+/** One whole job as a child process; the manifest's figures. */
+async function wholeJob(campaign: string): Promise<PipeRun | string> {
+  const doc = parse(readFileSync(campaign, 'utf8')) as { name: string; output: { dir: string } };
+  const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images'], true);
+  if (r.code !== 0) return `exit ${r.code}: ${r.stderr.split('\n').slice(-8).join('\n')}`;
+  const runDir = join(resolve(doc.output.dir), doc.name);
+  const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number };
+  rmSync(runDir, { recursive: true, force: true });
+  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s };
+}
+
 async function main() {
   const rows = rowsFromArgs(process.argv);
   const runs = runsFromArgs(process.argv);
@@ -201,7 +213,8 @@ async function main() {
   const stamp = existsSync(join(ROOT, 'dist', 'build.json')) ? readFileSync(join(ROOT, 'dist', 'build.json'), 'utf8').trim() : '';
   const entry = stamp === JSON.stringify(sourceStamp(join(ROOT, 'src'))) ? 'the bundled build (dist/)' : 'the sources through tsx (no fresh build: npm run build)';
   const nl: number[] = [], nlLoop: number[] = [];
-  const pipes: PipeRun[] = [];
+  const pipes: PipeRun[] = [], ncPipes: PipeRun[] = [], csvOnly: PipeRun[] = [];
+  const variants = skipPipeline ? undefined : await benchVariants(d, (s) => console.log(s));
   let failed: string | undefined;
   if (!skipPipeline) {
     console.log(`3. whole job (child: node bin/wakeplane.js run <campaign> --quiet --no-images, from ${entry}), ${runs} runs, each followed by a newline pass`);
@@ -222,6 +235,12 @@ async function main() {
       nl.push((await newlinePass(d)).seconds);
       nlLoop.push((await newlinePass(d, true)).seconds);
       console.log(`  run ${k + 1}: whole job ${fmt(r.seconds, 3)} s, newline pass ${fmt(nl[k], 3)} s (JavaScript byte loop ${fmt(nlLoop[k], 3)} s)`);
+      // the same samples from NetCDF-4, and the CSV job without NetCDF outputs, in the same pass
+      const a = await wholeJob(variants!.netcdfCampaign), b = await wholeJob(variants!.noNetcdfOutputCampaign);
+      if (typeof a === 'string' || typeof b === 'string') { failed = typeof a === 'string' ? a : (b as string); break; }
+      ncPipes.push(a);
+      csvOnly.push(b);
+      console.log(`         from NetCDF-4 ${fmt(a.seconds, 3)} s; CSV without NetCDF outputs ${fmt(b.seconds, 3)} s`);
     }
   } else {
     nl.push(nlp0.seconds);
@@ -282,6 +301,16 @@ async function main() {
     out(`  samples/s >= 3e6         ${fmt(rate / 1e6)}e6   ${verdict(rate >= TARGET.samplesPerSecond)}`);
     out(`  peak RSS < ${TARGET.peakRss_MB} MB         ${fmt(rss, 0)} MB   ${verdict(rss < TARGET.peakRss_MB)}`);
     if (pipes.some((p) => p.read !== rows)) out(`  NOTE: manifest read != rows ${rows}`);
+    if (ncPipes.length) {
+      const ns = ncPipes.map((p) => p.seconds), ncRate = rows / median(ns);
+      out(`whole job from NetCDF-4  ${spread(ns)} s wall   ${fmt(ncRate / 1e6)} M samples/s   (CSV ${fmt(rate / 1e6)} M samples/s; ${fmt((variants!.netcdfBytes) / 2 ** 20, 1)} MiB of NetCDF-4, read ${ncPipes[0].read.toLocaleString('en')})`);
+      out(`  stages (s, median)     ${Object.keys(ncPipes[0].timings).map((k) => `${k} ${fmt(median(ncPipes.map((p) => p.timings[k] ?? 0)), 2)}`).join(', ')}`);
+      const costs = pipes.map((p, k) => p.seconds / csvOnly[k].seconds - 1);
+      const cost = median(costs);
+      out(`NetCDF outputs           whole job with / without, pair by pair: +${spread(costs.map((c) => 100 * c), 1)} %   (write_fields ${fmt(median(pipes.map((p) => p.timings.write_fields ?? 0)), 3)} s with, ${fmt(median(csvOnly.map((p) => p.timings.write_fields ?? 0)), 3)} s without)`);
+      out(`  NetCDF-4 samples/s >= 5e6 ${fmt(ncRate / 1e6)}e6   ${verdict(ncRate >= TARGET.netcdfSamplesPerSecond)}`);
+      out(`  output cost < 5 %        ${fmt(100 * cost, 1)} %   ${verdict(cost < TARGET.outputCost)}`);
+    }
   }
   if (focusRuns.length) {
     out('without ray structure (every row its own angles, almost all samples in the plane)');

@@ -10,7 +10,7 @@ export function sourceStamp(dir) {
     for (const e of readdirSync(d, { withFileTypes: true })) {
       const p = join(d, e.name);
       if (e.isDirectory()) walk(p);
-      else if (e.name.endsWith('.ts')) {
+      else if (/\.(ts|mts|mjs)$/.test(e.name)) {
         files++;
         newest = Math.max(newest, statSync(p).mtimeMs);
       }

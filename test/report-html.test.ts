@@ -151,12 +151,12 @@ describe('report HTML (pure)', () => {
 
   it('gives the wake track of a horizontal plane its own table and headers', () => {
     const h = fixtureField(campaign.planes[1], 0);
-    const tables = wakeReportTables(fixtureAnalysis([fixtureWake(h)]), { tracks: 'wake/tracks.csv' });
+    const tables = wakeReportTables(fixtureAnalysis([fixtureWake(h)]), { tracks: 'wake/track.csv' });
     const track = tables.find((t) => t.title.startsWith('Horizontal planes'))!;
     expect(track.columns).toEqual(['plane', 'window', 'x (m)', 'x/D', 'y_{c} (m) ± s.e.', 'σ_{y} (m)', 'amplitude']);
     // Fixture track: x = 255 m (D = 120 m), y_c = 14 m with s.e. 1 m, sigma_y 25 m, amplitude 0.4.
     expect(track.rows[0]).toEqual(['H90', 0, 255, 255 / 120, { value: 14, uncertainty: 1 }, 25, 0.4]);
     expect(track.rows.length).toBe(6);
-    expect(track.link).toBe('wake/tracks.csv');
+    expect(track.link).toBe('wake/track.csv');
   });
 });

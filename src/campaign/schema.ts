@@ -20,7 +20,10 @@ import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
 
-/** A column in a CSV file: its header name, and a scale/offset turning the stored value into the SI unit. */
+/**
+ * A column in a CSV file (its header name, and a scale/offset turning the stored value into the SI unit), or a
+ * variable in a NetCDF file (its name; units come from its `units` attribute, or from `units` here).
+ */
 const columnRef = z.union([
   z.string().min(1),
   z
@@ -28,6 +31,11 @@ const columnRef = z.union([
       name: z.string().min(1).describe('header name of the column in the file'),
       scale: finite().default(1).describe('multiply the stored value by this to get the SI unit; default 1'),
       offset: finite().default(0).describe('then add this (SI unit); default 0'),
+      units: z
+        .string()
+        .min(1)
+        .optional()
+        .describe('NetCDF files: units of the stored values where the variable has no (or a wrong) units attribute, e.g. "km", "rad", "seconds since 2024-01-01"'),
     })
     .strict(),
 ]);
@@ -85,8 +93,8 @@ const instrumentSchema = z
     pulsed: pulsedSchema.default({ pulseFwhm_ns: 200, gateLength_m: 30 }),
     cw: cwSchema.default({ wavelength_m: 1.565e-6, apertureRadius_m: 0.028 }),
     calibration: calibrationSchema,
-    files: z.array(z.string().min(1)).default([]).describe('data files (CSV), relative to the campaign file'),
-    columns: columnMapSchema.default({}).describe('column mapping for files whose headers or units differ'),
+    files: z.array(z.string().min(1)).default([]).describe('data files (CSV, CSV.gz or NetCDF-4), relative to the campaign file'),
+    columns: columnMapSchema.default({}).describe('column mapping for files whose headers or units differ; for NetCDF files the variable names'),
     radialVelocitySign: z
       .enum(['away', 'toward'])
       .default('away')
@@ -387,9 +395,10 @@ export const campaignSchema = z
         writeRejected: z.boolean().default(true).describe('write rejected rows with file, line and reason; default true'),
         images: z.boolean().default(true).describe('render images and the report; default true'),
         figures: figuresSchema.default(FIGURES_DEFAULT).describe('which figures to draw and on which scales (see src/campaign/figures.ts)'),
+        netcdf: z.boolean().default(true).describe('also write the fields and wake tables as NetCDF-4/CF files; default true'),
       })
       .strict()
-      .default({ dir: 'output', writeRejected: true, images: true, figures: FIGURES_DEFAULT }),
+      .default({ dir: 'output', writeRejected: true, images: true, figures: FIGURES_DEFAULT, netcdf: true }),
     simulation: z
       .record(z.string(), z.unknown())
       .optional()

@@ -19,10 +19,18 @@ export interface SampleBatch {
   cnr: Float64Array;
 }
 
-/** A row that could not be read: where, why, and its raw text. */
+/**
+ * A row (text file) or sample (NetCDF) that could not be read: where, why, and its raw text. Text files name the
+ * line; NetCDF files name the variable, ray and gate instead (line NaN).
+ */
 export interface RejectedRow {
   file: string;
+  /** 1-based line of a text file; NaN for NetCDF. */
   line: number;
+  /** NetCDF: the variable at fault and the 0-based ray (time) and gate (range) indices. */
+  variable?: string;
+  ray?: number;
+  gate?: number;
   /** A RejectReason code (src/qc/reasons.ts). */
   reason: string;
   /** Human explanation naming the column and the value, e.g. 'column "range_m": not a number: "12,5"'. */

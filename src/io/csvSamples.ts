@@ -41,6 +41,8 @@ export interface SampleReaderOptions {
   columns: ColumnMap;
   /** 'toward': the file's radial velocities are positive toward the instrument; the reader flips them to 'away'. */
   sign: 'away' | 'toward';
+  /** The file is gzip-compressed (.csv.gz): decompressed as a stream. @default false */
+  gzip?: boolean;
   /** Rows per batch. @default 65536 */
   batchSize?: number;
   /** Bytes per read (tests use tiny values to exercise chunk boundaries). @default 1048576 */
@@ -373,11 +375,11 @@ async function readHeader(path: string, opts: SampleReaderOptions, blocks: LineB
   return { layout, block, pos: nl + 1 };
 }
 
-async function openBlocks(path: string, readSize: number): Promise<LineBlocks> {
+async function openBlocks(path: string, readSize: number, gzip = false): Promise<LineBlocks> {
   const bad = fileProblem(path);
   if (bad) throw new InputError(path, undefined, `data file ${bad.reason}`);
   try {
-    return await LineBlocks.open(path, readSize, MAX_LINE);
+    return await LineBlocks.open(path, readSize, MAX_LINE, gzip);
   } catch (e) {
     throw new InputError(path, undefined, `cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
   }
@@ -407,7 +409,7 @@ export interface HeaderInfo {
  * readable regular file (see fileKind.ts).
  */
 export async function checkHeader(path: string, opts: SampleReaderOptions): Promise<HeaderInfo> {
-  const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536));
+  const blocks = await openBlocks(path, Math.min(opts.highWaterMark ?? 65536, 65536), opts.gzip);
   try {
     const head = await readHeader(path, opts, blocks);
     let block = head.block, pos = head.pos, seen = 0, bytesPerLine = NaN;
@@ -438,7 +440,7 @@ export async function checkHeader(path: string, opts: SampleReaderOptions): Prom
  */
 export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const batchSize = opts.batchSize ?? 65536;
-  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20);
+  const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20, opts.gzip);
   try {
     const head = await readHeader(path, opts, blocks);
     const st: ReaderState = {

@@ -43,7 +43,8 @@ import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import type { SampleTarget } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow } from '../io/batch.ts';
-import { readSamples, type SampleChunk } from '../io/csvSamples.ts';
+import type { SampleChunk } from '../io/csvSamples.ts';
+import { openSamples } from '../io/sampleSource.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
@@ -164,7 +165,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    it: readSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,

@@ -6,7 +6,7 @@ import { mkdirSync } from 'node:fs';
 import { relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { planCampaign, writePlanOutputs, type PlanSummary } from '../plan/index.ts';
-import type { OutputRecord } from './manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { loadTerrain } from '../io/terrainFile.ts';
 
 const pc = (x: number) => `${(100 * x).toFixed(1)}%`;

@@ -16,10 +16,9 @@ import { relative } from 'node:path';
 import { plausibilityWarnings } from '../campaign/plausibility.ts';
 import type { Campaign, Instrument } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
-import { checkHeader } from '../io/csvSamples.ts';
+import { checkSamples, openSamples } from '../io/sampleSource.ts';
 import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
-import { readSamples } from '../io/csvSamples.ts';
 import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
@@ -101,7 +100,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         keep.set(ins.index, [...(keep.get(ins.index) ?? []), file]);
         files.push({ file, ins });
         try {
-          const h = await checkHeader(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
+          const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
           if (!h.hasDataLine) errors.push(new InputError(file, undefined, 'no usable rows: the file has a header and no data lines'));
           const size = statSync(file).size;
           estimatedRows += h.bytesPerLine > 0 ? size / h.bytesPerLine : 0;
@@ -159,7 +158,7 @@ async function scanData(c: Campaign, files: { file: string; ins: Instrument }[])
   const inspector = new SuspicionInspector(c, suspicionSettings(c, (f) => shown(c, f)));
   const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
   for (const { file, ins } of files) {
-    for await (const chunk of readSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign })) {
+    for await (const chunk of openSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign })) {
       inspector.batch(chunk.batch, chunk.rejected);
     }
   }

@@ -16,7 +16,10 @@ import { readFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
-import { csvRow, openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
+import { openAtomicStream, writeFileAtomic, type AtomicStream } from '../io/atomic.ts';
+import { dictionaryJson, dictionaryMarkdown } from '../records/describe.ts';
+import { rejectedRowsTable } from '../records/tables/run.ts';
+import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
@@ -28,7 +31,7 @@ import { PlaneTarget } from '../grid/planeTarget.ts';
 import { runTargets } from './geometryTargets.ts';
 import { GeometryFinisher } from './geometryFinish.ts';
 import { hashFiles } from './hashing.ts';
-import type { OutputRecord, RunManifest } from './manifest.ts';
+import type { OutputRecord, RunManifest } from '../records/manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
 import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
@@ -91,6 +94,8 @@ export interface RunResult {
   /** What the stages handed on (for example the wake analysis and the plan summary). */
   shared: Record<string, unknown>;
 }
+
+const rejectedLayout = tableLayout(rejectedRowsTable);
 
 const silent: RunProgress = { stage() {}, file() {}, done() {} };
 
@@ -174,7 +179,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     let rejectedCount = 0;
     if (c.output.writeRejected) {
       rejectedOut = openAtomicStream(join(runDir, 'rejected_rows.csv'));
-      rejectedOut.write(csvRow(['file', 'line', 'reason', 'detail', 'text']));
+      rejectedOut.write(headerLine(rejectedLayout));
     }
     const outputs: OutputRecord[] = [];
     const manifest: RunManifest = {
@@ -232,7 +237,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
         onRejectedRows(rows) {
           rejectedCount += rows.length;
-          if (rejectedOut) for (const r of rows) rejectedOut.write(csvRow([relative(c.baseDir, r.file) || r.file, r.line, r.reason, r.detail, r.text]));
+          if (rejectedOut) for (const r of rows) rejectedOut.write(rowLine(rejectedLayout, [relative(c.baseDir, r.file) || r.file, r.line, r.variable, r.ray, r.gate, r.reason, r.detail, r.text]));
         },
         onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
         async onWindow(w) {
@@ -289,6 +294,11 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;
+    writeFileAtomic(join(runDir, 'dictionary.md'), dictionaryMarkdown());
+    writeFileAtomic(join(runDir, 'dictionary.json'), dictionaryJson());
+    outputs.push({ kind: 'dictionary', path: 'dictionary.md', description: 'every output column and variable: unit, frame, meaning, precision' });
+    outputs.push({ kind: 'dictionary', path: 'dictionary.json', description: 'the same dictionary for programs' });
+
     for (const stage of stages) {
       if (!stage.finish || !stage.last) continue;
       progress.stage(stage.name);

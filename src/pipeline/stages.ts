@@ -22,6 +22,8 @@ import { summariseSiteWake, turbineWakesCsv } from '../wake/siteSummary.ts';
 import { powerStage } from './powerStage.ts';
 import type { PowerAnalysis } from '../power/analyse.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
+import { FieldNetcdf } from './fieldNetcdf.ts';
+import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import type { RunStage } from './run.ts';
 import { geometryStage } from './geometryStage.ts';
@@ -101,9 +103,9 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
         ctx.manifest.warnings.push(`wake/steering.csv has no rows: ${a.steering.note ?? 'no window qualified'} (the wake table's flag and reason columns say why per window)`);
       }
       ctx.shared.ensembleRows = ensembleRows;
-      if (opts.write === false) return [];
-      const out = writeWakeOutputs(a, ctx.runDir, ensembleRows);
-      if (site) {
+      const out = opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir, ensembleRows);
+      if (opts.write !== false && ctx.campaign.output.netcdf) out.push(...(await writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256)));
+      if (opts.write !== false && site) {
         writeFileAtomic(join(ctx.runDir, 'wake', 'turbine_wakes.csv'), turbineWakesCsv(rows));
         out.push({ kind: 'turbine-wakes', path: 'wake/turbine_wakes.csv', description: 'every turbine\'s wake per plane and window: inflow source, wakes reaching it, centre upstream of the turbines it wakes' });
       }
@@ -240,7 +242,7 @@ export function reportStage(): RunStage {
       const has = (p: string) => (written.has(p) ? p : undefined);
       if (a) {
         extras.wakeTables = wakeReportTables(a, {
-          rows: has('wake/wake_table.csv'), downstream: has('wake/downstream.csv'), steering: has('wake/steering.csv'), tracks: has('wake/tracks.csv'),
+          rows: has('wake/wake_table.csv'), downstream: has('wake/downstream.csv'), steering: has('wake/steering.csv'), tracks: has('wake/track.csv'),
         });
       }
       if (plan) extras.planSummary = planExtras(plan);
@@ -253,8 +255,31 @@ export function reportStage(): RunStage {
   };
 }
 
+/**
+ * The fields as NetCDF-4/CF (campaign output.netcdf): each field appended to its plane's file as its window (or
+ * condition bin) finishes, the files closed at the end (pipeline/fieldNetcdf.ts). The writer thread starts loading
+ * the HDF5 library with the first field, so that it is ready long before the last one.
+ */
+export function netcdfStage(): RunStage {
+  let nc: FieldNetcdf | undefined;
+  return {
+    name: 'netcdf',
+    async field(f, ctx) {
+      if (!ctx.campaign.output.netcdf) return [];
+      nc ??= new FieldNetcdf(ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256);
+      await nc.add(f, f.window.index);
+      return [];
+    },
+    async finish() {
+      const out = nc ? await nc.close() : [];
+      nc = undefined;
+      return out;
+    },
+  };
+}
+
 export function defaultStages(opts: { plan?: boolean } & ImageStageOptions = {}): RunStage[] {
-  return [wakeStage(), geometryStage(), powerStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), netcdfStage(), geometryStage(), powerStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

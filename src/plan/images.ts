@@ -5,7 +5,7 @@
  */
 import type { Campaign } from '../campaign/types.ts';
 import { withValues } from '../grid/grid.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { axisLabels, windFrom } from '../render/labels.ts';
 import { RenderQueue } from '../render/renderQueue.ts';
 import { scalarMapSvg, type ScalarMapOptions } from '../render/scalarMap.ts';

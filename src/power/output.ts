@@ -14,31 +14,33 @@
  *   level_deg, direction_deg, speed_ms (binning speed), turbine, power_kw, availability, wind_speed_ms, rows, flag
  *   (ok|no_rows|gap|negative_power|unavailable), reason (file and line).
  */
-import { csvRow } from '../io/atomic.ts';
+import { powerGainTable, windowPowerTable } from '../records/tables/index.ts';
+import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { isoTime } from '../io/time.ts';
 import type { ReportTable } from '../render/report.ts';
 import type { PowerAnalysis } from './analyse.ts';
 
 export function powerGainCsv(a: PowerAnalysis): string {
-  let s = csvRow(['turbine', 'reference', 'level_deg', 'direction_lo_deg', 'direction_hi_deg', 'speed_lo_ms', 'speed_hi_ms', 'windows_baseline', 'windows_steered',
-    'ratio_baseline', 'ratio_steered', 'gain', 'gain_lo', 'gain_hi', 'gain_se', 'weight', 'deflection_m', 'deflection_windows_baseline', 'deflection_windows_steered', 'confidence', 'replicates']);
+  const L = tableLayout(powerGainTable);
+  let s = headerLine(L);
   for (const g of a.gains) {
     const r = g.result;
     for (const b of r.bins) {
-      s += csvRow([g.turbine, g.reference, g.level_deg, b.directionLo, b.directionHi, b.speedLo, b.speedHi, b.nBaseline, b.nSteered, b.ratioBaseline, b.ratioSteered,
+      s += rowLine(L, [g.turbine, g.reference, g.level_deg, b.directionLo, b.directionHi, b.speedLo, b.speedHi, b.nBaseline, b.nSteered, b.ratioBaseline, b.ratioSteered,
         b.gain, b.gainLo, b.gainHi, b.gainSe, b.weight, b.deflection_m, b.nDeflectionBaseline, b.nDeflectionSteered, r.confidence, r.replicates]);
     }
     const c = r.combined;
-    s += csvRow([g.turbine, g.reference, g.level_deg, 'all', 'all', 'all', 'all', c.nBaseline, c.nSteered, '', '', c.gain, c.lo, c.hi, c.se, 1, c.deflection_m, '', '', r.confidence, r.replicates]);
+    s += rowLine(L, [g.turbine, g.reference, g.level_deg, 'all', 'all', 'all', 'all', c.nBaseline, c.nSteered, NaN, NaN, c.gain, c.lo, c.hi, c.se, 1, c.deflection_m, NaN, NaN, r.confidence, r.replicates]);
   }
   return s;
 }
 
 export function windowPowerCsv(a: PowerAnalysis): string {
-  let s = csvRow(['window', 'start', 'end', 'state', 'level_deg', 'direction_deg', 'speed_ms', 'turbine', 'power_kw', 'availability', 'wind_speed_ms', 'rows', 'flag', 'reason']);
+  const L = tableLayout(windowPowerTable);
+  let s = headerLine(L);
   for (const w of a.windows) {
     for (const [id, p] of Object.entries(w.perTurbine)) {
-      s += csvRow([w.window.id, isoTime(w.window.start_s), isoTime(w.window.end_s), w.state, w.level_deg, w.window.direction_deg, w.speed_ms, id, p.power_kw, p.availability, p.windSpeed_ms, p.rows, p.flag, p.reason]);
+      s += rowLine(L, [w.window.id, isoTime(w.window.start_s), isoTime(w.window.end_s), w.state, w.level_deg, w.window.direction_deg, w.speed_ms, id, p.power_kw, p.availability, p.windSpeed_ms, p.rows, p.flag, p.reason]);
     }
   }
   return s;

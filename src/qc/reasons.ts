@@ -6,6 +6,8 @@
 export const REJECT_REASONS = [
   // reading
   'bad_number', 'missing_field', 'bad_time', 'angle_out_of_range', 'bad_range', 'unknown_instrument',
+  // reading NetCDF: a fill value, missing_value, a value outside valid_range, or NaN
+  'missing_value',
   // quality control
   'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order', 'no_wind_direction',
   // terrain: the beam passed below the ground before the point; the point lies outside the terrain model

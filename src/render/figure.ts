@@ -2,7 +2,7 @@
  * Writes one figure under <runDir>/images/ as SVG and PNG and describes both files as output records.
  */
 import { join } from 'node:path';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { writeSvgAndPng } from './write.ts';
 
 /** Figure options: PNG density in dots per inch (default 300, see write.ts). */

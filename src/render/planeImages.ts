@@ -9,7 +9,7 @@
 import type { Campaign, PlaneSpec } from '../campaign/types.ts';
 import { siteTurbineMarks } from './turbineMarks.ts';
 import { withValues, type GridSpec } from '../grid/grid.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import { MaskReason, maskReasonName, type FieldResult } from '../retrieval/types.ts';
 import { KAPPA } from '../wake/options.ts';
 import type { WakePlaneWindow } from '../wake/types.ts';

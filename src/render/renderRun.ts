@@ -5,7 +5,7 @@
  */
 import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
 import type { Campaign } from '../campaign/types.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import type { WakeAnalysis } from '../wake/types.ts';
 import { RenderQueue } from './renderQueue.ts';

@@ -9,7 +9,7 @@
  */
 import { dirname, isAbsolute, join, relative } from 'node:path';
 import { writeFileAtomic } from '../io/atomic.ts';
-import type { OutputRecord, RunManifest } from '../pipeline/manifest.ts';
+import type { OutputRecord, RunManifest } from '../records/manifest.ts';
 import { REJECT_REASONS, accountBalances, type SampleAccount } from '../qc/reasons.ts';
 import { esc } from './escape.ts';
 import { fixed, significant, withUncertainty } from './numbers.ts';

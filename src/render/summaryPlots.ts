@@ -4,7 +4,7 @@
  * curves. Files go to <runDir>/images/summary_<what>.svg and .png.
  */
 import type { Campaign } from '../campaign/types.ts';
-import type { OutputRecord } from '../pipeline/manifest.ts';
+import type { OutputRecord } from '../records/manifest.ts';
 import type { Stat, WakeAnalysis } from '../wake/types.ts';
 import { QUANTITY } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';

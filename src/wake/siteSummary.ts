@@ -6,7 +6,8 @@
  * inflow came from and the measured centre just upstream of each turbine it wakes.
  */
 import type { Campaign } from '../campaign/types.ts';
-import { csvRow } from '../io/atomic.ts';
+import { turbineWakesTable } from '../records/tables/index.ts';
+import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { isoTime } from '../io/time.ts';
 import { summariseWake, type WakeInputs } from './analyse.ts';
 import type { WakeAnalysis, WakePlaneWindow } from './types.ts';
@@ -30,22 +31,17 @@ export function summariseSiteWake(rows: WakePlaneWindow[], c: Campaign, inputs: 
   };
 }
 
-/**
- * wake/turbine_wakes.csv, one row per plane, window and turbine whose wake crosses the plane: plane, turbine,
- * window, start, end, window_kind, window_label, state_level_deg, yaw_offset_deg (that turbine's), waked_by (ids,
- * nearest first, ';'-separated), inflow_from, inflow_hub_speed_ms, flag, reason, then per turbine it wakes:
- * at_turbine, at_x_m (distance downstream in this turbine's frame), centre_y_m and centre_y_se_m (measured lateral
- * wake centre just upstream of it, rotor frame, + = left looking downstream).
- */
+/** wake/turbine_wakes.csv (columns declared in records/tables/sites.ts): one row per turbine row and turbine it wakes. */
 export function turbineWakesCsv(rows: readonly WakePlaneWindow[]): string {
-  let s = csvRow(['plane', 'turbine', 'window', 'start', 'end', 'window_kind', 'window_label', 'state_level_deg', 'yaw_offset_deg', 'waked_by', 'inflow_from', 'inflow_hub_speed_ms', 'flag', 'reason', 'at_turbine', 'at_x_m', 'centre_y_m', 'centre_y_se_m']);
+  const L = tableLayout(turbineWakesTable);
+  let s = headerLine(L);
   for (const r of rows) {
     if (!r.turbineId) continue;
     const w = r.window;
     const base = [r.planeId, r.turbineId, w.index, isoTime(w.start_s), isoTime(w.end_s), w.kind ?? '', w.label ?? '', w.level, r.yawOffset_deg, (r.wakedBy ?? []).join(';'), r.inflowFrom ?? '', r.inflow.hubSpeed_ms, r.flag, r.reason];
     const at = r.centreAtTurbines ?? [];
-    if (at.length === 0) s += csvRow([...base, '', '', '', '']);
-    for (const a of at) s += csvRow([...base, a.turbineId, a.x_m, a.yc_m, a.syc_m]);
+    if (at.length === 0) s += rowLine(L, [...base, '', NaN, NaN, NaN]);
+    for (const a of at) s += rowLine(L, [...base, a.turbineId, a.x_m, a.yc_m, a.syc_m]);
   }
   return s;
 }

@@ -101,6 +101,7 @@ export function fieldTables(runDir: string): Map<string, string> {
   const dir = join(runDir, 'fields');
   if (!existsSync(dir)) return out;
   for (const f of readdirSync(dir)) {
+    if (!f.endsWith('.csv')) continue; // the NetCDF files hold every window of a plane
     const text = readFileSync(join(dir, f), 'utf8');
     const first = text.split('\n')[1]?.split(',') ?? [];
     out.set(`${first[0]}|${first[1]}`, text);

@@ -194,7 +194,8 @@ describe('bad rows are charged to the instrument they name', () => {
     expect(m.samples.perInstrument.a.rejected.bad_number).toBe(clean.manifest.samples.perInstrument.a.rejected.bad_number);
     expect(m.samples.perInstrument.b.read).toBe(clean.manifest.samples.perInstrument.b.read + 1);
     const rej = readFileSync(join(dir, 'out', 'faulty', 'rejected_rows.csv'), 'utf8').trim().split('\n');
-    expect(rej).toEqual(['file,line,reason,detail,text', `data/a.csv,${lines.length + 1},bad_number,"column ""elevation_deg"" (elevation_deg): not a number: ""abc""","${t},b,12.5,abc,300,1.2,-10"`]);
+    // variable, ray and gate are for NetCDF files (empty for text files)
+    expect(rej).toEqual(['file,line,variable,ray,gate,reason,detail,text', `data/a.csv,${lines.length + 1},,,,bad_number,"column ""elevation_deg"" (elevation_deg): not a number: ""abc""","${t},b,12.5,abc,300,1.2,-10"`]);
   });
 });
 

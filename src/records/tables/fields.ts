@@ -1,0 +1,46 @@
+/** The field table: one CSV per plane and window, one row per cell (written by pipeline/fieldTable.ts). */
+import { INT, SE, TEXT, TIME, byUnc, col, dec, sig, type Table } from '../dictionary.ts';
+
+const rotor = { frame: 'rotor' } as const;
+
+export const MASK_MEANING =
+  'why the component is not retrieved in the cell, empty when it is: no_data, too_few_samples, too_few_instruments, ' +
+  'amplification_above_threshold, singular_geometry, assumed_zero (w = 0 assumed in a two-instrument cell)';
+
+export const fieldTable: Table = {
+  id: 'field-table',
+  path: 'fields/<plane>_w<window>_<start>.csv',
+  row: 'one cell of one plane in one averaging window',
+  columns: [
+    col('plane', 'text', TEXT, 'plane id (campaign planes[].id)'),
+    col('window_start', 'iso', TIME, 'start of the averaging window (inclusive)'),
+    col('window_end', 'iso', TIME, 'end of the averaging window (exclusive)'),
+    col('y', 'm', dec(3), 'cell centre, lateral: rotor-frame y, positive to the left looking downstream', rotor),
+    col('z', 'm', dec(3), 'cell centre, height above the turbine ground level (cross plane)', { ...rotor, only: 'cross' }),
+    col('x', 'm', dec(3), 'cell centre, downstream distance from the rotor (horizontal plane)', { ...rotor, only: 'horizontal' }),
+    col('y', 'D', dec(5), 'cell centre y in rotor diameters', rotor),
+    col('z', 'D', dec(5), 'cell centre height in rotor diameters', { ...rotor, only: 'cross' }),
+    col('x', 'D', dec(5), 'cell centre x in rotor diameters', { ...rotor, only: 'horizontal' }),
+    col('u', 'ms', byUnc('u_se_ms', 4), 'streamwise wind component (along the window wind direction), weighted least squares', rotor),
+    col('v', 'ms', byUnc('v_se_ms', 4), 'lateral wind component, positive to the left looking downstream', rotor),
+    col('w', 'ms', byUnc('w_se_ms', 4), 'vertical wind component, positive up', { ...rotor, standardName: 'upward_air_velocity' }),
+    col('u_se', 'ms', SE, 'standard uncertainty of u from the radial-velocity scatter and the geometry (a lower bound: samples in a window are correlated)', rotor),
+    col('v_se', 'ms', SE, 'standard uncertainty of v', rotor),
+    col('w_se', 'ms', SE, 'standard uncertainty of w', rotor),
+    col('u_amplification', 'one', sig(4), 'error amplification of u, sqrt(diag((AᵀA)⁻¹)) of the unit beam vectors (dilution of precision)', rotor),
+    col('v_amplification', 'one', sig(4), 'error amplification of v', rotor),
+    col('w_amplification', 'one', sig(4), 'error amplification of w', rotor),
+    col('condition_number', 'one', sig(4), 'condition number of the beam matrix A (2-norm)'),
+    col('min_crossing', 'deg', dec(2), 'smallest angle between two beams used in the cell'),
+    col('samples', 'count', INT, 'accepted samples used in the cell, after the robust filter'),
+    col('instruments', 'count', INT, 'instruments used in the cell'),
+    col('u_mask', 'text', TEXT, MASK_MEANING),
+    col('v_mask', 'text', TEXT, MASK_MEANING),
+    col('w_mask', 'text', TEXT, MASK_MEANING),
+    col('masked', 'count', INT, '1 when any component is masked or assumed, else 0'),
+    col('direction', 'deg', dec(3), 'wind direction (from, clockwise from north) defining the rotor frame in this window', { frame: 'site' }),
+    col('y_eff', 'm', dec(2), 'effective lateral position of the retrieved u within the cell (instruments\' mean sample positions weighted by their share in u)', rotor),
+    col('z_eff', 'm', dec(2), 'effective height of the retrieved u within the cell', { ...rotor, only: 'cross' }),
+    col('x_eff', 'm', dec(2), 'effective downstream position of the retrieved u within the cell', { ...rotor, only: 'horizontal' }),
+  ],
+};
