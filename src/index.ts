@@ -10,7 +10,8 @@
  * ```
  */
 export { loadCampaignFile as loadCampaign, parseCampaignText, resolveCampaign as validateCampaign, campaignJsonSchema } from './campaign/load.ts';
-export type { Campaign, Instrument, PlaneSpec, Vec3 } from './campaign/types.ts';
+export type { Campaign, Instrument, PlaneSpec, Turbine, Vec3 } from './campaign/types.ts';
+export { turbineById, turbineOfPlane, planeOrigin, stateTurbine } from './campaign/turbines.ts';
 export type { CampaignInput } from './campaign/schema.ts';
 export { runCampaign, type RunOptions, type RunResult, type RunStage, type StageContext } from './pipeline/run.ts';
 export { defaultStages, wakeStage, imageStage, planStage, reportStage, loadWakeInputs } from './pipeline/stages.ts';
@@ -23,6 +24,12 @@ export type { GridSpec } from './grid/grid.ts';
 export { analyseField } from './api/analyseField.ts';
 export { analyseWake, summariseWake, type WakeInputs } from './wake/analyse.ts';
 export type { WakeAnalysis, WakePlaneWindow } from './wake/types.ts';
+export { analyseSiteField, turbineViews } from './wake/siteWakes.ts';
+export { analysePower, type PowerAnalysis, type PowerWindow } from './power/analyse.ts';
+export { powerGain, type GainWindow, type GainResult } from './power/gain.ts';
+export { powerStage } from './pipeline/powerStage.ts';
+export { loadTerrain } from './io/terrainFile.ts';
+export { flatTerrain, GridTerrain, type Terrain } from './geometry/terrain.ts';
 export { planCampaign, type PlanResult, type PlanSummary } from './plan/index.ts';
 export { REJECT_REASONS, type RejectReason, type SampleAccount } from './qc/reasons.ts';
 export type { OutputRecord, RunManifest } from './records/manifest.ts';

@@ -22,7 +22,7 @@ import { firstInvalidUtf8, linePosOfByte } from '../io/utf8.ts';
 import { campaignSchema, type CampaignInput } from './schema.ts';
 import { plausibilityErrors } from './plausibility.ts';
 import { keyPathOf, problemsFromIssues, yamlLocator, type KeyPath, type Locator } from './problems.ts';
-import type { Campaign, Instrument, PlaneSpec, Vec3 } from './types.ts';
+import type { Campaign, Instrument, PlaneSpec, TerrainRef, Turbine, Vec3 } from './types.ts';
 import { parseTime } from '../io/time.ts';
 import { conditionVariableProblem } from './conditionVariables.ts';
 
@@ -89,6 +89,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   const baseDir = file === '<memory>' ? process.cwd() : dirname(file);
   const abs = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
 
+  const turbines = resolveTurbines(c, abs, bad);
+  // Instruments on a nacelle sit on the first turbine.
+  const host = turbines[0];
   const ids = new Set<string>();
   const instruments: Instrument[] = c.instruments.map((ins, index) => {
     const where = ['instruments', index];
@@ -96,14 +99,14 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     ids.add(ins.id);
     let position: Vec3 = [NaN, NaN, NaN];
     const beamFrame = ins.beamFrame ?? (ins.role === 'nacelle' ? 'nacelle' : 'site');
-    const mount: Vec3 = ins.mount_m ? [...ins.mount_m] : [0, 0, c.turbine.hubHeight_m];
+    const mount: Vec3 = ins.mount_m ? [...ins.mount_m] : [0, 0, host.hubHeight_m];
     if (beamFrame === 'nacelle') {
-      if (!c.turbine.series) {
+      if (!host.series) {
         bad([...where, 'beamFrame'], 'beam angles relative to the nacelle need the nacelle direction at each sample: give turbine.series (time, yaw_deg), or beamFrame: site if the angles are already site azimuths');
       }
       if (ins.position_m || ins.position_wgs84) bad(where, 'an instrument on the nacelle (beamFrame nacelle) is placed by mount_m [forward, left, up] from the tower base, not by position_m');
       // Nominal site position: the mount with the nacelle facing north (the ingest turns it with the nacelle).
-      position = [c.turbine.position_m[0] - mount[1], c.turbine.position_m[1] + mount[0], c.turbine.position_m[2] + mount[2]];
+      position = [host.position[0] - mount[1], host.position[1] + mount[0], host.position[2] + mount[2]];
     } else if (ins.position_m && ins.position_wgs84) {
       bad(where, 'give either position_m or position_wgs84, not both');
     } else if (ins.position_m) {
@@ -138,25 +141,29 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   checkRoles(instruments, c.planes.length, bad);
   if (instruments.length > 255) bad(['instruments'], 'at most 255 instruments', instruments.length);
 
-  const D = c.turbine.rotorDiameter_m;
   const planeIds = new Set<string>();
   const planes: PlaneSpec[] = c.planes.map((p, index) => {
     const where = ['planes', index];
     if (planeIds.has(p.id)) bad([...where, 'id'], 'plane ids must be unique', p.id);
     planeIds.add(p.id);
+    const frame = planeFrame(p.frame, p.heights, turbines, [...where, 'frame'], bad);
+    // Sizes in rotor diameters and the default height refer to the plane's turbine (the first one for the site frame).
+    const own = turbines[Math.max(0, frame.turbineIndex)];
+    const D = own.rotorDiameter_m;
+    const hubZ = p.heights === 'terrain' ? own.hubHeight_m : p.heights === 'site' ? own.position[2] + own.hubHeight_m : own.position[2] - frame.origin[2] + own.hubHeight_m;
     if (p.orientation === 'cross') {
       if ((p.x_m === undefined) === (p.x_D === undefined)) bad(where, 'a cross plane needs exactly one of x_m or x_D');
       if (!p.z) bad([...where, 'z'], 'a cross plane needs its vertical extent z: {min, max}');
       const x_m = p.x_m ?? (p.x_D ?? NaN) * D;
       if (x_m <= 0) bad([...where, p.x_m !== undefined ? 'x_m' : 'x_D'], 'the plane must lie downstream of the rotor (x > 0)', x_m);
       return {
-        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z ?? { min: 0, max: 1 }, cell_m: p.cell_m, thickness_m: p.thickness_m,
+        id: p.id, index, orientation: 'cross', x_m, z_m: NaN, y: p.y, second: p.z ?? { min: 0, max: 1 }, cell_m: p.cell_m, thickness_m: p.thickness_m, ...frame,
       };
     }
     if (!p.xRange) bad([...where, 'xRange'], 'a horizontal plane needs its downstream extent xRange: {min, max}');
     return {
-      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? c.turbine.hubHeight_m, y: p.y, second: p.xRange ?? { min: 0, max: 1 },
-      cell_m: p.cell_m, thickness_m: p.thickness_m,
+      id: p.id, index, orientation: 'horizontal', x_m: NaN, z_m: p.z_m ?? hubZ, y: p.y, second: p.xRange ?? { min: 0, max: 1 },
+      cell_m: p.cell_m, thickness_m: p.thickness_m, ...frame,
     };
   });
   for (const p of planes) {
@@ -166,7 +173,14 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   }
   if (c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
 
-  const { series: tSeries, position_m, ...turbineRest } = c.turbine;
+  const tSeries = segmentTurbine(c, turbines, bad)?.series;
+  if (c.power) {
+    for (const [k, id] of [['reference', c.power.reference], ...(c.power.turbines ?? []).map((t, i) => [i, t])] as [string | number, string | undefined][]) {
+      const path = typeof k === 'number' ? ['power', 'turbines', k] : ['power', k];
+      if (id !== undefined && !turbines.some((t) => t.id === id)) bad(path, `no turbine with this id (known: ${turbines.map((t) => t.id).join(', ')})`, id);
+    }
+  }
+  const site = { ...c.site, terrain: c.site.terrain ? resolveTerrainRef(c.site.terrain, abs, bad) : undefined };
   const windDirection =
     c.windDirection.kind === 'fixed'
       ? c.windDirection
@@ -186,7 +200,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     }
     if (windows.file) windows = { ...windows, file: abs(windows.file) };
   } else if (windows.kind === 'segments') {
-    if (!tSeries) bad(['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)');
+    const id = windows.turbine;
+    const known = id === undefined || turbines.some((t) => t.id === id);
+    if (!tSeries && known) bad(id ? ['windows', 'turbine'] : ['windows'], 'segment windows need the turbine series (turbine.series with yaw_deg)', id);
   } else if (windows.kind === 'fixed' && windows.anchor !== 'first-sample' && windows.anchor !== 'epoch') {
     if (!Number.isFinite(parseTime(windows.anchor))) {
       bad(['windows', 'anchor'], 'must be "first-sample", "epoch" or an ISO 8601 UTC time', windows.anchor);
@@ -209,7 +225,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     baseDir,
     instruments,
     planes,
-    turbine: { ...turbineRest, position: [...position_m], series: tSeries ? { file: abs(tSeries.file), columns: tSeries.columns } : undefined },
+    site,
+    turbines,
+    turbine: turbines[0],
     windDirection,
     inflow: inflow as Campaign['inflow'],
     windows,
@@ -220,6 +238,66 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   }
   throwAll(file, problems);
   return campaign;
+}
+
+type Parsed = z.output<typeof campaignSchema>;
+type Bad = (path: KeyPath, rule: string, received?: unknown) => void;
+
+/**
+ * The turbine list: the single `turbine` key first, then `turbines`. Ids must be unique, and no two rotors may
+ * overlap: two towers closer than the sum of the rotor radii could hit each other's rotor when yawed (the rotor
+ * turns about the tower, so the horizontal tower distance is what counts). Without any turbine a placeholder keeps
+ * the rest of the checks going (the problem is reported).
+ */
+function resolveTurbines(c: Parsed, abs: (p: string) => string, bad: Bad): Turbine[] {
+  const listed = [...(c.turbine ? [{ t: c.turbine, where: ['turbine'] as KeyPath }] : []), ...(c.turbines ?? []).map((t, i) => ({ t, where: ['turbines', i] as KeyPath }))];
+  if (listed.length === 0) {
+    bad(['turbines'], 'the campaign needs a turbine: give `turbine` or a list `turbines`');
+    return [{ id: 'turbine', index: 0, position: [0, 0, 0], hubHeight_m: 100, rotorDiameter_m: 100, thrustCoefficient: 0.8 }];
+  }
+  const out: Turbine[] = [];
+  for (const [index, { t, where }] of listed.entries()) {
+    if (out.some((o) => o.id === t.id)) bad([...where, 'id'], 'turbine ids must be unique (a turbine is listed twice)', t.id);
+    for (const o of out) {
+      const dist = Math.hypot(t.position_m[0] - o.position[0], t.position_m[1] - o.position[1]);
+      const reach = (t.rotorDiameter_m + o.rotorDiameter_m) / 2;
+      if (dist < reach) {
+        bad([...where, 'position_m'], `rotors overlap with turbine "${o.id}": towers ${dist.toFixed(1)} m apart, less than the sum of the rotor radii ${reach.toFixed(1)} m`, t.position_m);
+      }
+    }
+    out.push({
+      id: t.id, index, position: [...t.position_m], hubHeight_m: t.hubHeight_m, rotorDiameter_m: t.rotorDiameter_m,
+      thrustCoefficient: t.thrustCoefficient as number | [number, number][],
+      series: t.series ? { file: abs(t.series.file), columns: t.series.columns } : undefined,
+    });
+  }
+  return out;
+}
+
+/** A plane's frame: a turbine's (origin at its tower base) or the site's (origin at the site origin). */
+function planeFrame(frame: string | undefined, heights: 'base' | 'terrain' | 'site', turbines: Turbine[], where: KeyPath, bad: Bad): { turbineIndex: number; origin: Vec3; heights: 'base' | 'terrain' | 'site' } {
+  if (frame === 'site') return { turbineIndex: -1, origin: [0, 0, 0], heights };
+  const t = frame === undefined ? turbines[0] : turbines.find((x) => x.id === frame);
+  if (!t) {
+    bad(where, `no turbine with this id (known: ${turbines.map((x) => x.id).join(', ')}, or "site")`, frame);
+    return { turbineIndex: 0, origin: [...turbines[0].position], heights };
+  }
+  return { turbineIndex: t.index, origin: [...t.position], heights };
+}
+
+/** The turbine whose series gives segment windows their state: windows.turbine, else the first with a series. */
+function segmentTurbine(c: Parsed, turbines: Turbine[], bad: Bad): Turbine | undefined {
+  const id = c.windows.kind === 'segments' ? c.windows.turbine : undefined;
+  if (id === undefined) return turbines.find((t) => t.series) ?? turbines[0];
+  const t = turbines.find((x) => x.id === id);
+  if (!t) bad(['windows', 'turbine'], `no turbine with this id (known: ${turbines.map((x) => x.id).join(', ')})`, id);
+  return t;
+}
+
+function resolveTerrainRef(t: NonNullable<Parsed['site']['terrain']>, abs: (p: string) => string, bad: Bad): TerrainRef {
+  const format = t.format ?? (/\.tiff?$/i.test(t.file) ? 'geotiff' : 'xyz');
+  if (t.crs !== undefined && t.crs !== 'site' && !/^EPSG:\d+$/i.test(t.crs)) bad(['site', 'terrain', 'crs'], 'must be "site" or "EPSG:<code>"', t.crs);
+  return { file: abs(t.file), format, crs: t.crs, columns: t.columns, heightOffset_m: t.heightOffset_m };
 }
 
 function throwAll(file: string, problems: ConfigError[]): void {

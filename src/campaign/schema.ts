@@ -141,6 +141,15 @@ const planeSchema = z
     xRange: extent.optional().describe('downstream extent of a horizontal plane, metres'),
     cell_m: z.tuple([finite().positive(), finite().positive()]).describe('cell size [along y, along z or x], metres'),
     thickness_m: finite().positive().default(20).describe('samples within +/- thickness/2 of the plane count, metres; default 20'),
+    frame: z
+      .string()
+      .min(1)
+      .optional()
+      .describe('whose frame the plane belongs to: a turbine id (origin at its tower base) or "site" (origin at the site origin); axes follow the wind either way; default: the first turbine'),
+    heights: z
+      .enum(['base', 'terrain', 'site'])
+      .default('base')
+      .describe('what z (and a horizontal plane\'s z_m) is measured from: "base" the frame origin (tower base; above ground on flat sites), "terrain" the ground under each point (terrain-following), "site" the site-frame up axis (altitude relative to the site origin); default base'),
   })
   .strict();
 
@@ -191,6 +200,7 @@ const windowSchema = z.union([
         .describe('keep rows whose wind direction lies clockwise from "from" to "to", degrees'),
       power_kw: z.object({ min: finite().optional(), max: finite().optional() }).strict().optional().describe('keep rows whose power lies in [min, max], kW'),
       subWindow_s: finite().positive().optional().describe('cut each span into windows of this length, s'),
+      turbine: z.string().min(1).optional().describe('id of the turbine whose series gives the state; default: the first turbine with a series'),
     })
     .strict()
     .describe('spans of steady turbine state from the turbine series'),
@@ -234,6 +244,50 @@ const thrustSchema = z.union([
   z.array(z.tuple([finite().min(0), finite().min(0).max(1.2)])).min(2).describe('curve of [wind speed m/s, Ct]'),
 ]);
 
+const terrainSchema = z
+  .object({
+    file: z.string().min(1).describe('terrain raster relative to the campaign file: a GeoTIFF (.tif, .tiff) or an XYZ grid (CSV with columns x, y, z on a regular grid)'),
+    format: z.enum(['geotiff', 'xyz']).optional().describe('file format; default: from the file name (.tif/.tiff GeoTIFF, otherwise XYZ)'),
+    crs: z
+      .string()
+      .min(1)
+      .optional()
+      .describe('coordinate system of the raster: "site" (east, north, up of the site frame), "EPSG:4326" (longitude, latitude) or "EPSG:326zz"/"EPSG:327zz" (UTM zone zz north/south); the latter need site.origin_wgs84. Default: the GeoTIFF\'s own keys; for XYZ "site"'),
+    columns: z.record(z.string(), z.string()).default({}).describe('XYZ grid: map of x, y, z to the file headers'),
+    heightOffset_m: finite().default(0).describe('added to every raster height (vertical datum shift), metres; default 0'),
+  })
+  .strict();
+
+export const powerSchema = z
+  .object({
+    reference: z.string().min(1).optional().describe('id of the reference turbine (unwaked, or the upstream one); default: the most upstream turbine for the mean wind direction'),
+    turbines: z.array(z.string().min(1)).optional().describe('ids of the downstream turbines to analyse; default: every turbine but the reference'),
+    directionEdges_deg: z.array(finite()).min(2).optional().describe('wind-direction bin edges, degrees, ascending; default: 10-degree bins spanning the windows'),
+    speedEdges_ms: z.array(finite()).min(2).optional().describe('wind-speed bin edges, m/s, ascending; default: 2 m/s bins spanning the windows'),
+    baselineTolerance_deg: finite().min(0).default(2).describe('a window counts as without yaw offset when its level (or mean yaw offset of the steered turbine) is within this of zero, degrees; default 2'),
+    minAvailability: finite().min(0).max(1).default(0.9).describe('a window counts for a turbine only when this share of its rows reports status available with power, 0..1; default 0.9'),
+    availableStatus: z.array(finite()).default([1]).describe('status values that mean available (status column of the turbine series); default [1]'),
+    maxGap_s: finite().positive().default(120).describe('power rows further apart than this inside a window flag the window (gap), s; default 120'),
+    minWindowsPerState: z.number().int().min(1).default(2).describe('windows needed in a bin with and without yaw offset for its gain to count; default 2'),
+    replicates: z.number().int().min(100).max(100000).default(2000).describe('bootstrap replicates; default 2000'),
+    confidence: finite().gt(0).lt(1).default(0.95).describe('confidence level of the bootstrap intervals; default 0.95'),
+    seed: z.number().int().default(1).describe('seed of the bootstrap resampling; default 1'),
+  })
+  .strict();
+
+const turbineSchema = z
+  .object({
+    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only').default('turbine'),
+    position_m: vec3.describe('tower base east, north, up in the site frame, metres'),
+    hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
+    rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),
+    thrustCoefficient: thrustSchema.default(0.8).describe('thrust coefficient, a value or a curve against wind speed; default 0.8'),
+    series: seriesFile
+      .optional()
+      .describe('turbine time series with columns time, yaw_deg (nacelle direction), optional wind_direction_deg, power_kw, wind_speed_ms (nacelle anemometer) and status'),
+  })
+  .strict();
+
 export const campaignSchema = z
   .object({
     name: z
@@ -250,22 +304,18 @@ export const campaignSchema = z
           .optional()
           .describe('WGS84 position of the site-frame origin; needed for instruments given in latitude/longitude'),
         groundLevel_m: finite().default(0).describe('ground height in the site frame (flat terrain), metres; default 0'),
+        terrain: terrainSchema.optional().describe('a terrain model (ground height under every sample and beam); default: flat ground at groundLevel_m'),
         earthCurvature: z.boolean().default(false).describe('correct beam heights for the Earth curvature (ranges of kilometres); default false'),
       })
       .strict()
       .default({ groundLevel_m: 0, earthCurvature: false }),
-    turbine: z
-      .object({
-        id: z.string().default('turbine'),
-        position_m: vec3.describe('tower base east, north, up, metres'),
-        hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
-        rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),
-        thrustCoefficient: thrustSchema.default(0.8).describe('thrust coefficient, a value or a curve against wind speed; default 0.8'),
-        series: seriesFile
-          .optional()
-          .describe('turbine time series with columns time, yaw_deg (nacelle direction), optional wind_direction_deg and power_kw'),
-      })
-      .strict(),
+    turbine: turbineSchema
+      .optional()
+      .describe('a single turbine (kept for campaigns with one); it becomes the first turbine of the list'),
+    turbines: z
+      .array(turbineSchema)
+      .optional()
+      .describe('the turbines in view (a row, a farm): each with its own position, size, thrust curve and series; listed after `turbine` when both are given'),
     instruments: z.array(instrumentSchema).min(1),
     planes: z.array(planeSchema).default([]).describe('measurement planes of the plane scanners (at least one when an instrument has role plane)'),
     qc: z
@@ -353,6 +403,9 @@ export const campaignSchema = z
       .record(z.string(), z.unknown())
       .optional()
       .describe('settings of the built-in simulator (demo scenarios only)'),
+    power: powerSchema
+      .optional()
+      .describe('power gain of wake steering from the turbines\' series (downstream power over a reference, with and without yaw offset); default: analysed when two or more turbines have power series'),
     plan: planSchema.optional().describe('campaign planner settings (trust maps, pointing tables, layout search); defaults apply when absent'),
   })
   .strict();

@@ -61,6 +61,15 @@ export interface PlaneSpec {
   /** Cell size [along y, along the second axis], metres. */
   cell_m: [number, number];
   thickness_m: number;
+  /**
+   * Index of the turbine whose frame the plane belongs to (campaign.turbines), or -1 for the site frame. Always set
+   * by the campaign loader; planes made in code without it belong to the first turbine.
+   */
+  turbineIndex?: number;
+  /** Origin of the plane's frame in the site frame, metres: the turbine's tower base, or [0, 0, 0] for the site frame. */
+  origin?: Vec3;
+  /** What heights are measured from: the frame origin (default), the terrain under each point, or the site-frame up axis. */
+  heights?: 'base' | 'terrain' | 'site';
 }
 
 export interface SeriesRef {
@@ -68,14 +77,40 @@ export interface SeriesRef {
   columns: Record<string, string>;
 }
 
-export type Campaign = Omit<CampaignParsed, 'instruments' | 'planes' | 'turbine' | 'windDirection' | 'inflow'> & {
+/** One turbine of the campaign, resolved: every key defaulted, its series path absolute. */
+export interface Turbine {
+  id: string;
+  /** Position in campaign.turbines. */
+  index: number;
+  /** Tower base in the site frame (east, north, up), metres. */
+  position: Vec3;
+  hubHeight_m: number;
+  rotorDiameter_m: number;
+  thrustCoefficient: number | [number, number][];
+  series?: SeriesRef;
+}
+
+/** The terrain model's file, resolved (campaign key site.terrain). */
+export interface TerrainRef {
+  file: string;
+  format: 'geotiff' | 'xyz';
+  crs?: string;
+  columns: Record<string, string>;
+  heightOffset_m: number;
+}
+
+export type Campaign = Omit<CampaignParsed, 'instruments' | 'planes' | 'turbine' | 'turbines' | 'windDirection' | 'inflow' | 'site'> & {
   /** Absolute path of the campaign file (or '<memory>'). */
   sourceFile: string;
   /** Folder the campaign file sits in; relative paths resolve against it. */
   baseDir: string;
   instruments: Instrument[];
   planes: PlaneSpec[];
-  turbine: Omit<CampaignParsed['turbine'], 'series' | 'position_m'> & { position: Vec3; series?: SeriesRef };
+  /** Every turbine, in campaign order (the single `turbine` key first). Look turbines up with campaign/turbines.ts. */
+  turbines: Turbine[];
+  /** The first turbine (campaign.turbines[0]): the frame of planes that name none. Prefer turbineOfPlane(). */
+  turbine: Turbine;
+  site: Omit<CampaignParsed['site'], 'terrain'> & { terrain?: TerrainRef };
   windDirection: { kind: 'fixed'; deg: number } | ({ kind: 'series' } & SeriesRef);
   inflow: CampaignParsed['inflow'] extends infer T ? (T extends { kind: 'series' } ? { kind: 'series' } & SeriesRef : T) : never;
 };

@@ -34,8 +34,11 @@ function packageRoot(): string {
 }
 const REPO_ROOT = packageRoot();
 export const DEMO_CAMPAIGN = join(REPO_ROOT, 'scenarios', 'quillmoor', 'campaign.yaml');
-/** Both demos: three scanners crossing in planes, and a site with profilers, nacelle instruments and a tracker. */
-export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'fernhollow', 'campaign.yaml')];
+/**
+ * The demos, in order: three scanners crossing in planes behind one turbine; a site with profilers, nacelle
+ * instruments and a tracker; a row of three turbines on rolling ground with their power series.
+ */
+export const DEMO_CAMPAIGNS = [DEMO_CAMPAIGN, join(REPO_ROOT, 'scenarios', 'fernhollow', 'campaign.yaml'), join(REPO_ROOT, 'scenarios', 'tarnwick', 'campaign.yaml')];
 
 interface Common {
   out?: string;
@@ -61,7 +64,8 @@ function say(quiet: boolean, text: string): void {
 }
 
 function dataMissing(c: Campaign): boolean {
-  return c.instruments.some((i) => i.files.some((f) => !existsSync(f)));
+  return c.instruments.some((i) => i.files.some((f) => !existsSync(f))) || (c.site.terrain !== undefined && !existsSync(c.site.terrain.file))
+    || c.turbines.some((t) => t.series !== undefined && !existsSync(t.series.file));
 }
 
 /** The output root: --out against the working directory, else the campaign's output.dir (already absolute). */
@@ -151,7 +155,8 @@ export function commands(y: Argv): Argv {
         const target = join(outRoot, c.name);
         const lines = [
           `campaign ${c.name}: ${pre.errors.length ? `${pre.errors.length} problem${pre.errors.length > 1 ? 's' : ''}: a run would stop (below)` : 'valid'}`,
-          `  turbine ${c.turbine.id}: rotor ${c.turbine.rotorDiameter_m} m, hub ${c.turbine.hubHeight_m} m at (${c.turbine.position.join(', ')})`,
+          ...c.turbines.map((t) => `  turbine ${t.id}: rotor ${t.rotorDiameter_m} m, hub ${t.hubHeight_m} m at (${t.position.join(', ')})${t.series ? ', series' : ''}`),
+          ...(c.site.terrain ? [`  terrain ${c.site.terrain.format} ${c.site.terrain.file}${c.site.terrain.crs ? ` (${c.site.terrain.crs})` : ''}`] : []),
           ...c.instruments.map((i) => `  instrument ${i.id} (${i.kind}${i.role === 'plane' ? '' : `, ${i.role}`}) ${i.beamFrame === 'nacelle' ? `on the nacelle, mount forward ${i.mount[0]} left ${i.mount[1]} up ${i.mount[2]} m, beams relative to the nacelle axis` : `at E ${i.position[0].toFixed(2)} N ${i.position[1].toFixed(2)} U ${i.position[2].toFixed(2)} m`}, ${i.files.length} file(s)${i.files.some((f) => !existsSync(f)) ? ' [missing]' : ''}`),
           ...c.planes.map((p) => `  plane ${p.id}: ${p.orientation === 'cross' ? `cross at x = ${p.x_m.toFixed(1)} m` : `horizontal at z = ${p.z_m.toFixed(1)} m`}, y ${p.y.min}..${p.y.max} m, cells ${p.cell_m.join(' x ')} m`),
           `  results: ${relative(process.cwd(), target) || target}${existsSync(target) ? ' (an earlier result there would be kept as .replaced-...)' : ''}`,

@@ -4,8 +4,11 @@
  * thickness holds it and whose grid contains it; its key is (cellOffset[plane] + cell) * instrumentCount +
  * instrument, and it is accumulated with its rotor-frame beam vector and its in-plane position (y, and z or x).
  *
- * Rotor frame of a window with wind direction D (from): x = downstream = -(sin D, cos D) in (east, north), y = to the
- * left looking downstream, z up; origin at the tower base (geometry/frames.ts states the same transform).
+ * Each plane has its own frame origin (geometry/site.ts): the tower base of its turbine, or the site origin; the
+ * axes turn with the window's wind direction D (from) for every plane alike: x = downstream = -(sin D, cos D) in
+ * (east, north), y = to the left looking downstream (geometry/frames.ts states the same transform). Heights z are
+ * measured per plane from the frame origin ("base"), from the ground under the sample ("terrain": terrain-following
+ * planes) or along the site-frame up axis ("site").
  */
 import { REJECT_INDEX } from '../qc/reasons.ts';
 import type { CellAccumulator } from './accumulator.ts';
@@ -18,6 +21,10 @@ export interface PlaneTargetSpec {
   level_m: number;
   thickness_m: number;
   grid: GridSpec;
+  /** Frame origin in the site frame, metres; default: the target's origin. */
+  origin?: readonly [number, number, number];
+  /** Heights from the frame origin (default), the ground under each sample, or the site-frame up axis. */
+  heights?: 'base' | 'terrain' | 'site';
 }
 
 export class PlaneTarget implements SampleTarget {
@@ -35,12 +42,17 @@ export class PlaneTarget implements SampleTarget {
   private readonly dz: Float64Array;
   private readonly ny: Int32Array;
   private readonly nz: Int32Array;
+  /** Per plane: frame origin east, north; the height base (origin up, or 0 for site heights); 1 for terrain heights. */
+  private readonly oE: Float64Array;
+  private readonly oN: Float64Array;
+  private readonly zBase: Float64Array;
+  private readonly onTerrain: Uint8Array;
 
   constructor(
     planes: PlaneTargetSpec[],
     private readonly instrumentCount: number,
-    /** Rotor-frame origin (tower base) in the site frame, metres. */
-    private readonly origin: readonly [number, number, number],
+    /** Rotor-frame origin (tower base) in the site frame of planes that give none, metres. */
+    origin: readonly [number, number, number],
   ) {
     this.P = planes.length;
     this.cross = Uint8Array.from(planes, (p) => (p.orientation === 'cross' ? 1 : 0));
@@ -55,15 +67,21 @@ export class PlaneTarget implements SampleTarget {
     this.dz = Float64Array.from(planes, (p) => p.grid.dz);
     this.ny = Int32Array.from(planes, (p) => p.grid.ny);
     this.nz = Int32Array.from(planes, (p) => p.grid.nz);
+    this.oE = Float64Array.from(planes, (p) => (p.origin ?? origin)[0]);
+    this.oN = Float64Array.from(planes, (p) => (p.origin ?? origin)[1]);
+    this.zBase = Float64Array.from(planes, (p) => (p.heights === 'site' ? 0 : (p.origin ?? origin)[2]));
+    this.onTerrain = Uint8Array.from(planes, (p) => (p.heights === 'terrain' ? 1 : 0));
     this.keyCount = this.off[planes.length] * instrumentCount;
   }
 
-  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number): boolean {
-    const de = pe - this.origin[0], dn = pn - this.origin[1];
-    const z = pu - this.origin[2];
-    const x = de * f.dE + dn * f.dN;
-    const y = -de * f.dN + dn * f.dE;
+  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, _t: number, ground: number): boolean {
+    // Rotor-frame coordinates about the site origin; each plane subtracts its own origin's.
+    const X = pe * f.dE + pn * f.dN;
+    const Y = -pe * f.dN + pn * f.dE;
     for (let p = 0; p < this.P; p++) {
+      const x = X - (this.oE[p] * f.dE + this.oN[p] * f.dN);
+      const y = Y - (-this.oE[p] * f.dN + this.oN[p] * f.dE);
+      const z = pu - (this.onTerrain[p] === 1 ? ground : this.zBase[p]);
       const cross = this.cross[p] === 1;
       const off = (cross ? x : z) - this.level[p];
       if (off > this.half[p] || off < -this.half[p]) continue;

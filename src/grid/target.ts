@@ -25,8 +25,9 @@ export interface SampleTarget {
   readonly outsideReason: number;
   /**
    * Add one accepted sample to `acc` when it lies in the target: instrument index, radial velocity (m/s, positive
-   * away), site-frame beam unit vector (ne, nn, nu) and measurement point (pe, pn, pu, metres), time (Unix s).
+   * away), site-frame beam unit vector (ne, nn, nu) and measurement point (pe, pn, pu, metres), time (Unix s),
+   * ground height under the point (site-frame up, metres; from the terrain model, geometry/terrain.ts).
    * Returns false when the sample lies outside the target.
    */
-  add(acc: CellAccumulator, frame: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t: number): boolean;
+  add(acc: CellAccumulator, frame: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t: number, ground: number): boolean;
 }

@@ -15,6 +15,8 @@ export interface Series {
   time: Float64Array;
   /** One array per requested column (NaN where an optional column is absent or a cell is empty). */
   values: Record<string, Float64Array>;
+  /** Line of each row in the file (1 = header), for messages naming a row; absent for series made in code. */
+  lines?: Int32Array;
 }
 
 export function splitCsvLine(line: string): string[] {
@@ -61,7 +63,7 @@ export function readSeries(
     if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"${has}`);
   }
   for (const name of optional) idx[name] = colOf(name);
-  const rows: { t: number; v: number[] }[] = [];
+  const rows: { t: number; v: number[]; line: number }[] = [];
   const names = [...required, ...optional];
   for (let i = 1; i < lines.length; i++) {
     const line = lines[i];
@@ -81,12 +83,12 @@ export function readSeries(
       if (!Number.isFinite(x)) throw new InputError(file, i + 1, `column ${excerpt(header[c], 40)}: not a number: ${excerpt(s)}`);
       return x;
     });
-    rows.push({ t, v });
+    rows.push({ t, v, line: i + 1 });
   }
   rows.sort((a, b) => a.t - b.t);
   const values: Record<string, Float64Array> = {};
   names.forEach((name, k) => (values[name] = Float64Array.from(rows, (r) => r.v[k])));
-  return { file, time: Float64Array.from(rows, (r) => r.t), values };
+  return { file, time: Float64Array.from(rows, (r) => r.t), values, lines: Int32Array.from(rows, (r) => r.line) };
 }
 
 /** Indices [lo, hi) of the rows with start <= time < end (time ascending). */

@@ -9,6 +9,7 @@
  * The ensemble's rotor frame: each window's beam vectors are in its own rotor frame, so the ensemble is a field
  * relative to the wind; its direction_deg is the circular mean of its windows' directions.
  */
+import { stateTurbine } from '../campaign/turbines.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { ConfigError, InputError } from '../errors.ts';
 import { circularMeanDeg, readSeries, rowsInWindow, type Series } from '../io/series.ts';
@@ -36,7 +37,7 @@ export function loadConditionSeries(c: Campaign): ConditionSeries {
     if (m) need[m[1] as keyof typeof need].add(m[2]);
     if (b.variable === 'turbulence_intensity') need.inflow.add('turbulence_intensity');
   }
-  const ref = { turbine: c.turbine.series, inflow: c.inflow.kind === 'series' ? c.inflow : undefined, direction: c.windDirection.kind === 'series' ? c.windDirection : undefined };
+  const ref = { turbine: stateTurbine(c).series, inflow: c.inflow.kind === 'series' ? c.inflow : undefined, direction: c.windDirection.kind === 'series' ? c.windDirection : undefined };
   for (const k of ['turbine', 'inflow', 'direction'] as const) {
     if (need[k].size === 0) continue;
     const r = ref[k];

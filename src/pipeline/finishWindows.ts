@@ -75,6 +75,8 @@ export class WindowFinisher {
       for (const a of f.assumptions) this.assumptions.set(a, [...(this.assumptions.get(a) ?? []), `${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`]);
     }
     this.times.write_fields += (performance.now() - tw) / 1000;
+    // The planes of this window together (the wake of one turbine may take its inflow from another plane).
+    this.stageCtx.shared.windowFields = fields;
     for (const stage of this.stages) {
       if (!stage.field) continue;
       const ts = performance.now();

@@ -17,8 +17,11 @@
  * (outside_windows); every window already finished (out_of_time_order); no wind direction for the window;
  * for instruments on the nacelle, no nacelle direction at the sample time (no_nacelle_direction) or a forward-looking
  * beam outside +/-90 degrees of the axis (wrong_beam_frame);
- * the measurement point lower than qc.groundClearance_m above ground (below_ground: ground or hard-target returns);
- * outside its target (planes: outside_planes; profilers, nacelle instruments, trackers: their own reasons). Samples without CNR (no column) pass the CNR rules.
+ * with a terrain model, the point outside it (outside_terrain); the measurement point lower than qc.groundClearance_m
+ * above the ground under it (below_ground: ground or hard-target returns); with a terrain model, the beam of a
+ * ground-based instrument passing below the ground on its way to the point (beam_blocked: a hill between instrument
+ * and point); outside its target (planes: outside_planes; profilers, nacelle instruments, trackers: their own
+ * reasons). Samples without CNR (no column) pass the CNR rules.
  * With overlapping windows a sample is added to every window containing it (in each window's own rotor frame) and
  * counted once: accepted when it fell in a plane in at least one of them.
  *
@@ -26,6 +29,11 @@
  * is origin + (range + rangeOffset) * n, or with site.earthCurvature the 4/3-Earth beam height and ground distance
  * (geometry/curvature.ts; the small tilt of the beam over the curved ground is neglected). Rotor-frame coordinates use
  * the window's wind direction (geometry/frames.ts).
+ *
+ * Ground: flat at site.groundLevel_m (one comparison per sample, as before terrain existed), or the terrain model's
+ * bilinear height under the point (geometry/terrain.ts). Blocked beams are found once per ray: the range up to which
+ * the current ray is known clear (and where it is blocked) is kept per instrument and extended by a march along the
+ * beam only when a sample lies beyond it, so rays with many gates cost one march.
  */
 import type { Campaign } from '../campaign/types.ts';
 import { calibrationMatrix } from '../geometry/beam.ts';
@@ -33,6 +41,7 @@ import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import type { SampleTarget } from '../grid/target.ts';
+import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { openSamples } from '../io/sampleSource.ts';
@@ -72,6 +81,8 @@ export interface IngestOptions {
   onWindow(w: OpenWindow): Promise<void>;
   onRejectedRows(rows: RejectedRow[]): void;
   onProgress?(file: string, rows: number): void;
+  /** Ground under the samples (io/terrainFile.ts loadTerrain); default flat at site.groundLevel_m. */
+  terrain?: Terrain;
   /** Suspicious-input inspector (qc/suspicion.ts): sees every chunk first; its mask drops duplicates. */
   suspicion?: SuspicionInspector;
 }
@@ -127,13 +138,21 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const posN = Float64Array.from(c.instruments, (i) => i.position[1]);
   const posU = Float64Array.from(c.instruments, (i) => i.position[2]);
   const rOff = Float64Array.from(c.instruments, (i) => i.calibration.rangeOffset_m);
+  const posVec = c.instruments.map((i) => Float64Array.from(i.position));
   // Last (azimuth, elevation) per instrument and its site-frame unit vector: scanning instruments repeat angles
   // for every range gate of a ray, so this cache turns most trigonometry into a comparison.
   const lastAz = new Float64Array(I).fill(NaN), lastEl = new Float64Array(I).fill(NaN);
   const nE = new Float64Array(I), nN = new Float64Array(I), nU = new Float64Array(I);
 
   const cnrMin = c.qc.cnr_db.min, cnrMax = c.qc.cnr_db.max, vLim = c.qc.radialVelocityLimit_ms;
-  const groundMin = c.site.groundLevel_m + c.qc.groundClearance_m;
+  const terrain = opts.terrain ?? flatTerrain(c.site.groundLevel_m);
+  const flat = terrain.flat;
+  const ground0 = flat ? terrain.level : NaN;
+  const clearance = c.qc.groundClearance_m;
+  const groundMin = ground0 + clearance;
+  // Per instrument, for the current ray: range known clear of the terrain, and the range where it is blocked.
+  const clearTo = new Float64Array(I), blockedAt = new Float64Array(I).fill(Infinity);
+  const marchStep = flat ? Infinity : terrain.spacing_m / 2;
   const curvature = c.site.earthCurvature;
   const targets = opts.targets;
   const targetOf = opts.targetOf;
@@ -266,6 +285,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
           nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
           nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
           lastAz[ins] = az; lastEl[ins] = el;
+          clearTo[ins] = 0; blockedAt[ins] = Infinity;
         }
         ne = nE[ins]; nn = nN[ins]; nu = nU[ins]; oe = posE[ins]; on = posN[ins]; ou = posU[ins];
       } else {
@@ -284,14 +304,30 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       } else {
         pe = oe + r * ne; pn = on + r * nn; pu = ou + r * nu;
       }
-      if (pu < groundMin) { counters.rejected[ins * NR + R.below_ground]++; continue; }
+      let gz = ground0;
+      if (flat) {
+        if (pu < groundMin) { counters.rejected[ins * NR + R.below_ground]++; continue; }
+      } else {
+        gz = terrain.heightAt(pe, pn);
+        if (gz !== gz) { counters.rejected[ins * NR + R.outside_terrain]++; continue; }
+        if (pu < gz + clearance) { counters.rejected[ins * NR + R.below_ground]++; continue; }
+        // Blocked beams of ground-based instruments (a nacelle instrument's beam moves with the nacelle: not cached).
+        if (onNacelle[ins] === 0 && r > clearTo[ins]) {
+          if (r >= blockedAt[ins]) { counters.rejected[ins * NR + R.beam_blocked]++; continue; }
+          if (blockedAt[ins] === Infinity) {
+            const at = firstBlockedRange(terrain, posVec[ins], ne, nn, nu, clearTo[ins], r, marchStep, curvature);
+            if (at <= r) { blockedAt[ins] = at; counters.rejected[ins * NR + R.beam_blocked]++; continue; }
+            clearTo[ins] = r;
+          }
+        }
+      }
       const tg = targetOf[ins];
       if (tg < 0) { counters.rejected[ins * NR + R.outside_planes]++; continue; }
       const target = targets[tg];
       let placedAny = false;
       for (let k = 0; k < nDirected; k++) {
         const w = live[k];
-        if (target.add(w.accs[tg], w, ins, vr, ne, nn, nu, pe, pn, pu, t)) placedAny = true;
+        if (target.add(w.accs[tg], w, ins, vr, ne, nn, nu, pe, pn, pu, t, gz)) placedAny = true;
       }
       if (placedAny) counters.accepted[ins]++;
       else counters.rejected[ins * NR + target.outsideReason]++;

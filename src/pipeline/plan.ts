@@ -7,6 +7,7 @@ import { relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { planCampaign, writePlanOutputs, type PlanSummary } from '../plan/index.ts';
 import type { OutputRecord } from '../records/manifest.ts';
+import { loadTerrain } from '../io/terrainFile.ts';
 
 const pc = (x: number) => `${(100 * x).toFixed(1)}%`;
 
@@ -36,7 +37,7 @@ export function formatPlanSummary(s: PlanSummary, where: string): string {
 }
 
 export async function planAndWrite(c: Campaign, runDir: string, opts: { images: boolean }): Promise<{ summary: string; outputs: OutputRecord[] }> {
-  const result = planCampaign(c);
+  const result = planCampaign(c, { terrain: await loadTerrain(c) });
   mkdirSync(runDir, { recursive: true });
   const outputs = await writePlanOutputs(result, c, runDir, opts);
   return { summary: formatPlanSummary(result.summary, relative(process.cwd(), runDir) || runDir), outputs };

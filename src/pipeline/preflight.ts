@@ -9,6 +9,8 @@
  *   series: no wake-steering rows).
  * It collects every problem instead of stopping at the first.
  */
+import { stateTurbine } from '../campaign/turbines.ts';
+import { loadTerrain } from '../io/terrainFile.ts';
 import { realpathSync, statSync } from 'node:fs';
 import { relative } from 'node:path';
 import { plausibilityWarnings } from '../campaign/plausibility.ts';
@@ -122,9 +124,18 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg']));
       if (directionSeries && directionSeries.time.length === 0) errors.push(new InputError(wd.file, undefined, 'the wind-direction series has no rows'));
     }
-    if (c.turbine.series) {
-      const ts = c.turbine.series;
-      series(() => readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']));
+    for (const t of c.turbines) {
+      const ts = t.series;
+      // The state turbine's series must give the yaw; the others may bring only their power.
+      const required = t === stateTurbine(c) ? ['yaw_deg'] : [];
+      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status']));
+    }
+    if (c.site.terrain) {
+      try {
+        await loadTerrain(c);
+      } catch (e) {
+        errors.push(e as Error);
+      }
     }
     if (c.inflow.kind === 'series') {
       const inf = c.inflow;
@@ -135,7 +146,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       errors.push(...found.errors);
       warnings.push(...found.warnings);
     }
-    if (!c.turbine.series) {
+    if (!stateTurbine(c).series) {
       warnings.push('no turbine series (turbine.series with yaw_deg): the yaw offset of each window is unknown, so wake/steering.csv has no rows');
     }
   }

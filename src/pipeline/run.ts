@@ -9,6 +9,8 @@
  * inspector (qc/suspicion.ts) watches the samples and adds its warnings, or stops the run for a file without a
  * usable row.
  */
+import { planeOrigin, stateTurbine } from '../campaign/turbines.ts';
+import { loadTerrain } from '../io/terrainFile.ts';
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
@@ -142,13 +144,15 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const dirSeries = pre.directionSeries;
   // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built now, so that
   // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
-  const turbineSeries = c.windows.kind === 'segments' && c.turbine.series
-    ? readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+  const stateSeries = stateTurbine(c).series;
+  const turbineSeries = c.windows.kind === 'segments' && stateSeries
+    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
     : undefined;
   const planInputs = { turbineSeries, directionSeries: dirSeries };
   const early: BuiltWindowPlan | undefined =
     c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
   const conditionSeries = loadConditionSeries(c);
+  const terrain = await loadTerrain(c);
   const digests = hashFiles(dataFiles.map((d) => d.file));
   const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
@@ -198,7 +202,10 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
     // The plane target takes the plane scanners' samples; profilers, nacelle instruments and trackers go to their own.
     const planeTarget = new PlaneTarget(
-      planes.map((p) => ({ orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid })),
+      planes.map((p) => ({
+        orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
+        origin: planeOrigin(c, p.spec), heights: p.spec.heights,
+      })),
       c.instruments.length, c.turbine.position,
     );
     const rt = runTargets(c, planeTarget);
@@ -217,6 +224,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     await ingest(
       {
         campaign: cRead,
+        terrain,
         suspicion: inspector,
         targets: rt.targets,
         targetOf: rt.targetOf,
@@ -242,6 +250,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       counters,
     );
     await finisher.end(manifest, notices);
+    // Stages that look at every window (the power gain) read the plan.
+    if (built) stageCtx.shared.windowPlan = built.plan;
     outputs.push(...finisher.outputs);
     if (built?.segments) manifest.segments = built.segments;
     if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');

@@ -8,6 +8,7 @@
  * 4. report: report.html listing every output recorded before it.
  * The image stack (sharp) and the planner load only when a run uses them, so a run without images starts faster.
  */
+import { stateTurbine } from '../campaign/turbines.ts';
 import { join } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { readSeries, type Series } from '../io/series.ts';
@@ -16,6 +17,11 @@ import type { ReportExtras } from '../render/report.ts';
 import { planeWindowContext, summariseWake, type WakeInputs } from '../wake/analyse.ts';
 import { analysePlaneWindow } from '../wake/planeWindow.ts';
 import { writeWakeOutputs } from '../wake/output.ts';
+import { analyseSiteField, type SiteWakeInputs } from '../wake/siteWakes.ts';
+import { summariseSiteWake, turbineWakesCsv } from '../wake/siteSummary.ts';
+import { powerStage } from './powerStage.ts';
+import type { PowerAnalysis } from '../power/analyse.ts';
+import { writeFileAtomic } from '../io/atomic.ts';
 import { FieldNetcdf } from './fieldNetcdf.ts';
 import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
@@ -33,10 +39,26 @@ export function loadWakeInputs(c: Campaign): WakeInputs {
   if (c.inflow.kind === 'series') {
     inputs.inflowSeries = readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']);
   }
-  if (c.turbine.series) {
-    inputs.turbineSeries = readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
+  const ts = stateTurbine(c).series;
+  if (ts) {
+    inputs.turbineSeries = readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
   }
   return inputs;
+}
+
+/** Several turbines: every turbine's wake row of a field (images mark each). */
+export function siteWakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePlaneWindow[]> {
+  return (shared.siteWakeRows ??= new WeakMap<FieldResult, WakePlaneWindow[]>()) as WeakMap<FieldResult, WakePlaneWindow[]>;
+}
+
+/** Each turbine's series, for its yaw offset and power in its wake rows. */
+function loadSiteWakeInputs(c: Campaign, inputs: WakeInputs): SiteWakeInputs {
+  const turbineSeries = new Map<string, Series>();
+  for (const t of c.turbines) {
+    // yaw_deg is optional here: a turbine may bring only its power (its rows then have no yaw offset).
+    if (t.series) turbineSeries.set(t.id, readSeries(t.series.file, t.series.columns, [], ['yaw_deg', 'wind_direction_deg', 'power_kw']));
+  }
+  return { inflowSeries: inputs.inflowSeries, turbineSeries };
 }
 
 /** Wake rows by field; weak, so a field and its row go once the window's stages are done. */
@@ -48,6 +70,7 @@ function wakeRows(shared: Record<string, unknown>): WeakMap<FieldResult, WakePla
 export function wakeStage(opts: { write?: boolean } = {}): RunStage {
   let inputs: WakeInputs | undefined;
   let ctxW: ReturnType<typeof planeWindowContext> | undefined;
+  let site: SiteWakeInputs | undefined;
   const rows: WakePlaneWindow[] = [];
   const ensembleRows: WakePlaneWindow[] = [];
   return {
@@ -57,16 +80,23 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
         inputs = loadWakeInputs(ctx.campaign);
         inputs.profileInflow = ctx.shared.profileInflow as WakeInputs['profileInflow'];
         ctxW = planeWindowContext(ctx.campaign, inputs);
+        if (ctx.campaign.turbines.length > 1) site = loadSiteWakeInputs(ctx.campaign, inputs);
       }
-      const row = analysePlaneWindow(f, ctxW!);
-      // Keep the row without its grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
+      // Several turbines: one row per turbine whose wake crosses the plane (wake/siteWakes.ts).
+      const made = site
+        ? analyseSiteField(f, ctx.campaign, site, (ctx.shared.windowFields as FieldResult[] | undefined) ?? [f])
+        : [analysePlaneWindow(f, ctxW!)];
+      // Keep the rows without their grid-sized arrays: the summaries need only the scalars and profiles. Ensembles
       // (condition bins) are reported on their own and stay out of the per-window summaries.
-      (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
-      wakeRows(ctx.shared).set(f, row);
+      for (const row of made) (f.window.kind === 'ensemble' ? ensembleRows : rows).push({ ...row, deficit: new Float64Array(0) });
+      // The row drawn with the field: its own turbine's (the only one with one turbine); several turbines add marks.
+      const own = site ? made.find((r) => r.planeId === f.planeId) : made[0];
+      if (own) wakeRows(ctx.shared).set(f, own);
+      if (site) siteWakeRows(ctx.shared).set(f, made);
       return [];
     },
     async finish(ctx) {
-      const a = summariseWake(rows, ctx.campaign, inputs ?? {});
+      const a = site ? summariseSiteWake(rows, ctx.campaign, inputs ?? {}) : summariseWake(rows, ctx.campaign, inputs ?? {});
       ctx.shared.wake = a;
       // Steering needs cross planes; a campaign with only horizontal planes (or none) has nothing to say there.
       if (a.steering.bins.length === 0 && ctx.campaign.turbine.series && ctx.campaign.planes.some((p) => p.orientation === 'cross')) {
@@ -75,6 +105,10 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
       ctx.shared.ensembleRows = ensembleRows;
       const out = opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir, ensembleRows);
       if (opts.write !== false && ctx.campaign.output.netcdf) out.push(...(await writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256)));
+      if (opts.write !== false && site) {
+        writeFileAtomic(join(ctx.runDir, 'wake', 'turbine_wakes.csv'), turbineWakesCsv(rows));
+        out.push({ kind: 'turbine-wakes', path: 'wake/turbine_wakes.csv', description: 'every turbine\'s wake per plane and window: inflow source, wakes reaching it, centre upstream of the turbines it wakes' });
+      }
       return out;
     },
   };
@@ -127,8 +161,8 @@ export function imageStage(opts: ImageStageOptions = {}): RunStage {
     async field(f, ctx) {
       if (!ctx.images) return [];
       const { FigureCollector } = await import('../render/runFigures.ts');
-      collector ??= new FigureCollector(figureSettings(ctx.campaign, opts).maxPanels);
-      collector.add(f, wakeRows(ctx.shared).get(f));
+      collector ??= new FigureCollector(figureSettings(ctx.campaign, opts).maxPanels, ctx.campaign);
+      collector.add(f, wakeRows(ctx.shared).get(f), siteWakeRows(ctx.shared).get(f));
       return [];
     },
     async finish(ctx) {
@@ -154,7 +188,8 @@ export function planStage(): RunStage {
     name: 'planner',
     async finish(ctx) {
       const { planCampaign, writePlanOutputs } = await import('../plan/index.ts');
-      const result = planCampaign(ctx.campaign);
+      const { loadTerrain } = await import('../io/terrainFile.ts');
+      const result = planCampaign(ctx.campaign, { terrain: await loadTerrain(ctx.campaign) });
       ctx.shared.plan = result.summary;
       return writePlanOutputs(result, ctx.campaign, ctx.runDir, { images: ctx.images });
     },
@@ -213,6 +248,8 @@ export function reportStage(): RunStage {
       if (plan) extras.planSummary = planExtras(plan);
       const geo = ctx.shared.geometryReport as ReportExtras['geometry'];
       if (geo?.length) extras.geometry = geo;
+      const power = ctx.shared.power as PowerAnalysis | undefined;
+      if (power) extras.wakeTables = [...(extras.wakeTables ?? []), ...(await import('../power/output.ts')).powerReportTables(power)];
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
     },
   };
@@ -242,7 +279,7 @@ export function netcdfStage(): RunStage {
 }
 
 export function defaultStages(opts: { plan?: boolean } & ImageStageOptions = {}): RunStage[] {
-  return [wakeStage(), netcdfStage(), geometryStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), netcdfStage(), geometryStage(), powerStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

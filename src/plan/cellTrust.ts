@@ -9,7 +9,7 @@
  * CW focus beyond the validity of the probe formula. A cell is trusted when all three components pass.
  *
  * Each cell gets one category, the first that applies in this order: trusted; fewer than two usable beams (named
- * after the hard limit that removed beams: ground, elevation, range, else too_few_instruments); parallel_beams;
+ * after the hard limit that removed beams: ground, terrain, rotor, elevation, range, else too_few_instruments); parallel_beams;
  * footprint; probe_model; amplification (u or v fails); w_not_resolved (u and v pass, w does not).
  *
  * Target components: what the layout is asked to resolve in a plane (components.ts): u, v and w in a cross plane
@@ -31,6 +31,8 @@ export const TrustCategory = {
   range: 7,
   elevation: 8,
   ground: 9,
+  terrain: 10,
+  rotor: 11,
 } as const;
 export const trustCategoryName: readonly string[] = Object.keys(TrustCategory);
 
@@ -47,6 +49,10 @@ export const CellReason = {
   amplificationW: 256,
   /** Fewer than three usable beams: w (and with fewer than two, u and v) cannot be resolved. */
   tooFewInstruments: 512,
+  /** Beams blocked by the terrain. */
+  terrain: 1024,
+  /** Beams through a rotor disk. */
+  rotor: 2048,
 } as const;
 
 export function cellReasonNames(bits: number): string[] {
@@ -114,6 +120,8 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     }
     t.usable[c] = k;
     let reasons = hard & (CellReason.ground | CellReason.elevation | CellReason.range); // same bit values as BeamFlag
+    if (hard & BeamFlag.terrain) reasons |= CellReason.terrain;
+    if (hard & BeamFlag.rotor) reasons |= CellReason.rotor;
     if (soft & BeamFlag.footprint) reasons |= CellReason.footprint;
     if (soft & BeamFlag.probeModel) reasons |= CellReason.probeModel;
     let okU = false, okV = false, okW = false;
@@ -155,7 +163,8 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     let cat: number;
     if (target) cat = TrustCategory.trusted;
     else if (k < 2 || (k === 2 && s.twoInstrumentAssumption === 'none'))
-      cat = hard & BeamFlag.ground ? TrustCategory.ground : hard & BeamFlag.elevation ? TrustCategory.elevation : hard & BeamFlag.range ? TrustCategory.range : TrustCategory.too_few_instruments;
+      cat = hard & BeamFlag.ground ? TrustCategory.ground : hard & BeamFlag.terrain ? TrustCategory.terrain : hard & BeamFlag.rotor ? TrustCategory.rotor
+        : hard & BeamFlag.elevation ? TrustCategory.elevation : hard & BeamFlag.range ? TrustCategory.range : TrustCategory.too_few_instruments;
     else if (reasons & CellReason.parallelBeams) cat = TrustCategory.parallel_beams;
     else if (reasons & CellReason.footprint) cat = TrustCategory.footprint;
     else if (reasons & CellReason.probeModel) cat = TrustCategory.probe_model;

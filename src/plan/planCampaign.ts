@@ -4,6 +4,8 @@
  */
 import type { Campaign } from '../campaign/types.ts';
 import { rotorFrame, type RotorFrame } from '../geometry/frames.ts';
+import { planeOrigin, turbineOfPlane } from '../campaign/turbines.ts';
+import type { Vec3 } from '../campaign/types.ts';
 import { poolFractions, trustCategoryName, type Fractions } from './cellTrust.ts';
 import { searchLayouts, type LayoutSearchResult } from './layoutSearch.ts';
 import { planeGeometry } from './planeGeometry.ts';
@@ -67,8 +69,25 @@ export interface PlanResult {
 export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanResult {
   const s = resolvePlanSettings(campaign, opts);
   const frame = rotorFrame(s.direction_deg, campaign.turbine.position);
-  const { hubHeight_m, rotorDiameter_m } = campaign.turbine;
-  const geoms = campaign.planes.map((p) => planeGeometry(p, frame, hubHeight_m, rotorDiameter_m));
+  // Every turbine's rotor disk is an obstacle of the beams; the terrain too.
+  s.obstacles = {
+    terrain: opts.terrain,
+    rotors: campaign.turbines.map((t) => ({ id: t.id, hub: [t.position[0], t.position[1], t.position[2] + t.hubHeight_m] as Vec3, radius_m: t.rotorDiameter_m / 2 })),
+  };
+  // Each plane in its own frame (its turbine's or the site's), heights from its own reference.
+  const geoms = campaign.planes.map((p) => {
+    const t = turbineOfPlane(campaign, p);
+    const origin = planeOrigin(campaign, p);
+    const hubZ = p.heights === 'terrain' ? t.hubHeight_m : p.heights === 'site' ? t.position[2] + t.hubHeight_m : t.position[2] - origin[2] + t.hubHeight_m;
+    const g = planeGeometry(p, rotorFrame(s.direction_deg, origin), hubZ, t.rotorDiameter_m);
+    if (p.heights === 'terrain' || p.heights === 'site') {
+      for (let i = 0; i < g.site.length / 3; i++) {
+        const z = g.rotor[3 * i + 2];
+        g.site[3 * i + 2] = p.heights === 'site' ? z : (opts.terrain ? opts.terrain.heightAt(g.site[3 * i], g.site[3 * i + 1]) : campaign.site.groundLevel_m) + z;
+      }
+    }
+    return g;
+  });
   // Only plane scanners serve the planes; the other roles have their own figures below.
   const scanners = campaign.instruments.filter((i) => i.role === 'plane');
   const positions = scanners.map((i) => i.position);
@@ -81,7 +100,8 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
   const geometries = planSingleInstruments(campaign, s.direction_deg);
 
   const notes = [
-    'straight beams in the flat site frame (no Earth curvature, no terrain)',
+    opts.terrain && !opts.terrain.flat ? 'straight beams over the terrain model (no Earth curvature); beams below the ground flagged terrain' : 'straight beams in the flat site frame (no Earth curvature, no terrain)',
+    `beams through the rotor disk of any of the ${campaign.turbines.length} turbine(s) (facing the planned wind) flagged rotor`,
     `rotor frame from wind direction ${s.direction_deg.toFixed(2)}\u00b0 (${s.directionSource === 'fixed' ? 'campaign windDirection' : 'vector mean of plan.directions_deg'})`,
   ];
   if (campaign.site.earthCurvature) notes.push('site.earthCurvature is true but the planner does not apply it: check long beams');

@@ -6,6 +6,8 @@ import type { Campaign } from '../campaign/types.ts';
 import { ConfigError, OptionError } from '../errors.ts';
 import { DEG } from '../geometry/beam.ts';
 import { planSchema, type PlanSettingsParsed } from './schema.ts';
+import type { Terrain } from '../geometry/terrain.ts';
+import type { BeamObstacles } from './beamCells.ts';
 
 /** Options of planCampaign; each overrides the key of the same name in the campaign's `plan` section. */
 export interface PlanOptions {
@@ -21,6 +23,8 @@ export interface PlanOptions {
   top?: number;
   /** Compute pointing tables. @default true */
   pointing?: boolean;
+  /** Ground under the beams and planes (io/terrainFile.ts loadTerrain). @default flat at site.groundLevel_m */
+  terrain?: Terrain;
 }
 
 export interface PlanSettings extends PlanSettingsParsed {
@@ -38,6 +42,8 @@ export interface PlanSettings extends PlanSettingsParsed {
   groundClearance_m: number;
   /** Copied from the campaign: site.groundLevel_m, metres. */
   groundLevel_m: number;
+  /** Terrain and rotor disks in the way of the beams (planCampaign fills it from the campaign and its terrain). */
+  obstacles?: BeamObstacles;
 }
 
 /** Vector mean of directions (degrees, in [0, 360)); NaN when they cancel. */

@@ -10,6 +10,8 @@ export const REJECT_REASONS = [
   'missing_value',
   // quality control
   'low_cnr', 'hard_target_cnr', 'radial_velocity_limit', 'below_ground', 'out_of_time_order', 'no_wind_direction',
+  // terrain: the beam passed below the ground before the point; the point lies outside the terrain model
+  'beam_blocked', 'outside_terrain',
   // time: outside every window (gaps between listed windows, turbine-state transitions)
   'outside_windows',
   // geometry

@@ -4,6 +4,8 @@
  * assumed, and the wake's centre, width and track. A run keeps one of these per panel of its multi-panel figures
  * (single precision), never the field itself; a PanelField may stand for a window or for a condition bin.
  */
+import type { Campaign } from '../campaign/types.ts';
+import { siteTracks } from './turbineMarks.ts';
 import type { GridSpec } from '../grid/grid.ts';
 import { MaskReason, type FieldResult } from '../retrieval/types.ts';
 import { deficitField } from '../wake/deficit.ts';
@@ -53,7 +55,7 @@ export interface PanelField {
  * The panel of one field with its wake row (if any). The row's deficit is used when present; a row kept without
  * it (the wake stage drops the grid-sized arrays) is completed from its inflow profile.
  */
-export function panelField(f: FieldResult, wake: WakePlaneWindow | undefined): PanelField {
+export function panelField(f: FieldResult, wake: WakePlaneWindow | undefined, site?: { campaign: Pick<Campaign, 'planes' | 'turbines'>; rows: readonly WakePlaneWindow[] }): PanelField {
   const n = f.grid.ny * f.grid.nz;
   let deficit: ArrayLike<number> | undefined;
   if (wake && wake.inflow.ok) deficit = wake.deficit.length === n ? wake.deficit : deficitField(f, wake.inflow).deficit;
@@ -84,6 +86,9 @@ export function panelField(f: FieldResult, wake: WakePlaneWindow | undefined): P
     if (wake.diskCentre.ok) p.diskCentre = { y: wake.diskCentre.y_m, z: wake.diskCentre.z_m };
   }
   if (wake?.horizontalTrack) p.track = { x: [...wake.horizontalTrack.x_m], yc: [...wake.horizontalTrack.yc_m] };
+  // Several turbines: every turbine's wake track, in the plane's coordinates (render/turbineMarks.ts).
+  const plane = site?.campaign.planes[f.planeIndex];
+  if (site && plane && f.orientation === 'horizontal' && site.rows.length) p.track = siteTracks(site.campaign, plane, f.direction_deg, site.rows);
   return p;
 }
 

@@ -6,7 +6,8 @@
  * `planeWindowFigures` builds the SVG texts (pure); the run's figure stage queues them for parallel rendering.
  * Given the run's scales, colour ranges and arrows are those shared by every figure of the run.
  */
-import type { Campaign } from '../campaign/types.ts';
+import type { Campaign, PlaneSpec } from '../campaign/types.ts';
+import { siteTurbineMarks } from './turbineMarks.ts';
 import { withValues, type GridSpec } from '../grid/grid.ts';
 import type { OutputRecord } from '../records/manifest.ts';
 import { MaskReason, maskReasonName, type FieldResult } from '../retrieval/types.ts';
@@ -45,7 +46,9 @@ export function fieldTag(field: FieldResult): { plane: string; window?: number; 
 export const RESULT_MASK_NAMES: Record<number, string> = { ...maskReasonName, [NO_INFLOW_CODE]: 'no inflow reference' };
 
 /** The turbine of a horizontal plane, seen from above at the rotor-frame origin. */
-export function turbineMarks(campaign: Campaign): TurbineMark[] {
+export function turbineMarks(campaign: Campaign, plane?: PlaneSpec, direction_deg = NaN): TurbineMark[] {
+  // Several turbines: every one of them, where it stands in this plane's frame (render/turbineMarks.ts).
+  if (plane && campaign.turbines.length > 1 && Number.isFinite(direction_deg)) return siteTurbineMarks(campaign, plane, direction_deg);
   return [{ y: 0, x: 0, diameter_m: campaign.turbine.rotorDiameter_m, label: `turbine ${campaign.turbine.id}` }];
 }
 
@@ -61,7 +64,7 @@ function baseOptions(field: FieldResult, campaign: Campaign, view: View | undefi
   const cross = field.orientation === 'cross';
   return {
     axes: { yLabel: labels.yLabel, zLabel: labels.zLabel, diameter_m: D, note: labels.note, ...(labels.zLabelD ? { zLabelD: labels.zLabelD } : {}) },
-    ...(cross ? { rotor: { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } } : { turbines: turbineMarks(campaign) }),
+    ...(cross ? { rotor: { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } } : { turbines: turbineMarks(campaign, campaign.planes[field.planeIndex], field.direction_deg) }),
     ...(view ? { view } : {}),
   };
 }

@@ -56,12 +56,13 @@ class Thinned<T> {
 export class FigureCollector {
   readonly scales = new ScaleCollector();
   private readonly planes = new Map<string, Thinned<PanelField>>();
-  constructor(private readonly maxPanels: number) {}
+  /** `campaign`: needed with several turbines, to place every turbine's wake track in the plane. */
+  constructor(private readonly maxPanels: number, private readonly campaign?: Campaign) {}
 
-  add(f: FieldResult, wake?: WakePlaneWindow): void {
+  add(f: FieldResult, wake?: WakePlaneWindow, siteRows?: readonly WakePlaneWindow[]): void {
     const key = panelKey(f.planeId, f.window.kind === 'ensemble');
     let p: PanelField | undefined;
-    const panel = () => (p ??= panelField(f, wake));
+    const panel = () => (p ??= panelField(f, wake, siteRows && this.campaign ? { campaign: this.campaign, rows: siteRows } : undefined));
     const q = panel();
     if (q.normalised) this.scales.add('u_norm', q.values);
     this.scales.add('u_ms', f.u);
@@ -178,7 +179,7 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
     ...(limits ? { domain: limits } : {}),
     ...(cross ? { arrowScale: scales.arrows } : {}),
     axes: { yLabel: labels.yLabel, zLabel: labels.zLabel },
-    ...(cross ? { rotor: { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } } : { turbines: turbineMarks(campaign) }),
+    ...(cross ? { rotor: { y: 0, z: campaign.turbine.hubHeight_m, radius: D / 2 } } : { turbines: turbineMarks(campaign, plane, first.direction_deg) }),
     ...(cross ? {} : { view: horizontalView(gridSpecOf(plane), shown.map((p) => p.hasData), campaign) }),
     maskNames: RESULT_MASK_NAMES,
     notes,

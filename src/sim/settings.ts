@@ -32,6 +32,25 @@ export const simSettingsSchema = z
     shearChange: finite().default(0).describe('the shear exponent changes by this per window (cycled +, 0, -), for nacelle-instrument checks; default 0'),
     turbineSeriesGap_s: z.tuple([finite().min(0), finite().positive()]).optional().describe('leave a gap in the turbine series: [start after the record start, length], s (bad-input tests)'),
     hardTargetRaysPerScan: z.number().int().min(0).default(2).describe('rays per scan aimed slightly below the horizon'),
+    yawOffsetsByTurbine_deg: z
+      .record(z.string(), z.array(finite()).min(1))
+      .default({})
+      .describe('several turbines: yaw offset per state (cycled) of each listed turbine id; the first turbine defaults to yawOffsets_deg, the others to 0'),
+    speedWander: finite().min(0).default(0.03).describe('relative standard deviation of the per-state free-stream speed'),
+    powerCoefficient: finite().positive().max(0.593).default(0.45).describe('power coefficient of the simulated turbines below rated'),
+    ratedPower_kw: finite().positive().default(3600).describe('rated power of the simulated turbines, kW'),
+    outageMinutes: z.number().int().min(0).default(0).describe('minutes of status 0 (unavailable) written at random into each turbine series'),
+    terrain: z
+      .object({
+        amplitude_m: finite().min(0).default(12).describe('height of the rolling hills, metres'),
+        wavelength_m: finite().positive().default(1500).describe('east-west wavelength of the hills, metres'),
+        base_m: finite().default(0).describe('mean ground height in the site frame, metres'),
+        spacing_m: finite().positive().default(20).describe('raster spacing written, metres'),
+        extent_m: z.tuple([finite(), finite(), finite(), finite()]).describe('site-frame extent written: east min, east max, north min, north max, metres'),
+      })
+      .strict()
+      .optional()
+      .describe('invented rolling terrain: h = base + A sin(2 pi e / L) cos(2 pi n / (1.7 L)); written to site.terrain.file'),
   })
   .strict();
 

@@ -26,6 +26,9 @@ import { parseSimSettings, type SimSettings } from './settings.ts';
 import { mulberry32, gaussian } from '../math/random.ts';
 import { pulsedWeight } from '../geometry/probe.ts';
 import { thrustCoefficientAt } from '../campaign/thrust.ts';
+import { planeOrigin } from '../campaign/turbines.ts';
+import { siteTruth, siteVelocity, type GroundFn, type SiteState, type SiteTurbineTruth } from './siteFlow.ts';
+import { writeSiteSeries, writeTerrainRaster, writeSiteTruth } from './siteOutputs.ts';
 import type { Vec3 } from '../campaign/types.ts';
 import type { Series } from '../io/series.ts';
 import { inclinometerSeries, scanSingleInstrument, turbineSeriesOf, writeGeometryTruth } from './singleInstrument.ts';
@@ -43,6 +46,21 @@ interface WindowTruth {
   direction_deg: number;
   yaw_deg: number;
   params: WakeTruthParams;
+  /** Several turbines or terrain: the state of the site and each turbine's wake and power. */
+  site?: { state: SiteState; turbines: SiteTurbineTruth[] };
+}
+
+/** The invented terrain of the simulation (flat at site.groundLevel_m without simulation.terrain). */
+export function simGround(c: Campaign, s: SimSettings): GroundFn {
+  const t = s.terrain;
+  if (!t || !c.site.terrain) return () => c.site.groundLevel_m;
+  const k = (2 * Math.PI) / t.wavelength_m, k2 = k / 1.7;
+  return (e, n) => t.base_m + t.amplitude_m * Math.sin(k * e) * Math.cos(k2 * n);
+}
+
+/** True when the simulation needs the site model (several turbines or terrain) rather than one turbine's frame. */
+function usesSiteModel(c: Campaign): boolean {
+  return c.turbines.length > 1 || c.site.terrain !== undefined;
 }
 
 /** Duration of one simulated state (direction, speed, yaw offset), s: simulation.step_s or the fixed window length. */
@@ -60,11 +78,25 @@ export function windowTruths(c: Campaign, s: SimSettings): WindowTruth[] {
   const first = t0;
   const rnd = mulberry32(s.seed ^ 0x5eed);
   const out: WindowTruth[] = [];
+  const site = usesSiteModel(c);
+  const ground = simGround(c, s);
   for (let w = 0; w < s.windows; w++) {
     const direction = (s.directionMean_deg + s.directionWander_deg * gaussian(rnd) + 360) % 360;
     const yaw = s.yawOffsets_deg[w % s.yawOffsets_deg.length];
+    const hubSpeed = s.hubSpeed_ms * (1 + s.speedWander * gaussian(rnd));
+    if (site) {
+      const yaws = c.turbines.map((t, k) => {
+        const list = s.yawOffsetsByTurbine_deg[t.id] ?? (k === 0 ? s.yawOffsets_deg : [0]);
+        return list[w % list.length];
+      });
+      const state: SiteState = { direction_deg: direction, hubSpeed_ms: hubSpeed, refHeight_m: c.turbine.hubHeight_m, shearExponent: s.shearExponent, yaw_deg: yaws };
+      const turbines = siteTruth(c.turbines, state, ground, { kStar: s.wakeGrowth_kstar, aspect: s.wakeAspect, lateralOffset: s.wakeLateralOffset_m, swirl: s.swirl_ms },
+        { cp: s.powerCoefficient, ratedPower_kw: s.ratedPower_kw, rho: 1.225 });
+      out.push({ index: Math.floor(first / L) + w, start_s: first + w * L, direction_deg: direction, yaw_deg: yaws[0], params: turbines[0].params, site: { state, turbines } });
+      continue;
+    }
     const params: WakeTruthParams = {
-      hubSpeed: s.hubSpeed_ms * (1 + 0.03 * gaussian(rnd)),
+      hubSpeed,
       hubHeight: c.turbine.hubHeight_m,
       diameter: c.turbine.rotorDiameter_m,
       shearExponent: s.shearExponent + s.shearChange * [1, 0, -1][w % 3],
@@ -116,19 +148,25 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
   const files: string[] = [];
   const rows: Record<string, number> = {};
 
+  const ground = simGround(c, s);
+  const site = usesSiteModel(c);
   // Scan points: cell centres of every plane, serpentine, in the site frame of the planned (mean) direction.
-  const plannedFrame = rotorFrame(s.directionMean_deg, c.turbine.position);
   const points: [number, number, number][] = [];
   for (const plane of c.planes) {
+    const plannedFrame = rotorFrame(s.directionMean_deg, planeOrigin(c, plane));
     const g = gridSpecOf(plane);
     for (let iz = 0; iz < g.nz; iz++)
       for (let k = 0; k < g.ny; k++) {
         const iy = iz % 2 === 0 ? k : g.ny - 1 - k;
         const y = g.y0 + iy * g.dy, second = g.z0 + iz * g.dz;
         const q = plane.orientation === 'cross' ? [plane.x_m, y, second] : [second, y, plane.z_m];
-        points.push(fromRotor(plannedFrame, q));
+        const p = fromRotor(plannedFrame, q);
+        if (plane.heights === 'terrain') p[2] = ground(p[0], p[1]) + q[2];
+        else if (plane.heights === 'site') p[2] = q[2];
+        points.push(p);
       }
   }
+  if (c.site.terrain && s.terrain) await writeTerrainRaster(c, s, ground);
 
   // The turbine series (and inclinometer series) are made first: instruments on the nacelle turn with it.
   const turbineSeries = c.turbine.series ? turbineSeriesOf(c, s, truths, L) : undefined;
@@ -173,12 +211,21 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     const measureRay = (time: number, az: number, el: number, ranges: number[], nSite: Vec3 = calibratedUnitVector(R, az, el), origin: Vec3 = ins.position, cnrRef_m = 250) => {
       const wt = windowAt(time);
       const frame = rotorFrame(wt.direction_deg, c.turbine.position);
+      const velocity = (pk: ArrayLike<number>) => {
+        if (wt.site) {
+          siteVelocity(wt.site.state, wt.site.turbines, pk, ground, u);
+          return u;
+        }
+        const q = toRotor(frame, pk);
+        trueVelocity(wt.params, q[0], q[1], q[2], u);
+        return dirFromRotor(frame, u);
+      };
       const lowAerosol = rnd() < 0.015;
       for (const rTrue of ranges) {
         if (rTrue <= 20) continue;
         const p = beamPoint(origin, nSite, rTrue);
         let vr: number, cnr: number;
-        if (p[2] < c.site.groundLevel_m) {
+        if (p[2] < ground(p[0], p[1])) {
           // Ground returns: usually strong (caught by the CNR ceiling), at grazing incidence sometimes not.
           cnr = rnd() < 0.3 ? -4 + 6 * rnd() : 12 + 2 * gaussian(rnd);
           vr = 0.05 * gaussian(rnd);
@@ -186,9 +233,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
           let acc = 0;
           for (let k = 0; k < wOff.length; k++) {
             const pk = beamPoint(origin, nSite, rTrue + wOff[k]);
-            const q = toRotor(frame, pk);
-            trueVelocity(wt.params, q[0], q[1], q[2], u);
-            const us = dirFromRotor(frame, u);
+            const us = velocity(pk);
             acc += wts[k] * (nSite[0] * us[0] + nSite[1] * us[1] + nSite[2] * us[2]);
           }
           const turb = s.turbulence_ms * gaussian(rnd);
@@ -258,12 +303,13 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     writeFileAtomic(c.windDirection.file, lines.join('\n') + '\n');
     files.push(c.windDirection.file);
   }
-  if (c.turbine.series && turbineSeries) {
+  if (!site && c.turbine.series && turbineSeries) {
     const lines = ['time,yaw_deg,power_kw'];
     for (let i = 0; i < turbineSeries.time.length; i++) lines.push(`${isoTime(turbineSeries.time[i])},${fmt(turbineSeries.values.yaw_deg[i], 2)},${fmt(turbineSeries.values.power_kw[i], 1)}`);
     writeFileAtomic(c.turbine.series.file, lines.join('\n') + '\n');
     files.push(c.turbine.series.file);
   }
+  if (site) files.push(...writeSiteSeries(c, s, truths, L, rnd));
   for (const ins of c.instruments) {
     const o = orientationSeries.get(ins.id);
     if (!o || !ins.orientationSeries) continue;
@@ -278,6 +324,10 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
   // Truth: window-mean field at every cell centre, and the wake parameters per plane and window.
   const truthDir = join(c.baseDir, 'truth');
   mkdirSync(truthDir, { recursive: true });
+  if (site) {
+    writeSiteTruth(c, s, truths.map((t) => ({ start_s: t.start_s, end_s: t.start_s + L, ...t.site! })), truthDir);
+    return { files, rows, windows: truths.length, truthDir };
+  }
   const field = openAtomicStream(join(truthDir, 'field_truth.csv'));
   field.write(csvRow(['plane', 'window_start', 'y_m', 'z_m', 'u', 'v', 'w']));
   const wakeRows: unknown[] = [];

@@ -15,3 +15,20 @@ declare module 'geodesy/latlon-ellipsoidal.js' {
     toCartesian(): Cartesian;
   }
 }
+
+declare module 'geodesy/utm.js' {
+  export class LatLon {
+    constructor(lat: number, lon: number, height?: number);
+    lat: number;
+    lon: number;
+    toUtm(zoneOverride?: number): Utm;
+  }
+  export default class Utm {
+    constructor(zone: number, hemisphere: 'N' | 'S', easting: number, northing: number);
+    zone: number;
+    hemisphere: 'N' | 'S';
+    easting: number;
+    northing: number;
+    toLatLon(): LatLon;
+  }
+}

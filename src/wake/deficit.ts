@@ -21,7 +21,11 @@ export function cellHeight(f: FieldResult, iz: number): number {
   return f.orientation === 'cross' ? f.grid.z0 + iz * f.grid.dz : f.z_m;
 }
 
-export function deficitField(f: FieldResult, inflow: InflowProfile): DeficitField {
+/**
+ * With `uIn` (one inflow speed per cell, m/s: the flow measured upstream of the turbine, wake/siteWakes.ts) the
+ * deficit is 1 - u / uIn cell by cell instead of against the profile law.
+ */
+export function deficitField(f: FieldResult, inflow: InflowProfile, uIn?: Float64Array): DeficitField {
   const { ny, nz } = f.grid;
   const n = ny * nz;
   const deficit = new Float64Array(n).fill(NaN), sdeficit = new Float64Array(n).fill(NaN), uInf = new Float64Array(n).fill(NaN);
@@ -30,7 +34,7 @@ export function deficitField(f: FieldResult, inflow: InflowProfile): DeficitFiel
     for (let iy = 0; iy < ny; iy++) {
       const k = iy + iz * ny;
       const zm = f.orientation === 'cross' ? f.zEff?.[k] : NaN;
-      const ui = Number.isFinite(zm) ? inflowAt(inflow, zm!) : uc;
+      const ui = uIn ? uIn[k] : Number.isFinite(zm) ? inflowAt(inflow, zm!) : uc;
       uInf[k] = ui;
       const u = f.u[k];
       if (!Number.isFinite(u) || !(ui > 0)) continue;

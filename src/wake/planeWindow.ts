@@ -43,12 +43,25 @@ export interface PlaneWindowContext {
   /** Inflow kind profile: the profiling instrument's inflow of a field's window (undefined when it has none). */
   profileInflow?: (f: FieldResult) => InflowProfile | undefined;
   options: WakeOptions;
+  /**
+   * The inflow measured upstream of the turbine (several turbines, wake/siteWakes.ts): one speed per cell of the
+   * field, m/s, and where it came from. When given it replaces the inflow law: deficit = 1 - u / uIn per cell.
+   */
+  upstream?: { uIn: Float64Array; hubSpeed_ms: number; from: string };
 }
 
 const NO_CENTRE = (method: CentreEstimate['method']): CentreEstimate => ({ method, y_m: NaN, z_m: NaN, sy_m: NaN, sz_m: NaN, ok: false });
 
 function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse | null): InflowProfile {
   const H = c.hubHeight_m, D = c.rotorDiameter_m;
+  if (c.upstream) {
+    const ok = Number.isFinite(c.upstream.hubSpeed_ms) && c.upstream.hubSpeed_ms > 0;
+    return {
+      source: 'upstream', law: 'power', zRef_m: H, uRef_ms: NaN, alpha: NaN, uStar_ms: NaN, z0_m: NaN, hubSpeed_ms: c.upstream.hubSpeed_ms,
+      heights_m: [], speeds_ms: [], counts: [], rmse_ms: NaN, r2: NaN, direction_deg: NaN, ok,
+      note: ok ? `measured upstream of the turbine: ${c.upstream.from}` : `no valid cells upstream of the turbine (${c.upstream.from})`,
+    };
+  }
   if (c.inflow.kind === 'fixed') return inflowFixed(c.inflow, H);
   if (c.inflow.kind === 'profile') {
     const p = c.profileInflow?.(f);
@@ -95,7 +108,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   const D = c.rotorDiameter_m, H = c.hubHeight_m, R = D / 2, o = c.options, g = f.grid;
   const yaw = c.turbineSeries ? windowYaw(...pooled(c.turbineSeries, f), f.direction_deg) : windowYaw(undefined, f.window.start_s, f.window.end_s, f.direction_deg);
   let inflow = inflowFor(f, c, null);
-  let def = deficitField(f, inflow);
+  let def = deficitField(f, inflow, c.upstream?.uIn);
   const validU = countFinite(f.u);
   const yMin = g.y0 - g.dy / 2, yMax = g.y0 + (g.ny - 0.5) * g.dy, zMin = g.z0 - g.dz / 2, zMax = g.z0 + (g.nz - 0.5) * g.dz;
   let flag: WakeFlag = 'ok', reason = '';
@@ -135,7 +148,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     fit = fitDeficit();
     const p = fit.params;
     const sane = fit.converged && p.sigmaY_m > 0 && p.sigmaZ_m > 0 && p.yc_m > yMin && p.yc_m < yMax && p.zc_m > zMin && p.zc_m < zMax;
-    if (c.inflow.kind === 'plane' && sane) {
+    if (c.inflow.kind === 'plane' && sane && !c.upstream) {
       // Second pass: exclude the fitted wake ellipse instead of a fixed band around the axis, so a deflected or
       // wide wake does not leak into the inflow; refit from the first solution.
       const second = inflowFor(f, c, { yc: p.yc_m, zc: p.zc_m, sy: p.sigmaY_m, sz: p.sigmaZ_m });

@@ -10,7 +10,7 @@ import type { GridSpec } from '../grid/grid.ts';
 import type { WindowInfo } from '../retrieval/types.ts';
 
 /** Where the undisturbed inflow profile came from. */
-export type InflowSource = 'series' | 'plane' | 'fixed' | 'profile';
+export type InflowSource = 'series' | 'plane' | 'fixed' | 'profile' | 'upstream';
 /** Vertical profile law: power V = V_ref (z/z_ref)^alpha, or log V = (u_star / kappa) ln(z/z0) with kappa = 0.40. */
 export type InflowLaw = 'power' | 'log';
 
@@ -180,6 +180,15 @@ export interface WakePlaneWindow {
   flag: WakeFlag;
   /** Human-readable reason ('' when ok). */
   reason: string;
+  /**
+   * Several turbines (wake/siteWakes.ts): the turbine whose wake this row analyses, in its own rotor frame (x, y, z
+   * from its tower base); the turbines whose wakes reach its rotor (nearest first); where its inflow came from; and
+   * the measured wake centre just upstream of each turbine it wakes (its rotor frame, metres).
+   */
+  turbineId?: string;
+  wakedBy?: string[];
+  inflowFrom?: string;
+  centreAtTurbines?: { turbineId: string; x_m: number; yc_m: number; syc_m: number }[];
 }
 
 /** Mean and spread over windows of one quantity. */

@@ -3,10 +3,12 @@ import type { Table } from '../dictionary.ts';
 import { fieldTable } from './fields.ts';
 import { layoutsTable, planCellsTable, pointingTable } from './plan.ts';
 import { rejectedRowsTable } from './run.ts';
+import { powerGainTable, turbineWakesTable, windowPowerTable } from './sites.ts';
 import { downstreamTable, ensembleTable, profilesTable, steeringTable, trackTable, wakeTable } from './wake.ts';
 
+export { powerGainTable, turbineWakesTable, windowPowerTable };
 export { ensembleTable, fieldTable, layoutsTable, planCellsTable, pointingTable, rejectedRowsTable, downstreamTable, profilesTable, steeringTable, trackTable, wakeTable };
 
 export const TABLES: readonly Table[] = [
-  fieldTable, wakeTable, ensembleTable, steeringTable, downstreamTable, profilesTable, trackTable, rejectedRowsTable, planCellsTable, pointingTable, layoutsTable,
+  fieldTable, wakeTable, ensembleTable, steeringTable, downstreamTable, profilesTable, trackTable, turbineWakesTable, powerGainTable, windowPowerTable, rejectedRowsTable, planCellsTable, pointingTable, layoutsTable,
 ];

@@ -1,0 +1,125 @@
+/**
+ * The power question of wake steering for a campaign: for each downstream turbine and each yaw-offset level, the gain
+ * of its energy ratio to a reference turbine between windows with and without yaw offset (gain.ts), per wind-direction
+ * and wind-speed bin and combined, with bootstrap intervals, the windows behind each number and the measured wake
+ * deflection at the turbine. Pure: the stage (pipeline/powerStage.ts) loads the series and hands the windows in.
+ *
+ * Window state: a segment window's state level (windows/segments.ts); any other window's mean yaw offset of the
+ * turbine whose series gives the state (campaign/turbines.ts stateTurbine). Within baselineTolerance_deg of 0 it is a
+ * baseline window; otherwise a steered window of its level (other windows: their mean yaw offset rounded to the
+ * nearest multiple of levelStep_deg, the campaign's wake.yawBin_deg).
+ * Wind direction of a window: the campaign's direction source (windows/direction.ts). Wind speed: the reference
+ * turbine's nacelle wind speed (wind_speed_ms) when its series has one, else the window's measured hub-height inflow
+ * speed (the wake analysis); windows without either are left out.
+ */
+import type { Series } from '../io/series.ts';
+import { powerGain, type GainEdges, type GainResult, type GainWindow } from './gain.ts';
+import { windowPower, type WindowPower, type WindowPowerSettings } from './windowPower.ts';
+import type { BootstrapSettings } from './bootstrap.ts';
+
+export interface PowerWindow {
+  /** Window ordinal (the plan's id or the run's ordinal). */
+  id: number;
+  start_s: number;
+  end_s: number;
+  direction_deg: number;
+  /** Segment level (degrees) or NaN. */
+  level_deg: number;
+  /** Mean yaw offset of the state turbine in the window (degrees) or NaN. */
+  yawOffset_deg: number;
+  /** Measured hub-height inflow speed of the window, m/s (NaN when none). */
+  inflowSpeed_ms: number;
+  /** Measured wake centre at each turbine (by id), rotor frame of the turbine waking it, metres. */
+  centreAt: Record<string, number>;
+}
+
+export interface PowerTurbine {
+  id: string;
+  series: Series;
+}
+
+export interface PowerSettings extends WindowPowerSettings, BootstrapSettings {
+  baselineTolerance_deg: number;
+  /** Other than segment windows: steered windows are grouped by their mean yaw offset rounded to this, degrees. */
+  levelStep_deg: number;
+  /** Windows each state needs in a bin for its gain. @default 2 */
+  minWindowsPerState?: number;
+  /** Bin edges; computed from the windows when absent (10 degrees, 2 m/s). */
+  directionEdges_deg?: number[];
+  speedEdges_ms?: number[];
+}
+
+export interface PowerGainResult {
+  turbine: string;
+  reference: string;
+  /** Yaw-offset level of the steered windows, degrees (NaN: every steered window of non-segment plans). */
+  level_deg: number;
+  result: GainResult;
+}
+
+export interface PowerAnalysis {
+  reference: string;
+  edges: GainEdges;
+  windows: { window: PowerWindow; state: 'baseline' | 'steered' | 'unknown'; level_deg: number; speed_ms: number; perTurbine: Record<string, WindowPower> }[];
+  gains: PowerGainResult[];
+  assumptions: string[];
+  notes: string[];
+}
+
+function autoEdges(values: number[], width: number, circular: boolean): number[] {
+  const v = values.filter(Number.isFinite);
+  if (!v.length) return [0, width];
+  let lo = Math.min(...v), hi = Math.max(...v);
+  if (circular && hi - lo > 180) { const w = v.map((x) => (x > 180 ? x - 360 : x)); lo = Math.min(...w); hi = Math.max(...w); }
+  const a = Math.floor(lo / width) * width, b = (Math.floor(hi / width) + 1) * width;
+  const out: number[] = [];
+  for (let e = a; e <= b + 1e-9; e += width) out.push(e);
+  return out;
+}
+
+export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], reference: string, downstream: string[], s: PowerSettings): PowerAnalysis {
+  const ref = turbines.find((t) => t.id === reference)!;
+  const rows = windows.map((w) => {
+    const perTurbine: Record<string, WindowPower> = {};
+    for (const t of turbines) perTurbine[t.id] = windowPower(t.series, w.start_s, w.end_s, s);
+    const lvl = Number.isFinite(w.level_deg) ? w.level_deg : w.yawOffset_deg;
+    const state: 'baseline' | 'steered' | 'unknown' = !Number.isFinite(lvl) ? 'unknown' : Math.abs(lvl) <= s.baselineTolerance_deg ? 'baseline' : 'steered';
+    const nacelle = perTurbine[ref.id].windSpeed_ms;
+    const speed = Number.isFinite(nacelle) ? nacelle : w.inflowSpeed_ms;
+    // Segment windows carry their level; other windows take their mean yaw offset to the nearest multiple of levelStep_deg.
+    const level = Number.isFinite(w.level_deg) ? w.level_deg : state === 'steered' ? Math.round(lvl / s.levelStep_deg) * s.levelStep_deg : NaN;
+    return { window: w, state, level_deg: level, speed_ms: speed, perTurbine };
+  });
+  const edges: GainEdges = {
+    direction_deg: s.directionEdges_deg ?? autoEdges(rows.map((r) => r.window.direction_deg), 10, true),
+    speed_ms: s.speedEdges_ms ?? autoEdges(rows.map((r) => r.speed_ms), 2, false),
+  };
+  const levels = [...new Set(rows.filter((r) => r.state === 'steered').map((r) => r.level_deg))].sort((a, b) => a - b);
+  const gains: PowerGainResult[] = [];
+  for (const d of downstream) {
+    for (const L of levels) {
+      const list: GainWindow[] = [];
+      for (const r of rows) {
+        if (r.state === 'unknown') continue;
+        if (r.state === 'steered' && !(r.level_deg === L || (Number.isNaN(L) && Number.isNaN(r.level_deg)))) continue;
+        const pd = r.perTurbine[d], pr = r.perTurbine[ref.id];
+        if (pd.flag !== 'ok' || pr.flag !== 'ok') continue;
+        list.push({ window: r.window.id, direction_deg: r.window.direction_deg, speed_ms: r.speed_ms, steered: r.state === 'steered', power_kw: pd.power_kw, reference_kw: pr.power_kw, centre_m: r.window.centreAt[d] ?? NaN });
+      }
+      gains.push({ turbine: d, reference: ref.id, level_deg: L, result: powerGain(list, edges, s, s.minWindowsPerState ?? 2) });
+    }
+  }
+  const flagged = rows.reduce((n, r) => n + Object.values(r.perTurbine).filter((p) => p.flag !== 'ok').length, 0);
+  const assumptions = [
+    'power gain: the flow is stationary within each wind-direction and wind-speed bin (windows with and without yaw offset differ only by the yaw offset)',
+    reference === '' ? '' : `power gain: the reference turbine ${ref.id} is unaffected by the yaw offsets${downstream.length && levels.length ? ' (if it is itself yawed, its own loss under yaw raises every ratio: read the gains as gains relative to it)' : ''}`,
+    `power gain: only windows in which both turbines were available (status ${s.availableStatus.join('/')}, at least ${(100 * s.minAvailability).toFixed(0)} % of the rows with power, no gap over ${s.maxGap_s} s, no negative power) enter`,
+  ].filter(Boolean);
+  const notes = [
+    `bootstrap: ${s.replicates} replicates, percentile intervals at ${(100 * s.confidence).toFixed(0)} %, seed ${s.seed} (Efron & Tibshirani 1993)`,
+    `${flagged} turbine-windows flagged and left out (power/window_power.csv names file and line)`,
+  ];
+  if (!levels.length) notes.push('no window with a yaw offset: no gain to compute');
+  if (!rows.some((r) => r.state === 'baseline')) notes.push('no window without yaw offset: no baseline');
+  return { reference: ref.id, edges, windows: rows, gains, assumptions, notes };
+}
