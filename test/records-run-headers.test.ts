@@ -25,11 +25,10 @@ const safe = (id: string) => id.replace(/[^A-Za-z0-9_.-]/g, '_');
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 /** Every file under `dir` whose name ends in .csv, relative to `dir` with forward slashes. */
-function csvFiles(dir: string): string[] {
-  return readdirSync(dir, { recursive: true, withFileTypes: true })
-    .filter((e) => e.isFile() && e.name.endsWith('.csv'))
-    .map((e) => relative(dir, join(e.parentPath, e.name)).split('\\').join('/'))
-    .sort();
+function csvFiles(dir: string, root = dir): string[] {
+  return readdirSync(dir, { withFileTypes: true }).flatMap((e) =>
+    e.isDirectory() ? csvFiles(join(dir, e.name), root) : e.isFile() && e.name.endsWith('.csv') ? [relative(root, join(dir, e.name)).split('\\').join('/')] : [],
+  ).sort();
 }
 
 /** The declared tables whose path patterns match `rel`: <instrument> and <plane> stand for the campaign's ids. */
