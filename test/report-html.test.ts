@@ -1,7 +1,12 @@
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import type { OutputRecord } from '../src/pipeline/manifest.ts';
+import { reportStage } from '../src/pipeline/stages.ts';
+import type { EnsembleRecord } from '../src/records/manifest.ts';
 import { CAUTIONS, reportHtml } from '../src/render/report.ts';
-import { wakeReportTables } from '../src/render/reportTables.ts';
+import { ensembleReportTable, wakeReportTables } from '../src/render/reportTables.ts';
 import { EVIL, fixtureAnalysis, fixtureCampaign, fixtureField, fixtureManifest, fixtureWake } from './render-fixture.ts';
 
 const campaign = fixtureCampaign();
@@ -159,4 +164,63 @@ describe('report HTML (pure)', () => {
     expect(track.rows.length).toBe(6);
     expect(track.link).toBe('wake/track.csv');
   });
+
+  describe('condition bins (ensembles)', () => {
+    // Three yaw-offset bins: 0 pools windows 0 and 3, 1 received none, 2 pools window 1. One ensemble row per plane
+    // and non-empty bin, given out of order as the stages may finish them.
+    const bins: EnsembleRecord[] = [
+      { bin: 0, label: 'yaw_offset_deg in [-20, -5)', windows: [0, 3], empty: false },
+      { bin: 1, label: 'yaw_offset_deg in [-5, 5)', windows: [], empty: true },
+      { bin: 2, label: 'yaw_offset_deg in [5, 20)', windows: [1], empty: false },
+    ];
+    const ensembleRow = (plane: number, bin: number) => {
+      const f = fixtureField(campaign.planes[plane], bin);
+      f.window = { ...f.window, kind: 'ensemble', label: bins[bin].label, members: bins[bin].windows.map((w) => [w * 600, w * 600 + 600] as [number, number]) };
+      return fixtureWake(f);
+    };
+    const rows = [ensembleRow(1, 2), ensembleRow(0, 2), ensembleRow(1, 0), ensembleRow(0, 0)];
+
+    it('groups the rows by bin (label and windows pooled on the first row), planes in order, empty bins listed', () => {
+      const t = ensembleReportTable(rows, bins, 'wake/ensembles.csv')!;
+      expect(t.title).toBe('Condition bins (ensembles)');
+      const col = (name: string) => t.columns.indexOf(name);
+      expect(t.rows.map((r) => [r[0], r[1], r[2], r[3]])).toEqual([
+        [0, 'yaw_offset_deg in [-20, -5)', 2, 'P5D'], [null, '', null, 'H90'],
+        [1, 'yaw_offset_deg in [-5, 5)', 0, ''],
+        [2, 'yaw_offset_deg in [5, 20)', 1, 'P5D'], [null, '', null, 'H90'],
+      ]);
+      // The fixture's cross-plane fit: y_c = 15 m (s.e. 0.2), sigma_y = 35 m (s.e. 0.2); yaw offset 8 deg; flag ok.
+      // Exact values: the table passes the fit's numbers through, rounding happens when the page is written.
+      expect(t.rows[0][col('y_{c} (m) ± s.e.')]).toEqual({ value: 15, uncertainty: 0.2 });
+      expect(t.rows[0][col('σ_{y} (m) ± s.e.')]).toEqual({ value: 35, uncertainty: 0.2 });
+      expect(t.rows[0][col('γ, yaw offset (°)')]).toBe(8);
+      expect(t.rows[0][col('flag')]).toBe('ok');
+      expect(t.rows[1][col('flag')]).toBe('horizontal_plane'); // no 2-D fit on a horizontal plane: centre empty
+      expect(t.rows[1][col('y_{c} (m) ± s.e.')]).toBeNaN();
+      expect(t.rows[2][col('flag')]).toBe('empty');
+      expect(t.rows[2][col('reason')]).toBe('no window fell in this bin');
+      expect(t.note).toContain('1 of 3 bins received no window');
+      expect(t.link).toBe('wake/ensembles.csv');
+      // No ensemble rows (no conditions, or no planes): no table.
+      expect(ensembleReportTable([], bins)).toBeUndefined();
+    });
+
+    it('the report stage shows the table after the per-window rows, with the empty bin, linked to wake/ensembles.csv', async () => {
+      const runDir = mkdtempSync(join(tmpdir(), 'wakeplane-report-'));
+      const manifest = fixtureManifest(campaign, [...outputs, { kind: 'ensemble-table', path: 'wake/ensembles.csv', description: 'per plane and bin' }], { ensembles: bins });
+      const shared = { wake: fixtureAnalysis([fixtureWake(fixtureField(campaign.planes[0], 0))]), ensembleRows: rows };
+      await reportStage().finish!({ campaign, runDir, images: true, manifest, shared });
+      const html = readFileSync(join(runDir, 'report.html'), 'utf8');
+      const wake = /<section id="wake">([\s\S]*?)<\/section>/.exec(html)![1];
+      const titles = [...wake.matchAll(/<h3>([^<]*)<\/h3>/g)].map((m) => m[1]);
+      expect(titles.slice(0, 2)).toEqual(['Per plane and window', 'Condition bins (ensembles)']);
+      const bySection = wake.slice(wake.indexOf('Condition bins (ensembles)'));
+      expect(bySection).toContain('<div class="scroll" data-rows="5">');
+      expect(bodyText(bySection)).toMatch(/1\s+yaw_offset_deg in \[-5, 5\)\s+0\s+–\s+empty/);
+      // 15 m with a standard error of 0.2 m: two significant digits of the uncertainty (GUM 7.2.6, from memory).
+      expect(bySection).toContain('<td class="num">15.00\u00a0\u00b1\u00a00.20</td>');
+      expect(bySection).toContain('<a href="wake/ensembles.csv">wake/ensembles.csv</a>');
+    });
+  });
 });
+

@@ -234,7 +234,7 @@ export function reportStage(): RunStage {
     async finish(ctx) {
       if (!ctx.images) return [];
       const { writeReport } = await import('../render/report.ts');
-      const { wakeReportTables } = await import('../render/reportTables.ts');
+      const { wakeReportTables, ensembleReportTable } = await import('../render/reportTables.ts');
       const a = ctx.shared.wake as WakeAnalysis | undefined;
       const plan = ctx.shared.plan as PlanSummary | undefined;
       const extras: ReportExtras = {};
@@ -244,6 +244,9 @@ export function reportStage(): RunStage {
         extras.wakeTables = wakeReportTables(a, {
           rows: has('wake/wake_table.csv'), downstream: has('wake/downstream.csv'), steering: has('wake/steering.csv'), tracks: has('wake/track.csv'),
         });
+        // Condition bins right after the per-window rows.
+        const bins = ensembleReportTable((ctx.shared.ensembleRows as WakePlaneWindow[] | undefined) ?? [], ctx.manifest.ensembles, has('wake/ensembles.csv'));
+        if (bins) extras.wakeTables.splice(1, 0, bins);
       }
       if (plan) extras.planSummary = planExtras(plan);
       const geo = ctx.shared.geometryReport as ReportExtras['geometry'];

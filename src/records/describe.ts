@@ -26,8 +26,11 @@ function headerOf(c: Column): string {
   return c.perInstrument ? `<id>_${header(c)}` : header(c);
 }
 
+/** The table's path patterns, each in backquotes. */
+const paths = (t: Table) => [t.path, ...(t.also ?? [])].map((p) => `\`${p}\``).join(', ');
+
 function tableMarkdown(t: Table): string {
-  const lines = [`### \`${t.path}\``, '', `One row: ${t.row}.`, '', '| column | unit | frame | precision | meaning |', '|---|---|---|---|---|'];
+  const lines = [`### ${paths(t)}`, '', `One row: ${t.row}.`, '', '| column | unit | frame | precision | meaning |', '|---|---|---|---|---|'];
   for (const c of t.columns) {
     const only = c.only ? ` (${c.only} planes only)` : '';
     const sn = c.standardName ? ` CF standard name \`${c.standardName}\`.` : '';
@@ -61,7 +64,7 @@ export function dictionaryJson(): string {
   const j = {
     precisionRule: PRECISION_RULE,
     tables: TABLES.map((t) => ({
-      id: t.id, path: t.path, row: t.row,
+      id: t.id, path: t.path, also: t.also ?? [], row: t.row,
       columns: t.columns.map((c) => ({
         header: headerOf(c), name: c.name, unit: UNITS[c.unit].text, cfUnits: UNITS[c.unit].cf ?? null, frame: c.frame,
         meaning: c.meaning, precision: precisionText(c.precision), standardName: c.standardName ?? null, only: c.only ?? null,
@@ -74,5 +77,5 @@ export function dictionaryJson(): string {
 
 /** The README's compact list: each file with its headers. */
 export function readmeColumns(): string {
-  return TABLES.map((t) => `- \`${t.path}\`: ${t.columns.map((c) => `\`${headerOf(c)}\`${c.only ? ` (${c.only})` : ''}`).join(', ')}`).join('\n');
+  return TABLES.map((t) => `- ${paths(t)}: ${t.columns.map((c) => `\`${headerOf(c)}\`${c.only ? ` (${c.only})` : ''}`).join(', ')}`).join('\n');
 }

@@ -33,6 +33,8 @@ export interface Table {
   id: string;
   /** Path pattern under the run folder. */
   path: string;
+  /** Other path patterns written with the same columns (condition-bin files). */
+  also?: string[];
   /** What one row is. */
   row: string;
   columns: Column[];

@@ -1,10 +1,11 @@
 /**
  * Report tables made from a wake analysis: one row per plane and window, the downstream summary, the yaw-offset
- * bins, and the wake track of horizontal planes. Numbers are in SI units, lengths also in rotor diameters where the
+ * bins, the wake track of horizontal planes, and the condition bins (ensembles). Numbers are in SI units, lengths also in rotor diameters where the
  * column says so. A value with a known uncertainty is shown as "value ± uncertainty", both rounded to the
  * uncertainty (numbers.ts); the column heading says which uncertainty (standard error, or 95 % interval).
  */
-import type { Stat, WakeAnalysis } from '../wake/types.ts';
+import type { EnsembleRecord } from '../records/manifest.ts';
+import type { Stat, WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import { fixed, withUncertainty } from './numbers.ts';
 import type { ReportCell, ReportTable } from './report.ts';
 
@@ -69,4 +70,47 @@ export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downst
     });
   }
   return tables;
+}
+
+/**
+ * The condition bins (ensembles): for each bin in the manifest's order, its label and the number of windows pooled,
+ * then one row per plane (wake centre and widths of the 2-D Gaussian fit with standard errors, deficits, the mean yaw
+ * offset of the pooled windows, flag). The bin's number, label and windows are written on its first row only, so the
+ * rows read as groups. A bin that received no window is listed with "empty". Undefined when no plane has an ensemble
+ * row (no conditions, or no planes: profilers' bins have their own files).
+ * @param bins manifest.ensembles (every bin, empty ones included); without it, the bins of the rows
+ * @param link path of wake/ensembles.csv relative to the run folder, if written
+ */
+export function ensembleReportTable(rows: readonly WakePlaneWindow[], bins: readonly EnsembleRecord[] | undefined, link?: string): ReportTable | undefined {
+  if (!rows.length) return undefined;
+  const list: EnsembleRecord[] = bins?.length
+    ? [...bins]
+    : [...new Map(rows.map((r) => [r.window.index, { bin: r.window.index, label: r.window.label ?? '', windows: [], empty: false } as EnsembleRecord])).values()].sort((a, b) => a.bin - b.bin);
+  const out: ReportCell[][] = [];
+  for (const b of list) {
+    const mine = rows.filter((r) => r.window.index === b.bin).sort((p, q) => p.planeIndex - q.planeIndex);
+    const pooled = b.windows.length || (mine[0]?.window.members?.length ?? 0);
+    if (b.empty || !mine.length) {
+      out.push([b.bin, b.label, pooled, '', NaN, 'empty', NaN, NaN, NaN, NaN, NaN, NaN, NaN, b.empty ? 'no window fell in this bin' : 'no plane result']);
+      continue;
+    }
+    mine.forEach((r, k) => {
+      const fit = r.centre.ok && r.gaussian ? r.gaussian : undefined;
+      const p = fit?.params, e = fit?.stderr;
+      out.push([
+        k === 0 ? b.bin : null, k === 0 ? b.label || (r.window.label ?? '') : '', k === 0 ? pooled : null, r.planeId, r.x_D, r.flag, r.yawOffset_deg,
+        p ? pm(p.yc_m, e!.yc_m) : NaN, p ? pm(p.zc_m, e!.zc_m) : NaN, p ? pm(p.sigmaY_m, e!.sigmaY_m) : NaN, p ? pm(p.sigmaZ_m, e!.sigmaZ_m) : NaN,
+        r.maxDeficit, r.centreDeficit, r.reason,
+      ]);
+    });
+  }
+  const empty = list.filter((b) => b.empty).length;
+  return {
+    title: 'Condition bins (ensembles)',
+    columns: ['bin', 'condition', 'windows pooled', 'plane', 'x/D', 'flag', 'γ, yaw offset (°)', 'y_{c} (m) ± s.e.', 'z_{c} (m) ± s.e.', 'σ_{y} (m) ± s.e.', 'σ_{z} (m) ± s.e.', 'max deficit', 'centre deficit', 'reason'],
+    decimals: [0, undefined, 0, undefined, 2, undefined, 1, undefined, undefined, undefined, undefined, 3, 3],
+    rows: out,
+    note: `The windows of a bin are pooled before the retrieval (their kept-sample statistics merged, never their fields averaged) and the ensemble field analysed like a window; the yaw offset is the mean over the pooled windows. ${empty ? `${empty} of ${list.length} bins received no window.` : `Every bin received at least one window.`}`,
+    ...(link ? { link } : {}),
+  };
 }

@@ -10,6 +10,7 @@ export const MASK_MEANING =
 export const fieldTable: Table = {
   id: 'field-table',
   path: 'fields/<plane>_w<window>_<start>.csv',
+  also: ['fields/<plane>_bin<bin>.csv'],
   row: 'one cell of one plane in one averaging window',
   columns: [
     col('plane', 'text', TEXT, 'plane id (campaign planes[].id)'),
