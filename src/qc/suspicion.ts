@@ -21,9 +21,9 @@
  * - Duplicates: a row repeating an earlier row of the same instrument (from any of its files) in time, azimuth,
  *   elevation and range (ranges equal within RANGE_EPS_M). Rays are kept, not rows: a ray (time, azimuth,
  *   elevation) holds its ranges as an arithmetic sequence (first, step, count) or, when irregular, as a list, so the
- *   history costs about a hundred bytes per ray. History reaches back `horizon_s` (two generations of rays; a
- *   duplicate further back in time than that is found as a step back in time instead); with windows other than
- *   fixed ones it reaches back over the whole record. With qc.dropDuplicates the repeats are dropped (reason 'duplicate'),
+ *   history costs about 60 bytes per ray in typed arrays, and a ray later than every kept ray is appended without a
+ *   search (RayHistory). History reaches back `horizon_s` (at most MAX_RAYS_KEPT rays per instrument, so memory stays
+ *   bounded; a duplicate further back than that is found as a step back in time instead). With qc.dropDuplicates the repeats are dropped (reason 'duplicate'),
  *   else kept and reported.
  * - Files without usable rows: an error (the run stops, no result), naming the file and what its lines were.
  * - At the end, per instrument: no sample read at all; an accepted share that collapsed against the other
@@ -54,9 +54,9 @@ export interface SuspicionSettings {
   show?: (file: string) => string;
 }
 
-/** The settings of a campaign: qc keys, and a horizon of two window lengths (the whole record for other kinds). */
+/** The settings of a campaign: qc keys, and a horizon of two window lengths (1200 s for other window kinds). */
 export function suspicionSettings(c: Campaign, show?: (file: string) => string): SuspicionSettings {
-  const horizon = c.windows.kind === 'fixed' ? Math.max(2 * c.windows.length_s, 600) : Infinity;
+  const horizon = c.windows.kind === 'fixed' ? Math.max(2 * c.windows.length_s, 600) : 1200;
   return { dropDuplicates: c.qc.dropDuplicates, timeOrderTolerance_s: c.qc.timeOrderTolerance_s, horizon_s: horizon, show };
 }
 
@@ -72,84 +72,182 @@ export function batchEndTime(b: SampleBatch): number {
   return t;
 }
 
-/** A ray: time and angles, and its range gates as first + k * step (k < n) or an explicit list. */
-interface Ray {
-  t: number;
-  az: number;
-  el: number;
-  r0: number;
-  dr: number;
-  n: number;
-  rmax: number;
-  list: number[] | undefined;
-  next: Ray | undefined;
-}
+/** Rays kept per instrument at most (the time log and the out-of-order table each). */
+export const MAX_RAYS_KEPT = 1 << 20;
 
-const f64 = new Float64Array(1);
-const u32 = new Uint32Array(f64.buffer);
-function mix(h: number, x: number): number {
-  f64[0] = x;
-  h = Math.imul(h ^ u32[0], 0x9e3779b1);
-  h = Math.imul(h ^ u32[1], 0x85ebca77);
-  return h ^ (h >>> 15);
-}
-
-/** Rays of one instrument in two generations (the older dropped when the newer spans the horizon). */
+/**
+ * The recent rays of one instrument, for finding repeated rows, in typed arrays (no object per ray) and bounded
+ * memory. Instruments write rays in time order, so the history is mostly a log in ascending time: a ray later than
+ * every ray kept so far cannot repeat one of them and is appended without any search; a ray at or before the latest
+ * time is looked up by binary search on the log's times (then compared exactly in time and angles) and, when new,
+ * kept in a small out-of-order table. Rays older than the horizon before the latest one, or beyond MAX_RAYS_KEPT,
+ * are forgotten. A ray holds its range gates as first + k * step (k < n) or, when irregular, as a list.
+ * Handles: a log ray is its sequence number (>= 0, valid while kept); an out-of-order ray is -1 - its index, valid
+ * within the table's epoch (the table is emptied when full or when the horizon has passed all of it).
+ */
 class RayHistory {
-  private cur = new Map<number, Ray>();
-  private old = new Map<number, Ray>();
-  private genStart = NaN;
+  private cap = 1024;
+  private T = new Float64Array(this.cap);
+  private AZ = new Float64Array(this.cap);
+  private EL = new Float64Array(this.cap);
+  private R0 = new Float64Array(this.cap);
+  private DR = new Float64Array(this.cap);
+  private RMAX = new Float64Array(this.cap);
+  private N = new Int32Array(this.cap);
+  /** Sequence numbers [head, tail) are kept; entry of seq s at s & (cap - 1). */
+  private head = 0;
+  private tail = 0;
+  private maxT = -Infinity;
+  // Out-of-order rays.
+  private oT: number[] = [];
+  private oAZ: number[] = [];
+  private oEL: number[] = [];
+  private oR0: number[] = [];
+  private oDR: number[] = [];
+  private oRMAX: number[] = [];
+  private oN: number[] = [];
+  private oIndex = new Map<number, number[]>();
+  private oEpochStart = Infinity;
+  /** Irregular rays' ranges by handle. */
+  private lists = new Map<number, number[]>();
+
   constructor(private readonly horizon: number) {}
 
-  /** Hash of the last find(), reused by the add() that follows it. */
-  private h = 0;
+  /** Epoch of the out-of-order table (changes when it is emptied). */
+  oEpoch = 0;
 
-  find(t: number, az: number, el: number): Ray | undefined {
-    const h = (this.h = mix(mix(mix(0x2545f491, t), az), el));
-    for (let r = this.cur.get(h); r; r = r.next) if (r.t === t && r.az === az && r.el === el) return r;
-    for (let r = this.old.get(h); r; r = r.next) if (r.t === t && r.az === az && r.el === el) return r;
-    return undefined;
+  /** True while handle h (taken when oEpoch was `epoch`) still names the same ray. */
+  valid(h: number, epoch: number): boolean {
+    return h >= 0 ? h >= this.head && h < this.tail : epoch === this.oEpoch && -1 - h < this.oN.length;
   }
 
-  /** Adds a ray; call right after find() returned undefined for the same key. */
-  add(t: number, az: number, el: number, range: number): Ray {
-    if (!(t - this.genStart <= this.horizon)) {
-      if (this.genStart === this.genStart) {
-        this.old = this.cur;
-        this.cur = new Map();
-      }
-      this.genStart = t;
+  /** Handle of the ray (t, az, el) kept in the history, or NOT_FOUND. */
+  find(_ins: number, t: number, az: number, el: number): number {
+    if (t > this.maxT) return NOT_FOUND;
+    // Log: the first kept ray at time >= t, then every ray at exactly t.
+    let lo = this.head, hi = this.tail;
+    const mask = this.cap - 1;
+    while (lo < hi) {
+      const mid = Math.floor((lo + hi) / 2);
+      if (this.T[mid & mask] < t) lo = mid + 1;
+      else hi = mid;
     }
-    const h = this.h;
-    const ray: Ray = { t, az, el, r0: range, dr: NaN, n: 1, rmax: range, list: undefined, next: this.cur.get(h) };
-    this.cur.set(h, ray);
-    return ray;
+    for (let q = lo; q < this.tail && this.T[q & mask] === t; q++) {
+      if (this.AZ[q & mask] === az && this.EL[q & mask] === el) return q;
+    }
+    const list = this.oIndex.get(t);
+    if (list) for (const k of list) if (this.oAZ[k] === az && this.oEL[k] === el) return -1 - k;
+    return NOT_FOUND;
+  }
+
+  /** Adds a ray (t, az, el) with its first gate; call right after find() returned NOT_FOUND for the same key. */
+  add(t: number, az: number, el: number, range: number): number {
+    if (t > this.maxT || this.tail === this.head) {
+      this.maxT = t;
+      // Forget rays beyond the horizon, or the oldest when full.
+      const mask0 = this.cap - 1;
+      while (this.head < this.tail && (this.T[this.head & mask0] < t - this.horizon || this.tail - this.head >= MAX_RAYS_KEPT)) this.forget(this.head++);
+      if (this.tail - this.head === this.cap) this.grow();
+      if (this.oN.length && (this.oEpochStart < t - this.horizon || this.oN.length >= MAX_RAYS_KEPT)) this.clearOutOfOrder();
+      const q = this.tail++, i = q & (this.cap - 1);
+      this.T[i] = t; this.AZ[i] = az; this.EL[i] = el; this.R0[i] = range; this.DR[i] = NaN; this.RMAX[i] = range; this.N[i] = 1;
+      return q;
+    }
+    const k = this.oN.length;
+    if (k === 0) this.oEpochStart = this.maxT;
+    this.oT.push(t); this.oAZ.push(az); this.oEL.push(el); this.oR0.push(range); this.oDR.push(NaN); this.oRMAX.push(range); this.oN.push(1);
+    const l = this.oIndex.get(t);
+    if (l) l.push(k);
+    else this.oIndex.set(t, [k]);
+    return -1 - k;
+  }
+
+  private forget(q: number): void {
+    if (this.lists.size) this.lists.delete(q);
+  }
+
+  private clearOutOfOrder(): void {
+    for (let k = 0; k < this.oN.length; k++) this.lists.delete(-1 - k);
+    this.oT = []; this.oAZ = []; this.oEL = []; this.oR0 = []; this.oDR = []; this.oRMAX = []; this.oN = [];
+    this.oIndex.clear();
+    this.oEpochStart = Infinity;
+    this.oEpoch++;
+  }
+
+  private grow(): void {
+    const cap0 = this.cap, cap = cap0 * 2, mask0 = cap0 - 1, mask = cap - 1;
+    const re = <A extends Float64Array | Int32Array>(a: A, b: A): A => {
+      // Entries q in [head, tail) move from q & mask0 to q & mask: contiguous pieces, copied as blocks.
+      for (let q = this.head; q < this.tail; ) {
+        const from = q & mask0, to = q & mask;
+        const len = Math.min(this.tail - q, cap0 - from, cap - to);
+        b.set(a.subarray(from, from + len), to);
+        q += len;
+      }
+      return b;
+    };
+    this.T = re(this.T, new Float64Array(cap)); this.AZ = re(this.AZ, new Float64Array(cap)); this.EL = re(this.EL, new Float64Array(cap));
+    this.R0 = re(this.R0, new Float64Array(cap)); this.DR = re(this.DR, new Float64Array(cap)); this.RMAX = re(this.RMAX, new Float64Array(cap));
+    this.N = re(this.N, new Int32Array(cap));
+    this.cap = cap;
+  }
+
+  // Field access by handle (log entry or out-of-order entry).
+  private getN(h: number): number { return h >= 0 ? this.N[h & (this.cap - 1)] : this.oN[-1 - h]; }
+  private setN(h: number, v: number): void { if (h >= 0) this.N[h & (this.cap - 1)] = v; else this.oN[-1 - h] = v; }
+  private getR0(h: number): number { return h >= 0 ? this.R0[h & (this.cap - 1)] : this.oR0[-1 - h]; }
+  private getDR(h: number): number { return h >= 0 ? this.DR[h & (this.cap - 1)] : this.oDR[-1 - h]; }
+  private setDR(h: number, v: number): void { if (h >= 0) this.DR[h & (this.cap - 1)] = v; else this.oDR[-1 - h] = v; }
+  private getRMAX(h: number): number { return h >= 0 ? this.RMAX[h & (this.cap - 1)] : this.oRMAX[-1 - h]; }
+  private setRMAX(h: number, v: number): void { if (h >= 0) this.RMAX[h & (this.cap - 1)] = v; else this.oRMAX[-1 - h] = v; }
+
+  /** True when `r` is one of the ray's ranges. */
+  hasRange(h: number, r: number): boolean {
+    const n = this.getN(h);
+    if (n < 0) {
+      for (const x of this.lists.get(h)!) if (Math.abs(x - r) <= RANGE_EPS_M) return true;
+      return false;
+    }
+    const r0 = this.getR0(h);
+    if (n === 1) return Math.abs(r0 - r) <= RANGE_EPS_M;
+    const dr = this.getDR(h);
+    const k = Math.round((r - r0) / dr);
+    return k >= 0 && k < n && Math.abs(r0 + k * dr - r) <= RANGE_EPS_M;
+  }
+
+  /** Adds range `r` (not yet in the ray). */
+  addRange(h: number, r: number): void {
+    const n = this.getN(h), r0 = this.getR0(h), dr = this.getDR(h);
+    if (n > 0) {
+      if (n === 1 && r > r0) { this.setDR(h, r - r0); this.setN(h, 2); this.setRMAX(h, r); return; }
+      if (n > 1 && Math.abs(r0 + n * dr - r) <= RANGE_EPS_M) { this.setN(h, n + 1); this.setRMAX(h, r); return; }
+      const list: number[] = [];
+      for (let k = 0; k < n; k++) list.push(n === 1 ? r0 : r0 + k * dr);
+      this.lists.set(h, list);
+      this.setN(h, -1);
+    }
+    this.lists.get(h)!.push(r);
+    if (r > this.getRMAX(h)) this.setRMAX(h, r);
+  }
+
+  /** Gates of a regular ray whose last gate is `r` (else -1: the fast path does not apply). */
+  regularEnd(h: number, r: number): number {
+    const n = this.getN(h);
+    return n > 1 && r === this.getRMAX(h) ? n : -1;
+  }
+
+  first(h: number): number { return this.getR0(h); }
+  step(h: number): number { return this.getDR(h); }
+
+  /** Extends a regular ray by `run` gates ending at `rmax`. */
+  extend(h: number, run: number, rmax: number): void {
+    this.setN(h, this.getN(h) + run);
+    this.setRMAX(h, rmax);
   }
 }
 
-/** True when `r` is one of the ray's ranges. */
-function hasRange(ray: Ray, r: number): boolean {
-  if (ray.list) {
-    for (const x of ray.list) if (Math.abs(x - r) <= RANGE_EPS_M) return true;
-    return false;
-  }
-  if (ray.n === 1) return Math.abs(ray.r0 - r) <= RANGE_EPS_M;
-  const k = Math.round((r - ray.r0) / ray.dr);
-  return k >= 0 && k < ray.n && Math.abs(ray.r0 + k * ray.dr - r) <= RANGE_EPS_M;
-}
-
-/** Adds range `r` (not yet in the ray). */
-function addRange(ray: Ray, r: number): void {
-  if (!ray.list) {
-    if (ray.n === 1 && r > ray.r0) { ray.dr = r - ray.r0; ray.n = 2; ray.rmax = r; return; }
-    if (ray.n > 1 && Math.abs(ray.r0 + ray.n * ray.dr - r) <= RANGE_EPS_M) { ray.n++; ray.rmax = r; return; }
-    const list: number[] = [];
-    for (let k = 0; k < ray.n; k++) list.push(ray.n === 1 ? ray.r0 : ray.r0 + k * ray.dr);
-    ray.list = list;
-  }
-  ray.list.push(r);
-  if (r > ray.rmax) ray.rmax = r;
-}
+/** find() found nothing (a value no handle takes: handles are >= 0, or -1 - k for out-of-order rays). */
+const NOT_FOUND = -(2 ** 52);
 
 /** Evidence of one file: per instrument in typed arrays, plus the file's rejected rows by reason. */
 class FileEvidence {
@@ -168,7 +266,12 @@ class FileEvidence {
   readonly dups: Float64Array;
   readonly dupLines: number[][];
   readonly first: Float64Array; // per instrument: t, az, el, range of the first row
-  readonly cur: (Ray | undefined)[];
+  /** Per instrument: the current ray (time, azimuth, elevation, handle, out-of-order epoch of the handle). */
+  readonly curT: Float64Array;
+  readonly curAz: Float64Array;
+  readonly curEl: Float64Array;
+  readonly curH: Float64Array;
+  readonly curGen: Float64Array;
   valid = 0;
   rejected = new Map<string, number>();
   firstRejected: RejectedRow | undefined;
@@ -181,7 +284,7 @@ class FileEvidence {
     this.dups = f();
     this.dupLines = Array.from({ length: I }, () => []);
     this.first = new Float64Array(4 * I).fill(NaN);
-    this.cur = new Array(I).fill(undefined);
+    this.curT = f(NaN); this.curAz = f(NaN); this.curEl = f(NaN); this.curH = f(NaN); this.curGen = f(-1);
   }
 }
 
@@ -203,7 +306,7 @@ export class SuspicionInspector {
   private mask = new Uint8Array(0);
   /** Fast-path state of batch(): instrument, time, azimuth, elevation, first range, step, next gate index. */
   private readonly fast = new Float64Array(7);
-  private fastRay: Ray | undefined;
+  private fastRay = -1;
   private readonly show: (f: string) => string;
 
   constructor(
@@ -260,9 +363,8 @@ export class SuspicionInspector {
 
   /** Writes a run of `run` gates taken by the fast path to its ray. */
   private endRun(rows: Float64Array, run: number): void {
-    const f = this.fast, ray = this.fastRay!;
-    ray.n += run;
-    ray.rmax = f[4] + (f[6] - 1) * f[5];
+    const f = this.fast;
+    this.history[f[0]].extend(this.fastRay, run, f[4] + (f[6] - 1) * f[5]);
     rows[f[0]] += run;
   }
 
@@ -274,29 +376,27 @@ export class SuspicionInspector {
   private row(e: FileEvidence, b: SampleBatch, i: number, mask: Uint8Array): void {
     const ins = b.instrument[i], t = b.time[i], az = b.azimuth[i], el = b.elevation[i], r = b.range[i];
     e.rows[ins]++;
-    const cur = e.cur[ins];
+    const h = this.history[ins];
     let dup = false;
-    let ray: Ray | undefined;
+    let ray: number;
     let fresh = false;
-    if (cur !== undefined && cur.t === t && cur.az === az && cur.el === el) {
-      ray = cur;
-      if (r <= cur.rmax + RANGE_EPS_M && hasRange(cur, r)) dup = true;
-      else addRange(cur, r);
+    if (h.valid(e.curH[ins], e.curGen[ins]) && e.curT[ins] === t && e.curAz[ins] === az && e.curEl[ins] === el) {
+      ray = e.curH[ins];
+      if (h.hasRange(ray, r)) dup = true;
+      else h.addRange(ray, r);
     } else {
-      const h = this.history[ins];
-      ray = h.find(t, az, el);
+      ray = h.find(ins, t, az, el);
       fresh = true;
-      if (ray === undefined) e.cur[ins] = ray = h.add(t, az, el, r);
-      else {
-        e.cur[ins] = ray;
-        if (hasRange(ray, r)) dup = true;
-        else addRange(ray, r);
-      }
+      if (ray === NOT_FOUND) ray = h.add(t, az, el, r);
+      else if (h.hasRange(ray, r)) dup = true;
+      else h.addRange(ray, r);
+      e.curT[ins] = t; e.curAz[ins] = az; e.curEl[ins] = el; e.curH[ins] = ray; e.curGen[ins] = h.oEpoch;
     }
     const f = this.fast;
     this.fastRay = ray;
     f[0] = ins; f[1] = t; f[2] = az; f[3] = el;
-    if (!dup && ray.list === undefined && ray.n > 1 && r === ray.rmax) { f[4] = ray.r0; f[5] = ray.dr; f[6] = ray.n; }
+    const gates = dup ? -1 : h.regularEnd(ray, r);
+    if (gates > 1) { f[4] = h.first(ray); f[5] = h.step(ray); f[6] = gates; }
     else { f[4] = NaN; f[5] = NaN; f[6] = 0; }
     if (dup) {
       mask[i] = 1;

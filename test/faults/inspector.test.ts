@@ -63,6 +63,17 @@ describe('duplicates', () => {
     expect(w.some((x) => x.includes('repeat an earlier row'))).toBe(false);
   });
 
+  it('a long ordered record (the history log wraps and grows): repeats within the horizon found, older ones not', () => {
+    // 5,000 one-gate rays 0.1 s apart (every ray its own angles: the history log grows past its first 1,024 slots
+    // and wraps), horizon 100 s. Then one ray from 30 s before the end (kept) and one from 400 s before (forgotten).
+    const ins = new SuspicionInspector(campaign, settings({ horizon_s: 100 }));
+    const rows: number[][] = [];
+    for (let k = 0; k < 5000; k++) rows.push([k / 10, (k * 0.37) % 360, 5 + (k % 11) * 0.01, 200]);
+    for (let i = 0; i < rows.length; i += 700) expect(Array.from(ins.batch(batch(rows.slice(i, i + 700), 2 + i), [])!.subarray(0, Math.min(700, rows.length - i))).every((x) => x === 0)).toBe(true);
+    const m = ins.batch(batch([rows[4700], rows[1000]], 9000), [])!;
+    expect(Array.from(m.subarray(0, 2))).toEqual([1, 0]);
+  });
+
   it('without dropDuplicates no mask is returned (nothing is dropped)', () => {
     const ins = new SuspicionInspector(campaign, settings({ dropDuplicates: false }));
     expect(ins.batch(batch(rays(0, 3)), [])).toBeUndefined();
