@@ -5,7 +5,7 @@
  * frame of the window) and of the in-plane position, plus a radial-velocity histogram for the robust filter
  * (qc/vrHistogram.ts). Memory grows with the keys that received samples, never with the samples.
  *
- * Exact merging: every sum is a sum of integers (fixed-point values, scales below) held in doubles, exact while it
+ * Exact merging: every sum is a sum of integers (fixed-point values rounded to the nearest, ties to even; scales below) held in doubles, exact while it
  * stays below 2^53. So the accumulator of a set of samples is the same however the samples were ordered or split
  * into shards, files or batches, and merging accumulators is exact. The squares of the fixed-point radial
  * velocity (up to 2^52) are split into a high part (multiples of 2^26) and a low part, each summed exactly.
@@ -28,6 +28,9 @@ export const SQ_SPLIT = 2 ** 26;
 export const MAX_SAMPLES_PER_KEY = 2 ** 27;
 /** Largest |v_r| the fixed-point sums hold exactly, m/s. */
 export const MAX_ABS_VR = 64;
+
+const RND = 6755399441055744; // 1.5 * 2^52
+const INV_SPLIT = 1 / SQ_SPLIT;
 
 /** Fields of a slot in CellAccumulator.sums (stride STRIDE): one cache line or two per slot. */
 export const F = { n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8 } as const;
@@ -91,19 +94,22 @@ export class CellAccumulator {
   add(key: number, vr: number, nx: number, ny: number, nz: number, py: number, pz: number): void {
     let s = this.slotOf[key];
     if (s < 0) s = this.slot(key);
-    const q = Math.round(vr * VR_SCALE);
+    // Rounding to the nearest integer (ties to even) by adding and removing 1.5 * 2^52: exact for |x| < 2^51 and
+    // several times faster than Math.round; every value here is below 2^27.
+    const q = vr * VR_SCALE + RND - RND;
     const q2 = q * q;
-    const hi = Math.floor(q2 / SQ_SPLIT);
+    let hi = q2 * INV_SPLIT + RND - RND;
+    if (hi * SQ_SPLIT > q2) hi -= 1; // floor
     const m = this.sums, o = s * STRIDE;
     m[o]++;
     m[o + 1] += q;
     m[o + 2] += hi;
     m[o + 3] += q2 - hi * SQ_SPLIT;
-    m[o + 4] += Math.round(nx * DIR_SCALE);
-    m[o + 5] += Math.round(ny * DIR_SCALE);
-    m[o + 6] += Math.round(nz * DIR_SCALE);
-    m[o + 7] += Math.round(py * POS_SCALE);
-    m[o + 8] += Math.round(pz * POS_SCALE);
+    m[o + 4] += nx * DIR_SCALE + RND - RND;
+    m[o + 5] += ny * DIR_SCALE + RND - RND;
+    m[o + 6] += nz * DIR_SCALE + RND - RND;
+    m[o + 7] += py * POS_SCALE + RND - RND;
+    m[o + 8] += pz * POS_SCALE + RND - RND;
     this.hist.add(s, q);
   }
 
