@@ -69,7 +69,8 @@ export class NcFileWriter {
     const ds = this.f.create_dataset({
       name, data, shape, dtype: dtypeOf(data),
       ...(grows ? { maxshape: [null, ...shape.slice(1)] } : {}),
-      ...(text || total === 0 ? {} : { chunks, compression: opts.deflate ?? 4 }),
+      // Small fixed-size variables are stored contiguously: chunking and deflate cost more than they save there.
+      ...(text || total === 0 || (!grows && total < 4096 && opts.deflate === undefined) ? {} : { chunks, compression: opts.deflate ?? 4 }),
       ...(grows && !text ? { chunks } : {}),
     });
     dims.forEach((d, k) => ds.attach_scale(k, `/${d}`));

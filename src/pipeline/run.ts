@@ -37,6 +37,7 @@ import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
+import { ncWorker } from '../io/netcdfWrite.ts';
 import { openStaging } from './outputFolder.ts';
 import { preflight } from './preflight.ts';
 
@@ -121,6 +122,11 @@ export function accountsFrom(c: Campaign, counters: Counters): { perInstrument: 
 
 function loadInflowSeries(c: Campaign): Series | undefined {
   return c.inflow.kind === 'series' ? readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']) : undefined;
+}
+
+/** Writes a stage left running on another thread; the run waits for them before the report and the manifest. */
+export function pendingWrites(shared: Record<string, unknown>): Promise<void>[] {
+  return (shared.pendingWrites ??= []) as Promise<void>[];
 }
 
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
@@ -216,6 +222,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
+    // NetCDF outputs: the writer thread loads the HDF5 library now, beside the ingest, not after the last window.
+    if (c.output.netcdf && stages.some((st) => st.name === 'netcdf')) ncWorker();
     progress.stage('reading samples');
     progress.expect?.(pre.estimatedRows);
     t = performance.now();
@@ -291,6 +299,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       progress.count?.('files', made.length);
       lap(stage.name, t);
     }
+    await Promise.all(pendingWrites(stageCtx.shared)); // files the stages left to other threads
     timings.total = (performance.now() - t0) / 1000;
     manifest.finishedAt = new Date().toISOString();
     manifest.peakRss_bytes = process.resourceUsage().maxRSS * 1024;

@@ -25,7 +25,7 @@ import { writeFileAtomic } from '../io/atomic.ts';
 import { FieldNetcdf } from './fieldNetcdf.ts';
 import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
-import type { RunStage } from './run.ts';
+import { pendingWrites, type RunStage } from './run.ts';
 import { geometryStage } from './geometryStage.ts';
 import type { FieldResult, WindowInfo } from '../retrieval/types.ts';
 import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
@@ -104,7 +104,11 @@ export function wakeStage(opts: { write?: boolean } = {}): RunStage {
       }
       ctx.shared.ensembleRows = ensembleRows;
       const out = opts.write === false ? [] : writeWakeOutputs(a, ctx.runDir, ensembleRows);
-      if (opts.write !== false && ctx.campaign.output.netcdf) out.push(...(await writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256)));
+      if (opts.write !== false && ctx.campaign.output.netcdf) {
+        // Written by the NetCDF thread while the later stages run; the run waits for it before the manifest.
+        const written = writeWakeNetcdf(a, ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256);
+        pendingWrites(ctx.shared).push(written.then((recs) => void ctx.manifest.outputs.push(...recs)));
+      }
       if (opts.write !== false && site) {
         writeFileAtomic(join(ctx.runDir, 'wake', 'turbine_wakes.csv'), turbineWakesCsv(rows));
         out.push({ kind: 'turbine-wakes', path: 'wake/turbine_wakes.csv', description: 'every turbine\'s wake per plane and window: inflow source, wakes reaching it, centre upstream of the turbines it wakes' });
