@@ -103,3 +103,11 @@ export class Problems extends Error {
     this.name = 'Problems';
   }
 }
+
+/** A partial result of a sharded run that cannot be merged, or a shard that failed: one line naming the file. */
+export class PartialError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'PartialError';
+  }
+}

@@ -24,7 +24,9 @@ const simulator = () => import('../sim/simulate.ts');
 const planner = () => import('../pipeline/plan.ts');
 
 /** Every command, in the order of the help. */
-export const COMMAND_NAMES = ['demo', 'run', 'render', 'check', 'plan', 'simulate', 'schema'];
+export const COMMAND_NAMES = ['demo', 'run', 'merge', 'slurm', 'render', 'check', 'plan', 'simulate', 'schema'];
+/** Commands not in the help: the child process of a run on several cores. */
+export const HIDDEN_COMMANDS = ['_shard'];
 
 /** The package's own folder: the nearest one above this module holding package.json (src/cli/ or dist/). */
 function packageRoot(): string {
@@ -73,11 +75,19 @@ function outRootOf(c: Campaign, out: string | undefined): string {
   return resolve(out ?? c.output.dir);
 }
 
-async function runAndReport(c: Campaign, a: Common & { plan?: boolean }): Promise<RunResult> {
+/** The --cores option: a whole number >= 1, or undefined (every core). */
+function coresOption(v: unknown): number | undefined {
+  if (v === undefined) return undefined;
+  const n = Number(v);
+  if (!Number.isInteger(n) || n < 1) throw new OptionError('cores', `must be a whole number >= 1 (got ${JSON.stringify(v)})`);
+  return n;
+}
+
+async function runAndReport(c: Campaign, a: Common & { plan?: boolean; cores?: number; partials?: string[]; keepPartials?: boolean }): Promise<RunResult> {
   const progress = createProgress(process.stderr, { quiet: a.quiet });
   const plan = a.plan === true;
   const selection = await windowImagesOption(a);
-  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan, ...selection }) });
+  const res = await runCampaign(c, { outRoot: a.out, images: a.images, clean: a.clean, progress, stages: defaultStages({ plan, ...selection }), cores: a.cores, partials: a.partials, keepPartials: a.keepPartials });
   say(a.quiet, formatRunSummary(res));
   const summary = res.shared.plan as PlanSummary | undefined;
   if (summary) say(a.quiet, (await planner()).formatPlanSummary(summary, relative(process.cwd(), res.runDir) || res.runDir));
@@ -117,10 +127,74 @@ export function commands(y: Argv): Argv {
       (yy) =>
         common(yy)
           .positional('campaign', CAMPAIGN)
-          .option('plan', { type: 'boolean', default: false, describe: 'also run the planner on the campaign and put its outputs in the report' }),
+          .option('plan', { type: 'boolean', default: false, describe: 'also run the planner on the campaign and put its outputs in the report' })
+          .option('cores', { type: 'number', describe: 'processes reading the data files (default: every core of the machine; 1 reads them in this process)' })
+          .option('partial', { type: 'string', describe: 'read only a shard (--files, --from, --until) and write its partial result to this file, for `wakeplane merge`' })
+          .option('files', { type: 'string', array: true, describe: 'with --partial: the data files of the shard (paths as in the campaign, relative to the working directory; default: all)' })
+          .option('from', { type: 'string', describe: 'with --partial: the shard\'s first time (ISO 8601 UTC, inclusive; default: the beginning)' })
+          .option('until', { type: 'string', describe: 'with --partial: the shard\'s end time (ISO 8601 UTC, exclusive; default: the end)' })
+          .option('shard-plan', { type: 'string', describe: 'a shard manifest (shards.json written by `wakeplane slurm`); with --shard, run that shard' })
+          .option('shard', { type: 'number', describe: 'with --shard-plan: the shard to run (0-based; a job array\'s task id)' }),
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
-        await runAndReport(c, a as unknown as Common & { plan: boolean });
+        const shardOpts = ['partial', 'files', 'from', 'until', 'shard-plan', 'shard'].filter((k) => a[k] !== undefined);
+        if (shardOpts.length) {
+          const { runShardFromOptions } = await import('./shardCommand.ts');
+          const r = await runShardFromOptions(c, a as never);
+          say(a.quiet as boolean, r);
+          return;
+        }
+        await runAndReport(c, { ...(a as unknown as Common & { plan: boolean }), cores: coresOption(a.cores) });
+      },
+    )
+    .command(
+      'merge <partials..>',
+      'merge the partial results of a sharded run into the outputs of one run over everything (field tables identical)',
+      (yy) =>
+        common(yy)
+          .positional('partials', { type: 'string', array: true, describe: 'partial result files (.wpart) written by `wakeplane run --partial` or a cluster job' })
+          .option('campaign', { type: 'string', describe: 'the campaign file (default: the one the partials name)' })
+          .option('keep-partials', { type: 'boolean', default: false, describe: 'keep the partial files after a successful merge (default: removed)' }),
+      async (a) => {
+        const { campaignOfPartial } = await import('./shardCommand.ts');
+        const partials = (a.partials as string[]).map((p) => resolve(p));
+        const c = loadCampaignFile((a.campaign as string | undefined) ?? campaignOfPartial(partials[0]));
+        await runAndReport(c, { ...(a as unknown as Common), partials, keepPartials: a['keep-partials'] as boolean });
+      },
+    )
+    .command(
+      'slurm <campaign>',
+      'prepare a SLURM job: shard manifest, a job-array script (one shard per task) and a merge job that waits for the array',
+      (yy) =>
+        yy
+          .positional('campaign', CAMPAIGN)
+          .option('dir', { type: 'string', describe: 'folder for the scripts, partials and logs (default: <output.dir>/<name>-slurm)' })
+          .option('groups', { type: 'number', describe: 'groups of data files, of about equal size (default: one per file, at most 64)' })
+          .option('cuts', { type: 'string', array: true, describe: 'times (ISO 8601 UTC) at which each group is also cut into time slices' })
+          .option('partition', { type: 'string', describe: 'SLURM partition of both jobs' })
+          .option('time', { type: 'string', describe: 'time limit of each shard task (SLURM format, e.g. 02:00:00)' })
+          .option('merge-time', { type: 'string', describe: 'time limit of the merge job (default: --time)' })
+          .option('mem', { type: 'string', describe: 'memory of each shard task (e.g. 4G)' })
+          .option('merge-mem', { type: 'string', describe: 'memory of the merge job (default: --mem)' })
+          .option('cpus', { type: 'number', describe: 'CPUs per task (default 1)' })
+          .option('sbatch', { type: 'string', array: true, describe: 'further #SBATCH options for both jobs, e.g. --sbatch=--account=wind' })
+          .option('command', { type: 'string', describe: 'how the nodes start wakeplane (default: this node and entry script)' })
+          .option('out', { type: 'string', describe: 'output root of the merged results (default: the campaign\'s output.dir)' })
+          .option('keep-partials', { type: 'boolean', default: false, describe: 'keep the partial files after the merge' })
+          .option('quiet', { type: 'boolean', default: false, describe: 'print nothing but errors' }),
+      async (a) => {
+        const c = loadCampaignFile(a.campaign as string);
+        const { prepareSlurmFromOptions } = await import('./shardCommand.ts');
+        say(a.quiet as boolean, await prepareSlurmFromOptions(c, a as never));
+      },
+    )
+    .command(
+      '_shard <job>',
+      false,
+      (yy) => yy.positional('job', { type: 'string', describe: 'job file' }),
+      async (a) => {
+        const { runShardJob } = await import('../pipeline/shardProcesses.ts');
+        await runShardJob(a.job as string);
       },
     )
     .command(

@@ -4,9 +4,9 @@
  * --debug prints the stack as well. Exit codes: 0 done, 1 an error, 130/143 interrupted by SIGINT/SIGTERM.
  */
 import yargs from 'yargs';
-import { ConfigError, GeometryError, InputError, OptionError, OutputError, Problems } from '../errors.ts';
+import { ConfigError, GeometryError, InputError, OptionError, OutputError, PartialError, Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
-import { COMMAND_NAMES, commands } from './commands.ts';
+import { COMMAND_NAMES, HIDDEN_COMMANDS, commands } from './commands.ts';
 import { installSignalHandlers } from './signals.ts';
 
 /** The first argument that is not an option (the command), or undefined. */
@@ -19,7 +19,7 @@ export async function main(argv: string[], opts: { signals?: boolean } = {}): Pr
   if (opts.signals !== false) installSignalHandlers();
   try {
     const cmd = commandOf(argv);
-    if (cmd !== undefined && !COMMAND_NAMES.includes(cmd)) {
+    if (cmd !== undefined && !COMMAND_NAMES.includes(cmd) && !HIDDEN_COMMANDS.includes(cmd)) {
       throw new OptionError('usage', `unknown command ${JSON.stringify(cmd.slice(0, 40))}; the commands are: ${COMMAND_NAMES.join(', ')} (wakeplane --help)`);
     }
     await commands(yargs(argv).scriptName('wakeplane').version(VERSION))
@@ -40,7 +40,7 @@ export async function main(argv: string[], opts: { signals?: boolean } = {}): Pr
     const err = e as Error;
     const known =
       err instanceof ConfigError || err instanceof InputError || err instanceof OptionError || err instanceof GeometryError ||
-      err instanceof OutputError || err instanceof Problems;
+      err instanceof OutputError || err instanceof Problems || err instanceof PartialError;
     const text = err instanceof OptionError && err.option === 'usage' ? err.message.replace(/^option --usage: /, '') : err.message;
     process.stderr.write(`wakeplane: ${known ? '' : 'error: '}${text}\n`);
     if (debug) process.stderr.write(`${err.stack}\n`);

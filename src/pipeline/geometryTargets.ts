@@ -6,6 +6,10 @@
  * campaign runs exactly as before.
  */
 import type { Campaign } from '../campaign/types.ts';
+import { planeOrigin } from '../campaign/turbines.ts';
+import { gridSpecOf } from '../grid/grid.ts';
+import { PlaneTarget } from '../grid/planeTarget.ts';
+import type { PlaneGrid } from '../retrieval/settings.ts';
 import { ConfigError } from '../errors.ts';
 import { NacelleFrame } from '../geometry/nacelle.ts';
 import type { SampleTarget } from '../grid/target.ts';
@@ -66,4 +70,18 @@ export function runTargets(c: Campaign, planes: SampleTarget): RunTargets {
     for (const l of trackers) targetOf[l.instrument.index] = out.trackIndex;
   }
   return out;
+}
+
+/** The planes of a campaign, their target and every sibling target: what a run and each shard of it build. */
+export function campaignTargets(c: Campaign): { planes: PlaneGrid[]; planeTarget: PlaneTarget; rt: RunTargets } {
+  const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
+  // The plane target takes the plane scanners' samples; profilers, nacelle instruments and trackers go to their own.
+  const planeTarget = new PlaneTarget(
+    planes.map((p) => ({
+      orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
+      origin: planeOrigin(c, p.spec), heights: p.spec.heights,
+    })),
+    c.instruments.length, c.turbine.position,
+  );
+  return { planes, planeTarget, rt: runTargets(c, planeTarget) };
 }

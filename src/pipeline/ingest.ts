@@ -42,7 +42,7 @@ import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import type { SampleTarget } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
-import type { RejectedRow } from '../io/batch.ts';
+import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { openSamples } from '../io/sampleSource.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
@@ -85,6 +85,21 @@ export interface IngestOptions {
   terrain?: Terrain;
   /** Suspicious-input inspector (qc/suspicion.ts): sees every chunk first; its mask drops duplicates. */
   suspicion?: SuspicionInspector;
+  /**
+   * A shard of a sharded run (pipeline/shard.ts): only these files are read (default: all), and only the rows
+   * with from_s <= time < to_s are taken (counted, inspected, accumulated); the others are skipped as if absent.
+   * Rows that could not be read have no time: they belong to the shard holding the time of their chunk's first
+   * valid row, or of the file's last valid row before them (-Infinity before any), so each is counted once over
+   * shards that partition the time axis.
+   */
+  shard?: { files?: ReadonlySet<string>; from_s: number; to_s: number };
+  /**
+   * The earliest sample time of the whole campaign when known beforehand (a shard's, from every file's first
+   * batch: campaignFirstSample), so that fixed windows anchored at the first sample are the same in every shard.
+   */
+  firstSample_s?: number;
+  /** Sees each batch of valid rows taken (after a shard's time filter), before quality control. */
+  onBatch?(b: SampleBatch): void;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -127,6 +142,27 @@ export function firstSampleTime(b: { length: number; time: Float64Array }): numb
   return med;
 }
 
+/**
+ * The earliest sample time over every data file of the campaign, as the ingest of a whole run finds it (each file's
+ * first batch, firstSampleTime): NaN when no file has a sample. A shard passes it as IngestOptions.firstSample_s so
+ * that fixed windows anchored at the first sample are the same in every shard. Reads one batch per file.
+ */
+export async function campaignFirstSample(c: Campaign): Promise<number> {
+  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
+  let first = Infinity;
+  for (const ins of c.instruments) {
+    for (const f of ins.files) {
+      const it = openSamples(f, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator]();
+      const r = await it.next();
+      await it.return?.(undefined);
+      if (r.done) continue;
+      const t = firstSampleTime(r.value.batch);
+      if (t < first) first = t;
+    }
+  }
+  return Number.isFinite(first) ? first : NaN;
+}
+
 export async function ingest(opts: IngestOptions, counters: Counters): Promise<{ plan: WindowPlan }> {
   const c = opts.campaign;
   const I = c.instruments.length;
@@ -161,8 +197,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const nb = new Float64Array(6);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
 
-  // Every file of every instrument, read in step; primed with its first batch before the plan is made.
-  const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })));
+  // Every file of every instrument (of the shard), read in step; primed with its first batch before the plan is made.
+  const shard = opts.shard;
+  const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
+    .filter((f) => !shard?.files || shard.files.has(f.path));
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
     it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
@@ -172,6 +210,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     path: f.path,
     owner: f.owner,
     rows: 0,
+    /** Time of the file's last valid row so far (time shards: where its unreadable rows belong). */
+    lastValid: -Infinity,
   }));
   let first = Infinity;
   for (const cur of cursors) {
@@ -181,6 +221,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     const f = firstSampleTime(r.value.batch);
     if (f < first) first = f;
   }
+  if (opts.firstSample_s !== undefined) first = opts.firstSample_s;
   const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
   const record = plan.kind === 'record';
 
@@ -229,6 +270,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
 
   const processChunk = (chunk: SampleChunk, owner: number) => {
     const b = chunk.batch;
+    opts.onBatch?.(b);
     const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) {
       // Rows that could not be read are charged to the instrument they name, else to the one owning the file.
@@ -334,6 +376,29 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     }
   };
 
+  // Time shards: the rows of a batch inside [from_s, to_s), copied into a reused batch.
+  const timeShard = shard !== undefined && (shard.from_s > -Infinity || shard.to_s < Infinity);
+  let kept: SampleBatch | undefined;
+  const inRange = (b: SampleBatch): SampleBatch => {
+    if (!kept || kept.time.length < b.length) {
+      const n = Math.max(b.length, 16384);
+      kept = { length: 0, file: b.file, line: new Float64Array(n), time: new Float64Array(n), instrument: new Uint8Array(n), azimuth: new Float64Array(n),
+        elevation: new Float64Array(n), range: new Float64Array(n), radialVelocity: new Float64Array(n), cnr: new Float64Array(n) };
+    }
+    const k = kept, lo = shard!.from_s, hi = shard!.to_s;
+    k.file = b.file;
+    let m = 0;
+    for (let i = 0; i < b.length; i++) {
+      const t = b.time[i];
+      if (!(t >= lo && t < hi)) continue;
+      k.line[m] = b.line[i]; k.time[m] = t; k.instrument[m] = b.instrument[i]; k.azimuth[m] = b.azimuth[i];
+      k.elevation[m] = b.elevation[i]; k.range[m] = b.range[i]; k.radialVelocity[m] = b.radialVelocity[i]; k.cnr[m] = b.cnr[i];
+      m++;
+    }
+    k.length = m;
+    return k;
+  };
+
   for (;;) {
     let k = -1;
     for (let j = 0; j < cursors.length; j++) if (!cursors[j].done && (k < 0 || cursors[j].last < cursors[k].last)) k = j;
@@ -349,7 +414,13 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       else chunk = r.value;
     }
     if (chunk) {
-      processChunk(chunk, cur.owner);
+      if (timeShard) {
+        const b = chunk.batch;
+        const at = b.length > 0 ? b.time[0] : cur.lastValid;
+        const mine = at >= shard!.from_s && at < shard!.to_s;
+        processChunk({ batch: inRange(b), rejected: mine ? chunk.rejected : [] }, cur.owner);
+        if (b.length > 0) cur.lastValid = b.time[b.length - 1];
+      } else processChunk(chunk, cur.owner);
       const b = chunk.batch;
       if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
       cur.rows += b.length + chunk.rejected.length;

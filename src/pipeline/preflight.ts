@@ -37,6 +37,8 @@ export interface PreflightOptions {
    * several million rows per second.
    */
   scan?: boolean;
+  /** Check the output target (default true; a shard of a sharded run writes only its partial file). */
+  output?: boolean;
 }
 
 export interface Preflight {
@@ -62,12 +64,12 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
   const errors: Error[] = [];
   const warnings = [...plausibilityWarnings(c)];
   const notes: string[] = [];
-  try {
+  if (opts.output !== false) try {
     checkTarget({ root: opts.outRoot, folder: opts.folder, kind: opts.kind, campaign: c.name, campaignSha256: '' });
   } catch (e) {
     errors.push(e as Error);
   }
-  for (const p of findPartials(opts.outRoot, opts.folder)) {
+  if (opts.output !== false) for (const p of findPartials(opts.outRoot, opts.folder)) {
     notes.push(`unfinished folder ${relative(process.cwd(), p.path) || p.path}: ${p.why}${p.status === 'stale' ? ' (removed by the next run or plan)' : p.status === 'unknown' ? ' (remove it with --clean)' : ''}`);
   }
   const files: { file: string; ins: Instrument }[] = [];

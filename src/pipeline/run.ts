@@ -12,7 +12,7 @@
 import { planeOrigin, stateTurbine } from '../campaign/turbines.ts';
 import { loadTerrain } from '../io/terrainFile.ts';
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
+import { readFileSync, rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
@@ -25,10 +25,15 @@ import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../q
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
-import { Counters, ingest } from './ingest.ts';
+import { campaignFirstSample, Counters, ingest } from './ingest.ts';
+import { PartialSet, removePartials } from './partial.ts';
+import { runShardProcesses, shareFiles } from './shardProcesses.ts';
+import type { FinishedWindow } from './finishWindows.ts';
+import type { RejectedRow } from '../io/batch.ts';
+import { availableParallelism } from 'node:os';
 import { WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
-import { runTargets } from './geometryTargets.ts';
+import { campaignTargets } from './geometryTargets.ts';
 import { GeometryFinisher } from './geometryFinish.ts';
 import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest } from '../records/manifest.ts';
@@ -52,6 +57,16 @@ export interface RunOptions {
   progress?: RunProgress;
   /** Stages after retrieval (wake analysis, images, planner, report), in order; see stages.ts. */
   stages?: RunStage[];
+  /**
+   * Processes reading the samples (default: os.availableParallelism()). With more than one and more than one data
+   * file, the files are shared out to child processes, each writing a partial result, merged here exactly
+   * (pipeline/partial.ts): the same outputs as one process. 1 keeps the single-process path.
+   */
+  cores?: number;
+  /** Merge these partial results of sharded runs instead of reading the samples (`wakeplane merge`). */
+  partials?: string[];
+  /** Keep the partial files after a successful merge (default: removed). */
+  keepPartials?: boolean;
 }
 
 export interface RunProgress {
@@ -159,6 +174,11 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     c.windows.kind === 'fixed' && c.windows.anchor === 'first-sample' ? undefined : buildWindowPlan(c, planInputs);
   const conditionSeries = loadConditionSeries(c);
   const terrain = await loadTerrain(c);
+  const show = (f: string) => relative(c.baseDir, f) || f;
+  // Partial results to merge: checked against the campaign and each other before anything is written.
+  let partialSet = opts.partials ? PartialSet.open(opts.partials, c, dataFiles.map((d) => d.file), show) : undefined;
+  const cores = Math.max(1, Math.floor(opts.cores ?? availableParallelism()));
+  const parallel = !partialSet && cores > 1 && dataFiles.length > 1;
   const digests = hashFiles(dataFiles.map((d) => d.file));
   const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
@@ -168,11 +188,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   notices.push(...staging.notices);
   const runDir = staging.dir;
   const finalDir = staging.finalDir;
-  const show = (f: string) => relative(c.baseDir, f) || f;
   const inspector = new SuspicionInspector(cRead, suspicionSettings(c, show));
 
   try {
-    const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
     const settings: RetrievalSettings = {
       maxAmplification: c.retrieval.maxAmplification,
       minSamplesPerInstrument: c.retrieval.minSamplesPerInstrument,
@@ -206,15 +224,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     };
     const stages = opts.stages ?? [];
     const stageCtx: StageContext = { campaign: c, runDir, images, manifest, shared: {} };
-    // The plane target takes the plane scanners' samples; profilers, nacelle instruments and trackers go to their own.
-    const planeTarget = new PlaneTarget(
-      planes.map((p) => ({
-        orientation: p.spec.orientation, level_m: p.spec.orientation === 'cross' ? p.spec.x_m : p.spec.z_m, thickness_m: p.spec.thickness_m, grid: p.grid,
-        origin: planeOrigin(c, p.spec), heights: p.spec.heights,
-      })),
-      c.instruments.length, c.turbine.position,
-    );
-    const rt = runTargets(c, planeTarget);
+    const { planes, rt } = campaignTargets(c);
     const geometry = rt.targets.length > 1 ? new GeometryFinisher(c, rt, c.qc.robust, loadInflowSeries(c)) : undefined;
     if (geometry) stageCtx.shared.geometry = geometry.results;
     if (geometry) stageCtx.shared.profileInflow = geometry.profileInflow;
@@ -229,34 +239,54 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     t = performance.now();
     let built: BuiltWindowPlan | undefined = early;
     let outputsSeen = 0, imageCount = 0;
-    await ingest(
-      {
-        campaign: cRead,
-        terrain,
-        suspicion: inspector,
-        targets: rt.targets,
-        targetOf: rt.targetOf,
-        nacelleFrames: rt.nacelleFrames,
-        windowPlan(first) {
-          built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
-          finisher.disjoint = built.plan.disjoint;
-          return built.plan;
+    const onWindow = async (w: FinishedWindow) => {
+      await finisher.window(w);
+      progress.count?.('windows', finisher.windows.length);
+      for (; outputsSeen < finisher.outputs.length; outputsSeen++) if (finisher.outputs[outputsSeen].kind === 'image') imageCount++;
+      if (imageCount) progress.count?.('images', imageCount);
+    };
+    const onRejectedRows = (rows: RejectedRow[]) => {
+      rejectedCount += rows.length;
+      if (rejectedOut) for (const r of rows) rejectedOut.write(rowLine(rejectedLayout, [relative(c.baseDir, r.file) || r.file, r.line, r.variable, r.ray, r.gate, r.reason, r.detail, r.text]));
+    };
+    if (parallel) {
+      // Every core: the files shared out to child processes (by size), each writing a partial result here.
+      const shardDir = join(runDir, '.shards');
+      const groups = shareFiles(dataFiles.map((d) => d.file), cores);
+      const first = await campaignFirstSample(cRead);
+      const made = await runShardProcesses(c, groups.map((files) => ({ files, from_s: -Infinity, to_s: Infinity })), shardDir, first);
+      partialSet = PartialSet.open(made, c, dataFiles.map((d) => d.file), show);
+      notices.push(`read in ${groups.length} processes (--cores ${cores})`);
+    }
+    if (partialSet) {
+      built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: partialSet.firstSample_s });
+      finisher.disjoint = built.plan.disjoint;
+      warnings.push(...partialSet.warnings);
+      await partialSet.feed({ onWindow, onRejectedRows, counters, inspector });
+      partialSet.close();
+      if (parallel) rmSync(join(runDir, '.shards'), { recursive: true, force: true });
+    } else {
+      await ingest(
+        {
+          campaign: cRead,
+          terrain,
+          suspicion: inspector,
+          targets: rt.targets,
+          targetOf: rt.targetOf,
+          nacelleFrames: rt.nacelleFrames,
+          windowPlan(first) {
+            built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
+            finisher.disjoint = built.plan.disjoint;
+            return built.plan;
+          },
+          directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
+          onRejectedRows,
+          onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
+          onWindow,
         },
-        directionOf: (start, end) => directionForWindow(c, dirSeries, start, end),
-        onRejectedRows(rows) {
-          rejectedCount += rows.length;
-          if (rejectedOut) for (const r of rows) rejectedOut.write(rowLine(rejectedLayout, [relative(c.baseDir, r.file) || r.file, r.line, r.variable, r.ray, r.gate, r.reason, r.detail, r.text]));
-        },
-        onProgress: (file, rows) => progress.file(relative(c.baseDir, file) || file, rows),
-        async onWindow(w) {
-          await finisher.window(w);
-          progress.count?.('windows', finisher.windows.length);
-          for (; outputsSeen < finisher.outputs.length; outputsSeen++) if (finisher.outputs[outputsSeen].kind === 'image') imageCount++;
-          if (imageCount) progress.count?.('images', imageCount);
-        },
-      },
-      counters,
-    );
+        counters,
+      );
+    }
     await finisher.end(manifest, notices);
     // Stages that look at every window (the power gain) read the plan.
     if (built) stageCtx.shared.windowPlan = built.plan;
@@ -284,6 +314,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (suspicion.errors.length) throw suspicion.errors.length === 1 ? suspicion.errors[0] : new Problems(suspicion.errors);
     warnings.push(...suspicion.warnings, ...sameContentWarnings(manifest.inputs, show));
     manifest.samples = { total, perInstrument, balanced: Object.values(perInstrument).every(accountBalances) };
+    if ((partialSet || parallel) && total.rejected.out_of_time_order > 0) warnings.push(`${total.rejected.out_of_time_order} samples came after their window was finished (out_of_time_order): which rows that catches depends on which files are read together, so a sharded run can count them differently from a single run`);
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
     manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
@@ -319,6 +350,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     writeFileAtomic(join(runDir, 'manifest.json'), JSON.stringify(manifest, null, 2) + '\n');
 
     notices.push(...staging.commit());
+    if (opts.partials && !opts.keepPartials) removePartials(opts.partials);
     progress.done();
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {

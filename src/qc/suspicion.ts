@@ -288,6 +288,77 @@ class FileEvidence {
   }
 }
 
+/**
+ * How each field of a file's evidence combines when the file was read in parts (time shards of a sharded run,
+ * pipeline/partial.ts): sums, extremes, the first evidence lines, or nothing (state of the streaming pass only).
+ * Every field needs a rule: a field added without one makes `mergeEvidence` throw, not merge wrongly.
+ */
+const EVIDENCE_RULES: Record<string, 'sum' | 'max' | 'min' | 'or' | 'lines' | 'argmax' | 'transient' | 'map' | 'firstRow' | 'with-argmax'> = {
+  rows: 'sum', maxAzDist: 'max', maxAbsEl: 'max', minEl: 'min', maxEl: 'max', minAzDist: 'min', prevT: 'transient',
+  backSteps: 'sum', backMax: 'argmax', backMaxLine: 'with-argmax', backLines: 'lines', repeatsStart: 'or', dups: 'sum',
+  dupLines: 'lines', first: 'transient', curT: 'transient', curAz: 'transient', curEl: 'transient', curH: 'transient',
+  curGen: 'transient', valid: 'sum', rejected: 'map', firstRejected: 'firstRow',
+};
+
+/** One file's evidence as plain data: typed arrays apart, everything else JSON. */
+export interface EvidenceState {
+  meta: Record<string, unknown>;
+  arrays: Record<string, Float64Array | Uint8Array>;
+}
+
+function evidenceState(e: FileEvidence): EvidenceState {
+  const meta: Record<string, unknown> = {};
+  const arrays: Record<string, Float64Array | Uint8Array> = {};
+  for (const [k, v] of Object.entries(e)) {
+    if (!(k in EVIDENCE_RULES)) throw new TypeError(`suspicion evidence field "${k}" has no merge rule (EVIDENCE_RULES)`);
+    if (EVIDENCE_RULES[k] === 'transient') continue;
+    if (v instanceof Float64Array || v instanceof Uint8Array) arrays[k] = v.slice();
+    else if (v instanceof Map) meta[k] = [...v];
+    else meta[k] = v;
+  }
+  return { meta, arrays };
+}
+
+/** Adds evidence `s` (of the same file, another part of it) into `e`. */
+function mergeEvidence(e: FileEvidence, s: EvidenceState): void {
+  const rec = e as unknown as Record<string, unknown>;
+  for (const k of Object.keys(e)) {
+    const rule = EVIDENCE_RULES[k];
+    if (rule === undefined) throw new TypeError(`suspicion evidence field "${k}" has no merge rule (EVIDENCE_RULES)`);
+    const mine = rec[k];
+    const theirs = (s.arrays[k] ?? s.meta[k]) as never;
+    if (rule === 'transient' || theirs === undefined) continue;
+    switch (rule) {
+      case 'sum':
+        if (typeof mine === 'number') rec[k] = mine + (theirs as number);
+        else { const a = mine as Float64Array, b = theirs as Float64Array; for (let i = 0; i < a.length; i++) a[i] += b[i]; }
+        break;
+      case 'max': case 'min': case 'or': {
+        const a = mine as Float64Array, b = theirs as Float64Array;
+        for (let i = 0; i < a.length; i++) a[i] = rule === 'max' ? Math.max(a[i], b[i]) : rule === 'min' ? Math.min(a[i], b[i]) : a[i] | b[i];
+        break;
+      }
+      case 'argmax': {
+        const a = mine as Float64Array, b = theirs as Float64Array, la = e.backMaxLine, lb = s.arrays.backMaxLine as Float64Array;
+        for (let i = 0; i < a.length; i++) if (b[i] > a[i]) { a[i] = b[i]; la[i] = lb[i]; }
+        break;
+      }
+      case 'with-argmax': break; // moved with its argmax
+      case 'lines': {
+        const a = mine as number[][], b = theirs as number[][];
+        for (let i = 0; i < a.length; i++) a[i] = [...a[i], ...b[i]].sort((x, y) => x - y).slice(0, MAX_LINES);
+        break;
+      }
+      case 'map': for (const [r, n] of theirs as [string, number][]) e.rejected.set(r, (e.rejected.get(r) ?? 0) + n); break;
+      case 'firstRow': {
+        const b = theirs as RejectedRow | null;
+        if (b && (!e.firstRejected || b.line < e.firstRejected.line)) e.firstRejected = b;
+        break;
+      }
+    }
+  }
+}
+
 export interface SuspicionReport {
   /** One line each, naming the instrument, the file and the evidence. */
   warnings: string[];
@@ -423,6 +494,16 @@ export class SuspicionInspector {
       if (t === e.first[k] && az === e.first[k + 1] && el === e.first[k + 2] && r === e.first[k + 3]) e.repeatsStart[ins] = 1;
     }
     e.prevT[ins] = t;
+  }
+
+  /** The evidence gathered on `file` so far, as plain data (a shard's partial result carries it to the merge). */
+  evidenceOf(file: string): EvidenceState {
+    return evidenceState(this.evidence(file));
+  }
+
+  /** Adds evidence gathered elsewhere on `file` (another shard) to this inspector's. */
+  absorb(file: string, s: EvidenceState): void {
+    mergeEvidence(this.evidence(file), s);
   }
 
   /** Warnings and errors once every file is read; `accounts` per instrument id (after the robust filter). */

@@ -247,6 +247,20 @@ export class VrHistograms {
     }
   }
 
+  /**
+   * Set an empty slot s to the given content: its level and its bins (ascending, at that level) with their counts,
+   * as `sorted` returns them. Used to read a stored histogram back (grid/accumulatorState.ts); the storage may differ
+   * from the original's, the content and every result do not.
+   */
+  restoreSlot(s: number, level: number, bins: ArrayLike<number>, counts: ArrayLike<number>): void {
+    if (this.total[s] !== 0) throw new RangeError('restoreSlot needs an empty slot');
+    this.level[s] = level;
+    let n = 0;
+    for (let i = 0; i < counts.length; i++) n += counts[i];
+    this.total[s] = n;
+    for (let i = 0; i < bins.length; i++) this.addBin(s, bins[i] >> (this.level[s] - level), counts[i]);
+  }
+
   /** Bin width of slot s, m/s. */
   width(s: number): number {
     return FINE_WIDTH * 2 ** this.level[s];
