@@ -3,6 +3,7 @@
  * positional and option carries a description (test/faults/cli.test.ts checks the help).
  */
 import { existsSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
 import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Argv } from 'yargs';
@@ -144,7 +145,7 @@ export function commands(y: Argv): Argv {
           say(a.quiet as boolean, r);
           return;
         }
-        await runAndReport(c, { ...(a as unknown as Common & { plan: boolean }), cores: coresOption(a.cores) });
+        await runAndReport(c, { ...(a as unknown as Common & { plan: boolean }), cores: coresOption(a.cores) ?? availableParallelism() });
       },
     )
     .command(

@@ -30,7 +30,6 @@ import { PartialSet, removePartials } from './partial.ts';
 import { runShardProcesses, shareFiles } from './shardProcesses.ts';
 import type { FinishedWindow } from './finishWindows.ts';
 import type { RejectedRow } from '../io/batch.ts';
-import { availableParallelism } from 'node:os';
 import { WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
 import { campaignTargets } from './geometryTargets.ts';
@@ -58,7 +57,7 @@ export interface RunOptions {
   /** Stages after retrieval (wake analysis, images, planner, report), in order; see stages.ts. */
   stages?: RunStage[];
   /**
-   * Processes reading the samples (default: os.availableParallelism()). With more than one and more than one data
+   * Processes reading the samples (default 1; the command line's default is every core). With more than one and more than one data
    * file, the files are shared out to child processes, each writing a partial result, merged here exactly
    * (pipeline/partial.ts): the same outputs as one process. 1 keeps the single-process path.
    */
@@ -177,7 +176,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const show = (f: string) => relative(c.baseDir, f) || f;
   // Partial results to merge: checked against the campaign and each other before anything is written.
   let partialSet = opts.partials ? PartialSet.open(opts.partials, c, dataFiles.map((d) => d.file), show) : undefined;
-  const cores = Math.max(1, Math.floor(opts.cores ?? availableParallelism()));
+  const cores = Math.max(1, Math.floor(opts.cores ?? 1));
   const parallel = !partialSet && cores > 1 && dataFiles.length > 1;
   const digests = hashFiles(dataFiles.map((d) => d.file));
   const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');

@@ -1,0 +1,251 @@
+/**
+ * Sharded runs merged exactly: random shardings of small simulated campaigns (by files, by time ranges that cut
+ * windows in two, both at once; fixed windows anchored at the first sample, condition bins with ensembles) must give
+ * field tables byte-identical to one run over everything and the sample accounting summed exactly; partials that
+ * cannot be merged (missing, duplicated, overlapping, of another campaign, settings or version, unfinished) are
+ * one-line errors naming the file, before any output.
+ *
+ * The reference here is the single-process run of the same code, so these are exactness checks of the merge (an
+ * identity that must hold to the byte), not outside checks of the physics; those live in the retrieval, geometry
+ * and histogram tests (qc-histogram.test.ts checks the histograms' median and MAD against the exact sample
+ * statistics, and the exact-merge property of the integer sums against numpy in retrieval-ensemble.test.ts).
+ */
+import { existsSync, readdirSync, readFileSync, writeFileSync, mkdirSync, copyFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { loadCampaignFile } from '../src/campaign/load.ts';
+import type { Campaign } from '../src/campaign/types.ts';
+import { CellAccumulator } from '../src/grid/accumulator.ts';
+import { accumulatorFromState, accumulatorState } from '../src/grid/accumulatorState.ts';
+import { PartialWriter, PartialReader } from '../src/io/partialFile.ts';
+import { campaignFirstSample } from '../src/pipeline/ingest.ts';
+import { runShard, type ShardSpec } from '../src/pipeline/partial.ts';
+import { runCampaign, type RunResult } from '../src/pipeline/run.ts';
+import { defaultStages } from '../src/pipeline/stages.ts';
+import { REJECT_REASONS } from '../src/qc/reasons.ts';
+import { mulberry32 } from '../src/math/random.ts';
+import { simulateCampaign } from '../src/sim/simulate.ts';
+import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+
+/** Every field table (plane windows and bins) of a run folder: name -> bytes. */
+function fieldTables(runDir: string): Map<string, string> {
+  const out = new Map<string, string>();
+  for (const f of readdirSync(join(runDir, 'fields')).sort()) if (f.endsWith('.csv')) out.set(f, readFileSync(join(runDir, 'fields', f), 'utf8'));
+  return out;
+}
+
+/** Splits every instrument's file in two (header repeated) so that one instrument's files can go to different shards. */
+function splitFiles(dir: string): void {
+  for (const id of ['a', 'b', 'c']) {
+    const text = readFileSync(join(dir, 'data', `${id}.csv`), 'utf8').trimEnd().split('\n');
+    const [head, ...rows] = text;
+    const cut = Math.floor(rows.length * 0.45);
+    writeFileSync(join(dir, 'data', `${id}1.csv`), [head, ...rows.slice(0, cut)].join('\n') + '\n');
+    writeFileSync(join(dir, 'data', `${id}2.csv`), [head, ...rows.slice(cut)].join('\n') + '\n');
+  }
+}
+
+function withFiles(c: Campaign, dir: string): Campaign {
+  return { ...c, instruments: c.instruments.map((i) => ({ ...i, files: [join(dir, 'data', `${i.id}1.csv`), join(dir, 'data', `${i.id}2.csv`)] })) };
+}
+
+/** A random sharding: files into 1..3 groups, each group cut at 0..2 random times inside the record. */
+function randomShards(files: string[], t0: number, t1: number, rnd: () => number): ShardSpec[] {
+  const groups = 1 + Math.floor(rnd() * 3);
+  const member: string[][] = Array.from({ length: groups }, () => []);
+  files.forEach((f, k) => member[k < groups ? k : Math.floor(rnd() * groups)].push(f));
+  const specs: ShardSpec[] = [];
+  for (const g of member) {
+    const cuts = Array.from({ length: Math.floor(rnd() * 3) }, () => t0 + rnd() * (t1 - t0)).sort((a, b) => a - b);
+    const bounds = [-Infinity, ...cuts, Infinity];
+    for (let k = 0; k + 1 < bounds.length; k++) if (bounds[k] < bounds[k + 1]) specs.push({ files: g, from_s: bounds[k], to_s: bounds[k + 1] });
+  }
+  return specs;
+}
+
+async function shardAndMerge(c: Campaign, specs: ShardSpec[], dir: string, out: string): Promise<RunResult> {
+  mkdirSync(dir, { recursive: true });
+  const parts: string[] = [];
+  for (const [k, s] of specs.entries()) {
+    const p = join(dir, `s${k}.wpart`);
+    await runShard(c, s, p);
+    parts.push(p);
+  }
+  return runCampaign(c, { outRoot: out, images: false, partials: parts, stages: defaultStages() });
+}
+
+function expectSameRun(single: RunResult, merged: RunResult): void {
+  const a = fieldTables(single.runDir), b = fieldTables(merged.runDir);
+  expect([...b.keys()]).toEqual([...a.keys()]);
+  // Byte-identical: the merge must reproduce the single run exactly (no tolerance).
+  for (const [name, text] of a) expect(b.get(name), name).toBe(text);
+  // Accounting: exact integer sums, per instrument and reason.
+  expect(merged.manifest.samples).toEqual(single.manifest.samples);
+  expect(merged.manifest.windows).toEqual(single.manifest.windows);
+  expect(readFileSync(join(merged.runDir, 'wake', 'wake_table.csv'), 'utf8')).toBe(readFileSync(join(single.runDir, 'wake', 'wake_table.csv'), 'utf8'));
+}
+
+describe('sharded runs merge exactly', () => {
+  let dir: string, file: string;
+  let c: Campaign;
+  let t0: number, t1: number;
+  beforeAll(async () => {
+    ({ dir, file } = writeTinyCampaign({ simulation: { seed: 21, start: '2026-03-01T12:00:00Z', windows: 4, hubSpeed_ms: 8, yawOffsets_deg: [0, 15, -15, 15], rayRate_hz: 4, dwell_s: 1 } }));
+    await simulateCampaign(loadCampaignFile(file));
+    splitFiles(dir);
+    c = withFiles(loadCampaignFile(file), dir);
+    // Fixed windows anchored at the first sample: every shard must use the campaign's first sample, not its own.
+    c.windows = { kind: 'fixed', length_s: 600, anchor: 'first-sample' };
+    t0 = await campaignFirstSample(c);
+    t1 = t0 + 4 * 600;
+  }, 60_000);
+
+  it('random shardings by files and time ranges give the single run\'s field tables byte for byte', async () => {
+    const single = await runCampaign(c, { outRoot: join(dir, 'single'), images: false, stages: defaultStages() });
+    expect(single.manifest.windows.length).toBeGreaterThanOrEqual(4);
+    const files = c.instruments.flatMap((i) => i.files);
+    const rnd = mulberry32(1301);
+    let cutWindows = 0;
+    for (let trial = 0; trial < 3; trial++) {
+      const specs = randomShards(files, t0, t1, rnd);
+      // Cuts that fall strictly inside a window split its samples between shards (the case that needs the merge).
+      for (const s of specs) if (Number.isFinite(s.from_s) && (s.from_s - t0) % 600 > 1) cutWindows++;
+      const merged = await shardAndMerge(c, specs, join(dir, `parts${trial}`), join(dir, `merged${trial}`));
+      expectSameRun(single, merged);
+      // The partials are removed after a successful merge (not asked to keep them).
+      expect(readdirSync(join(dir, `parts${trial}`)).filter((f) => f.endsWith('.wpart'))).toEqual([]);
+    }
+    expect(cutWindows).toBeGreaterThan(0);
+  }, 120_000);
+
+  it('condition bins: ensembles of merged windows equal the single run\'s', async () => {
+    const cb: Campaign = { ...c, conditions: { bins: [{ variable: 'yaw_offset_deg', edges: [-20, -5, 5, 20] }], minWindows: 1 } } as Campaign;
+    const single = await runCampaign(cb, { outRoot: join(dir, 'single-bins'), images: false, stages: defaultStages() });
+    expect(single.manifest.ensembles?.length).toBe(3);
+    const files = cb.instruments.flatMap((i) => i.files);
+    const specs: ShardSpec[] = [
+      { files: files.slice(0, 3), from_s: -Infinity, to_s: t0 + 905 },
+      { files: files.slice(0, 3), from_s: t0 + 905, to_s: Infinity },
+      { files: files.slice(3), from_s: -Infinity, to_s: Infinity },
+    ];
+    const merged = await shardAndMerge(cb, specs, join(dir, 'parts-bins'), join(dir, 'merged-bins'));
+    expectSameRun(single, merged);
+    expect(merged.manifest.ensembles).toEqual(single.manifest.ensembles);
+    expect([...fieldTables(merged.runDir).keys()].some((n) => n.includes('_bin'))).toBe(true);
+  }, 120_000);
+
+  it('every core: a run on 2 processes gives the single run\'s outputs', async () => {
+    const single = await runCampaign(c, { outRoot: join(dir, 'single-c'), images: false, stages: defaultStages(), cores: 1 });
+    const multi = await runCampaign(c, { outRoot: join(dir, 'multi-c'), images: false, stages: defaultStages(), cores: 2 });
+    expectSameRun(single, multi);
+    expect(multi.notices.some((n) => n.includes('2 processes'))).toBe(true);
+    expect(existsSync(join(multi.runDir, '.shards'))).toBe(false);
+  }, 120_000);
+
+  describe('partials that cannot be merged', () => {
+    let parts: string[];
+    const files = () => c.instruments.flatMap((i) => i.files);
+    beforeAll(async () => {
+      const d = join(dir, 'errs');
+      mkdirSync(d, { recursive: true });
+      parts = [];
+      const specs: ShardSpec[] = [
+        { files: files().slice(0, 3), from_s: -Infinity, to_s: Infinity },
+        { files: files().slice(3), from_s: -Infinity, to_s: t0 + 700 },
+        { files: files().slice(3), from_s: t0 + 700, to_s: Infinity },
+      ];
+      for (const [k, s] of specs.entries()) {
+        parts.push(join(d, `p${k}.wpart`));
+        await runShard(c, s, parts[k]);
+      }
+    }, 60_000);
+    const merge = (list: string[], cc: Campaign = c, out = join(dir, 'err-out')) => runCampaign(cc, { outRoot: out, images: false, partials: list, keepPartials: true });
+    const noOutput = () => expect(existsSync(join(dir, 'err-out'))).toBe(false);
+
+    it('a missing shard names the data file and the uncovered time', async () => {
+      await expect(merge([parts[0], parts[1]])).rejects.toThrow(/^data\/b2\.csv: no partial result covers its rows from .* on \(a shard missing\?\)$/);
+      noOutput();
+    });
+    it('a partial given twice is a duplicate', async () => {
+      await expect(merge([parts[0], parts[1], parts[2], parts[1]])).rejects.toThrow(`${parts[1]}: duplicate of ${parts[1]} (the same shard twice)`);
+      noOutput();
+    });
+    it('overlapping shards', async () => {
+      const extra = join(dir, 'errs', 'overlap.wpart');
+      await runShard(c, { files: files().slice(3, 4), from_s: t0 + 600, to_s: t0 + 800 }, extra);
+      await expect(merge([...parts, extra])).rejects.toThrow(/overlaps .*p[12]\.wpart \(both read data\/b2\.csv over /);
+      noOutput();
+    });
+    it('another campaign, other settings, another version, an unfinished or foreign file', async () => {
+      const other = { ...c, name: 'another-campaign' };
+      await expect(merge(parts, other)).rejects.toThrow(`${parts[0]}: partial result of campaign "tiny-test", not "another-campaign"`);
+      const changed = { ...c, qc: { ...c.qc, cnr_db: { ...c.qc.cnr_db, min: c.qc.cnr_db.min - 1 } } };
+      await expect(merge(parts, changed)).rejects.toThrow(`${parts[0]}: partial result of campaign "tiny-test" with other settings`);
+      // Another version: the header's version field rewritten in a copy (same length, so the offsets stay valid).
+      const old = join(dir, 'errs', 'old.wpart');
+      const bytes = readFileSync(parts[0]);
+      const at = bytes.indexOf('"version":"0.1.0"');
+      expect(at).toBeGreaterThan(0);
+      bytes.write('"version":"0.0.9"', at, 'latin1');
+      writeFileSync(old, bytes);
+      await expect(merge([old, parts[1], parts[2]])).rejects.toThrow(`${old}: written by wakeplane 0.0.9, this is 0.1.0: run the shard again with this version`);
+      const cut = join(dir, 'errs', 'cut.wpart');
+      writeFileSync(cut, readFileSync(parts[0]).subarray(0, 4000));
+      await expect(merge([cut, parts[1], parts[2]])).rejects.toThrow(`${cut}: unfinished partial result (no trailer: its shard did not complete)`);
+      const foreign = join(dir, 'errs', 'notes.txt');
+      writeFileSync(foreign, 'some text that is not a partial result at all, long enough to be read');
+      await expect(merge([foreign, parts[1], parts[2]])).rejects.toThrow(`${foreign}: not a wakeplane partial result`);
+      await expect(merge([join(dir, 'errs', 'nothing.wpart')])).rejects.toThrow('nothing.wpart: partial result not found');
+      noOutput();
+      // The partials are still there (nothing is removed when a merge fails).
+      for (const p of parts) expect(existsSync(p)).toBe(true);
+    });
+  });
+});
+
+describe('accumulator state', () => {
+  it('round-trips every field and merges to the same content as adding all samples to one accumulator', () => {
+    const rnd = mulberry32(5);
+    const keys = 50;
+    const whole = new CellAccumulator(keys, 2), a = new CellAccumulator(keys, 2), b = new CellAccumulator(keys, 2);
+    for (let i = 0; i < 20000; i++) {
+      const k = Math.floor(rnd() * keys);
+      // Mostly a normal spread, sometimes far outliers (the histogram's table path).
+      const v = rnd() < 0.02 ? (rnd() - 0.5) * 100 : 5 + (rnd() - 0.5) * 4;
+      const args = [k, v, rnd(), rnd(), rnd(), rnd() * 100, rnd() * 100] as const;
+      whole.add(...args);
+      (i % 3 === 0 ? a : b).add(...args);
+    }
+    const a2 = accumulatorFromState(accumulatorState(a));
+    const b2 = accumulatorFromState(accumulatorState(b));
+    a2.merge(b2);
+    expect(a2.slots).toBe(whole.slots);
+    for (let s = 0; s < whole.slots; s++) {
+      const key = whole.keyOf[s], t = a2.slotOf[key];
+      // Integer sums: exact equality, no tolerance.
+      for (let f = 0; f < 9; f++) expect(a2.get(t, f)).toBe(whole.get(s, f));
+      const h1 = whole.hist.sorted(s), h2 = a2.hist.sorted(t);
+      expect(a2.hist.level[t]).toBe(whole.hist.level[s]);
+      expect([...h2.bins]).toEqual([...h1.bins]);
+      expect([...h2.counts]).toEqual([...h1.counts]);
+    }
+  });
+
+  it('the container keeps typed arrays and non-finite numbers exactly', () => {
+    const d = join(writeTinyCampaign().dir, 'x.wpart');
+    const w = new PartialWriter(d);
+    const at = w.write({ a: NaN, b: -Infinity, label: 'NaN' }, { x: Float64Array.of(1.5, NaN, -0), y: Uint8Array.of(1, 2, 3) });
+    w.close({ header: at });
+    const r = PartialReader.open(d);
+    const rec = r.read(r.index.header as number);
+    expect(rec.meta.a).toBeNaN();
+    expect(rec.meta.b).toBe(-Infinity);
+    expect(rec.meta.label).toBe('NaN');
+    expect([...rec.arrays.x]).toEqual([1.5, NaN, -0]);
+    expect([...rec.arrays.y]).toEqual([1, 2, 3]);
+    r.close();
+    copyFileSync(d, d + '.copy');
+  });
+});
+
+void REJECT_REASONS;
