@@ -1,7 +1,8 @@
 /**
  * Throughput benchmark (`npm run bench`, or `node bin/run-ts.js bench/run.ts [--rows N] [--skip-pipeline]`).
  *
- * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-figures, --runs-figures N,
+ * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-cores, --runs-cores N,
+ * --skip-figures, --runs-figures N,
  * --before DIR (an earlier wakeplane checkout whose demo figures are timed alongside).
  * 1. Generates the benchmark campaign if missing (bench/generate.ts; $WAKEPLANE_BENCH_DIR, default
  *    <tmp>/wakeplane-bench; rows from --rows or $WAKEPLANE_BENCH_ROWS, default 10,000,000).
@@ -14,6 +15,8 @@
  *    medians are quoted with the range.
  * 5. Files without ray structure (bench/generateFocus.ts): every row its own angles and almost every sample in the
  *    plane, as the whole job with one whole-record window and with 10-minute windows, --runs times each.
+ * 5b. Every core (bench/cores.ts; skip with --skip-cores): the whole job with --cores 1 and with every core,
+ *    alternately, --runs-cores times (default 3); medians, speed-up, load average, byte-identical field tables.
  * 6. Figures (skip with --skip-figures): the demo campaign run with and without images, --runs-figures times
  *    (default 3) in pairs, the figure stage's seconds from the manifest; and a campaign of over 1,000 windows (the
  *    benchmark's samples in 40-second windows) drawing its default figures once.
@@ -29,6 +32,7 @@ import { median } from '../src/qc/robust.ts';
 import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate.ts';
 import { benchVariants } from './netcdf.ts';
 import { generateFocus } from './generateFocus.ts';
+import { coresBench } from './cores.ts';
 // @ts-expect-error plain JavaScript helper of the entry point, without type declarations
 import { sourceStamp } from '../bin/stamp.js';
 
@@ -117,7 +121,7 @@ interface FigureRun { wall: number; images: number; total: number; windows: numb
 /** One `wakeplane run` as a child process (of this checkout, or of `root`); the figure stage's time and counts from its manifest. */
 async function figureRun(campaign: string, outRoot: string, name: string, images: boolean, root = ROOT): Promise<FigureRun> {
   rmSync(join(outRoot, name), { recursive: true, force: true });
-  const r = await runChild(process.execPath, [join(root, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--out', outRoot, ...(images ? [] : ['--no-images'])], true);
+  const r = await runChild(process.execPath, [join(root, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--cores', '1', '--out', outRoot, ...(images ? [] : ['--no-images'])], true);
   if (r.code !== 0) throw new Error(`wakeplane run ${campaign} failed: ${r.stderr.slice(-600)}`);
   const m = JSON.parse(readFileSync(join(outRoot, name, 'manifest.json'), 'utf8')) as { timings_s: Record<string, number>; windows: unknown[]; outputs: { kind: string; path: string }[]; peakRss_bytes: number };
   return {
@@ -172,7 +176,7 @@ interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_M
 /** One whole job as a child process; the manifest's figures. */
 async function wholeJob(campaign: string): Promise<PipeRun | string> {
   const doc = parse(readFileSync(campaign, 'utf8')) as { name: string; output: { dir: string } };
-  const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images'], true);
+  const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images', '--cores', '1'], true);
   if (r.code !== 0) return `exit ${r.code}: ${r.stderr.split('\n').slice(-8).join('\n')}`;
   const runDir = join(resolve(doc.output.dir), doc.name);
   const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number };
@@ -223,7 +227,7 @@ async function main() {
       // the output folder belongs to the benchmark (inside its data folder): start empty, so that earlier results
       // are not kept as <name>.replaced-<time> run after run
       if (resolve(campaignDoc.output.dir) === join(d.dir, 'output')) rmSync(resolve(campaignDoc.output.dir), { recursive: true, force: true });
-      const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', d.campaign, '--quiet', '--no-images'], true);
+      const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', d.campaign, '--quiet', '--no-images', '--cores', '1'], true);
       if (r.code !== 0) {
         failed = `exit ${r.code}: ${r.stderr.split('\n').filter((l) => !/^\s+\S.*: /.test(l) || /rror/.test(l)).slice(-8).join('\n')}`;
         break;
@@ -259,7 +263,7 @@ async function main() {
       const r0 = { name, secs: [] as number[], rss: [] as number[], read: 0 };
       for (let k = 0; k < runs; k++) {
         rmSync(join(doc.output.dir, doc.name), { recursive: true, force: true });
-        const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images'], true);
+        const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images', '--cores', '1'], true);
         if (r.code !== 0) { console.log(`  ${name}: FAILED exit ${r.code}: ${r.stderr.slice(-400)}`); break; }
         const m = JSON.parse(readFileSync(join(doc.output.dir, doc.name, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; peakRss_bytes: number };
         r0.secs.push(r.seconds);
@@ -320,6 +324,7 @@ async function main() {
       out(`  ${f.name.padEnd(24)} ${spread(f.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...f.rss), 0)} MB   ${verdict(rate >= TARGET.samplesPerSecond)} (>= 3e6/s), ${verdict(Math.max(...f.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
     }
   }
+  if (!process.argv.includes('--skip-cores')) await coresBench(d, runsFromArgs(process.argv, '--runs-cores', 3), out);
   if (!skipFigures) {
     console.log('6. figures: the demo with and without images, then more than 1,000 windows');
     await figuresBench(d, runsFromArgs(process.argv, '--runs-figures', 3), out);
