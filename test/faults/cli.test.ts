@@ -23,10 +23,10 @@ describe('help and commands', () => {
   it('an unknown command says so and lists the commands, exit 1', async () => {
     const r = await runCli(['frobnicate', 'x.yaml']);
     expect(r.code).toBe(1);
-    expect(r.stderr).toBe('wakeplane: unknown command "frobnicate"; the commands are: demo, run, render, check, plan, simulate, schema (wakeplane --help)\n');
+    expect(r.stderr).toBe('wakeplane: unknown command "frobnicate"; the commands are: demo, run, merge, slurm, render, check, plan, simulate, schema (wakeplane --help)\n');
     const none = await runCli([]);
     expect(none.code).toBe(1);
-    expect(none.stderr).toContain('name a command: demo, run, render, check, plan, simulate, schema');
+    expect(none.stderr).toContain('name a command: demo, run, merge, slurm, render, check, plan, simulate, schema');
   });
 
   it('every positional and option of every command has a description', async () => {
