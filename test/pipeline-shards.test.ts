@@ -26,6 +26,8 @@ import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { runCli } from './faults/helpers.ts';
+import { stringify, parse } from 'yaml';
 
 /** Every field table (plane windows and bins) of a run folder: name -> bytes. */
 function fieldTables(runDir: string): Map<string, string> {
@@ -140,6 +142,43 @@ describe('sharded runs merge exactly', () => {
     expectSameRun(single, multi);
     expect(multi.notices.some((n) => n.includes('2 processes'))).toBe(true);
     expect(existsSync(join(multi.runDir, '.shards'))).toBe(false);
+  }, 120_000);
+
+  it('the command line: run --partial by files and by time, then merge, equals run --cores 1', async () => {
+    // The campaign file itself lists the split files (the command loads it from disk).
+    const doc = parse(readFileSync(file, 'utf8')) as { instruments: { id: string; files: string[] }[]; windows: unknown; name: string };
+    for (const ins of doc.instruments) ins.files = [`data/${ins.id}1.csv`, `data/${ins.id}2.csv`];
+    doc.windows = { kind: 'fixed', length_s: 600, anchor: 'first-sample' };
+    const cf = join(dir, 'campaign-split.yaml');
+    writeFileSync(cf, stringify(doc));
+    const single = await runCli(['run', cf, '--cores', '1', '--no-images', '--quiet', '--out', join(dir, 'cli-single')]);
+    expect(single.stderr).toBe('');
+    const cut = new Date((t0 + 1234.5) * 1000).toISOString();
+    const p = (k: number) => join(dir, 'cli-parts', `p${k}.wpart`);
+    const shards = [
+      ['--files', 'data/a1.csv,data/b1.csv,data/c1.csv', '--until', cut],
+      ['--files', 'data/a1.csv,data/b1.csv,data/c1.csv', '--from', cut],
+      ['--files', 'data/a2.csv', '--files', 'data/b2.csv', '--files', 'data/c2.csv'],
+    ];
+    for (const [k, args] of shards.entries()) {
+      const r = await runCli(['run', cf, '--partial', p(k), '--quiet', ...args], dir);
+      expect(r.stderr).toBe('');
+      expect(r.code).toBe(0);
+    }
+    const merged = await runCli(['merge', p(0), p(1), p(2), '--keep-partials', '--no-images', '--quiet', '--out', join(dir, 'cli-merged')]);
+    expect(merged.stderr).toBe('');
+    const a = fieldTables(join(dir, 'cli-single', 'tiny-test')), b = fieldTables(join(dir, 'cli-merged', 'tiny-test'));
+    expect([...b.keys()]).toEqual([...a.keys()]);
+    for (const [n, text] of a) expect(b.get(n), n).toBe(text); // byte-identical
+    const ma = JSON.parse(readFileSync(join(dir, 'cli-single', 'tiny-test', 'manifest.json'), 'utf8'));
+    const mb = JSON.parse(readFileSync(join(dir, 'cli-merged', 'tiny-test', 'manifest.json'), 'utf8'));
+    expect(mb.samples).toEqual(ma.samples); // exact sums
+    expect(existsSync(p(0))).toBe(true); // --keep-partials
+    // A missing shard: one line naming the data file, exit 1, no output.
+    const bad = await runCli(['merge', p(0), p(2), '--no-images', '--out', join(dir, 'cli-bad')]);
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/^wakeplane: data\/a1\.csv: no partial result covers its rows from \S+ on \(a shard missing\?\)\n$/);
+    expect(existsSync(join(dir, 'cli-bad'))).toBe(false);
   }, 120_000);
 
   describe('partials that cannot be merged', () => {
