@@ -34,7 +34,6 @@ if (!['sbatch', 'slurmctld', 'slurmd', 'munged'].every(have)) {
   execSync('apt-get update', { stdio: 'inherit' });
   execSync('DEBIAN_FRONTEND=noninteractive apt-get install -y slurm-wlm munge', { stdio: 'inherit' });
 }
-log(`${sh('sbatch --version')}; munge ${sh('munged --version 2>&1 | head -1')}`);
 
 // 2. A one-node cluster.
 const work = mkdtempSync(join(tmpdir(), 'wakeplane-slurm-'));
@@ -56,6 +55,7 @@ writeFileSync(conf, [
   `PartitionName=wpcheck Nodes=${host} Default=YES MaxTime=INFINITE State=UP`, '',
 ].join('\n'));
 const env = { ...process.env, SLURM_CONF: conf };
+log(`${sh('sbatch --version', env)}; ${sh('munged --version 2>&1 | head -1')}`);
 const started: string[] = [];
 if (!existsSync('/etc/munge/munge.key')) {
   log('creating /etc/munge/munge.key');
