@@ -78,6 +78,8 @@ async function shardAndMerge(c: Campaign, specs: ShardSpec[], dir: string, out: 
 
 function expectSameRun(single: RunResult, merged: RunResult): void {
   const a = fieldTables(single.runDir), b = fieldTables(merged.runDir);
+  expect(a.size).toBeGreaterThan(0);
+  expect(single.manifest.samples.total.accepted).toBeGreaterThan(0);
   expect([...b.keys()]).toEqual([...a.keys()]);
   // Byte-identical: the merge must reproduce the single run exactly (no tolerance).
   for (const [name, text] of a) expect(b.get(name), name).toBe(text);
@@ -85,6 +87,12 @@ function expectSameRun(single: RunResult, merged: RunResult): void {
   expect(merged.manifest.samples).toEqual(single.manifest.samples);
   expect(merged.manifest.windows).toEqual(single.manifest.windows);
   expect(readFileSync(join(merged.runDir, 'wake', 'wake_table.csv'), 'utf8')).toBe(readFileSync(join(single.runDir, 'wake', 'wake_table.csv'), 'utf8'));
+  // The NetCDF outputs (written on another thread, awaited before the manifest): present and complete in both.
+  const ncs = readdirSync(join(single.runDir, 'fields')).filter((f) => f.endsWith('.nc'));
+  expect(ncs.length).toBeGreaterThan(0);
+  for (const f of ncs) expect(readFileSync(join(merged.runDir, 'fields', f)).length, f).toBe(readFileSync(join(single.runDir, 'fields', f)).length);
+  const listed = (r: RunResult) => r.manifest.outputs.map((o) => o.path).sort();
+  expect(listed(merged)).toEqual(listed(single));
 }
 
 describe('sharded runs merge exactly', () => {
@@ -118,6 +126,19 @@ describe('sharded runs merge exactly', () => {
       expect(readdirSync(join(dir, `parts${trial}`)).filter((f) => f.endsWith('.wpart'))).toEqual([]);
     }
     expect(cutWindows).toBeGreaterThan(0);
+  }, 120_000);
+
+  it('one whole-record window: its bounds are the first and last sample over all shards', async () => {
+    const cr: Campaign = { ...c, windows: { kind: 'record' } } as Campaign;
+    const single = await runCampaign(cr, { outRoot: join(dir, 'single-rec'), images: false, stages: defaultStages() });
+    expect(single.manifest.windows).toHaveLength(1);
+    const files = cr.instruments.flatMap((i) => i.files);
+    const specs: ShardSpec[] = [
+      { files: files.filter((_, k) => k % 2 === 0), from_s: -Infinity, to_s: t0 + 777 },
+      { files: files.filter((_, k) => k % 2 === 0), from_s: t0 + 777, to_s: Infinity },
+      { files: files.filter((_, k) => k % 2 === 1), from_s: -Infinity, to_s: Infinity },
+    ];
+    expectSameRun(single, await shardAndMerge(cr, specs, join(dir, 'parts-rec'), join(dir, 'merged-rec')));
   }, 120_000);
 
   it('condition bins: ensembles of merged windows equal the single run\'s', async () => {
@@ -240,6 +261,59 @@ describe('sharded runs merge exactly', () => {
       for (const p of parts) expect(existsSync(p)).toBe(true);
     });
   });
+});
+
+/** A demo scenario copied into a temporary folder with fewer simulated windows, simulated. */
+async function smallScenario(name: string, windows: number): Promise<{ dir: string; c: Campaign }> {
+  const dir = join(writeTinyCampaign().dir, name);
+  mkdirSync(dir, { recursive: true });
+  const doc = parse(readFileSync(join(import.meta.dirname, '..', 'scenarios', name, 'campaign.yaml'), 'utf8')) as { simulation: { windows: number } };
+  doc.simulation.windows = windows;
+  const file = join(dir, 'campaign.yaml');
+  writeFileSync(file, stringify(doc));
+  await simulateCampaign(loadCampaignFile(file));
+  return { dir, c: loadCampaignFile(file) };
+}
+
+describe('sharded demo scenarios', () => {
+  it('several turbines on terrain with segment windows and the power stage (tarnwick): shards by file and time', async () => {
+    const { dir, c } = await smallScenario('tarnwick', 4);
+    const single = await runCampaign(c, { outRoot: join(dir, 'single'), images: false, stages: defaultStages() });
+    expect(single.manifest.windows.length).toBeGreaterThanOrEqual(2);
+    const files = c.instruments.flatMap((i) => i.files);
+    const mid = (single.manifest.windows[0].start_s + single.manifest.windows[0].end_s) / 2; // inside the first window
+    const specs: ShardSpec[] = [
+      { files: [files[0]], from_s: -Infinity, to_s: mid },
+      { files: [files[0]], from_s: mid, to_s: Infinity },
+      { files: files.slice(1), from_s: -Infinity, to_s: Infinity },
+    ];
+    const merged = await shardAndMerge(c, specs, join(dir, 'parts'), join(dir, 'merged'));
+    expectSameRun(single, merged);
+    // The power stage (per-window power, bootstrap gains with a fixed seed) and the wakes of every turbine follow.
+    for (const f of ['power/window_power.csv', 'power/power_gain.csv', 'wake/turbine_wakes.csv', 'wake/steering.csv', 'wake/downstream.csv']) {
+      expect(readFileSync(join(merged.runDir, f), 'utf8'), f).toBe(readFileSync(join(single.runDir, f), 'utf8'));
+    }
+  }, 180_000);
+
+  it('profiles, nacelle beams and a tracker (fernhollow): shards by file and time', async () => {
+    const { dir, c } = await smallScenario('fernhollow', 2);
+    const single = await runCampaign(c, { outRoot: join(dir, 'single'), images: false, stages: defaultStages() });
+    const files = c.instruments.flatMap((i) => i.files);
+    const w0 = single.manifest.windows[0];
+    const mid = w0.start_s + 0.37 * (w0.end_s - w0.start_s);
+    const half = Math.ceil(files.length / 2);
+    const specs: ShardSpec[] = [
+      { files: files.slice(0, half), from_s: -Infinity, to_s: mid },
+      { files: files.slice(0, half), from_s: mid, to_s: Infinity },
+      { files: files.slice(half), from_s: -Infinity, to_s: Infinity },
+    ];
+    const merged = await shardAndMerge(c, specs, join(dir, 'parts'), join(dir, 'merged'));
+    expectSameRun(single, merged);
+    // The sibling geometries' tables too (profiles, nacelle beams, tracks): byte-identical.
+    const geo = readdirSync(single.runDir, { recursive: true }).map(String).filter((f) => /^(profiles|nacelle|track)[/\\].*\.csv$/.test(f));
+    expect(geo.length).toBeGreaterThan(0);
+    for (const f of geo) expect(readFileSync(join(merged.runDir, f), 'utf8'), f).toBe(readFileSync(join(single.runDir, f), 'utf8'));
+  }, 180_000);
 });
 
 describe('accumulator state', () => {
