@@ -100,6 +100,8 @@ export interface IngestOptions {
   firstSample_s?: number;
   /** Sees each batch of valid rows taken (after a shard's time filter), before quality control. */
   onBatch?(b: SampleBatch): void;
+  /** Every window ending at or before `t` has been handed to onWindow (and no later sample can reach one). */
+  onFinishedTo?(t: number): void;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -259,6 +261,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         spare[k].push(a);
       });
     }
+    opts.onFinishedTo?.(watermark);
   };
 
   // The windows of the current time range (reused while samples stay inside it): how many contain it (nFound),

@@ -29,7 +29,7 @@ import { dirname, relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { InputError, PartialError, Problems } from '../errors.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
-import { accumulatorFromState, accumulatorLayout, accumulatorState } from '../grid/accumulatorState.ts';
+import { accumulatorFromState, accumulatorLayout, accumulatorState, type TypedArray } from '../grid/accumulatorState.ts';
 import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { PARTIAL_FORMAT, PartialReader, PartialWriter } from '../io/partialFile.ts';
@@ -74,11 +74,54 @@ export interface ShardResult {
 }
 
 /**
+ * Where a shard's results go, in this order: begin (the header), then windows as they finish (in the order a run
+ * finishes them) with the time up to which every window is finished and batches of unreadable rows, then end
+ * (counters, per-file evidence, per-file time spans). A partial file (fileSink) or the parent process (shardProcesses.ts).
+ */
+export interface ShardSink {
+  begin(header: Record<string, unknown>): void;
+  window(meta: Record<string, unknown>, arrays: Record<string, TypedArray>): void | Promise<void>;
+  finishedTo?(t: number): void;
+  rejected(rows: RejectedRow[]): void;
+  end(counters: Record<string, Float64Array>, evidence: [string, EvidenceState][], spans: [string, [number, number]][]): void | Promise<void>;
+  abort(): void;
+}
+
+/** The sink writing a partial file (io/partialFile.ts; the records described at the top of this file). */
+export function fileSink(partialPath: string): ShardSink {
+  mkdirSync(dirname(partialPath), { recursive: true });
+  const out = new PartialWriter(partialPath);
+  let header = -1;
+  const windows: [number, number, number, number][] = [];
+  const rejected: number[] = [];
+  return {
+    begin(h) { header = out.write({ type: 'header', ...h }); },
+    window(meta, arrays) {
+      const def = meta.def as WindowDef;
+      windows.push([def.id, meta.start_s as number, meta.end_s as number, out.write({ type: 'window', ...meta }, arrays)]);
+    },
+    rejected(rows) { rejected.push(out.write({ type: 'rejected', rows })); },
+    end(counters, evidence, spans) {
+      const cnt = out.write({ type: 'counters' }, counters);
+      const ev = evidence.map(([f, e]) => [f, out.write({ type: 'evidence', file: f, meta: e.meta }, e.arrays)]);
+      out.close({ header, windows, rejected, counters: cnt, evidence: ev, spans, reasons: [...REJECT_REASONS] });
+    },
+    abort() { out.abort(); },
+  };
+}
+
+/**
  * Reads one shard of a campaign and writes its partial result to `partialPath` (atomically: the file appears only
  * when complete). Memory is bounded as for a run: each finished window's accumulators are written and reused.
  */
 export async function runShard(c: Campaign, spec: ShardSpec, partialPath: string, opts: { firstSample_s?: number } = {}): Promise<ShardResult> {
-  const pre = await preflight(c, { outRoot: dirname(partialPath), folder: '', kind: 'run', data: true, output: false });
+  const r = await runShardTo(c, spec, fileSink(partialPath), opts);
+  return { ...r, partial: partialPath };
+}
+
+/** Reads one shard of a campaign into `sink`. */
+export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, opts: { firstSample_s?: number } = {}): Promise<{ windows: number; read: number }> {
+  const pre = await preflight(c, { outRoot: c.baseDir, folder: '', kind: 'run', data: true, output: false });
   if (pre.errors.length) throw pre.errors.length === 1 ? pre.errors[0] : new Problems(pre.errors);
   const cRead = pre.campaign;
   const allFiles = pre.files.map((f) => f.file);
@@ -96,20 +139,17 @@ export async function runShard(c: Campaign, spec: ShardSpec, partialPath: string
   const terrain = await loadTerrain(c);
   const inspector = new SuspicionInspector(cRead, suspicionSettings(c));
   const counters = new Counters(c.instruments.length);
-  mkdirSync(dirname(partialPath), { recursive: true });
-  const out = new PartialWriter(partialPath);
   try {
-    const header = out.write({
-      type: 'header', tool: 'wakeplane', version: VERSION, format: PARTIAL_FORMAT, layout: accumulatorLayout(),
+    sink.begin({
+      tool: 'wakeplane', version: VERSION, format: PARTIAL_FORMAT, layout: accumulatorLayout(),
       campaign: { name: c.name, file: c.sourceFile, sha256: campaignSha(c) }, settingsKey: settingsKey(c),
       allFiles, shard: { files: [...files], from_s: spec.from_s, to_s: spec.to_s },
       targets: rt.targets.map((t) => ({ id: t.id, keyCount: t.keyCount })), instruments: c.instruments.length, firstSample_s: firstSample,
     });
-    const windows: [number, number, number, number][] = [];
-    const rejected: number[] = [];
+    let windows = 0;
     let pending: RejectedRow[] = [];
     const flush = () => {
-      if (pending.length) rejected.push(out.write({ type: 'rejected', rows: pending }));
+      if (pending.length) sink.rejected(pending);
       pending = [];
     };
     const spans = new Map<string, [number, number]>();
@@ -134,33 +174,59 @@ export async function runShard(c: Campaign, spec: ShardSpec, partialPath: string
         const s = spans.get(b.file);
         spans.set(b.file, s ? [Math.min(s[0], lo), Math.max(s[1], hi)] : [lo, hi]);
       },
+      onFinishedTo: (t) => sink.finishedTo?.(t),
       async onWindow(w) {
-        const arrays: Record<string, import('../grid/accumulatorState.ts').TypedArray> = {};
+        const arrays: Record<string, TypedArray> = {};
         const accMeta: Record<string, unknown>[] = [];
         w.accs.forEach((a, k) => {
           const st = accumulatorState(a);
           accMeta.push(st.meta);
           for (const [n, v] of Object.entries(st.arrays)) arrays[`${k}.${n}`] = v;
         });
-        const at = out.write({ type: 'window', def: w.def, start_s: w.start_s, end_s: w.end_s, first_s: w.first_s, last_s: w.last_s, direction_deg: w.direction_deg, accs: accMeta }, arrays);
-        windows.push([w.def.id, w.start_s, w.end_s, at]);
+        await sink.window({ def: w.def, start_s: w.start_s, end_s: w.end_s, first_s: w.first_s, last_s: w.last_s, direction_deg: w.direction_deg, accs: accMeta }, arrays);
+        windows++;
       },
     }, counters);
     flush();
-    const cnt = out.write({ type: 'counters' }, { read: counters.read, accepted: counters.accepted, rejected: counters.rejected });
-    const evidence: [string, number][] = [];
-    for (const f of files) {
-      const e = inspector.evidenceOf(f);
-      evidence.push([f, out.write({ type: 'evidence', file: f, meta: e.meta }, e.arrays)]);
-    }
-    out.close({ header, windows, rejected, counters: cnt, evidence, spans: [...spans], reasons: [...REJECT_REASONS] });
+    await sink.end(
+      { read: counters.read, accepted: counters.accepted, rejected: counters.rejected },
+      [...files].map((f) => [f, inspector.evidenceOf(f)]),
+      [...spans],
+    );
     let read = 0;
     for (const r of counters.read) read += r;
-    return { partial: partialPath, windows: windows.length, read };
+    return { windows, read };
   } catch (e) {
-    out.abort();
+    sink.abort();
     throw e;
   }
+}
+
+/** Merges the records of one window from several shards (window metadata and per-target accumulator arrays). */
+export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays: Record<string, TypedArray> }[], start_s: number, end_s: number): FinishedWindow {
+  let merged: CellAccumulator[] | undefined;
+  let def: WindowDef | undefined, first = Infinity, last = -Infinity, direction = NaN;
+  for (const rec of recs) {
+    const m = rec.meta;
+    def ??= m.def as WindowDef;
+    direction = m.direction_deg as number;
+    first = Math.min(first, m.first_s as number);
+    last = Math.max(last, m.last_s as number);
+    const accs = (m.accs as Record<string, unknown>[]).map((meta, k) => {
+      const arrays: Record<string, TypedArray> = {};
+      const prefix = `${k}.`;
+      for (const [n, v] of Object.entries(rec.arrays)) if (n.startsWith(prefix)) arrays[n.slice(prefix.length)] = v;
+      return accumulatorFromState({ meta, arrays });
+    });
+    if (!merged) merged = accs;
+    else merged.forEach((a, k) => a.merge(accs[k]));
+  }
+  return { def: def!, start_s, end_s, direction_deg: direction, accs: merged!, first_s: first, last_s: last } as FinishedWindow;
+}
+
+/** Adds b into a, element by element. */
+export function addInto(a: Float64Array, b: Float64Array): void {
+  for (let i = 0; i < a.length; i++) a[i] += b[i];
 }
 
 /** One window over all partials: where its records are. */
@@ -255,23 +321,9 @@ export class PartialSet {
       }
     });
     const windows = [...byId.values()].sort((a, b) => a.end_s - b.end_s || a.start_s - b.start_s || a.id - b.id);
-    // Files of one instrument in different shards whose times overlap: duplicates between them are not looked for.
-    const warnings: string[] = [];
-    const owner = new Map<string, string>();
-    for (const ins of c.instruments) for (const f of ins.files) if (!owner.has(f)) owner.set(f, ins.id);
     const spans: { file: string; span: [number, number]; k: number }[] = [];
     readers.forEach((r, k) => { for (const [file, span] of r.index.spans as [string, [number, number]][]) spans.push({ file, span, k }); });
-    for (let i = 0; i < spans.length; i++) {
-      for (let j = i + 1; j < spans.length; j++) {
-        const a = spans[i], b = spans[j];
-        if (a.k === b.k || a.file === b.file || owner.get(a.file) !== owner.get(b.file)) continue;
-        // Strict overlap: files that only touch (a ray split between consecutive files) are not reported.
-        if (a.span[0] < b.span[1] && b.span[0] < a.span[1]) {
-          const [x, y] = [a.file, b.file].sort();
-          warnings.push(`instrument ${owner.get(a.file)}: files ${show(x)} and ${show(y)} overlap in time and were read in different shards: rows repeated between them were not looked for`);
-        }
-      }
-    }
+    const warnings = overlapWarnings(c, spans, show);
     return new PartialSet(readers, windows, first, warnings);
   }
 
@@ -286,34 +338,16 @@ export class PartialSet {
     inspector: SuspicionInspector;
   }): Promise<void> {
     for (const w of this.windows) {
-      let merged: CellAccumulator[] | undefined;
-      let def: WindowDef | undefined, first = Infinity, last = -Infinity, direction = NaN;
-      for (const { reader, at } of w.parts) {
-        const rec = reader.read(at);
-        const m = rec.meta;
-        def ??= m.def as WindowDef;
-        direction = m.direction_deg as number;
-        first = Math.min(first, m.first_s as number);
-        last = Math.max(last, m.last_s as number);
-        const accs = (m.accs as Record<string, unknown>[]).map((meta, k) => {
-          const arrays: Record<string, never> = {};
-          const prefix = `${k}.`;
-          for (const [n, v] of Object.entries(rec.arrays)) if (n.startsWith(prefix)) arrays[n.slice(prefix.length)] = v as never;
-          return accumulatorFromState({ meta, arrays });
-        });
-        if (!merged) merged = accs;
-        else merged.forEach((a, k) => a.merge(accs[k]));
-      }
-      await opts.onWindow({ def: def!, start_s: w.start_s, end_s: w.end_s, direction_deg: direction, accs: merged!, first_s: first, last_s: last } as FinishedWindow);
+      await opts.onWindow(mergeWindowRecords(w.parts.map(({ reader, at }) => reader.read(at)), w.start_s, w.end_s));
     }
     for (const r of this.readers) {
       for (const at of r.index.rejected as number[]) opts.onRejectedRows(r.read(at).meta.rows as RejectedRow[]);
       const cnt = r.read(r.index.counters as number).arrays;
       const reasons = r.index.reasons as string[];
       if (reasons.length !== REJECT_REASONS.length || reasons.some((x, k) => x !== REJECT_REASONS[k])) throw new PartialError(`${r.path}: written with other rejection reasons`);
-      add(opts.counters.read, cnt.read as Float64Array);
-      add(opts.counters.accepted, cnt.accepted as Float64Array);
-      add(opts.counters.rejected, cnt.rejected as Float64Array);
+      addInto(opts.counters.read, cnt.read as Float64Array);
+      addInto(opts.counters.accepted, cnt.accepted as Float64Array);
+      addInto(opts.counters.rejected, cnt.rejected as Float64Array);
       for (const [file, at] of r.index.evidence as [string, number][]) {
         const rec = r.read(at);
         opts.inspector.absorb(file, { meta: rec.meta.meta as Record<string, unknown>, arrays: rec.arrays as EvidenceState['arrays'] });
@@ -326,11 +360,29 @@ export class PartialSet {
   }
 }
 
-function add(a: Float64Array, b: Float64Array): void {
-  for (let i = 0; i < a.length; i++) a[i] += b[i];
-}
 
 export { PartialError };
+
+/**
+ * Files of one instrument read in different shards whose times overlap (strictly: files that only touch, a ray
+ * split between consecutive files, are not reported): rows repeated between them were not looked for.
+ */
+export function overlapWarnings(c: Campaign, spans: { file: string; span: [number, number]; k: number }[], show: (f: string) => string): string[] {
+  const warnings: string[] = [];
+  const owner = new Map<string, string>();
+  for (const ins of c.instruments) for (const f of ins.files) if (!owner.has(f)) owner.set(f, ins.id);
+  for (let i = 0; i < spans.length; i++) {
+    for (let j = i + 1; j < spans.length; j++) {
+      const a = spans[i], b = spans[j];
+      if (a.k === b.k || a.file === b.file || owner.get(a.file) !== owner.get(b.file)) continue;
+      if (a.span[0] < b.span[1] && b.span[0] < a.span[1]) {
+        const [x, y] = [a.file, b.file].sort();
+        warnings.push(`instrument ${owner.get(a.file)}: files ${show(x)} and ${show(y)} overlap in time and were read in different shards: rows repeated between them were not looked for`);
+      }
+    }
+  }
+  return warnings;
+}
 
 /** Removes partial files after a successful merge (only files that are partial results). */
 export function removePartials(paths: string[]): void {

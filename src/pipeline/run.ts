@@ -27,7 +27,7 @@ import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { campaignFirstSample, Counters, ingest } from './ingest.ts';
 import { PartialSet, removePartials } from './partial.ts';
-import { runShardProcesses, shareFiles } from './shardProcesses.ts';
+import { runShardsLive, shareFiles } from './shardProcesses.ts';
 import type { FinishedWindow } from './finishWindows.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { WindowFinisher } from './finishWindows.ts';
@@ -249,21 +249,22 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       if (rejectedOut) for (const r of rows) rejectedOut.write(rowLine(rejectedLayout, [relative(c.baseDir, r.file) || r.file, r.line, r.variable, r.ray, r.gate, r.reason, r.detail, r.text]));
     };
     if (parallel) {
-      // Every core: the files shared out to child processes (by size), each writing a partial result here.
+      // Every core: the files shared out to child processes (by size); windows finished here as they come.
       const shardDir = join(runDir, '.shards');
       const groups = shareFiles(dataFiles.map((d) => d.file), cores);
       const first = await campaignFirstSample(cRead);
-      const made = await runShardProcesses(c, groups.map((files) => ({ files, from_s: -Infinity, to_s: Infinity })), shardDir, first);
-      partialSet = PartialSet.open(made, c, dataFiles.map((d) => d.file), show);
+      built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
+      finisher.disjoint = built.plan.disjoint;
+      const specs = groups.map((files) => ({ files, from_s: -Infinity, to_s: Infinity }));
+      warnings.push(...(await runShardsLive(c, specs, shardDir, first, { onWindow, onRejectedRows, counters, inspector }, show)));
+      rmSync(shardDir, { recursive: true, force: true });
       notices.push(`read in ${groups.length} processes (--cores ${cores})`);
-    }
-    if (partialSet) {
+    } else if (partialSet) {
       built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: partialSet.firstSample_s });
       finisher.disjoint = built.plan.disjoint;
       warnings.push(...partialSet.warnings);
       await partialSet.feed({ onWindow, onRejectedRows, counters, inspector });
       partialSet.close();
-      if (parallel) rmSync(join(runDir, '.shards'), { recursive: true, force: true });
     } else {
       await ingest(
         {
