@@ -226,6 +226,12 @@ describe('sharded runs merge exactly', () => {
       await expect(merge([parts[0], parts[1]])).rejects.toThrow(/^data\/b2\.csv: no partial result covers its rows from .* on \(a shard missing\?\)$/);
       noOutput();
     });
+    it('a shard never overwrites a file that is not a partial result', async () => {
+      const notes = join(dir, 'errs', 'my-notes.txt');
+      writeFileSync(notes, 'mine');
+      await expect(runShard(c, { from_s: -Infinity, to_s: Infinity }, notes)).rejects.toThrow(`${notes}: exists and is not a wakeplane partial result; left alone. Choose another --partial file`);
+      expect(readFileSync(notes, 'utf8')).toBe('mine');
+    });
     it('a partial given twice is a duplicate', async () => {
       await expect(merge([parts[0], parts[1], parts[2], parts[1]])).rejects.toThrow(`${parts[1]}: duplicate of ${parts[1]} (the same shard twice)`);
       noOutput();
@@ -261,6 +267,42 @@ describe('sharded runs merge exactly', () => {
       for (const p of parts) expect(existsSync(p)).toBe(true);
     });
   });
+});
+
+describe('wakeplane slurm', () => {
+  it('writes the shard manifest, a job array with the requested resources and a merge that waits for it', async () => {
+    const { dir, file } = writeTinyCampaign();
+    await simulateCampaign(loadCampaignFile(file));
+    const job = join(dir, 'job');
+    const r = await runCli(['slurm', file, '--dir', job, '--groups', '2', '--cuts', '2026-03-01T12:15:00Z', '--partition', 'wind', '--time', '01:30:00',
+      '--mem', '3G', '--cpus', '2', '--merge-mem', '6G', '--sbatch=--account=proj7', '--quiet']);
+    expect(r.stderr).toBe('');
+    const plan = JSON.parse(readFileSync(join(job, 'shards.json'), 'utf8'));
+    // 3 files in 2 groups of about equal size, each cut once: 4 shards covering every file over all time.
+    expect(plan.shards).toHaveLength(4);
+    expect(plan.shards.map((x: { from: string | null }) => x.from)).toEqual([null, '2026-03-01T12:15:00.000Z', null, '2026-03-01T12:15:00.000Z']);
+    expect(new Set(plan.shards.flatMap((x: { files: string[] }) => x.files)).size).toBe(3);
+    const array = readFileSync(join(job, 'array.sh'), 'utf8');
+    for (const line of ['#SBATCH --array=0-3', '#SBATCH --partition=wind', '#SBATCH --time=01:30:00', '#SBATCH --mem=3G', '#SBATCH --cpus-per-task=2', '#SBATCH --account=proj7']) expect(array).toContain(line);
+    expect(array).toContain('--shard-plan');
+    expect(array).toContain('--shard "$SLURM_ARRAY_TASK_ID"');
+    const merge = readFileSync(join(job, 'merge.sh'), 'utf8');
+    expect(merge).toContain('#SBATCH --mem=6G');
+    expect(merge).toMatch(/ merge .*shard-0\.wpart .*shard-3\.wpart --campaign /);
+    const submit = readFileSync(join(job, 'submit.sh'), 'utf8');
+    expect(submit).toContain('sbatch --parsable --dependency=afterok:$array merge.sh');
+    // Each task runs its shard: task 1 through the command line, as the array would.
+    const task = await runCli(['run', file, '--shard-plan', join(job, 'shards.json'), '--shard', '1', '--quiet']);
+    expect(task.stderr).toBe('');
+    expect(existsSync(plan.shards[1].partial)).toBe(true);
+    // A resource value that is not one (a shell command) is refused; a foreign folder is left alone.
+    const bad = await runCli(['slurm', file, '--dir', join(dir, 'job2'), '--time', '1:00; rm -rf ~']);
+    expect(bad.stderr).toBe('wakeplane: option --time: not a SLURM value: "1:00; rm -rf ~"\n');
+    mkdirSync(join(dir, 'mine'));
+    writeFileSync(join(dir, 'mine', 'notes.txt'), 'x');
+    const foreign = await runCli(['slurm', file, '--dir', join(dir, 'mine')]);
+    expect(foreign.stderr).toBe(`wakeplane: ${join(dir, 'mine')}: exists and is not a folder wakeplane slurm wrote; left alone. Choose another --dir\n`);
+  }, 120_000);
 });
 
 /** A demo scenario copied into a temporary folder with fewer simulated windows, simulated. */

@@ -27,7 +27,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { dirname, relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
-import { InputError, PartialError, Problems } from '../errors.ts';
+import { InputError, OutputError, PartialError, Problems } from '../errors.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { accumulatorFromState, accumulatorLayout, accumulatorState, type TypedArray } from '../grid/accumulatorState.ts';
 import type { SampleTarget } from '../grid/target.ts';
@@ -89,6 +89,14 @@ export interface ShardSink {
 
 /** The sink writing a partial file (io/partialFile.ts; the records described at the top of this file). */
 export function fileSink(partialPath: string): ShardSink {
+  if (existsSync(partialPath)) {
+    // Never touch a file the tool did not make: only an earlier partial result is replaced (a shard run again).
+    try {
+      PartialReader.open(partialPath).close();
+    } catch {
+      throw new OutputError(partialPath, 'exists and is not a wakeplane partial result; left alone. Choose another --partial file');
+    }
+  }
   mkdirSync(dirname(partialPath), { recursive: true });
   const out = new PartialWriter(partialPath);
   let header = -1;

@@ -8,12 +8,12 @@
  * The scripts call the same node and entry script as the command that wrote them (override with `command`), so the
  * cluster's nodes must see this installation, the campaign and its data at the same paths (a shared file system).
  */
-import { chmodSync, mkdirSync, writeFileSync } from 'node:fs';
+import { chmodSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { existsSync } from 'node:fs';
 import type { Campaign } from '../campaign/types.ts';
-import { OptionError } from '../errors.ts';
+import { OptionError, OutputError } from '../errors.ts';
 import { isoTime } from '../io/time.ts';
 import type { ShardSpec } from './partial.ts';
 import { settingsKey } from './partial.ts';
@@ -83,6 +83,12 @@ export function prepareSlurm(c: Campaign, files: string[], firstSample_s: number
   }
   if (o.cpus !== undefined && !(Number.isInteger(o.cpus) && o.cpus >= 1)) throw new OptionError('cpus', 'must be a whole number >= 1');
   const dir = resolve(o.dir);
+  // Never touch files the tool did not make: the folder must be new, empty, or one this command wrote before.
+  if (existsSync(dir) && readdirSync(dir).length > 0) {
+    let ours = false;
+    try { ours = (JSON.parse(readFileSync(join(dir, 'shards.json'), 'utf8')) as { kind?: string }).kind === 'shard-plan'; } catch { /* not ours */ }
+    if (!ours) throw new OutputError(dir, 'exists and is not a folder wakeplane slurm wrote; left alone. Choose another --dir');
+  }
   const specs = planShards(files, o.fileGroups ?? Math.min(files.length, 64), o.cuts ?? []);
   mkdirSync(join(dir, 'partials'), { recursive: true });
   mkdirSync(join(dir, 'logs'), { recursive: true });
