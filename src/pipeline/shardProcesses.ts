@@ -195,7 +195,12 @@ function ipcSink(): ShardSink {
 /** The child's side: runs the shard described by a job file (the hidden `_shard` command). */
 export async function runShardJob(jobFile: string): Promise<void> {
   const job = deserialize(readFileSync(jobFile)) as ShardJob;
+  // A child sending to its parent stops when the parent is gone (stopped by a signal, or failed).
+  if (!job.partial) process.once('disconnect', () => process.exit(1));
   const sink = job.partial ? fileSink(job.partial) : ipcSink();
   await runShardTo(job.campaign, job.spec, sink, { firstSample_s: job.firstSample_s });
-  if (!job.partial) process.disconnect?.();
+  if (!job.partial) {
+    process.removeAllListeners('disconnect');
+    process.disconnect?.();
+  }
 }
