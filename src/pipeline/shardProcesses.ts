@@ -118,8 +118,12 @@ export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string
       for (const w of ready) await to.onWindow(mergeWindowRecords(w.recs, w.start_s, w.end_s));
     }).catch((e) => { failed ??= e; });
   };
+  const procs: ChildProcess[] = [];
   const children = specs.map((spec, k) => {
     const { child, done } = startChild({ campaign: c, spec, firstSample_s }, join(dir, `shard-${k}.job`), true);
+    procs.push(child);
+    // One failed: the others' work is lost anyway, stop them (only the processes started here, by their handles).
+    done.catch(() => { for (const p of procs) if (p !== child && p.exitCode === null) p.kill(); });
     child.on('message', (m: Message) => {
       switch (m.type) {
         case 'window': {
