@@ -16,7 +16,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import type { Campaign } from '../src/campaign/types.ts';
 import { CellAccumulator } from '../src/grid/accumulator.ts';
-import { accumulatorFromState, accumulatorState } from '../src/grid/accumulatorState.ts';
+import { accumulatorFromState, accumulatorFromStates, accumulatorState } from '../src/grid/accumulatorState.ts';
 import { PartialWriter, PartialReader } from '../src/io/partialFile.ts';
 import { campaignFirstSample } from '../src/pipeline/ingest.ts';
 import { runShard, type ShardSpec } from '../src/pipeline/partial.ts';
@@ -384,6 +384,30 @@ describe('accumulator state', () => {
       expect([...h2.bins]).toEqual([...h1.bins]);
       expect([...h2.counts]).toEqual([...h1.counts]);
     }
+  });
+
+  it('several states at once: keys in two states are merged, disjoint keys laid side by side, both exact', () => {
+    const rnd = mulberry32(9);
+    const keys = 40;
+    const whole = new CellAccumulator(keys, 2), a = new CellAccumulator(keys, 2), b = new CellAccumulator(keys, 2), c2 = new CellAccumulator(keys, 2);
+    for (let i = 0; i < 12000; i++) {
+      const k = Math.floor(rnd() * keys);
+      const args = [k, 3 + (rnd() - 0.5) * 3, rnd(), rnd(), rnd(), rnd() * 50, rnd() * 50] as const;
+      whole.add(...args);
+      // a and b: disjoint key halves; c2 overlaps both.
+      (k < keys / 2 ? a : rnd() < 0.5 ? b : c2).add(...args);
+    }
+    const disjoint = accumulatorFromStates([accumulatorState(a), accumulatorState(b)]);
+    const all = accumulatorFromStates([accumulatorState(a), accumulatorState(b), accumulatorState(c2)]);
+    for (let s = 0; s < whole.slots; s++) {
+      const key = whole.keyOf[s], t = all.slotOf[key];
+      for (let f = 0; f < 9; f++) expect(all.get(t, f)).toBe(whole.get(s, f)); // integer sums: exact
+      const h1 = whole.hist.sorted(s), h2 = all.hist.sorted(t);
+      expect([...h2.bins]).toEqual([...h1.bins]);
+      expect([...h2.counts]).toEqual([...h1.counts]);
+    }
+    expect(disjoint.total()).toBe(a.total() + b.total());
+    for (let s = 0; s < a.slots; s++) expect(disjoint.get(disjoint.slotOf[a.keyOf[s]], 1)).toBe(a.get(s, 1));
   });
 
   it('the container keeps typed arrays and non-finite numbers exactly', () => {

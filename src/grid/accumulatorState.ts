@@ -62,7 +62,7 @@ export function accumulatorLayout(): string {
     perSlot: f.perSlot.map(([n, w]) => [n, rec[n].constructor.name, w]),
     whole: f.whole.map((n) => [n, rec[n].constructor.name]),
     F, STRIDE, VR_SCALE, DIR_SCALE, POS_SCALE, SQ_SPLIT, MAX_SAMPLES_PER_KEY,
-    hist: { FINE_SHIFT, MAX_DISTINCT, form: 'level+sorted-bins' },
+    hist: { FINE_SHIFT, MAX_DISTINCT, form: 'level+sorted-bins', counts: 'Uint32Array' },
   });
   return layoutText;
 }
@@ -88,11 +88,67 @@ export function accumulatorState(acc: CellAccumulator): ArrayState {
     nb[s] = p.bins.length;
     total += p.bins.length;
   }
-  const bins = new Int32Array(total), counts = new Float64Array(total);
+  // Counts fit 32 bits: at most MAX_SAMPLES_PER_KEY (2^27) samples per key.
+  const bins = new Int32Array(total), counts = new Uint32Array(total);
   let o = 0;
   for (const p of parts) { bins.set(p.bins, o); counts.set(p.counts, o); o += p.bins.length; }
   Object.assign(arrays, { 'hist.level': level, 'hist.bins_per_slot': nb, 'hist.bins': bins, 'hist.counts': counts });
   return { meta, arrays };
+}
+
+/**
+ * One accumulator holding the sum of several states of the same key space (the parts of one window read by
+ * different shards). When no key occurs in two states (shards by instrument files: the usual case) the slots are
+ * laid side by side, a copy; otherwise each state is restored and merged with CellAccumulator.merge.
+ */
+export function accumulatorFromStates(states: ArrayState[]): CellAccumulator {
+  if (states.length === 1) return accumulatorFromState(states[0]);
+  const keyCount = states[0].meta.keyCount as number;
+  const seen = new Uint8Array(keyCount);
+  let clash = false;
+  for (const st of states) {
+    if (st.meta.keyCount !== keyCount) throw new RangeError('accumulator states of different key spaces');
+    const keys = st.arrays.keyOf as Int32Array;
+    for (let i = 0; i < keys.length && !clash; i++) {
+      if (seen[keys[i]]) clash = true;
+      seen[keys[i]] = 1;
+    }
+    if (clash) break;
+  }
+  if (clash) {
+    const acc = accumulatorFromState(states[0]);
+    for (let k = 1; k < states.length; k++) acc.merge(accumulatorFromState(states[k]));
+    return acc;
+  }
+  // Disjoint keys: concatenate the states' slots (a per-slot field of slot j of a state goes to the slot made for
+  // its key, in order) and restore each histogram.
+  const slots = states.reduce((a, st) => a + (st.meta.slots as number), 0);
+  const keyOf = new Int32Array(slots);
+  const perSlot = new Map<string, TypedArray>();
+  const probe = fieldsOf(new CellAccumulator(1, 1));
+  for (const [n, w] of probe.perSlot) {
+    const first = states[0].arrays[n];
+    if (!first) throw new RangeError(`accumulator state: field "${n}" missing`);
+    perSlot.set(n, new (first.constructor as new (n: number) => TypedArray)(slots * w));
+  }
+  const hl = new Uint8Array(slots), hn = new Int32Array(slots);
+  let nb = 0;
+  for (const st of states) nb += st.arrays['hist.bins'].length;
+  const hb = new Int32Array(nb), hc = new Uint32Array(nb);
+  let o = 0, ob = 0;
+  for (const st of states) {
+    const m = st.meta.slots as number;
+    keyOf.set(st.arrays.keyOf as Int32Array, o);
+    for (const [n, w] of probe.perSlot) perSlot.get(n)!.set(st.arrays[n] as never, o * w);
+    hl.set(st.arrays['hist.level'] as Uint8Array, o);
+    hn.set(st.arrays['hist.bins_per_slot'] as Int32Array, o);
+    hb.set(st.arrays['hist.bins'] as Int32Array, ob);
+    hc.set(st.arrays['hist.counts'] as Uint32Array, ob);
+    o += m;
+    ob += st.arrays['hist.bins'].length;
+  }
+  const arrays: Record<string, TypedArray> = { ...states[0].arrays, ...Object.fromEntries(perSlot), keyOf, 'hist.level': hl, 'hist.bins_per_slot': hn, 'hist.bins': hb, 'hist.counts': hc };
+  return accumulatorFromState({ meta: { ...states[0].meta, slots }, arrays });
 }
 
 /** An accumulator with exactly the content of `state` (written by accumulatorState under the same layout). */

@@ -29,7 +29,7 @@ import { dirname, relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { InputError, OutputError, PartialError, Problems } from '../errors.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
-import { accumulatorFromState, accumulatorLayout, accumulatorState, type TypedArray } from '../grid/accumulatorState.ts';
+import { accumulatorFromStates, accumulatorLayout, accumulatorState, type ArrayState, type TypedArray } from '../grid/accumulatorState.ts';
 import type { SampleTarget } from '../grid/target.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import { PARTIAL_FORMAT, PartialReader, PartialWriter } from '../io/partialFile.ts';
@@ -212,24 +212,23 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
 
 /** Merges the records of one window from several shards (window metadata and per-target accumulator arrays). */
 export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays: Record<string, TypedArray> }[], start_s: number, end_s: number): FinishedWindow {
-  let merged: CellAccumulator[] | undefined;
   let def: WindowDef | undefined, first = Infinity, last = -Infinity, direction = NaN;
+  const perTarget: ArrayState[][] = [];
   for (const rec of recs) {
     const m = rec.meta;
     def ??= m.def as WindowDef;
     direction = m.direction_deg as number;
     first = Math.min(first, m.first_s as number);
     last = Math.max(last, m.last_s as number);
-    const accs = (m.accs as Record<string, unknown>[]).map((meta, k) => {
+    (m.accs as Record<string, unknown>[]).forEach((meta, k) => {
       const arrays: Record<string, TypedArray> = {};
       const prefix = `${k}.`;
       for (const [n, v] of Object.entries(rec.arrays)) if (n.startsWith(prefix)) arrays[n.slice(prefix.length)] = v;
-      return accumulatorFromState({ meta, arrays });
+      (perTarget[k] ??= []).push({ meta, arrays });
     });
-    if (!merged) merged = accs;
-    else merged.forEach((a, k) => a.merge(accs[k]));
   }
-  return { def: def!, start_s, end_s, direction_deg: direction, accs: merged!, first_s: first, last_s: last } as FinishedWindow;
+  const accs: CellAccumulator[] = perTarget.map((states) => accumulatorFromStates(states));
+  return { def: def!, start_s, end_s, direction_deg: direction, accs, first_s: first, last_s: last } as FinishedWindow;
 }
 
 /** Adds b into a, element by element. */

@@ -258,7 +258,22 @@ export class VrHistograms {
     let n = 0;
     for (let i = 0; i < counts.length; i++) n += counts[i];
     this.total[s] = n;
-    for (let i = 0; i < bins.length; i++) this.addBin(s, bins[i] >> (this.level[s] - level), counts[i]);
+    const m = bins.length;
+    if (m === 0) return;
+    // Usually every bin fits one dense range (as add() would have laid it out): filled directly, in one pass.
+    const span = bins[m - 1] - bins[0] + 1, limit = denseLimit(n);
+    if (span <= limit && m <= MAX_DISTINCT) {
+      const want = Math.min(limit, Math.max(span + (span >> 1), DENSE_START));
+      const base = bins[0] - ((want - span) >> 1);
+      const d = new Uint32Array(want);
+      for (let i = 0; i < m; i++) d[bins[i] - base] = counts[i];
+      this.dense[s] = d;
+      this.base[s] = base;
+      this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
+      this.distinct[s] = m;
+      return;
+    }
+    for (let i = 0; i < m; i++) this.addBin(s, bins[i] >> (this.level[s] - level), counts[i]);
   }
 
   /** Bin width of slot s, m/s. */
