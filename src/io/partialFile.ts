@@ -47,7 +47,8 @@ const ZEROS = Buffer.alloc(8);
 export class PartialWriter {
   private fd: number;
   private pos = 0;
-  private readonly tmp: string;
+  /** Where the file is written until close() renames it (a reader may follow the records there). */
+  readonly tmp: string;
   constructor(readonly path: string) {
     this.tmp = `${path}.writing-${process.pid}`;
     this.fd = openSync(this.tmp, 'w');
@@ -106,6 +107,20 @@ export class PartialReader {
     this.fd = fd;
     this.format = format;
     this.index = index;
+  }
+
+  /**
+   * Opens a partial that is still being written (its temporary name), to read records at offsets its writer
+   * reported; no index. The open file stays readable after the writer renames it.
+   */
+  static follow(path: string): PartialReader {
+    const fd = openSync(path, 'r');
+    const head = Buffer.alloc(16);
+    if (readSync(fd, head, 0, 16, 0) !== 16 || head.compare(MAGIC) !== 0) {
+      closeSync(fd);
+      throw new Error('not a wakeplane partial result');
+    }
+    return new PartialReader(path, fd, head[15], {});
   }
 
   /** Opens a partial; throws an Error whose message (without the path) says what is wrong. */

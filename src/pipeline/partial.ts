@@ -79,7 +79,7 @@ export interface ShardResult {
  * (counters, per-file evidence, per-file time spans). A partial file (fileSink) or the parent process (shardProcesses.ts).
  */
 export interface ShardSink {
-  begin(header: Record<string, unknown>): void;
+  begin(header: Record<string, unknown>): void | Promise<void>;
   window(meta: Record<string, unknown>, arrays: Record<string, TypedArray>): void | Promise<void>;
   finishedTo?(t: number): void;
   rejected(rows: RejectedRow[]): void;
@@ -88,7 +88,13 @@ export interface ShardSink {
 }
 
 /** The sink writing a partial file (io/partialFile.ts; the records described at the top of this file). */
-export function fileSink(partialPath: string): ShardSink {
+/** What a shard writing a partial file tells its parent on one machine (shardProcesses.ts). */
+export type SinkNote =
+  | { type: 'begin'; tmp: string }
+  | { type: 'window'; id: number; start_s: number; end_s: number; at: number }
+  | { type: 'finishedTo'; t: number };
+
+export function fileSink(partialPath: string, notify?: (n: SinkNote) => void | Promise<void>): ShardSink {
   if (existsSync(partialPath)) {
     // Never touch a file the tool did not make: only an earlier partial result is replaced (a shard run again).
     try {
@@ -103,11 +109,17 @@ export function fileSink(partialPath: string): ShardSink {
   const windows: [number, number, number, number][] = [];
   const rejected: number[] = [];
   return {
-    begin(h) { header = out.write({ type: 'header', ...h }); },
+    begin(h) {
+      header = out.write({ type: 'header', ...h });
+      return notify?.({ type: 'begin', tmp: out.tmp });
+    },
     window(meta, arrays) {
       const def = meta.def as WindowDef;
-      windows.push([def.id, meta.start_s as number, meta.end_s as number, out.write({ type: 'window', ...meta }, arrays)]);
+      const at = out.write({ type: 'window', ...meta }, arrays);
+      windows.push([def.id, meta.start_s as number, meta.end_s as number, at]);
+      return notify?.({ type: 'window', id: def.id, start_s: meta.start_s as number, end_s: meta.end_s as number, at });
     },
+    finishedTo(t) { void notify?.({ type: 'finishedTo', t }); },
     rejected(rows) { rejected.push(out.write({ type: 'rejected', rows })); },
     end(counters, evidence, spans) {
       const cnt = out.write({ type: 'counters' }, counters);
@@ -148,7 +160,7 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
   const inspector = new SuspicionInspector(cRead, suspicionSettings(c));
   const counters = new Counters(c.instruments.length);
   try {
-    sink.begin({
+    await sink.begin({
       tool: 'wakeplane', version: VERSION, format: PARTIAL_FORMAT, layout: accumulatorLayout(),
       campaign: { name: c.name, file: c.sourceFile, sha256: campaignSha(c) }, settingsKey: settingsKey(c),
       allFiles, shard: { files: [...files], from_s: spec.from_s, to_s: spec.to_s },
@@ -229,6 +241,21 @@ export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays
   }
   const accs: CellAccumulator[] = perTarget.map((states) => accumulatorFromStates(states));
   return { def: def!, start_s, end_s, direction_deg: direction, accs, first_s: first, last_s: last } as FinishedWindow;
+}
+
+/** A finished partial's unreadable rows (handed on), counters (summed) and evidence (merged per file). */
+export function absorbTail(r: PartialReader, to: { onRejectedRows(rows: RejectedRow[]): void; counters: Counters; inspector: SuspicionInspector }): void {
+  for (const at of r.index.rejected as number[]) to.onRejectedRows(r.read(at).meta.rows as RejectedRow[]);
+  const cnt = r.read(r.index.counters as number).arrays;
+  const reasons = r.index.reasons as string[];
+  if (reasons.length !== REJECT_REASONS.length || reasons.some((x, k) => x !== REJECT_REASONS[k])) throw new PartialError(`${r.path}: written with other rejection reasons`);
+  addInto(to.counters.read, cnt.read as Float64Array);
+  addInto(to.counters.accepted, cnt.accepted as Float64Array);
+  addInto(to.counters.rejected, cnt.rejected as Float64Array);
+  for (const [file, at] of r.index.evidence as [string, number][]) {
+    const rec = r.read(at);
+    to.inspector.absorb(file, { meta: rec.meta.meta as Record<string, unknown>, arrays: rec.arrays as EvidenceState['arrays'] });
+  }
 }
 
 /** Adds b into a, element by element. */
@@ -347,19 +374,7 @@ export class PartialSet {
     for (const w of this.windows) {
       await opts.onWindow(mergeWindowRecords(w.parts.map(({ reader, at }) => reader.read(at)), w.start_s, w.end_s));
     }
-    for (const r of this.readers) {
-      for (const at of r.index.rejected as number[]) opts.onRejectedRows(r.read(at).meta.rows as RejectedRow[]);
-      const cnt = r.read(r.index.counters as number).arrays;
-      const reasons = r.index.reasons as string[];
-      if (reasons.length !== REJECT_REASONS.length || reasons.some((x, k) => x !== REJECT_REASONS[k])) throw new PartialError(`${r.path}: written with other rejection reasons`);
-      addInto(opts.counters.read, cnt.read as Float64Array);
-      addInto(opts.counters.accepted, cnt.accepted as Float64Array);
-      addInto(opts.counters.rejected, cnt.rejected as Float64Array);
-      for (const [file, at] of r.index.evidence as [string, number][]) {
-        const rec = r.read(at);
-        opts.inspector.absorb(file, { meta: rec.meta.meta as Record<string, unknown>, arrays: rec.arrays as EvidenceState['arrays'] });
-      }
-    }
+    for (const r of this.readers) absorbTail(r, opts);
   }
 
   close(): void {
