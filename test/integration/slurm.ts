@@ -69,15 +69,20 @@ if (spawnSync('pgrep', ['-x', 'munged']).status !== 0) {
 execFileSync('/usr/sbin/slurmctld', ['-f', conf], { env });
 execFileSync('/usr/sbin/slurmd', ['-f', conf], { env });
 started.push('slurmctld', 'slurmd');
+/** Stops the daemons this script started (by their pid files) and waits until they are gone. */
 const stop = () => {
+  const pids: number[] = [];
   for (const name of ['slurmd', 'slurmctld']) {
     const pidFile = join(work, `${name}.pid`);
-    if (existsSync(pidFile)) { try { process.kill(Number(readFileSync(pidFile, 'utf8').trim())); } catch { /* gone */ } }
+    if (existsSync(pidFile)) pids.push(Number(readFileSync(pidFile, 'utf8').trim()));
   }
   if (started.includes('munged')) {
     const pid = sh('cat /run/munge/munged.pid 2>/dev/null || true');
-    if (pid) { try { process.kill(Number(pid)); } catch { /* gone */ } }
+    if (pid) pids.push(Number(pid));
   }
+  for (const pid of pids) { try { process.kill(pid); } catch { /* gone */ } }
+  const alive = (pid: number) => { try { process.kill(pid, 0); return true; } catch { return false; } };
+  for (let k = 0; k < 100 && pids.some(alive); k++) spawnSync('sleep', ['0.1']);
 };
 let failures = 0;
 try {
@@ -116,6 +121,10 @@ try {
   const submitted = sh(`sh ${join(work, 'job', 'submit.sh')}`, env);
   log(submitted);
   const [, arrayId, mergeId] = /array job (\d+) and merge job (\d+)/.exec(submitted) ?? [];
+  // The merge job waits for the array: its dependency as the controller holds it, and the array's tasks.
+  const mergeInfo = spawnSync('scontrol', ['show', 'job', '-o', mergeId], { env, encoding: 'utf8' }).stdout;
+  log(`merge job ${mergeId}: ${/Dependency=\S+/.exec(mergeInfo)?.[0] ?? '(already finished: no dependency listed)'}; array job ${arrayId}: ${/ArrayTaskId=\S+/.exec(spawnSync('scontrol', ['show', 'job', '-o', arrayId], { env, encoding: 'utf8' }).stdout)?.[0] ?? ''}`);
+  if (!/Dependency=afterok:/.test(mergeInfo)) { failures++; log('MISMATCH: the merge job does not depend on the array (afterok)'); }
   const t0 = Date.now();
   for (;;) {
     const q = sh(`squeue -h -j ${arrayId},${mergeId} -o '%i %T' 2>/dev/null || true`, env);
@@ -154,7 +163,7 @@ try {
   log(`FAILED: ${(e as Error).message}`);
 } finally {
   stop();
-  if (!keep && failures === 0) rmSync(work, { recursive: true, force: true });
+  if (!keep && failures === 0) rmSync(work, { recursive: true, force: true, maxRetries: 10, retryDelay: 200 });
   else log(`work folder kept: ${work}`);
 }
 log(failures === 0 ? 'PASS' : `FAIL (${failures} problems)`);
