@@ -9,7 +9,7 @@
  * tables are byte-identical (they must be). Target: a speed-up >= 1.7 on two cores.
  */
 import { spawn } from 'node:child_process';
-import { readdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -20,14 +20,22 @@ import { generateBench, rowsFromArgs, type BenchData } from './generate.ts';
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
 export const TARGET_SPEEDUP = 1.7;
 
-function run(args: string[]): Promise<number> {
+/** Wall seconds, and CPU seconds (user + system of the command and its children, from /usr/bin/time when present). */
+function run(args: string[]): Promise<{ wall: number; cpu: number }> {
+  const timed = existsSync('/usr/bin/time');
+  const cmd = [process.execPath, join(ROOT, 'bin', 'wakeplane.js'), ...args];
   return new Promise((res, rej) => {
     const t0 = process.hrtime.bigint();
-    const p = spawn(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), ...args], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
+    const p = timed ? spawn('/usr/bin/time', ['-f', 'cpu %U %S', ...cmd], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] })
+      : spawn(cmd[0], cmd.slice(1), { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
     let err = '';
     p.stderr.on('data', (d) => (err += d));
     p.on('error', rej);
-    p.on('close', (code) => (code === 0 ? res(Number(process.hrtime.bigint() - t0) / 1e9) : rej(new Error(`wakeplane ${args.join(' ')}: exit ${code}: ${err.slice(-600)}`))));
+    p.on('close', (code) => {
+      if (code !== 0) return rej(new Error(`wakeplane ${args.join(' ')}: exit ${code}: ${err.slice(-600)}`));
+      const m = /cpu ([\d.]+) ([\d.]+)\s*$/.exec(err);
+      res({ wall: Number(process.hrtime.bigint() - t0) / 1e9, cpu: m ? Number(m[1]) + Number(m[2]) : NaN });
+    });
   });
 }
 
@@ -44,23 +52,26 @@ export async function coresBench(d: BenchData, runs: number, out: (s: string) =>
   const cores = availableParallelism();
   const doc = parse(readFileSync(d.campaign, 'utf8')) as { name: string };
   const one = join(d.dir, 'cores-1'), all = join(d.dir, `cores-${cores}`);
-  const t1: number[] = [], tn: number[] = [];
+  const t1: number[] = [], tn: number[] = [], c1: number[] = [], cn: number[] = [];
   const load0 = loadavg();
   console.log(`5. every core: whole job (--no-images) with --cores 1 and --cores ${cores}, alternately, ${runs} runs each`);
   for (let k = 0; k < runs; k++) {
     rmSync(one, { recursive: true, force: true });
     rmSync(all, { recursive: true, force: true });
-    t1.push(await run(['run', d.campaign, '--quiet', '--no-images', '--cores', '1', '--out', one]));
-    tn.push(await run(['run', d.campaign, '--quiet', '--no-images', '--cores', String(cores), '--out', all]));
-    console.log(`  run ${k + 1}: --cores 1 ${fmt(t1[k], 3)} s, --cores ${cores} ${fmt(tn[k], 3)} s (${fmt(t1[k] / tn[k])}x); load ${loadavg().map((x) => fmt(x)).join(' ')}`);
+    const a1 = await run(['run', d.campaign, '--quiet', '--no-images', '--cores', '1', '--out', one]);
+    const an = await run(['run', d.campaign, '--quiet', '--no-images', '--cores', String(cores), '--out', all]);
+    t1.push(a1.wall); tn.push(an.wall); c1.push(a1.cpu); cn.push(an.cpu);
+    console.log(`  run ${k + 1}: --cores 1 ${fmt(a1.wall, 3)} s (CPU ${fmt(a1.cpu)} s), --cores ${cores} ${fmt(an.wall, 3)} s (CPU ${fmt(an.cpu)} s): ${fmt(a1.wall / an.wall)}x; load ${loadavg().map((x) => fmt(x)).join(' ')}`);
   }
   const load1 = loadavg();
   const a = tables(join(one, doc.name)), b = tables(join(all, doc.name));
   const same = a.size === b.size && [...a].every(([n, t]) => b.get(n) === t);
   const speedup = median(t1) / median(tn);
   out(`every core (${cores} available; ${d.files.length} data files; load average 1/5/15 min ${load0.map((x) => fmt(x)).join(' ')} before, ${load1.map((x) => fmt(x)).join(' ')} after)`);
-  out(`  --cores 1              ${spread(t1, 3)} s wall`);
-  out(`  --cores ${cores}              ${spread(tn, 3)} s wall`);
+  out(`  --cores 1              ${spread(t1, 3)} s wall, CPU ${spread(c1)} s (${fmt(median(c1) / median(t1))} cores busy on average)`);
+  out(`  --cores ${cores}              ${spread(tn, 3)} s wall, CPU ${spread(cn)} s`);
+  // With every core busy the wall time cannot fall below the CPU time over the cores: the ceiling of the speed-up.
+  out(`  ceiling                ${fmt(median(t1) / (median(cn) / cores))}x from the CPU seconds of --cores ${cores} over ${cores} cores (no other load)`);
   out(`  speed-up               ${fmt(speedup)} on the medians; pair by pair ${spread(t1.map((x, k) => x / tn[k]))}   ${speedup >= TARGET_SPEEDUP ? 'PASS' : 'MISS'} (>= ${TARGET_SPEEDUP})`);
   out(`  field tables           ${a.size} files, ${same ? 'byte-identical' : 'DIFFERENT'} between --cores 1 and --cores ${cores}`);
 }
