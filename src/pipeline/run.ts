@@ -12,7 +12,7 @@
 import { planeOrigin, stateTurbine } from '../campaign/turbines.ts';
 import { loadTerrain } from '../io/terrainFile.ts';
 import { createHash } from 'node:crypto';
-import { readFileSync, rmSync } from 'node:fs';
+import { readFileSync, rmSync, statSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { gridSpecOf } from '../grid/grid.ts';
@@ -62,6 +62,11 @@ export interface RunOptions {
    * (pipeline/partial.ts): the same outputs as one process. 1 keeps the single-process path.
    */
   cores?: number;
+  /**
+   * Read in one process when the data files together are smaller than this, bytes (starting processes costs more
+   * than it saves on small campaigns); default 0. The command line uses PARALLEL_MIN_BYTES unless --cores is given.
+   */
+  parallelMinBytes?: number;
   /** Merge these partial results of sharded runs instead of reading the samples (`wakeplane merge`). */
   partials?: string[];
   /** Keep the partial files after a successful merge (default: removed). */
@@ -138,6 +143,9 @@ function loadInflowSeries(c: Campaign): Series | undefined {
   return c.inflow.kind === 'series' ? readSeries(c.inflow.file, c.inflow.columns, ['height_m', 'speed_ms'], ['direction_deg']) : undefined;
 }
 
+/** Data below this size is read in one process by default (about 1 s of reading on one core), bytes. */
+export const PARALLEL_MIN_BYTES = 32 * 2 ** 20;
+
 /** Writes a stage left running on another thread; the run waits for them before the report and the manifest. */
 export function pendingWrites(shared: Record<string, unknown>): Promise<void>[] {
   return (shared.pendingWrites ??= []) as Promise<void>[];
@@ -177,7 +185,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   // Partial results to merge: checked against the campaign and each other before anything is written.
   let partialSet = opts.partials ? PartialSet.open(opts.partials, c, dataFiles.map((d) => d.file), show) : undefined;
   const cores = Math.max(1, Math.floor(opts.cores ?? 1));
-  const parallel = !partialSet && cores > 1 && dataFiles.length > 1;
+  const dataBytes = dataFiles.reduce((a, d) => a + statSync(d.file).size, 0);
+  const parallel = !partialSet && cores > 1 && dataFiles.length > 1 && dataBytes >= (opts.parallelMinBytes ?? 0);
   const digests = hashFiles(dataFiles.map((d) => d.file));
   const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
