@@ -10,7 +10,7 @@
  * and histogram tests (qc-histogram.test.ts checks the histograms' median and MAD against the exact sample
  * statistics, and the exact-merge property of the integer sums against numpy in retrieval-ensemble.test.ts).
  */
-import { existsSync, readdirSync, readFileSync, writeFileSync, mkdirSync, copyFileSync } from 'node:fs';
+import { appendFileSync, existsSync, readdirSync, readFileSync, writeFileSync, mkdirSync, copyFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
@@ -102,6 +102,8 @@ describe('sharded runs merge exactly', () => {
   beforeAll(async () => {
     ({ dir, file } = writeTinyCampaign({ simulation: { seed: 21, start: '2026-03-01T12:00:00Z', windows: 4, hubSpeed_ms: 8, yawOffsets_deg: [0, 15, -15, 15], rayRate_hz: 4, dwell_s: 1 } }));
     await simulateCampaign(loadCampaignFile(file));
+    // Unreadable rows in two files (one per shard group): they must be counted and listed once.
+    for (const f of ['a.csv', 'c.csv']) appendFileSync(join(dir, 'data', f), '1772366500.5,a,12.5,abc,300,1.2,-10\n1772366500.6,c,12.5,3.0\n');
     splitFiles(dir);
     c = withFiles(loadCampaignFile(file), dir);
     // Fixed windows anchored at the first sample: every shard must use the campaign's first sample, not its own.
@@ -163,6 +165,12 @@ describe('sharded runs merge exactly', () => {
     expectSameRun(single, multi);
     expect(multi.notices.some((n) => n.includes('2 processes'))).toBe(true);
     expect(existsSync(join(multi.runDir, '.shards'))).toBe(false);
+    // The unreadable rows: the same rows in rejected_rows.csv (listed process by process, so compared as a set).
+    const rows = (r: RunResult) => readFileSync(join(r.runDir, 'rejected_rows.csv'), 'utf8').trim().split('\n');
+    const [h1, ...r1] = rows(single), [h2, ...r2] = rows(multi);
+    expect(h2).toBe(h1);
+    expect(r1.length).toBeGreaterThan(0);
+    expect([...r2].sort()).toEqual([...r1].sort());
   }, 120_000);
 
   it('the command line: run --partial by files and by time, then merge, equals run --cores 1', async () => {
