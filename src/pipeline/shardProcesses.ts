@@ -61,9 +61,20 @@ interface ShardJob {
   firstSample_s: number;
 }
 
+/**
+ * How a child starts: from the bundle, node imports this very module and runs the job (the command's start-up and
+ * argument parsing skipped); from the sources, through the command's entry (`_shard`), which loads them with tsx.
+ */
+function childArgs(jobFile: string): string[] {
+  const self = import.meta.url;
+  if (!self.endsWith('.js')) return [entryScript(), '_shard', jobFile];
+  const code = `import(${JSON.stringify(self)}).then((m) => m.runShardJob(${JSON.stringify(jobFile)})).catch((e) => { process.stderr.write('wakeplane: ' + String(e && e.message || e).split('\\n')[0] + '\\n'); process.exit(1); });`;
+  return ['--input-type=module', '-e', code];
+}
+
 function startChild(job: ShardJob, jobFile: string, ipc: boolean): { child: ChildProcess; done: Promise<void> } {
   writeFileSync(jobFile, serialize(job));
-  const child = spawn(process.execPath, [entryScript(), '_shard', jobFile], {
+  const child = spawn(process.execPath, childArgs(jobFile), {
     stdio: ipc ? ['ignore', 'ignore', 'pipe', 'ipc'] : ['ignore', 'ignore', 'pipe'],
   });
   let err = '';
