@@ -101,8 +101,8 @@ export function accumulatorState(acc: CellAccumulator): ArrayState {
  * different shards). When no key occurs in two states (shards by instrument files: the usual case) the slots are
  * laid side by side, a copy; otherwise each state is restored and merged with CellAccumulator.merge.
  */
-export function accumulatorFromStates(states: ArrayState[]): CellAccumulator {
-  if (states.length === 1) return accumulatorFromState(states[0]);
+export function accumulatorFromStates(states: ArrayState[], into?: CellAccumulator): CellAccumulator {
+  if (states.length === 1) return accumulatorFromState(states[0], into);
   const keyCount = states[0].meta.keyCount as number;
   const seen = new Uint8Array(keyCount);
   let clash = false;
@@ -116,7 +116,7 @@ export function accumulatorFromStates(states: ArrayState[]): CellAccumulator {
     if (clash) break;
   }
   if (clash) {
-    const acc = accumulatorFromState(states[0]);
+    const acc = accumulatorFromState(states[0], into);
     for (let k = 1; k < states.length; k++) acc.merge(accumulatorFromState(states[k]));
     return acc;
   }
@@ -148,14 +148,22 @@ export function accumulatorFromStates(states: ArrayState[]): CellAccumulator {
     ob += st.arrays['hist.bins'].length;
   }
   const arrays: Record<string, TypedArray> = { ...states[0].arrays, ...Object.fromEntries(perSlot), keyOf, 'hist.level': hl, 'hist.bins_per_slot': hn, 'hist.bins': hb, 'hist.counts': hc };
-  return accumulatorFromState({ meta: { ...states[0].meta, slots }, arrays });
+  return accumulatorFromState({ meta: { ...states[0].meta, slots }, arrays }, into);
 }
 
-/** An accumulator with exactly the content of `state` (written by accumulatorState under the same layout). */
-export function accumulatorFromState(state: ArrayState): CellAccumulator {
+/**
+ * An accumulator with exactly the content of `state` (written by accumulatorState under the same layout); `into`, an
+ * accumulator of the same key space no longer needed, is emptied and reused (its allocations kept, as the ingest
+ * recycles the accumulators of finished windows).
+ */
+export function accumulatorFromState(state: ArrayState, into?: CellAccumulator): CellAccumulator {
   const { meta, arrays } = state;
   const keyCount = meta.keyCount as number, instrumentCount = meta.instrumentCount as number, slots = meta.slots as number;
-  const acc = new CellAccumulator(keyCount, instrumentCount);
+  let acc: CellAccumulator;
+  if (into && into.keyCount === keyCount && into.instrumentCount === instrumentCount) {
+    into.reset();
+    acc = into;
+  } else acc = new CellAccumulator(keyCount, instrumentCount);
   const keyOf = arrays.keyOf as Int32Array;
   if (!keyOf || keyOf.length !== slots) throw new RangeError('accumulator state: keyOf does not hold one key per slot');
   for (let s = 0; s < slots; s++) {

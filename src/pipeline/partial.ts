@@ -223,7 +223,7 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
 }
 
 /** Merges the records of one window from several shards (window metadata and per-target accumulator arrays). */
-export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays: Record<string, TypedArray> }[], start_s: number, end_s: number): FinishedWindow {
+export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays: Record<string, TypedArray> }[], start_s: number, end_s: number, spare?: CellAccumulator[]): FinishedWindow {
   let def: WindowDef | undefined, first = Infinity, last = -Infinity, direction = NaN;
   const perTarget: ArrayState[][] = [];
   for (const rec of recs) {
@@ -239,7 +239,7 @@ export function mergeWindowRecords(recs: { meta: Record<string, unknown>; arrays
       (perTarget[k] ??= []).push({ meta, arrays });
     });
   }
-  const accs: CellAccumulator[] = perTarget.map((states) => accumulatorFromStates(states));
+  const accs: CellAccumulator[] = perTarget.map((states, k) => accumulatorFromStates(states, spare?.[k]));
   return { def: def!, start_s, end_s, direction_deg: direction, accs, first_s: first, last_s: last } as FinishedWindow;
 }
 
@@ -371,8 +371,12 @@ export class PartialSet {
     counters: Counters;
     inspector: SuspicionInspector;
   }): Promise<void> {
+    // The accumulators of a finished window serve the next (the finishing keeps none of them, as in the ingest).
+    let spare: CellAccumulator[] | undefined;
     for (const w of this.windows) {
-      await opts.onWindow(mergeWindowRecords(w.parts.map(({ reader, at }) => reader.read(at)), w.start_s, w.end_s));
+      const win = mergeWindowRecords(w.parts.map(({ reader, at }) => reader.read(at)), w.start_s, w.end_s, spare);
+      await opts.onWindow(win);
+      spare = win.accs;
     }
     for (const r of this.readers) absorbTail(r, opts);
   }

@@ -113,6 +113,7 @@ export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string
   const pending = new Map<number, { id: number; start_s: number; end_s: number; parts: { k: number; at: number }[] }>();
   let chain = Promise.resolve();
   let failed: unknown;
+  let spare: import('../grid/accumulator.ts').CellAccumulator[] | undefined;
   const drain = () => {
     let W = Infinity;
     for (let k = 0; k < specs.length; k++) if (!ended[k]) W = Math.min(W, wm[k]);
@@ -121,7 +122,11 @@ export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string
     for (const w of ready) pending.delete(w.id);
     chain = chain.then(async () => {
       if (failed) return;
-      for (const w of ready) await to.onWindow(mergeWindowRecords(w.parts.map((p) => follow[p.k]!.read(p.at)), w.start_s, w.end_s));
+      for (const w of ready) {
+        const win = mergeWindowRecords(w.parts.map((p) => follow[p.k]!.read(p.at)), w.start_s, w.end_s, spare);
+        await to.onWindow(win);
+        spare = win.accs; // reused for the next window: the finishing keeps none of them
+      }
     }).catch((e) => { failed ??= e; });
   };
   const procs: ChildProcess[] = [];

@@ -263,9 +263,10 @@ export class VrHistograms {
     // Usually every bin fits one dense range (as add() would have laid it out): filled directly, in one pass.
     const span = bins[m - 1] - bins[0] + 1, limit = denseLimit(n);
     if (span <= limit && m <= MAX_DISTINCT) {
-      const want = Math.min(limit, Math.max(span + (span >> 1), DENSE_START));
-      const base = bins[0] - ((want - span) >> 1);
-      const d = new Uint32Array(want);
+      // A recycled slot's dense array (zeroed by reset) is reused when it is wide enough, as add() reuses it.
+      let d = this.dense[s];
+      if (d.length < span) d = new Uint32Array(Math.min(limit, Math.max(span + (span >> 1), DENSE_START)));
+      const base = bins[0] - ((d.length - span) >> 1);
       for (let i = 0; i < m; i++) d[bins[i] - base] = counts[i];
       this.dense[s] = d;
       this.base[s] = base;
