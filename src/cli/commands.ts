@@ -13,7 +13,7 @@ import { OptionError, Problems } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { openStaging } from '../pipeline/outputFolder.ts';
 import { preflight } from '../pipeline/preflight.ts';
-import { PARALLEL_MIN_BYTES, runCampaign, type RunResult } from '../pipeline/run.ts';
+import { defaultCores, PARALLEL_MIN_BYTES, runCampaign, type RunResult } from '../pipeline/run.ts';
 import { formatRunSummary } from './summary.ts';
 import { defaultStages } from '../pipeline/stages.ts';
 import { createProgress } from './progress.ts';
@@ -129,7 +129,7 @@ export function commands(y: Argv): Argv {
         common(yy)
           .positional('campaign', CAMPAIGN)
           .option('plan', { type: 'boolean', default: false, describe: 'also run the planner on the campaign and put its outputs in the report' })
-          .option('cores', { type: 'number', describe: 'processes reading the data files (default: every core of the machine when the data files hold 32 MiB or more; 1 reads them in this process)' })
+          .option('cores', { type: 'number', describe: 'processes reading the data files (default: every core on machines with 4 or more, when the data files hold 32 MiB or more; 1 reads them in this process)' })
           .option('partial', { type: 'string', describe: 'read only a shard (--files, --from, --until) and write its partial result to this file, for `wakeplane merge`' })
           .option('files', { type: 'string', array: true, describe: 'with --partial: the data files of the shard (paths as in the campaign, relative to the working directory; default: all)' })
           .option('from', { type: 'string', describe: 'with --partial: the shard\'s first time (ISO 8601 UTC, inclusive; default: the beginning)' })
@@ -147,7 +147,7 @@ export function commands(y: Argv): Argv {
         }
         // Every core by default, for campaigns large enough to gain from it; --cores N as asked.
         const cores = coresOption(a.cores);
-        await runAndReport(c, { ...(a as unknown as Common & { plan: boolean }), cores: cores ?? availableParallelism(), parallelMinBytes: cores === undefined ? PARALLEL_MIN_BYTES : 0 });
+        await runAndReport(c, { ...(a as unknown as Common & { plan: boolean }), cores: cores ?? defaultCores(availableParallelism()), parallelMinBytes: cores === undefined ? PARALLEL_MIN_BYTES : 0 });
       },
     )
     .command(

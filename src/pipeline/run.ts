@@ -146,6 +146,19 @@ function loadInflowSeries(c: Campaign): Series | undefined {
 /** Data below this size is read in one process by default (about 1 s of reading on one core), bytes. */
 export const PARALLEL_MIN_BYTES = 32 * 2 ** 20;
 
+/** Fewest cores on which the command reads in several processes by default. */
+export const PARALLEL_MIN_CORES = 4;
+
+/**
+ * The command's default number of reading processes: every core (os.availableParallelism()) on machines with at
+ * least PARALLEL_MIN_CORES, else 1. Measured on a 2-core machine (README, "Speed and memory"): one process already
+ * keeps about 1.5 cores busy (hashing, NetCDF writing and the kernel's reads beside the main thread), and two reading
+ * processes cost about 35 % more CPU seconds, so splitting made the run about 10 % slower there.
+ */
+export function defaultCores(available: number): number {
+  return available >= PARALLEL_MIN_CORES ? available : 1;
+}
+
 /** Writes a stage left running on another thread; the run waits for them before the report and the manifest. */
 export function pendingWrites(shared: Record<string, unknown>): Promise<void>[] {
   return (shared.pendingWrites ??= []) as Promise<void>[];
