@@ -20,7 +20,7 @@ import { accumulatorFromState, accumulatorFromStates, accumulatorState } from '.
 import { PartialWriter, PartialReader } from '../src/io/partialFile.ts';
 import { campaignFirstSample } from '../src/pipeline/ingest.ts';
 import { runShard, type ShardSpec } from '../src/pipeline/partial.ts';
-import { runCampaign, type RunResult } from '../src/pipeline/run.ts';
+import { defaultCores, runCampaign, type RunResult } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { mulberry32 } from '../src/math/random.ts';
@@ -158,6 +158,13 @@ describe('sharded runs merge exactly', () => {
     expect(merged.manifest.ensembles).toEqual(single.manifest.ensembles);
     expect([...fieldTables(merged.runDir).keys()].some((n) => n.includes('_bin'))).toBe(true);
   }, 120_000);
+
+  it('the command\'s default number of reading processes: one on two cores (measured slower split), every core from four', () => {
+    expect(defaultCores(1)).toBe(1);
+    expect(defaultCores(2)).toBe(1);
+    expect(defaultCores(4)).toBe(4);
+    expect(defaultCores(16)).toBe(16);
+  });
 
   it('every core: a run on 2 processes gives the single run\'s outputs', async () => {
     const single = await runCampaign(c, { outRoot: join(dir, 'single-c'), images: false, stages: defaultStages(), cores: 1 });
