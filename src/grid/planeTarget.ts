@@ -74,7 +74,7 @@ export class PlaneTarget implements SampleTarget {
     this.keyCount = this.off[planes.length] * instrumentCount;
   }
 
-  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, _t: number, ground: number): boolean {
+  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t: number, ground: number): boolean {
     // Rotor-frame coordinates about the site origin; each plane subtracts its own origin's.
     const X = pe * f.dE + pn * f.dN;
     const Y = -pe * f.dN + pn * f.dE;
@@ -92,7 +92,8 @@ export class PlaneTarget implements SampleTarget {
       if (iz < 0 || iz >= this.nz[p]) continue;
       // Beam unit vector in the window's rotor frame.
       const rx = ne * f.dE + nn * f.dN, ry = -ne * f.dN + nn * f.dE;
-      acc.add((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, vr, rx, ry, nu, y, second);
+      // Time and window middle feed the uncertainty budget's sums (NaN middle for a whole-record window).
+      acc.add((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, vr, rx, ry, nu, y, second, t, (f.start_s + (f.end_s ?? NaN)) / 2);
       return true;
     }
     return false;

@@ -198,7 +198,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const D = (dir * Math.PI) / 180;
       w = {
         def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
-        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I)), dE: -Math.sin(D), dN: -Math.cos(D),
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I, c.uncertainty.budget)), dE: -Math.sin(D), dN: -Math.cos(D),
       };
       open.set(id, w);
     }

@@ -15,11 +15,15 @@
  * within delta of the exact ones, and only samples within about (1 + 1.5 k) delta of the exact limit can be decided
  * differently (test/retrieval-robust-hist.test.ts). The kept sums are the exact sums minus the rejected samples'
  * bin centres (their beam vectors and positions taken as the key's mean), so with nothing rejected they are exact.
+ *
+ * With the window's bounds given, the key's sampling statistics (sampling.ts) fill the budget sums of CellStats:
+ * the sampling variance beyond s^2 / n, the turbulence and noise variances, the time offset and trend error.
  */
 import { F, MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, STRIDE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
 import { emptyHistogramStats, robustStats } from '../qc/vrHistogram.ts';
 import { emptyCellStats, type CellStats } from './cellStats.ts';
 import type { RobustSettings } from './settings.ts';
+import { effectiveCount, emptyKeySampling, keySampling } from './sampling.ts';
 
 export interface RobustResult {
   /** Kept-sample statistics per key. */
@@ -29,12 +33,16 @@ export interface RobustResult {
 }
 
 /** Apply the filter to every key of a finished window's accumulator. */
-export function robustFilter(acc: CellAccumulator, robust: RobustSettings): RobustResult {
+export function robustFilter(acc: CellAccumulator, robust: RobustSettings, window?: { start_s: number; end_s: number }): RobustResult {
   const I = acc.instrumentCount;
   const stats = emptyCellStats(acc.keyCount, I);
   const outliers = new Float64Array(I);
   const hs = emptyHistogramStats();
   const minN = Math.max(3, robust.minSamples);
+  const ks = emptyKeySampling();
+  const budget = window !== undefined && acc.budget;
+  const tMid = window ? (window.start_s + window.end_s) / 2 : NaN;
+  const halfT = window ? (window.end_s - window.start_s) / 2 : NaN;
   for (let s = 0; s < acc.slots; s++) {
     const key = acc.keyOf[s];
     const m = acc.sums, o = s * STRIDE;
@@ -58,6 +66,35 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings): Robu
     stats.spy[key] = (m[o + F.spy] / POS_SCALE) * frac;
     stats.spz[key] = (m[o + F.spz] / POS_SCALE) * frac;
     outliers[key % I] += rej;
+    if (budget && kept > 1) budgetSums(stats, key, kept, keySampling(acc, s, ks), tMid, halfT);
   }
   return { stats, outliers };
+}
+
+/** The budget sums of one key (CellStats docblock) from its sampling statistics and its kept samples. */
+function budgetSums(stats: CellStats, key: number, n: number, ks: ReturnType<typeof keySampling>, tMid: number, halfT: number): void {
+  const sv = stats.sv[key];
+  const s2 = Math.max(0, stats.sv2[key] - (sv * sv) / n) / (n - 1);
+  const st2 = ks.turbShare * s2;
+  const neff = effectiveCount(n, ks.r);
+  const ub2 = Math.max(0, st2 * (1 / neff - 1 / n));
+  stats.vb[key] = n * n * ub2;
+  stats.ne[key] = neff;
+  if (ks.tau_s === ks.tau_s) {
+    stats.vt[key] = n * st2;
+    stats.vn[key] = n * (s2 - st2);
+    stats.ta[key] = n * ks.tau_s;
+    stats.nb[key] = n;
+  }
+  const dt = ks.meanTime_s - tMid;
+  if (!Number.isFinite(dt)) return;
+  stats.st[key] = n * dt;
+  if (ks.nLate > 0 && ks.nEarly > 0 && halfT > 0) {
+    // Trend of v_r and its noise (sampling.ts); the squared trend minus its variance, floored at zero.
+    const b = (ks.vLate - ks.vEarly) / halfT;
+    const vm = s2 / n + ub2;
+    const varB = (vm * n / ks.nLate + vm * n / ks.nEarly) / (halfT * halfT);
+    const b2 = Math.max(0, b * b - varB);
+    stats.se[key] = n * Math.sign(b) * Math.sqrt(b2) * dt;
+  }
 }
