@@ -16,16 +16,22 @@
  *
  * Uncertainty-budget sums (fields th .. hv; filled only when a sample comes with its time, i.e. from the plane
  * target, and the accumulator was made with `budget` on): the sample time (absolute Unix seconds to 2^-6 s, split in
- * a high part of multiples of 2^26 quanta and a remainder, so both sums stay exact), and per key the lag-1 and lag-2
- * products of successive samples of the key (q_k q_{k-1}, q_k q_{k-2}: the order in which the key's samples arrive,
- * that is time order within an instrument's files and range order within a ray) with their pair counts, the sum of
- * the lag-1 time gaps (2^-10 s) and the count and sum of q of the samples in the later half of the window. These
- * feed the integral time scale, the effective sample count, the noise variance (Lenschow, Wulfmeyer & Senff 2000:
- * the autocovariance extrapolated to lag 0) and the trend of the key's radial velocity (retrieval/sampling.ts).
- * Products split like q^2 (|q_k q_j| <= 2^52). The last two samples of each key (field `lag`, not a sum) carry the
- * pairs across batches; merging two accumulators does not form the pairs across their boundary: a window split into
- * S shards loses at most one lag-1 and two lag-2 pairs per key and boundary (S - 1 and 2 (S - 1) of n - 1 and n - 2
- * pairs), which biases the lag covariances by at most that share of a key's pairs (stated in DEVELOPERS.md).
+ * a high part of multiples of 2^26 quanta and a remainder, so both sums stay exact); the key's rays, a ray being the
+ * successive samples of the key with one time stamp (the range gates of one beam in the cell): their count, the sum
+ * and sum of squares of the ray means a (v_r to 2^-10 m/s, rounded to the nearest), the number of runs (successive
+ * rays with the same beam direction: a dwell on one point) and, within runs, the sums of squared differences of ray
+ * means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the sum and sum of
+ * squares of the run means (the mean of a run's samples, 2^-10 m/s); the count and sum of
+ * q of the samples in the later half of the window. These feed the sampling statistics of retrieval/sampling.ts.
+ * Ray means within runs rather than successive samples: a fixed pattern along the beam or between the points a
+ * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
+ *
+ * A ray is open until a sample of the key with another time arrives: the open ray and the last three ray means of
+ * the run are per-slot state (`lag`, not sums). `closeRays()` closes the open rays (the filter calls it when a window
+ * is finished; `merge` calls it on both sides and then forgets the state): pairs across a merge boundary are not
+ * formed, so a window split into S shards loses at most one pair per lag, key and boundary (and a ray or run cut
+ * by a boundary counts as two), a bias of the structure sums of at most (S - 1) pairs of a key's (stated in
+ * DEVELOPERS.md).
  */
 import { VrHistograms } from '../qc/vrHistogram.ts';
 
@@ -58,11 +64,22 @@ export const DT_SCALE = 2 ** 10;
  */
 export const F = {
   n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8,
-  th: 9, tl: 10, l1n: 11, l1h: 12, l1l: 13, l1d: 14, l2n: 15, l2h: 16, l2l: 17, hn: 18, hv: 19,
+  th: 9, tl: 10, ra: 11, sa: 12, sa2h: 13, sa2l: 14, rb: 15, l1n: 16, l1h: 17, l1l: 18, l1d: 19, l2n: 20, l2h: 21, l2l: 22,
+  l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27, ru: 28, ru2h: 29, ru2l: 30,
 } as const;
-export const STRIDE = 20;
-/** Per-slot state of the lag pairs (not a sum; not merged): q of the last and second-last sample, last time, count (0-2). */
-export const LAG_STRIDE = 4;
+export const STRIDE = 31;
+/** Fixed-point scale of ray means, 1/(m/s). */
+export const A_SCALE = 2 ** 10;
+/**
+ * Per-slot state of the rays (not a sum; not merged): sum of q and count of the open ray, its time and beam
+ * direction; the last three closed ray means (a) of the current run, the time and direction of the last closed ray;
+ * closed rays of the run (capped at 3).
+ */
+export const LAG_STRIDE = 16;
+const L_Q = 0, L_M = 1, L_T = 2, L_NX = 3, L_NY = 4, L_NZ = 5, L_A1 = 6, L_A2 = 7, L_A3 = 8, L_T1 = 9, L_SEEN = 10, L_PX = 11, L_PY = 12, L_PZ = 13;
+/** Sum of q and count of the samples of the open run. */
+const L_RQ = 14, L_RM = 15;
+const Q_TO_A = A_SCALE / VR_SCALE;
 
 export class CellAccumulator {
   /** key -> slot, or -1 when the key has no sample yet. */
@@ -147,55 +164,102 @@ export class CellAccumulator {
     m[o + 7] += py * POS_SCALE + RND - RND;
     m[o + 8] += pz * POS_SCALE + RND - RND;
     this.hist.add(s, q);
-    if (t === t && this.budget) this.addTiming(s, o, q, t, tMid);
+    if (t === t && this.budget) this.addTiming(s, o, q, t, tMid, nx, ny, nz);
   }
 
-  /** The budget sums of one sample (slot s, offset o, fixed-point v_r q, time t, window middle tMid). */
-  private addTiming(s: number, o: number, q: number, t: number, tMid: number): void {
+  /** The budget sums of one sample (slot s, offset o, fixed-point v_r q, time t, window middle tMid, beam). */
+  private addTiming(s: number, o: number, q: number, t: number, tMid: number, nx: number, ny: number, nz: number): void {
     const m = this.sums, L = this.lag, lo = s * LAG_STRIDE;
     const tq = t * T_SCALE + RND - RND;
     let th = tq * INV_SPLIT + RND - RND;
     if (th * SQ_SPLIT > tq) th -= 1;
-    m[o + 9] += th;
-    m[o + 10] += tq - th * SQ_SPLIT;
-    const seen = L[lo + 3];
+    m[o + F.th] += th;
+    m[o + F.tl] += tq - th * SQ_SPLIT;
+    if (L[lo + L_M] > 0 && L[lo + L_T] !== t) this.closeRay(s);
+    if (L[lo + L_M] === 0) {
+      L[lo + L_T] = t;
+      L[lo + L_NX] = nx; L[lo + L_NY] = ny; L[lo + L_NZ] = nz;
+    }
+    L[lo + L_Q] += q;
+    L[lo + L_M]++;
+    if (t >= tMid) {
+      m[o + F.hn]++;
+      m[o + F.hv] += q;
+    }
+  }
+
+  /** Close the open ray of slot s: its mean joins the ray sums and, within its run, pairs with the three before it. */
+  private closeRay(s: number): void {
+    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+    const a = (L[lo + L_Q] / L[lo + L_M]) * Q_TO_A + RND - RND;
+    m[o + F.ra]++;
+    m[o + F.sa] += a;
+    splitAdd(m, o + F.sa2h, a * a);
+    let seen = L[lo + L_SEEN];
+    if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ]) {
+      seen = 0; // a new run: another beam direction (or the first ray)
+      this.closeRun(s);
+      m[o + F.rb]++;
+    }
+    L[lo + L_RQ] += L[lo + L_Q];
+    L[lo + L_RM] += L[lo + L_M];
     if (seen >= 1) {
-      const p1 = q * L[lo];
-      let h1 = p1 * INV_SPLIT + RND - RND;
-      if (h1 * SQ_SPLIT > p1) h1 -= 1;
-      m[o + 11]++;
-      m[o + 12] += h1;
-      m[o + 13] += p1 - h1 * SQ_SPLIT;
-      const gap = t - L[lo + 2];
-      m[o + 14] += (gap > 0 ? gap : -gap) * DT_SCALE + RND - RND;
+      m[o + F.l1n]++;
+      const d1 = a - L[lo + L_A1];
+      splitAdd(m, o + F.l1h, d1 * d1);
+      const gap = L[lo + L_T] - L[lo + L_T1];
+      m[o + F.l1d] += (gap > 0 ? gap : -gap) * DT_SCALE + RND - RND;
       if (seen >= 2) {
-        const p2 = q * L[lo + 1];
-        let h2 = p2 * INV_SPLIT + RND - RND;
-        if (h2 * SQ_SPLIT > p2) h2 -= 1;
-        m[o + 15]++;
-        m[o + 16] += h2;
-        m[o + 17] += p2 - h2 * SQ_SPLIT;
+        m[o + F.l2n]++;
+        const d2 = a - L[lo + L_A2];
+        splitAdd(m, o + F.l2h, d2 * d2);
+        if (seen >= 3) {
+          m[o + F.l3n]++;
+          const d3 = a - L[lo + L_A3];
+          splitAdd(m, o + F.l3h, d3 * d3);
+        }
       }
     }
-    L[lo + 1] = L[lo];
-    L[lo] = q;
-    L[lo + 2] = t;
-    L[lo + 3] = seen >= 2 ? 2 : seen + 1;
-    if (t >= tMid) {
-      m[o + 18]++;
-      m[o + 19] += q;
+    L[lo + L_A3] = L[lo + L_A2];
+    L[lo + L_A2] = L[lo + L_A1];
+    L[lo + L_A1] = a;
+    L[lo + L_T1] = L[lo + L_T];
+    L[lo + L_PX] = L[lo + L_NX]; L[lo + L_PY] = L[lo + L_NY]; L[lo + L_PZ] = L[lo + L_NZ];
+    L[lo + L_SEEN] = seen >= 3 ? 3 : seen + 1;
+    L[lo + L_Q] = 0;
+    L[lo + L_M] = 0;
+  }
+
+  /** Close the open run of slot s: its sample mean (2^-10 m/s) joins the run sums. */
+  private closeRun(s: number): void {
+    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+    if (L[lo + L_RM] === 0) return;
+    const b = (L[lo + L_RQ] / L[lo + L_RM]) * Q_TO_A + RND - RND;
+    m[o + F.ru] += b;
+    splitAdd(m, o + F.ru2h, b * b);
+    L[lo + L_RQ] = 0;
+    L[lo + L_RM] = 0;
+  }
+
+  /** Close every open ray and run (before the budget sums are read, and before a merge). */
+  closeRays(): void {
+    if (!this.budget) return;
+    for (let s = 0; s < this.slots; s++) {
+      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
+      this.closeRun(s);
     }
   }
 
   /** Add every key of `other` (same key space) into this accumulator; exact. */
   merge(other: CellAccumulator): void {
     if (other.keyCount !== this.keyCount) throw new RangeError(`cannot merge accumulators of ${other.keyCount} and ${this.keyCount} keys`);
+    this.closeRays();
+    other.closeRays();
+    this.lag.fill(0, 0, this.slots * LAG_STRIDE);
     for (let t = 0; t < other.slots; t++) {
       const s = this.slot(other.keyOf[t]);
       for (let f = 0; f < STRIDE; f++) this.sums[s * STRIDE + f] += other.sums[t * STRIDE + f];
       this.hist.mergeSlot(s, other.hist, t);
-      // The lag state: a key new here continues from the other's last samples (pairs across the boundary are lost).
-      if (this.lag[s * LAG_STRIDE + 3] === 0) for (let f = 0; f < LAG_STRIDE; f++) this.lag[s * LAG_STRIDE + f] = other.lag[t * LAG_STRIDE + f];
     }
   }
 
@@ -214,4 +278,12 @@ export class CellAccumulator {
     for (let s = 0; s < this.slots; s++) t += this.sums[s * STRIDE];
     return t;
   }
+}
+
+/** Add the integer x (|x| < 2^52) to m[at] (multiples of SQ_SPLIT) and m[at + 1] (remainder in [0, SQ_SPLIT)). */
+function splitAdd(m: Float64Array, at: number, x: number): void {
+  let h = x * INV_SPLIT + RND - RND;
+  if (h * SQ_SPLIT > x) h -= 1;
+  m[at] += h;
+  m[at + 1] += x - h * SQ_SPLIT;
 }

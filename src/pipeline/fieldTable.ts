@@ -12,6 +12,7 @@ import { cellCentre, gridSpecOf } from '../grid/grid.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { isoTime, parseTime } from '../io/time.ts';
 import { fieldTable } from '../records/tables/fields.ts';
+import { budgetArrays } from './budgetValues.ts';
 import { headerLine, rowLine, tableLayout, type TableLayout } from '../records/tableText.ts';
 import { W_ZERO_ASSUMPTION } from '../retrieval/settings.ts';
 import { MaskReason, maskReasonName, type FieldResult, type WindowInfo } from '../retrieval/types.ts';
@@ -30,6 +31,7 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
   const parts: string[] = [headerLine(L)];
   const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
   const n = f.grid.ny * f.grid.nz;
+  const extra = budgetArrays(f);
   for (let c = 0; c < n; c++) {
     const [y, z] = cellCentre(f.grid, c);
     const masked = f.maskU[c] !== 0 || f.maskV[c] !== 0 || f.maskW[c] !== 0;
@@ -37,6 +39,7 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
       f.planeId, ws, we, y, z, y / diameter_m, z / diameter_m, f.u[c], f.v[c], f.w[c], f.su[c], f.sv[c], f.sw[c],
       f.dopU[c], f.dopV[c], f.dopW[c], f.cond[c], f.minCrossing_deg[c], f.samples[c], f.instruments[c],
       maskReasonName[f.maskU[c]], maskReasonName[f.maskV[c]], maskReasonName[f.maskW[c]], masked ? 1 : 0, f.direction_deg, f.yEff[c], f.zEff[c],
+      ...extra.map((a) => a[c]),
     ]));
   }
   return parts.join('');

@@ -23,7 +23,7 @@ import { F, MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, STRIDE, VR_SCAL
 import { emptyHistogramStats, robustStats } from '../qc/vrHistogram.ts';
 import { emptyCellStats, type CellStats } from './cellStats.ts';
 import type { RobustSettings } from './settings.ts';
-import { effectiveCount, emptyKeySampling, keySampling } from './sampling.ts';
+import { emptyKeySampling, instrumentSampling, keySampling, type InstrumentSampling, type KeySampling } from './sampling.ts';
 
 export interface RobustResult {
   /** Kept-sample statistics per key. */
@@ -43,6 +43,9 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings, windo
   const budget = window !== undefined && acc.budget;
   const tMid = window ? (window.start_s + window.end_s) / 2 : NaN;
   const halfT = window ? (window.end_s - window.start_s) / 2 : NaN;
+  if (budget) acc.closeRays();
+  // Per slot: squared deviations of the rejected samples from the kept mean (m^2/s^2), for the budget's sums.
+  const dev2 = budget ? new Float64Array(acc.slots) : undefined;
   for (let s = 0; s < acc.slots; s++) {
     const key = acc.keyOf[s];
     const m = acc.sums, o = s * STRIDE;
@@ -66,24 +69,37 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings, windo
     stats.spy[key] = (m[o + F.spy] / POS_SCALE) * frac;
     stats.spz[key] = (m[o + F.spz] / POS_SCALE) * frac;
     outliers[key % I] += rej;
-    if (budget && kept > 1) budgetSums(stats, key, kept, keySampling(acc, s, ks), tMid, halfT);
+    if (dev2 && rej > 0 && kept > 0) {
+      const mu = stats.sv[key] / kept;
+      dev2[s] = Math.max(0, rss - 2 * mu * rs + rej * mu * mu);
+    }
+  }
+  if (budget && dev2) {
+    const insSampling = instrumentSampling(acc, dev2);
+    for (let s = 0; s < acc.slots; s++) {
+      const key = acc.keyOf[s];
+      const kept = stats.n[key];
+      if (kept < 2) continue;
+      const is = insSampling[key % I];
+      budgetSums(stats, key, kept, keySampling(acc, s, is, ks), is, tMid, halfT);
+    }
   }
   return { stats, outliers };
 }
 
 /** The budget sums of one key (CellStats docblock) from its sampling statistics and its kept samples. */
-function budgetSums(stats: CellStats, key: number, n: number, ks: ReturnType<typeof keySampling>, tMid: number, halfT: number): void {
+function budgetSums(stats: CellStats, key: number, n: number, ks: KeySampling, is: InstrumentSampling, tMid: number, halfT: number): void {
   const sv = stats.sv[key];
   const s2 = Math.max(0, stats.sv2[key] - (sv * sv) / n) / (n - 1);
-  const st2 = ks.turbShare * s2;
-  const neff = effectiveCount(n, ks.r);
-  const ub2 = Math.max(0, st2 * (1 / neff - 1 / n));
+  const vm = (ks.inflation * s2) / n;
+  const ub2 = vm - s2 / n;
   stats.vb[key] = n * n * ub2;
-  stats.ne[key] = neff;
-  if (ks.tau_s === ks.tau_s) {
-    stats.vt[key] = n * st2;
-    stats.vn[key] = n * (s2 - st2);
-    stats.ta[key] = n * ks.tau_s;
+  stats.ne[key] = n / ks.inflation;
+  if (is.estimated) {
+    // Turbulence variance of v_r: the instrument's turbulence share of the kept samples' variance (noise removed).
+    stats.vt[key] = n * is.phi * s2;
+    stats.vn[key] = n * (1 - is.phi) * s2;
+    stats.ta[key] = n * is.tau_s;
     stats.nb[key] = n;
   }
   const dt = ks.meanTime_s - tMid;
@@ -92,7 +108,6 @@ function budgetSums(stats: CellStats, key: number, n: number, ks: ReturnType<typ
   if (ks.nLate > 0 && ks.nEarly > 0 && halfT > 0) {
     // Trend of v_r and its noise (sampling.ts); the squared trend minus its variance, floored at zero.
     const b = (ks.vLate - ks.vEarly) / halfT;
-    const vm = s2 / n + ub2;
     const varB = (vm * n / ks.nLate + vm * n / ks.nEarly) / (halfT * halfT);
     const b2 = Math.max(0, b * b - varB);
     stats.se[key] = n * Math.sign(b) * Math.sqrt(b2) * dt;
