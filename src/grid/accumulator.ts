@@ -20,8 +20,10 @@
  * successive samples of the key with one time stamp (the range gates of one beam in the cell): their count, the sum
  * and sum of squares of the ray means a (v_r to 2^-10 m/s, rounded to the nearest), the number of runs (successive
  * rays with the same beam direction: a dwell on one point) and, within runs, the sums of squared differences of ray
- * means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the sum and sum of
- * squares of the run means (the mean of a run's samples, 2^-10 m/s); the count and sum of
+ * means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
+ * (rays of the key separated by less than BURST_GAP_S: one pass of a scanner through the cell, whatever points it
+ * aimed at) and the sum and sum of squares of the burst means (the mean of a burst's samples, 2^-10 m/s); the count
+ * and sum of
  * q of the samples in the later half of the window. These feed the sampling statistics of retrieval/sampling.ts.
  * Ray means within runs rather than successive samples: a fixed pattern along the beam or between the points a
  * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
@@ -68,6 +70,11 @@ export const F = {
   l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27, ru: 28, ru2h: 29, ru2l: 30,
 } as const;
 export const STRIDE = 31;
+/**
+ * Gap in a key's rays (s) that starts a new burst: the bursts of a key are the passes of a scanner through its cell,
+ * taken as independent of each other by the sampling statistics (retrieval/sampling.ts). @default 5
+ */
+export const BURST_GAP_S = 5;
 /** Fixed-point scale of ray means, 1/(m/s). */
 export const A_SCALE = 2 ** 10;
 /**
@@ -77,7 +84,7 @@ export const A_SCALE = 2 ** 10;
  */
 export const LAG_STRIDE = 16;
 const L_Q = 0, L_M = 1, L_T = 2, L_NX = 3, L_NY = 4, L_NZ = 5, L_A1 = 6, L_A2 = 7, L_A3 = 8, L_T1 = 9, L_SEEN = 10, L_PX = 11, L_PY = 12, L_PZ = 13;
-/** Sum of q and count of the samples of the open run. */
+/** Sum of q and count of the samples of the open burst. */
 const L_RQ = 14, L_RM = 15;
 const Q_TO_A = A_SCALE / VR_SCALE;
 
@@ -198,6 +205,9 @@ export class CellAccumulator {
     let seen = L[lo + L_SEEN];
     if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ]) {
       seen = 0; // a new run: another beam direction (or the first ray)
+    }
+    if (L[lo + L_RM] === 0 || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+      // A new burst: the first ray, or one after a gap in the key's samples.
       this.closeRun(s);
       m[o + F.rb]++;
     }

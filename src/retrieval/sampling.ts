@@ -4,16 +4,18 @@
  * integral time scale; per key the trend of its radial velocity. Pure.
  *
  * Units of the series: the ray mean (the mean of a key's samples sharing one time stamp: the range gates of one beam
- * in the cell, which see the same eddy), and the run (successive rays of a key with the same beam direction: a dwell
- * of a scanner on one point, or the whole record of a staring beam).
+ * in the cell, which see the same eddy); the run (successive rays of a key with the same beam direction: a dwell of
+ * a scanner on one point, or the whole record of a staring beam); the burst (successive rays of a key less than
+ * BURST_GAP_S = 5 s apart: one pass of a scanner through the cell, whatever points it aimed at).
  *
- * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 runs, taken as
+ * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 bursts, taken as
  * independent of each other (a scanner's revisit time long against the integral time scale), it is estimated from
- * the data without a correlation model: var(mean) = C_run / B, C_run the variance of the key's run means (the
+ * the data without a correlation model: var(mean) = C_run / B, C_run the variance of the key's burst means (the
  * differences between the points a scanner visits in one cell are included, which errs on the safe side). The
  * inflation factor F = (C_run / B) / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
- * numerators over sum of the denominators, keys with B >= 2), so that a cell with a few runs borrows the
- * instrument's, and floored at 1; each key's mean then has var = F s^2 / n, N_eff = n / F. This is the sampling
+ * numerators over sum of the denominators, keys with B >= 2); each key's own factor (from its B bursts) is shrunk
+ * toward the instrument's, F_key = (B F_own + 10 F) / (B + 10), so that a cell with a few bursts borrows the
+ * instrument's; floored at 1. Each key's mean then has var = F_key s^2 / n, N_eff = n / F_key. This is the sampling
  * error of a mean over autocorrelated samples (Lenschow, Mann & Kristensen 1994, J. Atmos. Oceanic Technol. 11,
  * 661-673: var = 2 tau s^2 / T for a record of length T >> tau) measured by the scatter of independent sub-means.
  *
@@ -40,8 +42,9 @@
  * b^2 - var(b), var(b) = (var(mean_late) + var(mean_early)) / (T / 2)^2.
  *
  * Limits: the run and structure sums include the samples the robust filter rejects; their share is removed
- * approximately (instrumentSampling); runs that revisit a point within a few integral time scales are correlated,
- * which makes F low.
+ * approximately (instrumentSampling); bursts less than a few integral time scales apart are correlated, which
+ * makes F low (the reported integral time scale shows when this happens: it should stay well below the gap between
+ * a scanner's passes).
  */
 import { A_SCALE, DT_SCALE, F, SQ_SPLIT, STRIDE, T_SCALE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
 
@@ -65,6 +68,8 @@ export interface InstrumentSampling {
   estimated: boolean;
 }
 
+/** Weight (in bursts) of the instrument's pooled inflation against a key's own estimate. */
+export const SHRINK_BURSTS = 10;
 /** Fewest runs (over the instrument's keys with two or more) for the run-based inflation. */
 export const MIN_RUNS = 20;
 
@@ -179,8 +184,18 @@ export function keySampling(acc: CellAccumulator, s: number, ins: InstrumentSamp
   const sa = m[o + F.sa] / A_SCALE;
   const c0 = Math.max(0, ((m[o + F.sa2h] * SQ_SPLIT + m[o + F.sa2l]) / A2 - (sa * sa) / R) / (R - 1));
   out.turbVar = ins.phi * c0;
+  const V2s = VR_SCALE * VR_SCALE;
+  const B = m[o + F.rb];
+  const s2k = Math.max(0, (m[o + F.sv2h] * SQ_SPLIT + m[o + F.sv2l]) / V2s - (sum * sum) / n) / (n - 1);
   if (ins.inflation === ins.inflation) {
     out.inflation = ins.inflation;
+    if (B >= 2 && s2k > 0) {
+      // The key's own inflation, shrunk toward the instrument's: weights B and SHRINK_BURSTS.
+      const su = m[o + F.ru] / A_SCALE;
+      const cRun = Math.max(0, ((m[o + F.ru2h] * SQ_SPLIT + m[o + F.ru2l]) / A2 - (su * su) / B) / (B - 1));
+      const own = cRun / B / (s2k / n);
+      out.inflation = Math.max(1, (B * own + SHRINK_BURSTS * ins.inflation) / (B + SHRINK_BURSTS));
+    }
   } else if (ins.estimated) {
     const s2 = Math.max(0, (m[o + F.sv2h] * SQ_SPLIT + m[o + F.sv2l]) / V2 - (sum * sum) / n) / (n - 1);
     const vm = ((1 - ins.phi) * c0) / R + out.turbVar / effectiveCount(R, ins.r);
