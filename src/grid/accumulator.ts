@@ -31,9 +31,9 @@
  * A ray is open until a sample of the key with another time arrives: the open ray and the last three ray means of
  * the run are per-slot state (`lag`, not sums). `closeRays()` closes the open rays (the filter calls it when a window
  * is finished; `merge` calls it on both sides and then forgets the state): pairs across a merge boundary are not
- * formed, so a window split into S shards loses at most one pair per lag, key and boundary (and a ray or run cut
- * by a boundary counts as two), a bias of the structure sums of at most (S - 1) pairs of a key's (stated in
- * DEVELOPERS.md).
+ * formed, so a window split into S shards loses at most k pairs of lag k (k = 1, 2, 3) per key and boundary (and a
+ * ray or burst cut by a boundary counts as two): a bias of the structure sums of at most 3 (S - 1) of a key's pairs,
+ * and one extra burst per boundary in the burst variance (stated in DEVELOPERS.md).
  */
 import { VrHistograms } from '../qc/vrHistogram.ts';
 

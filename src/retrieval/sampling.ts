@@ -161,7 +161,7 @@ export function emptyKeySampling(): KeySampling {
 /** Effective sample count of n values with lag-1 correlation r (AR(1)), between 1 and n. */
 export function effectiveCount(n: number, r: number): number {
   if (!(r > 0) || n <= 1) return n;
-  const rr = Math.min(r, R_MAX);
+  const rr = Math.min(r, 1 - 1e-12);
   const sum = (rr * (n * (1 - rr) - (1 - rr ** n))) / ((1 - rr) * (1 - rr));
   return Math.min(n, Math.max(1, (n * n) / (n + 2 * sum)));
 }
