@@ -279,3 +279,41 @@ describe('noise term equals the WLS covariance, and the linear propagation equal
     }
   });
 });
+
+describe('turbulence statistics', () => {
+  it('crossed-beam variance equations recover var u, v, w from three radial variances (hand-worked, covariances zero)', async () => {
+    const { turbulenceOfCell } = await import('../src/retrieval/fieldBudget.ts');
+    const { emptyFieldBudget } = await import('../src/retrieval/budget.ts');
+    // var(v_r) = sum_k n_k^2 var(U_k) when the covariances vanish. Beams (0.8, 0.6, 0), (0.6, -0.8, 0), (0.6, 0, 0.8)
+    // and var u, v, w = 1, 0.5, 0.2: 0.64 + 0.36 * 0.5 = 0.82; 0.36 + 0.64 * 0.5 = 0.68; 0.36 + 0.64 * 0.2 = 0.488.
+    const beams = [[0.8, 0.6, 0], [0.6, -0.8, 0], [0.6, 0, 0.8]];
+    const radial = [0.82, 0.68, 0.488];
+    const st = emptyCellStats(3, 3);
+    radial.forEach((s2, k) => { st.vt[k] = 100 * s2; st.nb[k] = 100; st.ne[k] = 50; st.vn[k] = 0; st.ta[k] = 0; });
+    const b = emptyFieldBudget(1);
+    turbulenceOfCell(cellOf(beams, [1, 1, 1]), st, 0, b.turbulence);
+    expect(b.turbulence.variance.u[0]).toBeCloseTo(1, 12); // exact solve: rounding only
+    expect(b.turbulence.variance.v[0]).toBeCloseTo(0.5, 12);
+    expect(b.turbulence.variance.w[0]).toBeCloseTo(0.2, 12);
+    // Uncertainty: var(s_i^2) = 2 s_i^4 / N_eff (variance of a Gaussian sample variance, N_eff = 50) propagated
+    // through the first row of B^-1, here from Cramer's rule (independent of the code's 3x3 inverse).
+    const B = beams.map((n) => n.map((x) => x * x));
+    const det = B[0][0] * (B[1][1] * B[2][2] - B[1][2] * B[2][1]) - B[0][1] * (B[1][0] * B[2][2] - B[1][2] * B[2][0]) + B[0][2] * (B[1][0] * B[2][1] - B[1][1] * B[2][0]);
+    // first row of the inverse (cofactors of the first column, transposed), Cramer's rule
+    const inv0 = [(B[1][1] * B[2][2] - B[1][2] * B[2][1]) / det, -(B[0][1] * B[2][2] - B[0][2] * B[2][1]) / det, (B[0][1] * B[1][2] - B[0][2] * B[1][1]) / det];
+    const hand = Math.sqrt(inv0.reduce((s, g, i) => s + g * g * (2 * radial[i] ** 2) / 50, 0));
+    expect(b.turbulence.varianceSe.u[0]).toBeCloseTo(hand, 12);
+    expect(b.turbulence.vrTurbVar[0]).toBeCloseTo((0.82 + 0.68 + 0.488) / 3, 12); // sample-weighted mean, equal n
+  });
+
+  it('added turbulence intensity: sqrt(I_wake^2 - I_ambient^2) of the medians (hand-worked)', async () => {
+    const { addedTurbulence } = await import('../src/wake/addedTurbulence.ts');
+    // Wake cells (deficit >= 0.3 / 2) have TI 0.14, 0.15, 0.16 (median 0.15); ambient (|deficit| < 0.05) 0.08, 0.09,
+    // 0.10 (median 0.09); a cell between (deficit 0.1) counts for neither. sqrt(0.0225 - 0.0081) = 0.12.
+    const ti = Float64Array.of(0.14, 0.15, 0.16, 0.08, 0.09, 0.10, 0.5);
+    const def = Float64Array.of(0.3, 0.2, 0.25, 0.01, -0.02, 0.0, 0.1);
+    const a = addedTurbulence(ti, def, 0.3, 0.05);
+    expect([a.wakeCells, a.ambientCells]).toEqual([3, 3]);
+    expect(a.added).toBeCloseTo(0.12, 12);
+  });
+});

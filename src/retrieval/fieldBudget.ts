@@ -106,7 +106,7 @@ export function fieldBudget(
 }
 
 /** Turbulence statistics of one cell (module docblock). */
-function turbulenceOfCell(cell: CellRows, stats: CellStats, c: number, t: ReturnType<typeof emptyFieldBudget>['turbulence']): void {
+export function turbulenceOfCell(cell: CellRows, stats: CellStats, c: number, t: ReturnType<typeof emptyFieldBudget>['turbulence']): void {
   const K = cell.K, dims = cell.dims;
   let vt = 0, vn = 0, nb = 0, ta = 0, ne = 0;
   const B = new Float64Array(K * 3), y = new Float64Array(K), vy = new Float64Array(K);
