@@ -13,8 +13,9 @@ import type { BenchData } from './generate.ts';
 export interface BenchVariants {
   netcdfCampaign: string;
   noNetcdfOutputCampaign: string;
-  /** The CSV campaign with the uncertainty budget off (uncertainty.budget: false). */
+  /** The CSV campaign with the uncertainty budget off (uncertainty.budget: false), and the same with it on. */
   noBudgetCampaign: string;
+  budgetCampaign: string;
   netcdfBytes: number;
 }
 
@@ -41,5 +42,7 @@ export async function benchVariants(d: BenchData, log: (s: string) => void): Pro
   writeFileSync(noNetcdfOutputCampaign, stringify({ ...csvDoc, name: `${doc.name}-csv-only`, output: { ...csvDoc.output, netcdf: false } }));
   const noBudgetCampaign = join(d.dir, 'campaign-no-budget.yaml');
   writeFileSync(noBudgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-no-budget`, uncertainty: { budget: false } }));
-  return { netcdfCampaign, noNetcdfOutputCampaign, noBudgetCampaign, netcdfBytes: bytes };
+  const budgetCampaign = join(d.dir, 'campaign-budget.yaml');
+  writeFileSync(budgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-budget`, uncertainty: { budget: true } }));
+  return { netcdfCampaign, noNetcdfOutputCampaign, noBudgetCampaign, budgetCampaign, netcdfBytes: bytes };
 }

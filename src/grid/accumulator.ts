@@ -102,6 +102,8 @@ export class CellAccumulator {
   sums = new Float64Array(64 * STRIDE);
   /** Per slot, at [slot * LAG_STRIDE]: q of the last sample, q of the one before, time of the last, samples seen (capped at 2). */
   lag = new Float64Array(64 * LAG_STRIDE);
+  /** Scratch values of the sample being added (addTiming). */
+  private readonly scratch = new Float64Array(6);
   readonly hist = new VrHistograms();
 
   constructor(
@@ -171,11 +173,19 @@ export class CellAccumulator {
     m[o + 7] += py * POS_SCALE + RND - RND;
     m[o + 8] += pz * POS_SCALE + RND - RND;
     this.hist.add(s, q);
-    if (t === t && this.budget) this.addTiming(s, o, q, t, tMid, nx, ny, nz);
+    if (t === t && this.budget) {
+      // Values for the budget sums go through a scratch array: doubles passed to a call that is not inlined are
+      // boxed on the heap, once per sample (slot and offset are small integers and are not).
+      const b = this.scratch;
+      b[0] = q; b[1] = t; b[2] = tMid; b[3] = nx; b[4] = ny; b[5] = nz;
+      this.addTiming(s, o);
+    }
   }
 
-  /** The budget sums of one sample (slot s, offset o, fixed-point v_r q, time t, window middle tMid, beam). */
-  private addTiming(s: number, o: number, q: number, t: number, tMid: number, nx: number, ny: number, nz: number): void {
+  /** The budget sums of one sample (slot s, offset o; fixed-point v_r q, time t, window middle tMid, beam in `scratch`). */
+  private addTiming(s: number, o: number): void {
+    const b = this.scratch;
+    const q = b[0], t = b[1], tMid = b[2], nx = b[3], ny = b[4], nz = b[5];
     const m = this.sums, L = this.lag, lo = s * LAG_STRIDE;
     const tq = t * T_SCALE + RND - RND;
     let th = tq * INV_SPLIT + RND - RND;
