@@ -1,8 +1,8 @@
 /**
  * The uncertainty budget's run-level outputs: the summary in the manifest (manifest.uncertainty), a report section,
- * and figures (with images): per plane a bar chart of the budget terms per component at one chosen cell, and maps
- * of the combined standard uncertainty of u, v and w (root-mean-square over the windows) on one colour range shared
- * by all planes.
+ * and figures (with images): per plane a bar chart of the budget terms per component at one chosen cell, maps of
+ * the combined standard uncertainty of u, v and w (root-mean-square over the windows) on one colour range shared by
+ * all planes, and a map of the turbulence intensity of u (mean over the windows, one range for all planes).
  *
  * The chosen cell of a plane: on a cross plane the cell holding hub height on the rotor axis (y = 0, z = the hub
  * height of the plane's turbine), the place a wake deficit is usually quoted; on a horizontal plane the cell on the
@@ -40,6 +40,9 @@ interface PlaneAcc {
   /** Per component, term and cell: sum of squares and count (for the chosen cell and the maps). */
   cell: Float64Array;
   cellN: Float64Array;
+  /** Per cell: sum and count of the turbulence intensity of u. */
+  ti: Float64Array;
+  tiN: Float64Array;
   field: FieldResult;
 }
 
@@ -58,6 +61,8 @@ function accumulate(acc: PlaneAcc, f: FieldResult): void {
       }
     });
   });
+  const ti = b.turbulence.tiU;
+  for (let c = 0; c < nc; c++) if (Number.isFinite(ti[c])) { acc.ti[c] += ti[c]; acc.tiN[c]++; }
 }
 
 const rms = (s: number, n: number) => (n > 0 ? Math.sqrt(s / n) : NaN);
@@ -71,7 +76,7 @@ export function budgetStage(): RunStage {
       let acc = planes.get(f.planeId);
       const nc = f.grid.ny * f.grid.nz;
       if (!acc) {
-        acc = { plane: f.planeId, cells: nc, all: new Float64Array(3 * NT), allN: new Float64Array(3 * NT), cell: new Float64Array(3 * NT * nc), cellN: new Float64Array(3 * NT * nc), field: f };
+        acc = { plane: f.planeId, cells: nc, all: new Float64Array(3 * NT), allN: new Float64Array(3 * NT), cell: new Float64Array(3 * NT * nc), cellN: new Float64Array(3 * NT * nc), ti: new Float64Array(nc), tiN: new Float64Array(nc), field: f };
         planes.set(f.planeId, acc);
       }
       accumulate(acc, f);
@@ -130,9 +135,13 @@ export function budgetStage(): RunStage {
       const h = new ValueHistogram(0, 10, 10000);
       for (const m of maps) for (const v of m.values) h.addAll(v);
       const domain: [number, number] = [0, niceExtent(0, Math.max(1e-3, h.quantile(0.99)))[1]];
+      const tiMaps = maps.map((m) => Float64Array.from(m.acc.ti, (s, k) => (m.acc.tiN[k] > 0 ? s / m.acc.tiN[k] : NaN)));
+      const hTi = new ValueHistogram(0, 2, 20000);
+      for (const v of tiMaps) hTi.addAll(v);
+      const tiDomain: [number, number] = [0, niceExtent(0, Math.max(1e-3, hTi.quantile(0.99)))[1]];
       const out: OutputRecord[] = [];
       const D = c.turbine.rotorDiameter_m;
-      for (const m of maps) {
+      for (const [mi, m] of maps.entries()) {
         const p = summary.planes.find((x) => x.plane === m.acc.plane)!;
         const f = m.acc.field;
         const cross = f.orientation === 'cross';
@@ -154,6 +163,16 @@ export function budgetStage(): RunStage {
               ...(cross ? { rotor: { y: 0, z: turbineOfPlane(c, c.planes[f.planeIndex]).hubHeight_m, radius: D / 2 } } : {}),
             }),
             ctx.runDir, `uncertainty_${k}_${m.acc.plane}`, { plane: m.acc.plane, description: `map of the combined standard uncertainty of ${k}, plane ${m.acc.plane}` },
+          ));
+        }
+        if (tiMaps[mi].some(Number.isFinite)) {
+          out.push(...await writeFigure(
+            uncertaintyMapSvg(f.grid, tiMaps[mi], {
+              title: `Turbulence intensity of u, plane ${m.acc.plane}`, subtitle: 'sqrt(var u) / |u| from the crossed-beam variance equations, mean over the windows; probe-volume filtered',
+              component: 'u', domain: tiDomain, secondLabel: cross ? 'z (m)' : 'x (m)', diameter_m: D, colorbarLabel: 'I_{u} (–)',
+              ...(cross ? { rotor: { y: 0, z: turbineOfPlane(c, c.planes[f.planeIndex]).hubHeight_m, radius: D / 2 } } : {}),
+            }),
+            ctx.runDir, `turbulence_intensity_${m.acc.plane}`, { plane: m.acc.plane, description: `map of the turbulence intensity of u (mean over the windows), plane ${m.acc.plane}` },
           ));
         }
       }

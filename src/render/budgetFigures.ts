@@ -2,7 +2,7 @@
  * Figures of the uncertainty budget: a grouped bar chart of the budget terms per component at one cell (standard
  * uncertainties, m/s, one bar per component and term, the combined one last), and the map of a component's combined
  * standard uncertainty on a plane (the single-map renderer, scalarMap.ts, with a colour range shared by all planes
- * of the run).
+ * of the run); the same renderer draws the turbulence-intensity maps.
  */
 import { withValues, type GridSpec } from '../grid/grid.ts';
 import { scalarMapSvg } from './scalarMap.ts';
@@ -46,12 +46,15 @@ export function budgetBarsSvg(title: string, subtitle: string, terms: string[], 
   return svgDocument(W, H, title, body);
 }
 
-/** Map of a combined standard uncertainty (m/s) on a plane, on the run's shared colour range. */
-export function uncertaintyMapSvg(grid: GridSpec, values: Float64Array, o: { title: string; subtitle: string; component: string; domain: [number, number]; secondLabel: string; diameter_m: number; rotor?: { y: number; z: number; radius: number } }): string {
+/**
+ * Map of a per-cell quantity on a plane on the run's shared colour range: a combined standard uncertainty (m/s,
+ * colour-bar label u_c(component)) or, with `colorbarLabel`, another quantity such as the turbulence intensity.
+ */
+export function uncertaintyMapSvg(grid: GridSpec, values: Float64Array, o: { title: string; subtitle: string; component: string; domain: [number, number]; secondLabel: string; diameter_m: number; rotor?: { y: number; z: number; radius: number }; colorbarLabel?: string }): string {
   return scalarMapSvg(withValues(grid, values), {
     title: o.title,
     subtitle: o.subtitle,
-    colorbarLabel: `u_{c}(${o.component}) (m/s)`,
+    colorbarLabel: o.colorbarLabel ?? `u_{c}(${o.component}) (m/s)`,
     domain: o.domain,
     contours: false,
     axes: { yLabel: 'y (m)', zLabel: o.secondLabel, diameter_m: o.diameter_m, yLabelD: 'y/D', zLabelD: o.secondLabel.startsWith('z') ? 'z/D' : 'x/D' },
