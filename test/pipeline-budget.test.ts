@@ -51,6 +51,7 @@ describe('the uncertainty budget in a run', () => {
     // One bar per component and term with a value: u and v (w is masked or assumed in part) times 7 at least.
     expect((bars.match(/<rect [^>]*><title>/g) ?? []).length).toBeGreaterThanOrEqual(14);
     expect(manifest.outputs.some((o) => o.path === 'images/uncertainty_u_p5.png')).toBe(true);
+    expect(manifest.outputs.some((o) => o.path === 'images/turbulence_intensity_p5.png')).toBe(true);
   }, 120_000);
 
   it('masks a component whose combined uncertainty exceeds uncertainty.maxCombined_ms, and the budget can be switched off', async () => {
