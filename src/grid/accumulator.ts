@@ -29,7 +29,8 @@
  * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
  *
  * A ray is open until a sample of the key with another time arrives: the open ray and the last three ray means of
- * the run are per-slot state (`lag`, not sums). `closeRays()` closes the open rays (the filter calls it when a window
+ * the run are per-slot state (`lag`, not sums). Before serialising `sums` (shards), call `closeRays()`: the sums are
+ * then complete and the state can be dropped. `closeRays()` closes the open rays (the filter calls it when a window
  * is finished; `merge` calls it on both sides and then forgets the state): pairs across a merge boundary are not
  * formed, so a window split into S shards loses at most k pairs of lag k (k = 1, 2, 3) per key and boundary (and a
  * ray or burst cut by a boundary counts as two): a bias of the structure sums of at most 3 (S - 1) of a key's pairs,
