@@ -3,7 +3,8 @@
  * summary, the report section and figures, the mask on the combined uncertainty, and a run with the budget off.
  * Round trips through our own code (the terms' outside checks are in uncertainty-budget.test.ts).
  */
-import { readdirSync, readFileSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { renderRunFolder } from '../src/pipeline/renderFolder.ts';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
@@ -52,6 +53,13 @@ describe('the uncertainty budget in a run', () => {
     expect((bars.match(/<rect [^>]*><title>/g) ?? []).length).toBeGreaterThanOrEqual(14);
     expect(manifest.outputs.some((o) => o.path === 'images/uncertainty_u_p5.png')).toBe(true);
     expect(manifest.outputs.some((o) => o.path === 'images/turbulence_intensity_p5.png')).toBe(true);
+    // `wakeplane render` redraws them from the field tables' budget columns: the same summary, figures and section.
+    const r = await renderRunFolder(run);
+    expect(r.manifest.uncertainty!.planes[0].chosenCell.y_m).toBe(15);
+    // Read back from tables written at two significant digits: the chosen cell's combined u within 5 %.
+    expect(Math.abs(r.manifest.uncertainty!.planes[0].chosenCell.components.u.combined / p.chosenCell.components.u.combined - 1)).toBeLessThan(0.05);
+    expect(existsSync(join(run, 'images', 'uncertainty_budget_p5.svg'))).toBe(true);
+    expect(readFileSync(join(run, 'report.html'), 'utf8')).toMatch(/<h2>Uncertainty budget<\/h2>/);
   }, 120_000);
 
   it('masks a component whose combined uncertainty exceeds uncertainty.maxCombined_ms, and the budget can be switched off', async () => {
