@@ -317,3 +317,36 @@ describe('turbulence statistics', () => {
     expect(a.added).toBeCloseTo(0.12, 12);
   });
 });
+
+describe('timing term (non-simultaneity)', () => {
+  it('hand-worked: a linear trend of 0.001 m/s per s sampled off the window middle gives e = sqrt(b^2 - var b) * (mean time - middle)', () => {
+    // Window [0, 600): middle 300 s, half length 300 s. 22 passes at t = 60 + 24 k (k = 0..21), 4 samples 0.25 s
+    // apart, v = 5 + 0.001 (t - 300), no noise. The recomputation below follows the formulas of sampling.ts and
+    // robustFilter.ts step by step from the sample list (not from the accumulator).
+    const ts: number[] = [];
+    for (let k = 0; k < 22; k++) for (let j = 0; j < 4; j++) ts.push(60 + 24 * k + 0.25 * j);
+    const vs = ts.map((t) => 5 + 0.001 * (t - 300));
+    const acc = new CellAccumulator(1, 1);
+    ts.forEach((t, i) => acc.add(0, vs[i], 1, 0, 0, 0, 0, t, 300));
+    const { stats } = robustFilter(acc, { enabled: false, k: 3.5, minSamples: 5 }, { start_s: 0, end_s: 600 });
+    const n = ts.length, mean = (a: number[]) => a.reduce((s, x) => s + x, 0) / a.length;
+    const dt = mean(ts) - 300; // 60 + 24 * 10.5 + 0.375 - 300 = 12.375 s
+    const early = vs.filter((_, i) => ts[i] < 300), late = vs.filter((_, i) => ts[i] >= 300);
+    const b = (mean(late) - mean(early)) / 300; // halves estimator, exact for even sampling
+    const m = mean(vs);
+    const s2 = vs.reduce((s, v) => s + (v - m) ** 2, 0) / (n - 1);
+    const bursts = Array.from({ length: 22 }, (_, k) => mean(vs.slice(4 * k, 4 * k + 4)));
+    const bm = mean(bursts);
+    const cRun = bursts.reduce((s, v) => s + (v - bm) ** 2, 0) / 21;
+    const F = Math.max(1, cRun / 22 / (s2 / n)); // one key: its own inflation equals the instrument's
+    const vm = (F * s2) / n;
+    const varB = (vm * n / late.length + vm * n / early.length) / (300 * 300);
+    const e = Math.sign(b) * Math.sqrt(Math.max(0, b * b - varB)) * dt;
+    expect(dt).toBeCloseTo(12.375, 9);
+    // b = 0.001 * (432.375 - 168.375) / 300 = 0.00088 (halves of 12 and 10 passes): e about 0.0109 m/s, not zero.
+    expect(e).toBeGreaterThan(0.01);
+    // Burst means are kept to 2^-10 m/s (accumulator.ts): F and var b move by about 1e-4 relative, e far less.
+    expect(stats.se[0] / n / e - 1).toBeCloseTo(0, 3);
+    expect(stats.st[0] / n).toBeCloseTo(dt, 3); // times to 2^-6 s
+  });
+});
