@@ -350,3 +350,29 @@ describe('timing term (non-simultaneity)', () => {
     expect(stats.st[0] / n).toBeCloseTo(dt, 3); // times to 2^-6 s
   });
 });
+
+describe('noise of the gradient in the position term', () => {
+  it('hand-worked: central difference variance (s_+^2 + s_-^2) / (2 d)^2, removed from the squared position term', async () => {
+    const { derivativeVariances } = await import('../src/retrieval/budget.ts');
+    // 3 x 1 cells 20 m apart, standard uncertainties 0.1 m/s: var = (0.01 + 0.01) / 1600 = 1.25e-5 (1/s)^2 at the
+    // middle; at an edge one-sided (0.01 + 0.01) / 400 = 5e-5.
+    const f = Float64Array.of(8, 8.2, 8.4), s = Float64Array.of(0.1, 0.1, 0.1), out = new Float64Array(2);
+    derivativeVariances(f, s, 3, 1, 20, 20, 1, out);
+    expect(out[0]).toBeCloseTo(1.25e-5, 15);
+    expect(out[1]).toBe(0); // no neighbour along the second axis
+    derivativeVariances(f, s, 3, 1, 20, 20, 0, out);
+    expect(out[0]).toBeCloseTo(5e-5, 15);
+    // In the position term: gradient 0.01 1/s, offset 6 m: p^2 = 3.6e-3, minus 36 * 1.25e-5 = 4.5e-4: sqrt(3.15e-3).
+    const D = new Float64Array(15);
+    D[0] = 0.01;
+    const cell = cellOf([[1, 0, 0], [0, 1, 0], [0, 0, 1]], [1, 1, 1]);
+    const H = new Float64Array(9);
+    sensitivity(cell, H);
+    const res = new Float64Array(18);
+    cellBudget(cell, H, emptyCellStats(3, 3), {
+      c: 1, secondAxis: 2, level_m: 0, U: Float64Array.of(8.2, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 6, offZ: 0,
+      DVar: Float64Array.of(1.25e-5, 0, 0, 0, 0, 0),
+    }, settings(3), new Float64Array(3), res);
+    expect(Math.sqrt(res[5])).toBeCloseTo(Math.sqrt(3.15e-3), 12);
+  });
+});

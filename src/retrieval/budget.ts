@@ -30,7 +30,8 @@
  *   middle times the trend of its radial velocity (sampling.ts) is the error of that mean against the window mean;
  *   instruments sampling a cell at different times have different offsets.
  * - position: the value is reported at the cell centre while the samples sit at the effective position (y_eff,
- *   z_eff): the in-plane gradient times that offset (directly on the component, not through H).
+ *   z_eff): the in-plane gradient times that offset (directly on the component, not through H); the square has the
+ *   variance of the gradient estimate (from the neighbours' scatter terms) removed, floored at zero.
  *
  * Not in the budget: calibration errors of the velocity scale, the gradient across the plane, errors of the wind
  * direction defining the rotor frame, covariances between terms, flow that is not stationary within a window beyond
@@ -165,6 +166,20 @@ export function derivatives(f: Float64Array, ny: number, nz: number, dy: number,
   out[4] = pp === pp && pm === pm && mp === mp && mm === mm ? (pp - pm - mp + mm) / (4 * dy * dz) : 0;
 }
 
+/**
+ * Variances of the first derivatives of `derivatives` (same stencils) from the standard uncertainties `s` of the
+ * values: central (s_+^2 + s_-^2) / (2 d)^2, one-sided (s_1^2 + s_0^2) / d^2, none 0. Writes [var d0, var d1].
+ */
+export function derivativeVariances(f: Float64Array, s: Float64Array, ny: number, nz: number, dy: number, dz: number, c: number, out: Float64Array): void {
+  const iy = c % ny, iz = (c - iy) / ny;
+  const ok = (jy: number, jz: number) => jy >= 0 && jy < ny && jz >= 0 && jz < nz && f[jz * ny + jy] === f[jz * ny + jy];
+  const v = (jy: number, jz: number) => { const x = s[jz * ny + jy]; return x === x ? x * x : 0; };
+  const one = (pOk: boolean, mOk: boolean, p: number, m: number, d: number) =>
+    pOk && mOk ? (p + m) / (4 * d * d) : pOk ? (p + v(iy, iz)) / (d * d) : mOk ? (m + v(iy, iz)) / (d * d) : 0;
+  out[0] = one(ok(iy + 1, iz), ok(iy - 1, iz), ok(iy + 1, iz) ? v(iy + 1, iz) : 0, ok(iy - 1, iz) ? v(iy - 1, iz) : 0, dy);
+  out[1] = one(ok(iy, iz + 1), ok(iy, iz - 1), ok(iy, iz + 1) ? v(iy, iz + 1) : 0, ok(iy, iz - 1) ? v(iy, iz - 1) : 0, dz);
+}
+
 /** Per-cell inputs of the budget pass. */
 export interface BudgetCellInput {
   /** Cell index, plane geometry. */
@@ -186,6 +201,8 @@ export interface BudgetCellInput {
   /** Offset of the effective position from the cell centre (y, second), metres; NaN when unknown. */
   offY: number;
   offZ: number;
+  /** Variances of the first derivatives D[k * 5], D[k * 5 + 1] from the noise of the values they were taken from (3 x 2), or undefined. */
+  DVar?: Float64Array;
 }
 
 /**
@@ -240,6 +257,8 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
   }
   for (let k = 0; k < 3; k++) {
     const p = D[k * 5] * inp.offY + D[k * 5 + 1] * inp.offZ;
-    out[k * 6 + 5] = p === p ? p * p : 0;
+    // The gradient's own noise inflates p^2 on average by its variance: removed, floored at zero (as for the trend).
+    const vp = inp.DVar ? inp.DVar[k * 2] * inp.offY * inp.offY + inp.DVar[k * 2 + 1] * inp.offZ * inp.offZ : 0;
+    out[k * 6 + 5] = p === p ? Math.max(0, p * p - (vp === vp ? vp : 0)) : 0;
   }
 }

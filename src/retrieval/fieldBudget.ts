@@ -17,7 +17,7 @@
  */
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { cellCentre } from '../grid/grid.ts';
-import { BUDGET_TERMS, cellBudget, COMPONENTS, derivatives, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
+import { BUDGET_TERMS, cellBudget, COMPONENTS, derivatives, derivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
 import type { CellStats, InstrumentMeans } from './cellStats.ts';
 import { MaskReason, type FieldResult } from './types.ts';
 
@@ -48,7 +48,8 @@ export function fieldBudget(
   const U = new Float64Array(3), D = new Float64Array(15), d5 = new Float64Array(5);
   const py = new Float64Array(I), pz = new Float64Array(I), ins = new Int32Array(I);
   const out = new Float64Array(18);
-  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, offY: NaN, offZ: NaN };
+  const DVar = new Float64Array(6), dv = new Float64Array(2);
+  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, offY: NaN, offZ: NaN, DVar };
   const masks = [f.maskU, f.maskV, f.maskW];
   const ses = [f.su, f.sv, f.sw];
   const turb = b.turbulence;
@@ -75,6 +76,8 @@ export function fieldBudget(
       U[k] = Number.isFinite(fields[k][c]) ? fields[k][c] : 0;
       derivatives(fields[k], f.grid.ny, f.grid.nz, f.grid.dy, f.grid.dz, c, d5);
       D.set(d5, k * 5);
+      derivativeVariances(fields[k], ses[k], f.grid.ny, f.grid.nz, f.grid.dy, f.grid.dz, c, dv);
+      DVar[k * 2] = dv[0]; DVar[k * 2 + 1] = dv[1];
     }
     const [yc, zc] = cellCentre(f.grid, c);
     inp.c = c; inp.offY = f.yEff[c] - yc; inp.offZ = f.zEff[c] - zc;
