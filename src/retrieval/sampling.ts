@@ -11,7 +11,8 @@
  * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 bursts, taken as
  * independent of each other (a scanner's revisit time long against the integral time scale), it is estimated from
  * the data without a correlation model: var(mean) = C_run / B, C_run the variance of the key's burst means (the
- * differences between the points a scanner visits in one cell are included, which errs on the safe side). The
+ * differences between the points and beam directions a scanner's passes bring into one cell are included, which
+ * errs on the safe side: seen as a slight over-coverage of w on simulated campaigns, README). The
  * inflation factor F = (C_run / B) / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
  * numerators over sum of the denominators, keys with B >= 2); each key's own factor (from its B bursts) is shrunk
  * toward the instrument's, F_key = (B F_own + 10 F) / (B + 10), so that a cell with a few bursts borrows the
@@ -19,7 +20,7 @@
  * error of a mean over autocorrelated samples (Lenschow, Mann & Kristensen 1994, J. Atmos. Oceanic Technol. 11,
  * 661-673: var = 2 tau s^2 / T for a record of length T >> tau) measured by the scatter of independent sub-means.
  *
- * Single runs (a staring beam) or too few runs: a first-order autoregressive model of the ray means with white noise,
+ * A single burst (a staring beam) or fewer than MIN_RUNS bursts over the instrument's keys: a first-order autoregressive model of the ray means with white noise,
  * C(0) = s_t^2 + s_e^2, C(k) = s_t^2 r^k (k >= 1). Within runs the structure function D(k) = <(a_j - a_{j-k})^2>
  * = 2 (C(0) - C(k)) needs no mean (free of differences between points); with x_k = D(k) / 2 for k = 1, 2, 3:
  *   r = (x3 - x2) / (x2 - x1),   s_t^2 = (x2 - x1) / (r (1 - r)),   s_e^2 = x1 - s_t^2 (1 - r),
@@ -55,7 +56,7 @@ export const MIN_LAG_PAIRS = 8;
 
 /** One instrument's sampling statistics in a window (pooled over its keys). */
 export interface InstrumentSampling {
-  /** Variance inflation of a key's mean from the runs (>= 1), NaN when too few runs. */
+  /** Variance inflation of a key's mean from the bursts (>= 1), NaN when too few bursts. */
   inflation: number;
   /** Lag-1 correlation of the turbulence between successive rays of a run (0 when none resolved). */
   r: number;
@@ -70,7 +71,7 @@ export interface InstrumentSampling {
 
 /** Weight (in bursts) of the instrument's pooled inflation against a key's own estimate. */
 export const SHRINK_BURSTS = 10;
-/** Fewest runs (over the instrument's keys with two or more) for the run-based inflation. */
+/** Fewest bursts (over the instrument's keys with two or more) for the burst-based inflation. */
 export const MIN_RUNS = 20;
 
 /**
