@@ -57,7 +57,7 @@ export const fieldTable: Table = {
     col('u', 'ms', byUnc('u_se_ms', 4), 'streamwise wind component (along the window wind direction), weighted least squares', rotor),
     col('v', 'ms', byUnc('v_se_ms', 4), 'lateral wind component, positive to the left looking downstream', rotor),
     col('w', 'ms', byUnc('w_se_ms', 4), 'vertical wind component, positive up', { ...rotor, standardName: 'upward_air_velocity' }),
-    col('u_se', 'ms', SE, 'standard uncertainty of u from the radial-velocity scatter and the geometry (a lower bound: samples in a window are correlated)', rotor),
+    col('u_se', 'ms', SE, 'standard uncertainty of u from the radial-velocity scatter and the geometry (the budget\'s noise term; a lower bound when samples are correlated: the combined standard uncertainty is u_unc_combined_ms)', rotor),
     col('v_se', 'ms', SE, 'standard uncertainty of v', rotor),
     col('w_se', 'ms', SE, 'standard uncertainty of w', rotor),
     col('u_amplification', 'one', sig(4), 'error amplification of u, sqrt(diag((AᵀA)⁻¹)) of the unit beam vectors (dilution of precision)', rotor),
