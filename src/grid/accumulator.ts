@@ -18,9 +18,9 @@
  * target, and the accumulator was made with `budget` on): the sample time (absolute Unix seconds to 2^-6 s, split in
  * a high part of multiples of 2^26 quanta and a remainder, so both sums stay exact); the key's rays, a ray being the
  * successive samples of the key with one time stamp (the range gates of one beam in the cell): their count, the sum
- * and sum of squares of the ray means a (v_r to 2^-10 m/s, rounded to the nearest), the number of runs (successive
- * rays with the same beam direction: a dwell on one point) and, within runs, the sums of squared differences of ray
- * means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
+ * and sum of squares of the ray means a (v_r to 2^-10 m/s, rounded to the nearest); within runs (successive rays
+ * with the same beam direction less than BURST_GAP_S apart: a dwell on one point) the sums of squared differences
+ * of ray means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
  * (rays of the key separated by less than BURST_GAP_S: one pass of a scanner through the cell, whatever points it
  * aimed at) and the sum and sum of squares of the burst means (the mean of a burst's samples, 2^-10 m/s); the count
  * and sum of
@@ -214,8 +214,8 @@ export class CellAccumulator {
     m[o + F.sa] += a;
     splitAdd(m, o + F.sa2h, a * a);
     let seen = L[lo + L_SEEN];
-    if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ]) {
-      seen = 0; // a new run: another beam direction (or the first ray)
+    if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ] || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+      seen = 0; // a new run: another beam direction, a gap (the next pass), or the first ray
     }
     if (L[lo + L_RM] === 0 || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
       // A new burst: the first ray, or one after a gap in the key's samples.

@@ -4,8 +4,8 @@
  * integral time scale; per key the trend of its radial velocity. Pure.
  *
  * Units of the series: the ray mean (the mean of a key's samples sharing one time stamp: the range gates of one beam
- * in the cell, which see the same eddy); the run (successive rays of a key with the same beam direction: a dwell of
- * a scanner on one point, or the whole record of a staring beam); the burst (successive rays of a key less than
+ * in the cell, which see the same eddy); the run (successive rays of a key with the same beam direction, less than
+ * BURST_GAP_S apart: a dwell of a scanner on one point, or a staring beam); the burst (successive rays of a key less than
  * BURST_GAP_S = 5 s apart: one pass of a scanner through the cell, whatever points it aimed at).
  *
  * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 bursts, taken as
