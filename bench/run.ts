@@ -48,6 +48,8 @@ interface ChildResult {
   stdout: string;
   stderr: string;
   maxRss_MB?: number;
+  /** User plus system CPU seconds (from /usr/bin/time -v): less moved by other work on a shared machine than the wall time. */
+  cpu_s?: number;
 }
 
 function runChild(cmd: string, args: string[], withTime: boolean): Promise<ChildResult> {
@@ -63,7 +65,8 @@ function runChild(cmd: string, args: string[], withTime: boolean): Promise<Child
     p.on('close', (code) => {
       const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
       const m = /Maximum resident set size \(kbytes\): (\d+)/.exec(stderr);
-      res({ code, seconds, stdout, stderr, maxRss_MB: m ? Number(m[1]) / 1024 : undefined });
+      const u = /User time \(seconds\): ([\d.]+)/.exec(stderr), sy = /System time \(seconds\): ([\d.]+)/.exec(stderr);
+      res({ code, seconds, stdout, stderr, maxRss_MB: m ? Number(m[1]) / 1024 : undefined, cpu_s: u && sy ? Number(u[1]) + Number(sy[1]) : undefined });
     });
   });
 }
@@ -167,7 +170,7 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
   out(`  ${m.windows} windows (40 s), default figures: figure stage ${fmt(m.images, 2)} s, ${m.figures} figures; whole run ${fmt(m.wall, 2)} s, peak ${fmt(m.peakRss_MB, 0)} MB   ${verdict(m.windows >= 1000 && m.images < TARGET.manyWindowsFigures_s)} (target < ${TARGET.manyWindowsFigures_s} s)`);
 }
 
-interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; timings: Record<string, number> }
+interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; cpu_s?: number; timings: Record<string, number> }
 
 /** One whole job as a child process; the manifest's figures. */
 async function wholeJob(campaign: string): Promise<PipeRun | string> {
@@ -177,7 +180,7 @@ async function wholeJob(campaign: string): Promise<PipeRun | string> {
   const runDir = join(resolve(doc.output.dir), doc.name);
   const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number };
   rmSync(runDir, { recursive: true, force: true });
-  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s };
+  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, cpu_s: r.cpu_s, timings: m.timings_s };
 }
 
 async function main() {
@@ -326,6 +329,10 @@ async function main() {
       const stage = (xs: PipeRun[], key: string) => fmt(median(xs.map((p) => p.timings[key] ?? 0)), 3);
       out(`uncertainty budget       whole job with / without, back to back, pair by pair: ${spread(costs.map((c) => 100 * c), 1)} %   (wall ${spread(withBudget.map((p) => p.seconds))} s with, ${spread(noBudget.map((p) => p.seconds))} s without; ingest ${stage(withBudget, 'ingest')} s with, ${stage(noBudget, 'ingest')} s without; retrieval ${stage(withBudget, 'retrieval')} s with, ${stage(noBudget, 'retrieval')} s without)`);
       out(`  budget cost < 10 %       ${fmt(100 * cost, 1)} %   ${verdict(cost < TARGET.budgetCost)}`);
+      if (withBudget.every((p, k) => p.cpu_s !== undefined && noBudget[k].cpu_s !== undefined)) {
+        const cpu = withBudget.map((p, k) => p.cpu_s! / noBudget[k].cpu_s! - 1);
+        out(`  in CPU time (user + system, pair by pair) ${spread(cpu.map((c) => 100 * c), 1)} %   (${spread(withBudget.map((p) => p.cpu_s!))} s with, ${spread(noBudget.map((p) => p.cpu_s!))} s without)   ${verdict(median(cpu) < TARGET.budgetCost)}`);
+      }
     }
   }
   if (focusRuns.length) {
