@@ -271,6 +271,22 @@ export class CellAccumulator {
     }
   }
 
+  /**
+   * End the sequences of instrument `ins` (keys key % instrumentCount === ins): close its open rays and bursts and
+   * forget the run state, so that its next sample starts afresh, as after a merge. The ingest calls it when a file
+   * ends: every run, single or sharded by files, then forms the same sequences.
+   */
+  endSequences(ins: number): void {
+    if (!this.budget) return;
+    const I = this.instrumentCount;
+    for (let s = 0; s < this.slots; s++) {
+      if (this.keyOf[s] % I !== ins) continue;
+      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
+      this.closeRun(s);
+      this.lag.fill(0, s * LAG_STRIDE, (s + 1) * LAG_STRIDE);
+    }
+  }
+
   /** Add every key of `other` (same key space) into this accumulator; exact. */
   merge(other: CellAccumulator): void {
     if (other.keyCount !== this.keyCount) throw new RangeError(`cannot merge accumulators of ${other.keyCount} and ${this.keyCount} keys`);
