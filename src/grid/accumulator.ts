@@ -71,6 +71,8 @@ export const F = {
   l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27, ru: 28, ru2h: 29, ru2l: 30,
 } as const;
 export const STRIDE = 31;
+/** Values of one sample for CellAccumulator.addValues: v_r, beam nx, ny, nz, position py, pz, time t, window middle tMid. */
+export const ADD_FIELDS = 8;
 /**
  * Gap in a key's rays (s) that starts a new burst: the bursts of a key are the passes of a scanner through its cell,
  * taken as independent of each other by the sampling statistics (retrieval/sampling.ts). @default 5
@@ -103,6 +105,8 @@ export class CellAccumulator {
   sums = new Float64Array(64 * STRIDE);
   /** Per slot, at [slot * LAG_STRIDE]: q of the last sample, q of the one before, time of the last, samples seen (capped at 2). */
   lag = new Float64Array(64 * LAG_STRIDE);
+  /** Values of the sample being added by add() (addValues). */
+  private readonly values = new Float64Array(ADD_FIELDS);
   /** Scratch values of the sample being added (addTiming). */
   private readonly scratch = new Float64Array(6);
   readonly hist = new VrHistograms();
@@ -155,6 +159,17 @@ export class CellAccumulator {
    * NaN when unknown, e.g. a whole-record window): with a finite t and `budget` on, the budget sums are filled too.
    */
   add(key: number, vr: number, nx: number, ny: number, nz: number, py: number, pz: number, t = NaN, tMid = NaN): void {
+    const v = this.values;
+    v[0] = vr; v[1] = nx; v[2] = ny; v[3] = nz; v[4] = py; v[5] = pz; v[6] = t; v[7] = tMid;
+    this.addValues(key, v);
+  }
+
+  /**
+   * add() with the values in an array (v_r, nx, ny, nz, py, pz, t, tMid: ADD_FIELDS), for hot loops: numbers passed
+   * to a call that is not inlined are boxed on the heap, once per sample (gigabytes over a campaign).
+   */
+  addValues(key: number, v: Float64Array): void {
+    const vr = v[0], nx = v[1], ny = v[2], nz = v[3], py = v[4], pz = v[5], t = v[6], tMid = v[7];
     let s = this.slotOf[key];
     if (s < 0) s = this.slot(key);
     // Rounding to the nearest integer (ties to even) by adding and removing 1.5 * 2^52: exact for |x| < 2^51 and
