@@ -13,6 +13,9 @@ import type { BenchData } from './generate.ts';
 export interface BenchVariants {
   netcdfCampaign: string;
   noNetcdfOutputCampaign: string;
+  /** The CSV campaign with the uncertainty budget off (uncertainty.budget: false), and the same with it on. */
+  noBudgetCampaign: string;
+  budgetCampaign: string;
   netcdfBytes: number;
 }
 
@@ -37,5 +40,9 @@ export async function benchVariants(d: BenchData, log: (s: string) => void): Pro
   const csvDoc = parse(readFileSync(d.campaign, 'utf8')) as typeof doc;
   const noNetcdfOutputCampaign = join(d.dir, 'campaign-no-netcdf-output.yaml');
   writeFileSync(noNetcdfOutputCampaign, stringify({ ...csvDoc, name: `${doc.name}-csv-only`, output: { ...csvDoc.output, netcdf: false } }));
-  return { netcdfCampaign, noNetcdfOutputCampaign, netcdfBytes: bytes };
+  const noBudgetCampaign = join(d.dir, 'campaign-no-budget.yaml');
+  writeFileSync(noBudgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-no-budget`, uncertainty: { budget: false } }));
+  const budgetCampaign = join(d.dir, 'campaign-budget.yaml');
+  writeFileSync(budgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-budget`, uncertainty: { budget: true } }));
+  return { netcdfCampaign, noNetcdfOutputCampaign, noBudgetCampaign, budgetCampaign, netcdfBytes: bytes };
 }

@@ -23,6 +23,7 @@ import { runShard, type ShardSpec } from '../src/pipeline/partial.ts';
 import { defaultCores, runCampaign, type RunResult } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
+import { BUDGET_COLUMNS } from '../src/records/tables/fields.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
@@ -76,8 +77,22 @@ async function shardAndMerge(c: Campaign, specs: ShardSpec[], dir: string, out: 
   return runCampaign(c, { outRoot: out, images: false, partials: parts, stages: defaultStages() });
 }
 
-function expectSameRun(single: RunResult, merged: RunResult): void {
-  const a = fieldTables(single.runDir), b = fieldTables(merged.runDir);
+/** Each line without its last BUDGET_COLUMNS columns (the uncertainty budget's and turbulence statistics'). */
+function withoutBudget(tables: Map<string, string>): Map<string, string> {
+  const n = BUDGET_COLUMNS.length;
+  return new Map([...tables].map(([k, text]) => [k, text.split('\n').map((l) => (l ? l.split(',').slice(0, -n).join(',') : l)).join('\n')]));
+}
+
+/**
+ * The merged run equals the single run. `budget`: also the uncertainty budget's columns and what follows from them
+ * (wake table). They are byte-identical only when no sequence of a key's samples is cut between shards: the budget's
+ * lag and burst sums follow the order of each key's samples and lose the pairs across a cut (grid/accumulator.ts
+ * states the bound), which happens when a window is cut in time or one instrument's files, read interleaved by one
+ * run, go to different shards. Every other column is a sum independent of order: byte-identical always.
+ */
+function expectSameRun(single: RunResult, merged: RunResult, budget = false): void {
+  const fa = fieldTables(single.runDir), fb = fieldTables(merged.runDir);
+  const a = budget ? fa : withoutBudget(fa), b = budget ? fb : withoutBudget(fb);
   expect(a.size).toBeGreaterThan(0);
   expect(single.manifest.samples.total.accepted).toBeGreaterThan(0);
   expect([...b.keys()]).toEqual([...a.keys()]);
@@ -86,7 +101,7 @@ function expectSameRun(single: RunResult, merged: RunResult): void {
   // Accounting: exact integer sums, per instrument and reason.
   expect(merged.manifest.samples).toEqual(single.manifest.samples);
   expect(merged.manifest.windows).toEqual(single.manifest.windows);
-  expect(readFileSync(join(merged.runDir, 'wake', 'wake_table.csv'), 'utf8')).toBe(readFileSync(join(single.runDir, 'wake', 'wake_table.csv'), 'utf8'));
+  if (budget) expect(readFileSync(join(merged.runDir, 'wake', 'wake_table.csv'), 'utf8')).toBe(readFileSync(join(single.runDir, 'wake', 'wake_table.csv'), 'utf8'));
   // The NetCDF outputs (written on another thread, awaited before the manifest): present and complete in both.
   const ncs = readdirSync(join(single.runDir, 'fields')).filter((f) => f.endsWith('.nc'));
   expect(ncs.length).toBeGreaterThan(0);
@@ -166,6 +181,17 @@ describe('sharded runs merge exactly', () => {
     expect(defaultCores(16)).toBe(16);
   });
 
+  it('whole instruments per shard: every column byte-identical, the uncertainty budget\'s too', async () => {
+    const cw = loadCampaignFile(file); // each instrument's one file
+    cw.windows = c.windows;
+    const single = await runCampaign(cw, { outRoot: join(dir, 'single-w'), images: false, stages: defaultStages() });
+    const files = cw.instruments.flatMap((i) => i.files);
+    const merged = await shardAndMerge(cw, [{ files: [files[0], files[2]], from_s: -Infinity, to_s: Infinity }, { files: [files[1]], from_s: -Infinity, to_s: Infinity }], join(dir, 'parts-w'), join(dir, 'merged-w'));
+    expectSameRun(single, merged, true);
+    const multi = await runCampaign(cw, { outRoot: join(dir, 'multi-w'), images: false, stages: defaultStages(), cores: 2 });
+    expectSameRun(single, multi, true);
+  }, 120_000);
+
   it('every core: a run on 2 processes gives the single run\'s outputs', async () => {
     const single = await runCampaign(c, { outRoot: join(dir, 'single-c'), images: false, stages: defaultStages(), cores: 1 });
     const multi = await runCampaign(c, { outRoot: join(dir, 'multi-c'), images: false, stages: defaultStages(), cores: 2 });
@@ -203,9 +229,10 @@ describe('sharded runs merge exactly', () => {
     }
     const merged = await runCli(['merge', p(0), p(1), p(2), '--keep-partials', '--no-images', '--quiet', '--out', join(dir, 'cli-merged')]);
     expect(merged.stderr).toBe('');
-    const a = fieldTables(join(dir, 'cli-single', 'tiny-test')), b = fieldTables(join(dir, 'cli-merged', 'tiny-test'));
+    // Byte-identical but for the budget's columns (a window is cut in time here: see expectSameRun).
+    const a = withoutBudget(fieldTables(join(dir, 'cli-single', 'tiny-test'))), b = withoutBudget(fieldTables(join(dir, 'cli-merged', 'tiny-test')));
     expect([...b.keys()]).toEqual([...a.keys()]);
-    for (const [n, text] of a) expect(b.get(n), n).toBe(text); // byte-identical
+    for (const [n, text] of a) expect(b.get(n), n).toBe(text);
     const ma = JSON.parse(readFileSync(join(dir, 'cli-single', 'tiny-test', 'manifest.json'), 'utf8'));
     const mb = JSON.parse(readFileSync(join(dir, 'cli-merged', 'tiny-test', 'manifest.json'), 'utf8'));
     expect(mb.samples).toEqual(ma.samples); // exact sums
@@ -346,8 +373,8 @@ describe('sharded demo scenarios', () => {
     ];
     const merged = await shardAndMerge(c, specs, join(dir, 'parts'), join(dir, 'merged'));
     expectSameRun(single, merged);
-    // The power stage (per-window power, bootstrap gains with a fixed seed) and the wakes of every turbine follow.
-    for (const f of ['power/window_power.csv', 'power/power_gain.csv', 'wake/turbine_wakes.csv', 'wake/steering.csv', 'wake/downstream.csv']) {
+    // The power stage (per-window power, bootstrap gains with a fixed seed) follows.
+    for (const f of ['power/window_power.csv', 'power/power_gain.csv']) {
       expect(readFileSync(join(merged.runDir, f), 'utf8'), f).toBe(readFileSync(join(single.runDir, f), 'utf8'));
     }
   }, 180_000);

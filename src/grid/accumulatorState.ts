@@ -17,8 +17,11 @@ import { FINE_SHIFT, MAX_DISTINCT, VrHistograms } from '../qc/vrHistogram.ts';
 
 export type TypedArray = Float64Array | Float32Array | Int32Array | Uint32Array | Int16Array | Uint16Array | Int8Array | Uint8Array;
 
-/** Fields rebuilt (slotOf) or stored in canonical form (hist) instead of as they are held. */
-const SPECIAL = new Set(['slotOf', 'hist']);
+/**
+ * Fields rebuilt (slotOf), stored in canonical form (hist) or dropped (lag: the state of the open rays and runs of
+ * the budget sums, dropped after closeRays() as a merge drops it; grid/accumulator.ts) instead of as they are held.
+ */
+const SPECIAL = new Set(['slotOf', 'hist', 'lag']);
 
 export interface ArrayState {
   /** Numbers and small descriptions (JSON). */
@@ -37,11 +40,11 @@ function fieldsOf(acc: CellAccumulator): { numbers: string[]; perSlot: [string, 
   const numbers: string[] = [], perSlot: [string, number][] = [], whole: string[] = [];
   for (const [name, v] of Object.entries(acc)) {
     if (SPECIAL.has(name)) continue;
-    if (typeof v === 'number') numbers.push(name);
+    if (typeof v === 'number' || typeof v === 'boolean') numbers.push(name);
     else if (isTyped(v)) {
       if (v.length % cap === 0) perSlot.push([name, v.length / cap]);
       else whole.push(name);
-    } else if (v !== undefined) throw new TypeError(`accumulatorState: field "${name}" of CellAccumulator is neither a number nor a typed array; teach grid/accumulatorState.ts how to carry it`);
+    } else if (v !== undefined) throw new TypeError(`accumulatorState: field "${name}" of CellAccumulator is neither a number, a flag nor a typed array; teach grid/accumulatorState.ts how to carry it`);
   }
   return { numbers: numbers.sort(), perSlot: perSlot.sort((a, b) => (a[0] < b[0] ? -1 : 1)), whole: whole.sort() };
 }
@@ -69,6 +72,8 @@ export function accumulatorLayout(): string {
 
 /** The accumulator's content as arrays (copies; the accumulator may be reset afterwards). */
 export function accumulatorState(acc: CellAccumulator): ArrayState {
+  // Open rays and runs closed: the sums are complete and the ray state can be dropped (as merge() does).
+  acc.closeRays();
   const f = fieldsOf(acc);
   const rec = acc as unknown as Record<string, unknown>;
   const meta: Record<string, unknown> = {};
@@ -159,11 +164,12 @@ export function accumulatorFromStates(states: ArrayState[], into?: CellAccumulat
 export function accumulatorFromState(state: ArrayState, into?: CellAccumulator): CellAccumulator {
   const { meta, arrays } = state;
   const keyCount = meta.keyCount as number, instrumentCount = meta.instrumentCount as number, slots = meta.slots as number;
+  const budget = meta.budget === undefined ? undefined : Boolean(meta.budget);
   let acc: CellAccumulator;
-  if (into && into.keyCount === keyCount && into.instrumentCount === instrumentCount) {
+  if (into && into.keyCount === keyCount && into.instrumentCount === instrumentCount && (budget === undefined || into.budget === budget)) {
     into.reset();
     acc = into;
-  } else acc = new CellAccumulator(keyCount, instrumentCount);
+  } else acc = new CellAccumulator(keyCount, instrumentCount, budget);
   const keyOf = arrays.keyOf as Int32Array;
   if (!keyOf || keyOf.length !== slots) throw new RangeError('accumulator state: keyOf does not hold one key per slot');
   for (let s = 0; s < slots; s++) {
@@ -173,7 +179,7 @@ export function accumulatorFromState(state: ArrayState, into?: CellAccumulator):
   }
   const f = fieldsOf(acc);
   const rec = acc as unknown as Record<string, unknown>;
-  for (const n of f.numbers) if (n !== 'slots' && n !== 'keyCount' && n !== 'instrumentCount') rec[n] = meta[n];
+  for (const n of f.numbers) if (n !== 'slots' && n !== 'keyCount' && n !== 'instrumentCount' && n !== 'budget') rec[n] = meta[n];
   for (const [n, w] of f.perSlot) {
     const src = arrays[n];
     if (!src || src.length !== slots * w) throw new RangeError(`accumulator state: field "${n}" missing or of the wrong length`);

@@ -216,6 +216,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     rows: 0,
     /** Time of the file's last valid row so far (time shards: where its unreadable rows belong). */
     lastValid: -Infinity,
+    /** Instruments whose rows the file held. */
+    seen: new Uint8Array(I),
   }));
   let first = Infinity;
   for (const cur of cursors) {
@@ -243,7 +245,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const D = (dir * Math.PI) / 180;
       w = {
         def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
-        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I)), dE: -Math.sin(D), dN: -Math.cos(D),
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I, c.uncertainty.budget)), dE: -Math.sin(D), dN: -Math.cos(D),
       };
       open.set(id, w);
     }
@@ -273,7 +275,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const live: Live[] = [];
   let nFound = 0, nLive = 0, nDirected = 0, rFrom = Infinity, rTo = -Infinity;
 
-  const processChunk = (chunk: SampleChunk, owner: number) => {
+  const processChunk = (chunk: SampleChunk, owner: number, seen: Uint8Array) => {
     const b = chunk.batch;
     opts.onBatch?.(b);
     const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
@@ -290,6 +292,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
+      seen[ins] = 1;
       if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
       if (cnr < cnrMin) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
@@ -419,14 +422,19 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       if (r.done) cur.done = true;
       else chunk = r.value;
     }
+    if (cur.done) {
+      // The budget's sequences (rays, runs, bursts of each key: grid/accumulator.ts) end with the file, in every
+      // run: a run sharded by files, or spread over cores by files, then forms exactly the same sequences.
+      for (const w of open.values()) for (const a of w.accs) for (let ins = 0; ins < I; ins++) if (cur.seen[ins] === 1) a.endSequences(ins);
+    }
     if (chunk) {
       if (timeShard) {
         const b = chunk.batch;
         const at = b.length > 0 ? b.time[0] : cur.lastValid;
         const mine = at >= shard!.from_s && at < shard!.to_s;
-        processChunk({ batch: inRange(b), rejected: mine ? chunk.rejected : [] }, cur.owner);
+        processChunk({ batch: inRange(b), rejected: mine ? chunk.rejected : [] }, cur.owner, cur.seen);
         if (b.length > 0) cur.lastValid = b.time[b.length - 1];
-      } else processChunk(chunk, cur.owner);
+      } else processChunk(chunk, cur.owner, cur.seen);
       const b = chunk.batch;
       if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
       cur.rows += b.length + chunk.rejected.length;

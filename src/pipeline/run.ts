@@ -24,6 +24,7 @@ import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
+import { budgetSettings } from './budgetSettings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { campaignFirstSample, Counters, ingest } from './ingest.ts';
 import { PartialSet, removePartials } from './partial.ts';
@@ -218,6 +219,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       twoInstrumentAssumption: c.retrieval.twoInstrumentAssumption,
       robust: c.qc.robust,
       instrumentCount: c.instruments.length,
+      budget: budgetSettings(c),
     };
     const counters = new Counters(c.instruments.length);
     let rejectedOut: AtomicStream | undefined;
