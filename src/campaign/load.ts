@@ -171,7 +171,10 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     const nz = Math.round((p.second.max - p.second.min) / p.cell_m[1]);
     if (ny * nz > 1_000_000) bad(['planes', p.index, 'cell_m'], 'more than 1e6 cells in one plane; use larger cells', p.cell_m);
   }
-  if (c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
+  if (typeof c.qc.cnr_db.min === 'number' && c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
+
+  if (c.qc.cnr_db.auto.withoutEvidence_db >= c.qc.cnr_db.max) bad(['qc', 'cnr_db', 'auto', 'withoutEvidence_db'], 'must be below qc.cnr_db.max', c.qc.cnr_db.auto.withoutEvidence_db);
+  if (c.qc.cnr_db.auto.fallback_db >= c.qc.cnr_db.max) bad(['qc', 'cnr_db', 'auto', 'fallback_db'], 'must be below qc.cnr_db.max', c.qc.cnr_db.auto.fallback_db);
 
   const tSeries = segmentTurbine(c, turbines, bad)?.series;
   if (c.power) {

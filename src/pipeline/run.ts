@@ -23,6 +23,7 @@ import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
+import { resolveCnrLimits, type CnrLimits } from '../qc/cnrLimits.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
@@ -129,6 +130,12 @@ export function pendingWrites(shared: Record<string, unknown>): Promise<void>[] 
   return (shared.pendingWrites ??= []) as Promise<void>[];
 }
 
+/** The campaign as the manifest records it: qc.cnr_db.resolved_db holds each instrument's applied CNR limit, dB. */
+export function withResolvedCnr(c: Campaign, cnr: CnrLimits): Campaign {
+  const resolved_db = Object.fromEntries(c.instruments.map((i) => [i.id, cnr.min_db[i.index]]));
+  return { ...c, qc: { ...c.qc, cnr_db: { ...c.qc.cnr_db, resolved_db } } } as Campaign;
+}
+
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
   const progress = opts.progress ?? silent;
   const t0 = performance.now();
@@ -172,6 +179,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const inspector = new SuspicionInspector(cRead, suspicionSettings(c, show));
 
   try {
+    // CNR limits: fixed, or estimated from the first rows of every file (a function of the campaign only, so every
+    // shard or core of a run gets the same limits).
+    progress.stage('estimating CNR limits');
+    t = performance.now();
+    const cnr = await resolveCnrLimits(cRead);
+    if (cnr.mode === 'auto') lap('cnr_limits', t);
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
     const settings: RetrievalSettings = {
       maxAmplification: c.retrieval.maxAmplification,
@@ -194,7 +207,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       startedAt: new Date(Date.now() - (performance.now() - t0)).toISOString(),
       finishedAt: '',
       inputs: [],
-      settings: c,
+      settings: withResolvedCnr(c, cnr),
+      cnrLimits: { mode: cnr.mode, perInstrument: cnr.perInstrument },
       samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
       windows: [],
       outputs,
@@ -237,6 +251,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         targets: rt.targets,
         targetOf: rt.targetOf,
         nacelleFrames: rt.nacelleFrames,
+        cnrMin_db: cnr.min_db,
         windowPlan(first) {
           built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
           finisher.disjoint = built.plan.disjoint;
@@ -273,6 +288,11 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (rejectedOut) {
       await rejectedOut.close();
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
+    }
+    for (const [id, l] of Object.entries(cnr.perInstrument)) if (l.status === 'too-few-samples' || l.status === 'no-cnr') warnings.push(`CNR limit of ${id}: ${l.note}`);
+    if (images && cnr.mode === 'auto') {
+      const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
+      outputs.push(...(await renderCnrLimitFigures(cnr.perInstrument, runDir)));
     }
     if (finisher.windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 

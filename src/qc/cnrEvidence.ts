@@ -87,6 +87,16 @@ export interface SampleColumnsIn {
   cnr: ArrayLike<number>;
 }
 
+interface SampleColumns {
+  length: number;
+  time: Float64Array;
+  azimuth: Float64Array;
+  elevation: Float64Array;
+  range: Float64Array;
+  radialVelocity: Float64Array;
+  cnr: Float64Array;
+}
+
 /** A reference uses at most this many stronger members (the strongest ones): bounded work in large groups. */
 const MAX_REFERENCE = 101;
 
@@ -105,7 +115,7 @@ function medianOfSorted(a: Float64Array, len: number): number {
  * CNR (the strongest minGroup members: the median of the other minGroup - 1 of them); NaN where the group is smaller
  * than minGroup. Returns the number of samples with a deviation.
  */
-function deviations(s: SampleColumnsIn, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array, referenceMin_db: number): number {
+function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array, referenceMin_db: number): number {
   const n = use.length;
   let t0 = Infinity;
   for (let k = 0; k < n; k++) t0 = Math.min(t0, Math.floor(s.time[use[k]] / bins.timeBlock_s));
@@ -123,15 +133,25 @@ function deviations(s: SampleColumnsIn, use: Uint32Array, bins: CnrEvidence['bin
     const rb = Math.floor(s.range[i] / bins.rangeBin_m);
     key[k] = ((tb * na + ab) * ne + eb) * nr + rb; // exact below 2^53 for any real campaign (blocks x bins)
   }
+  // Group members together (groups in order of first appearance, members in sample order): a counting sort.
+  const groupOf = new Uint32Array(n);
+  const ids = new Map<number, number>();
+  for (let k = 0; k < n; k++) {
+    let g = ids.get(key[k]);
+    if (g === undefined) ids.set(key[k], (g = ids.size));
+    groupOf[k] = g;
+  }
+  const starts = new Uint32Array(ids.size + 1);
+  for (let k = 0; k < n; k++) starts[groupOf[k] + 1]++;
+  for (let g = 0; g < ids.size; g++) starts[g + 1] += starts[g];
+  const fill = starts.slice(0, ids.size);
   const order = new Uint32Array(n);
-  for (let k = 0; k < n; k++) order[k] = k;
-  order.sort((a, b) => key[a] - key[b] || a - b);
+  for (let k = 0; k < n; k++) order[fill[groupOf[k]]++] = k;
   d.fill(NaN);
   let mem = new Uint32Array(64), sorted = new Float64Array(64);
   let withRef = 0;
-  for (let lo = 0; lo < n; ) {
-    let hi = lo + 1;
-    while (hi < n && key[order[hi]] === key[order[lo]]) hi++;
+  for (let g = 0; g < ids.size; g++) {
+    const lo = starts[g], hi = starts[g + 1];
     const m = hi - lo;
     if (m >= minGroup && referenceMin_db > -Infinity) {
       // Second pass: the leave-one-out median of the members at or above referenceMin_db.
@@ -146,15 +166,24 @@ function deviations(s: SampleColumnsIn, use: Uint32Array, bins: CnrEvidence['bin
         if (L < minGroup - 1) continue;
         let a = E; // without self: nothing removed
         if (self) { a = 0; let b = E - 1; while (a < b) { const c = (a + b) >> 1; if (sorted[c] < v) a = c + 1; else b = c; } }
-        const at = (j: number) => sorted[j < a ? j : j + 1];
-        d[i] = v - (L % 2 === 1 ? at((L - 1) / 2) : 0.5 * (at(L / 2 - 1) + at(L / 2)));
+        // the median of the remaining values r[j] = sorted[j < a ? j : j + 1]
+        const j1 = (L - 1) >> 1, j2 = L >> 1;
+        const r1 = sorted[j1 < a ? j1 : j1 + 1], r2 = sorted[j2 < a ? j2 : j2 + 1];
+        d[i] = v - 0.5 * (r1 + r2);
         withRef++;
       }
     } else if (m >= minGroup) {
       if (mem.length < m) { mem = new Uint32Array(2 * m); sorted = new Float64Array(2 * m); }
       // Members by CNR, strongest first (ties by position: deterministic).
       for (let k = 0; k < m; k++) mem[k] = order[lo + k];
-      mem.subarray(0, m).sort((a, b) => s.cnr[use[b]] - s.cnr[use[a]] || a - b);
+      if (m <= 32) {
+        for (let k = 1; k < m; k++) {
+          const x = mem[k], cx = s.cnr[use[x]];
+          let j = k;
+          while (j > 0 && (s.cnr[use[mem[j - 1]]] < cx || (s.cnr[use[mem[j - 1]]] === cx && mem[j - 1] > x))) { mem[j] = mem[j - 1]; j--; }
+          mem[j] = x;
+        }
+      } else mem.subarray(0, m).sort((a, b) => s.cnr[use[b]] - s.cnr[use[a]] || a - b);
       const top = minGroup - 1;
       // The strongest minGroup members: each against the median of the other minGroup - 1.
       for (let k = 0; k < minGroup; k++) {
@@ -171,7 +200,6 @@ function deviations(s: SampleColumnsIn, use: Uint32Array, bins: CnrEvidence['bin
       }
       withRef += m;
     }
-    lo = hi;
   }
   return withRef;
 }
@@ -180,7 +208,7 @@ function deviations(s: SampleColumnsIn, use: Uint32Array, bins: CnrEvidence['bin
  * The (CNR, normalised deviation) histogram of one instrument's samples. Samples with NaN CNR, CNR above cnrMax_db
  * or |v_r| above the limit are left out.
  */
-export function cnrEvidence(s: SampleColumnsIn, options: CnrEvidenceOptions = {}): CnrEvidence {
+export function cnrEvidence(input: SampleColumnsIn, options: CnrEvidenceOptions = {}): CnrEvidence {
   const cnrMax = options.cnrMax_db ?? Infinity, vLim = options.radialVelocityLimit_ms ?? Infinity;
   const minGroup = options.minGroup ?? 5;
   let bins = {
@@ -189,13 +217,22 @@ export function cnrEvidence(s: SampleColumnsIn, options: CnrEvidenceOptions = {}
     elevationBin_deg: options.elevationBin_deg ?? 1,
     rangeBin_m: options.rangeBin_m ?? 30,
   };
-  const idx: number[] = [];
-  for (let i = 0; i < s.length; i++) {
-    const c = s.cnr[i], v = s.radialVelocity[i];
-    if (c === c && c <= cnrMax && Math.abs(v) <= vLim && Number.isFinite(s.time[i]) && Number.isFinite(s.range[i])) idx.push(i);
+  // Local copies of the used samples (monomorphic typed arrays for the loops below); `use` is then the identity.
+  const N = input.length;
+  const s: SampleColumns = {
+    length: 0, time: new Float64Array(N), azimuth: new Float64Array(N), elevation: new Float64Array(N), range: new Float64Array(N),
+    radialVelocity: new Float64Array(N), cnr: new Float64Array(N),
+  };
+  let n = 0;
+  for (let i = 0; i < N; i++) {
+    const c = input.cnr[i], v = input.radialVelocity[i], t = input.time[i], r = input.range[i];
+    if (!(c === c && c <= cnrMax && Math.abs(v) <= vLim && Number.isFinite(t) && Number.isFinite(r))) continue;
+    s.time[n] = t; s.azimuth[n] = input.azimuth[i]; s.elevation[n] = input.elevation[i]; s.range[n] = r; s.radialVelocity[n] = v; s.cnr[n] = c;
+    n++;
   }
-  const use = Uint32Array.from(idx);
-  const n = use.length;
+  s.length = n;
+  const use = new Uint32Array(n);
+  for (let k = 0; k < n; k++) use[k] = k;
   const d = new Float64Array(n);
   const refMin = options.referenceMin_db ?? -Infinity;
   let withRef = n > 0 ? deviations(s, use, bins, minGroup, d, refMin) : 0;

@@ -1,0 +1,151 @@
+/**
+ * The CNR limits of a run, resolved before the ingest: fixed (qc.cnr_db.min a number: the same for every instrument)
+ * or estimated from the data (qc.cnr_db.min "auto", the default; cnrEvidence.ts and cnrLimit.ts).
+ *
+ * The estimate is a function of the campaign's inputs and settings only: a bounded, deterministic pre-pass reads the
+ * first rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
+ * campaign order) and keeps only those rows' seven columns. It never depends on how a run is split into shards or
+ * cores: every part of a run calls `resolveCnrLimits` on the whole campaign and gets the same limits (the manifest
+ * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (100,000 rows: 4.8 MB).
+ *
+ * Limits: the rows are the heads of the files, so a campaign of one long file per instrument is judged on its first
+ * rows (a record split into many files is sampled throughout). An instrument with too few samples, or without a CNR
+ * column, gets qc.cnr_db.auto.withoutEvidence_db and the run says so.
+ */
+import type { Campaign } from '../campaign/types.ts';
+import { openSamples } from '../io/sampleSource.ts';
+import type { CnrEvidence } from './cnrEvidence.ts';
+import { estimateCnrLimit, type CnrClass, type CnrLimitStatus } from './cnrLimit.ts';
+
+export interface InstrumentCnrLimit {
+  /** Samples below are rejected (low_cnr), above max_db too (hard_target_cnr), dB. */
+  min_db: number;
+  max_db: number;
+  status: CnrLimitStatus | 'fixed';
+  /** One sentence for the terminal, the manifest and the report. */
+  note: string;
+  /** The pre-pass (auto only): rows read from the heads of the instrument's files, samples with a CNR, with a reference. */
+  rowsRead?: number;
+  samples?: number;
+  referenced?: number;
+  /** Good-signal scatter sigma_g, m/s: the unit of the normalised deviation. */
+  scatter_ms?: number;
+  /** Inconsistent share of the strongest signals and of junk (cnrLimit.ts steps 3 and 4). */
+  referenceShare?: number;
+  junkInconsistentShare?: number;
+  /** Estimated junk samples accepted above the limit and good samples rejected below it, in the pre-pass rows. */
+  junkAccepted?: number;
+  goodRejected?: number;
+  passes?: number;
+  binning?: CnrEvidence['binning'];
+  /** The evidence curve: per CNR class, its share of inconsistent samples, scatter and estimated junk share. */
+  classes?: CnrClass[];
+}
+
+export interface CnrLimits {
+  mode: 'auto' | 'fixed';
+  /** Per instrument id. */
+  perInstrument: Record<string, InstrumentCnrLimit>;
+  /** Per instrument index (campaign order), dB: what the ingest compares with. */
+  min_db: Float64Array;
+  /** Seconds spent reading and estimating (0 for fixed limits). */
+  seconds: number;
+}
+
+interface Columns {
+  n: number;
+  time: Float64Array; azimuth: Float64Array; elevation: Float64Array; range: Float64Array; radialVelocity: Float64Array; cnr: Float64Array;
+}
+
+function columns(cap: number): Columns {
+  return {
+    n: 0, time: new Float64Array(cap), azimuth: new Float64Array(cap), elevation: new Float64Array(cap), range: new Float64Array(cap),
+    radialVelocity: new Float64Array(cap), cnr: new Float64Array(cap),
+  };
+}
+
+/** The pre-pass: the first rows of every file, per instrument (at most rowsPerInstrument kept per instrument). */
+export async function readHeads(c: Campaign, rowsPerInstrument: number): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
+  const I = c.instruments.length;
+  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
+  const cols: Columns[] = [];
+  const rowsRead = new Float64Array(I);
+  const start: number[] = [];
+  for (let k = 0; k < I; k++) { cols.push(columns(Math.min(rowsPerInstrument, 1 << 16))); start.push(0); }
+  const grow = (col: Columns, need: number): Columns => {
+    if (need <= col.time.length) return col;
+    const next = columns(Math.min(rowsPerInstrument, Math.max(need, 2 * col.time.length)));
+    for (const f of ['time', 'azimuth', 'elevation', 'range', 'radialVelocity', 'cnr'] as const) next[f].set(col[f].subarray(0, col.n));
+    next.n = col.n;
+    return next;
+  };
+  for (const ins of c.instruments) {
+    if (ins.files.length === 0) continue;
+    const quota = Math.ceil(rowsPerInstrument / ins.files.length);
+    for (const path of ins.files) {
+      let taken = 0;
+      for await (const chunk of openSamples(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, batchSize: 16384 })) {
+        const b = chunk.batch;
+        const m = Math.min(b.length, quota - taken);
+        for (let i = 0; i < m; i++) {
+          const k = b.instrument[i];
+          rowsRead[k]++;
+          let col = cols[k];
+          if (col.n >= rowsPerInstrument) continue;
+          if (col.n >= col.time.length) col = cols[k] = grow(col, col.n + 1);
+          const j = col.n++;
+          col.time[j] = b.time[i]; col.azimuth[j] = b.azimuth[i]; col.elevation[j] = b.elevation[i];
+          col.range[j] = b.range[i]; col.radialVelocity[j] = b.radialVelocity[i]; col.cnr[j] = b.cnr[i];
+        }
+        taken += m + chunk.rejected.length;
+        if (taken >= quota) break;
+      }
+    }
+  }
+  return { cols, rowsRead };
+}
+
+const fmt = (x: number) => (Math.round(x * 10) / 10).toString();
+
+/**
+ * The run's CNR limits from the campaign: fixed, or estimated by the pre-pass. Same campaign and files, same limits.
+ */
+export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
+  const q = c.qc.cnr_db;
+  const I = c.instruments.length;
+  const per: Record<string, InstrumentCnrLimit> = {};
+  const min = new Float64Array(I);
+  if (q.min !== 'auto') {
+    for (const ins of c.instruments) {
+      per[ins.id] = { min_db: q.min, max_db: q.max, status: 'fixed', note: `fixed limit ${fmt(q.min)} dB (qc.cnr_db.min)` };
+      min[ins.index] = q.min;
+    }
+    return { mode: 'fixed', perInstrument: per, min_db: min, seconds: 0 };
+  }
+  const t0 = performance.now();
+  const a = q.auto;
+  const { cols, rowsRead } = await readHeads(c, a.rowsPerInstrument);
+  for (const ins of c.instruments) {
+    const col = cols[ins.index];
+    const { evidence: ev, decision: d, passes } = estimateCnrLimit(
+      { length: col.n, time: col.time, azimuth: col.azimuth, elevation: col.elevation, range: col.range, radialVelocity: col.radialVelocity, cnr: col.cnr },
+      { timeBlock_s: a.timeBlock_s, rangeBin_m: ins.kind === 'pulsed' ? ins.pulsed.gateLength_m : 30, cnrMax_db: q.max, radialVelocityLimit_ms: c.qc.radialVelocityLimit_ms },
+      { junkCost: a.junkCost, minSamples: a.minSamples, fallback_db: a.fallback_db, withoutEvidence_db: a.withoutEvidence_db },
+    );
+    const note =
+      d.status === 'break'
+        ? `estimated ${fmt(d.min_db)} dB: below it ${Math.round(100 * (d.classes.filter((k) => k.hi_db <= d.min_db).reduce((s, k) => s + k.samples * k.inconsistentShare, 0) / Math.max(1, d.classes.filter((k) => k.hi_db <= d.min_db).reduce((s, k) => s + k.samples, 0))))} % of the samples are inconsistent with their neighbours, above it ${Math.round(100 * d.referenceShare * 10) / 10} % at the strongest signals`
+        : d.status === 'no-break'
+          ? `no clear break: the data are consistent down to the lowest CNR seen; permissive limit ${fmt(d.min_db)} dB (the lower of qc.cnr_db.auto.fallback_db and the lowest CNR seen)`
+          : d.status === 'no-cnr'
+            ? `no CNR values in the first ${rowsRead[ins.index]} rows: the CNR rules do not apply to samples without CNR; limit ${fmt(d.min_db)} dB for any that have one (qc.cnr_db.auto.withoutEvidence_db)`
+            : `too few samples for an estimate (${ev.referenced} with a local reference, ${a.minSamples} needed): limit ${fmt(d.min_db)} dB (qc.cnr_db.auto.withoutEvidence_db)`;
+    per[ins.id] = {
+      min_db: d.min_db, max_db: q.max, status: d.status, note, rowsRead: rowsRead[ins.index], samples: ev.samples, referenced: ev.referenced,
+      scatter_ms: ev.scatter_ms, referenceShare: d.referenceShare, junkInconsistentShare: d.junkInconsistentShare,
+      junkAccepted: Math.round(d.junkAccepted), goodRejected: Math.round(d.goodRejected), passes, binning: ev.binning, classes: d.classes,
+    };
+    min[ins.index] = d.min_db;
+  }
+  return { mode: 'auto', perInstrument: per, min_db: min, seconds: (performance.now() - t0) / 1000 };
+}
