@@ -1,0 +1,11 @@
+import { writeTinyCampaign } from './test/helpers/tinyCampaign.ts';
+import { loadCampaignFile } from './src/campaign/load.ts';
+import { simulateCampaign } from './src/sim/simulate.ts';
+import { runCampaign } from './src/pipeline/run.ts';
+import { defaultStages } from './src/pipeline/stages.ts';
+import { formatRunSummary } from './src/cli/summary.ts';
+const { dir, file } = writeTinyCampaign();
+await simulateCampaign(loadCampaignFile(file));
+const res = await runCampaign(loadCampaignFile(file), { outRoot: dir + '/out', images: true, stages: defaultStages() });
+console.log(formatRunSummary(res));
+console.log(res.runDir, res.manifest.timings_s);

@@ -1,0 +1,15 @@
+import { writeTinyCampaign } from './test/helpers/tinyCampaign.ts';
+import { loadCampaignFile } from './src/campaign/load.ts';
+import { simulateCampaign } from './src/sim/simulate.ts';
+import { resolveCnrLimits, readHeads } from './src/qc/cnrLimits.ts';
+const { dir, file } = writeTinyCampaign();
+await simulateCampaign(loadCampaignFile(file));
+const c = loadCampaignFile(file);
+let t = performance.now();
+await readHeads(c, 200000);
+console.log('read', performance.now() - t);
+t = performance.now();
+const r = await resolveCnrLimits(c);
+console.log('all', performance.now() - t);
+for (const c of r.perInstrument.a.classes!) console.log(c.lo_db, c.hi_db, c.samples, c.inconsistentShare.toFixed(3), c.junkShare.toFixed(3), c.scatter_ms.toFixed(2));
+const { classes, ...rest } = r.perInstrument.a; console.log(rest);

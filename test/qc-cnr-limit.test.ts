@@ -1,0 +1,126 @@
+/**
+ * The data-driven CNR limit (src/qc/cnrEvidence.ts, src/qc/cnrLimit.ts): against an independent numpy computation of
+ * the same statistic (test/reference/cnr_limit.py, output quoted), and on synthetic samples our simulator did not
+ * shape (test/helpers/junkSamples.ts: every row its own angles, a wake-like deficit with doubled turbulence in it,
+ * realistic CNR spread) with known break points, several junk levels, kinds and shares; the fallbacks.
+ */
+import { describe, expect, it } from 'vitest';
+import { cnrEvidence } from '../src/qc/cnrEvidence.ts';
+import { chooseCnrLimit, estimateCnrLimit } from '../src/qc/cnrLimit.ts';
+import { junkSamples } from './helpers/junkSamples.ts';
+
+/** The reference data set of test/reference/cnr_limit.py (its docstring states the formulas). */
+function referenceData() {
+  const N = 6000;
+  const time = new Float64Array(N), azimuth = new Float64Array(N), elevation = new Float64Array(N), range = new Float64Array(N);
+  const radialVelocity = new Float64Array(N), cnr = new Float64Array(N);
+  const u = (i: number, k: number) => { const x = Math.sin(12.9898 * i + 78.233 * k) * 43758.5453; return x - Math.floor(x); };
+  for (let i = 0; i < N; i++) {
+    time[i] = 1.7e9 + 0.1 * i;
+    azimuth[i] = 100.3 + (Math.floor(i / 8) % 10);
+    elevation[i] = 2.3;
+    range[i] = 65 + 30 * (i % 8);
+    cnr[i] = -5 - 3 * (i % 8) + 4 * (u(i, 1) - 0.5);
+    radialVelocity[i] = cnr[i] < -20 ? -15 + 30 * u(i, 3) : 6 * Math.sin((azimuth[i] * Math.PI) / 180) + 0.8 * (u(i, 2) - 0.5) * Math.sqrt(12) * 0.5;
+  }
+  return { length: N, time, azimuth, elevation, range, radialVelocity, cnr };
+}
+
+describe('CNR limit: against the numpy reference (test/reference/cnr_limit.py)', () => {
+  // Printed by `python3 test/reference/cnr_limit.py` (numpy 2.4; test/reference/cnr_limit.out):
+  //   pass 1: referenced 6000, scatter 0.523172, reference share 0.000000, limit -19.0
+  //     class [-28, -25) n 557 inconsistent share 0.849192
+  //     class [-25, -24) n 367 inconsistent share 0.880109
+  //     class [-24, -22) n 366 inconsistent share 0.849727
+  //     class [-22, -21) n 396 inconsistent share 0.851010
+  //     class [-21, -19) n 378 inconsistent share 0.470899
+  //     class [-19, -18) n 385 ... [-5, -3) n 382: inconsistent share 0 (ten classes)
+  //   pass 2: referenced 4467, scatter 0.528638, reference share 0.000000, limit -19.0
+  //     class [-22, -19) n 542 inconsistent share 0.592251, the ten classes above -19 as in pass 1
+  const data = referenceData();
+
+  it('pass 1: the scatter, every class and the limit', () => {
+    const ev = cnrEvidence(data);
+    const d = chooseCnrLimit(ev);
+    expect(ev.referenced).toBe(6000); // counts: exact
+    // Printed to 6 decimals; the same arithmetic (sin may differ by an ulp, amplified by 43758 to ~1e-11): 1e-6.
+    expect(ev.scatter_ms).toBeCloseTo(0.523172, 6);
+    const want = [[-28, -25, 557, 0.849192], [-25, -24, 367, 0.880109], [-24, -22, 366, 0.849727], [-22, -21, 396, 0.851010], [-21, -19, 378, 0.470899]];
+    want.forEach(([lo, hi, n, share], k) => {
+      expect([d.classes[k].lo_db, d.classes[k].hi_db, d.classes[k].samples]).toEqual([lo, hi, n]); // exact
+      expect(d.classes[k].inconsistentShare).toBeCloseTo(share, 6); // printed to 6 decimals
+    });
+    expect(d.classes.map((c) => [c.lo_db, c.samples]).slice(5)).toEqual([[-19, 385], [-18, 379], [-16, 360], [-15, 387], [-13, 346], [-12, 381], [-10, 385], [-9, 367], [-7, 564], [-5, 382]]);
+    expect(d.classes.slice(5).every((c) => c.inconsistentShare === 0)).toBe(true);
+    expect(d.referenceShare).toBe(0);
+    expect(d.min_db).toBe(-19);
+    expect(d.status).toBe('break');
+  });
+
+  it('pass 2: references from the samples at or above the first limit', () => {
+    const { evidence: ev, decision: d, passes } = estimateCnrLimit(data);
+    expect(passes).toBe(2);
+    expect(ev.referenced).toBe(4467); // exact
+    expect(ev.scatter_ms).toBeCloseTo(0.528638, 6); // printed to 6 decimals
+    expect([d.classes[0].lo_db, d.classes[0].hi_db, d.classes[0].samples]).toEqual([-22, -19, 542]);
+    expect(d.classes[0].inconsistentShare).toBeCloseTo(0.592251, 6);
+    expect(d.min_db).toBe(-19);
+  });
+});
+
+describe('CNR limit: known break points on data our simulator did not shape', () => {
+  // Every row its own angles; CNR spread 2.5 dB about its range trend; turbulence 0.4 m/s, doubled in the deficit.
+  // Tolerance: the limit is a class edge and classes are 1 dB wide where data are dense: within 1 dB of the true
+  // break. Above it the samples are all good, so a limit higher than the break by up to 1 dB rejects at most one
+  // class of good samples; lower would let a class of junk in.
+  const cases: [number, 'uniform' | 'gauss', number][] = [
+    [-18, 'uniform', 1], [-22, 'gauss', 1], [-25, 'uniform', 0.5], [-28, 'gauss', 0.5], [-31, 'uniform', 1],
+  ];
+  for (const [level, kind, share] of cases) {
+    it(`junk below ${level} dB (${kind}, ${share * 100} % of the samples below it)`, () => {
+      const s = junkSamples({ junkBelow_db: level, junkKind: kind, junkShare: share, rows: 40000, seed: 100 - level, cnr250_db: level < -29 ? -12 : -8 });
+      const { decision: d } = estimateCnrLimit(s);
+      expect(d.status).toBe('break');
+      expect(d.min_db).toBeGreaterThanOrEqual(level);
+      expect(d.min_db).toBeLessThanOrEqual(level + 1);
+    });
+  }
+
+  it('a junk population of velocities near zero (Gaussian, sd 2 m/s) is found as well', () => {
+    const s = junkSamples({ junkBelow_db: -24, junkKind: 'gauss', junkSpan_ms: 6, rows: 40000, seed: 5 });
+    const { decision: d } = estimateCnrLimit(s);
+    expect(d.min_db).toBeGreaterThanOrEqual(-24); // 1 dB, as above
+    expect(d.min_db).toBeLessThanOrEqual(-23);
+  });
+});
+
+describe('CNR limit: no break, too few samples, no CNR', () => {
+  it('all data good: no clear break, the permissive fallback (the lower of -35 dB and the lowest CNR seen)', () => {
+    const s = junkSamples({ junkBelow_db: -99, rows: 40000 });
+    const { decision: d } = estimateCnrLimit(s);
+    expect(d.status).toBe('no-break');
+    let lowest = Infinity;
+    for (let i = 0; i < s.length; i++) lowest = Math.min(lowest, s.cnr[i]);
+    // The fallback is min(-35, floor of the lowest CNR): exact.
+    expect(d.min_db).toBe(Math.min(-35, Math.floor(lowest)));
+  });
+
+  it('too few samples: the limit without evidence, said so', () => {
+    const s = junkSamples({ junkBelow_db: -25, rows: 1500 });
+    const { decision: d } = estimateCnrLimit(s, {}, { withoutEvidence_db: -26 });
+    expect(d.status).toBe('too-few-samples');
+    expect(d.min_db).toBe(-26);
+  });
+
+  it('no CNR column (NaN everywhere): no-cnr', () => {
+    const s = junkSamples({ junkBelow_db: -25, rows: 5000 });
+    s.cnr.fill(NaN);
+    const { decision: d } = estimateCnrLimit(s);
+    expect(d.status).toBe('no-cnr');
+  });
+
+  it('empty input', () => {
+    const s = junkSamples({ junkBelow_db: -25, rows: 0 });
+    expect(estimateCnrLimit(s).decision.status).toBe('no-cnr');
+  });
+});
