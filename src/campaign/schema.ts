@@ -107,6 +107,10 @@ const instrumentSchema = z
       .strict()
       .default({ dwell_s: 1, slewRate_degs: 30 })
       .describe('scanner timing for the planner'),
+    cnrMin_db: z
+      .union([finite(), z.literal('auto')])
+      .optional()
+      .describe('this instrument\'s lower CNR limit, dB, or "auto" (estimated from its data); default: qc.cnr_db.min'),
     // Single-instrument geometries (geometrySchema.ts).
     role: roleSchema,
     beamFrame: beamFrameSchema,

@@ -35,7 +35,7 @@ export function formatRunSummary(res: RunResult): string {
   ];
   if (!m.samples.balanced) lines.push('  WARNING: the accounting does not balance');
   if (m.cnrLimits) {
-    lines.push(`CNR limits (${m.cnrLimits.mode === 'auto' ? 'estimated from the data, qc.cnr_db.min auto' : 'fixed, qc.cnr_db.min'}):`);
+    lines.push(`CNR limits (${m.cnrLimits.mode === 'auto' ? 'estimated from the data: qc.cnr_db.min auto' : m.cnrLimits.mode === 'fixed' ? 'fixed' : 'estimated where auto, else fixed'}):`);
     for (const [id, l] of Object.entries(m.cnrLimits.perInstrument)) lines.push(`  ${id}: ${l.min_db.toFixed(1)} dB  ${l.note}`);
   }
   for (const a of m.assumptions.slice(0, 3)) lines.push(`assumption: ${a}`);

@@ -184,7 +184,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     progress.stage('estimating CNR limits');
     t = performance.now();
     const cnr = await resolveCnrLimits(cRead);
-    if (cnr.mode === 'auto') lap('cnr_limits', t);
+    if (cnr.mode !== 'fixed') lap('cnr_limits', t);
     const planes: PlaneGrid[] = c.planes.map((spec) => ({ spec, grid: gridSpecOf(spec) }));
     const settings: RetrievalSettings = {
       maxAmplification: c.retrieval.maxAmplification,
@@ -290,7 +290,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
     }
     for (const [id, l] of Object.entries(cnr.perInstrument)) if (l.status === 'too-few-samples' || l.status === 'no-cnr') warnings.push(`CNR limit of ${id}: ${l.note}`);
-    if (images && cnr.mode === 'auto') {
+    if (images && cnr.mode !== 'fixed') {
       const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
       outputs.push(...(await renderCnrLimitFigures(cnr.perInstrument, runDir)));
     }

@@ -1,6 +1,6 @@
 /**
- * The CNR limits of a run, resolved before the ingest: fixed (qc.cnr_db.min a number: the same for every instrument)
- * or estimated from the data (qc.cnr_db.min "auto", the default; cnrEvidence.ts and cnrLimit.ts).
+ * The CNR limits of a run, resolved before the ingest, per instrument: fixed (a number: instruments[].cnrMin_db, else
+ * qc.cnr_db.min) or estimated from the data ("auto", the default of qc.cnr_db.min; cnrEvidence.ts and cnrLimit.ts).
  *
  * The estimate is a function of the campaign's inputs and settings only: a bounded, deterministic pre-pass reads the
  * first rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
@@ -15,7 +15,7 @@
 import type { Campaign } from '../campaign/types.ts';
 import { openSamples } from '../io/sampleSource.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
-import { estimateCnrLimit, type CnrClass, type CnrLimitStatus } from './cnrLimit.ts';
+import { estimateCnrLimit, type CnrClass, type CnrLimitDecision, type CnrLimitStatus } from './cnrLimit.ts';
 
 export interface InstrumentCnrLimit {
   /** Samples below are rejected (low_cnr), above max_db too (hard_target_cnr), dB. */
@@ -43,8 +43,9 @@ export interface InstrumentCnrLimit {
 }
 
 export interface CnrLimits {
-  mode: 'auto' | 'fixed';
-  /** Per instrument id. */
+  /** auto: every instrument estimated; fixed: none; mixed: some (instruments[].cnrMin_db). */
+  mode: 'auto' | 'fixed' | 'mixed';
+  /** Per instrument id, in campaign order. */
   perInstrument: Record<string, InstrumentCnrLimit>;
   /** Per instrument index (campaign order), dB: what the ingest compares with. */
   min_db: Float64Array;
@@ -65,7 +66,7 @@ function columns(cap: number): Columns {
 }
 
 /** The pre-pass: the first rows of every file, per instrument (at most rowsPerInstrument kept per instrument). */
-export async function readHeads(c: Campaign, rowsPerInstrument: number): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
+export async function readHeads(c: Campaign, rowsPerInstrument: number, which: number[] = c.instruments.map((i) => i.index)): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
   const I = c.instruments.length;
   const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
   const cols: Columns[] = [];
@@ -79,7 +80,8 @@ export async function readHeads(c: Campaign, rowsPerInstrument: number): Promise
     next.n = col.n;
     return next;
   };
-  for (const ins of c.instruments) {
+  for (const k of which) {
+    const ins = c.instruments[k];
     if (ins.files.length === 0) continue;
     const quota = Math.ceil(rowsPerInstrument / ins.files.length);
     for (const path of ins.files) {
@@ -115,37 +117,51 @@ export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
   const I = c.instruments.length;
   const per: Record<string, InstrumentCnrLimit> = {};
   const min = new Float64Array(I);
-  if (q.min !== 'auto') {
-    for (const ins of c.instruments) {
-      per[ins.id] = { min_db: q.min, max_db: q.max, status: 'fixed', note: `fixed limit ${fmt(q.min)} dB (qc.cnr_db.min)` };
-      min[ins.index] = q.min;
-    }
-    return { mode: 'fixed', perInstrument: per, min_db: min, seconds: 0 };
+  const wanted = c.instruments.map((ins) => ins.cnrMin_db ?? q.min);
+  for (const ins of c.instruments) {
+    const w = wanted[ins.index];
+    if (w === 'auto') continue;
+    const key = ins.cnrMin_db !== undefined ? `instruments[${ins.index}].cnrMin_db` : 'qc.cnr_db.min';
+    per[ins.id] = { min_db: w, max_db: q.max, status: 'fixed', note: `fixed limit ${fmt(w)} dB (${key})` };
+    min[ins.index] = w;
   }
+  const autoCount = wanted.filter((w) => w === 'auto').length;
+  const mode = autoCount === 0 ? 'fixed' : autoCount === I ? 'auto' : 'mixed';
+  if (autoCount === 0) return { mode, perInstrument: order(c, per), min_db: min, seconds: 0 };
   const t0 = performance.now();
   const a = q.auto;
-  const { cols, rowsRead } = await readHeads(c, a.rowsPerInstrument);
-  for (const ins of c.instruments) {
+  const auto = c.instruments.filter((ins) => wanted[ins.index] === 'auto');
+  const { cols, rowsRead } = await readHeads(c, a.rowsPerInstrument, auto.map((ins) => ins.index));
+  for (const ins of auto) {
     const col = cols[ins.index];
     const { evidence: ev, decision: d, passes } = estimateCnrLimit(
       { length: col.n, time: col.time, azimuth: col.azimuth, elevation: col.elevation, range: col.range, radialVelocity: col.radialVelocity, cnr: col.cnr },
       { timeBlock_s: a.timeBlock_s, rangeBin_m: ins.kind === 'pulsed' ? ins.pulsed.gateLength_m : 30, cnrMax_db: q.max, radialVelocityLimit_ms: c.qc.radialVelocityLimit_ms },
       { junkCost: a.junkCost, minSamples: a.minSamples, fallback_db: a.fallback_db, withoutEvidence_db: a.withoutEvidence_db },
     );
-    const note =
-      d.status === 'break'
-        ? `estimated ${fmt(d.min_db)} dB: below it ${Math.round(100 * (d.classes.filter((k) => k.hi_db <= d.min_db).reduce((s, k) => s + k.samples * k.inconsistentShare, 0) / Math.max(1, d.classes.filter((k) => k.hi_db <= d.min_db).reduce((s, k) => s + k.samples, 0))))} % of the samples are inconsistent with their neighbours, above it ${Math.round(100 * d.referenceShare * 10) / 10} % at the strongest signals`
-        : d.status === 'no-break'
-          ? `no clear break: the data are consistent down to the lowest CNR seen; permissive limit ${fmt(d.min_db)} dB (the lower of qc.cnr_db.auto.fallback_db and the lowest CNR seen)`
-          : d.status === 'no-cnr'
-            ? `no CNR values in the first ${rowsRead[ins.index]} rows: the CNR rules do not apply to samples without CNR; limit ${fmt(d.min_db)} dB for any that have one (qc.cnr_db.auto.withoutEvidence_db)`
-            : `too few samples for an estimate (${ev.referenced} with a local reference, ${a.minSamples} needed): limit ${fmt(d.min_db)} dB (qc.cnr_db.auto.withoutEvidence_db)`;
     per[ins.id] = {
-      min_db: d.min_db, max_db: q.max, status: d.status, note, rowsRead: rowsRead[ins.index], samples: ev.samples, referenced: ev.referenced,
-      scatter_ms: ev.scatter_ms, referenceShare: d.referenceShare, junkInconsistentShare: d.junkInconsistentShare,
+      min_db: d.min_db, max_db: q.max, status: d.status, note: noteOf(d, ev.referenced, rowsRead[ins.index], a.minSamples), rowsRead: rowsRead[ins.index],
+      samples: ev.samples, referenced: ev.referenced, scatter_ms: ev.scatter_ms, referenceShare: d.referenceShare, junkInconsistentShare: d.junkInconsistentShare,
       junkAccepted: Math.round(d.junkAccepted), goodRejected: Math.round(d.goodRejected), passes, binning: ev.binning, classes: d.classes,
     };
     min[ins.index] = d.min_db;
   }
-  return { mode: 'auto', perInstrument: per, min_db: min, seconds: (performance.now() - t0) / 1000 };
+  return { mode, perInstrument: order(c, per), min_db: min, seconds: (performance.now() - t0) / 1000 };
+}
+
+/** The per-instrument record in campaign order. */
+function order(c: Campaign, per: Record<string, InstrumentCnrLimit>): Record<string, InstrumentCnrLimit> {
+  return Object.fromEntries(c.instruments.map((i) => [i.id, per[i.id]]));
+}
+
+/** One sentence on how the limit was chosen. */
+function noteOf(d: CnrLimitDecision, referenced: number, rowsRead: number, minSamples: number): string {
+  if (d.status === 'break') {
+    const below = d.classes.filter((k) => k.hi_db <= d.min_db);
+    const n = below.reduce((s, k) => s + k.samples, 0), bad = below.reduce((s, k) => s + k.samples * k.inconsistentShare, 0);
+    return `estimated ${fmt(d.min_db)} dB: below it ${Math.round((100 * bad) / Math.max(1, n))} % of the samples are inconsistent with their neighbours, ${fmt(100 * d.referenceShare)} % at the strongest signals`;
+  }
+  if (d.status === 'no-break') return `no clear break: the data are consistent down to the lowest CNR seen; permissive limit ${fmt(d.min_db)} dB (the lower of qc.cnr_db.auto.fallback_db and the lowest CNR seen)`;
+  if (d.status === 'no-cnr') return `no CNR values in the first ${rowsRead} rows: samples without CNR pass the CNR rules; limit ${fmt(d.min_db)} dB for any with one (qc.cnr_db.auto.withoutEvidence_db)`;
+  return `too few samples for an estimate (${referenced} with a local reference, ${minSamples} needed): limit ${fmt(d.min_db)} dB (qc.cnr_db.auto.withoutEvidence_db)`;
 }

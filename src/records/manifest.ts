@@ -80,7 +80,7 @@ export interface RunManifest {
    * the ingest (qc.cnr_db.min "auto"; src/qc/cnrLimits.ts), with the evidence curve. The same limits are in
    * settings.qc.cnr_db.resolved_db.
    */
-  cnrLimits?: { mode: 'auto' | 'fixed'; perInstrument: Record<string, InstrumentCnrLimit> };
+  cnrLimits?: { mode: 'auto' | 'fixed' | 'mixed'; perInstrument: Record<string, InstrumentCnrLimit> };
   /** Set by `wakeplane render` when it redid the figures and the report of this run folder. */
   rendered?: { at: string; seconds: number };
 }

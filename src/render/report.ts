@@ -213,9 +213,9 @@ function cnrLimitsHtml(m: RunManifest): string {
     x.scatter_ms === undefined || !Number.isFinite(x.scatter_ms) ? '' : x.scatter_ms.toFixed(2), esc(x.note),
   ]);
   const figs = m.outputs.filter((o) => o.kind === 'image' && /^images\/qc_cnr_/.test(o.path));
-  const intro = l.mode === 'auto'
-    ? '<p>The lower CNR limit of each instrument was estimated from the data before the run (<code>qc.cnr_db.min: auto</code>): from the first rows of every file, each sample is compared with the median of its stronger-signal neighbours (same instrument, place and direction, time block), and the limit is where the share of inconsistent samples rises above that of the strongest signals enough that accepting them costs more than rejecting them (idea after Beck &amp; Kuhn 2017, Remote Sensing 9(6) 561). The same limits apply to every part of a run.</p>'
-    : '<p>The lower CNR limit is the fixed value <code>qc.cnr_db.min</code> for every instrument.</p>';
+  const intro = l.mode !== 'fixed'
+    ? '<p>The lower CNR limit of each instrument set to <code>auto</code> (the default of <code>qc.cnr_db.min</code>; <code>instruments[].cnrMin_db</code> overrides it per instrument) was estimated from the data before the run: from the first rows of every file, each sample is compared with the median of its stronger-signal neighbours (same instrument, place and direction, time block), and the limit is where the share of inconsistent samples rises above that of the strongest signals enough that accepting them costs more than rejecting them (idea after Beck &amp; Kuhn 2017, Remote Sensing 9(6) 561). The same limits apply to every part of a run.</p>'
+    : '<p>The lower CNR limits are fixed (<code>qc.cnr_db.min</code>, or <code>instruments[].cnrMin_db</code> per instrument).</p>';
   return `<h3>CNR limits</h3>${intro}` +
     tableHtmlRaw(['instrument', 'limit (dB)', 'status', 'rows read', 'with reference', 'good scatter (m/s)', 'how'], rows, [1, 3, 4, 5]) +
     (figs.length ? galleryHtml(figs) : '');
