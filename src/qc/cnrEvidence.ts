@@ -12,19 +12,17 @@
  * samples of the same instrument in the same reference group: time block floor(t / timeBlock_s), azimuth bin,
  * elevation bin and range bin of the reported beam (instrument coordinates: a group is one place seen from one
  * direction, so the group's radial velocities measure the same thing). "Stronger": every member of the group with a
- * higher CNR (at most the strongest 101); the strongest minGroup members are compared with the other minGroup - 1 of
- * them. A group whose weak half is junk then still gives its good members a good reference (a plain group median
- * would be dragged by the junk and move the limit up by about the CNR spread at one range). Rows with their own
- * angles fall into groups by the bins; groups with fewer than `minGroup` samples give no reference. When fewer than
- * half of the samples have a reference the bins are doubled (up to three times).
- * A second pass (cnrLimit.ts estimateCnrLimit) takes the references only from members at or above the first
- * estimate of the limit (each sample against the median of the others), with the first pass's binning: the strongest
- * good sample of a group that is mostly junk is then compared with good neighbours, not with junk.
+ * higher CNR (at most the strongest 101); the strongest minGroup - 1 members of a group have no reference. When junk
+ * lies below some CNR, a good sample is then compared only with good samples, whatever share of its group is junk:
+ * a plain group median (or comparing the strongest members with each other) is dragged by the junk of groups that
+ * are mostly junk and moves the limit up by about the CNR spread at one range. Rows with their own angles fall into
+ * groups by the bins; groups with fewer than `minGroup` samples give no reference. When fewer than half of the
+ * samples have a reference the bins are doubled (up to three times).
  *
  * Deviation d = v_r - reference; normalised by the good-signal scatter sigma_g = 1.4826 * median |d| of the samples
  * in the top quarter of CNR (the strongest signals: taken as good), floored at 0.1 m/s.
  *
- * Pure: typed arrays in, histogram out; allocation per call, none per sample beyond the index sort.
+ * Pure: typed arrays in, histogram out; allocation per call, none per sample (grouping by a counting sort).
  */
 import { MAD_TO_SIGMA, selectInPlace } from './robust.ts';
 
@@ -44,11 +42,6 @@ export interface CnrEvidenceOptions {
   cnrMax_db?: number;
   /** Samples with |v_r| above this are left out, m/s. @default Infinity */
   radialVelocityLimit_ms?: number;
-  /**
-   * Second pass: references only from group members at or above this CNR (a first estimate of the limit), each
-   * sample against the median of the others; default: first pass, every sample against its stronger neighbours. dB
-   */
-  referenceMin_db?: number;
 }
 
 /** Histogram layout: CNR bins of CNR_STEP_DB from cnrLo_db; deviation bins of DEV_STEP from -DEV_SPAN, plus one under- and one overflow. */
@@ -115,7 +108,7 @@ function medianOfSorted(a: Float64Array, len: number): number {
  * CNR (the strongest minGroup members: the median of the other minGroup - 1 of them); NaN where the group is smaller
  * than minGroup. Returns the number of samples with a deviation.
  */
-function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array, referenceMin_db: number): number {
+function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array): number {
   const n = use.length;
   let t0 = Infinity;
   for (let k = 0; k < n; k++) t0 = Math.min(t0, Math.floor(s.time[use[k]] / bins.timeBlock_s));
@@ -153,26 +146,8 @@ function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binni
   for (let g = 0; g < ids.size; g++) {
     const lo = starts[g], hi = starts[g + 1];
     const m = hi - lo;
-    if (m >= minGroup && referenceMin_db > -Infinity) {
-      // Second pass: the leave-one-out median of the members at or above referenceMin_db.
-      if (mem.length < m) { mem = new Uint32Array(2 * m); sorted = new Float64Array(2 * m); }
-      let E = 0;
-      for (let k = 0; k < m; k++) if (s.cnr[use[order[lo + k]]] >= referenceMin_db) sorted[E++] = s.radialVelocity[use[order[lo + k]]];
-      sorted.subarray(0, E).sort();
-      for (let k = 0; k < m; k++) {
-        const i = order[lo + k], v = s.radialVelocity[use[i]];
-        const self = s.cnr[use[i]] >= referenceMin_db;
-        const L = self ? E - 1 : E;
-        if (L < minGroup - 1) continue;
-        let a = E; // without self: nothing removed
-        if (self) { a = 0; let b = E - 1; while (a < b) { const c = (a + b) >> 1; if (sorted[c] < v) a = c + 1; else b = c; } }
-        // the median of the remaining values r[j] = sorted[j < a ? j : j + 1]
-        const j1 = (L - 1) >> 1, j2 = L >> 1;
-        const r1 = sorted[j1 < a ? j1 : j1 + 1], r2 = sorted[j2 < a ? j2 : j2 + 1];
-        d[i] = v - 0.5 * (r1 + r2);
-        withRef++;
-      }
-    } else if (m >= minGroup) {
+    if (m < minGroup) continue;
+    {
       if (mem.length < m) { mem = new Uint32Array(2 * m); sorted = new Float64Array(2 * m); }
       // Members by CNR, strongest first (ties by position: deterministic).
       for (let k = 0; k < m; k++) mem[k] = order[lo + k];
@@ -185,20 +160,16 @@ function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binni
         }
       } else mem.subarray(0, m).sort((a, b) => s.cnr[use[b]] - s.cnr[use[a]] || a - b);
       const top = minGroup - 1;
-      // The strongest minGroup members: each against the median of the other minGroup - 1.
-      for (let k = 0; k < minGroup; k++) {
-        let L = 0;
-        for (let j = 0; j < minGroup; j++) if (j !== k) insertSorted(sorted, L++, s.radialVelocity[use[mem[j]]]);
-        d[mem[k]] = s.radialVelocity[use[mem[k]]] - medianOfSorted(sorted, L);
-      }
-      // The others: against the median of every stronger member (a running sorted list).
+      // Each member with at least minGroup - 1 stronger ones: against their median (a running sorted list). The
+      // strongest minGroup - 1 have no reference: in a group that is mostly junk they could be good samples among
+      // junk, and comparing them with each other would count junk as their neighbours.
       let L = 0;
       for (let j = 0; j < top; j++) insertSorted(sorted, L++, s.radialVelocity[use[mem[j]]]);
       for (let k = top; k < m; k++) {
-        if (k > top) d[mem[k]] = s.radialVelocity[use[mem[k]]] - medianOfSorted(sorted, L);
+        d[mem[k]] = s.radialVelocity[use[mem[k]]] - medianOfSorted(sorted, L);
         if (L < MAX_REFERENCE) insertSorted(sorted, L++, s.radialVelocity[use[mem[k]]]);
       }
-      withRef += m;
+      withRef += m - top;
     }
   }
   return withRef;
@@ -234,11 +205,10 @@ export function cnrEvidence(input: SampleColumnsIn, options: CnrEvidenceOptions 
   const use = new Uint32Array(n);
   for (let k = 0; k < n; k++) use[k] = k;
   const d = new Float64Array(n);
-  const refMin = options.referenceMin_db ?? -Infinity;
-  let withRef = n > 0 ? deviations(s, use, bins, minGroup, d, refMin) : 0;
-  for (let grow = 0; grow < 3 && refMin === -Infinity && n > 0 && withRef < n / 2; grow++) {
+  let withRef = n > 0 ? deviations(s, use, bins, minGroup, d) : 0;
+  for (let grow = 0; grow < 3 && n > 0 && withRef < n / 2; grow++) {
     bins = { timeBlock_s: 2 * bins.timeBlock_s, azimuthBin_deg: 2 * bins.azimuthBin_deg, elevationBin_deg: 2 * bins.elevationBin_deg, rangeBin_m: 2 * bins.rangeBin_m };
-    withRef = deviations(s, use, bins, minGroup, d, refMin);
+    withRef = deviations(s, use, bins, minGroup, d);
   }
 
   // CNR range of the referenced samples.

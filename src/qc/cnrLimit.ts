@@ -159,16 +159,8 @@ export function devBinEdges(k: number): [number, number] {
   return [-DEV_SPAN + (k - 1) * DEV_STEP, -DEV_SPAN + k * DEV_STEP];
 }
 
-/**
- * The limit of one instrument from its samples, in two passes: the first with stronger-neighbour references, the
- * second with references from the samples at or above the first limit (cnrEvidence.ts). The second decision is kept
- * when it finds a break; otherwise the first stands.
- */
-export function estimateCnrLimit(s: SampleColumnsIn, evidenceOptions: CnrEvidenceOptions = {}, options: CnrLimitOptions = {}): { evidence: CnrEvidence; decision: CnrLimitDecision; passes: number } {
-  const ev1 = cnrEvidence(s, evidenceOptions);
-  const d1 = chooseCnrLimit(ev1, options);
-  if (d1.status !== 'break') return { evidence: ev1, decision: d1, passes: 1 };
-  const ev2 = cnrEvidence(s, { ...evidenceOptions, ...ev1.binning, referenceMin_db: d1.min_db });
-  const d2 = chooseCnrLimit(ev2, options);
-  return d2.status === 'break' ? { evidence: ev2, decision: d2, passes: 2 } : { evidence: ev1, decision: d1, passes: 1 };
+/** The limit of one instrument from its samples: evidence (cnrEvidence.ts), then the decision. */
+export function estimateCnrLimit(s: SampleColumnsIn, evidenceOptions: CnrEvidenceOptions = {}, options: CnrLimitOptions = {}): { evidence: CnrEvidence; decision: CnrLimitDecision } {
+  const evidence = cnrEvidence(s, evidenceOptions);
+  return { evidence, decision: chooseCnrLimit(evidence, options) };
 }

@@ -36,7 +36,6 @@ export interface InstrumentCnrLimit {
   /** Estimated junk samples accepted above the limit and good samples rejected below it, in the pre-pass rows. */
   junkAccepted?: number;
   goodRejected?: number;
-  passes?: number;
   binning?: CnrEvidence['binning'];
   /** The evidence curve: per CNR class, its share of inconsistent samples, scatter and estimated junk share. */
   classes?: CnrClass[];
@@ -134,7 +133,7 @@ export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
   const { cols, rowsRead } = await readHeads(c, a.rowsPerInstrument, auto.map((ins) => ins.index));
   for (const ins of auto) {
     const col = cols[ins.index];
-    const { evidence: ev, decision: d, passes } = estimateCnrLimit(
+    const { evidence: ev, decision: d } = estimateCnrLimit(
       { length: col.n, time: col.time, azimuth: col.azimuth, elevation: col.elevation, range: col.range, radialVelocity: col.radialVelocity, cnr: col.cnr },
       { timeBlock_s: a.timeBlock_s, rangeBin_m: ins.kind === 'pulsed' ? ins.pulsed.gateLength_m : 30, cnrMax_db: q.max, radialVelocityLimit_ms: c.qc.radialVelocityLimit_ms },
       { junkCost: a.junkCost, minSamples: a.minSamples, fallback_db: a.fallback_db, withoutEvidence_db: a.withoutEvidence_db },
@@ -142,7 +141,7 @@ export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
     per[ins.id] = {
       min_db: d.min_db, max_db: q.max, status: d.status, note: noteOf(d, ev.referenced, rowsRead[ins.index], a.minSamples), rowsRead: rowsRead[ins.index],
       samples: ev.samples, referenced: ev.referenced, scatter_ms: ev.scatter_ms, referenceShare: d.referenceShare, junkInconsistentShare: d.junkInconsistentShare,
-      junkAccepted: Math.round(d.junkAccepted), goodRejected: Math.round(d.goodRejected), passes, binning: ev.binning, classes: d.classes,
+      junkAccepted: Math.round(d.junkAccepted), goodRejected: Math.round(d.goodRejected), binning: ev.binning, classes: d.classes,
     };
     min[ins.index] = d.min_db;
   }

@@ -1,11 +1,10 @@
 """
 Independent reference for the data-driven CNR limit (src/qc/cnrEvidence.ts, src/qc/cnrLimit.ts), written with numpy
 from the method's description, not from our code: groups of (time block, azimuth bin, elevation bin, range bin);
-each sample's deviation from the median of its stronger-CNR group members (the strongest five: the median of the
-other four); the good-signal scatter 1.4826 * median |d| over the top quarter of CNR; per 1-dB CNR bin the share of
+each sample's deviation from the median of its stronger-CNR group members (at most the 101 strongest; the four
+strongest of a group have none); the good-signal scatter 1.4826 * median |d| over the top quarter of CNR; per 1-dB CNR bin the share of
 samples with |d / scatter| >= 4 (x >= 4 or x < -4); classes of at least 200 samples pooled from the top; junk
-estimate and the cost-minimising edge; then the second pass with references from the samples at or above the first
-limit (leave-one-out median of those). Prints what test/qc-cnr-limit.test.ts quotes.
+estimate and the cost-minimising edge. Prints what test/qc-cnr-limit.test.ts quotes.
 
 Data (reproduced in the test with Math.sin): for i = 0 .. 5999, u_k(i) = frac(sin(12.9898 i + 78.233 k) * 43758.5453),
 time 1.7e9 + 0.1 i, azimuth 100.3 + (floor(i / 8) mod 10), elevation 2.3, range 65 + 30 (i mod 8),
@@ -31,27 +30,15 @@ key = np.stack([np.floor(t / 600), np.floor(az), np.floor(el + 90), np.floor(rng
 _, group = np.unique(key, axis=0, return_inverse=True)
 group = group.ravel()
 
-def deviations(ref_min=None):
+def deviations():
     d = np.full(N, np.nan)
     for g in np.unique(group):
         m = np.flatnonzero(group == g)
         if len(m) < 5:
             continue
-        if ref_min is None:
-            order = sorted(m, key=lambda j: (-cnr[j], j))
-            for k, j in enumerate(order):
-                if k < 5:
-                    others = [order[q] for q in range(5) if q != k]
-                else:
-                    others = order[:k][:101]
-                d[j] = v[j] - np.median(v[others])
-        else:
-            elig = [j for j in m if cnr[j] >= ref_min]
-            for j in m:
-                others = [q for q in elig if q != j]
-                if len(others) < 4:
-                    continue
-                d[j] = v[j] - np.median(v[others])
+        order = sorted(m, key=lambda j: (-cnr[j], j))
+        for k in range(4, len(order)):
+            d[order[k]] = v[order[k]] - np.median(v[order[:k][:101]])
     return d
 
 def decide(d):
@@ -96,13 +83,8 @@ def decide(d):
     limit = classes[best][0] if best > 0 else min(-35, classes[0][0])
     return sigma, classes, s, p0, best, limit, ok.sum()
 
-d1 = deviations()
-sigma1, classes1, s1, p01, best1, limit1, nref1 = decide(d1)
-print(f"pass 1: referenced {nref1}, scatter {sigma1:.6f}, reference share {p01:.6f}, limit {limit1}")
-for k, (c, sh) in enumerate(zip(classes1, s1)):
-    print(f"  class [{c[0]:.0f}, {c[1]:.0f}) n {c[2]:.0f} inconsistent share {sh:.6f}")
-d2 = deviations(limit1)
-sigma2, classes2, s2, p02, best2, limit2, nref2 = decide(d2)
-print(f"pass 2: referenced {nref2}, scatter {sigma2:.6f}, reference share {p02:.6f}, limit {limit2}")
-for k, (c, sh) in enumerate(zip(classes2, s2)):
+d = deviations()
+sigma, classes, share, p0, best, limit, nref = decide(d)
+print(f"referenced {nref}, scatter {sigma:.6f}, reference share {p0:.6f}, limit {limit}")
+for c, sh in zip(classes, share):
     print(f"  class [{c[0]:.0f}, {c[1]:.0f}) n {c[2]:.0f} inconsistent share {sh:.6f}")
