@@ -4,7 +4,7 @@ from the method's description, not from our code: groups of (time block, azimuth
 each sample's deviation from the median of its stronger-CNR group members (at most the 101 strongest; the four
 strongest of a group have none); the good-signal scatter 1.4826 * median |d| over the top quarter of CNR; per 1-dB CNR bin the share of
 samples with |d / scatter| >= 4 (x >= 4 or x < -4); classes of at least 200 samples pooled from the top; junk
-estimate and the cost-minimising edge. Prints what test/qc-cnr-limit.test.ts quotes.
+estimate and the cost-minimising edge, refined bin by bin inside the class below it. Prints what test/qc-cnr-limit.test.ts quotes.
 
 Data (reproduced in the test with Math.sin): for i = 0 .. 5999, u_k(i) = frac(sin(12.9898 i + 78.233 k) * 43758.5453),
 time 1.7e9 + 0.1 i, azimuth 100.3 + (floor(i / 8) mod 10), elevation 2.3, range 65 + 30 (i mod 8),
@@ -80,7 +80,25 @@ def decide(d):
     junk = n * np.clip((low - p0) / max(1e-9, qj - p0), 0, 1)
     costs = [10 * junk[k:].sum() + (n[:k] - junk[:k]).sum() for k in range(len(classes))]
     best = int(np.argmin(costs))
-    limit = classes[best][0] if best > 0 else min(-35, classes[0][0])
+    if best == 0:
+        limit = min(-35, classes[0][0])
+    else:
+        # refinement inside the class below the limit: lower the limit bin by bin while the bins between it and the
+        # class top are confidently clean (share + 2 se, se at least sqrt(1/n)/n-sized, below the break-even share)
+        limit = classes[best][0]
+        under = classes[best - 1]
+        even = p0 + (qj - p0) / 11
+        nn = bb = 0
+        for k in range(int(round(under[1] - lo)) - 1, -1, -1):
+            if lo + k <= under[0]:
+                break
+            nn += n_b[k]; bb += bad_b[k]
+            if nn == 0:
+                continue
+            sh = bb / nn
+            if sh + 2 * np.sqrt(max(sh * (1 - sh), 1 / nn) / nn) > even:
+                break
+            limit = lo + k
     return sigma, classes, s, p0, best, limit, ok.sum()
 
 d = deviations()

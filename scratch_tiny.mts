@@ -1,0 +1,10 @@
+import { writeTinyCampaign } from './test/helpers/tinyCampaign.ts';
+import { loadCampaignFile } from './src/campaign/load.ts';
+import { simulateCampaign } from './src/sim/simulate.ts';
+import { resolveCnrLimits } from './src/qc/cnrLimits.ts';
+const { file } = writeTinyCampaign();
+await simulateCampaign(loadCampaignFile(file));
+const t = performance.now();
+const r = await resolveCnrLimits(loadCampaignFile(file));
+console.log(performance.now() - t);
+for (const [id, l] of Object.entries(r.perInstrument)) console.log(id, l.min_db, l.status, l.referenced, l.note, JSON.stringify(l.binning));
