@@ -295,6 +295,9 @@ async function main() {
     const keys = Object.keys(pipes[0].timings);
     out(`  stages (s, median)     ${keys.map((k) => `${k} ${fmt(median(pipes.map((p) => p.timings[k] ?? 0)), 2)}`).join(', ')}`);
     out(`  ratio to newline pass  ${spread(ratios, 2)} (pair by pair; to the JavaScript byte loop ${spread(pipes.map((p, k) => p.seconds / nlLoop[k]), 2)})`);
+    // The data-driven CNR limit's pre-pass (qc/cnrLimits.ts: the first rows of every file, then the estimate).
+    const cnrShares = pipes.map((p) => (p.timings.cnr_limits ?? 0) / p.timings.total);
+    out(`  CNR-limit pre-pass     ${spread(pipes.map((p) => p.timings.cnr_limits ?? 0), 2)} s = ${spread(cnrShares.map((x) => 100 * x), 1)} % of timings_s.total (pre-pass rows: qc.cnr_db.auto.rowsPerInstrument per instrument)`);
     out(`  peak RSS               ${spread(pipes.map((p) => Math.max(p.peakRss_MB, p.timeRss_MB ?? 0)), 0)} MB (manifest and /usr/bin/time)`);
     out('targets (on the medians; peak memory on the largest run)');
     out(`  ratio <= ${TARGET.ratio}              ${fmt(ratio)}   ${verdict(ratio <= TARGET.ratio)}`);
