@@ -126,24 +126,28 @@ function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binni
     const rb = Math.floor(s.range[i] / bins.rangeBin_m);
     key[k] = ((tb * na + ab) * ne + eb) * nr + rb; // exact below 2^53 for any real campaign (blocks x bins)
   }
-  // Group members together (groups in order of first appearance, members in sample order): a counting sort.
+  // Group members together (groups in key order, members in sample order): the distinct keys by a native numeric
+  // sort, each sample's group by binary search, then a counting sort.
+  const uniq = Float64Array.from(key).sort();
+  let G = 0;
+  for (let k = 0; k < n; k++) if (k === 0 || uniq[k] !== uniq[G - 1]) uniq[G++] = uniq[k];
   const groupOf = new Uint32Array(n);
-  const ids = new Map<number, number>();
   for (let k = 0; k < n; k++) {
-    let g = ids.get(key[k]);
-    if (g === undefined) ids.set(key[k], (g = ids.size));
-    groupOf[k] = g;
+    const x = key[k];
+    let a = 0, b = G - 1;
+    while (a < b) { const c = (a + b) >> 1; if (uniq[c] < x) a = c + 1; else b = c; }
+    groupOf[k] = a;
   }
-  const starts = new Uint32Array(ids.size + 1);
+  const starts = new Uint32Array(G + 1);
   for (let k = 0; k < n; k++) starts[groupOf[k] + 1]++;
-  for (let g = 0; g < ids.size; g++) starts[g + 1] += starts[g];
-  const fill = starts.slice(0, ids.size);
+  for (let g = 0; g < G; g++) starts[g + 1] += starts[g];
+  const fill = starts.slice(0, G);
   const order = new Uint32Array(n);
   for (let k = 0; k < n; k++) order[fill[groupOf[k]]++] = k;
   d.fill(NaN);
   let mem = new Uint32Array(64), sorted = new Float64Array(64);
   let withRef = 0;
-  for (let g = 0; g < ids.size; g++) {
+  for (let g = 0; g < G; g++) {
     const lo = starts[g], hi = starts[g + 1];
     const m = hi - lo;
     if (m < minGroup) continue;

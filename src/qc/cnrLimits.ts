@@ -6,7 +6,7 @@
  * first rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
  * campaign order) and keeps only those rows' seven columns. It never depends on how a run is split into shards or
  * cores: every part of a run calls `resolveCnrLimits` on the whole campaign and gets the same limits (the manifest
- * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (100,000 rows: 4.8 MB).
+ * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (50,000 rows: 2.4 MB).
  *
  * Limits: the rows are the heads of the files, so a campaign of one long file per instrument is judged on its first
  * rows (a record split into many files is sampled throughout). An instrument with too few samples, or without a CNR
