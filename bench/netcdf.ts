@@ -13,6 +13,8 @@ import type { BenchData } from './generate.ts';
 export interface BenchVariants {
   netcdfCampaign: string;
   noNetcdfOutputCampaign: string;
+  /** The CSV campaign with a fixed CNR limit (-35 dB, what the estimate gives on these data): no pre-pass. */
+  fixedCnrCampaign: string;
   netcdfBytes: number;
 }
 
@@ -37,5 +39,8 @@ export async function benchVariants(d: BenchData, log: (s: string) => void): Pro
   const csvDoc = parse(readFileSync(d.campaign, 'utf8')) as typeof doc;
   const noNetcdfOutputCampaign = join(d.dir, 'campaign-no-netcdf-output.yaml');
   writeFileSync(noNetcdfOutputCampaign, stringify({ ...csvDoc, name: `${doc.name}-csv-only`, output: { ...csvDoc.output, netcdf: false } }));
-  return { netcdfCampaign, noNetcdfOutputCampaign, netcdfBytes: bytes };
+  const fixedCnrCampaign = join(d.dir, 'campaign-fixed-cnr.yaml');
+  const qc = (csvDoc as { qc?: Record<string, unknown> }).qc ?? {};
+  writeFileSync(fixedCnrCampaign, stringify({ ...csvDoc, name: `${doc.name}-fixed-cnr`, qc: { ...qc, cnr_db: { ...((qc.cnr_db as object) ?? {}), min: -35 } } }));
+  return { netcdfCampaign, noNetcdfOutputCampaign, fixedCnrCampaign, netcdfBytes: bytes };
 }
