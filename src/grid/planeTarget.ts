@@ -13,7 +13,7 @@
 import { REJECT_INDEX } from '../qc/reasons.ts';
 import type { CellAccumulator } from './accumulator.ts';
 import type { GridSpec } from './grid.ts';
-import type { SampleTarget, WindowFrame } from './target.ts';
+import { SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
 
 export interface PlaneTargetSpec {
   orientation: 'cross' | 'horizontal';
@@ -74,7 +74,8 @@ export class PlaneTarget implements SampleTarget {
     this.keyCount = this.off[planes.length] * instrumentCount;
   }
 
-  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, _t: number, ground: number): boolean {
+  add(acc: CellAccumulator, f: WindowFrame, ins: number, s: Float64Array): boolean {
+    const pe = s[SAMPLE.pe], pn = s[SAMPLE.pn], pu = s[SAMPLE.pu], ground = s[SAMPLE.ground];
     // Rotor-frame coordinates about the site origin; each plane subtracts its own origin's.
     const X = pe * f.dE + pn * f.dN;
     const Y = -pe * f.dN + pn * f.dE;
@@ -91,8 +92,9 @@ export class PlaneTarget implements SampleTarget {
       const iz = Math.floor((second - this.zLo[p]) / this.dz[p]);
       if (iz < 0 || iz >= this.nz[p]) continue;
       // Beam unit vector in the window's rotor frame.
+      const ne = s[SAMPLE.ne], nn = s[SAMPLE.nn];
       const rx = ne * f.dE + nn * f.dN, ry = -ne * f.dN + nn * f.dE;
-      acc.add((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, vr, rx, ry, nu, y, second);
+      acc.add((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, s[SAMPLE.vr], rx, ry, s[SAMPLE.nu], y, second);
       return true;
     }
     return false;

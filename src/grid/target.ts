@@ -16,6 +16,20 @@ export interface WindowFrame {
   first_s: number;
 }
 
+/**
+ * One accepted sample as the ingest hands it to a target, in a scratch array reused for every sample (numbers passed
+ * as arguments to a call that is not inlined would each be boxed on the heap: gigabytes of garbage over a campaign).
+ * Fields: radial velocity (m/s, positive away), site-frame beam unit vector (ne, nn, nu), measurement point (pe, pn,
+ * pu, metres), time (Unix s), ground height under the point (site-frame up, metres; geometry/terrain.ts).
+ */
+export const SAMPLE = { vr: 0, ne: 1, nn: 2, nu: 3, pe: 4, pn: 5, pu: 6, t: 7, ground: 8 } as const;
+export const SAMPLE_FIELDS = 9;
+
+/** A scratch sample (SAMPLE fields) with the given values. */
+export function sampleOf(vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t = 0, ground = 0): Float64Array {
+  return Float64Array.of(vr, ne, nn, nu, pe, pn, pu, t, ground);
+}
+
 export interface SampleTarget {
   /** Names the target in outputs and errors (e.g. "planes"). */
   readonly id: string;
@@ -24,10 +38,8 @@ export interface SampleTarget {
   /** Rejection reason (qc/reasons.ts index) of a sample that falls outside the target. */
   readonly outsideReason: number;
   /**
-   * Add one accepted sample to `acc` when it lies in the target: instrument index, radial velocity (m/s, positive
-   * away), site-frame beam unit vector (ne, nn, nu) and measurement point (pe, pn, pu, metres), time (Unix s),
-   * ground height under the point (site-frame up, metres; from the terrain model, geometry/terrain.ts).
-   * Returns false when the sample lies outside the target.
+   * Add one accepted sample to `acc` when it lies in the target: instrument index and the sample's values in `s`
+   * (fields SAMPLE below). Returns false when the sample lies outside the target.
    */
-  add(acc: CellAccumulator, frame: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t: number, ground: number): boolean;
+  add(acc: CellAccumulator, frame: WindowFrame, ins: number, s: Float64Array): boolean;
 }

@@ -197,9 +197,10 @@ function fillCanonical(st: ReaderState, buf: Buffer, pos: number, end: number): 
     if (first === 10 || (first === 13 && buf[pos + 1] === 10)) { pos += first === 10 ? 1 : 2; continue; } // blank
     let i = pos, ok = true, r0 = 0, head = 0;
     if (pLen > 0) {
-      let k = 0;
-      while (k < pLen && buf[pos + k] === buf[pStart + k]) k++;
-      if (k === pLen) { i = pos + pLen; r0 = 4; }
+      // From the end: where the prefix differs (a new ray), its last digits (elevation) usually differ first.
+      let k = pLen - 1;
+      while (k >= 0 && buf[pos + k] === buf[pStart + k]) k--;
+      if (k < 0) { i = pos + pLen; r0 = 4; }
     }
     // fields in order: time (0), instrument (1), azimuth .. cnr (2 .. 6); V[r] = SI value of role r
     for (let r = r0; r < 7; r++) {

@@ -8,7 +8,7 @@
  */
 import type { Instrument } from '../campaign/types.ts';
 import type { CellAccumulator } from '../grid/accumulator.ts';
-import type { SampleTarget, WindowFrame } from '../grid/target.ts';
+import { SAMPLE, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import type { NacelleFrame } from '../geometry/nacelle.ts';
 import { relativeAzimuth } from '../geometry/nacelle.ts';
 import { REJECT_INDEX } from '../qc/reasons.ts';
@@ -53,7 +53,8 @@ export class NacelleTarget implements SampleTarget {
     this.keyCount = (last ? last.offset + last.instrument.nacelle!.beams.length * last.ranges.length : 0) * instrumentCount;
   }
 
-  add(acc: CellAccumulator, _f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number): boolean {
+  add(acc: CellAccumulator, _f: WindowFrame, ins: number, s: Float64Array): boolean {
+    const vr = s[SAMPLE.vr], ne = s[SAMPLE.ne], nn = s[SAMPLE.nn], nu = s[SAMPLE.nu], pe = s[SAMPLE.pe], pn = s[SAMPLE.pn], pu = s[SAMPLE.pu];
     const k = this.slot[ins];
     const fr = this.frames[ins];
     if (k < 0 || !fr) return false;

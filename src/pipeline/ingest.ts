@@ -41,7 +41,7 @@ import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
-import type { SampleTarget } from '../grid/target.ts';
+import { SAMPLE_FIELDS, type SampleTarget } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
@@ -168,6 +168,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const nacelles = opts.nacelleFrames ?? [];
   const onNacelle = Uint8Array.from(c.instruments, (i) => (nacelles[i.index] ? 1 : 0));
   const nb = new Float64Array(6);
+  // The sample handed to the targets (fields SAMPLE of grid/target.ts, in that order), reused for every sample.
+  const smp = new Float64Array(SAMPLE_FIELDS);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
 
   // Every file of every instrument, read in step; primed with its first batch before the plan is made.
@@ -333,10 +335,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const tg = targetOf[ins];
       if (tg < 0) { counters.rejected[ins * NR + R.outside_planes]++; continue; }
       const target = targets[tg];
+      smp[0] = vr; smp[1] = ne; smp[2] = nn; smp[3] = nu; smp[4] = pe; smp[5] = pn; smp[6] = pu; smp[7] = t; smp[8] = gz;
       let placedAny = false;
       for (let k = 0; k < nDirected; k++) {
         const w = live[k];
-        if (target.add(w.accs[tg], w, ins, vr, ne, nn, nu, pe, pn, pu, t, gz)) placedAny = true;
+        if (target.add(w.accs[tg], w, ins, smp)) placedAny = true;
       }
       if (placedAny) counters.accepted[ins]++;
       else counters.rejected[ins * NR + target.outsideReason]++;

@@ -121,8 +121,12 @@ class RayHistory {
     return h >= 0 ? h >= this.head && h < this.tail : epoch === this.oEpoch && -1 - h < this.oN.length;
   }
 
-  /** Handle of the ray (t, az, el) kept in the history, or NOT_FOUND. */
-  find(_ins: number, t: number, az: number, el: number): number {
+  /**
+   * Handle of the ray (t, az, el) of row i of batch b kept in the history, or NOT_FOUND. (Row and batch rather
+   * than the numbers themselves: numbers passed to a call that is not inlined are boxed on the heap, per row.)
+   */
+  find(b: SampleBatch, i: number): number {
+    const t = b.time[i], az = b.azimuth[i], el = b.elevation[i];
     if (t > this.maxT) return NOT_FOUND;
     // Log: the first kept ray at time >= t, then every ray at exactly t.
     let lo = this.head, hi = this.tail;
@@ -140,8 +144,9 @@ class RayHistory {
     return NOT_FOUND;
   }
 
-  /** Adds a ray (t, az, el) with its first gate; call right after find() returned NOT_FOUND for the same key. */
-  add(t: number, az: number, el: number, range: number): number {
+  /** Adds the ray of row i of batch b with its first gate; call right after find() returned NOT_FOUND for that row. */
+  add(b: SampleBatch, i: number): number {
+    const t = b.time[i], az = b.azimuth[i], el = b.elevation[i], range = b.range[i];
     if (t > this.maxT || this.tail === this.head) {
       this.maxT = t;
       // Forget rays beyond the horizon, or the oldest when full.
@@ -385,9 +390,9 @@ export class SuspicionInspector {
       if (h.hasRange(ray, r)) dup = true;
       else h.addRange(ray, r);
     } else {
-      ray = h.find(ins, t, az, el);
+      ray = h.find(b, i);
       fresh = true;
-      if (ray === NOT_FOUND) ray = h.add(t, az, el, r);
+      if (ray === NOT_FOUND) ray = h.add(b, i);
       else if (h.hasRange(ray, r)) dup = true;
       else h.addRange(ray, r);
       e.curT[ins] = t; e.curAz[ins] = az; e.curEl[ins] = el; e.curH[ins] = ray; e.curGen[ins] = h.oEpoch;

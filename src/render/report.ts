@@ -88,11 +88,19 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
 
   // Windows.
   if (m.windows.length) {
+    // Why each window exists (kind, label, state level) and its condition bin, where the run has them.
+    const labels = m.windows.some((w) => w.label !== '');
+    const levels = m.windows.some((w) => w.level_deg !== undefined);
+    const bins = m.windows.some((w) => w.bin !== undefined);
+    const ensembleLabel = new Map((m.ensembles ?? []).map((e) => [e.bin, e.label]));
     section('windows', 'Averaging windows', tableHtml({
       title: '',
-      columns: ['window', 'start (UTC)', 'end (UTC)', 'wind from (°)', 'accepted samples'],
-      rows: m.windows.map((w) => [w.index, shortIso(w.start), shortIso(w.end), w.direction_deg, w.samples]),
-      decimals: [0, undefined, undefined, 1, 0],
+      columns: ['window', 'kind', ...(labels ? ['label'] : []), ...(levels ? ['state level (°)'] : []), 'start (UTC)', 'end (UTC)', 'wind from (°)', 'accepted samples', ...(bins ? ['condition bin'] : [])],
+      rows: m.windows.map((w) => [
+        w.index, w.kind, ...(labels ? [w.label] : []), ...(levels ? [w.level_deg ?? ''] : []), shortIso(w.start), shortIso(w.end), w.direction_deg, w.samples,
+        ...(bins ? [w.bin === undefined || w.bin < 0 ? 'none' : `${w.bin}${ensembleLabel.has(w.bin) ? ` (${ensembleLabel.get(w.bin)})` : ''}`] : []),
+      ]),
+      decimals: [0, undefined, ...(labels ? [undefined] : []), ...(levels ? [1] : []), undefined, undefined, 1, 0, ...(bins ? [undefined] : [])],
     }));
   }
 

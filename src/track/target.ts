@@ -9,7 +9,7 @@
  */
 import type { Instrument, Vec3 } from '../campaign/types.ts';
 import type { CellAccumulator } from '../grid/accumulator.ts';
-import type { SampleTarget, WindowFrame } from '../grid/target.ts';
+import { SAMPLE, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { REJECT_INDEX } from '../qc/reasons.ts';
 
 export interface TrackerLayout {
@@ -49,7 +49,8 @@ export class TrackTarget implements SampleTarget {
     this.keyCount = (last ? last.offset + last.scans * last.x.length * last.across.length : 0) * instrumentCount;
   }
 
-  add(acc: CellAccumulator, f: WindowFrame, ins: number, vr: number, ne: number, nn: number, nu: number, pe: number, pn: number, pu: number, t: number): boolean {
+  add(acc: CellAccumulator, f: WindowFrame, ins: number, s: Float64Array): boolean {
+    const vr = s[SAMPLE.vr], ne = s[SAMPLE.ne], nn = s[SAMPLE.nn], nu = s[SAMPLE.nu], pe = s[SAMPLE.pe], pn = s[SAMPLE.pn], pu = s[SAMPLE.pu], t = s[SAMPLE.t];
     const k = this.slot[ins];
     if (k < 0) return false;
     const l = this.layouts[k], tr = l.instrument.track!;
