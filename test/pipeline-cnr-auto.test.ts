@@ -120,6 +120,21 @@ describe('auto CNR limit: a function of the campaign only', () => {
     expect(first.perInstrument.south.rowsRead).toBe(5000); // exact: the budget, one file per instrument
   });
 
+  it('a file listed by two instruments is read once: its rows go to the instrument each names', async () => {
+    const { dir, file } = writeJunkCampaign(scenarios[0].instruments, { rowsPerWindow: 6000, seed: 6 });
+    const [south, north] = ['south', 'north'].map((id) => readFileSync(join(dir, 'data', `${id}.csv`), 'utf8').trimEnd().split('\n'));
+    // Interleaved by time (both start together), as one logger file of two instruments.
+    const rows = [...south.slice(1), ...north.slice(1)].sort((a, b) => Number(a.split(',')[0]) - Number(b.split(',')[0]));
+    writeFileSync(join(dir, 'data', 'both.csv'), [south[0], ...rows].join('\n') + '\n');
+    const c = loadCampaignFile(file);
+    for (const ins of c.instruments) ins.files = [join(dir, 'data', 'both.csv')];
+    c.qc.cnr_db.auto.rowsPerInstrument = 5000;
+    const r = await resolveCnrLimits(c);
+    // Exact: the file's first 5,000 rows once, split between the two instruments (about half each).
+    expect(r.perInstrument.south.rowsRead! + r.perInstrument.north.rowsRead!).toBe(5000);
+    expect(r.perInstrument.south.rowsRead!).toBeGreaterThan(2000);
+  });
+
   it('too few samples: the limit without evidence, with a warning naming the instrument', async () => {
     const { file } = writeJunkCampaign(scenarios[0].instruments, { rowsPerWindow: 600, windows: 1, seed: 5 });
     const res = await runCampaign(loadCampaignFile(file), { images: false });

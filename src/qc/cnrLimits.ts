@@ -79,11 +79,19 @@ export async function readHeads(c: Campaign, rowsPerInstrument: number, which: n
     next.n = col.n;
     return next;
   };
+  // Each file once (a file listed by several instruments is read once, with the smallest of their quotas), in
+  // campaign order; rows go to the instrument they name.
+  const quotas = new Map<string, { quota: number; ins: (typeof c.instruments)[number] }>();
   for (const k of which) {
     const ins = c.instruments[k];
-    if (ins.files.length === 0) continue;
-    const quota = Math.ceil(rowsPerInstrument / ins.files.length);
+    const quota = Math.ceil(rowsPerInstrument / Math.max(1, ins.files.length));
     for (const path of ins.files) {
+      const q = quotas.get(path);
+      if (!q || quota < q.quota) quotas.set(path, { quota, ins: q?.ins ?? ins });
+    }
+  }
+  for (const [path, { quota, ins }] of quotas) {
+    {
       let taken = 0;
       for await (const chunk of openSamples(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, batchSize: 16384 })) {
         const b = chunk.batch;
