@@ -84,7 +84,7 @@ def decide(d):
         limit = min(-35, classes[0][0])
     else:
         # refinement inside the class below the limit: lower the limit bin by bin while the bins between it and the
-        # class top are confidently clean (share + 2 se, se at least sqrt(1/n)/n-sized, below the break-even share)
+        # class top look clean (Laplace's estimate (bad + 1) / (n + 2) at most the break-even share)
         limit = classes[best][0]
         under = classes[best - 1]
         even = p0 + (qj - p0) / 11
@@ -95,8 +95,7 @@ def decide(d):
             nn += n_b[k]; bb += bad_b[k]
             if nn == 0:
                 continue
-            sh = bb / nn
-            if sh + 2 * np.sqrt(max(sh * (1 - sh), 1 / nn) / nn) > even:
+            if (bb + 1) / (nn + 2) > even:
                 break
             limit = lo + k
     return sigma, classes, s, p0, best, limit, ok.sum()
