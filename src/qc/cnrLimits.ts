@@ -2,18 +2,20 @@
  * The CNR limits of a run, resolved before the ingest, per instrument: fixed (a number: instruments[].cnrMin_db, else
  * qc.cnr_db.min) or estimated from the data ("auto", the default of qc.cnr_db.min; cnrEvidence.ts and cnrLimit.ts).
  *
- * The estimate is a function of the campaign's inputs and settings only: a bounded, deterministic pre-pass reads the
- * first rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
- * campaign order) and keeps only those rows' seven columns. It never depends on how a run is split into shards or
+ * The estimate is a function of the campaign's inputs and settings only: a bounded, deterministic pre-pass reads
+ * rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
+ * campaign order: from a plain CSV file 16 evenly spaced slices through it, from a compressed or NetCDF file its
+ * first rows) and keeps only those rows' six numbers. It never depends on how a run is split into shards or
  * cores: every part of a run calls `resolveCnrLimits` on the whole campaign and gets the same limits (the manifest
  * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (50,000 rows: 2.4 MB).
  *
- * Limits: the rows are the heads of the files, so a campaign of one long file per instrument is judged on its first
- * rows (a record split into many files is sampled throughout). An instrument with too few samples, or without a CNR
+ * Limits: compressed CSV and NetCDF files are judged on their first rows (a record split into many files is still
+ * sampled throughout). An instrument with too few samples, or without a CNR
  * column, gets qc.cnr_db.auto.withoutEvidence_db and the run says so.
  */
 import type { Campaign } from '../campaign/types.ts';
-import { openSamples } from '../io/sampleSource.ts';
+import { openSamples, sampleFormat } from '../io/sampleSource.ts';
+import { readCsvSlices } from './csvSlices.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
 import { estimateCnrLimit, type CnrClass, type CnrLimitDecision, type CnrLimitStatus } from './cnrLimit.ts';
 
@@ -64,23 +66,34 @@ function columns(cap: number): Columns {
   };
 }
 
-/** The pre-pass: the first rows of every file, per instrument (at most rowsPerInstrument kept per instrument). */
-export async function readHeads(c: Campaign, rowsPerInstrument: number, which: number[] = c.instruments.map((i) => i.index)): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
+/** Byte slices per plain CSV file in the pre-pass (csvSlices.ts). */
+export const PREPASS_SLICES = 16;
+
+/**
+ * The pre-pass: up to rowsPerInstrument rows per instrument, shared equally among its files; from a plain CSV file
+ * spread through it (PREPASS_SLICES evenly spaced slices, csvSlices.ts), from a compressed CSV or NetCDF file its
+ * first rows. Each file once (a file listed by several instruments with the smallest of their quotas), in campaign
+ * order; rows go to the instrument they name.
+ */
+export async function readPrepass(c: Campaign, rowsPerInstrument: number, which: number[] = c.instruments.map((i) => i.index)): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
   const I = c.instruments.length;
   const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
   const cols: Columns[] = [];
   const rowsRead = new Float64Array(I);
-  const start: number[] = [];
-  for (let k = 0; k < I; k++) { cols.push(columns(Math.min(rowsPerInstrument, 1 << 16))); start.push(0); }
-  const grow = (col: Columns, need: number): Columns => {
-    if (need <= col.time.length) return col;
-    const next = columns(Math.min(rowsPerInstrument, Math.max(need, 2 * col.time.length)));
-    for (const f of ['time', 'azimuth', 'elevation', 'range', 'radialVelocity', 'cnr'] as const) next[f].set(col[f].subarray(0, col.n));
-    next.n = col.n;
-    return next;
+  for (let k = 0; k < I; k++) cols.push(columns(Math.min(rowsPerInstrument, 1 << 16)));
+  const add = (k: number, t: number, az: number, el: number, r: number, vr: number, cnr: number) => {
+    rowsRead[k]++;
+    let col = cols[k];
+    if (col.n >= rowsPerInstrument) return;
+    if (col.n >= col.time.length) {
+      const next = columns(Math.min(rowsPerInstrument, 2 * col.time.length));
+      for (const f of ['time', 'azimuth', 'elevation', 'range', 'radialVelocity', 'cnr'] as const) next[f].set(col[f].subarray(0, col.n));
+      next.n = col.n;
+      col = cols[k] = next;
+    }
+    const j = col.n++;
+    col.time[j] = t; col.azimuth[j] = az; col.elevation[j] = el; col.range[j] = r; col.radialVelocity[j] = vr; col.cnr[j] = cnr;
   };
-  // Each file once (a file listed by several instruments is read once, with the smallest of their quotas), in
-  // campaign order; rows go to the instrument they name.
   const quotas = new Map<string, { quota: number; ins: (typeof c.instruments)[number] }>();
   for (const k of which) {
     const ins = c.instruments[k];
@@ -91,24 +104,18 @@ export async function readHeads(c: Campaign, rowsPerInstrument: number, which: n
     }
   }
   for (const [path, { quota, ins }] of quotas) {
-    {
-      let taken = 0;
-      for await (const chunk of openSamples(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, batchSize: 16384 })) {
-        const b = chunk.batch;
-        const m = Math.min(b.length, quota - taken);
-        for (let i = 0; i < m; i++) {
-          const k = b.instrument[i];
-          rowsRead[k]++;
-          let col = cols[k];
-          if (col.n >= rowsPerInstrument) continue;
-          if (col.n >= col.time.length) col = cols[k] = grow(col, col.n + 1);
-          const j = col.n++;
-          col.time[j] = b.time[i]; col.azimuth[j] = b.azimuth[i]; col.elevation[j] = b.elevation[i];
-          col.range[j] = b.range[i]; col.radialVelocity[j] = b.radialVelocity[i]; col.cnr[j] = b.cnr[i];
-        }
-        taken += m + chunk.rejected.length;
-        if (taken >= quota) break;
-      }
+    const opts = { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign };
+    if (sampleFormat(path) === 'csv') {
+      readCsvSlices(path, opts, quota, PREPASS_SLICES, (v) => add(v.instrument, v.time, v.azimuth, v.elevation, v.range, v.radialVelocity, v.cnr));
+      continue;
+    }
+    let taken = 0;
+    for await (const chunk of openSamples(path, { ...opts, batchSize: 16384 })) {
+      const b = chunk.batch;
+      const m = Math.min(b.length, quota - taken);
+      for (let i = 0; i < m; i++) add(b.instrument[i], b.time[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]);
+      taken += m + chunk.rejected.length;
+      if (taken >= quota) break;
     }
   }
   return { cols, rowsRead };
@@ -138,7 +145,7 @@ export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
   const t0 = performance.now();
   const a = q.auto;
   const auto = c.instruments.filter((ins) => wanted[ins.index] === 'auto');
-  const { cols, rowsRead } = await readHeads(c, a.rowsPerInstrument, auto.map((ins) => ins.index));
+  const { cols, rowsRead } = await readPrepass(c, a.rowsPerInstrument, auto.map((ins) => ins.index));
   for (const ins of auto) {
     const col = cols[ins.index];
     const { evidence: ev, decision: d } = estimateCnrLimit(

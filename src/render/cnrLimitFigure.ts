@@ -32,7 +32,7 @@ export function cnrLimitFigures(per: Record<string, InstrumentCnrLimit>): { what
   const lo = Math.min(...withCurve.map(([, l]) => Math.min(l.min_db, l.classes![0].lo_db)));
   const hi = Math.max(...withCurve.map(([, l]) => l.classes![l.classes!.length - 1].hi_db));
   const maxScatter = Math.max(...withCurve.flatMap(([, l]) => l.classes!.map((c) => c.scatter_ms)));
-  const note = 'Deviation of each sample from the median of its stronger-signal neighbours (same instrument, place and direction, time block); classes of at least 200 samples from the first rows of every file.';
+  const note = 'Deviation of each sample from the median of its stronger-signal neighbours (same instrument, place and direction, time block); classes of at least 200 samples from rows spread through every file (the first rows of compressed and NetCDF files).';
   return [
     {
       what: 'inconsistent',
