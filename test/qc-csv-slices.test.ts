@@ -12,7 +12,7 @@ import { readSamples } from '../src/io/csvSamples.ts';
 import { readCsvSlices } from '../src/qc/csvSlices.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'wakeplane-slices-'));
-const columns = { time: 'ts', range_m: { name: 'range_km', scale: 1000 }, radial_velocity_ms: 'vlos', cnr_db: 'snr' };
+const columns = { time: 'ts', range_m: { name: 'range_km', scale: 1000, offset: 0 }, radial_velocity_ms: 'vlos', cnr_db: 'snr' };
 const opts = { instrumentIndex: new Map([['a', 0], ['b', 1]]), owner: 0, columns, sign: 'toward' as const };
 
 function write(name: string, rows: number): string {
