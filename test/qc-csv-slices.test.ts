@@ -1,7 +1,8 @@
 /**
  * The CNR pre-pass's spread reader (src/qc/csvSlices.ts) against the run's reader (src/io/csvSamples.ts readSamples):
  * every row it returns is a row of the file with exactly the values the reader gives it (renamed and scaled
- * columns, "toward" sign, CRLF line ends, blank lines, a bad row, no final line break), the rows are spread through
+ * columns, "toward" sign, CRLF line ends, blank lines, a bad row, quoted fields and an empty CNR, no final line
+ * break), the rows are spread through
  * the file, none twice, and a small file is read whole, once.
  */
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -21,6 +22,7 @@ function write(name: string, rows: number): string {
     lines.push(`${(1.7e9 + i * 0.25).toFixed(2)},${i % 3 === 0 ? 'b' : 'a'},${(i * 7.3) % 360},${(i % 17) * 0.5},${(0.1 + (i % 40) * 0.03).toFixed(2)},${((i % 101) - 50) / 7},${-5 - (i % 31)}`);
     if (i % 997 === 0) lines.push(''); // blank lines are not rows
     if (i === 4242) lines.push('1700001060.5,a,12,abc,0.3,1,-10'); // a bad row: skipped
+    if (i % 1500 === 7) lines.push(`"${(1.7e9 + i * 0.25 + 0.125).toFixed(3)}", b ,45.5,3,0.6,"2.5",`); // quoted, spaces, no CNR
   }
   const p = join(dir, name);
   writeFileSync(p, lines.join('\r\n')); // CRLF, no final line break
