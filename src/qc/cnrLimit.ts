@@ -14,9 +14,8 @@
  *    against rejected good samples. junkCost 10 (default): a junk sample that passes the robust filter adds a
  *    deviation up to 3.5 scaled MADs (variance ~(5 sigma)^2 / 3, about 8 good samples' worth), and junk not centred
  *    on the wind also biases; losing one good sample of N costs a factor N/(N-1) in variance.
- * 6. Inside the class just below the limit, when it pools several 1-dB bins (sparse CNR ranges), the limit moves down
- *    bin by bin while the bins between it and the class top look clean: Laplace's estimate of their pooled share,
- *    (bad + 1) / (n + 2), at most the break-even share p0 + (q - p0) / (junkCost + 1) of step 5.
+ * 6. Inside the class just below the limit, when it pools several 1-dB bins (sparse CNR ranges), the same cost over
+ *    the class's bin edges, each bin's junk from its own inconsistent share, refines the limit (ties: the higher edge).
  * No edge above the lowest class wins: no clear break; the limit is then the permissive fallback (the lower of
  * `fallback_db` and the lowest CNR seen). Fewer than `minSamples` referenced samples: the limit without evidence.
  *
@@ -154,18 +153,17 @@ export function chooseCnrLimit(ev: CnrEvidence, options: CnrLimitOptions = {}): 
   }
   const base = { referenceShare: p0, junkInconsistentShare: q, junkAccepted, goodRejected, classes };
   if (best === 0) return { min_db: Math.min(fallback, cls[0].lo), status: 'no-break', ...base };
-  // Refinement inside the pooled class just below the limit (sparse CNR ranges pool several bins): move the limit
-  // down bin by bin while the bins between it and the class top look clean: their pooled inconsistent share, as
-  // Laplace's estimate (bad + 1) / (n + 2), stays at or below the break-even share p0 + (q - p0) / (junkCost + 1) of
-  // step 5.
+  // Refinement inside the pooled class just below the limit (sparse CNR ranges pool several bins): the same cost as
+  // step 5 over the class's 1-dB bin edges, each bin's junk from its own share (point estimate); ties keep the
+  // higher edge.
   const under = cls[best - 1];
-  const breakEven = p0 + (q - p0) / (junkCost + 1);
-  let limit = cls[best].lo, n = 0, bad = 0;
+  let limit = cls[best].lo, refineBest = 0, cost = 0;
   for (let b = Math.round((under.hi - ev.cnrLo_db) / CNR_STEP_DB) - 1; b >= 0 && rows[b].lo > under.lo; b--) {
-    n += rows[b].n; bad += rows[b].bad;
-    if (n === 0) continue;
-    if ((bad + 1) / (n + 2) > breakEven) break; // Laplace's estimate: a few clean samples are not yet "clean"
-    limit = rows[b].lo;
+    const r = rows[b];
+    if (r.n === 0) continue;
+    const J = r.n * Math.min(1, Math.max(0, (r.bad / r.n - p0) / Math.max(1e-9, q - p0)));
+    cost += junkCost * J - (r.n - J); // moving the edge below bin b: its junk accepted, its good no longer rejected
+    if (cost < refineBest) { refineBest = cost; limit = r.lo; }
   }
   return { min_db: limit, status: 'break', ...base };
 }

@@ -7,7 +7,7 @@
  * campaign order: from a plain CSV file 16 evenly spaced slices through it, from a compressed or NetCDF file its
  * first rows) and keeps only those rows' six numbers. It never depends on how a run is split into shards or
  * cores: every part of a run calls `resolveCnrLimits` on the whole campaign and gets the same limits (the manifest
- * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (50,000 rows: 2.4 MB).
+ * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (25,000 rows: 1.2 MB).
  *
  * Limits: compressed CSV and NetCDF files are judged on their first rows (a record split into many files is still
  * sampled throughout). An instrument with too few samples, or without a CNR

@@ -4,7 +4,7 @@ from the method's description, not from our code: groups of (time block, azimuth
 each sample's deviation from the median of its stronger-CNR group members (at most the 101 strongest; the four
 strongest of a group have none); the good-signal scatter 1.4826 * median |d| over the top quarter of CNR; per 1-dB CNR bin the share of
 samples with |d / scatter| >= 4 (x >= 4 or x < -4); classes of at least 200 samples pooled from the top; junk
-estimate and the cost-minimising edge, refined bin by bin inside the class below it. Prints what test/qc-cnr-limit.test.ts quotes.
+estimate and the cost-minimising edge, refined over the 1-dB bins of the class below it. Prints what test/qc-cnr-limit.test.ts quotes.
 
 Data (reproduced in the test with Math.sin): for i = 0 .. 5999, u_k(i) = frac(sin(12.9898 i + 78.233 k) * 43758.5453),
 time 1.7e9 + 0.1 i, azimuth 100.3 + (floor(i / 8) mod 10), elevation 2.3, range 65 + 30 (i mod 8),
@@ -83,21 +83,20 @@ def decide(d):
     if best == 0:
         limit = min(-35, classes[0][0])
     else:
-        # refinement inside the class below the limit: lower the limit bin by bin while the bins between it and the
-        # class top look clean (Laplace's estimate (bad + 1) / (n + 2) at most the break-even share)
+        # refinement inside the class below the limit: the same cost over its 1-dB bin edges, each bin's junk from
+        # its own share; ties keep the higher edge
         limit = classes[best][0]
         under = classes[best - 1]
-        even = p0 + (qj - p0) / 11
-        nn = bb = 0
+        cost = best_cost = 0.0
         for k in range(int(round(under[1] - lo)) - 1, -1, -1):
             if lo + k <= under[0]:
                 break
-            nn += n_b[k]; bb += bad_b[k]
-            if nn == 0:
+            if n_b[k] == 0:
                 continue
-            if (bb + 1) / (nn + 2) > even:
-                break
-            limit = lo + k
+            J = n_b[k] * min(1, max(0, (bad_b[k] / n_b[k] - p0) / max(1e-9, qj - p0)))
+            cost += 10 * J - (n_b[k] - J)
+            if cost < best_cost:
+                best_cost = cost; limit = lo + k
     return sigma, classes, s, p0, best, limit, ok.sum()
 
 d = deviations()
