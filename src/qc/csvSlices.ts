@@ -25,6 +25,8 @@ export interface SliceOptions {
 }
 
 const BLOCK = 1 << 18;
+/** Bytes per read: a slice needs a few tens of kB. */
+const READ = 1 << 16;
 const MAX_LINE = 1 << 20;
 
 /**
@@ -70,21 +72,20 @@ export function readCsvSlices(path: string, opts: SliceOptions, rows: number, sl
       let carry = 0; // bytes of a partial line kept at buf[0, carry)
       while (pos < size && taken < perSlice && total < rows) {
         if (carry >= buf.length) break; // a line longer than the buffer: give up on this slice
-        const n = readSync(fd, buf, carry, buf.length - carry, pos);
+        const n = readSync(fd, buf, carry, Math.min(buf.length - carry, READ), pos);
         if (n <= 0) break;
         const end = carry + n;
         pos += n;
         let s = 0;
         if (first) {
-          const j = buf.subarray(0, end).indexOf(10);
+          const j = nextNewline(buf, 0, end);
           if (j < 0) { carry = 0; continue; }
           s = j + 1;
           first = false;
         }
         for (;;) {
-          const e = buf.subarray(s, end).indexOf(10);
-          if (e < 0) break;
-          const lineEnd = s + e;
+          const lineEnd = nextNewline(buf, s, end);
+          if (lineEnd < 0) break;
           const ee = lineEnd > s && buf[lineEnd - 1] === 13 ? lineEnd - 1 : lineEnd;
           if (ee > s && !isBlank(buf, s, ee)) {
             taken++; total++;
@@ -112,6 +113,12 @@ export function readCsvSlices(path: string, opts: SliceOptions, rows: number, sl
   } finally {
     closeSync(fd);
   }
+}
+
+/** Index of the first line feed in b[s, e), or -1. */
+function nextNewline(b: Uint8Array, s: number, e: number): number {
+  for (let i = s; i < e; i++) if (b[i] === 10) return i;
+  return -1;
 }
 
 function isBlank(b: Uint8Array, s: number, e: number): boolean {
