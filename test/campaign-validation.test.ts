@@ -60,7 +60,7 @@ describe('defaults and resolution', () => {
     // The CNR limit is estimated from the data by default (auto); the documented defaults of its settings.
     expect(c.qc.cnr_db).toEqual({
       min: 'auto', max: 5,
-      auto: { rowsPerInstrument: 25000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 },
+      auto: { rowsPerInstrument: 15000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 },
     });
     expect(c.qc.robust).toEqual({ enabled: true, k: 3.5, minSamples: 5 });
     expect(c.retrieval.maxAmplification).toBe(3);

@@ -158,7 +158,7 @@ const planeSchema = z
   .strict();
 
 /** Defaults of qc.cnr_db.auto (src/qc/cnrLimit.ts and cnrEvidence.ts explain each). */
-export const CNR_AUTO_DEFAULT = { rowsPerInstrument: 25000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 };
+export const CNR_AUTO_DEFAULT = { rowsPerInstrument: 15000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 };
 
 const cnrAutoSchema = z
   .object({
@@ -168,7 +168,7 @@ const cnrAutoSchema = z
       .min(1000)
       .max(10000000)
       .default(CNR_AUTO_DEFAULT.rowsPerInstrument)
-      .describe('rows read per instrument for the estimate, the budget shared equally among its files: from a plain CSV file in 16 evenly spaced slices, from a compressed or NetCDF file its first rows; default 25000'),
+      .describe('rows read per instrument for the estimate, the budget shared equally among its files: from a plain CSV file in 8 evenly spaced slices, from a compressed or NetCDF file its first rows; default 15000'),
     timeBlock_s: finite().positive().default(CNR_AUTO_DEFAULT.timeBlock_s).describe('time block of the local reference (samples of one place and direction within a block are neighbours), s; default 600'),
     junkCost: finite().min(1).default(CNR_AUTO_DEFAULT.junkCost).describe('cost of accepting one junk sample, in good samples rejected; default 10'),
     minSamples: z.number().int().min(100).default(CNR_AUTO_DEFAULT.minSamples).describe('fewest samples with a local reference for an estimate; fewer: withoutEvidence_db is used and the run says so; default 2000'),

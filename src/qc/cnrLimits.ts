@@ -4,10 +4,10 @@
  *
  * The estimate is a function of the campaign's inputs and settings only: a bounded, deterministic pre-pass reads
  * rows of every file of each instrument (qc.cnr_db.auto.rowsPerInstrument, shared equally among its files, in
- * campaign order: from a plain CSV file 16 evenly spaced slices through it, from a compressed or NetCDF file its
+ * campaign order: from a plain CSV file 8 evenly spaced slices through it, from a compressed or NetCDF file its
  * first rows) and keeps only those rows' six numbers. It never depends on how a run is split into shards or
  * cores: every part of a run calls `resolveCnrLimits` on the whole campaign and gets the same limits (the manifest
- * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (25,000 rows: 1.2 MB).
+ * records them). Memory: at most rowsPerInstrument rows of six numbers per instrument (15,000 rows: 0.7 MB).
  *
  * Limits: compressed CSV and NetCDF files are judged on their first rows (a record split into many files is still
  * sampled throughout). An instrument with too few samples, or without a CNR
@@ -67,7 +67,7 @@ function columns(cap: number): Columns {
 }
 
 /** Byte slices per plain CSV file in the pre-pass (csvSlices.ts). */
-export const PREPASS_SLICES = 16;
+export const PREPASS_SLICES = 8;
 
 /**
  * The pre-pass: up to rowsPerInstrument rows per instrument, shared equally among its files; from a plain CSV file
