@@ -93,7 +93,7 @@ describe('auto CNR limit: no worse than the right fixed limit, clearly better th
       // that with room (here the estimate lands on the break and the two runs agree).
       expect(a).toBeLessThanOrEqual(r * 1.05);
       // Clearly better than a loose fixed limit: junk that passes the robust filter adds errors of metres per second;
-      // at least 30 % lower rms error (measured 70-80 %).
+      // at least 30 % lower rms error (measured 0.53 against 2.23 and 1.00 m/s: 76 % and 47 % lower).
       expect(a).toBeLessThan(0.7 * l);
       // And on every cell the loose run retrieves, auto's cells are not worse overall either.
       expect(rms([...eA.values()])).toBeLessThan(0.7 * rms([...eL.values()]));
