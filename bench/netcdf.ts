@@ -15,6 +15,9 @@ export interface BenchVariants {
   noNetcdfOutputCampaign: string;
   /** The CSV campaign with a fixed CNR limit (-35 dB, what the estimate gives on these data): no pre-pass. */
   fixedCnrCampaign: string;
+  /** The CSV campaign with the uncertainty budget off (uncertainty.budget: false), and the same with it on. */
+  noBudgetCampaign: string;
+  budgetCampaign: string;
   netcdfBytes: number;
 }
 
@@ -42,5 +45,9 @@ export async function benchVariants(d: BenchData, log: (s: string) => void): Pro
   const fixedCnrCampaign = join(d.dir, 'campaign-fixed-cnr.yaml');
   const qc = (csvDoc as { qc?: Record<string, unknown> }).qc ?? {};
   writeFileSync(fixedCnrCampaign, stringify({ ...csvDoc, name: `${doc.name}-fixed-cnr`, qc: { ...qc, cnr_db: { ...((qc.cnr_db as object) ?? {}), min: -35 } } }));
-  return { netcdfCampaign, noNetcdfOutputCampaign, fixedCnrCampaign, netcdfBytes: bytes };
+  const noBudgetCampaign = join(d.dir, 'campaign-no-budget.yaml');
+  writeFileSync(noBudgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-no-budget`, uncertainty: { budget: false } }));
+  const budgetCampaign = join(d.dir, 'campaign-budget.yaml');
+  writeFileSync(budgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-budget`, uncertainty: { budget: true } }));
+  return { netcdfCampaign, noNetcdfOutputCampaign, fixedCnrCampaign, noBudgetCampaign, budgetCampaign, netcdfBytes: bytes };
 }

@@ -33,7 +33,7 @@ import { generateFocus } from './generateFocus.ts';
 import { sourceStamp } from '../bin/stamp.js';
 
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
-const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300, manyWindowsFigures_s: 60, netcdfSamplesPerSecond: 5e6, outputCost: 0.05 };
+const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300, manyWindowsFigures_s: 60, netcdfSamplesPerSecond: 5e6, outputCost: 0.05, budgetCost: 0.1 };
 /**
  * The demo's figure stage before the default became one multi-panel figure per plane (commit 56dd1c3: 532 images,
  * seven per plane and window), on the 2-core development machine under other load: 21.7 s in the manifest's
@@ -48,6 +48,8 @@ interface ChildResult {
   stdout: string;
   stderr: string;
   maxRss_MB?: number;
+  /** User plus system CPU seconds (from /usr/bin/time -v): less moved by other work on a shared machine than the wall time. */
+  cpu_s?: number;
 }
 
 function runChild(cmd: string, args: string[], withTime: boolean): Promise<ChildResult> {
@@ -63,7 +65,8 @@ function runChild(cmd: string, args: string[], withTime: boolean): Promise<Child
     p.on('close', (code) => {
       const seconds = Number(process.hrtime.bigint() - t0) / 1e9;
       const m = /Maximum resident set size \(kbytes\): (\d+)/.exec(stderr);
-      res({ code, seconds, stdout, stderr, maxRss_MB: m ? Number(m[1]) / 1024 : undefined });
+      const u = /User time \(seconds\): ([\d.]+)/.exec(stderr), sy = /System time \(seconds\): ([\d.]+)/.exec(stderr);
+      res({ code, seconds, stdout, stderr, maxRss_MB: m ? Number(m[1]) / 1024 : undefined, cpu_s: u && sy ? Number(u[1]) + Number(sy[1]) : undefined });
     });
   });
 }
@@ -167,7 +170,7 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
   out(`  ${m.windows} windows (40 s), default figures: figure stage ${fmt(m.images, 2)} s, ${m.figures} figures; whole run ${fmt(m.wall, 2)} s, peak ${fmt(m.peakRss_MB, 0)} MB   ${verdict(m.windows >= 1000 && m.images < TARGET.manyWindowsFigures_s)} (target < ${TARGET.manyWindowsFigures_s} s)`);
 }
 
-interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; timings: Record<string, number> }
+interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; cpu_s?: number; timings: Record<string, number> }
 
 /** One whole job as a child process; the manifest's figures. */
 async function wholeJob(campaign: string): Promise<PipeRun | string> {
@@ -177,7 +180,7 @@ async function wholeJob(campaign: string): Promise<PipeRun | string> {
   const runDir = join(resolve(doc.output.dir), doc.name);
   const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number };
   rmSync(runDir, { recursive: true, force: true });
-  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s };
+  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, cpu_s: r.cpu_s, timings: m.timings_s };
 }
 
 async function main() {
@@ -213,7 +216,7 @@ async function main() {
   const stamp = existsSync(join(ROOT, 'dist', 'build.json')) ? readFileSync(join(ROOT, 'dist', 'build.json'), 'utf8').trim() : '';
   const entry = stamp === JSON.stringify(sourceStamp(join(ROOT, 'src'))) ? 'the bundled build (dist/)' : 'the sources through tsx (no fresh build: npm run build)';
   const nl: number[] = [], nlLoop: number[] = [];
-  const pipes: PipeRun[] = [], ncPipes: PipeRun[] = [], csvOnly: PipeRun[] = [], fixedCnr: PipeRun[] = [];
+  const pipes: PipeRun[] = [], ncPipes: PipeRun[] = [], csvOnly: PipeRun[] = [], noBudget: PipeRun[] = [], withBudget: PipeRun[] = [], fixedCnr: PipeRun[] = [];
   const variants = skipPipeline ? undefined : await benchVariants(d, (s) => console.log(s));
   let failed: string | undefined;
   if (!skipPipeline) {
@@ -240,11 +243,20 @@ async function main() {
       if (typeof a === 'string' || typeof b === 'string') { failed = typeof a === 'string' ? a : (b as string); break; }
       ncPipes.push(a);
       csvOnly.push(b);
+      // and the same job with the uncertainty budget on and off (uncertainty.budget), back to back, the order
+      // alternating from round to round so that a drift of the machine's speed cancels
+      const first = k % 2 === 0 ? variants!.budgetCampaign : variants!.noBudgetCampaign;
+      const second = k % 2 === 0 ? variants!.noBudgetCampaign : variants!.budgetCampaign;
+      const c1 = await wholeJob(first), c2 = await wholeJob(second);
+      if (typeof c1 === 'string' || typeof c2 === 'string') { failed = typeof c1 === 'string' ? c1 : (c2 as string); break; }
+      const [on, off] = k % 2 === 0 ? [c1, c2] : [c2, c1];
+      withBudget.push(on);
+      noBudget.push(off);
       // the same job with a fixed CNR limit (no pre-pass): the pre-pass's cost pair by pair
       const f = await wholeJob(variants!.fixedCnrCampaign);
       if (typeof f === 'string') { failed = f; break; }
       fixedCnr.push(f);
-      console.log(`         from NetCDF-4 ${fmt(a.seconds, 3)} s; CSV without NetCDF outputs ${fmt(b.seconds, 3)} s; fixed CNR limit ${fmt(f.seconds, 3)} s`);
+      console.log(`         from NetCDF-4 ${fmt(a.seconds, 3)} s; CSV without NetCDF outputs ${fmt(b.seconds, 3)} s; budget on ${fmt(on.seconds, 3)} s, off ${fmt(off.seconds, 3)} s; fixed CNR limit ${fmt(f.seconds, 3)} s`);
     }
   } else {
     nl.push(nlp0.seconds);
@@ -323,6 +335,17 @@ async function main() {
       out(`NetCDF outputs           whole job with / without, pair by pair: +${spread(costs.map((c) => 100 * c), 1)} %   (write_fields ${fmt(median(pipes.map((p) => p.timings.write_fields ?? 0)), 3)} s with, ${fmt(median(csvOnly.map((p) => p.timings.write_fields ?? 0)), 3)} s without)`);
       out(`  NetCDF-4 samples/s >= 5e6 ${fmt(ncRate / 1e6)}e6   ${verdict(ncRate >= TARGET.netcdfSamplesPerSecond)}`);
       out(`  output cost < 5 %        ${fmt(100 * cost, 1)} %   ${verdict(cost < TARGET.outputCost)}`);
+    }
+    if (noBudget.length) {
+      const costs = withBudget.map((p, k) => p.seconds / noBudget[k].seconds - 1);
+      const cost = median(costs);
+      const stage = (xs: PipeRun[], key: string) => fmt(median(xs.map((p) => p.timings[key] ?? 0)), 3);
+      out(`uncertainty budget       whole job with / without, back to back, pair by pair: ${spread(costs.map((c) => 100 * c), 1)} %   (wall ${spread(withBudget.map((p) => p.seconds))} s with, ${spread(noBudget.map((p) => p.seconds))} s without; ingest ${stage(withBudget, 'ingest')} s with, ${stage(noBudget, 'ingest')} s without; retrieval ${stage(withBudget, 'retrieval')} s with, ${stage(noBudget, 'retrieval')} s without)`);
+      out(`  budget cost < 10 %       ${fmt(100 * cost, 1)} %   ${verdict(cost < TARGET.budgetCost)}`);
+      if (withBudget.every((p, k) => p.cpu_s !== undefined && noBudget[k].cpu_s !== undefined)) {
+        const cpu = withBudget.map((p, k) => p.cpu_s! / noBudget[k].cpu_s! - 1);
+        out(`  in CPU time (user + system, pair by pair) ${spread(cpu.map((c) => 100 * c), 1)} %   (${spread(withBudget.map((p) => p.cpu_s!))} s with, ${spread(noBudget.map((p) => p.cpu_s!))} s without)   ${verdict(median(cpu) < TARGET.budgetCost)}`);
+      }
     }
   }
   if (focusRuns.length) {

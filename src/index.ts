@@ -21,6 +21,8 @@ export type { SampleChunk, SampleReaderOptions } from './io/csvSamples.ts';
 export { retrieveFromArrays, retrievalSetup, type SampleArraysInput, type RetrieveArraysResult } from './api/retrieveArrays.ts';
 export { MaskReason, maskReasonName, type FieldResult, type WindowInfo } from './retrieval/types.ts';
 export type { GridSpec } from './grid/grid.ts';
+export { BUDGET_TERMS, type BudgetSettings, type FieldBudget, type FieldTurbulence } from './retrieval/budget.ts';
+export type { UncertaintySummary } from './records/manifest.ts';
 export { analyseField } from './api/analyseField.ts';
 export { analyseWake, summariseWake, type WakeInputs } from './wake/analyse.ts';
 export type { WakeAnalysis, WakePlaneWindow } from './wake/types.ts';

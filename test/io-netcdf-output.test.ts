@@ -51,7 +51,11 @@ describe('NetCDF-4/CF outputs', () => {
     expect(h).toMatch(/w:standard_name = "upward_air_velocity"/);
     expect(h).toMatch(/w_se:standard_name = "upward_air_velocity standard_error"/);
     expect(h).toMatch(/eastward_wind:standard_name = "eastward_wind"/);
-    expect(h).toMatch(/u_mask:flag_meanings = "valid no_data too_few_samples too_few_instruments amplification_above_threshold singular_geometry assumed_zero"/);
+    expect(h).toMatch(/u_mask:flag_meanings = "valid no_data too_few_samples too_few_instruments amplification_above_threshold singular_geometry assumed_zero uncertainty_above_threshold"/);
+    // The uncertainty budget and turbulence statistics follow the data dictionary (records/tables/fields.ts).
+    expect(h).toMatch(/float u_unc_combined\(window, z, y\)/);
+    expect(h).toMatch(/u_unc_sampling:units = "m s-1"/);
+    expect(h).toMatch(/u_variance:units = "m2 s-2"/);
     const v = spawnSync('ncdump', ['-v', 'window_index', join(runDir, 'fields', 'p5.nc')], { encoding: 'utf8' });
     expect(v.stdout).toMatch(/window_index = 0, 1, 2 ;/);
     const w = spawnSync('ncdump', ['-h', join(runDir, 'wake', 'wake_table.nc')], { encoding: 'utf8' });

@@ -125,6 +125,7 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       pulsed: ins.pulsed,
       cw: ins.cw,
       calibration: ins.calibration,
+      pointingUncertainty: ins.pointingUncertainty,
       files: ins.files.map(abs),
       columns: ins.columns,
       radialVelocitySign: ins.radialVelocitySign,

@@ -93,6 +93,15 @@ const instrumentSchema = z
     pulsed: pulsedSchema.default({ pulseFwhm_ns: 200, gateLength_m: 30 }),
     cw: cwSchema.default({ wavelength_m: 1.565e-6, apertureRadius_m: 0.028 }),
     calibration: calibrationSchema,
+    pointingUncertainty: z
+      .object({
+        azimuth_deg: finite().min(0).default(0).describe('standard uncertainty of the beam azimuth, degrees; default 0 (a levelled, north-aligned scanner is often quoted at 0.05-0.1 degrees: common practice)'),
+        elevation_deg: finite().min(0).default(0).describe('standard uncertainty of the beam elevation, degrees; default 0'),
+        position_m: finite().min(0).default(0).describe('standard uncertainty of the instrument position along each axis, metres; default 0'),
+      })
+      .strict()
+      .default({ azimuth_deg: 0, elevation_deg: 0, position_m: 0 })
+      .describe('pointing and position errors for the uncertainty budget (propagated linearly through the beam geometry)'),
     files: z.array(z.string().min(1)).default([]).describe('data files (CSV, CSV.gz or NetCDF-4), relative to the campaign file'),
     columns: columnMapSchema.default({}).describe('column mapping for files whose headers or units differ; for NetCDF files the variable names'),
     radialVelocitySign: z
@@ -401,6 +410,14 @@ export const campaignSchema = z
       })
       .strict()
       .default({ maxAmplification: 3, minSamplesPerInstrument: 3, twoInstrumentAssumption: 'w-zero' }),
+    uncertainty: z
+      .object({
+        budget: z.boolean().default(true).describe('compute the per-cell uncertainty budget and turbulence statistics; default true'),
+        maxCombined_ms: finite().positive().optional().describe('mask a component whose combined standard uncertainty exceeds this, m/s; default: no mask'),
+      })
+      .strict()
+      .default({ budget: true })
+      .describe('the uncertainty budget (README: Uncertainty)'),
     inflow: z
       .union([
         z.object({ kind: z.literal('plane'), law: z.enum(['power', 'log']).default('power') }).strict().describe('fit the undisturbed cells of each plane'),

@@ -28,6 +28,8 @@ export interface Instrument {
   pulsed: { pulseFwhm_ns: number; gateLength_m: number };
   cw: { wavelength_m: number; apertureRadius_m: number };
   calibration: Calibration;
+  /** Standard uncertainties of the pointing (degrees) and position (metres, each axis) for the uncertainty budget. */
+  pointingUncertainty: { azimuth_deg: number; elevation_deg: number; position_m: number };
   /** Absolute paths of the data files. */
   files: string[];
   columns: ColumnMap;

@@ -13,6 +13,28 @@
  * Limits that keep every sum exact: |v_r| < 64 m/s (the schema caps the radial-velocity limit there), |position| <
  * 65 km, and at most MAX_SAMPLES_PER_KEY = 2^27 samples per key (checked when a window is finished).
  * Quantisation: v_r to 2^-20 m/s (1e-6 m/s), beam components to 2^-26 (1.5e-8), positions to 2^-10 m (1 mm).
+ *
+ * Uncertainty-budget sums (fields th .. hv; filled only when a sample comes with its time, i.e. from the plane
+ * target, and the accumulator was made with `budget` on): the sample time (absolute Unix seconds to 2^-6 s, split in
+ * a high part of multiples of 2^26 quanta and a remainder, so both sums stay exact); the key's rays, a ray being the
+ * successive samples of the key with one time stamp (the range gates of one beam in the cell): their count, the sum
+ * and sum of squares of the ray means a (v_r to 2^-10 m/s, rounded to the nearest); within runs (successive rays
+ * with the same beam direction less than BURST_GAP_S apart: a dwell on one point) the sums of squared differences
+ * of ray means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
+ * (rays of the key separated by less than BURST_GAP_S: one pass of a scanner through the cell, whatever points it
+ * aimed at) and the sum and sum of squares of the burst means (the mean of a burst's samples, 2^-10 m/s); the count
+ * and sum of
+ * q of the samples in the later half of the window. These feed the sampling statistics of retrieval/sampling.ts.
+ * Ray means within runs rather than successive samples: a fixed pattern along the beam or between the points a
+ * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
+ *
+ * A ray is open until a sample of the key with another time arrives: the open ray and the last three ray means of
+ * the run are per-slot state (`lag`, not sums). Before serialising `sums` (shards), call `closeRays()`: the sums are
+ * then complete and the state can be dropped. `closeRays()` closes the open rays (the filter calls it when a window
+ * is finished; `merge` calls it on both sides and then forgets the state): pairs across a merge boundary are not
+ * formed, so a window split into S shards loses at most k pairs of lag k (k = 1, 2, 3) per key and boundary (and a
+ * ray or burst cut by a boundary counts as two): a bias of the structure sums of at most 3 (S - 1) of a key's pairs,
+ * and one extra burst per boundary in the burst variance (stated in DEVELOPERS.md).
  */
 import { VrHistograms } from '../qc/vrHistogram.ts';
 
@@ -32,9 +54,42 @@ export const MAX_ABS_VR = 64;
 const RND = 6755399441055744; // 1.5 * 2^52
 const INV_SPLIT = 1 / SQ_SPLIT;
 
-/** Fields of a slot in CellAccumulator.sums (stride STRIDE): one cache line or two per slot. */
-export const F = { n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8 } as const;
-export const STRIDE = 9;
+/** Fixed-point scale of sample times (absolute Unix seconds), 1/s. */
+export const T_SCALE = 2 ** 6;
+/** Fixed-point scale of time gaps between successive samples of a key, 1/s. */
+export const DT_SCALE = 2 ** 10;
+
+/**
+ * Fields of a slot in CellAccumulator.sums (stride STRIDE). Every field is a sum of integers, merged by addition.
+ * n .. spz: the retrieval's sums. th, tl: time sums (high part in units of 2^26 quanta, remainder). l1n, l1h, l1l,
+ * l1d: lag-1 pair count, product sums (high, low), gap sum; l2n, l2h, l2l: lag-2 pair count and product sums;
+ * hn, hv: count and sum of q of the samples in the later half of the window.
+ */
+export const F = {
+  n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8,
+  th: 9, tl: 10, ra: 11, sa: 12, sa2h: 13, sa2l: 14, rb: 15, l1n: 16, l1h: 17, l1l: 18, l1d: 19, l2n: 20, l2h: 21, l2l: 22,
+  l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27, ru: 28, ru2h: 29, ru2l: 30,
+} as const;
+export const STRIDE = 31;
+/** Values of one sample for CellAccumulator.addValues: v_r, beam nx, ny, nz, position py, pz, time t, window middle tMid. */
+export const ADD_FIELDS = 8;
+/**
+ * Gap in a key's rays (s) that starts a new burst: the bursts of a key are the passes of a scanner through its cell,
+ * taken as independent of each other by the sampling statistics (retrieval/sampling.ts). @default 5
+ */
+export const BURST_GAP_S = 5;
+/** Fixed-point scale of ray means, 1/(m/s). */
+export const A_SCALE = 2 ** 10;
+/**
+ * Per-slot state of the rays (not a sum; not merged): sum of q and count of the open ray, its time and beam
+ * direction; the last three closed ray means (a) of the current run, the time and direction of the last closed ray;
+ * closed rays of the run (capped at 3).
+ */
+export const LAG_STRIDE = 16;
+const L_Q = 0, L_M = 1, L_T = 2, L_NX = 3, L_NY = 4, L_NZ = 5, L_A1 = 6, L_A2 = 7, L_A3 = 8, L_T1 = 9, L_SEEN = 10, L_PX = 11, L_PY = 12, L_PZ = 13;
+/** Sum of q and count of the samples of the open burst. */
+const L_RQ = 14, L_RM = 15;
+const Q_TO_A = A_SCALE / VR_SCALE;
 
 export class CellAccumulator {
   /** key -> slot, or -1 when the key has no sample yet. */
@@ -48,12 +103,20 @@ export class CellAccumulator {
    * vector); spy, spz (sums of round(p * POS_SCALE), in-plane position).
    */
   sums = new Float64Array(64 * STRIDE);
+  /** Per slot, at [slot * LAG_STRIDE]: q of the last sample, q of the one before, time of the last, samples seen (capped at 2). */
+  lag = new Float64Array(64 * LAG_STRIDE);
+  /** Values of the sample being added by add() (addValues). */
+  private readonly values = new Float64Array(ADD_FIELDS);
+  /** Scratch values of the sample being added (addTiming). */
+  private readonly scratch = new Float64Array(6);
   readonly hist = new VrHistograms();
 
   constructor(
     /** Number of keys (cells of all planes times instruments). */
     readonly keyCount: number,
     readonly instrumentCount: number,
+    /** Fill the uncertainty-budget sums (fields th .. hv) for samples given with a time. @default true */
+    readonly budget = true,
   ) {
     this.slotOf = new Int32Array(keyCount).fill(-1);
     this.hist.ensure(64);
@@ -67,6 +130,9 @@ export class CellAccumulator {
     const m = new Float64Array(cap * STRIDE);
     m.set(this.sums);
     this.sums = m;
+    const l = new Float64Array(cap * LAG_STRIDE);
+    l.set(this.lag);
+    this.lag = l;
     this.hist.ensure(cap);
   }
 
@@ -89,9 +155,21 @@ export class CellAccumulator {
 
   /**
    * Add one sample: radial velocity v_r (m/s, positive away), rotor-frame beam unit vector (nx, ny, nz), in-plane
-   * position (py, pz) in metres.
+   * position (py, pz) in metres; optionally the sample time t (Unix s) and the middle of its window tMid (Unix s;
+   * NaN when unknown, e.g. a whole-record window): with a finite t and `budget` on, the budget sums are filled too.
    */
-  add(key: number, vr: number, nx: number, ny: number, nz: number, py: number, pz: number): void {
+  add(key: number, vr: number, nx: number, ny: number, nz: number, py: number, pz: number, t = NaN, tMid = NaN): void {
+    const v = this.values;
+    v[0] = vr; v[1] = nx; v[2] = ny; v[3] = nz; v[4] = py; v[5] = pz; v[6] = t; v[7] = tMid;
+    this.addValues(key, v);
+  }
+
+  /**
+   * add() with the values in an array (v_r, nx, ny, nz, py, pz, t, tMid: ADD_FIELDS), for hot loops: numbers passed
+   * to a call that is not inlined are boxed on the heap, once per sample (gigabytes over a campaign).
+   */
+  addValues(key: number, v: Float64Array): void {
+    const vr = v[0], nx = v[1], ny = v[2], nz = v[3], py = v[4], pz = v[5], t = v[6], tMid = v[7];
     let s = this.slotOf[key];
     if (s < 0) s = this.slot(key);
     // Rounding to the nearest integer (ties to even) by adding and removing 1.5 * 2^52: exact for |x| < 2^51 and
@@ -111,11 +189,125 @@ export class CellAccumulator {
     m[o + 7] += py * POS_SCALE + RND - RND;
     m[o + 8] += pz * POS_SCALE + RND - RND;
     this.hist.add(s, q);
+    if (t === t && this.budget) {
+      // Values for the budget sums go through a scratch array: doubles passed to a call that is not inlined are
+      // boxed on the heap, once per sample (slot and offset are small integers and are not).
+      const b = this.scratch;
+      b[0] = q; b[1] = t; b[2] = tMid; b[3] = nx; b[4] = ny; b[5] = nz;
+      this.addTiming(s, o);
+    }
+  }
+
+  /** The budget sums of one sample (slot s, offset o; fixed-point v_r q, time t, window middle tMid, beam in `scratch`). */
+  private addTiming(s: number, o: number): void {
+    const b = this.scratch;
+    const q = b[0], t = b[1], tMid = b[2], nx = b[3], ny = b[4], nz = b[5];
+    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE;
+    const tq = t * T_SCALE + RND - RND;
+    let th = tq * INV_SPLIT + RND - RND;
+    if (th * SQ_SPLIT > tq) th -= 1;
+    m[o + F.th] += th;
+    m[o + F.tl] += tq - th * SQ_SPLIT;
+    if (L[lo + L_M] > 0 && L[lo + L_T] !== t) this.closeRay(s);
+    if (L[lo + L_M] === 0) {
+      L[lo + L_T] = t;
+      L[lo + L_NX] = nx; L[lo + L_NY] = ny; L[lo + L_NZ] = nz;
+    }
+    L[lo + L_Q] += q;
+    L[lo + L_M]++;
+    if (t >= tMid) {
+      m[o + F.hn]++;
+      m[o + F.hv] += q;
+    }
+  }
+
+  /** Close the open ray of slot s: its mean joins the ray sums and, within its run, pairs with the three before it. */
+  private closeRay(s: number): void {
+    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+    const a = (L[lo + L_Q] / L[lo + L_M]) * Q_TO_A + RND - RND;
+    m[o + F.ra]++;
+    m[o + F.sa] += a;
+    splitAdd(m, o + F.sa2h, a * a);
+    let seen = L[lo + L_SEEN];
+    if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ] || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+      seen = 0; // a new run: another beam direction, a gap (the next pass), or the first ray
+    }
+    if (L[lo + L_RM] === 0 || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+      // A new burst: the first ray, or one after a gap in the key's samples.
+      this.closeRun(s);
+      m[o + F.rb]++;
+    }
+    L[lo + L_RQ] += L[lo + L_Q];
+    L[lo + L_RM] += L[lo + L_M];
+    if (seen >= 1) {
+      m[o + F.l1n]++;
+      const d1 = a - L[lo + L_A1];
+      splitAdd(m, o + F.l1h, d1 * d1);
+      const gap = L[lo + L_T] - L[lo + L_T1];
+      m[o + F.l1d] += (gap > 0 ? gap : -gap) * DT_SCALE + RND - RND;
+      if (seen >= 2) {
+        m[o + F.l2n]++;
+        const d2 = a - L[lo + L_A2];
+        splitAdd(m, o + F.l2h, d2 * d2);
+        if (seen >= 3) {
+          m[o + F.l3n]++;
+          const d3 = a - L[lo + L_A3];
+          splitAdd(m, o + F.l3h, d3 * d3);
+        }
+      }
+    }
+    L[lo + L_A3] = L[lo + L_A2];
+    L[lo + L_A2] = L[lo + L_A1];
+    L[lo + L_A1] = a;
+    L[lo + L_T1] = L[lo + L_T];
+    L[lo + L_PX] = L[lo + L_NX]; L[lo + L_PY] = L[lo + L_NY]; L[lo + L_PZ] = L[lo + L_NZ];
+    L[lo + L_SEEN] = seen >= 3 ? 3 : seen + 1;
+    L[lo + L_Q] = 0;
+    L[lo + L_M] = 0;
+  }
+
+  /** Close the open run of slot s: its sample mean (2^-10 m/s) joins the run sums. */
+  private closeRun(s: number): void {
+    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+    if (L[lo + L_RM] === 0) return;
+    const b = (L[lo + L_RQ] / L[lo + L_RM]) * Q_TO_A + RND - RND;
+    m[o + F.ru] += b;
+    splitAdd(m, o + F.ru2h, b * b);
+    L[lo + L_RQ] = 0;
+    L[lo + L_RM] = 0;
+  }
+
+  /** Close every open ray and run (before the budget sums are read, and before a merge). */
+  closeRays(): void {
+    if (!this.budget) return;
+    for (let s = 0; s < this.slots; s++) {
+      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
+      this.closeRun(s);
+    }
+  }
+
+  /**
+   * End the sequences of instrument `ins` (keys key % instrumentCount === ins): close its open rays and bursts and
+   * forget the run state, so that its next sample starts afresh, as after a merge. The ingest calls it when a file
+   * ends: every run, single or sharded by files, then forms the same sequences.
+   */
+  endSequences(ins: number): void {
+    if (!this.budget) return;
+    const I = this.instrumentCount;
+    for (let s = 0; s < this.slots; s++) {
+      if (this.keyOf[s] % I !== ins) continue;
+      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
+      this.closeRun(s);
+      this.lag.fill(0, s * LAG_STRIDE, (s + 1) * LAG_STRIDE);
+    }
   }
 
   /** Add every key of `other` (same key space) into this accumulator; exact. */
   merge(other: CellAccumulator): void {
     if (other.keyCount !== this.keyCount) throw new RangeError(`cannot merge accumulators of ${other.keyCount} and ${this.keyCount} keys`);
+    this.closeRays();
+    other.closeRays();
+    this.lag.fill(0, 0, this.slots * LAG_STRIDE);
     for (let t = 0; t < other.slots; t++) {
       const s = this.slot(other.keyOf[t]);
       for (let f = 0; f < STRIDE; f++) this.sums[s * STRIDE + f] += other.sums[t * STRIDE + f];
@@ -127,6 +319,7 @@ export class CellAccumulator {
   reset(): void {
     for (let s = 0; s < this.slots; s++) this.slotOf[this.keyOf[s]] = -1;
     this.sums.fill(0, 0, this.slots * STRIDE);
+    this.lag.fill(0, 0, this.slots * LAG_STRIDE);
     this.hist.reset(this.slots);
     this.slots = 0;
   }
@@ -137,4 +330,12 @@ export class CellAccumulator {
     for (let s = 0; s < this.slots; s++) t += this.sums[s * STRIDE];
     return t;
   }
+}
+
+/** Add the integer x (|x| < 2^52) to m[at] (multiples of SQ_SPLIT) and m[at + 1] (remainder in [0, SQ_SPLIT)). */
+function splitAdd(m: Float64Array, at: number, x: number): void {
+  let h = x * INV_SPLIT + RND - RND;
+  if (h * SQ_SPLIT > x) h -= 1;
+  m[at] += h;
+  m[at + 1] += x - h * SQ_SPLIT;
 }

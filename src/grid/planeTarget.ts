@@ -11,7 +11,7 @@
  * planes) or along the site-frame up axis ("site").
  */
 import { REJECT_INDEX } from '../qc/reasons.ts';
-import type { CellAccumulator } from './accumulator.ts';
+import { ADD_FIELDS, type CellAccumulator } from './accumulator.ts';
 import type { GridSpec } from './grid.ts';
 import { SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
 
@@ -47,6 +47,8 @@ export class PlaneTarget implements SampleTarget {
   private readonly oN: Float64Array;
   private readonly zBase: Float64Array;
   private readonly onTerrain: Uint8Array;
+  /** The values handed to the accumulator (CellAccumulator.addValues), reused for every sample. */
+  private readonly values = new Float64Array(ADD_FIELDS);
 
   constructor(
     planes: PlaneTargetSpec[],
@@ -94,7 +96,10 @@ export class PlaneTarget implements SampleTarget {
       // Beam unit vector in the window's rotor frame.
       const ne = s[SAMPLE.ne], nn = s[SAMPLE.nn];
       const rx = ne * f.dE + nn * f.dN, ry = -ne * f.dN + nn * f.dE;
-      acc.add((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, s[SAMPLE.vr], rx, ry, s[SAMPLE.nu], y, second);
+      // Time and window middle feed the uncertainty budget's sums (NaN middle for a whole-record window).
+      const v = this.values;
+      v[0] = s[SAMPLE.vr]; v[1] = rx; v[2] = ry; v[3] = s[SAMPLE.nu]; v[4] = y; v[5] = second; v[6] = s[SAMPLE.t]; v[7] = (f.start_s + (f.end_s ?? NaN)) / 2;
+      acc.addValues((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, v);
       return true;
     }
     return false;

@@ -14,6 +14,8 @@ export interface WindowFrame {
   /** Window start (Unix s; -Infinity for a whole-record window) and its first sample time so far. */
   start_s: number;
   first_s: number;
+  /** Window end (Unix s, exclusive; Infinity for a whole-record window); with start_s gives the middle used by the budget sums. */
+  end_s?: number;
 }
 
 /**

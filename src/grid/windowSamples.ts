@@ -20,6 +20,8 @@ export interface WindowSamples {
   nz: Float64Array;
   py: Float64Array;
   pz: Float64Array;
+  /** Sample times, Unix s (optional): with them the uncertainty budget's sampling statistics are computed. */
+  time?: Float64Array;
 }
 
 export function createWindowSamples(capacity = 4096): WindowSamples {

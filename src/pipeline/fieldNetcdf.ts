@@ -8,7 +8,8 @@
  * Per window and cell: u, v, w (rotor frame; w is also the site-frame upward wind, upward_air_velocity), their
  * standard uncertainties u_se, v_se, w_se (ancillary variables; w_se with the standard-name modifier
  * `standard_error`), u/v/w_amplification, condition_number, min_crossing, samples, instruments, u/v/w_mask (flag
- * values 0-6 with flag_meanings), y_eff and z_eff/x_eff, eastward_wind and northward_wind (site frame, from u and v
+ * values 0-7 with flag_meanings), y_eff and z_eff/x_eff, the uncertainty budget's terms and the turbulence
+ * statistics (records/tables/fields.ts BUDGET_COLUMNS), eastward_wind and northward_wind (site frame, from u and v
  * and the window's direction: e = -u sin(D) + v cos(D), n = -u cos(D) - v sin(D), D the direction the wind comes
  * from), the cell centres east and north, and longitude/latitude when the site is georeferenced. Per window:
  * direction (wind_from_direction), window_index. The site-frame components carry no standard error: it would need
@@ -21,7 +22,8 @@ import { dictionaryAttrs, runAttributes } from '../io/netcdfTable.ts';
 import { ncWorker, type NcAttr, type NcTarget, type NcWorker } from '../io/netcdfWrite.ts';
 import type { Column } from '../records/dictionary.ts';
 import type { OutputRecord } from '../records/manifest.ts';
-import { fieldTable } from '../records/tables/fields.ts';
+import { BUDGET_COLUMNS, fieldTable } from '../records/tables/fields.ts';
+import { budgetArrays } from './budgetValues.ts';
 import { UNITS } from '../records/units.ts';
 import { NETCDF_VARIABLES } from '../records/tables/netcdf.ts';
 import { maskReasonName, type FieldResult } from '../retrieval/types.ts';
@@ -121,9 +123,10 @@ export class FieldNetcdf {
     data('min_crossing');
     data('samples', {}, 'i');
     data('instruments', {}, 'b');
-    for (const k of ['u', 'v', 'w']) data(`${k}_mask`, { flag_values: Int8Array.from([0, 1, 2, 3, 4, 5, 6]), flag_meanings: FLAG_MEANINGS, long_name: `mask of ${k}: why it is not retrieved (0 = valid)` }, 'b');
+    for (const k of ['u', 'v', 'w']) data(`${k}_mask`, { flag_values: Int8Array.from(Object.keys(maskReasonName).map(Number).sort((a, b) => a - b)), flag_meanings: FLAG_MEANINGS, long_name: `mask of ${k}: why it is not retrieved (0 = valid)` }, 'b');
     data('y_eff');
     data(`${second}_eff`);
+    for (const bc of BUDGET_COLUMNS) data(bc.name);
     data('eastward_wind', { comment: 'no standard error: it needs the u-v covariance, which is not kept' });
     data('northward_wind', { comment: 'no standard error: it needs the u-v covariance, which is not kept' });
     w.variable('east', grid, empty, attrs('east', { _FillValue: new Float32Array([NaN]) }));
@@ -168,6 +171,7 @@ export class FieldNetcdf {
     w.append('u_mask', Int8Array.from(f.maskU)); w.append('v_mask', Int8Array.from(f.maskV)); w.append('w_mask', Int8Array.from(f.maskW));
     w.append('y_eff', f32(f.yEff));
     w.append(f.orientation === 'cross' ? 'z_eff' : 'x_eff', f32(f.zEff));
+    budgetArrays(f).forEach((a, k) => w.append(BUDGET_COLUMNS[k].name, f32(a)));
     const east = new Float32Array(n), north = new Float32Array(n);
     const ue = new Float32Array(n), un = new Float32Array(n);
     const tb = this.c.turbine.position;

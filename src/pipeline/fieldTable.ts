@@ -11,7 +11,9 @@ import { InputError } from '../errors.ts';
 import { cellCentre, gridSpecOf } from '../grid/grid.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { isoTime, parseTime } from '../io/time.ts';
-import { fieldTable } from '../records/tables/fields.ts';
+import { BUDGET_COLUMNS, fieldTable } from '../records/tables/fields.ts';
+import { emptyFieldBudget } from '../retrieval/budget.ts';
+import { budgetArrays } from './budgetValues.ts';
 import { headerLine, rowLine, tableLayout, type TableLayout } from '../records/tableText.ts';
 import { W_ZERO_ASSUMPTION } from '../retrieval/settings.ts';
 import { MaskReason, maskReasonName, type FieldResult, type WindowInfo } from '../retrieval/types.ts';
@@ -30,6 +32,7 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
   const parts: string[] = [headerLine(L)];
   const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
   const n = f.grid.ny * f.grid.nz;
+  const extra = budgetArrays(f);
   for (let c = 0; c < n; c++) {
     const [y, z] = cellCentre(f.grid, c);
     const masked = f.maskU[c] !== 0 || f.maskV[c] !== 0 || f.maskW[c] !== 0;
@@ -37,6 +40,7 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
       f.planeId, ws, we, y, z, y / diameter_m, z / diameter_m, f.u[c], f.v[c], f.w[c], f.su[c], f.sv[c], f.sw[c],
       f.dopU[c], f.dopV[c], f.dopW[c], f.cond[c], f.minCrossing_deg[c], f.samples[c], f.instruments[c],
       maskReasonName[f.maskU[c]], maskReasonName[f.maskV[c]], maskReasonName[f.maskW[c]], masked ? 1 : 0, f.direction_deg, f.yEff[c], f.zEff[c],
+      ...extra.map((a) => a[c]),
     ]));
   }
   return parts.join('');
@@ -77,7 +81,10 @@ export function readFieldTable(path: string, plane: PlaneSpec, window?: WindowIn
   const lines = text.split(/\r?\n/);
   if (lines.at(-1) === '') lines.pop();
   const header = splitCsv(lines[0] ?? '');
-  const cols = fieldTableColumns(plane.orientation);
+  const all = fieldTableColumns(plane.orientation);
+  // The budget's columns are read when present (tables of runs before the budget existed have none).
+  const cols = all.slice(0, all.length - BUDGET_COLUMNS.length);
+  const budgetAt = all.slice(cols.length).map((c) => header.indexOf(c));
   const at = new Int32Array(cols.length);
   cols.forEach((c, k) => {
     at[k] = header.indexOf(c);
@@ -104,9 +111,15 @@ export function readFieldTable(path: string, plane: PlaneSpec, window?: WindowIn
     if (v === undefined) throw new InputError(path, line, `unknown mask reason "${t}" in column ${cols[k]}`);
     return v;
   };
+  let budget: Float64Array[] | undefined;
+  if (budgetAt.every((k) => k >= 0)) {
+    f.budget = emptyFieldBudget(n);
+    budget = budgetArrays(f); // the budget's own arrays, in column order
+  }
   for (let i = 0; i < n; i++) {
     const cells = splitCsv(lines[i + 1]);
     if (cells.length < header.length) throw new InputError(path, i + 2, `row has ${cells.length} fields, the header ${header.length}`);
+    if (budget) budgetAt.forEach((k, j) => { const t = cells[k]; budget![j][i] = t === '' || t === undefined ? NaN : Number(t); });
     if (i === 0) {
       f.direction_deg = num(cells, C.direction);
       if (!window) f.window = { index: 0, start_s: parseTime(cells[at[C.window_start]]), end_s: parseTime(cells[at[C.window_end]]) };

@@ -92,7 +92,7 @@ export class WindowFinisher {
     const tr = performance.now();
     const ordinal = this.windows.length;
     const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
-    const { stats, outliers } = robustFilter(w.accs[0], this.settings.robust);
+    const { stats, outliers } = robustFilter(w.accs[0], this.settings.robust, w);
     const geoOutliers = this.geometry?.window(w, ordinal);
     const fields = retrieveStats(stats, this.planes, info, w.direction_deg, this.settings);
     const outlierCount = outliers.reduce((a, b) => a + b, 0);

@@ -183,6 +183,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     path: f.path,
     owner: f.owner,
     rows: 0,
+    /** Instruments whose rows the file held. */
+    seen: new Uint8Array(I),
   }));
   let first = Infinity;
   for (const cur of cursors) {
@@ -209,7 +211,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const D = (dir * Math.PI) / 180;
       w = {
         def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
-        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I)), dE: -Math.sin(D), dN: -Math.cos(D),
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I, c.uncertainty.budget)), dE: -Math.sin(D), dN: -Math.cos(D),
       };
       open.set(id, w);
     }
@@ -238,7 +240,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const live: Live[] = [];
   let nFound = 0, nLive = 0, nDirected = 0, rFrom = Infinity, rTo = -Infinity;
 
-  const processChunk = (chunk: SampleChunk, owner: number) => {
+  const processChunk = (chunk: SampleChunk, owner: number, seen: Uint8Array) => {
     const b = chunk.batch;
     const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) {
@@ -254,6 +256,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
+      seen[ins] = 1;
       if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
       if (cnr < cnrMin[ins]) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
@@ -360,8 +363,13 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       if (r.done) cur.done = true;
       else chunk = r.value;
     }
+    if (cur.done) {
+      // The budget's sequences (rays, runs, bursts of each key: grid/accumulator.ts) end with the file, in every
+      // run: a run sharded by files, or spread over cores by files, then forms exactly the same sequences.
+      for (const w of open.values()) for (const a of w.accs) for (let ins = 0; ins < I; ins++) if (cur.seen[ins] === 1) a.endSequences(ins);
+    }
     if (chunk) {
-      processChunk(chunk, cur.owner);
+      processChunk(chunk, cur.owner, cur.seen);
       const b = chunk.batch;
       if (b.length > 0) cur.last = Math.max(cur.last, batchEndTime(b)); // robust to a damaged time at the end
       cur.rows += b.length + chunk.rejected.length;

@@ -18,6 +18,7 @@ import type { OutputRecord, RunManifest } from './manifest.ts';
 import { replaceRefusal } from './outputFolder.ts';
 import type { RunProgress, StageContext } from './run.ts';
 import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
+import { budgetStage } from './budgetStage.ts';
 
 export interface RenderOptions {
   /** Override output.figures.windowImages and binImages. */
@@ -68,18 +69,21 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
 
   // The wake analysis again from the field tables, without writing its tables, then the figures.
   const wake = wakeStage({ write: false });
+  const budget = budgetStage();
   const images = imageStage({ ...(opts.windowImages ? { windowImages: opts.windowImages } : {}), ...(opts.binImages ? { binImages: opts.binImages } : {}) });
   progress?.stage('reading field tables');
   let t: number;
   for await (const f of fieldsFromTables(campaign, runDir, manifest, () => true)) {
     await wake.field!(f, ctx);
+    await budget.field!(f, ctx);
     await images.field!(f, ctx);
     progress?.file('fields', 1);
   }
   await wake.finish!(ctx);
   progress?.stage('images');
   t = performance.now();
-  const recs = await images.finish!(ctx);
+  // The budget's figures and report section again from the tables' budget columns (runs without them have none).
+  const recs = [...(await budget.finish!(ctx)), ...(await images.finish!(ctx))];
   manifest.outputs.push(...recs);
   manifest.timings_s.images = (performance.now() - t) / 1000;
   // The figures of the data-driven CNR limit, from the evidence the manifest keeps (a run without images has none yet).

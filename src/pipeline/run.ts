@@ -25,6 +25,7 @@ import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../q
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
 import { resolveCnrLimits, type CnrLimits } from '../qc/cnrLimits.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
+import { budgetSettings } from './budgetSettings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import { Counters, ingest } from './ingest.ts';
 import { WindowFinisher } from './finishWindows.ts';
@@ -192,6 +193,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       twoInstrumentAssumption: c.retrieval.twoInstrumentAssumption,
       robust: c.qc.robust,
       instrumentCount: c.instruments.length,
+      budget: budgetSettings(c),
     };
     const counters = new Counters(c.instruments.length);
     let rejectedOut: AtomicStream | undefined;

@@ -27,6 +27,7 @@ import { writeWakeNetcdf } from '../wake/outputNetcdf.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import { pendingWrites, type RunStage } from './run.ts';
 import { geometryStage } from './geometryStage.ts';
+import { budgetStage } from './budgetStage.ts';
 import type { FieldResult, WindowInfo } from '../retrieval/types.ts';
 import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../campaign/figures.ts';
 import type { FigureCollector } from '../render/runFigures.ts';
@@ -255,6 +256,8 @@ export function reportStage(): RunStage {
       if (plan) extras.planSummary = planExtras(plan);
       const geo = ctx.shared.geometryReport as ReportExtras['geometry'];
       if (geo?.length) extras.geometry = geo;
+      const unc = ctx.shared.uncertaintyReport as ReportExtras['uncertainty'];
+      if (unc) extras.uncertainty = unc;
       const power = ctx.shared.power as PowerAnalysis | undefined;
       if (power) extras.wakeTables = [...(extras.wakeTables ?? []), ...(await import('../power/output.ts')).powerReportTables(power)];
       return [await writeReport(ctx.manifest, ctx.runDir, extras)];
@@ -286,7 +289,7 @@ export function netcdfStage(): RunStage {
 }
 
 export function defaultStages(opts: { plan?: boolean } & ImageStageOptions = {}): RunStage[] {
-  return [wakeStage(), netcdfStage(), geometryStage(), powerStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
+  return [wakeStage(), netcdfStage(), geometryStage(), powerStage(), budgetStage(), imageStage(opts), ...(opts.plan ? [planStage()] : []), reportStage()];
 }
 
 export type { Series };

@@ -83,4 +83,22 @@ export interface RunManifest {
   cnrLimits?: { mode: 'auto' | 'fixed' | 'mixed'; perInstrument: Record<string, InstrumentCnrLimit> };
   /** Set by `wakeplane render` when it redid the figures and the report of this run folder. */
   rendered?: { at: string; seconds: number };
+  /** The uncertainty budget's summary (pipeline/budgetStage.ts); absent when the budget is off. */
+  uncertainty?: UncertaintySummary;
+}
+
+/**
+ * The uncertainty budget of a run, per plane: the root-mean-square of each term (m/s) over every retrieved cell of
+ * every window, per component, and the same at one chosen cell (how it was chosen is stated), with the number of
+ * values averaged. Terms: noise, sampling, pointing, probe, timing, position, combined (retrieval/budget.ts).
+ */
+export interface UncertaintySummary {
+  terms: string[];
+  planes: {
+    plane: string;
+    allCells: Record<string, Record<string, number> & { values: number }>;
+    chosenCell: { y_m: number; second_m: number; how: string; components: Record<string, Record<string, number> & { values: number }> };
+  }[];
+  /** What the budget leaves out (README: Uncertainty). */
+  notCovered: string[];
 }

@@ -21,6 +21,7 @@ export const UNITS = {
   D: { csv: 'D', cf: '1', text: 'rotor diameters' },
   kw: { csv: 'kw', cf: 'kW', text: 'kW' },
   m4s2: { csv: 'm4s2', cf: 'm4 s-2', text: 'm⁴/s²' },
+  m2s2: { csv: 'm2s2', cf: 'm2 s-2', text: 'm²/s²' },
   db: { csv: 'db', cf: 'dB', text: 'dB' },
   one: { csv: '', cf: '1', text: '1 (dimensionless)' },
   count: { csv: '', cf: '1', text: 'count' },

@@ -39,6 +39,8 @@ export interface ReportExtras {
   planSummary?: { title?: string; items: [string, string][]; tables?: ReportTable[]; notes?: string[] };
   /** Sections of the single-instrument geometries (profiles, nacelle instruments, wake tracking). */
   geometry?: ReportSection[];
+  /** The uncertainty budget (pipeline/budgetStage.ts). */
+  uncertainty?: ReportSection;
 }
 
 /** A titled section: label/value pairs, tables and notes. */
@@ -116,6 +118,14 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
         (p.tables ?? []).map((t) => tableHtml(t)).join('\n') +
         (p.notes?.length ? `<ul class="note">${p.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : '') +
         (planImages.length ? `<h3>Planner maps</h3>${galleryHtml(planImages)}` : ''));
+  }
+
+  if (extras.uncertainty) {
+    const u = extras.uncertainty;
+    section('uncertainty', u.title,
+      `<dl class="facts">${u.items.map(([a, b]) => `<dt>${esc(a)}</dt><dd>${esc(b)}</dd>`).join('')}</dl>` +
+        (u.tables ?? []).map((t) => tableHtml(t)).join('\n') +
+        (u.notes?.length ? `<ul class="note">${u.notes.map((x) => `<li>${esc(x)}</li>`).join('')}</ul>` : ''));
   }
 
   (extras.geometry ?? []).forEach((p, k) => section(`geometry-${k}`, p.title,

@@ -6,6 +6,14 @@
  *
  * n: kept samples; sv, sv2: sum of v_r (m/s) and of v_r^2; sx, sy, sz: sum of the rotor-frame beam unit vectors;
  * spy, spz: sum of the in-plane positions (m).
+ *
+ * Uncertainty-budget sums (retrieval/sampling.ts computes them per window; zero when the budget is off), additive
+ * over windows so that an ensemble's budget is that of its pooled windows: st, sum of n (mean sample time - window
+ * middle) (s); se, sum of n e with e the key's trend error (m/s, signed: trend times the time offset); vb, sum of
+ * n^2 u_b^2 with u_b^2 the key's sampling variance beyond s^2 / n (m^2/s^2; the ensemble's is vb / n^2, windows being
+ * independent); vt, vn: sums of n s_t^2 and n s_n^2 (turbulence and noise variance of v_r, m^2/s^2) over the windows
+ * where they were estimated, nb the sum of their n; ta: sum of n tau (integral time scale, s) over the same windows;
+ * ne: sum of the effective sample counts.
  */
 export interface CellStats {
   keyCount: number;
@@ -18,11 +26,25 @@ export interface CellStats {
   sz: Float64Array;
   spy: Float64Array;
   spz: Float64Array;
+  st: Float64Array;
+  se: Float64Array;
+  vb: Float64Array;
+  vt: Float64Array;
+  vn: Float64Array;
+  nb: Float64Array;
+  ta: Float64Array;
+  ne: Float64Array;
 }
+
+/** The additive per-key arrays of CellStats, in one list (merging and serialising take every one). */
+export const CELL_STATS_SUMS = ['n', 'sv', 'sv2', 'sx', 'sy', 'sz', 'spy', 'spz', 'st', 'se', 'vb', 'vt', 'vn', 'nb', 'ta', 'ne'] as const;
 
 export function emptyCellStats(keyCount: number, instrumentCount: number): CellStats {
   const z = () => new Float64Array(keyCount);
-  return { keyCount, instrumentCount, n: z(), sv: z(), sv2: z(), sx: z(), sy: z(), sz: z(), spy: z(), spz: z() };
+  return {
+    keyCount, instrumentCount, n: z(), sv: z(), sv2: z(), sx: z(), sy: z(), sz: z(), spy: z(), spz: z(),
+    st: z(), se: z(), vb: z(), vt: z(), vn: z(), nb: z(), ta: z(), ne: z(),
+  };
 }
 
 /** into += from (same key space). */
@@ -36,6 +58,9 @@ export function mergeCellStats(into: CellStats, from: CellStats): void {
     into.sv[k] += from.sv[k]; into.sv2[k] += from.sv2[k];
     into.sx[k] += from.sx[k]; into.sy[k] += from.sy[k]; into.sz[k] += from.sz[k];
     into.spy[k] += from.spy[k]; into.spz[k] += from.spz[k];
+    into.st[k] += from.st[k]; into.se[k] += from.se[k]; into.vb[k] += from.vb[k];
+    into.vt[k] += from.vt[k]; into.vn[k] += from.vn[k]; into.nb[k] += from.nb[k];
+    into.ta[k] += from.ta[k]; into.ne[k] += from.ne[k];
   }
 }
 

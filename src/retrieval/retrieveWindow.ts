@@ -26,6 +26,7 @@ import { robustFilter } from './robustFilter.ts';
 import { DEFAULT_SIGMA_FLOOR_MS, W_ZERO_ASSUMPTION, type PlaneGrid, type RetrievalSettings } from './settings.ts';
 import { emptyCellSolution, solve2, solve3, type CellSolution } from './solveCell.ts';
 import { MaskReason, type FieldResult, type WindowInfo } from './types.ts';
+import { fieldBudget, type PlaneCells } from './fieldBudget.ts';
 
 export type { PlaneGrid, RetrievalSettings } from './settings.ts';
 
@@ -53,7 +54,7 @@ export function keyCountOf(planes: PlaneGrid[], instrumentCount: number): number
  * in-plane position). Throws RangeError for a sample whose plane is not among `planes`, whose cell is outside its
  * grid or whose instrument index is >= instrumentCount (an upstream bug, not a data problem).
  */
-export function accumulateSamples(samples: WindowSamples, planes: PlaneGrid[], instrumentCount: number): CellAccumulator {
+export function accumulateSamples(samples: WindowSamples, planes: PlaneGrid[], instrumentCount: number, tMid = NaN): CellAccumulator {
   const I = instrumentCount;
   const off = cellOffsets(planes);
   let maxIndex = 0;
@@ -61,6 +62,7 @@ export function accumulateSamples(samples: WindowSamples, planes: PlaneGrid[], i
   const planePos = new Int32Array(maxIndex + 1).fill(-1);
   planes.forEach((p, j) => (planePos[p.spec.index] = j));
   const acc = new CellAccumulator(off[planes.length] * I, I);
+  const time = samples.time;
   for (let i = 0; i < samples.length; i++) {
     const p = samples.plane[i];
     const j = p < planePos.length ? planePos[p] : -1;
@@ -69,7 +71,7 @@ export function accumulateSamples(samples: WindowSamples, planes: PlaneGrid[], i
     if (c >= off[j + 1] - off[j]) throw new RangeError(`sample ${i}: cell ${c} outside plane ${p}'s grid`);
     const ins = samples.instrument[i];
     if (ins >= I) throw new RangeError(`sample ${i}: instrument ${ins} >= instrumentCount ${I}`);
-    acc.add((off[j] + c) * I + ins, samples.vr[i], samples.nx[i], samples.ny[i], samples.nz[i], samples.py[i], samples.pz[i]);
+    acc.add((off[j] + c) * I + ins, samples.vr[i], samples.nx[i], samples.ny[i], samples.nz[i], samples.py[i], samples.pz[i], time ? time[i] : NaN, tMid);
   }
   return acc;
 }
@@ -146,8 +148,8 @@ function store(f: FieldResult, c: number, s: CellSolution): void {
 export function retrieveWindow(
   samples: WindowSamples, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
 ): WindowRetrieval {
-  const acc = accumulateSamples(samples, planes, settings.instrumentCount);
-  const { stats, outliers } = robustFilter(acc, settings.robust);
+  const acc = accumulateSamples(samples, planes, settings.instrumentCount, (window.start_s + window.end_s) / 2);
+  const { stats, outliers } = robustFilter(acc, settings.robust, window);
   return { fields: retrieveStats(stats, planes, window, direction_deg, settings), outliers };
 }
 
@@ -173,11 +175,13 @@ export function retrieveStats(
   const posY = new Float64Array(I), posZ = new Float64Array(I);
   const sol = emptyCellSolution();
   const fields: FieldResult[] = [];
+  const budget = settings.budget?.enabled ? settings.budget : undefined;
 
   for (let j = 0; j < planes.length; j++) {
     const f = emptyField(planes[j], window, direction_deg);
     const nc = planes[j].grid.ny * planes[j].grid.nz;
     let usedWZero = false;
+    const cells: PlaneCells | undefined = budget ? { K: new Uint8Array(nc), keys: new Int32Array(nc * I), I } : undefined;
     for (let c = 0; c < nc; c++) {
       const base = (cellOffset[j] + c) * I;
       let present = 0, K = 0, used = 0;
@@ -195,11 +199,13 @@ export function retrieveStats(
         wts[K] = n / (v > floor2 ? v : floor2);
         used += n;
         posY[K] = st.py[k]; posZ[K] = st.pz[k];
+        if (cells) cells.keys[c * I + K] = k;
         K++;
       }
       if (present === 0) continue; // stays no_data
       f.samples[c] = used;
       f.instruments[c] = K;
+      if (cells) cells.K[c] = K;
       if (K >= 3) {
         solve3(rows, geom, m, wts, K, settings.maxAmplification, sol);
       } else if (K === 2 && wZero) {
@@ -216,6 +222,10 @@ export function retrieveStats(
       if (Number.isFinite(sol.u)) effectivePosition(rows, wts, posY, posZ, K, K >= 3 ? 3 : 2, f, c);
     }
     if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
+    if (budget && cells) {
+      const spec = planes[j].spec;
+      fieldBudget(f, cells, st, stats, budget, floor2, spec.orientation === 'cross' ? spec.x_m : spec.z_m);
+    }
     fields.push(f);
   }
   return fields;

@@ -15,11 +15,15 @@
  * within delta of the exact ones, and only samples within about (1 + 1.5 k) delta of the exact limit can be decided
  * differently (test/retrieval-robust-hist.test.ts). The kept sums are the exact sums minus the rejected samples'
  * bin centres (their beam vectors and positions taken as the key's mean), so with nothing rejected they are exact.
+ *
+ * With the window's bounds given, the key's sampling statistics (sampling.ts) fill the budget sums of CellStats:
+ * the sampling variance beyond s^2 / n, the turbulence and noise variances, the time offset and trend error.
  */
 import { F, MAX_SAMPLES_PER_KEY, POS_SCALE, DIR_SCALE, SQ_SPLIT, STRIDE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
 import { emptyHistogramStats, robustStats } from '../qc/vrHistogram.ts';
 import { emptyCellStats, type CellStats } from './cellStats.ts';
 import type { RobustSettings } from './settings.ts';
+import { emptyKeySampling, instrumentSampling, keySampling, type InstrumentSampling, type KeySampling } from './sampling.ts';
 
 export interface RobustResult {
   /** Kept-sample statistics per key. */
@@ -29,12 +33,19 @@ export interface RobustResult {
 }
 
 /** Apply the filter to every key of a finished window's accumulator. */
-export function robustFilter(acc: CellAccumulator, robust: RobustSettings): RobustResult {
+export function robustFilter(acc: CellAccumulator, robust: RobustSettings, window?: { start_s: number; end_s: number }): RobustResult {
   const I = acc.instrumentCount;
   const stats = emptyCellStats(acc.keyCount, I);
   const outliers = new Float64Array(I);
   const hs = emptyHistogramStats();
   const minN = Math.max(3, robust.minSamples);
+  const ks = emptyKeySampling();
+  const budget = window !== undefined && acc.budget;
+  const tMid = window ? (window.start_s + window.end_s) / 2 : NaN;
+  const halfT = window ? (window.end_s - window.start_s) / 2 : NaN;
+  if (budget) acc.closeRays();
+  // Per slot: squared deviations of the rejected samples from the kept mean (m^2/s^2), for the budget's sums.
+  const dev2 = budget ? new Float64Array(acc.slots) : undefined;
   for (let s = 0; s < acc.slots; s++) {
     const key = acc.keyOf[s];
     const m = acc.sums, o = s * STRIDE;
@@ -58,6 +69,47 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings): Robu
     stats.spy[key] = (m[o + F.spy] / POS_SCALE) * frac;
     stats.spz[key] = (m[o + F.spz] / POS_SCALE) * frac;
     outliers[key % I] += rej;
+    if (dev2 && rej > 0 && kept > 0) {
+      const mu = stats.sv[key] / kept;
+      dev2[s] = Math.max(0, rss - 2 * mu * rs + rej * mu * mu);
+    }
+  }
+  if (budget && dev2) {
+    const insSampling = instrumentSampling(acc, dev2);
+    for (let s = 0; s < acc.slots; s++) {
+      const key = acc.keyOf[s];
+      const kept = stats.n[key];
+      if (kept < 2) continue;
+      const is = insSampling[key % I];
+      budgetSums(stats, key, kept, keySampling(acc, s, is, ks), is, tMid, halfT);
+    }
   }
   return { stats, outliers };
+}
+
+/** The budget sums of one key (CellStats docblock) from its sampling statistics and its kept samples. */
+function budgetSums(stats: CellStats, key: number, n: number, ks: KeySampling, is: InstrumentSampling, tMid: number, halfT: number): void {
+  const sv = stats.sv[key];
+  const s2 = Math.max(0, stats.sv2[key] - (sv * sv) / n) / (n - 1);
+  const vm = (ks.inflation * s2) / n;
+  const ub2 = vm - s2 / n;
+  stats.vb[key] = n * n * ub2;
+  stats.ne[key] = n / ks.inflation;
+  if (is.estimated) {
+    // Turbulence variance of v_r: the instrument's turbulence share of the kept samples' variance (noise removed).
+    stats.vt[key] = n * is.phi * s2;
+    stats.vn[key] = n * (1 - is.phi) * s2;
+    stats.ta[key] = n * is.tau_s;
+    stats.nb[key] = n;
+  }
+  const dt = ks.meanTime_s - tMid;
+  if (!Number.isFinite(dt)) return;
+  stats.st[key] = n * dt;
+  if (ks.nLate > 0 && ks.nEarly > 0 && halfT > 0) {
+    // Trend of v_r and its noise (sampling.ts); the squared trend minus its variance, floored at zero.
+    const b = (ks.vLate - ks.vEarly) / halfT;
+    const varB = (vm * n / ks.nLate + vm * n / ks.nEarly) / (halfT * halfT);
+    const b2 = Math.max(0, b * b - varB);
+    stats.se[key] = n * Math.sign(b) * Math.sqrt(b2) * dt;
+  }
 }

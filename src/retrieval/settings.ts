@@ -4,6 +4,7 @@
  */
 import type { PlaneSpec } from '../campaign/types.ts';
 import type { GridSpec } from '../grid/grid.ts';
+import type { BudgetSettings } from './budget.ts';
 
 export interface RobustSettings {
   /** Apply the median/MAD filter. @default true */
@@ -31,6 +32,8 @@ export interface RetrievalSettings {
    * @default 0.01
    */
   sigmaFloor_ms?: number;
+  /** The uncertainty budget (retrieval/budget.ts); absent or disabled: none. */
+  budget?: BudgetSettings;
 }
 
 export const DEFAULT_SIGMA_FLOOR_MS = 0.01;

@@ -3,6 +3,7 @@
  * components in the rotor frame (u streamwise, v to the left looking downstream, w up), m/s.
  */
 import type { GridSpec } from '../grid/grid.ts';
+import type { FieldBudget } from './budget.ts';
 
 /** Why a component is not retrieved in a cell. 0 = valid. */
 export const MaskReason = {
@@ -19,6 +20,8 @@ export const MaskReason = {
   singular: 5,
   /** Not retrieved: assumed zero (two-instrument cell with the w-zero assumption). */
   assumedZero: 6,
+  /** The component's combined standard uncertainty (uncertainty budget) exceeds uncertainty.maxCombined_ms. */
+  uncertainty: 7,
 } as const;
 export type MaskReasonCode = (typeof MaskReason)[keyof typeof MaskReason];
 export const maskReasonName: Record<number, string> = {
@@ -29,6 +32,7 @@ export const maskReasonName: Record<number, string> = {
   4: 'amplification_above_threshold',
   5: 'singular_geometry',
   6: 'assumed_zero',
+  7: 'uncertainty_above_threshold',
 };
 
 export interface WindowInfo {
@@ -92,4 +96,6 @@ export interface FieldResult {
   maskW: Uint8Array;
   /** Assumptions stated for this field (for example "w = 0 in two-instrument cells"). */
   assumptions: string[];
+  /** The uncertainty budget and turbulence statistics (retrieval/budget.ts); absent when the budget is off. */
+  budget?: FieldBudget;
 }

@@ -22,6 +22,7 @@ export const simSettingsSchema = z
     wakeLateralOffset_m: finite().default(0).describe('lateral wake-centre offset at zero yaw, metres (e.g. from veer)'),
     swirl_ms: finite().min(0).default(0.5).describe('peak tangential swirl speed at 3 D, m/s, decaying as 3D/x'),
     turbulence_ms: finite().min(0).default(0.35).describe('per-ray random velocity fluctuation (each component), m/s'),
+    turbulenceTimeScale_s: finite().min(0).default(0).describe('integral time scale of the fluctuation, s: 0 draws it independently for every gate; above 0 it is an Ornstein-Uhlenbeck process in time per instrument, shared by the gates of a ray; default 0'),
     rayRate_hz: finite().positive().default(4).describe('rays per second while dwelling on a point'),
     dwell_s: finite().positive().default(1).describe('dwell per scan point, s'),
     gatesBefore: z.number().int().min(0).default(3).describe('range gates recorded before the target gate'),

@@ -189,6 +189,18 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
     const wSum = wts.reduce((a, b) => a + b, 0);
     let n = 0;
     let t = tStart + rnd() * 2;
+    // Ornstein-Uhlenbeck fluctuation (simulation.turbulenceTimeScale_s > 0): exact discretisation
+    // x(t + dt) = x(t) e^(-dt/tau) + sqrt(1 - e^(-2 dt/tau)) N(0, 1), unit variance, autocorrelation e^(-|dt|/tau).
+    const ouTau = s.turbulenceTimeScale_s;
+    let ouX = ouTau > 0 ? gaussian(rnd) : 0, ouT = NaN;
+    const ouAt = (time: number) => {
+      if (ouT === ouT) {
+        const rho = Math.exp(-Math.abs(time - ouT) / ouTau);
+        ouX = ouX * rho + Math.sqrt(1 - rho * rho) * gaussian(rnd);
+      }
+      ouT = time;
+      return ouX;
+    };
     let buf = '';
     const emit = (time: number, az: number, el: number, range: number, vr: number, cnr: number) => {
       const vals = [
@@ -221,6 +233,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
         return dirFromRotor(frame, u);
       };
       const lowAerosol = rnd() < 0.015;
+      const rayTurb = ouTau > 0 ? s.turbulence_ms * ouAt(time) : NaN;
       for (const rTrue of ranges) {
         if (rTrue <= 20) continue;
         const p = beamPoint(origin, nSite, rTrue);
@@ -236,7 +249,7 @@ export async function simulateCampaign(c: Campaign): Promise<SimulationSummary> 
             const us = velocity(pk);
             acc += wts[k] * (nSite[0] * us[0] + nSite[1] * us[1] + nSite[2] * us[2]);
           }
-          const turb = s.turbulence_ms * gaussian(rnd);
+          const turb = ouTau > 0 ? rayTurb : s.turbulence_ms * gaussian(rnd);
           cnr = lowAerosol ? -30 + 2 * gaussian(rnd) : -4 - 30 * Math.log10(rTrue / cnrRef_m) + 1.5 * gaussian(rnd);
           const sigma = s.noise_ms * Math.max(1, Math.pow(10, (-15 - cnr) / 20));
           vr = acc / wSum + turb + sigma * gaussian(rnd);

@@ -54,6 +54,7 @@ function wakeRows(rows: WakePlaneWindow[], ensemble: boolean): Cell[][] {
       r.diskCentre.y_m, r.diskCentre.z_m, r.centroid.y_m, r.centroid.z_m, r.disagreement_m, r.disagreement_D,
       r.rews.axis_ms, r.rews.centre_ms, r.rews.axisCoverage, r.rews.centreCoverage, r.rews.segments,
       r.hubDeficit, r.centreDeficit, r.momentumDeficit_m4s2, r.momentumRatio, r.ct, r.flag, r.reason,
+      r.addedTurbulence?.wake, r.addedTurbulence?.ambient, r.addedTurbulence?.added,
     ];
   });
 }

@@ -26,6 +26,7 @@ import { horizontalTrack } from './horizontalTrack.ts';
 import { thrustCoefficientAt } from '../campaign/thrust.ts';
 import { windowYaw } from './yawOffset.ts';
 import { median, quantile } from './stats.ts';
+import { addedTurbulence } from './addedTurbulence.ts';
 
 export type InflowSpec =
   | { kind: 'plane'; law: 'power' | 'log' }
@@ -213,6 +214,7 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     horizontal: cross ? horizontalCut(g, cut, cutZ, fit) : horizontalCut(g, cut, g.z0 + Math.floor(g.nz / 2) * g.dz, null),
     vertical: cross ? verticalCut(g, cut, cutY, fit) : verticalCut(g, cut, 0, null),
     flag, reason,
+    addedTurbulence: addedTurbulence(f.budget?.turbulence.tiU, def.deficit, hasWake ? maxDeficit : NaN, o.minDeficit),
   };
   if (!cross) row.horizontalTrack = horizontalTrack(g, def.deficit, o.minDeficit);
   if (cross && disk.atEdge && flag === 'ok') row.reason = 'note: the disk estimator found its minimum at the edge of its search range';

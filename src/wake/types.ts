@@ -178,6 +178,8 @@ export interface WakePlaneWindow {
   /** Horizontal planes only: per downstream row, 1D Gaussian lateral fit. */
   horizontalTrack?: { x_m: number[]; yc_m: number[]; syc_m: number[]; sigmaY_m: number[]; amplitude: number[] };
   flag: WakeFlag;
+  /** Turbulence intensity of u in the wake, beside it (ambient) and added (wake/addedTurbulence.ts); NaN without the budget. */
+  addedTurbulence?: { wake: number; ambient: number; added: number; wakeCells: number; ambientCells: number };
   /** Human-readable reason ('' when ok). */
   reason: string;
   /**

@@ -24,16 +24,27 @@ import { parseTimeField } from '../../src/io/sampleRow.ts';
 import { mulberry32 } from '../../src/math/random.ts';
 import { runCampaign } from '../../src/pipeline/run.ts';
 import { freshCampaign } from './helpers.ts';
+import { fieldTableColumns } from '../../src/pipeline/fieldTable.ts';
+import { BUDGET_COLUMNS } from '../../src/records/tables/fields.ts';
 
 const CASES = 16;
 const SEED = 20261202;
 
 type Tables = Map<string, Map<string, string>>; // plane|window_start -> y|z -> row text
 
+/**
+ * The columns compared: all but the uncertainty budget's and turbulence statistics' (records/tables/fields.ts
+ * BUDGET_COLUMNS, at the end of each row). Those pool each instrument's statistics over all its cells in a window
+ * (the sampling inflation, the time scale) and take gradients from the neighbouring cells, so damage to rows of
+ * another cell may change them by design; every other column depends on the cell's own samples only.
+ */
+const LOCAL_COLUMNS = fieldTableColumns('cross').length - BUDGET_COLUMNS.length;
+
 function tablesOf(runDir: string, files: string[]): Tables {
   const out: Tables = new Map();
   for (const f of files) {
-    const [, ...rows] = readFileSync(join(runDir, f), 'utf8').trim().split('\n');
+    const [, ...full] = readFileSync(join(runDir, f), 'utf8').trim().split('\n');
+    const rows = full.map((r) => r.split(',').slice(0, LOCAL_COLUMNS).join(','));
     for (const r of rows) {
       const c = r.split(',');
       const key = `${c[0]}|${c[1]}`;

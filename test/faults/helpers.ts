@@ -11,6 +11,8 @@ import { loadCampaignFile } from '../../src/campaign/load.ts';
 import { main } from '../../src/cli/main.ts';
 import { simulateCampaign } from '../../src/sim/simulate.ts';
 import { tinyCampaignObject } from '../helpers/tinyCampaign.ts';
+import { fieldTableColumns } from '../../src/pipeline/fieldTable.ts';
+import { BUDGET_COLUMNS } from '../../src/records/tables/fields.ts';
 
 export const HEADER = 'time,instrument,azimuth_deg,elevation_deg,range_m,radial_velocity_ms,cnr_db';
 
@@ -107,6 +109,17 @@ export function fieldTables(runDir: string): Map<string, string> {
     out.set(`${first[0]}|${first[1]}`, text);
   }
   return out;
+}
+
+/**
+ * Field tables without the uncertainty budget's and turbulence statistics' columns (the last BUDGET_COLUMNS of each
+ * row): for comparisons where the samples are the same but arrive in another order, since the budget's lag and
+ * burst sums follow the order of each key's samples (grid/accumulator.ts), while every other column is a sum that
+ * does not depend on it.
+ */
+export function withoutBudget(tables: Map<string, string>): Map<string, string> {
+  const keep = fieldTableColumns('cross').length - BUDGET_COLUMNS.length;
+  return new Map([...tables].map(([k, text]) => [k, text.split('\n').map((l) => (l ? l.split(',').slice(0, keep).join(',') : l)).join('\n')]));
 }
 
 /** The files and folders under `dir` (recursively), with their contents, for "nothing was changed" checks. */

@@ -7,7 +7,7 @@
 import { copyFileSync, existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { HEADER, dataLines, fieldTables, freshCampaign, manifestOf, runCli, writeLines } from './helpers.ts';
+import { HEADER, dataLines, fieldTables, freshCampaign, manifestOf, runCli, withoutBudget, writeLines } from './helpers.ts';
 
 let clean: { tables: Map<string, string>; manifest: any };
 
@@ -120,7 +120,8 @@ describe('time order', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toContain(`warning: instrument a, data/a.csv: time steps back 1 time by more than 1 s (line 602; largest ${step.toFixed(1)} s at line 602); rows of windows already finished are rejected as out_of_time_order\n`);
     // the whole file is one batch, read before any window finishes: nothing is lost, the results are unchanged
-    expect(fieldTables(join(dir, 'out', 'faulty'))).toEqual(clean.tables);
+    // (the budget's lag and burst sums follow the samples' order, which the swap changed: compared without them)
+    expect(withoutBudget(fieldTables(join(dir, 'out', 'faulty')))).toEqual(withoutBudget(clean.tables));
   });
 });
 

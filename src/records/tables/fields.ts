@@ -5,7 +5,39 @@ const rotor = { frame: 'rotor' } as const;
 
 export const MASK_MEANING =
   'why the component is not retrieved in the cell, empty when it is: no_data, too_few_samples, too_few_instruments, ' +
-  'amplification_above_threshold, singular_geometry, assumed_zero (w = 0 assumed in a two-instrument cell)';
+  'amplification_above_threshold, singular_geometry, assumed_zero (w = 0 assumed in a two-instrument cell), ' +
+  'uncertainty_above_threshold (combined standard uncertainty above uncertainty.maxCombined_ms)';
+
+/** What each budget term is (retrieval/budget.ts), for the column meanings. */
+const TERM_MEANING: Record<string, string> = {
+  noise: 'radial-velocity scatter term s²/n through the weighted least squares (as if samples were independent; equals the _se column)',
+  sampling: 'turbulence sampling error of autocorrelated samples beyond the scatter term, s_t²(1/N_eff - 1/n) (Lenschow, Mann & Kristensen 1994)',
+  pointing: 'azimuth, elevation and position errors of the instruments, propagated linearly through the beam geometry',
+  probe: 'probe-volume averaging: half the weighting\'s second moment times the curvature of v_r along the beam',
+  timing: 'non-simultaneity: each instrument\'s mean sample time offset from the window middle times its radial-velocity trend',
+  position: 'the in-plane gradient times the offset of the effective position from the cell centre',
+  combined: 'combined standard uncertainty: root-sum-square of the six terms (JCGM 100:2008)',
+};
+
+/** The budget and turbulence columns, in writing order (pipeline/fieldTable.ts and fieldNetcdf.ts take them from here). */
+export const BUDGET_COLUMNS = [
+  ...(['u', 'v', 'w'] as const).flatMap((k) =>
+    ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'combined'].map((t) =>
+      col(`${k}_unc_${t}`, 'ms', SE, `standard uncertainty of ${k}, ${t === 'combined' ? '' : 'term: '}${TERM_MEANING[t]}`, rotor),
+    ),
+  ),
+  col('vr_turbulence_variance', 'm2s2', sig(3), 'radial-velocity variance with the noise variance removed (lag-0 extrapolation of the autocovariance), mean over the instruments used weighted by samples'),
+  col('vr_noise_variance', 'm2s2', sig(3), 'radial-velocity noise variance (the autocovariance\'s jump at lag 0), mean over the instruments used'),
+  col('integral_time_scale', 's', sig(3), 'integral time scale of the radial velocity from the lag correlation, mean over the instruments used'),
+  col('effective_samples', 'count', sig(3), 'effective number of independent samples, summed over the instruments used'),
+  col('u_variance', 'm2s2', sig(3), 'variance of u by the crossed-beam variance equations (covariances neglected; probe-volume filtered)', rotor),
+  col('v_variance', 'm2s2', sig(3), 'variance of v (as u_variance)', rotor),
+  col('w_variance', 'm2s2', sig(3), 'variance of w (as u_variance)', rotor),
+  col('u_variance_se', 'm2s2', SE, 'standard uncertainty of u_variance (2 s⁴/N_eff per instrument, propagated)', rotor),
+  col('v_variance_se', 'm2s2', SE, 'standard uncertainty of v_variance', rotor),
+  col('w_variance_se', 'm2s2', SE, 'standard uncertainty of w_variance', rotor),
+  col('turbulence_intensity', 'one', sig(3), 'turbulence intensity of u in the cell: sqrt(u_variance) / |u|', rotor),
+];
 
 export const fieldTable: Table = {
   id: 'field-table',
@@ -25,7 +57,7 @@ export const fieldTable: Table = {
     col('u', 'ms', byUnc('u_se_ms', 4), 'streamwise wind component (along the window wind direction), weighted least squares', rotor),
     col('v', 'ms', byUnc('v_se_ms', 4), 'lateral wind component, positive to the left looking downstream', rotor),
     col('w', 'ms', byUnc('w_se_ms', 4), 'vertical wind component, positive up', { ...rotor, standardName: 'upward_air_velocity' }),
-    col('u_se', 'ms', SE, 'standard uncertainty of u from the radial-velocity scatter and the geometry (a lower bound: samples in a window are correlated)', rotor),
+    col('u_se', 'ms', SE, 'standard uncertainty of u from the radial-velocity scatter and the geometry (the budget\'s noise term; a lower bound when samples are correlated: the combined standard uncertainty is u_unc_combined_ms)', rotor),
     col('v_se', 'ms', SE, 'standard uncertainty of v', rotor),
     col('w_se', 'ms', SE, 'standard uncertainty of w', rotor),
     col('u_amplification', 'one', sig(4), 'error amplification of u, sqrt(diag((AᵀA)⁻¹)) of the unit beam vectors (dilution of precision)', rotor),
@@ -43,5 +75,6 @@ export const fieldTable: Table = {
     col('y_eff', 'm', dec(2), 'effective lateral position of the retrieved u within the cell (instruments\' mean sample positions weighted by their share in u)', rotor),
     col('z_eff', 'm', dec(2), 'effective height of the retrieved u within the cell', { ...rotor, only: 'cross' }),
     col('x_eff', 'm', dec(2), 'effective downstream position of the retrieved u within the cell', { ...rotor, only: 'horizontal' }),
+    ...BUDGET_COLUMNS,
   ],
 };
