@@ -13,6 +13,8 @@ import type { BenchData } from './generate.ts';
 export interface BenchVariants {
   netcdfCampaign: string;
   noNetcdfOutputCampaign: string;
+  /** The CSV campaign with a fixed CNR limit (-35 dB, what the estimate gives on these data): no pre-pass. */
+  fixedCnrCampaign: string;
   /** The CSV campaign with the uncertainty budget off (uncertainty.budget: false), and the same with it on. */
   noBudgetCampaign: string;
   budgetCampaign: string;
@@ -40,9 +42,12 @@ export async function benchVariants(d: BenchData, log: (s: string) => void): Pro
   const csvDoc = parse(readFileSync(d.campaign, 'utf8')) as typeof doc;
   const noNetcdfOutputCampaign = join(d.dir, 'campaign-no-netcdf-output.yaml');
   writeFileSync(noNetcdfOutputCampaign, stringify({ ...csvDoc, name: `${doc.name}-csv-only`, output: { ...csvDoc.output, netcdf: false } }));
+  const fixedCnrCampaign = join(d.dir, 'campaign-fixed-cnr.yaml');
+  const qc = (csvDoc as { qc?: Record<string, unknown> }).qc ?? {};
+  writeFileSync(fixedCnrCampaign, stringify({ ...csvDoc, name: `${doc.name}-fixed-cnr`, qc: { ...qc, cnr_db: { ...((qc.cnr_db as object) ?? {}), min: -35 } } }));
   const noBudgetCampaign = join(d.dir, 'campaign-no-budget.yaml');
   writeFileSync(noBudgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-no-budget`, uncertainty: { budget: false } }));
   const budgetCampaign = join(d.dir, 'campaign-budget.yaml');
   writeFileSync(budgetCampaign, stringify({ ...csvDoc, name: `${doc.name}-budget`, uncertainty: { budget: true } }));
-  return { netcdfCampaign, noNetcdfOutputCampaign, noBudgetCampaign, budgetCampaign, netcdfBytes: bytes };
+  return { netcdfCampaign, noNetcdfOutputCampaign, fixedCnrCampaign, noBudgetCampaign, budgetCampaign, netcdfBytes: bytes };
 }

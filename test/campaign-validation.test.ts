@@ -23,6 +23,13 @@ describe('campaign validation errors name the key path, the rule and the value',
     ['window length zero', (c) => (c.windows = { kind: 'fixed', length_s: 0 }), /windows\.length_s/],
     ['wind direction out of range', (c) => (c.windDirection = { kind: 'fixed', deg: 400 }), /windDirection\.deg: .*(360|big)/i],
     ['CNR window inverted', (c) => (c.qc = { cnr_db: { min: 0, max: -10 } }), /qc\.cnr_db: max must be greater than min/],
+    // qc.cnr_db: the data-driven limit's keys (src/qc/cnrLimits.ts); each error names its key on one line.
+    ['CNR min neither a number nor auto', (c) => (c.qc = { cnr_db: { min: 'automatic' } }), /qc\.cnr_db\.min: .*"automatic"/],
+    ['CNR auto key misspelt', (c) => (c.qc = { cnr_db: { auto: { rowsPerInstrumnet: 5000 } } }), /qc\.cnr_db\.auto\.rowsPerInstrumnet: unknown key; did you mean "rowsPerInstrument"\?/],
+    ['CNR auto row budget too small', (c) => (c.qc = { cnr_db: { auto: { rowsPerInstrument: 10 } } }), /qc\.cnr_db\.auto\.rowsPerInstrument: .*1000.*\(got 10\)/],
+    ['CNR auto junk cost below 1', (c) => (c.qc = { cnr_db: { auto: { junkCost: 0.5 } } }), /qc\.cnr_db\.auto\.junkCost: .*1.*\(got 0\.5\)/],
+    ['CNR auto time block not positive', (c) => (c.qc = { cnr_db: { auto: { timeBlock_s: 0 } } }), /qc\.cnr_db\.auto\.timeBlock_s/],
+    ['CNR auto fallback above the ceiling', (c) => (c.qc = { cnr_db: { max: 5, auto: { fallback_db: 8 } } }), /qc\.cnr_db\.auto\.fallback_db: must be below qc\.cnr_db\.max \(got 8\)/],
     ['latitude without origin', (c) => { delete c.instruments[0].position_m; c.instruments[0].position_wgs84 = { lat_deg: 52, lon_deg: 10, alt_m: 40 }; }, /instruments\[0\]\.position_wgs84: needs site\.origin_wgs84/],
     ['name with a slash', (c) => (c.name = 'a/b'), /name: letters, digits/],
   ];
@@ -50,13 +57,23 @@ describe('campaign validation errors name the key path, the rule and the value',
 describe('defaults and resolution', () => {
   it('fills documented defaults and resolves planes in metres and paths against the campaign folder', () => {
     const c = resolveCampaign(base(), '/data/site/campaign.yaml');
-    expect(c.qc.cnr_db).toEqual({ min: -27, max: 5 });
+    // The CNR limit is estimated from the data by default (auto); the documented defaults of its settings.
+    expect(c.qc.cnr_db).toEqual({
+      min: 'auto', max: 5,
+      auto: { rowsPerInstrument: 15000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 },
+    });
     expect(c.qc.robust).toEqual({ enabled: true, k: 3.5, minSamples: 5 });
     expect(c.retrieval.maxAmplification).toBe(3);
     expect(c.instruments[0].kind).toBe('pulsed');
     expect(c.instruments[2].calibration).toEqual({ heading_deg: 1.5, pitch_deg: 0, roll_deg: 0, rangeOffset_m: 0 });
     expect(c.planes[0].x_m).toBe(600); // 5 rotor diameters of 120 m
     expect(c.instruments[0].files[0]).toBe('/data/site/data/a.csv');
+  });
+
+  it('a fixed CNR limit keeps working as before (qc.cnr_db.min a number)', () => {
+    const c = base();
+    c.qc = { cnr_db: { min: -24, max: 3 } };
+    expect(resolveCampaign(c, 'x.yaml').qc.cnr_db).toMatchObject({ min: -24, max: 3 });
   });
 
   it('places an instrument given in WGS84 in the site frame', () => {

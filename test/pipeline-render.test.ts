@@ -93,6 +93,8 @@ describe('wakeplane render', () => {
     expect(names).toContain('images/p5_panels.svg');
     expect(names).toContain('images/summary_deficit.png');
     expect(names.some((p) => /_w\d+_/.test(p))).toBe(false);
+    // The CNR limits were estimated (the default): their two figures, SVG and PNG.
+    for (const f of ['images/qc_cnr_inconsistent', 'images/qc_cnr_scatter']) for (const e of ['svg', 'png']) expect(names).toContain(`${f}.${e}`);
   });
 
   it('redraws figures and report from the tables with the sample files gone, on request with single windows', async () => {
@@ -112,6 +114,9 @@ describe('wakeplane render', () => {
     expect(r.images).toBe(names.filter((p) => p.endsWith('.svg')).length);
     const html = readFileSync(join(runDir, 'report.html'), 'utf8');
     expect(html).toContain('src="images/p5_w1_u_norm.svg"');
+    // The CNR figures are drawn again from the evidence in the manifest (no sample read), and kept.
+    expect(names).toContain('images/qc_cnr_inconsistent.svg');
+    expect(html).toContain('src="images/qc_cnr_inconsistent.svg"');
     expect(html).toContain('redone by <code>wakeplane render</code>');
     // Rendering again without single windows removes the files it no longer draws (only images it listed).
     const again = await renderRunFolder(runDir, { windowImages: 'none' });

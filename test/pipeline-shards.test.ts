@@ -274,6 +274,12 @@ describe('sharded runs merge exactly', () => {
       await expect(runShard(c, { from_s: -Infinity, to_s: Infinity }, notes)).rejects.toThrow(`${notes}: exists and is not a wakeplane partial result; left alone. Choose another --partial file`);
       expect(readFileSync(notes, 'utf8')).toBe('mine');
     });
+    it('a partial read with other CNR limits than the campaign\'s data give (the files changed since)', async () => {
+      const odd = join(dir, 'errs', 'odd-cnr.wpart');
+      await runShard(c, { from_s: -Infinity, to_s: Infinity }, odd, { cnrMin_db: new Float64Array(c.instruments.length).fill(-99) });
+      await expect(merge([odd])).rejects.toThrow(new RegExp(`^${odd.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}: read with other CNR limits \\(-99, -99, -99 dB\\) than this campaign's data give now`));
+      noOutput();
+    });
     it('a partial given twice is a duplicate', async () => {
       await expect(merge([parts[0], parts[1], parts[2], parts[1]])).rejects.toThrow(`${parts[1]}: duplicate of ${parts[1]} (the same shard twice)`);
       noOutput();
@@ -287,7 +293,7 @@ describe('sharded runs merge exactly', () => {
     it('another campaign, other settings, another version, an unfinished or foreign file', async () => {
       const other = { ...c, name: 'another-campaign' };
       await expect(merge(parts, other)).rejects.toThrow(`${parts[0]}: partial result of campaign "tiny-test", not "another-campaign"`);
-      const changed = { ...c, qc: { ...c.qc, cnr_db: { ...c.qc.cnr_db, min: c.qc.cnr_db.min - 1 } } };
+      const changed = { ...c, qc: { ...c.qc, radialVelocityLimit_ms: c.qc.radialVelocityLimit_ms - 1 } };
       await expect(merge(parts, changed)).rejects.toThrow(`${parts[0]}: partial result of campaign "tiny-test" with other settings`);
       // Another version: the header's version field rewritten in a copy (same length, so the offsets stay valid).
       const old = join(dir, 'errs', 'old.wpart');

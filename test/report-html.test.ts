@@ -52,6 +52,28 @@ describe('report HTML (pure)', () => {
     expect(html).toContain('The accounting balances for every instrument.');
   });
 
+  it('shows each instrument\'s CNR limit with how it was chosen, and the CNR figures beside it (not among the others)', () => {
+    const m = fixtureManifest(campaign, [...outputs,
+      { kind: 'image', path: 'images/qc_cnr_inconsistent.svg', description: 'share of inconsistent samples against CNR' },
+      { kind: 'image', path: 'images/qc_cnr_inconsistent.png', description: 'share of inconsistent samples against CNR' }]);
+    m.cnrLimits = {
+      mode: 'mixed',
+      perInstrument: {
+        'lid-a': { min_db: -23, max_db: 5, status: 'break', note: `estimated -23 dB ${EVIL}`, rowsRead: 5000, referenced: 4800, scatter_ms: 0.512 },
+        'lid-b': { min_db: -27, max_db: 5, status: 'fixed', note: 'fixed limit -27 dB (instruments[1].cnrMin_db)' },
+      },
+    };
+    const html = reportHtml(m);
+    const text = bodyText(html);
+    expect(text).toMatch(/lid-a\s+-23\.0\s+break\s+5\u202f000\s+4\u202f800\s+0\.51\s+estimated -23 dB/);
+    expect(text).toMatch(/lid-b\s+-27\.0\s+fixed\s+fixed limit -27 dB \(instruments\[1\]\.cnrMin_db\)/);
+    expect(html.toLowerCase()).not.toContain('<script'); // the note is escaped
+    // The figure sits in the quality-control section, once.
+    const samples = html.slice(html.indexOf('<section id="samples">'), html.indexOf('</section>', html.indexOf('<section id="samples">')));
+    expect(samples).toContain('images/qc_cnr_inconsistent.svg');
+    expect(html.split('src="images/qc_cnr_inconsistent.svg"').length - 1).toBe(1);
+  });
+
   it('flags an accounting that does not balance', () => {
     const m = fixtureManifest(campaign, outputs);
     m.samples.perInstrument['lid-a'].accepted = 901;

@@ -129,6 +129,7 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       files: ins.files.map(abs),
       columns: ins.columns,
       radialVelocitySign: ins.radialVelocitySign,
+      ...(ins.cnrMin_db !== undefined ? { cnrMin_db: ins.cnrMin_db } : {}),
       scan: ins.scan,
       role: ins.role,
       beamFrame,
@@ -172,7 +173,13 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
     const nz = Math.round((p.second.max - p.second.min) / p.cell_m[1]);
     if (ny * nz > 1_000_000) bad(['planes', p.index, 'cell_m'], 'more than 1e6 cells in one plane; use larger cells', p.cell_m);
   }
-  if (c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
+  c.instruments.forEach((ins, k) => {
+    if (typeof ins.cnrMin_db === 'number' && ins.cnrMin_db >= c.qc.cnr_db.max) bad(['instruments', k, 'cnrMin_db'], 'must be below qc.cnr_db.max', ins.cnrMin_db);
+  });
+  if (typeof c.qc.cnr_db.min === 'number' && c.qc.cnr_db.max <= c.qc.cnr_db.min) bad(['qc', 'cnr_db'], 'max must be greater than min', c.qc.cnr_db);
+
+  if (c.qc.cnr_db.auto.withoutEvidence_db >= c.qc.cnr_db.max) bad(['qc', 'cnr_db', 'auto', 'withoutEvidence_db'], 'must be below qc.cnr_db.max', c.qc.cnr_db.auto.withoutEvidence_db);
+  if (c.qc.cnr_db.auto.fallback_db >= c.qc.cnr_db.max) bad(['qc', 'cnr_db', 'auto', 'fallback_db'], 'must be below qc.cnr_db.max', c.qc.cnr_db.auto.fallback_db);
 
   const tSeries = segmentTurbine(c, turbines, bad)?.series;
   if (c.power) {

@@ -116,6 +116,10 @@ const instrumentSchema = z
       .strict()
       .default({ dwell_s: 1, slewRate_degs: 30 })
       .describe('scanner timing for the planner'),
+    cnrMin_db: z
+      .union([finite(), z.literal('auto')])
+      .optional()
+      .describe('this instrument\'s lower CNR limit, dB, or "auto" (estimated from its data); default: qc.cnr_db.min'),
     // Single-instrument geometries (geometrySchema.ts).
     role: roleSchema,
     beamFrame: beamFrameSchema,
@@ -159,6 +163,26 @@ const planeSchema = z
       .enum(['base', 'terrain', 'site'])
       .default('base')
       .describe('what z (and a horizontal plane\'s z_m) is measured from: "base" the frame origin (tower base; above ground on flat sites), "terrain" the ground under each point (terrain-following), "site" the site-frame up axis (altitude relative to the site origin); default base'),
+  })
+  .strict();
+
+/** Defaults of qc.cnr_db.auto (src/qc/cnrLimit.ts and cnrEvidence.ts explain each). */
+export const CNR_AUTO_DEFAULT = { rowsPerInstrument: 15000, timeBlock_s: 600, junkCost: 10, minSamples: 2000, fallback_db: -35, withoutEvidence_db: -27 };
+
+const cnrAutoSchema = z
+  .object({
+    rowsPerInstrument: z
+      .number()
+      .int()
+      .min(1000)
+      .max(10000000)
+      .default(CNR_AUTO_DEFAULT.rowsPerInstrument)
+      .describe('rows read per instrument for the estimate, the budget shared equally among its files: from a plain CSV file in 8 evenly spaced slices, from a compressed or NetCDF file its first rows; default 15000'),
+    timeBlock_s: finite().positive().default(CNR_AUTO_DEFAULT.timeBlock_s).describe('time block of the local reference (samples of one place and direction within a block are neighbours), s; default 600'),
+    junkCost: finite().min(1).default(CNR_AUTO_DEFAULT.junkCost).describe('cost of accepting one junk sample, in good samples rejected; default 10'),
+    minSamples: z.number().int().min(100).default(CNR_AUTO_DEFAULT.minSamples).describe('fewest samples with a local reference for an estimate; fewer: withoutEvidence_db is used and the run says so; default 2000'),
+    fallback_db: finite().default(CNR_AUTO_DEFAULT.fallback_db).describe('limit when the data show no break (all samples consistent), dB; the lowest CNR seen is used when lower; default -35 (permissive)'),
+    withoutEvidence_db: finite().default(CNR_AUTO_DEFAULT.withoutEvidence_db).describe('limit of an instrument with too few samples for an estimate, dB; default -27 (common practice for pulsed lidars)'),
   })
   .strict();
 
@@ -331,11 +355,15 @@ export const campaignSchema = z
       .object({
         cnr_db: z
           .object({
-            min: finite().default(-27).describe('samples below are rejected as noise, dB; default -27 (common practice for pulsed lidars)'),
+            min: z
+              .union([finite(), z.literal('auto')])
+              .default('auto')
+              .describe('samples below are rejected as noise, dB, or "auto": estimated per instrument from the data before the run (src/qc/cnrLimit.ts: where the share of samples inconsistent with their neighbours grows as the signal weakens); default auto. A number is one fixed limit for every instrument (-27 is common practice for pulsed lidars)'),
             max: finite().default(5).describe('samples above are rejected as hard-target returns, dB; default 5'),
+            auto: cnrAutoSchema.default(CNR_AUTO_DEFAULT).describe('settings of the estimated limit (min: auto)'),
           })
           .strict()
-          .default({ min: -27, max: 5 }),
+          .default({ min: 'auto', max: 5, auto: CNR_AUTO_DEFAULT }),
         radialVelocityLimit_ms: finite().positive().max(64).default(35).describe('|radial velocity| above is rejected, m/s (at most 64); default 35'),
         groundClearance_m: finite().min(0).default(2).describe('measurement points lower than this above ground are rejected, metres; default 2'),
         dropDuplicates: z
@@ -357,7 +385,7 @@ export const campaignSchema = z
       })
       .strict()
       .default({
-        cnr_db: { min: -27, max: 5 },
+        cnr_db: { min: 'auto', max: 5, auto: CNR_AUTO_DEFAULT },
         radialVelocityLimit_ms: 35,
         groundClearance_m: 2,
         dropDuplicates: false,

@@ -34,6 +34,8 @@ export interface Instrument {
   files: string[];
   columns: ColumnMap;
   radialVelocitySign: 'away' | 'toward';
+  /** This instrument's lower CNR limit (dB, or 'auto'), overriding qc.cnr_db.min; absent: qc.cnr_db.min. */
+  cnrMin_db?: number | 'auto';
   scan: { dwell_s: number; slewRate_degs: number };
   /** What the instrument does (campaign key role); plane scanners feed the planes. */
   role: 'plane' | 'profiler' | 'nacelle' | 'tracker';

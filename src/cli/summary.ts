@@ -34,6 +34,10 @@ export function formatRunSummary(res: RunResult): string {
     ...accountingLines(m.samples.perInstrument, m.samples.total),
   ];
   if (!m.samples.balanced) lines.push('  WARNING: the accounting does not balance');
+  if (m.cnrLimits) {
+    lines.push(`CNR limits (${m.cnrLimits.mode === 'auto' ? 'estimated from the data: qc.cnr_db.min auto' : m.cnrLimits.mode === 'fixed' ? 'fixed' : 'estimated where auto, else fixed'}):`);
+    for (const [id, l] of Object.entries(m.cnrLimits.perInstrument)) lines.push(`  ${id}: ${l.min_db.toFixed(1)} dB  ${l.note}`);
+  }
   for (const a of m.assumptions.slice(0, 3)) lines.push(`assumption: ${a}`);
   if (m.assumptions.length > 3) lines.push(`  (+${m.assumptions.length - 3} more assumptions in manifest.json)`);
   for (const w of m.warnings) lines.push(`warning: ${w}`);

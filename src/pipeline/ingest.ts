@@ -12,7 +12,8 @@
  * expected in time order (as instruments write them); a sample whose window was already finished is counted as
  * out_of_time_order, never silently dropped.
  *
- * Per sample, in this order (the first failing rule names the rejection): CNR below qc.cnr_db.min (low_cnr);
+ * Per sample, in this order (the first failing rule names the rejection): CNR below the instrument's resolved limit
+ * (qc.cnr_db.min, fixed or estimated before the run: qc/cnrLimits.ts) (low_cnr);
  * CNR above qc.cnr_db.max (hard_target_cnr); |v_r| above qc.radialVelocityLimit_ms; in no window
  * (outside_windows); every window already finished (out_of_time_order); no wind direction for the window;
  * for instruments on the nacelle, no nacelle direction at the sample time (no_nacelle_direction) or a forward-looking
@@ -102,6 +103,12 @@ export interface IngestOptions {
   onBatch?(b: SampleBatch): void;
   /** Every window ending at or before `t` has been handed to onWindow (and no later sample can reach one). */
   onFinishedTo?(t: number): void;
+  /**
+   * Per instrument (index), the CNR below which samples are rejected as low_cnr, dB: the run's resolved limits
+   * (qc/cnrLimits.ts resolveCnrLimits, fixed or estimated from the data). Default: qc.cnr_db.min when it is a number,
+   * else no lower limit.
+   */
+  cnrMin_db?: Float64Array;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -182,7 +189,9 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const lastAz = new Float64Array(I).fill(NaN), lastEl = new Float64Array(I).fill(NaN);
   const nE = new Float64Array(I), nN = new Float64Array(I), nU = new Float64Array(I);
 
-  const cnrMin = c.qc.cnr_db.min, cnrMax = c.qc.cnr_db.max, vLim = c.qc.radialVelocityLimit_ms;
+  const fixedMin = c.qc.cnr_db.min;
+  const cnrMin = opts.cnrMin_db ?? new Float64Array(I).fill(typeof fixedMin === 'number' ? fixedMin : -Infinity);
+  const cnrMax = c.qc.cnr_db.max, vLim = c.qc.radialVelocityLimit_ms;
   const terrain = opts.terrain ?? flatTerrain(c.site.groundLevel_m);
   const flat = terrain.flat;
   const ground0 = flat ? terrain.level : NaN;
@@ -295,7 +304,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       seen[ins] = 1;
       if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
       const cnr = b.cnr[i];
-      if (cnr < cnrMin) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
+      if (cnr < cnrMin[ins]) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
       if (cnr > cnrMax) { counters.rejected[ins * NR + R.hard_target_cnr]++; continue; }
       const vr = b.radialVelocity[i];
       if (vr > vLim || vr < -vLim) { counters.rejected[ins * NR + R.radial_velocity_limit]++; continue; }

@@ -36,6 +36,7 @@ import { PARTIAL_FORMAT, PartialReader, PartialWriter } from '../io/partialFile.
 import { isoTime } from '../io/time.ts';
 import { REJECT_REASONS } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings, type EvidenceState } from '../qc/suspicion.ts';
+import { resolveCnrLimits } from '../qc/cnrLimits.ts';
 import { VERSION } from '../version.ts';
 import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { directionForWindow } from '../windows/direction.ts';
@@ -134,13 +135,13 @@ export function fileSink(partialPath: string, notify?: (n: SinkNote) => void | P
  * Reads one shard of a campaign and writes its partial result to `partialPath` (atomically: the file appears only
  * when complete). Memory is bounded as for a run: each finished window's accumulators are written and reused.
  */
-export async function runShard(c: Campaign, spec: ShardSpec, partialPath: string, opts: { firstSample_s?: number } = {}): Promise<ShardResult> {
+export async function runShard(c: Campaign, spec: ShardSpec, partialPath: string, opts: { firstSample_s?: number; cnrMin_db?: Float64Array } = {}): Promise<ShardResult> {
   const r = await runShardTo(c, spec, fileSink(partialPath), opts);
   return { ...r, partial: partialPath };
 }
 
 /** Reads one shard of a campaign into `sink`. */
-export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, opts: { firstSample_s?: number } = {}): Promise<{ windows: number; read: number }> {
+export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, opts: { firstSample_s?: number; cnrMin_db?: Float64Array } = {}): Promise<{ windows: number; read: number }> {
   const pre = await preflight(c, { outRoot: c.baseDir, folder: '', kind: 'run', data: true, output: false });
   if (pre.errors.length) throw pre.errors.length === 1 ? pre.errors[0] : new Problems(pre.errors);
   const cRead = pre.campaign;
@@ -155,6 +156,8 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
     : undefined;
   const planInputs = { turbineSeries, directionSeries: pre.directionSeries };
   const firstSample = opts.firstSample_s ?? (await campaignFirstSample(cRead));
+  // The CNR limits of the whole campaign (estimated from every file's rows when asked): the same in every shard.
+  const cnrMin = opts.cnrMin_db ?? (await resolveCnrLimits(cRead)).min_db;
   const { rt } = campaignTargets(c);
   const terrain = await loadTerrain(c);
   const inspector = new SuspicionInspector(cRead, suspicionSettings(c));
@@ -164,7 +167,7 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
       tool: 'wakeplane', version: VERSION, format: PARTIAL_FORMAT, layout: accumulatorLayout(),
       campaign: { name: c.name, file: c.sourceFile, sha256: campaignSha(c) }, settingsKey: settingsKey(c),
       allFiles, shard: { files: [...files], from_s: spec.from_s, to_s: spec.to_s },
-      targets: rt.targets.map((t) => ({ id: t.id, keyCount: t.keyCount })), instruments: c.instruments.length, firstSample_s: firstSample,
+      targets: rt.targets.map((t) => ({ id: t.id, keyCount: t.keyCount })), instruments: c.instruments.length, firstSample_s: firstSample, cnrMin_db: [...cnrMin],
     });
     let windows = 0;
     let pending: RejectedRow[] = [];
@@ -175,7 +178,7 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
     const spans = new Map<string, [number, number]>();
     let built: BuiltWindowPlan | undefined;
     await ingest({
-      campaign: cRead, terrain, suspicion: inspector, targets: rt.targets, targetOf: rt.targetOf, nacelleFrames: rt.nacelleFrames,
+      campaign: cRead, terrain, suspicion: inspector, targets: rt.targets, targetOf: rt.targetOf, nacelleFrames: rt.nacelleFrames, cnrMin_db: cnrMin,
       shard: { files, from_s: spec.from_s, to_s: spec.to_s },
       firstSample_s: firstSample,
       windowPlan(first) {
@@ -279,6 +282,7 @@ export class PartialSet {
     readonly windows: MergedWindow[],
     firstSample_s: number,
     readonly warnings: string[],
+    private readonly headers: Record<string, unknown>[] = [],
   ) {
     this.firstSample_s = firstSample_s;
   }
@@ -358,7 +362,7 @@ export class PartialSet {
     const spans: { file: string; span: [number, number]; k: number }[] = [];
     readers.forEach((r, k) => { for (const [file, span] of r.index.spans as [string, [number, number]][]) spans.push({ file, span, k }); });
     const warnings = overlapWarnings(c, spans, show);
-    return new PartialSet(readers, windows, first, warnings);
+    return new PartialSet(readers, windows, first, warnings, headers);
   }
 
   /**
@@ -379,6 +383,18 @@ export class PartialSet {
       spare = win.accs;
     }
     for (const r of this.readers) absorbTail(r, opts);
+  }
+
+  /** Every partial must have applied these CNR limits (dB per instrument): else one line naming the partial. */
+  checkCnrLimits(min_db: Float64Array): void {
+    this.headers.forEach((h, k) => {
+      const theirs = h.cnrMin_db as number[] | undefined;
+      const same = theirs !== undefined && theirs.length === min_db.length && theirs.every((x, i) => x === min_db[i] || (x !== x && min_db[i] !== min_db[i]));
+      if (!same) {
+        this.close();
+        throw new PartialError(`${this.readers[k].path}: read with other CNR limits (${theirs ? theirs.join(', ') : 'none recorded'} dB) than this campaign's data give now (${[...min_db].join(', ')} dB): the data files changed; run the shard again`);
+      }
+    });
   }
 
   close(): void {

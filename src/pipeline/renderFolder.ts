@@ -86,6 +86,13 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   const recs = [...(await budget.finish!(ctx)), ...(await images.finish!(ctx))];
   manifest.outputs.push(...recs);
   manifest.timings_s.images = (performance.now() - t) / 1000;
+  // The figures of the data-driven CNR limit, from the evidence the manifest keeps (a run without images has none yet).
+  if (manifest.cnrLimits) {
+    const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
+    const cnrFigures = await renderCnrLimitFigures(manifest.cnrLimits.perInstrument, runDir);
+    recs.push(...cnrFigures);
+    manifest.outputs.push(...cnrFigures);
+  }
   if (hadPlan) {
     progress?.stage('planner');
     t = performance.now();

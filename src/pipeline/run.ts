@@ -23,6 +23,7 @@ import { headerLine, rowLine, tableLayout } from '../records/tableText.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { SuspicionInspector, sameContentWarnings, suspicionSettings } from '../qc/suspicion.ts';
 import { REJECT_REASONS, accountBalances, emptyAccount, type SampleAccount } from '../qc/reasons.ts';
+import { resolveCnrLimits, type CnrLimits } from '../qc/cnrLimits.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import { budgetSettings } from './budgetSettings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
@@ -165,6 +166,12 @@ export function pendingWrites(shared: Record<string, unknown>): Promise<void>[] 
   return (shared.pendingWrites ??= []) as Promise<void>[];
 }
 
+/** The campaign as the manifest records it: qc.cnr_db.resolved_db holds each instrument's applied CNR limit, dB. */
+export function withResolvedCnr(c: Campaign, cnr: CnrLimits): Campaign {
+  const resolved_db = Object.fromEntries(c.instruments.map((i) => [i.id, cnr.min_db[i.index]]));
+  return { ...c, qc: { ...c.qc, cnr_db: { ...c.qc.cnr_db, resolved_db } } } as Campaign;
+}
+
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
   const progress = opts.progress ?? silent;
   const t0 = performance.now();
@@ -205,6 +212,16 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   const campaignText = c.sourceFile === '<memory>' ? JSON.stringify(c) : readFileSync(c.sourceFile, 'utf8');
   lap('check_inputs', t);
 
+  // CNR limits: fixed, or estimated from the first rows of every file (a function of the campaign only, so every
+  // shard or core of a run gets the same limits).
+  progress.stage('estimating CNR limits');
+  t = performance.now();
+  const cnr = await resolveCnrLimits(cRead);
+  if (cnr.mode !== 'fixed') lap('cnr_limits', t);
+  // Partials must have used the same limits (the same data: the estimate depends on the campaign's files only);
+  // checked before anything is written.
+  partialSet?.checkCnrLimits(cnr.min_db);
+
   // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
   const staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
   notices.push(...staging.notices);
@@ -235,7 +252,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       startedAt: new Date(Date.now() - (performance.now() - t0)).toISOString(),
       finishedAt: '',
       inputs: [],
-      settings: c,
+      settings: withResolvedCnr(c, cnr),
+      cnrLimits: { mode: cnr.mode, perInstrument: cnr.perInstrument },
       samples: { total: emptyAccount(), perInstrument: {}, balanced: false },
       windows: [],
       outputs,
@@ -280,7 +298,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
       finisher.disjoint = built.plan.disjoint;
       const specs = groups.map((files) => ({ files, from_s: -Infinity, to_s: Infinity }));
-      warnings.push(...(await runShardsLive(c, specs, shardDir, first, { onWindow, onRejectedRows, counters, inspector }, show)));
+      warnings.push(...(await runShardsLive(c, specs, shardDir, first, { onWindow, onRejectedRows, counters, inspector }, show, cnr.min_db)));
       rmSync(shardDir, { recursive: true, force: true });
       notices.push(`read in ${groups.length} processes (--cores ${cores})`);
     } else if (partialSet) {
@@ -298,6 +316,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           targets: rt.targets,
           targetOf: rt.targetOf,
           nacelleFrames: rt.nacelleFrames,
+          cnrMin_db: cnr.min_db,
           windowPlan(first) {
             built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
             finisher.disjoint = built.plan.disjoint;
@@ -328,6 +347,11 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       await rejectedOut.close();
       outputs.push({ kind: 'rejected-rows', path: 'rejected_rows.csv', description: `${rejectedCount} rows that could not be read (file, line, reason)` });
     }
+    for (const [id, l] of Object.entries(cnr.perInstrument)) if (l.status === 'too-few-samples' || l.status === 'no-cnr') warnings.push(`CNR limit of ${id}: ${l.note}`);
+    if (images && cnr.mode !== 'fixed') {
+      const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
+      outputs.push(...(await renderCnrLimitFigures(cnr.perInstrument, runDir)));
+    }
     if (finisher.windows.length === 0) warnings.push('no window received any in-plane sample: check positions, planes and the wind direction');
 
     t = performance.now();
@@ -342,7 +366,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
     manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
-    manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0));
+    manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0) + (timings.cnr_limits ?? 0));
 
     // 4. Later stages: wake summaries, figures, planner; then the end figures, then the report (a `last` stage).
     for (const stage of stages) {

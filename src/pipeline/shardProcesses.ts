@@ -59,6 +59,8 @@ interface ShardJob {
   /** Tell the parent (IPC) where each window's record lies. */
   live?: boolean;
   firstSample_s: number;
+  /** The run's resolved CNR limits per instrument, dB (computed once by the parent). */
+  cnrMin_db?: Float64Array;
 }
 
 /**
@@ -104,7 +106,7 @@ export interface LiveTargets {
  * Resolves when every child has ended and every window is finished; returns warnings (files of one instrument that
  * overlap in time across shards). The partial files are left in `dir` (the caller removes it).
  */
-export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string, firstSample_s: number, to: LiveTargets, show: (f: string) => string): Promise<string[]> {
+export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string, firstSample_s: number, to: LiveTargets, show: (f: string) => string, cnrMin_db?: Float64Array): Promise<string[]> {
   mkdirSync(dir, { recursive: true });
   const wm = specs.map(() => -Infinity);
   const ended = specs.map(() => false);
@@ -131,7 +133,7 @@ export async function runShardsLive(c: Campaign, specs: ShardSpec[], dir: string
   };
   const procs: ChildProcess[] = [];
   const children = specs.map((spec, k) => {
-    const { child, done } = startChild({ campaign: c, spec, partial: partial(k), live: true, firstSample_s }, join(dir, `shard-${k}.job`), true);
+    const { child, done } = startChild({ campaign: c, spec, partial: partial(k), live: true, firstSample_s, cnrMin_db }, join(dir, `shard-${k}.job`), true);
     procs.push(child);
     // One failed: the others' work is lost anyway, stop them (only the processes started here, by their handles).
     done.catch(() => { for (const p of procs) if (p !== child && p.exitCode === null) p.kill(); });
@@ -187,7 +189,7 @@ export async function runShardJob(jobFile: string): Promise<void> {
     process.once('disconnect', () => process.exit(1));
     notify = (n) => new Promise<void>((resolve, reject) => process.send!(n, undefined, {}, (e) => (e ? reject(e) : resolve())));
   }
-  await runShardTo(job.campaign, job.spec, fileSink(job.partial, notify), { firstSample_s: job.firstSample_s });
+  await runShardTo(job.campaign, job.spec, fileSink(job.partial, notify), { firstSample_s: job.firstSample_s, cnrMin_db: job.cnrMin_db });
   if (job.live) {
     process.removeAllListeners('disconnect');
     process.disconnect?.();

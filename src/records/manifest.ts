@@ -4,6 +4,7 @@
  * Low level on purpose: io, wake, render, plan and pipeline all write through these types, and nothing here
  * imports a stage (only types).
  */
+import type { InstrumentCnrLimit } from '../qc/cnrLimits.ts';
 import type { SampleAccount } from '../qc/reasons.ts';
 import type { SegmentSummary } from '../windows/segments.ts';
 
@@ -74,6 +75,12 @@ export interface RunManifest {
   samplesPerSecond: number;
   assumptions: string[];
   warnings: string[];
+  /**
+   * The CNR limits the run applied, per instrument: fixed (qc.cnr_db.min a number) or estimated from the data before
+   * the ingest (qc.cnr_db.min "auto"; src/qc/cnrLimits.ts), with the evidence curve. The same limits are in
+   * settings.qc.cnr_db.resolved_db.
+   */
+  cnrLimits?: { mode: 'auto' | 'fixed' | 'mixed'; perInstrument: Record<string, InstrumentCnrLimit> };
   /** Set by `wakeplane render` when it redid the figures and the report of this run folder. */
   rendered?: { at: string; seconds: number };
   /** The uncertainty budget's summary (pipeline/budgetStage.ts); absent when the budget is off. */

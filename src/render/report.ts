@@ -56,7 +56,7 @@ export const CAUTIONS = [
 export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): string {
   const m = manifest;
   const show = pathShower(m);
-  const images = m.outputs.filter((o) => o.kind === 'image' && !o.path.startsWith('plan/'));
+  const images = m.outputs.filter((o) => o.kind === 'image' && !o.path.startsWith('plan/') && !o.path.startsWith('images/qc_cnr_')); // the CNR figures stand with the quality control
   const planImages = m.outputs.filter((o) => o.kind === 'image' && o.path.startsWith('plan/'));
   const dataFiles = m.outputs.filter((o) => o.kind !== 'image' && o.kind !== 'report');
   const sections: string[] = [];
@@ -86,7 +86,7 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
   section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
 
   // Sample accounting and the quality-control settings.
-  section('samples', 'Samples and quality control', accountingHtml(m) + qcSettingsHtml(m.settings));
+  section('samples', 'Samples and quality control', accountingHtml(m) + cnrLimitsHtml(m) + qcSettingsHtml(m.settings));
 
   // Windows.
   if (m.windows.length) {
@@ -220,6 +220,23 @@ function accountingHtml(m: RunManifest): string {
   return `<p>Every sample read is either accepted (used in a cell of a plane) or counted under exactly one rejection reason: read = accepted + rejected.</p>` +
     table +
     `<p class="${balanced ? 'ok' : 'bad'}">${balanced ? 'The accounting balances for every instrument.' : 'The accounting does NOT balance: see the warnings.'}</p>`;
+}
+
+/** The CNR limit of each instrument: value, how it was chosen, the pre-pass figures, and the figure when drawn. */
+function cnrLimitsHtml(m: RunManifest): string {
+  const l = m.cnrLimits;
+  if (!l) return '';
+  const rows = Object.entries(l.perInstrument).map(([id, x]) => [
+    esc(id), x.min_db.toFixed(1), esc(x.status), x.rowsRead === undefined ? '' : num(x.rowsRead), x.referenced === undefined ? '' : num(x.referenced),
+    x.scatter_ms === undefined || !Number.isFinite(x.scatter_ms) ? '' : x.scatter_ms.toFixed(2), esc(x.note),
+  ]);
+  const figs = m.outputs.filter((o) => o.kind === 'image' && /^images\/qc_cnr_/.test(o.path));
+  const intro = l.mode !== 'fixed'
+    ? '<p>The lower CNR limit of each instrument set to <code>auto</code> (the default of <code>qc.cnr_db.min</code>; <code>instruments[].cnrMin_db</code> overrides it per instrument) was estimated from the data before the run: from rows spread through every file (the first rows of compressed and NetCDF files), each sample is compared with the median of its stronger-signal neighbours (same instrument, place and direction, time block), and the limit is where the share of inconsistent samples rises above that of the strongest signals enough that accepting them costs more than rejecting them (idea after Beck &amp; Kuhn 2017, Remote Sensing 9(6) 561). The same limits apply to every part of a run.</p>'
+    : '<p>The lower CNR limits are fixed (<code>qc.cnr_db.min</code>, or <code>instruments[].cnrMin_db</code> per instrument).</p>';
+  return `<h3>CNR limits</h3>${intro}` +
+    tableHtmlRaw(['instrument', 'limit (dB)', 'status', 'rows read', 'with reference', 'good scatter (m/s)', 'how'], rows, [1, 3, 4, 5]) +
+    (figs.length ? galleryHtml(figs) : '');
 }
 
 /** The qc block of the settings, flattened to key = value lines (absent when the settings carry none). */
