@@ -220,6 +220,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,
+    /** First sample time of the pending (primed) batch: where the file starts in the reading order. */
+    pendingFrom: -Infinity,
     path: f.path,
     owner: f.owner,
     rows: 0,
@@ -235,6 +237,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     cur.pending = r.value;
     const f = firstSampleTime(r.value.batch);
     if (f < first) first = f;
+    cur.pendingFrom = Number.isFinite(f) ? f : -Infinity;
   }
   if (opts.firstSample_s !== undefined) first = opts.firstSample_s;
   const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
@@ -419,7 +422,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
 
   for (;;) {
     let k = -1;
-    for (let j = 0; j < cursors.length; j++) if (!cursors[j].done && (k < 0 || cursors[j].last < cursors[k].last)) k = j;
+    // The file that has read least far next; a primed file by where it starts, so that a later file of an instrument
+    // is not begun before an earlier one ends (its `last` stays -Infinity until then: no window finishes early).
+    const at = (q: (typeof cursors)[number]) => (q.pending ? q.pendingFrom : q.last);
+    for (let j = 0; j < cursors.length; j++) if (!cursors[j].done && (k < 0 || at(cursors[j]) < at(cursors[k]))) k = j;
     if (k < 0) break;
     const cur = cursors[k];
     let chunk: SampleChunk | undefined;
