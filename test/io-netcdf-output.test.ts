@@ -5,7 +5,7 @@
  * locally the tests skip, saying which package is missing.
  */
 import { spawnSync } from 'node:child_process';
-import { readdirSync, readFileSync } from 'node:fs';
+import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
@@ -14,15 +14,11 @@ import { netcdfStage, wakeStage } from '../src/pipeline/stages.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { debianPython, hasCommand } from './helpers/python.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
 const ncdump = hasCommand('ncdump');
 const py = debianPython(['xarray', 'netCDF4']);
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = head.split(',');
-  return rows.map((r) => Object.fromEntries(r.split(',').map((v, k) => [cols[k], v])));
-}
 
 /** Half a unit of the last digit written: the rounding bound of a CSV value. */
 function half(s: string): number {

@@ -12,12 +12,8 @@ import { runCampaign } from '../src/pipeline/run.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = head.split(',');
-  return rows.map((r) => Object.fromEntries(cols.map((c, k) => [c, r.split(',')[k]])));
-}
 const fieldRows = (run: string) => readdirSync(join(run, 'fields')).filter((f) => f.endsWith('.csv')).flatMap((f) => readCsv(join(run, 'fields', f)));
 
 describe('the uncertainty budget in a run', () => {

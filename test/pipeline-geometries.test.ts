@@ -12,12 +12,8 @@ import { defaultStages } from '../src/pipeline/stages.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = head.split(',');
-  return rows.map((r) => Object.fromEntries(cols.map((c, k) => [c, r.split(',')[k]])));
-}
 
 const single = {
   name: 'geo-test',

@@ -14,15 +14,8 @@ import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = head.split(',');
-  return rows.map((r) => {
-    const cells = r.split(',');
-    return Object.fromEntries(cols.map((c, k) => [c, cells[k]]));
-  });
-}
 
 describe('a whole run on a simulated campaign', () => {
   let dir: string, file: string, out: string;

@@ -10,20 +10,12 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { parse, stringify } from 'yaml';
 import { loadCampaignFile } from '../src/campaign/load.ts';
-import { splitCsvLine } from '../src/io/series.ts';
 import { runCampaign, type RunResult } from '../src/pipeline/run.ts';
 import { powerStage } from '../src/pipeline/powerStage.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = splitCsvLine(head);
-  return rows.map((r) => {
-    const cells = splitCsvLine(r);
-    return Object.fromEntries(cols.map((c, k) => [c, cells[k]]));
-  });
-}
 
 describe('a row of three turbines on rolling terrain, simulated and run', () => {
   let dir: string, res: RunResult;

@@ -8,7 +8,7 @@
  * The round trips use our own simulator (not an outside check); the checks of the statistics themselves are in
  * qc-histogram.test.ts and retrieval-ensemble.test.ts.
  */
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
@@ -16,18 +16,10 @@ import { ConfigError } from '../src/errors.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
-import { splitCsvLine } from '../src/io/series.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = splitCsvLine(head);
-  return rows.map((r) => {
-    const cells = splitCsvLine(r);
-    return Object.fromEntries(cols.map((c, k) => [c, cells[k]]));
-  });
-}
 
 // Steps of 10 minutes starting at 12:03:17 UTC (not aligned to any round time), yaw offsets per step.
 const START = '2026-03-01T12:03:17Z';

@@ -7,22 +7,15 @@
  * with correlated samples: that shows the check can fail. This is a round trip through our own simulator, not an
  * outside check; the outside checks of the terms are in uncertainty-budget.test.ts.
  */
-import { readdirSync, readFileSync } from 'node:fs';
+import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { tinyCampaignObject, writeTinyCampaign } from './helpers/tinyCampaign.ts';
+import { readCsv } from './helpers/csvTable.ts';
 
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...rows] = readFileSync(path, 'utf8').trim().split('\n');
-  const cols = head.split(',');
-  return rows.map((r) => {
-    const cells = r.split(',');
-    return Object.fromEntries(cols.map((c, k) => [c, cells[k]]));
-  });
-}
 
 interface Coverage { n: number; budget: number; scatter: number }
 /** Per run: every cell's radial-velocity turbulence and noise variance (m^2/s^2), for the turbulence statistics. */
