@@ -15,7 +15,7 @@
  */
 import type { Campaign } from '../campaign/types.ts';
 import { openSamples, sampleFormat } from '../io/sampleSource.ts';
-import { readCsvSlices } from './csvSlices.ts';
+import { readCsvSlices } from '../io/csvSlices.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
 import { estimateCnrLimit, type CnrClass, type CnrLimitDecision, type CnrLimitStatus } from './cnrLimit.ts';
 
@@ -66,12 +66,12 @@ function columns(cap: number): Columns {
   };
 }
 
-/** Byte slices per plain CSV file in the pre-pass (csvSlices.ts). */
+/** Byte slices per plain CSV file in the pre-pass (io/csvSlices.ts). */
 export const PREPASS_SLICES = 8;
 
 /**
  * The pre-pass: up to rowsPerInstrument rows per instrument, shared equally among its files; from a plain CSV file
- * spread through it (PREPASS_SLICES evenly spaced slices, csvSlices.ts), from a compressed CSV or NetCDF file its
+ * spread through it (PREPASS_SLICES evenly spaced slices, io/csvSlices.ts), from a compressed CSV or NetCDF file its
  * first rows. Each file once (a file listed by several instruments with the smallest of their quotas), in campaign
  * order; rows go to the instrument they name.
  */

@@ -1,5 +1,5 @@
 /**
- * The CNR pre-pass's spread reader (src/qc/csvSlices.ts) against the run's reader (src/io/csvSamples.ts readSamples):
+ * The CNR pre-pass's spread reader (src/io/csvSlices.ts) against the run's reader (src/io/csvSamples.ts readSamples):
  * every row it returns is a row of the file with exactly the values the reader gives it (renamed and scaled
  * columns, "toward" sign, CRLF line ends, blank lines, a bad row, quoted fields and an empty CNR, no final line
  * break), the rows are spread through
@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readSamples } from '../src/io/csvSamples.ts';
-import { readCsvSlices } from '../src/qc/csvSlices.ts';
+import { readCsvSlices } from '../src/io/csvSlices.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'wakeplane-slices-'));
 const columns = { time: 'ts', range_m: { name: 'range_km', scale: 1000, offset: 0 }, radial_velocity_ms: 'vlos', cnr_db: 'snr' };

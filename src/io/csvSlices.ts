@@ -1,21 +1,21 @@
 /**
- * Rows spread through a plain CSV sample file for the CNR-limit pre-pass (cnrLimits.ts): the header, then `slices`
+ * Rows spread through a plain CSV sample file for the CNR-limit pre-pass (qc/cnrLimits.ts): the header, then `slices`
  * byte offsets evenly spaced between the end of the header and the end of the file, and from each the next whole
  * lines, up to rows / slices rows per slice. Deterministic (a function of the file and the two numbers), bounded (one
  * read buffer; the rows go to the caller), and independent of how a run later splits the file.
  *
- * Rows are parsed with the file's column layout (io/sampleColumns.ts resolveColumns) and the reader's field parsers
- * (io/sampleRow.ts): plain rows by a short loop here, every other row (quotes, empty or bad fields) by the reader's
+ * Rows are parsed with the file's column layout (sampleColumns.ts resolveColumns) and the reader's field parsers
+ * (sampleRow.ts): plain rows by a short loop here, every other row (quotes, empty or bad fields) by the reader's
  * careful path parseRowSlow: the same grammar, units, scale/offset and sign as the run's reader. Rows that do not
  * read are skipped (the run counts them). Compressed and NetCDF files are read from their start instead.
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import type { ColumnMap } from '../campaign/schema.ts';
 import { InputError } from '../errors.ts';
-import { createDayCache } from '../io/fastParse.ts';
-import { resolveColumns } from '../io/sampleColumns.ts';
-import { R_AZ, R_CNR, R_EL, R_INST, R_RANGE, R_TIME, R_VR } from '../io/sampleColumns.ts';
-import { parseNumberField, parseRowSlow, parseTimeField, wrap360, type RowContext, type RowValues } from '../io/sampleRow.ts';
+import { createDayCache } from './fastParse.ts';
+import { resolveColumns } from './sampleColumns.ts';
+import { R_AZ, R_CNR, R_EL, R_INST, R_RANGE, R_TIME, R_VR } from './sampleColumns.ts';
+import { parseNumberField, parseRowSlow, parseTimeField, wrap360, type RowContext, type RowValues } from './sampleRow.ts';
 
 export interface SliceOptions {
   instrumentIndex: Map<string, number>;
