@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { resolveCampaign } from '../src/campaign/load.ts';
 import { CellAccumulator } from '../src/grid/accumulator.ts';
 import { ProfileTarget, profilerLayouts } from '../src/profile/target.ts';
-import { sampleOf } from '../src/grid/target.ts';
+import { sampleOf, windowFrame } from '../src/grid/target.ts';
 import { largestGap, solveProfile, speedDirection } from '../src/profile/solve.ts';
 import { inflowFromProfile } from '../src/profile/inflow.ts';
 import { robustFilter } from '../src/retrieval/robustFilter.ts';
@@ -176,7 +176,7 @@ describe('profile target', () => {
     const layouts = profilerLayouts(c.instruments);
     const tg = new ProfileTarget(layouts, 1, 0);
     const acc = new CellAccumulator(tg.keyCount, 1);
-    const frame = { dE: 0, dN: 1, start_s: 0, first_s: 0 };
+    const frame = windowFrame(0, 1, 0);
     const add = (az: number, el: number, z: number) => { const b = beamOf(az, el); return tg.add(acc, frame, 0, sampleOf(1, b[0], b[1], b[2], 0, 0, z)); };
     expect(add(359, 62, 61)).toBe(true); // sector 0 (north), height bin 1 (60 m)
     expect(add(44, 62, 61)).toBe(true); // still sector 0: within 45 deg of north

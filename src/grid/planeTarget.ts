@@ -13,7 +13,7 @@
 import { REJECT_INDEX } from '../qc/reasons.ts';
 import { ADD_FIELDS, type CellAccumulator } from './accumulator.ts';
 import type { GridSpec } from './grid.ts';
-import { SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
+import { FRAME, SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
 
 export interface PlaneTargetSpec {
   orientation: 'cross' | 'horizontal';
@@ -79,11 +79,12 @@ export class PlaneTarget implements SampleTarget {
   add(acc: CellAccumulator, f: WindowFrame, ins: number, s: Float64Array): boolean {
     const pe = s[SAMPLE.pe], pn = s[SAMPLE.pn], pu = s[SAMPLE.pu], ground = s[SAMPLE.ground];
     // Rotor-frame coordinates about the site origin; each plane subtracts its own origin's.
-    const X = pe * f.dE + pn * f.dN;
-    const Y = -pe * f.dN + pn * f.dE;
+    const dE = f[FRAME.dE], dN = f[FRAME.dN];
+    const X = pe * dE + pn * dN;
+    const Y = -pe * dN + pn * dE;
     for (let p = 0; p < this.P; p++) {
-      const x = X - (this.oE[p] * f.dE + this.oN[p] * f.dN);
-      const y = Y - (-this.oE[p] * f.dN + this.oN[p] * f.dE);
+      const x = X - (this.oE[p] * dE + this.oN[p] * dN);
+      const y = Y - (-this.oE[p] * dN + this.oN[p] * dE);
       const z = pu - (this.onTerrain[p] === 1 ? ground : this.zBase[p]);
       const cross = this.cross[p] === 1;
       const off = (cross ? x : z) - this.level[p];
@@ -95,10 +96,10 @@ export class PlaneTarget implements SampleTarget {
       if (iz < 0 || iz >= this.nz[p]) continue;
       // Beam unit vector in the window's rotor frame.
       const ne = s[SAMPLE.ne], nn = s[SAMPLE.nn];
-      const rx = ne * f.dE + nn * f.dN, ry = -ne * f.dN + nn * f.dE;
+      const rx = ne * dE + nn * dN, ry = -ne * dN + nn * dE;
       // Time and window middle feed the uncertainty budget's sums (NaN middle for a whole-record window).
       const v = this.values;
-      v[0] = s[SAMPLE.vr]; v[1] = rx; v[2] = ry; v[3] = s[SAMPLE.nu]; v[4] = y; v[5] = second; v[6] = s[SAMPLE.t]; v[7] = (f.start_s + (f.end_s ?? NaN)) / 2;
+      v[0] = s[SAMPLE.vr]; v[1] = rx; v[2] = ry; v[3] = s[SAMPLE.nu]; v[4] = y; v[5] = second; v[6] = s[SAMPLE.t]; v[7] = (f[FRAME.start] + f[FRAME.end]) / 2;
       acc.addValues((this.off[p] + iy + iz * this.ny[p]) * this.instrumentCount + ins, v);
       return true;
     }

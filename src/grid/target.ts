@@ -7,15 +7,20 @@
  */
 import type { CellAccumulator } from './accumulator.ts';
 
-/** The rotor frame of one window: its x axis (downstream) in site east and north components. */
-export interface WindowFrame {
-  dE: number;
-  dN: number;
-  /** Window start (Unix s; -Infinity for a whole-record window) and its first sample time so far. */
-  start_s: number;
-  first_s: number;
-  /** Window end (Unix s, exclusive; Infinity for a whole-record window); with start_s gives the middle used by the budget sums. */
-  end_s?: number;
+/**
+ * The rotor frame and times of one open window, in a typed array (fields FRAME) that the ingest updates in place:
+ * the x axis (downstream) in site east and north components (dE, dN); window start and end (Unix s; -Infinity and
+ * Infinity for a whole-record window; their middle is the one the budget sums use); the first and last sample
+ * times seen so far. A typed array rather than an object: read for every sample, it keeps one shape whatever the
+ * values (an object's fields change representation with their values, which throws optimised code away).
+ */
+export type WindowFrame = Float64Array;
+export const FRAME = { dE: 0, dN: 1, start: 2, end: 3, first: 4, last: 5 } as const;
+export const FRAME_FIELDS = 6;
+
+/** A window frame with the given axis and bounds, no sample seen yet. */
+export function windowFrame(dE: number, dN: number, start_s = -Infinity, end_s = Infinity): WindowFrame {
+  return Float64Array.of(dE, dN, start_s, end_s, Infinity, -Infinity);
 }
 
 /**

@@ -17,7 +17,7 @@ import { InputError } from '../errors.ts';
 import type { RejectReason } from '../qc/reasons.ts';
 import type { RejectedRow, SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
-import { hdf5Message, loadHdf5, type H5Module } from './hdf5.ts';
+import { hdf5Message, loadHdf5, SliceReader, type H5Module } from './hdf5.ts';
 import { resolveNetcdf, type NcVariable, type NetcdfLayout } from './netcdfLayout.ts';
 import { wrap360 } from './sampleRow.ts';
 
@@ -51,11 +51,17 @@ export async function checkNetcdf(path: string, opts: SampleReaderOptions): Prom
   return { rays: layout.rays, gates: layout.gates };
 }
 
-/** A slice of a variable as float64 (int64 and packed integers included). */
-function read(v: NcVariable, file: string, ranges: [number, number][], what: string): ArrayLike<number> {
+/**
+ * A slice of a variable as float64 (int64 and packed integers included): through `sr` into its array `slot` (valid
+ * until that slot is read again) when the type allows, else through h5wasm's slice().
+ */
+function read(v: NcVariable, file: string, ranges: [number, number][], what: string, sr?: SliceReader, slot = 0): ArrayLike<number> {
   let raw: unknown;
   try {
-    raw = v.shape.length === 0 ? v.ds.value : v.ds.slice(ranges.slice(0, v.shape.length));
+    const r = ranges.slice(0, v.shape.length);
+    const fast = sr && v.shape.length > 0 ? sr.read(v.ds, r, slot) : null;
+    if (fast) return fast;
+    raw = v.shape.length === 0 ? v.ds.value : v.ds.slice(r);
   } catch (e) {
     throw new InputError(file, undefined, `variable "${v.name}": read failed at ${what}: ${hdf5Message(e)}`);
   }
@@ -85,6 +91,7 @@ function createBatch(file: string, n: number): SampleBatch {
  */
 export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const { f, layout: L, sign } = await open(path, opts);
+  let cleanup = () => {};
   try {
     const G = L.gates, target = opts.batchSize ?? 65536;
     const perBlock = Math.max(1, Math.round(target / G / L.chunkRays)) * L.chunkRays;
@@ -93,16 +100,18 @@ export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions
     let spare: SampleBatch | null = null;
     const gateRange = L.range.shape.length === 1 ? read(L.range, path, [[0, G]], 'the gates') : null;
     const T = L.time, AZ = L.azimuth, EL = L.elevation, RG = L.range, VR = L.radialVelocity, CN = L.cnr;
+    const sr = new SliceReader();
+    cleanup = () => sr.free();
     const vrScale = VR.scale * sign, vrOffset = VR.offset * sign;
     const owner = opts.owner;
     for (let r0 = 0; r0 < L.rays; r0 += perBlock) {
       const r1 = Math.min(L.rays, r0 + perBlock), nr = r1 - r0;
       const what = `rays ${r0}-${r1 - 1}`;
       const sl: [number, number][] = [[r0, r1], [0, G]];
-      const t = read(T, path, sl, what), az = read(AZ, path, sl, what), el = read(EL, path, sl, what);
-      const rg = gateRange ?? read(RG, path, sl, what);
-      const vr = read(VR, path, sl, what);
-      const cn = CN ? read(CN, path, sl, what) : null;
+      const t = read(T, path, sl, what, sr, 0), az = read(AZ, path, sl, what, sr, 1), el = read(EL, path, sl, what, sr, 2);
+      const rg = gateRange ?? read(RG, path, sl, what, sr, 3);
+      const vr = read(VR, path, sl, what, sr, 4);
+      const cn = CN ? read(CN, path, sl, what, sr, 5) : null;
       const b: SampleBatch = spare ?? createBatch(path, cap);
       spare = null;
       b.length = 0;
@@ -155,6 +164,7 @@ export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions
       if (reuse) spare = b;
     }
   } finally {
+    cleanup();
     f.close();
   }
 }

@@ -41,7 +41,7 @@ import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
-import { SAMPLE_FIELDS, type SampleTarget } from '../grid/target.ts';
+import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
@@ -130,9 +130,11 @@ const R = REJECT_INDEX;
 const NR = REJECT_REASONS.length;
 
 interface Live extends OpenWindow {
-  /** Rotor-frame x axis in site east/north components: (dE, dN) = -(sin D, cos D). */
-  dE: number;
-  dN: number;
+  /**
+   * The window's rotor frame and times for the targets (grid/target.ts FRAME), updated per sample with the first
+   * and last sample times (copied to first_s and last_s when the window finishes).
+   */
+  frame: WindowFrame;
 }
 
 /** Times further than this from the median of a file's first batch are not taken as its first sample, s. */
@@ -257,7 +259,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       const D = (dir * Math.PI) / 180;
       w = {
         def, start_s: def.start_s, end_s: def.end_s, first_s: Infinity, last_s: -Infinity, direction_deg: dir,
-        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I, c.uncertainty.budget)), dE: -Math.sin(D), dN: -Math.cos(D),
+        accs: targets.map((tg, k) => spare[k].pop() ?? new CellAccumulator(tg.keyCount, I, c.uncertainty.budget)),
+        frame: windowFrame(-Math.sin(D), -Math.cos(D), def.start_s, def.end_s),
       };
       open.set(id, w);
     }
@@ -270,6 +273,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     finishedTo = watermark;
     for (const w of ready) {
       open.delete(w.def.id);
+      w.first_s = w.frame[FRAME.first];
+      w.last_s = w.frame[FRAME.last];
       await opts.onWindow(w);
       // onWindow has taken what it needs: the accumulators serve the next window.
       w.accs.forEach((a, k) => {
@@ -284,116 +289,133 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // which of them are still open (live, nLive) and how many of those have a wind direction (nDirected).
   const ids = new Int32Array(Math.max(1, plan.maxOverlap));
   const range = new Float64Array(2);
+  // The hot loop below reads only arrays of one kind each (frames, accumulator lists, typed arrays): window objects
+  // differ in shape with their values, and code that reads them is thrown away by the optimiser when a new shape
+  // comes (measured: 8 deoptimisations of the loop over the benchmark, each running it unoptimised for a while).
   const live: Live[] = [];
+  const liveFrames: WindowFrame[] = [];
+  const liveAccs: CellAccumulator[][] = [];
   let nFound = 0, nLive = 0, nDirected = 0, rFrom = Infinity, rTo = -Infinity;
 
+  /** Looks up the windows containing time t and the time range over which they stay the same. */
+  const enterRange = (t: number): void => {
+    nFound = plan.find(t, ids, range);
+    rFrom = range[0]; rTo = range[1];
+    nLive = 0; nDirected = 0;
+    for (let k = 0; k < nFound; k++) {
+      if (!record && plan.def(ids[k]).end_s <= finishedTo) continue; // finished already
+      const w = openWindow(ids[k]);
+      if (w.direction_deg === w.direction_deg) { live[nLive++] = w; nDirected++; }
+      else live[nLive++] = w;
+    }
+    // Windows with a direction first, so the loop below can stop at nDirected.
+    live.sort((a, b) => Number(b.direction_deg === b.direction_deg) - Number(a.direction_deg === a.direction_deg));
+    if (live.length > nLive) live.length = nLive;
+    for (let k = 0; k < nLive; k++) { liveFrames[k] = live[k].frame; liveAccs[k] = live[k].accs; }
+  };
+
+  /** Rows that could not be read: charged to the instrument they name, else to the one owning the file. */
+  const countUnreadable = (rejected: RejectedRow[], owner: number): void => {
+    for (const r of rejected) {
+      const ins = r.instrument ?? owner;
+      counters.read[ins]++;
+      counters.reject(ins, R[r.reason as keyof typeof R] ?? R.bad_number);
+    }
+    opts.onRejectedRows(rejected);
+  };
+
+  // Rejection reasons as constants of this scope (no property lookups in the per-sample loop).
+  const R_DUPLICATE = R.duplicate, R_LOW_CNR = R.low_cnr, R_HARD_TARGET = R.hard_target_cnr, R_VR_LIMIT = R.radial_velocity_limit;
+  const R_OUT_OF_ORDER = R.out_of_time_order, R_OUTSIDE_WINDOWS = R.outside_windows, R_NO_DIRECTION = R.no_wind_direction;
+  const R_BELOW_GROUND = R.below_ground, R_OUTSIDE_TERRAIN = R.outside_terrain, R_BLOCKED = R.beam_blocked, R_OUTSIDE_PLANES = R.outside_planes;
   const processChunk = (chunk: SampleChunk, owner: number, seen: Uint8Array) => {
     const b = chunk.batch;
     opts.onBatch?.(b);
     const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
-    if (chunk.rejected.length) {
-      // Rows that could not be read are charged to the instrument they name, else to the one owning the file.
-      for (const r of chunk.rejected) {
-        const ins = r.instrument ?? owner;
-        counters.read[ins]++;
-        counters.reject(ins, R[r.reason as keyof typeof R] ?? R.bad_number);
-      }
-      opts.onRejectedRows(chunk.rejected);
-    }
+    if (chunk.rejected.length) countUnreadable(chunk.rejected, owner);
     rFrom = Infinity; rTo = -Infinity; // windows may have finished since the last batch
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       counters.read[ins]++;
       seen[ins] = 1;
-      if (drop !== undefined && drop[i] === 1) { counters.rejected[ins * NR + R.duplicate]++; continue; }
-      const cnr = b.cnr[i];
-      if (cnr < cnrMin[ins]) { counters.rejected[ins * NR + R.low_cnr]++; continue; }
-      if (cnr > cnrMax) { counters.rejected[ins * NR + R.hard_target_cnr]++; continue; }
-      const vr = b.radialVelocity[i];
-      if (vr > vLim || vr < -vLim) { counters.rejected[ins * NR + R.radial_velocity_limit]++; continue; }
-      const t = b.time[i];
-      if (!(t >= rFrom && t < rTo)) {
-        nFound = plan.find(t, ids, range);
-        rFrom = range[0]; rTo = range[1];
-        nLive = 0; nDirected = 0;
-        for (let k = 0; k < nFound; k++) {
-          if (!record && plan.def(ids[k]).end_s <= finishedTo) continue; // finished already
-          const w = openWindow(ids[k]);
-          if (w.direction_deg === w.direction_deg) { live[nLive++] = w; nDirected++; }
-          else live[nLive++] = w;
+      // Every rejection sets its reason and leaves the block; one statement counts them all, so that a reason met
+      // for the first time late in a run does not throw the optimised loop away.
+      let why: number;
+      sample: {
+        if (drop !== undefined && drop[i] === 1) { why = R_DUPLICATE; break sample; }
+        const cnr = b.cnr[i];
+        if (cnr < cnrMin[ins]) { why = R_LOW_CNR; break sample; }
+        if (cnr > cnrMax) { why = R_HARD_TARGET; break sample; }
+        const vr = b.radialVelocity[i];
+        if (vr > vLim || vr < -vLim) { why = R_VR_LIMIT; break sample; }
+        const t = b.time[i];
+        if (!(t >= rFrom && t < rTo)) enterRange(t);
+        if (nLive === 0) { why = nFound > 0 ? R_OUT_OF_ORDER : R_OUTSIDE_WINDOWS; break sample; }
+        for (let k = 0; k < nLive; k++) {
+          const fr = liveFrames[k];
+          if (t < fr[FRAME.first]) fr[FRAME.first] = t;
+          if (t > fr[FRAME.last]) fr[FRAME.last] = t;
         }
-        // Windows with a direction first, so the loop below can stop at nDirected.
-        live.sort((a, b) => Number(b.direction_deg === b.direction_deg) - Number(a.direction_deg === a.direction_deg));
-        if (live.length > nLive) live.length = nLive;
-      }
-      if (nLive === 0) {
-        counters.rejected[ins * NR + (nFound > 0 ? R.out_of_time_order : R.outside_windows)]++;
-        continue;
-      }
-      for (let k = 0; k < nLive; k++) {
-        const w = live[k];
-        if (t < w.first_s) w.first_s = t;
-        if (t > w.last_s) w.last_s = t;
-      }
-      if (nDirected === 0) { counters.rejected[ins * NR + R.no_wind_direction]++; continue; }
-      const az = b.azimuth[i], el = b.elevation[i];
-      let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
-      if (onNacelle[ins] === 0) {
-        if (az !== lastAz[ins] || el !== lastEl[ins]) {
-          const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
-          const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
-          const m = Rm[ins];
-          nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
-          nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
-          nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
-          lastAz[ins] = az; lastEl[ins] = el;
-          clearTo[ins] = 0; blockedAt[ins] = Infinity;
+        if (nDirected === 0) { why = R_NO_DIRECTION; break sample; }
+        const az = b.azimuth[i], el = b.elevation[i];
+        let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
+        if (onNacelle[ins] === 0) {
+          if (az !== lastAz[ins] || el !== lastEl[ins]) {
+            const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
+            const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
+            const m = Rm[ins];
+            nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
+            nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
+            nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
+            lastAz[ins] = az; lastEl[ins] = el;
+            clearTo[ins] = 0; blockedAt[ins] = Infinity;
+          }
+          ne = nE[ins]; nn = nN[ins]; nu = nU[ins]; oe = posE[ins]; on = posN[ins]; ou = posU[ins];
+        } else {
+          // Beam angles relative to the nacelle: turned with the nacelle direction at this sample's time.
+          const miss = nacelles[ins]!.beam(t, az, el, nb);
+          if (miss !== NacelleMiss.none) { why = missReason[miss]; break sample; }
+          ne = nb[0]; nn = nb[1]; nu = nb[2]; oe = nb[3]; on = nb[4]; ou = nb[5];
         }
-        ne = nE[ins]; nn = nN[ins]; nu = nU[ins]; oe = posE[ins]; on = posN[ins]; ou = posU[ins];
-      } else {
-        // Beam angles relative to the nacelle: turned with the nacelle direction at this sample's time.
-        const miss = nacelles[ins]!.beam(t, az, el, nb);
-        if (miss !== NacelleMiss.none) { counters.rejected[ins * NR + missReason[miss]]++; continue; }
-        ne = nb[0]; nn = nb[1]; nu = nb[2]; oe = nb[3]; on = nb[4]; ou = nb[5];
-      }
-      const r = b.range[i] + rOff[ins];
-      let pe: number, pn: number, pu: number;
-      if (curvature) {
-        const elev = Math.asin(Math.max(-1, Math.min(1, nu)));
-        const h = beamHeight(r, elev), s = groundDistance(r, elev, undefined, undefined, h);
-        const hn = Math.hypot(ne, nn) || 1;
-        pe = oe + (s * ne) / hn; pn = on + (s * nn) / hn; pu = ou + h;
-      } else {
-        pe = oe + r * ne; pn = on + r * nn; pu = ou + r * nu;
-      }
-      let gz = ground0;
-      if (flat) {
-        if (pu < groundMin) { counters.rejected[ins * NR + R.below_ground]++; continue; }
-      } else {
-        gz = terrain.heightAt(pe, pn);
-        if (gz !== gz) { counters.rejected[ins * NR + R.outside_terrain]++; continue; }
-        if (pu < gz + clearance) { counters.rejected[ins * NR + R.below_ground]++; continue; }
-        // Blocked beams of ground-based instruments (a nacelle instrument's beam moves with the nacelle: not cached).
-        if (onNacelle[ins] === 0 && r > clearTo[ins]) {
-          if (r >= blockedAt[ins]) { counters.rejected[ins * NR + R.beam_blocked]++; continue; }
-          if (blockedAt[ins] === Infinity) {
-            const at = firstBlockedRange(terrain, posVec[ins], ne, nn, nu, clearTo[ins], r, marchStep, curvature);
-            if (at <= r) { blockedAt[ins] = at; counters.rejected[ins * NR + R.beam_blocked]++; continue; }
-            clearTo[ins] = r;
+        const r = b.range[i] + rOff[ins];
+        let pe: number, pn: number, pu: number;
+        if (curvature) {
+          const elev = Math.asin(Math.max(-1, Math.min(1, nu)));
+          const h = beamHeight(r, elev), s = groundDistance(r, elev, undefined, undefined, h);
+          const hn = Math.hypot(ne, nn) || 1;
+          pe = oe + (s * ne) / hn; pn = on + (s * nn) / hn; pu = ou + h;
+        } else {
+          pe = oe + r * ne; pn = on + r * nn; pu = ou + r * nu;
+        }
+        let gz = ground0;
+        if (flat) {
+          if (pu < groundMin) { why = R_BELOW_GROUND; break sample; }
+        } else {
+          gz = terrain.heightAt(pe, pn);
+          if (gz !== gz) { why = R_OUTSIDE_TERRAIN; break sample; }
+          if (pu < gz + clearance) { why = R_BELOW_GROUND; break sample; }
+          // Blocked beams of ground-based instruments (a nacelle instrument's beam moves with the nacelle: not cached).
+          if (onNacelle[ins] === 0 && r > clearTo[ins]) {
+            if (r >= blockedAt[ins]) { why = R_BLOCKED; break sample; }
+            if (blockedAt[ins] === Infinity) {
+              const at = firstBlockedRange(terrain, posVec[ins], ne, nn, nu, clearTo[ins], r, marchStep, curvature);
+              if (at <= r) { blockedAt[ins] = at; why = R_BLOCKED; break sample; }
+              clearTo[ins] = r;
+            }
           }
         }
+        const tg = targetOf[ins];
+        if (tg < 0) { why = R_OUTSIDE_PLANES; break sample; }
+        const target = targets[tg];
+        smp[0] = vr; smp[1] = ne; smp[2] = nn; smp[3] = nu; smp[4] = pe; smp[5] = pn; smp[6] = pu; smp[7] = t; smp[8] = gz;
+        let placedAny = false;
+        for (let k = 0; k < nDirected; k++) {
+          if (target.add(liveAccs[k][tg], liveFrames[k], ins, smp)) placedAny = true;
+        }
+        if (placedAny) { counters.accepted[ins]++; continue; }
+        why = target.outsideReason;
       }
-      const tg = targetOf[ins];
-      if (tg < 0) { counters.rejected[ins * NR + R.outside_planes]++; continue; }
-      const target = targets[tg];
-      smp[0] = vr; smp[1] = ne; smp[2] = nn; smp[3] = nu; smp[4] = pe; smp[5] = pn; smp[6] = pu; smp[7] = t; smp[8] = gz;
-      let placedAny = false;
-      for (let k = 0; k < nDirected; k++) {
-        const w = live[k];
-        if (target.add(w.accs[tg], w, ins, smp)) placedAny = true;
-      }
-      if (placedAny) counters.accepted[ins]++;
-      else counters.rejected[ins * NR + target.outsideReason]++;
+      counters.rejected[ins * NR + why]++;
     }
   };
 
@@ -463,8 +485,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   }
   if (record) {
     for (const w of open.values()) {
-      w.start_s = w.first_s;
-      w.end_s = w.last_s;
+      w.start_s = w.frame[FRAME.first];
+      w.end_s = w.frame[FRAME.last];
     }
   }
   await finishUpTo(Infinity);

@@ -9,7 +9,7 @@
  */
 import type { Instrument, Vec3 } from '../campaign/types.ts';
 import type { CellAccumulator } from '../grid/accumulator.ts';
-import { SAMPLE, type SampleTarget, type WindowFrame } from '../grid/target.ts';
+import { FRAME, SAMPLE, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { REJECT_INDEX } from '../qc/reasons.ts';
 
 export interface TrackerLayout {
@@ -55,8 +55,8 @@ export class TrackTarget implements SampleTarget {
     if (k < 0) return false;
     const l = this.layouts[k], tr = l.instrument.track!;
     const de = pe - this.origin[0], dn = pn - this.origin[1], z = pu - this.origin[2];
-    const x = de * f.dE + dn * f.dN;
-    const y = -de * f.dN + dn * f.dE;
+    const x = de * f[FRAME.dE] + dn * f[FRAME.dN];
+    const y = -de * f[FRAME.dN] + dn * f[FRAME.dE];
     const ix = Math.round((x - tr.x_m.min) / tr.x_m.step);
     if (ix < 0 || ix >= l.x.length) return false;
     const c = tr.sector === 'horizontal' ? y : z;
@@ -64,7 +64,7 @@ export class TrackTarget implements SampleTarget {
     if (ia < 0 || ia >= l.across.length) return false;
     let scan = 0;
     if (l.scans > 1) {
-      const t0 = f.start_s > -Infinity ? f.start_s : f.first_s;
+      const t0 = f[FRAME.start] > -Infinity ? f[FRAME.start] : f[FRAME.first];
       scan = Math.min(l.scans - 1, Math.max(0, Math.floor((t - t0) / tr.scan_s)));
     }
     const na = l.across.length;
