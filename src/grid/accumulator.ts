@@ -22,8 +22,8 @@
  * with the same beam direction less than BURST_GAP_S apart: a dwell on one point) the sums of squared differences
  * of ray means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
  * (rays of the key separated by less than BURST_GAP_S: one pass of a scanner through the cell, whatever points it
- * aimed at) and the sum and sum of squares of the burst means (the mean of a burst's samples, 2^-10 m/s); the count
- * and sum of
+ * aimed at) and the burst sums of the sampling term (per burst its weight, mean a_b and mean beam vector e_b,
+ * summed as described at W_CAP and E_SCALE below); the count and sum of
  * q of the samples in the later half of the window. These feed the sampling statistics of retrieval/sampling.ts.
  * Ray means within runs rather than successive samples: a fixed pattern along the beam or between the points a
  * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
@@ -63,7 +63,8 @@ export const DT_SCALE = 2 ** 10;
  * Fields of a slot in CellAccumulator.sums (stride STRIDE). Every field is a sum of integers, merged by addition.
  * n .. spz: the retrieval's sums. th, tl: time sums (high part in units of 2^26 quanta, remainder). l1n, l1h, l1l,
  * l1d: lag-1 pair count, product sums (high, low), gap sum; l2n, l2h, l2l: lag-2 pair count and product sums;
- * hn, hv: count and sum of q of the samples in the later half of the window.
+ * hn, hv: count and sum of q of the samples in the later half of the window; rb: bursts; sw .. Tez: the burst sums
+ * (E_SCALE below).
  */
 export const F = {
   n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8,
@@ -75,7 +76,7 @@ export const F = {
 } as const;
 export const STRIDE = 58;
 /**
- * Burst sums (fields sw .. Tez; grid/accumulator.ts docblock): per burst b its weight w_b = min(n_b, W_CAP) (n_b its
+ * Burst sums (fields sw .. Tez): per burst b its weight w_b = min(n_b, W_CAP) (n_b its
  * samples), its mean a_b (A_SCALE units, rounded) and mean beam unit vector e_b (E_SCALE units, each component
  * rounded to 2^-12 = 2.4e-4), T_b = w_b a_b and f_b = w_b e_b; summed: w, w^2, T, T^2, w T, f, w f, f f^T, T f (the
  * squares and products split in high and low parts). Each term stays below 2^48, the single ones below 2^32, so
@@ -288,9 +289,9 @@ export class CellAccumulator {
   }
 
   /**
-   * Close the open burst of slot s: its sample mean a_b (2^-10 m/s) joins the burst sums, with its mean beam vector
-   * e_b (E_SCALE): sum e_b, sum e_b e_b^T and sum a_b e_b, from which the sampling statistics remove the part of the
-   * burst means' scatter that the beam direction explains (retrieval/sampling.ts).
+   * Close the open burst of slot s: its weight w_b, sample mean a_b (2^-10 m/s) and mean beam vector e_b (E_SCALE)
+   * join the burst sums (E_SCALE docblock), from which the sampling statistics take the cluster-robust variance of
+   * the key's mean with the part the beam direction explains removed (retrieval/sampling.ts).
    */
   private closeRun(s: number): void {
     const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;

@@ -10,15 +10,26 @@
  *
  * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 bursts, taken as
  * independent of each other (a scanner's revisit time long against the integral time scale), it is estimated from
- * the data without a correlation model: var(mean) = C_run / B, C_run the variance of the key's burst means (the
- * differences between the points and beam directions a scanner's passes bring into one cell are included, which
- * errs on the safe side: seen as a slight over-coverage of w on simulated campaigns, README). The
- * inflation factor F = (C_run / B) / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
+ * the data without a correlation model, as the cluster-robust (sandwich) variance of a weighted mean over the bursts
+ * (burstMeanVariance; White 1980, Liang & Zeger 1986): B / (B - 1) sum_b w_b^2 (r_b - rbar)^2 / (sum w_b)^2, w_b the
+ * burst's samples (capped at W_CAP), which is right whether a burst's samples are correlated or not and for bursts
+ * of unequal size. r_b = a_b - V . e_b: the burst mean less the projection of the cell's retrieved velocity V on the
+ * burst's mean beam vector e_b, so that the differences between the points and beam directions a scanner's passes
+ * bring into one cell do not count as sampling error (the sums over bursts in the accumulator make this exact
+ * algebra; V comes from the solve, so robustFilter gives a first estimate without it and retrieveStats refines it
+ * once every cell is solved: robustFilter.ts samplingSums). Before this (the plain variance of the burst means over
+ * B) the term over-stated w on simulated campaigns: bursts of 1 to 32 samples (the plain scatter exceeds s^2 / n by
+ * the ratio of the arithmetic to the harmonic mean of the n_b) and of several beam directions. The
+ * inflation factor F = var / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
  * numerators over sum of the denominators, keys with B >= 2); each key's own factor (from its B bursts) is shrunk
  * toward the instrument's, F_key = (B F_own + 10 F) / (B + 10), so that a cell with a few bursts borrows the
  * instrument's; floored at 1. Each key's mean then has var = F_key s^2 / n, N_eff = n / F_key. This is the sampling
  * error of a mean over autocorrelated samples (Lenschow, Mann & Kristensen 1994, J. Atmos. Oceanic Technol. 11,
  * 661-673: var = 2 tau s^2 / T for a record of length T >> tau) measured by the scatter of independent sub-means.
+ * Coverage (share of true values within two combined standard uncertainties, README): simulator seeds 7, 11, 23,
+ * 31, 43, independent samples u 93.9-96.4 %, v 87.3-93.2 %, w 96.0-98.6 %; correlated (1 s) u 91.8-94.9 %,
+ * v 90.2-96.1 %, w 95.2-98.0 %; the advected-turbulence campaign of test/helpers/advectedCampaign.ts (seeds 5-9)
+ * 93.6-97.7 % for every component.
  *
  * A single burst (a staring beam) or fewer than MIN_RUNS bursts over the instrument's keys: a first-order autoregressive model of the ray means with white noise,
  * C(0) = s_t^2 + s_e^2, C(k) = s_t^2 r^k (k >= 1). Within runs the structure function D(k) = <(a_j - a_{j-k})^2>
