@@ -15,8 +15,10 @@
  * direction (wind_from_direction), window_index. The site-frame components carry no standard error: it would need
  * the u-v covariance, which the retrieval does not keep.
  */
+import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import type { Campaign } from '../campaign/types.ts';
+import type { Campaign, PlaneSpec } from '../campaign/types.ts';
+import type { GridSpec } from '../grid/grid.ts';
 import { enuToWgs84 } from '../geometry/geodetic.ts';
 import { dictionaryAttrs, runAttributes } from '../io/netcdfTable.ts';
 import { ncWorker, type NcAttr, type NcTarget, type NcWorker } from '../io/netcdfWrite.ts';
@@ -56,6 +58,9 @@ interface PlaneFile {
 
 type TypedArray = Float64Array | Float32Array | Int32Array | Int8Array;
 
+/** What a plane's file is made from: the plane's identity, orientation, level and grid. */
+type PlaneOfFile = Pick<FieldResult, 'planeId' | 'orientation' | 'x_m' | 'z_m' | 'grid'>;
+
 /**
  * Windows buffered per plane before a write: one HDF5 resize and write per variable for many windows instead of one
  * per window (measured about 7 ms per window and plane written one by one, most of it per-call overhead). Memory:
@@ -87,8 +92,20 @@ export class FieldNetcdf {
 
   private readonly worker: NcWorker;
 
-  private async open(f: FieldResult, key: string): Promise<PlaneFile> {
-    const bins = f.window.kind === 'ensemble';
+  /**
+   * Opens the window file of every plane now (call before the ingest): the writer thread defines their dimensions
+   * and variables while the samples are read, so the end of the run only appends. A file that gets no window is
+   * removed when closed (as if never opened).
+   */
+  openPlanes(planes: { spec: PlaneSpec; grid: GridSpec }[]): void {
+    if (planes.length) mkdirSync(join(this.runDir, 'fields'), { recursive: true });
+    for (const p of planes) {
+      const key = `${p.spec.id}|window`;
+      if (!this.files.has(key)) this.open({ planeId: p.spec.id, orientation: p.spec.orientation, x_m: p.spec.orientation === 'cross' ? p.spec.x_m : NaN, z_m: p.spec.orientation === 'cross' ? NaN : p.spec.z_m, grid: p.grid }, false, key);
+    }
+  }
+
+  private open(f: PlaneOfFile, bins: boolean, key: string): PlaneFile {
     const dim = bins ? 'bin' : 'window';
     const rel = join('fields', bins ? `${f.planeId}_bins.nc` : `${f.planeId}.nc`);
     const w = this.worker.create(join(this.runDir, rel));
@@ -150,7 +167,7 @@ export class FieldNetcdf {
   /** Appends one field (one plane, one window) to its plane's file. */
   async add(f: FieldResult, ordinal: number): Promise<void> {
     const key = `${f.planeId}|${f.window.kind === 'ensemble' ? 'bin' : 'window'}`;
-    const pf = this.files.get(key) ?? (await this.open(f, key));
+    const pf = this.files.get(key) ?? this.open(f, f.window.kind === 'ensemble', key);
     const n = pf.cells, g = f.grid;
     const w = { append: (name: string, values: TypedArray) => { const l = pf.pending.get(name); if (l) l.push(values); else pf.pending.set(name, [values]); } };
     const D = (f.direction_deg * Math.PI) / 180, sD = Math.sin(D), cD = Math.cos(D);
@@ -209,6 +226,10 @@ export class FieldNetcdf {
   async close(): Promise<OutputRecord[]> {
     const out: OutputRecord[] = [];
     for (const pf of this.files.values()) {
+      if (pf.windows === 0) {
+        await pf.w.abort(); // opened early for a plane no window reached
+        continue;
+      }
       this.flush(pf);
       await pf.w.close();
       out.push({ kind: 'field-netcdf', path: pf.path, plane: pf.planeId, description: `retrieved wind fields of plane ${pf.planeId}, ${pf.windows} ${pf.bins ? 'condition bins' : 'windows'}, NetCDF-4/CF` });

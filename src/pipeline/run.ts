@@ -92,6 +92,8 @@ export interface RunProgress {
  */
 export interface RunStage {
   name: string;
+  /** Before the first sample is read, with the campaign's planes (for work that can overlap the ingest). */
+  start?(ctx: StageContext, planes: PlaneGrid[]): void;
   field?(f: FieldResult, ctx: StageContext): Promise<OutputRecord[]>;
   finish?(ctx: StageContext): Promise<OutputRecord[]>;
   /** Runs after the manifest's end time, timings and peak memory are final, so what it writes (the report) shows
@@ -275,6 +277,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     // 3. Ingest and retrieve, window by window.
     // NetCDF outputs: the writer thread loads the HDF5 library now, beside the ingest, not after the last window.
     if (c.output.netcdf && stages.some((st) => st.name === 'netcdf')) ncWorker();
+    for (const stage of stages) stage.start?.(stageCtx, planes);
     progress.stage('reading samples');
     progress.expect?.(pre.estimatedRows);
     t = performance.now();

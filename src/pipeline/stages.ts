@@ -274,6 +274,11 @@ export function netcdfStage(): RunStage {
   let nc: FieldNetcdf | undefined;
   return {
     name: 'netcdf',
+    start(ctx, planes) {
+      if (!ctx.campaign.output.netcdf) return;
+      nc ??= new FieldNetcdf(ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256);
+      nc.openPlanes(planes);
+    },
     async field(f, ctx) {
       if (!ctx.campaign.output.netcdf) return [];
       nc ??= new FieldNetcdf(ctx.campaign, ctx.runDir, ctx.manifest.campaign.sha256);
