@@ -10,7 +10,7 @@ import { mulberry32, gaussian } from '../src/math/random.ts';
 import { cellBudget, derivatives, probeSecondMoment, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
 import { emptyCellStats } from '../src/retrieval/cellStats.ts';
 import { robustFilter } from '../src/retrieval/robustFilter.ts';
-import { effectiveCount, emptyKeySampling, instrumentSampling, keySampling } from '../src/retrieval/sampling.ts';
+import { burstMeanVariance, effectiveCount, emptyKeySampling, instrumentSampling, keySampling } from '../src/retrieval/sampling.ts';
 import { pulseWidthParameter } from '../src/geometry/probe.ts';
 
 const DEG = Math.PI / 180;
@@ -65,6 +65,67 @@ describe('sampling term from the accumulator', () => {
     const n = 80, s2n = 80 / 79 / 80, vm = 20 / 19 / 20;
     expect(stats.vb[0] / (n * n)).toBeCloseTo(vm - s2n, 9); // fixed-point means (2^-10 m/s) are exact here
     expect(stats.ne[0]).toBeCloseTo(n / (vm / s2n), 6); // effective samples n / F = 19.24
+  });
+
+  it('bursts of unequal size and beam direction: the sums give the cluster-robust variance of the weighted mean of a_b - V . e_b', () => {
+    // Cluster-robust (sandwich) variance of a mean over clusters (White 1980, Econometrica 48, 817-838; Liang &
+    // Zeger 1986, Biometrika 73, 13-22; from memory): var = B / (B - 1) sum_b n_b^2 (r_b - rbar)^2 / (sum n_b)^2,
+    // rbar the n-weighted mean of r_b. Computed here directly from the samples, against the accumulator's sums.
+    const acc = new CellAccumulator(1, 1);
+    const rnd = mulberry32(4);
+    const V = [7.5, -0.6, 0.3];
+    const sizes = [1, 9, 3, 16, 2, 7, 4, 12];
+    const bursts: { n: number; sv: number; e: number[] }[] = [];
+    let t = 5000;
+    sizes.forEach((nb, b) => {
+      // Each burst: rays of 1 to 3 gates, each ray its own beam (the scanner moves on), a burst-level offset + noise.
+      const off = 0.4 * gaussian(rnd);
+      const rec = { n: 0, sv: 0, e: [0, 0, 0] };
+      let left = nb, tr = t;
+      while (left > 0) {
+        const gates = Math.min(left, 1 + Math.floor(3 * rnd()));
+        const e = unit(20 + 30 * rnd() + 4 * b, 2 + 10 * rnd());
+        for (let g = 0; g < gates; g++) {
+          const vr = V[0] * e[0] + V[1] * e[1] + V[2] * e[2] + off + 0.2 * gaussian(rnd);
+          acc.add(0, vr, e[0], e[1], e[2], 0, 0, tr, NaN);
+          rec.n++; rec.sv += vr; e.forEach((x, k) => (rec.e[k] += x));
+        }
+        left -= gates; tr += 0.3;
+      }
+      bursts.push(rec);
+      t += 40; // a new pass (gap > 5 s)
+    });
+    acc.closeRays();
+    const direct = (vel: number[] | undefined) => {
+      const r = bursts.map((b) => b.sv / b.n - (vel ? vel.reduce((a, v, k) => a + (v * b.e[k]) / b.n, 0) : 0));
+      const N = bursts.reduce((a, b) => a + b.n, 0);
+      const rbar = bursts.reduce((a, b, i) => a + b.n * r[i], 0) / N;
+      const B = bursts.length;
+      return (B / (B - 1)) * bursts.reduce((a, b, i) => a + b.n * b.n * (r[i] - rbar) ** 2, 0) / (N * N);
+    };
+    const vel = Float64Array.from(V);
+    // Tolerance: burst means are rounded to 2^-10 m/s and mean beam components to 2^-12, so each r_b is off by at most
+    // 2^-11 + |V|_1 2^-13 = 1.5e-3 m/s; the variance (about 0.02 here) moves by well under 3 %.
+    expect(Math.abs(burstMeanVariance(acc.sums, 0, 0, 0, vel) / direct(V) - 1)).toBeLessThan(0.03);
+    expect(Math.abs(burstMeanVariance(acc.sums, 0, 0, 0) / direct(undefined) - 1)).toBeLessThan(0.03);
+    // The beam directions explain part of the plain scatter: the residual variance is the smaller one here.
+    expect(burstMeanVariance(acc.sums, 0, 0, 0, vel)).toBeLessThan(burstMeanVariance(acc.sums, 0, 0, 0));
+  });
+
+  it('burst means that differ only by their beam direction (a_b = V . e_b exactly): no sampling variance with V', () => {
+    const acc = new CellAccumulator(1, 1);
+    const V = [8, 0.5, -0.2];
+    let t = 100;
+    for (let b = 0; b < 12; b++) {
+      const e = unit(30 + 3 * b, 5 + 0.5 * b); // each pass another point of the cell
+      for (let k = 0; k < 1 + (b % 4); k++) acc.add(0, V[0] * e[0] + V[1] * e[1] + V[2] * e[2], e[0], e[1], e[2], 0, 0, t + 0.25 * k, NaN);
+      t += 30;
+    }
+    acc.closeRays();
+    // Without V the burst means scatter by 8 m/s times the spread of e_x (a few hundredths): a variance of order 1e-2.
+    expect(burstMeanVariance(acc.sums, 0, 0, 0)).toBeGreaterThan(1e-3);
+    // With V only the rounding of a_b (2^-11 m/s at most) and e_b (8.7 * 2^-13) is left: below (2e-3)^2.
+    expect(burstMeanVariance(acc.sums, 0, 0, 0, Float64Array.from(V))).toBeLessThan(4e-6);
   });
 
   it('structure-function fit recovers the integral time scale and the noise share of an Ornstein-Uhlenbeck series with noise', () => {

@@ -22,8 +22,8 @@
  * with the same beam direction less than BURST_GAP_S apart: a dwell on one point) the sums of squared differences
  * of ray means at lags 1, 2 and 3 with their pair counts and the sum of the lag-1 time gaps (2^-10 s); the number of bursts
  * (rays of the key separated by less than BURST_GAP_S: one pass of a scanner through the cell, whatever points it
- * aimed at) and the sum and sum of squares of the burst means (the mean of a burst's samples, 2^-10 m/s); the count
- * and sum of
+ * aimed at) and the burst sums of the sampling term (per burst its weight, mean a_b and mean beam vector e_b,
+ * summed as described at W_CAP and E_SCALE below); the count and sum of
  * q of the samples in the later half of the window. These feed the sampling statistics of retrieval/sampling.ts.
  * Ray means within runs rather than successive samples: a fixed pattern along the beam or between the points a
  * scanner visits in one cell would otherwise look like a correlation in time. Squares split at 2^26.
@@ -63,14 +63,30 @@ export const DT_SCALE = 2 ** 10;
  * Fields of a slot in CellAccumulator.sums (stride STRIDE). Every field is a sum of integers, merged by addition.
  * n .. spz: the retrieval's sums. th, tl: time sums (high part in units of 2^26 quanta, remainder). l1n, l1h, l1l,
  * l1d: lag-1 pair count, product sums (high, low), gap sum; l2n, l2h, l2l: lag-2 pair count and product sums;
- * hn, hv: count and sum of q of the samples in the later half of the window.
+ * hn, hv: count and sum of q of the samples in the later half of the window; rb: bursts; sw .. Tez: the burst sums
+ * (E_SCALE below).
  */
 export const F = {
   n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8,
   th: 9, tl: 10, ra: 11, sa: 12, sa2h: 13, sa2l: 14, rb: 15, l1n: 16, l1h: 17, l1l: 18, l1d: 19, l2n: 20, l2h: 21, l2l: 22,
-  l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27, ru: 28, ru2h: 29, ru2l: 30,
+  l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27,
+  sw: 28, sw2: 29, sT: 30, sT2h: 31, sT2l: 32, swT: 33, swex: 34, swey: 35, swez: 36, swwex: 37, swwey: 38, swwez: 39,
+  exxh: 40, exxl: 41, exyh: 42, exyl: 43, exzh: 44, exzl: 45, eyyh: 46, eyyl: 47, eyzh: 48, eyzl: 49, ezzh: 50, ezzl: 51,
+  Texh: 52, Texl: 53, Teyh: 54, Teyl: 55, Tezh: 56, Tezl: 57,
 } as const;
-export const STRIDE = 31;
+export const STRIDE = 58;
+/**
+ * Burst sums (fields sw .. Tez): per burst b its weight w_b = min(n_b, W_CAP) (n_b its
+ * samples), its mean a_b (A_SCALE units, rounded) and mean beam unit vector e_b (E_SCALE units, each component
+ * rounded to 2^-12 = 2.4e-4), T_b = w_b a_b and f_b = w_b e_b; summed: w, w^2, T, T^2, w T, f, w f, f f^T, T f (the
+ * squares and products split in high and low parts). Each term stays below 2^48, the single ones below 2^32, so
+ * the sums are exact up to 2^21 bursts per key (four months of passes 5 s apart in one window).
+ */
+export const E_SCALE = 2 ** 12;
+/** Largest weight of one burst in the burst sums (samples). */
+export const W_CAP = 256;
+/** Fixed-point scale of the beam components summed per sample within an open burst (lag state). */
+const EB_SCALE = 2 ** 20;
 /** Values of one sample for CellAccumulator.addValues: v_r, beam nx, ny, nz, position py, pz, time t, window middle tMid. */
 export const ADD_FIELDS = 8;
 /**
@@ -85,10 +101,12 @@ export const A_SCALE = 2 ** 10;
  * direction; the last three closed ray means (a) of the current run, the time and direction of the last closed ray;
  * closed rays of the run (capped at 3).
  */
-export const LAG_STRIDE = 16;
+export const LAG_STRIDE = 19;
 const L_Q = 0, L_M = 1, L_T = 2, L_NX = 3, L_NY = 4, L_NZ = 5, L_A1 = 6, L_A2 = 7, L_A3 = 8, L_T1 = 9, L_SEEN = 10, L_PX = 11, L_PY = 12, L_PZ = 13;
 /** Sum of q and count of the samples of the open burst. */
 const L_RQ = 14, L_RM = 15;
+/** Sums of the beam components (EB_SCALE units, integers) of the samples of the open burst. */
+const L_RX = 16, L_RY = 17, L_RZ = 18;
 const Q_TO_A = A_SCALE / VR_SCALE;
 
 export class CellAccumulator {
@@ -239,6 +257,10 @@ export class CellAccumulator {
     }
     L[lo + L_RQ] += L[lo + L_Q];
     L[lo + L_RM] += L[lo + L_M];
+    // The ray's beam (one direction per time stamp), weighted by its samples, for the burst's mean beam vector.
+    L[lo + L_RX] += L[lo + L_M] * (L[lo + L_NX] * EB_SCALE + RND - RND);
+    L[lo + L_RY] += L[lo + L_M] * (L[lo + L_NY] * EB_SCALE + RND - RND);
+    L[lo + L_RZ] += L[lo + L_M] * (L[lo + L_NZ] * EB_SCALE + RND - RND);
     if (seen >= 1) {
       m[o + F.l1n]++;
       const d1 = a - L[lo + L_A1];
@@ -266,15 +288,31 @@ export class CellAccumulator {
     L[lo + L_M] = 0;
   }
 
-  /** Close the open run of slot s: its sample mean (2^-10 m/s) joins the run sums. */
+  /**
+   * Close the open burst of slot s: its weight w_b, sample mean a_b (2^-10 m/s) and mean beam vector e_b (E_SCALE)
+   * join the burst sums (E_SCALE docblock), from which the sampling statistics take the cluster-robust variance of
+   * the key's mean with the part the beam direction explains removed (retrieval/sampling.ts).
+   */
   private closeRun(s: number): void {
     const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
-    if (L[lo + L_RM] === 0) return;
-    const b = (L[lo + L_RQ] / L[lo + L_RM]) * Q_TO_A + RND - RND;
-    m[o + F.ru] += b;
-    splitAdd(m, o + F.ru2h, b * b);
+    const M = L[lo + L_RM];
+    if (M === 0) return;
+    const a = (L[lo + L_RQ] / M) * Q_TO_A + RND - RND;
+    const k = E_SCALE / (EB_SCALE * M);
+    const ex = L[lo + L_RX] * k + RND - RND, ey = L[lo + L_RY] * k + RND - RND, ez = L[lo + L_RZ] * k + RND - RND;
+    const w = M < W_CAP ? M : W_CAP;
+    const T = w * a, fx = w * ex, fy = w * ey, fz = w * ez;
+    m[o + F.sw] += w; m[o + F.sw2] += w * w; m[o + F.sT] += T;
+    splitAdd(m, o + F.sT2h, T * T);
+    m[o + F.swT] += w * T;
+    m[o + F.swex] += fx; m[o + F.swey] += fy; m[o + F.swez] += fz;
+    m[o + F.swwex] += w * fx; m[o + F.swwey] += w * fy; m[o + F.swwez] += w * fz;
+    splitAdd(m, o + F.exxh, fx * fx); splitAdd(m, o + F.exyh, fx * fy); splitAdd(m, o + F.exzh, fx * fz);
+    splitAdd(m, o + F.eyyh, fy * fy); splitAdd(m, o + F.eyzh, fy * fz); splitAdd(m, o + F.ezzh, fz * fz);
+    splitAdd(m, o + F.Texh, T * fx); splitAdd(m, o + F.Teyh, T * fy); splitAdd(m, o + F.Tezh, T * fz);
     L[lo + L_RQ] = 0;
     L[lo + L_RM] = 0;
+    L[lo + L_RX] = 0; L[lo + L_RY] = 0; L[lo + L_RZ] = 0;
   }
 
   /** Close every open ray and run (before the budget sums are read, and before a merge). */

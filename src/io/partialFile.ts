@@ -17,7 +17,7 @@ import { closeSync, fstatSync, openSync, readSync, renameSync, rmSync, writeSync
 import { endianness } from 'node:os';
 import type { TypedArray } from '../grid/accumulatorState.ts';
 
-export const PARTIAL_FORMAT = 1;
+export const PARTIAL_FORMAT = 2;
 const MAGIC = Buffer.from('WAKEPLANE-PART\n\0', 'latin1');
 MAGIC[15] = PARTIAL_FORMAT;
 const END = Buffer.from('WPEND\0\0\0', 'latin1');

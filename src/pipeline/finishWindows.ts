@@ -92,9 +92,9 @@ export class WindowFinisher {
     const tr = performance.now();
     const ordinal = this.windows.length;
     const info = { index: ordinal, start_s: w.start_s, end_s: w.end_s, kind: w.def.kind, label: w.def.label, level: w.def.level };
-    const { stats, outliers } = robustFilter(w.accs[0], this.settings.robust, w);
+    const { stats, outliers, sampling } = robustFilter(w.accs[0], this.settings.robust, w);
     const geoOutliers = this.geometry?.window(w, ordinal);
-    const fields = retrieveStats(stats, this.planes, info, w.direction_deg, this.settings);
+    const fields = retrieveStats(stats, this.planes, info, w.direction_deg, this.settings, sampling);
     const outlierCount = outliers.reduce((a, b) => a + b, 0);
     // With disjoint windows every sample is in one window: its outliers are run-level rejections. With
     // overlapping windows a sample can be an outlier in one window and kept in another: counted per window.

@@ -22,7 +22,7 @@ import type { WindowSamples } from '../grid/windowSamples.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { instrumentMeans, type CellStats } from './cellStats.ts';
-import { robustFilter } from './robustFilter.ts';
+import { robustFilter, samplingSums, type WindowSampling } from './robustFilter.ts';
 import { DEFAULT_SIGMA_FLOOR_MS, W_ZERO_ASSUMPTION, type PlaneGrid, type RetrievalSettings } from './settings.ts';
 import { emptyCellSolution, solve2, solve3, type CellSolution } from './solveCell.ts';
 import { MaskReason, type FieldResult, type WindowInfo } from './types.ts';
@@ -149,16 +149,19 @@ export function retrieveWindow(
   samples: WindowSamples, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
 ): WindowRetrieval {
   const acc = accumulateSamples(samples, planes, settings.instrumentCount, (window.start_s + window.end_s) / 2);
-  const { stats, outliers } = robustFilter(acc, settings.robust, window);
-  return { fields: retrieveStats(stats, planes, window, direction_deg, settings), outliers };
+  const { stats, outliers, sampling } = robustFilter(acc, settings.robust, window);
+  return { fields: retrieveStats(stats, planes, window, direction_deg, settings, sampling), outliers };
 }
 
 /**
  * Retrieve every plane from kept-sample statistics (one window, or the merged statistics of an ensemble).
- * `direction_deg` is the wind direction that defined the rotor frame (recorded in each field).
+ * `direction_deg` is the wind direction that defined the rotor frame (recorded in each field). `sampling` (one
+ * window with the budget on, from robustFilter): once every plane is solved, the budget sums of `stats` are refined
+ * with the cells' velocities (robustFilter.ts samplingSums) before the budget pass; an ensemble's merged `stats`
+ * already hold its windows' refined sums.
  */
 export function retrieveStats(
-  stats: CellStats, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings,
+  stats: CellStats, planes: PlaneGrid[], window: WindowInfo, direction_deg: number, settings: RetrievalSettings, sampling?: WindowSampling,
 ): FieldResult[] {
   const I = settings.instrumentCount;
   if (stats.instrumentCount !== I || stats.keyCount !== keyCountOf(planes, I)) {
@@ -176,6 +179,7 @@ export function retrieveStats(
   const sol = emptyCellSolution();
   const fields: FieldResult[] = [];
   const budget = settings.budget?.enabled ? settings.budget : undefined;
+  const planeCells: PlaneCells[] = [];
 
   for (let j = 0; j < planes.length; j++) {
     const f = emptyField(planes[j], window, direction_deg);
@@ -222,11 +226,28 @@ export function retrieveStats(
       if (Number.isFinite(sol.u)) effectivePosition(rows, wts, posY, posZ, K, K >= 3 ? 3 : 2, f, c);
     }
     if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
-    if (budget && cells) {
-      const spec = planes[j].spec;
-      fieldBudget(f, cells, st, stats, budget, floor2, spec.orientation === 'cross' ? spec.x_m : spec.z_m);
-    }
     fields.push(f);
+    if (cells) planeCells.push(cells);
   }
+  if (!budget) return fields;
+  if (sampling) {
+    // The cells' velocities per key (w = 0 where it was not solved), for the burst residuals of the sampling term.
+    const vel = new Float64Array(stats.keyCount * 3).fill(NaN);
+    fields.forEach((f, j) => {
+      const nc = planes[j].grid.ny * planes[j].grid.nz;
+      for (let c = 0; c < nc; c++) {
+        if (!Number.isFinite(f.u[c]) || !Number.isFinite(f.v[c])) continue;
+        const w = Number.isFinite(f.w[c]) ? f.w[c] : 0;
+        for (let i = 0, k = (cellOffset[j] + c) * I; i < I; i++, k++) {
+          vel[k * 3] = f.u[c]; vel[k * 3 + 1] = f.v[c]; vel[k * 3 + 2] = w;
+        }
+      }
+    });
+    samplingSums(stats, sampling, vel);
+  }
+  fields.forEach((f, j) => {
+    const spec = planes[j].spec;
+    fieldBudget(f, planeCells[j], st, stats, budget, floor2, spec.orientation === 'cross' ? spec.x_m : spec.z_m);
+  });
   return fields;
 }

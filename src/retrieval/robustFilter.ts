@@ -30,6 +30,19 @@ export interface RobustResult {
   stats: CellStats;
   /** Samples rejected by the filter, per instrument. */
   outliers: Float64Array;
+  /**
+   * With the budget on: what refines the sampling statistics once the cells are solved (samplingSums with the
+   * cells' velocities; retrieveStats calls it before the budget pass). Valid until the accumulator is reset.
+   */
+  sampling?: WindowSampling;
+}
+
+/** A finished window's accumulator with what its sampling statistics need beside the kept statistics. */
+export interface WindowSampling {
+  acc: CellAccumulator;
+  /** Per slot: squared deviations of the rejected samples from the kept mean, m^2/s^2. */
+  dev2: Float64Array;
+  window: { start_s: number; end_s: number };
 }
 
 /** Apply the filter to every key of a finished window's accumulator. */
@@ -39,10 +52,7 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings, windo
   const outliers = new Float64Array(I);
   const hs = emptyHistogramStats();
   const minN = Math.max(3, robust.minSamples);
-  const ks = emptyKeySampling();
   const budget = window !== undefined && acc.budget;
-  const tMid = window ? (window.start_s + window.end_s) / 2 : NaN;
-  const halfT = window ? (window.end_s - window.start_s) / 2 : NaN;
   if (budget) acc.closeRays();
   // Per slot: squared deviations of the rejected samples from the kept mean (m^2/s^2), for the budget's sums.
   const dev2 = budget ? new Float64Array(acc.slots) : undefined;
@@ -74,17 +84,33 @@ export function robustFilter(acc: CellAccumulator, robust: RobustSettings, windo
       dev2[s] = Math.max(0, rss - 2 * mu * rs + rej * mu * mu);
     }
   }
-  if (budget && dev2) {
-    const insSampling = instrumentSampling(acc, dev2);
-    for (let s = 0; s < acc.slots; s++) {
-      const key = acc.keyOf[s];
-      const kept = stats.n[key];
-      if (kept < 2) continue;
-      const is = insSampling[key % I];
-      budgetSums(stats, key, kept, keySampling(acc, s, is, ks), is, tMid, halfT);
-    }
+  if (budget && dev2 && window) {
+    const sampling = { acc, dev2, window };
+    samplingSums(stats, sampling);
+    return { stats, outliers, sampling };
   }
   return { stats, outliers };
+}
+
+/**
+ * The budget sums of every key of a window (CellStats docblock; overwritten, so it can run again): from the key's and
+ * its instrument's sampling statistics (sampling.ts). `vel` (rotor frame, m/s, three per key; NaN where the cell
+ * was not solved): the cells' retrieved velocities, whose projection on each burst's mean beam is removed from
+ * the burst means' scatter; without it the plain scatter is used.
+ */
+export function samplingSums(stats: CellStats, w: WindowSampling, vel?: Float64Array): void {
+  const { acc, dev2, window } = w;
+  const ks = emptyKeySampling();
+  const tMid = (window.start_s + window.end_s) / 2, halfT = (window.end_s - window.start_s) / 2;
+  const I = acc.instrumentCount;
+  const insSampling = instrumentSampling(acc, dev2, vel);
+  for (let s = 0; s < acc.slots; s++) {
+    const key = acc.keyOf[s];
+    const kept = stats.n[key];
+    if (kept < 2) continue;
+    const is = insSampling[key % I];
+    budgetSums(stats, key, kept, keySampling(acc, s, is, ks, vel), is, tMid, halfT);
+  }
 }
 
 /** The budget sums of one key (CellStats docblock) from its sampling statistics and its kept samples. */

@@ -10,15 +10,26 @@
  *
  * Variance of a key's mean. If the samples were independent it would be s^2 / n. With B >= 2 bursts, taken as
  * independent of each other (a scanner's revisit time long against the integral time scale), it is estimated from
- * the data without a correlation model: var(mean) = C_run / B, C_run the variance of the key's burst means (the
- * differences between the points and beam directions a scanner's passes bring into one cell are included, which
- * errs on the safe side: seen as a slight over-coverage of w on simulated campaigns, README). The
- * inflation factor F = (C_run / B) / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
+ * the data without a correlation model, as the cluster-robust (sandwich) variance of a weighted mean over the bursts
+ * (burstMeanVariance; White 1980, Liang & Zeger 1986): B / (B - 1) sum_b w_b^2 (r_b - rbar)^2 / (sum w_b)^2, w_b the
+ * burst's samples (capped at W_CAP), which is right whether a burst's samples are correlated or not and for bursts
+ * of unequal size. r_b = a_b - V . e_b: the burst mean less the projection of the cell's retrieved velocity V on the
+ * burst's mean beam vector e_b, so that the differences between the points and beam directions a scanner's passes
+ * bring into one cell do not count as sampling error (the sums over bursts in the accumulator make this exact
+ * algebra; V comes from the solve, so robustFilter gives a first estimate without it and retrieveStats refines it
+ * once every cell is solved: robustFilter.ts samplingSums). Before this (the plain variance of the burst means over
+ * B) the term over-stated w on simulated campaigns: bursts of 1 to 32 samples (the plain scatter exceeds s^2 / n by
+ * the ratio of the arithmetic to the harmonic mean of the n_b) and of several beam directions. The
+ * inflation factor F = var / (s^2 / n) is pooled over all keys of the instrument in the window (sum of the
  * numerators over sum of the denominators, keys with B >= 2); each key's own factor (from its B bursts) is shrunk
  * toward the instrument's, F_key = (B F_own + 10 F) / (B + 10), so that a cell with a few bursts borrows the
  * instrument's; floored at 1. Each key's mean then has var = F_key s^2 / n, N_eff = n / F_key. This is the sampling
  * error of a mean over autocorrelated samples (Lenschow, Mann & Kristensen 1994, J. Atmos. Oceanic Technol. 11,
  * 661-673: var = 2 tau s^2 / T for a record of length T >> tau) measured by the scatter of independent sub-means.
+ * Coverage (share of true values within two combined standard uncertainties, README): simulator seeds 7, 11, 23,
+ * 31, 43, independent samples u 93.9-96.4 %, v 87.3-93.2 %, w 96.0-98.6 %; correlated (1 s) u 91.8-94.9 %,
+ * v 90.2-96.1 %, w 95.2-98.0 %; the advected-turbulence campaign of test/helpers/advectedCampaign.ts (seeds 5-9)
+ * 93.6-97.7 % for every component.
  *
  * A single burst (a staring beam) or fewer than MIN_RUNS bursts over the instrument's keys: a first-order autoregressive model of the ray means with white noise,
  * C(0) = s_t^2 + s_e^2, C(k) = s_t^2 r^k (k >= 1). Within runs the structure function D(k) = <(a_j - a_{j-k})^2>
@@ -47,7 +58,7 @@
  * makes F low (the reported integral time scale shows when this happens: it should stay well below the gap between
  * a scanner's passes).
  */
-import { A_SCALE, DT_SCALE, F, SQ_SPLIT, STRIDE, T_SCALE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
+import { A_SCALE, DT_SCALE, E_SCALE, F, SQ_SPLIT, STRIDE, T_SCALE, VR_SCALE, type CellAccumulator } from '../grid/accumulator.ts';
 
 /** Largest lag-1 correlation used, dimensionless (a series that hardly decorrelates). */
 export const R_MAX = 0.99;
@@ -69,6 +80,42 @@ export interface InstrumentSampling {
   estimated: boolean;
 }
 
+/**
+ * Variance of slot s's mean from its bursts (m^2/s^2; NaN with fewer than two bursts): the cluster-robust (sandwich)
+ * variance of a weighted mean, B / (B - 1) sum_b w_b^2 (r_b - rbar)^2 / (sum_b w_b)^2, with weights w_b = n_b
+ * (capped at W_CAP), which holds whether a burst's samples are independent or correlated, and for bursts of
+ * unequal size (the plain scatter of the burst means divided by B would not: for independent samples it would
+ * exceed s^2 / n by the ratio of the arithmetic to the harmonic mean of the n_b). r_b = a_b - V . e_b: with the
+ * cell's velocity `vel` (rotor frame, m/s, at vel[key * 3]; NaN when not solved) the part of the burst means that
+ * their mean beam direction explains is removed; without it r_b = a_b. rbar is the weighted mean of the r_b. From
+ * the accumulator's burst sums: sum (w r)^2 = sum T^2 - 2 V . sum T f + V^T (sum f f^T) V, sum w (w r) = sum w T -
+ * V . sum w f, rbar = (sum T - V . sum f) / sum w (T = w a, f = w e). `d2` (m^2/s^2): the rejected samples' squared
+ * deviations, each of which entered its burst's w r once (instrumentSampling).
+ */
+export function burstMeanVariance(m: Float64Array, o: number, key: number, d2: number, vel?: Float64Array): number {
+  const B = m[o + F.rb];
+  if (B < 2) return NaN;
+  const A = A_SCALE, E = E_SCALE;
+  const sw = m[o + F.sw], sw2 = m[o + F.sw2];
+  let q2 = (m[o + F.sT2h] * SQ_SPLIT + m[o + F.sT2l]) / (A * A);
+  let q1 = m[o + F.swT] / A;
+  let r = m[o + F.sT] / A;
+  const vx = vel ? vel[key * 3] : NaN;
+  if (vx === vx && vel) {
+    const vy = vel[key * 3 + 1], vz = vel[key * 3 + 2];
+    const sp = (h: number) => m[o + h] * SQ_SPLIT + m[o + h + 1];
+    const vTf = (vx * sp(F.Texh) + vy * sp(F.Teyh) + vz * sp(F.Tezh)) / (A * E);
+    const vffv = (vx * vx * sp(F.exxh) + vy * vy * sp(F.eyyh) + vz * vz * sp(F.ezzh)
+      + 2 * (vx * vy * sp(F.exyh) + vx * vz * sp(F.exzh) + vy * vz * sp(F.eyzh))) / (E * E);
+    q2 = q2 - 2 * vTf + vffv;
+    q1 -= (vx * m[o + F.swwex] + vy * m[o + F.swwey] + vz * m[o + F.swwez]) / E;
+    r -= (vx * m[o + F.swex] + vy * m[o + F.swey] + vz * m[o + F.swez]) / E;
+  }
+  const rbar = r / sw;
+  const S = q2 - 2 * rbar * q1 + rbar * rbar * sw2 - d2;
+  return Math.max(0, (B / (B - 1)) * S / (sw * sw));
+}
+
 /** Weight (in bursts) of the instrument's pooled inflation against a key's own estimate. */
 export const SHRINK_BURSTS = 10;
 /** Fewest bursts (over the instrument's keys with two or more) for the burst-based inflation. */
@@ -80,7 +127,7 @@ export const MIN_RUNS = 20;
  * rejected sample with deviation d moved its run mean by d / (n / B) and its ray mean by d / (n / R), entering at
  * most two pairs of each lag: these shares are removed from the run variance and the structure sums.
  */
-export function instrumentSampling(acc: CellAccumulator, dev2?: Float64Array): InstrumentSampling[] {
+export function instrumentSampling(acc: CellAccumulator, dev2?: Float64Array, vel?: Float64Array): InstrumentSampling[] {
   const I = acc.instrumentCount;
   const W = 10;
   const sums = new Float64Array(I * W);
@@ -97,11 +144,10 @@ export function instrumentSampling(acc: CellAccumulator, dev2?: Float64Array): I
     sums[p + 3] += m[o + F.l2n]; sums[p + 4] += Math.max(0, m[o + F.l2h] * SQ_SPLIT + m[o + F.l2l] - (m[o + F.l2n] > 0 ? spike : 0));
     sums[p + 5] += m[o + F.l3n]; sums[p + 6] += Math.max(0, m[o + F.l3h] * SQ_SPLIT + m[o + F.l3l] - (m[o + F.l3n] > 0 ? spike : 0));
     if (B >= 2 && n >= 2) {
-      const su = m[o + F.ru] / A_SCALE;
-      const cRun = Math.max(0, ((m[o + F.ru2h] * SQ_SPLIT + m[o + F.ru2l]) / A2 - (su * su) / B - d2 / ((n / B) * (n / B))) / (B - 1));
+      const vMean = burstMeanVariance(m, o, acc.keyOf[s], d2, vel);
       const sv = m[o + F.sv] / VR_SCALE;
       const s2 = Math.max(0, (m[o + F.sv2h] * SQ_SPLIT + m[o + F.sv2l]) / V2 - (sv * sv) / n - d2) / (n - 1);
-      sums[p + 7] += cRun / B;
+      sums[p + 7] += vMean;
       sums[p + 8] += s2 / n;
       sums[p + 9] += B;
     }
@@ -168,7 +214,7 @@ export function effectiveCount(n: number, r: number): number {
 }
 
 /** Sampling statistics of slot s of a finished window's accumulator, with its instrument's pooled statistics. */
-export function keySampling(acc: CellAccumulator, s: number, ins: InstrumentSampling, out: KeySampling): KeySampling {
+export function keySampling(acc: CellAccumulator, s: number, ins: InstrumentSampling, out: KeySampling, vel?: Float64Array): KeySampling {
   const m = acc.sums, o = s * STRIDE;
   const n = m[o + F.n];
   const A2 = A_SCALE * A_SCALE, V2 = VR_SCALE * VR_SCALE;
@@ -192,9 +238,7 @@ export function keySampling(acc: CellAccumulator, s: number, ins: InstrumentSamp
     out.inflation = ins.inflation;
     if (B >= 2 && s2k > 0) {
       // The key's own inflation, shrunk toward the instrument's: weights B and SHRINK_BURSTS.
-      const su = m[o + F.ru] / A_SCALE;
-      const cRun = Math.max(0, ((m[o + F.ru2h] * SQ_SPLIT + m[o + F.ru2l]) / A2 - (su * su) / B) / (B - 1));
-      const own = cRun / B / (s2k / n);
+      const own = burstMeanVariance(m, o, acc.keyOf[s], 0, vel) / (s2k / n);
       out.inflation = Math.max(1, (B * own + SHRINK_BURSTS * ins.inflation) / (B + SHRINK_BURSTS));
     }
   } else if (ins.estimated) {
