@@ -238,7 +238,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       twoInstrumentAssumption: c.retrieval.twoInstrumentAssumption,
       robust: c.qc.robust,
       instrumentCount: c.instruments.length,
-      budget: budgetSettings(c),
+      budget: budgetSettings(c, dirSeries),
     };
     const counters = new Counters(c.instruments.length);
     let rejectedOut: AtomicStream | undefined;

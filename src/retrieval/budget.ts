@@ -42,7 +42,9 @@
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import type { CellStats } from './cellStats.ts';
 
-export const BUDGET_TERMS = ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position'] as const;
+export const BUDGET_TERMS = ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'direction'] as const;
+/** Number of budget terms: the stride of cellBudget's output per component. */
+export const NT = BUDGET_TERMS.length;
 export type BudgetTerm = (typeof BUDGET_TERMS)[number];
 export const COMPONENTS = ['u', 'v', 'w'] as const;
 export type Component = (typeof COMPONENTS)[number];
@@ -66,6 +68,11 @@ export interface BudgetSettings {
   instrumentsInPlane?(planeIndex: number, direction_deg: number): Float64Array;
   /** Mask a component whose combined standard uncertainty exceeds this, m/s. @default Infinity (no mask) */
   maxCombined_ms: number;
+  /**
+   * Standard uncertainty of the wind direction that defined the window's rotor frame, degrees (the direction term);
+   * undefined or NaN: 0 (the direction taken as exact).
+   */
+  directionUncertainty_deg?(window: { start_s: number; end_s: number; members?: [number, number][] }): number;
 }
 
 /** Turbulence statistics of a field (per cell). */
@@ -180,6 +187,8 @@ export function derivativeVariances(f: Float64Array, s: Float64Array, ny: number
   out[1] = one(ok(iy, iz + 1), ok(iy, iz - 1), ok(iy, iz + 1) ? v(iy, iz + 1) : 0, ok(iy, iz - 1) ? v(iy, iz - 1) : 0, dz);
 }
 
+const posA = new Float64Array(9), posB = new Float64Array(9);
+
 /** Per-cell inputs of the budget pass. */
 export interface BudgetCellInput {
   /** Cell index, plane geometry. */
@@ -198,19 +207,22 @@ export interface BudgetCellInput {
   ins: Int32Array;
   /** Instrument positions in the plane's frame (instruments x 3), or undefined. */
   insPos?: Float64Array;
-  /** Offset of the effective position from the cell centre (y, second), metres; NaN when unknown. */
-  offY: number;
-  offZ: number;
+  /** Cell centre (y, second), metres, in the plane's frame (origin: the plane's rotor-frame origin). */
+  yc: number;
+  zc: number;
   /** Variances of the first derivatives D[k * 5], D[k * 5 + 1] from the noise of the values they were taken from (3 x 2), or undefined. */
   DVar?: Float64Array;
+  /** Standard uncertainty of the rotor frame's direction, radians (0: exact). */
+  dirUnc_rad: number;
 }
 
 /**
- * The budget terms of one cell (squared, per component k and term t at out[k * 6 + t]) from its rows, sensitivity H
+ * The budget terms of one cell (squared, per component k and term t at out[k * NT + t]) from its rows, sensitivity H
  * (dims x K) and kept statistics.
  */
 export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: BudgetCellInput, set: BudgetSettings, noise2: Float64Array, out: Float64Array): void {
   out.fill(0);
+  posA.fill(0); posB.fill(0);
   const K = cell.K, U = inp.U, D = inp.D, sa = inp.secondAxis;
   const DEG = Math.PI / 180;
   for (let i = 0; i < K; i++) {
@@ -246,19 +258,39 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     const probe = 0.5 * m2 * vrss;
     const samp2 = n > 0 ? st.vb[key] / (n * n) : 0;
     const e = n > 0 ? st.se[key] / n : 0;
+    // Position: this row's mean sample position relative to the cell centre (0 where unknown).
+    const dyi = inp.py[i] - inp.yc, dzi = inp.pz[i] - inp.zc;
+    const dy = dyi === dyi ? dyi : 0, dz = dzi === dzi ? dzi : 0;
     for (let k = 0; k < cell.dims; k++) {
       const hk = H[k * K + i], h2 = hk * hk;
-      out[k * 6] += h2 * noise2[i];
-      out[k * 6 + 1] += h2 * samp2;
-      out[k * 6 + 2] += h2 * point2;
-      out[k * 6 + 3] += h2 * probe * probe;
-      out[k * 6 + 4] += h2 * e * e;
+      out[k * NT] += h2 * noise2[i];
+      out[k * NT + 1] += h2 * samp2;
+      out[k * NT + 2] += h2 * point2;
+      out[k * NT + 3] += h2 * probe * probe;
+      out[k * NT + 4] += h2 * e * e;
+      // Coefficients of the position bias on the components' gradients: A[k][j] (d/dy of U_j), B[k][j] (d/d second).
+      for (let j = 0; j < 3; j++) {
+        posA[k * 3 + j] += hk * nv[j] * dy;
+        posB[k * 3 + j] += hk * nv[j] * dz;
+      }
     }
   }
   for (let k = 0; k < 3; k++) {
-    const p = D[k * 5] * inp.offY + D[k * 5 + 1] * inp.offZ;
-    // The gradient's own noise inflates p^2 on average by its variance: removed, floored at zero (as for the trend).
-    const vp = inp.DVar ? inp.DVar[k * 2] * inp.offY * inp.offY + inp.DVar[k * 2 + 1] * inp.offZ * inp.offZ : 0;
-    out[k * 6 + 5] = p === p ? Math.max(0, p * p - (vp === vp ? vp : 0)) : 0;
+    // Position: the first-order Taylor bias sum_i H_ki n_i . (grad U) (p_i - p_c) = sum_j A_kj dU_j/dy + B_kj dU_j/ds.
+    let p = 0, vp = 0;
+    for (let j = 0; j < 3; j++) {
+      const a = posA[k * 3 + j], b = posB[k * 3 + j];
+      p += a * D[j * 5] + b * D[j * 5 + 1];
+      // The gradients' own noise inflates p^2 on average by this variance: removed, floored at zero (as for the trend).
+      if (inp.DVar) vp += a * a * inp.DVar[j * 2] + b * b * inp.DVar[j * 2 + 1];
+    }
+    out[k * NT + 5] = p === p ? Math.max(0, p * p - (vp === vp ? vp : 0)) : 0;
+    // Direction: a frame turned by eps (anticlockwise seen from above; eps = -(direction error)) reports
+    // (u + eps v, v - eps u, w) of the point (x - eps y, y + eps x) of the true frame.
+    const rot = k === 0 ? U[1] : k === 1 ? -U[0] : 0;
+    const gy = D[k * 5], gx = sa === 0 ? D[k * 5 + 1] : 0;
+    const xc = sa === 0 ? inp.zc : inp.level_m;
+    const sd = (rot + xc * gy - inp.yc * gx) * inp.dirUnc_rad;
+    out[k * NT + 6] = sd === sd ? sd * sd : 0;
   }
 }

@@ -17,7 +17,7 @@
  */
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { cellCentre } from '../grid/grid.ts';
-import { BUDGET_TERMS, cellBudget, COMPONENTS, derivatives, derivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
+import { BUDGET_TERMS, cellBudget, NT, COMPONENTS, derivatives, derivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
 import type { CellStats, InstrumentMeans } from './cellStats.ts';
 import { MaskReason, type FieldResult } from './types.ts';
 
@@ -47,9 +47,10 @@ export function fieldBudget(
   const H = new Float64Array(3 * I), noise2 = new Float64Array(I);
   const U = new Float64Array(3), D = new Float64Array(15), d5 = new Float64Array(5);
   const py = new Float64Array(I), pz = new Float64Array(I), ins = new Int32Array(I);
-  const out = new Float64Array(18);
+  const out = new Float64Array(3 * NT);
   const DVar = new Float64Array(6), dv = new Float64Array(2);
-  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, offY: NaN, offZ: NaN, DVar };
+  const dirDeg = set.directionUncertainty_deg?.(f.window) ?? 0;
+  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, yc: NaN, zc: NaN, DVar, dirUnc_rad: Number.isFinite(dirDeg) ? (dirDeg * Math.PI) / 180 : 0 };
   const masks = [f.maskU, f.maskV, f.maskW];
   const ses = [f.su, f.sv, f.sw];
   const turb = b.turbulence;
@@ -80,15 +81,15 @@ export function fieldBudget(
       DVar[k * 2] = dv[0]; DVar[k * 2 + 1] = dv[1];
     }
     const [yc, zc] = cellCentre(f.grid, c);
-    inp.c = c; inp.offY = f.yEff[c] - yc; inp.offZ = f.zEff[c] - zc;
+    inp.c = c; inp.yc = yc; inp.zc = zc;
     cellBudget(cell, H, stats, inp, set, noise2, out);
     for (let k = 0; k < 3; k++) {
       if (!Number.isFinite(comps[k][c])) continue;
       const name = COMPONENTS[k];
       let sum = 0;
       BUDGET_TERMS.forEach((t, j) => {
-        b.terms[name][t][c] = Math.sqrt(out[k * 6 + j]);
-        sum += out[k * 6 + j];
+        b.terms[name][t][c] = Math.sqrt(out[k * NT + j]);
+        sum += out[k * NT + j];
       });
       b.combined[name][c] = Math.sqrt(sum);
     }

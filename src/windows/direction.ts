@@ -34,3 +34,39 @@ function nearestValue(series: Series, values: Float64Array, t: number, maxDistan
   }
   return best >= 0 && dist <= maxDistance_s ? values[best] : NaN;
 }
+
+/**
+ * Standard uncertainty (degrees) of the window direction of directionForWindow, for the uncertainty budget's
+ * direction term: a type A evaluation (GUM, JCGM 100:2008, 4.2.3: the experimental standard deviation of the mean,
+ * s / sqrt(n)) of the series rows inside the window, their deviations taken from the circular mean and wrapped into
+ * [-180, 180). Rows are taken as independent (minute values of a vane or sonic usually are, nearly; correlated rows
+ * would make this too small). A fixed direction, fewer than two rows inside (nearest-row fallback) or no series: 0
+ * (the direction is taken as exact; README: Uncertainty). Ensembles (members): each member window defines its own
+ * frame, and an equal-weight mean of m independent frame errors has sqrt(sum u_j^2) / m.
+ */
+export function directionUncertaintyForWindow(c: Campaign, series: Series | undefined, w: { start_s: number; end_s: number; members?: [number, number][] }): number {
+  if (c.windDirection.kind === 'fixed' || !series || series.time.length === 0) return 0;
+  const parts = w.members && w.members.length ? w.members : [[w.start_s, w.end_s] as [number, number]];
+  let sum2 = 0;
+  for (const [start, end] of parts) {
+    const [a, b] = rowsInWindow(series, Number.isFinite(start) ? start : -Infinity, Number.isFinite(end) ? end : Infinity);
+    const u = meanDirectionUncertainty(series.values.direction_deg, a, b);
+    sum2 += u * u;
+  }
+  return Math.sqrt(sum2) / parts.length;
+}
+
+/** s / sqrt(n) of the directions in rows [lo, hi) about their circular mean (degrees); 0 with fewer than two finite rows. */
+export function meanDirectionUncertainty(values: Float64Array, lo: number, hi: number): number {
+  const m = circularMeanDeg(values, lo, hi);
+  if (!(m === m)) return 0;
+  let n = 0, s2 = 0;
+  for (let i = lo; i < hi; i++) {
+    const v = values[i];
+    if (!Number.isFinite(v)) continue;
+    const d = ((((v - m) % 360) + 540) % 360) - 180;
+    s2 += d * d;
+    n++;
+  }
+  return n >= 2 ? Math.sqrt(s2 / (n - 1) / n) : 0;
+}

@@ -15,14 +15,15 @@ const TERM_MEANING: Record<string, string> = {
   pointing: 'azimuth, elevation and position errors of the instruments, propagated linearly through the beam geometry',
   probe: 'probe-volume averaging: half the weighting\'s second moment times the curvature of v_r along the beam',
   timing: 'non-simultaneity: each instrument\'s mean sample time offset from the window middle times its radial-velocity trend',
-  position: 'the in-plane gradient times the offset of the effective position from the cell centre',
-  combined: 'combined standard uncertainty: root-sum-square of the six terms (JCGM 100:2008)',
+  position: 'first-order bias of reporting at the cell centre: each instrument\'s mean sample offset from the centre times the in-plane gradients, through the solve',
+  direction: 'uncertainty of the window wind direction defining the rotor frame (s/√n of the direction series), turning the components and moving the cell',
+  combined: 'combined standard uncertainty: root-sum-square of the seven terms (JCGM 100:2008)',
 };
 
 /** The budget and turbulence columns, in writing order (pipeline/fieldTable.ts and fieldNetcdf.ts take them from here). */
 export const BUDGET_COLUMNS = [
   ...(['u', 'v', 'w'] as const).flatMap((k) =>
-    ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'combined'].map((t) =>
+    ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'direction', 'combined'].map((t) =>
       col(`${k}_unc_${t}`, 'ms', SE, `standard uncertainty of ${k}, ${t === 'combined' ? '' : 'term: '}${TERM_MEANING[t]}`, rotor),
     ),
   ),
