@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { CellAccumulator, F, STRIDE } from '../src/grid/accumulator.ts';
 import { mulberry32, gaussian } from '../src/math/random.ts';
-import { cellBudget, derivatives, probeSecondMoment, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
+import { cellBudget, derivatives, NT, probeSecondMoment, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
 import { emptyCellStats } from '../src/retrieval/cellStats.ts';
 import { robustFilter } from '../src/retrieval/robustFilter.ts';
 import { burstMeanVariance, effectiveCount, emptyKeySampling, instrumentSampling, keySampling } from '../src/retrieval/sampling.ts';
@@ -197,10 +197,10 @@ describe('pointing, probe and position terms', () => {
     expect(sensitivity(cell, H)).toBe(true);
     const sAz = 0.5; // degrees, every instrument
     const set = settings(3, { pointingAz_deg: Float64Array.of(sAz, sAz, sAz) });
-    const out = new Float64Array(18);
+    const out = new Float64Array(3 * NT);
     const st = emptyCellStats(3, 3);
     cellBudget(cell, H, st, {
-      c: 0, secondAxis: 2, level_m: 0, U, D: new Float64Array(15), py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 0, offZ: 0,
+      c: 0, secondAxis: 2, level_m: 0, U, D: new Float64Array(15), py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
     }, set, new Float64Array(3), out);
     // Hand: a beam at azimuth a, elevation e measures n(a).U; an azimuth error da changes it by
     // da * (cos e cos a, -cos e sin a, 0) . U = da * (n_y u - n_x v) (derivative of n = (cos e sin a, cos e cos a, sin e)).
@@ -208,7 +208,7 @@ describe('pointing, probe and position terms', () => {
     const g = beams.map((n) => n[1] * U[0] - n[0] * U[1]);
     for (let k = 0; k < 3; k++) {
       const hand = Math.sqrt(g.reduce((s, gi, i) => s + (H[k * 3 + i] * gi * sAz * DEG) ** 2, 0));
-      expect(Math.sqrt(out[k * 6 + 2])).toBeCloseTo(hand, 12); // same arithmetic: rounding only
+      expect(Math.sqrt(out[k * NT + 2])).toBeCloseTo(hand, 12); // same arithmetic: rounding only
     }
     // Monte Carlo: draw the azimuth errors, measure with the true beams, retrieve with the nominal ones.
     const rnd = mulberry32(3);
@@ -226,7 +226,7 @@ describe('pointing, probe and position terms', () => {
       }
     }
     for (let k = 0; k < 3; k++) {
-      const mc = Math.sqrt(sum2[k] / M), lin = Math.sqrt(out[k * 6 + 2]);
+      const mc = Math.sqrt(sum2[k] / M), lin = Math.sqrt(out[k * NT + 2]);
       // 20000 draws: the MC standard deviation is known to 1/sqrt(2M) = 0.5 %; the second-order term of a 0.5 degree
       // error is (da^2 / 2) |n . U| ~ 3e-4 m/s, far below. Agreement within 3 %.
       expect(Math.abs(mc / lin - 1)).toBeLessThan(0.03);
@@ -273,13 +273,13 @@ describe('pointing, probe and position terms', () => {
     const cell = cellOf([[0, 1, 0], [1, 0, 0], [0, 0, 1]], [1, 1, 1]);
     const H = new Float64Array(9);
     sensitivity(cell, H);
-    const out = new Float64Array(18);
+    const out = new Float64Array(3 * NT);
     cellBudget(cell, H, emptyCellStats(3, 3), {
       c: 0, secondAxis: 2, level_m: 100, U: Float64Array.of(8, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2),
-      insPos: Float64Array.of(100, -300, 0, -200, 0, 0, 100, 0, -300), offY: 0, offZ: 0,
+      insPos: Float64Array.of(100, -300, 0, -200, 0, 0, 100, 0, -300), yc: 0, zc: 0, dirUnc_rad: 0,
     }, settings(3, { probeMoment2: () => m2 }), new Float64Array(3), out);
-    expect(Math.sqrt(out[1 * 6 + 3])).toBeCloseTo(0.5 * 237.078 * 0.004, 3); // v = beam 0 alone (H = identity)
-    expect(Math.sqrt(out[0 * 6 + 3])).toBeCloseTo(0, 12); // a beam along x sees no curvature of v along x
+    expect(Math.sqrt(out[1 * NT + 3])).toBeCloseTo(0.5 * 237.078 * 0.004, 3); // v = beam 0 alone (H = identity)
+    expect(Math.sqrt(out[0 * NT + 3])).toBeCloseTo(0, 12); // a beam along x sees no curvature of v along x
   });
 
   it('position term and finite differences: a linear field u = 8 + 0.01 y, effective position 6 m off the centre', () => {
@@ -295,9 +295,9 @@ describe('pointing, probe and position terms', () => {
     const cell = cellOf([[1, 0, 0], [0, 1, 0], [0, 0, 1]], [1, 1, 1]);
     const H = new Float64Array(9);
     sensitivity(cell, H);
-    const out = new Float64Array(18);
+    const out = new Float64Array(3 * NT);
     cellBudget(cell, H, emptyCellStats(3, 3), {
-      c: 7, secondAxis: 2, level_m: 0, U: Float64Array.of(8.4, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 6, offZ: 0,
+      c: 7, secondAxis: 2, level_m: 0, U: Float64Array.of(8.4, 0, 0), D, py: Float64Array.of(6, 6, 6), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
     }, settings(3), new Float64Array(3), out);
     expect(Math.sqrt(out[5])).toBeCloseTo(0.06, 12);
   });
@@ -309,11 +309,11 @@ describe('pointing, probe and position terms', () => {
     const cell = cellOf([[0, 1, 0], [1, 0, 0], [0, 0, 1]], [1, 1, 1]);
     const H = new Float64Array(9);
     sensitivity(cell, H);
-    const out = new Float64Array(18);
+    const out = new Float64Array(3 * NT);
     cellBudget(cell, H, emptyCellStats(3, 3), {
-      c: 0, secondAxis: 2, level_m: 0, U: Float64Array.of(8, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 0, offZ: 0,
+      c: 0, secondAxis: 2, level_m: 0, U: Float64Array.of(8, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
     }, settings(3, { position_m: Float64Array.of(2, 0, 0) }), new Float64Array(3), out);
-    expect(Math.sqrt(out[1 * 6 + 2])).toBeCloseTo(0.04, 12);
+    expect(Math.sqrt(out[1 * NT + 2])).toBeCloseTo(0.04, 12);
   });
 });
 
@@ -324,9 +324,9 @@ describe('noise term equals the WLS covariance, and the linear propagation equal
     const cell = cellOf(beams, varMean.map((v) => 1 / v));
     const H = new Float64Array(9);
     sensitivity(cell, H);
-    const out = new Float64Array(18);
+    const out = new Float64Array(3 * NT);
     cellBudget(cell, H, emptyCellStats(3, 3), {
-      c: 0, secondAxis: 2, level_m: 0, U: new Float64Array(3), D: new Float64Array(15), py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 0, offZ: 0,
+      c: 0, secondAxis: 2, level_m: 0, U: new Float64Array(3), D: new Float64Array(15), py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
     }, settings(3), Float64Array.from(varMean), out);
     const rnd = mulberry32(8);
     const M = 20000, s2 = [0, 0, 0];
@@ -336,7 +336,7 @@ describe('noise term equals the WLS covariance, and the linear propagation equal
     }
     for (let k = 0; k < 3; k++) {
       // Linear model: the MC standard deviation agrees to its own sampling error 1/sqrt(2M) = 0.5 % (3 % bound).
-      expect(Math.abs(Math.sqrt(s2[k] / M) / Math.sqrt(out[k * 6]) - 1)).toBeLessThan(0.03);
+      expect(Math.abs(Math.sqrt(s2[k] / M) / Math.sqrt(out[k * NT]) - 1)).toBeLessThan(0.03);
     }
   });
 });
@@ -429,9 +429,9 @@ describe('noise of the gradient in the position term', () => {
     const cell = cellOf([[1, 0, 0], [0, 1, 0], [0, 0, 1]], [1, 1, 1]);
     const H = new Float64Array(9);
     sensitivity(cell, H);
-    const res = new Float64Array(18);
+    const res = new Float64Array(3 * NT);
     cellBudget(cell, H, emptyCellStats(3, 3), {
-      c: 1, secondAxis: 2, level_m: 0, U: Float64Array.of(8.2, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), offY: 6, offZ: 0,
+      c: 1, secondAxis: 2, level_m: 0, U: Float64Array.of(8.2, 0, 0), D, py: Float64Array.of(6, 6, 6), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
       DVar: Float64Array.of(1.25e-5, 0, 0, 0, 0, 0),
     }, settings(3), new Float64Array(3), res);
     expect(Math.sqrt(res[5])).toBeCloseTo(Math.sqrt(3.15e-3), 12);
