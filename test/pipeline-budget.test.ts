@@ -33,10 +33,10 @@ describe('the uncertainty budget in a run', () => {
       // least as large as every term (root-sum-square), to the two significant digits written.
       expect(r.u_unc_noise_ms).toBe(r.u_se_ms);
       const comb = Number(r.u_unc_combined_ms);
-      for (const t of ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position']) expect(Number(r[`u_unc_${t}_ms`])).toBeLessThanOrEqual(comb * 1.05 + 1e-9);
+      for (const t of ['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'direction']) expect(Number(r[`u_unc_${t}_ms`])).toBeLessThanOrEqual(comb * 1.05 + 1e-9);
     }
     const u = manifest.uncertainty!;
-    expect(u.terms).toEqual(['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'combined']);
+    expect(u.terms).toEqual(['noise', 'sampling', 'pointing', 'probe', 'timing', 'position', 'direction', 'combined']);
     const p = u.planes[0];
     expect(p.plane).toBe('p5');
     // Hub height 100 m on the rotor axis: the cell of y in [0, 30), z in [100, 130) on this 30 m grid (centre 15, 115).

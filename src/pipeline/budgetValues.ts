@@ -8,7 +8,7 @@ import type { FieldResult } from '../retrieval/types.ts';
 export function budgetArrays(f: FieldResult): Float64Array[] {
   const b = f.budget;
   const n = f.grid.ny * f.grid.nz;
-  if (!b) return Array.from({ length: COMPONENTS.length * 7 + 11 }, () => new Float64Array(n).fill(NaN));
+  if (!b) return Array.from({ length: COMPONENTS.length * (BUDGET_TERMS.length + 1) + 11 }, () => new Float64Array(n).fill(NaN));
   const t = b.turbulence;
   return [
     ...COMPONENTS.flatMap((k) => [...BUDGET_TERMS.map((term) => b.terms[k][term]), b.combined[k]]),

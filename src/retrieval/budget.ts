@@ -29,13 +29,30 @@
  * - timing: non-simultaneity. Each instrument's mean refers to its mean sample time; the offset from the window's
  *   middle times the trend of its radial velocity (sampling.ts) is the error of that mean against the window mean;
  *   instruments sampling a cell at different times have different offsets.
- * - position: the value is reported at the cell centre while the samples sit at the effective position (y_eff,
- *   z_eff): the in-plane gradient times that offset (directly on the component, not through H); the square has the
- *   variance of the gradient estimate (from the neighbours' scatter terms) removed, floored at zero.
+ * - position: the value is reported at the cell centre p_c while instrument i's samples sit, on average, at p_i (its
+ *   mean in-plane sample position in the cell; instruments see different parts of a cell). Expanding the field to
+ *   first order about p_c (Taylor), instrument i's mean is n_i . U(p_c) + n_i . G (p_i - p_c), G the in-plane
+ *   gradient of the retrieved field (central differences), so the solve U = H m is off by
+ *   b_k = sum_i H_ki n_i . G (p_i - p_c) = sum_j A_kj dU_j/dy + B_kj dU_j/ds,  A_kj = sum_i H_ki n_ij dy_i (B with ds_i).
+ *   A gradient of u thus reaches v and w when the instruments carrying v sample other parts of the cell than those
+ *   carrying u. It reduces to G_k . (p - p_c) when every instrument samples the same point (sum_i H_ki n_ij = delta_kj).
+ *   The square has the variance of the gradient estimate (from the neighbours' scatter terms, through A and B)
+ *   removed, floored at zero. The bias is treated as a standard uncertainty of its own size (it is not corrected).
+ * - direction: the window's wind direction defines the rotor frame and is itself a mean of a direction series with
+ *   standard uncertainty u_D (windows/direction.ts: type A, s / sqrt(n) of the rows in the window, GUM 4.2.3). A
+ *   direction error delta (clockwise) turns the frame by eps = -delta about its origin (anticlockwise seen from
+ *   above): the cell (x_c, y_c) of the estimated frame is the point (x_c - eps y_c, y_c + eps x_c) of the true one and
+ *   its reported components are the true ones turned, (u + eps v, v - eps u, w). To first order
+ *   dU_k/d(eps) = (v, -u, 0)_k + x_c dU_k/dy - y_c dU_k/dx, and the term is |dU_k/d(eps)| u_D (GUM eq. 10). On a cross
+ *   plane x_c is the plane's downstream distance (600 m at 5 D: a 0.1 degree error moves the cell 1 m sideways) and
+ *   dU/dx, across the plane, is not known and left out; on a horizontal plane both gradients are in the plane.
+ *   On the simulator with noise and turbulence off this was the v error the budget missed: per window the mean v
+ *   error equalled u times the direction error to 1e-3 m/s.
  *
- * Not in the budget: calibration errors of the velocity scale, the gradient across the plane, errors of the wind
- * direction defining the rotor frame, covariances between terms, flow that is not stationary within a window beyond
- * a linear trend, and the robust filter's rejections of real data.
+ * Not in the budget: calibration errors of the velocity scale, the gradient across the plane, systematic errors of
+ * the wind direction (a misaligned vane: only the scatter of the series within the window is counted), covariances
+ * between terms, flow that is not stationary within a window beyond a linear trend, and the robust filter's
+ * rejections of real data.
  *
  * Cost: O(cells x instruments) per field after the solve; no allocation per cell.
  */
