@@ -7,10 +7,10 @@
 import { describe, expect, it } from 'vitest';
 import { CellAccumulator, F, STRIDE } from '../src/grid/accumulator.ts';
 import { mulberry32, gaussian } from '../src/math/random.ts';
-import { cellBudget, derivatives, NT, probeSecondMoment, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
+import { cellBudget, derivatives, NT, probeSecondMoment, secondDerivativeVariances, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
 import { emptyCellStats } from '../src/retrieval/cellStats.ts';
 import { robustFilter } from '../src/retrieval/robustFilter.ts';
-import { burstMeanVariance, effectiveCount, emptyKeySampling, instrumentSampling, keySampling } from '../src/retrieval/sampling.ts';
+import { burstMeanVariance, effectiveCount, emptyKeySampling, instrumentSampling, keySampling, MIN_INFLATION } from '../src/retrieval/sampling.ts';
 import { pulseWidthParameter } from '../src/geometry/probe.ts';
 
 const DEG = Math.PI / 180;
@@ -162,6 +162,63 @@ describe('sampling term from the accumulator', () => {
     // C_run / B over s^2 / n has a scaled chi-square distribution with 59 degrees of freedom: within 1 +- 0.5 at
     // more than 99.9 % (sd sqrt(2 / 59) = 0.18).
     expect(is.inflation).toBeLessThan(1.5);
+  });
+});
+
+describe('inflation below 1: scatter the passes repeat', () => {
+  it('hand-worked: every pass samples the same four points (v_r 1, 2, 3, 4 m/s, no noise): the mean does not vary, F at its guard', () => {
+    const acc = new CellAccumulator(1, 1);
+    for (let b = 0; b < 24; b++) for (let k = 0; k < 4; k++) acc.add(0, 1 + k, 1, 0, 0, 0, 0, 1000 + b * 30 + k * 0.25, NaN); // 24 passes: MIN_RUNS 20
+    acc.closeRays();
+    const [is] = instrumentSampling(acc);
+    // Burst means all 2.5: the cluster-robust variance is 0 while s^2 / n = (96 * 1.25 / 95) / 96 > 0; the samples'
+    // spread is a fixed function of where they sit, no error of the mean. F is held at the guard, not at 1.
+    expect(is.inflation).toBeCloseTo(MIN_INFLATION, 12);
+  });
+
+  it('a key whose inflation is below 1 has its scatter term lowered by the (negative) sampling sum, the sampling term zero', () => {
+    const beams = [[1, 0, 0], [0, 1, 0], [0, 0, 1]];
+    const cell = cellOf(beams, [1, 1, 1]);
+    const H = new Float64Array(9);
+    sensitivity(cell, H);
+    const st = emptyCellStats(3, 3);
+    st.n.set([10, 10, 10]);
+    // Instrument 0: F = 0.4 with s^2 / n = 0.01, so vb = n^2 (F - 1) s^2 / n = 100 * (-0.006); instrument 1: F = 2.
+    st.vb.set([100 * -0.006, 100 * 0.01, 0]);
+    const out = new Float64Array(3 * NT);
+    cellBudget(cell, H, st, {
+      c: 0, secondAxis: 2, level_m: 0, U: new Float64Array(3), D: new Float64Array(15), py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2), yc: 0, zc: 0, dirUnc_rad: 0,
+    }, settings(3), Float64Array.of(0.01, 0.01, 0.01), out);
+    // H = identity: u = beam 0 alone, v = beam 1 alone (hand-worked: 0.01 - 0.006 = 0.004; 0.01 and 0.01).
+    expect(out[0]).toBeCloseTo(0.004, 15);
+    expect(out[1]).toBe(0);
+    expect(out[NT]).toBeCloseTo(0.01, 15);
+    expect(out[NT + 1]).toBeCloseTo(0.01, 15);
+  });
+});
+
+describe('noise of the curvature in the probe term', () => {
+  it('hand-worked: second-difference variance (s_-^2 + 4 s_0^2 + s_+^2) / d^4, removed from the squared curvature', () => {
+    // v along y: 0, 0.8, 0 on a 20 m grid: d2v/dy2 = -1.6 / 400 = -0.004; values' standard uncertainty 0.1 m/s:
+    // var = (0.01 + 0.04 + 0.01) / 20^4 = 3.75e-7 (of the curvature squared 1.6e-5).
+    const f = Float64Array.of(0, 0.8, 0), s = Float64Array.of(0.1, 0.1, 0.1), v2 = new Float64Array(3);
+    secondDerivativeVariances(f, s, 3, 1, 20, 20, 1, v2);
+    expect(v2[0]).toBeCloseTo(3.75e-7, 18);
+    expect(v2[1]).toBe(0); // no stencil along the second axis
+    const D = new Float64Array(15);
+    D[1 * 5 + 2] = -0.004;
+    const cell = cellOf([[0, 1, 0], [1, 0, 0], [0, 0, 1]], [1, 1, 1]);
+    const H = new Float64Array(9);
+    sensitivity(cell, H);
+    const out = new Float64Array(3 * NT);
+    const D2Var = new Float64Array(9);
+    D2Var[1 * 3] = v2[0];
+    cellBudget(cell, H, emptyCellStats(3, 3), {
+      c: 0, secondAxis: 2, level_m: 100, U: Float64Array.of(8, 0, 0), D, py: new Float64Array(3), pz: new Float64Array(3), ins: Int32Array.of(0, 1, 2),
+      insPos: Float64Array.of(100, -300, 0, -200, 0, 0, 100, 0, -300), yc: 0, zc: 0, dirUnc_rad: 0, D2Var,
+    }, settings(3, { probeMoment2: () => 237.078 }), new Float64Array(3), out);
+    // Beam 0 along y carries v: probe^2 = (m2 / 2)^2 (1.6e-5 - 3.75e-7) (rounding only).
+    expect(Math.sqrt(out[1 * NT + 3])).toBeCloseTo(0.5 * 237.078 * Math.sqrt(1.6e-5 - 3.75e-7), 12);
   });
 });
 

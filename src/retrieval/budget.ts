@@ -206,6 +206,22 @@ export function derivativeVariances(f: Float64Array, s: Float64Array, ny: number
 
 const posA = new Float64Array(9), posB = new Float64Array(9);
 
+/**
+ * Variances of the second derivatives of `derivatives` (same stencils: zero where it gives 0) from the standard
+ * uncertainties `s` of the values, taken as independent: d00 (s_-^2 + 4 s_0^2 + s_+^2) / dy^4, d11 the same along
+ * the second axis, d01 the sum of the four corners' variances / (4 dy dz)^2. Writes [var d00, var d11, var d01].
+ */
+export function secondDerivativeVariances(f: Float64Array, s: Float64Array, ny: number, nz: number, dy: number, dz: number, c: number, out: Float64Array): void {
+  const iy = c % ny, iz = (c - iy) / ny;
+  const ok = (jy: number, jz: number) => jy >= 0 && jy < ny && jz >= 0 && jz < nz && f[jz * ny + jy] === f[jz * ny + jy];
+  const v = (jy: number, jz: number) => { const x = s[jz * ny + jy]; return x === x ? x * x : 0; };
+  const c0 = ok(iy, iz);
+  out[0] = c0 && ok(iy - 1, iz) && ok(iy + 1, iz) ? (v(iy - 1, iz) + 4 * v(iy, iz) + v(iy + 1, iz)) / dy ** 4 : 0;
+  out[1] = c0 && ok(iy, iz - 1) && ok(iy, iz + 1) ? (v(iy, iz - 1) + 4 * v(iy, iz) + v(iy, iz + 1)) / dz ** 4 : 0;
+  out[2] = ok(iy + 1, iz + 1) && ok(iy + 1, iz - 1) && ok(iy - 1, iz + 1) && ok(iy - 1, iz - 1)
+    ? (v(iy + 1, iz + 1) + v(iy + 1, iz - 1) + v(iy - 1, iz + 1) + v(iy - 1, iz - 1)) / (16 * dy * dy * dz * dz) : 0;
+}
+
 /** Per-cell inputs of the budget pass. */
 export interface BudgetCellInput {
   /** Cell index, plane geometry. */
@@ -229,6 +245,8 @@ export interface BudgetCellInput {
   zc: number;
   /** Variances of the first derivatives D[k * 5], D[k * 5 + 1] from the noise of the values they were taken from (3 x 2), or undefined. */
   DVar?: Float64Array;
+  /** Variances of the second derivatives D[k * 5 + 2..4] likewise (3 x 3: d00, d11, d01), or undefined. */
+  D2Var?: Float64Array;
   /** Standard uncertainty of the rotor frame's direction, radians (0: exact). */
   dirUnc_rad: number;
 }
@@ -255,6 +273,12 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     }
     const ns = nv[sa];
     const vrss = ny * ny * c00 + ns * ns * c11 + 2 * ny * ns * c01;
+    // Noise of that curvature from the noise of the values (components taken as independent): removed from its square.
+    let vv = 0;
+    if (inp.D2Var) {
+      const a = ny * ny, b = ns * ns, d = 2 * ny * ns;
+      for (let k = 0; k < 3; k++) vv += nv[k] * nv[k] * (a * a * inp.D2Var[k * 3] + b * b * inp.D2Var[k * 3 + 1] + d * d * inp.D2Var[k * 3 + 2]);
+    }
     let range = NaN;
     if (inp.insPos) {
       const px = sa === 2 ? inp.level_m : inp.pz[i], py = inp.py[i], pzz = sa === 2 ? inp.pz[i] : inp.level_m;
@@ -272,18 +296,20 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     const saz = set.pointingAz_deg[ins] * DEG, sel = set.pointingEl_deg[ins] * DEG, sp = set.position_m[ins];
     const point2 = gaz * gaz * saz * saz + gel * gel * sel * sel + sp * sp * (g0 * g0 + g1 * g1);
     const m2 = range === range ? set.probeMoment2(ins, range) : 0;
-    const probe = 0.5 * m2 * vrss;
-    const samp2 = n > 0 ? st.vb[key] / (n * n) : 0;
+    const probe2 = 0.25 * m2 * m2 * Math.max(0, vrss * vrss - (vv === vv ? vv : 0));
+    // Sampling beyond the scatter term; negative (inflation below 1: sampling.ts) it lowers this instrument's scatter term.
+    const vb2 = n > 0 ? st.vb[key] / (n * n) : 0;
+    const samp2 = vb2 > 0 ? vb2 : 0, scat2 = vb2 < 0 ? Math.max(0, noise2[i] + vb2) : noise2[i];
     const e = n > 0 ? st.se[key] / n : 0;
     // Position: this row's mean sample position relative to the cell centre (0 where unknown).
     const dyi = inp.py[i] - inp.yc, dzi = inp.pz[i] - inp.zc;
     const dy = dyi === dyi ? dyi : 0, dz = dzi === dzi ? dzi : 0;
     for (let k = 0; k < cell.dims; k++) {
       const hk = H[k * K + i], h2 = hk * hk;
-      out[k * NT] += h2 * noise2[i];
+      out[k * NT] += h2 * scat2;
       out[k * NT + 1] += h2 * samp2;
       out[k * NT + 2] += h2 * point2;
-      out[k * NT + 3] += h2 * probe * probe;
+      out[k * NT + 3] += h2 * probe2;
       out[k * NT + 4] += h2 * e * e;
       // Coefficients of the position bias on the components' gradients: A[k][j] (d/dy of U_j), B[k][j] (d/d second).
       for (let j = 0; j < 3; j++) {

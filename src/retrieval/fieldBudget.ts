@@ -17,7 +17,7 @@
  */
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { cellCentre } from '../grid/grid.ts';
-import { BUDGET_TERMS, cellBudget, NT, COMPONENTS, derivatives, derivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
+import { BUDGET_TERMS, cellBudget, NT, COMPONENTS, derivatives, derivativeVariances, secondDerivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
 import type { CellStats, InstrumentMeans } from './cellStats.ts';
 import { MaskReason, type FieldResult } from './types.ts';
 
@@ -48,9 +48,9 @@ export function fieldBudget(
   const U = new Float64Array(3), D = new Float64Array(15), d5 = new Float64Array(5);
   const py = new Float64Array(I), pz = new Float64Array(I), ins = new Int32Array(I);
   const out = new Float64Array(3 * NT);
-  const DVar = new Float64Array(6), dv = new Float64Array(2);
+  const DVar = new Float64Array(6), dv = new Float64Array(2), D2Var = new Float64Array(9), dv2 = new Float64Array(3);
   const dirDeg = set.directionUncertainty_deg?.(f.window) ?? 0;
-  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, yc: NaN, zc: NaN, DVar, dirUnc_rad: Number.isFinite(dirDeg) ? (dirDeg * Math.PI) / 180 : 0 };
+  const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, yc: NaN, zc: NaN, DVar, D2Var, dirUnc_rad: Number.isFinite(dirDeg) ? (dirDeg * Math.PI) / 180 : 0 };
   const masks = [f.maskU, f.maskV, f.maskW];
   const ses = [f.su, f.sv, f.sw];
   const turb = b.turbulence;
@@ -79,6 +79,8 @@ export function fieldBudget(
       D.set(d5, k * 5);
       derivativeVariances(fields[k], ses[k], f.grid.ny, f.grid.nz, f.grid.dy, f.grid.dz, c, dv);
       DVar[k * 2] = dv[0]; DVar[k * 2 + 1] = dv[1];
+      secondDerivativeVariances(fields[k], ses[k], f.grid.ny, f.grid.nz, f.grid.dy, f.grid.dz, c, dv2);
+      D2Var.set(dv2, k * 3);
     }
     const [yc, zc] = cellCentre(f.grid, c);
     inp.c = c; inp.yc = yc; inp.zc = zc;

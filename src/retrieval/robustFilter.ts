@@ -120,7 +120,7 @@ function budgetSums(stats: CellStats, key: number, n: number, ks: KeySampling, i
   const vm = (ks.inflation * s2) / n;
   const ub2 = vm - s2 / n;
   stats.vb[key] = n * n * ub2;
-  stats.ne[key] = n / ks.inflation;
+  stats.ne[key] = n / Math.max(1, ks.inflation); // an effective count above n would say more than the samples
   if (is.estimated) {
     // Turbulence variance of v_r: the instrument's turbulence share of the kept samples' variance (noise removed).
     stats.vt[key] = n * is.phi * s2;
