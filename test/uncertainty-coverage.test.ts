@@ -17,7 +17,7 @@ import { tinyCampaignObject, writeTinyCampaign } from './helpers/tinyCampaign.ts
 import { readCsv } from './helpers/csvTable.ts';
 
 
-interface Coverage { n: number; budget: number; scatter: number }
+interface Coverage { n: number; budget: number; scatter: number; noDirection: number }
 /** Per run: every cell's radial-velocity turbulence and noise variance (m^2/s^2), for the turbulence statistics. */
 const variances = new Map<string, { turb: number[]; noise: number[] }>();
 const medianOf = (a: number[]) => [...a].sort((x, y) => x - y)[a.length >> 1];
@@ -34,7 +34,7 @@ async function coverage(name: string, sim: Record<string, unknown>): Promise<Rec
   for (const r of readCsv(join(dir, 'truth', 'field_truth.csv'))) {
     truth.set(`${r.window_start.slice(0, 16)}|${Number(r.y_m)}|${Number(r.z_m)}`, [Number(r.u), Number(r.v), Number(r.w)]);
   }
-  const out: Record<string, Coverage> = { u: { n: 0, budget: 0, scatter: 0 }, v: { n: 0, budget: 0, scatter: 0 }, w: { n: 0, budget: 0, scatter: 0 } };
+  const out: Record<string, Coverage> = Object.fromEntries(['u', 'v', 'w'].map((c) => [c, { n: 0, budget: 0, scatter: 0, noDirection: 0 }]));
   const fields = join(dir, 'out', name, 'fields');
   for (const f of readdirSync(fields).filter((x) => x.endsWith('.csv'))) {
     for (const r of readCsv(join(fields, f))) {
@@ -49,18 +49,22 @@ async function coverage(name: string, sim: Record<string, unknown>): Promise<Rec
         out[c].n++;
         if (err <= 2 * Number(r[`${c}_unc_combined_ms`])) out[c].budget++;
         if (err <= 2 * Number(r[`${c}_se_ms`])) out[c].scatter++;
+        const comb = Number(r[`${c}_unc_combined_ms`]), dir = Number(r[`${c}_unc_direction_ms`]);
+        if (err <= 2 * Math.sqrt(Math.max(0, comb * comb - dir * dir))) out[c].noDirection++;
       });
     }
   }
   return out;
 }
 
-const share = (c: Coverage, k: 'budget' | 'scatter') => c[k] / c.n;
+const share = (c: Coverage, k: 'budget' | 'scatter' | 'noDirection') => c[k] / c.n;
 
 describe('coverage of the combined standard uncertainty on simulated campaigns', () => {
   let independent: Record<string, Coverage>, correlated: Record<string, Coverage>;
-  let independent11: Record<string, Coverage>, correlated11: Record<string, Coverage>;
+  let independent11: Record<string, Coverage>, correlated11: Record<string, Coverage>, quiet: Record<string, Coverage>;
   beforeAll(async () => {
+    // No turbulence and no estimator noise: only the errors of geometry, position, probe and frame are left.
+    quiet = await coverage('cov-quiet', { turbulence_ms: 0, noise_ms: 0 });
     independent = await coverage('cov-independent', {});
     correlated = await coverage('cov-correlated', { turbulenceTimeScale_s: 1 });
     // A second simulator seed (the first is the tiny campaign's 7): another draw of flow states and turbulence.
@@ -80,6 +84,22 @@ describe('coverage of the combined standard uncertainty on simulated campaigns',
     }
   });
 
+
+  it('noise and turbulence off: the v error is the rotor frame\'s direction error, which the direction term covers', () => {
+    for (const c of ['u', 'v', 'w']) console.log('quiet', c, quiet[c].n, share(quiet[c], 'budget').toFixed(3), share(quiet[c], 'noDirection').toFixed(3));
+    // The window direction is the mean of a series with 0.4 degree scatter per minute: its error turns the frame,
+    // v = -u delta (budget.ts). With the direction term 89.5 % of v lie within two combined uncertainties here, 46 %
+    // without it (88-95 % with it on seeds 7, 23, 31). Without noise the errors are biases of a few cells' geometry
+    // rather than Gaussian scatter, so the 90-98 % target is not asked of this case; bounds: 85 % with the term (a
+    // margin of about two binomial standard errors, 1.3 %, below the lowest seed) and 75 % without (the check fails
+    // without the term).
+    expect(quiet.v.n).toBeGreaterThan(100);
+    expect(share(quiet.v, 'budget')).toBeGreaterThanOrEqual(0.85);
+    expect(share(quiet.v, 'noDirection')).toBeLessThan(0.75);
+    // w: the per-instrument position term carries the bias a u gradient brings into w (89-92 % on seeds 7, 23, 31):
+    // at least 85 % (with the earlier effective-position term 86 and 91 % on seeds 23 and 7, other settings equal).
+    expect(share(quiet.w, 'budget')).toBeGreaterThanOrEqual(0.85);
+  });
 
   it('independent samples: 90-98 % of true u, v, w within two combined standard uncertainties', () => {
     for (const c of ['u', 'v', 'w']) {
