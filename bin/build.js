@@ -48,8 +48,11 @@ try {
   const { build } = await import('esbuild');
   await build({
     // index: the library (package.json exports); netcdfWorker: the NetCDF output thread, which loads
-    // dist/netcdfWorker.js (src/io/netcdfWrite.ts)
-    entryPoints: { main: join(root, 'src', 'cli', 'main.ts'), index: join(root, 'src', 'index.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs') },
+    // dist/netcdfWorker.js (src/io/netcdfWrite.ts); netcdfReader: the NetCDF input thread (src/io/netcdfThread.ts)
+    entryPoints: {
+      main: join(root, 'src', 'cli', 'main.ts'), index: join(root, 'src', 'index.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs'),
+      netcdfReader: join(root, 'src', 'io', 'netcdfReadWorker.ts'),
+    },
     outdir: tmp,
     bundle: true,
     splitting: true, // the image stack, planner and simulator stay in chunks loaded only by the commands that use them

@@ -109,6 +109,24 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     expect(rows[10].t).toBeCloseTo(1772366400.5, 6);
   });
 
+  it('the reader thread gives the same samples and rejections, in the same order, and a bad variable as the same one-line error', async () => {
+    const file = join(tmp, 'thread.nc');
+    const s = arrays(1000, 10);
+    s.radialVelocity[123] = NaN; // a missing value: rejected with its ray and gate by either path
+    await writeSampleNetcdf(file, s, { chunkRays: 64 });
+    const direct = await readAll(file, opts({ batchSize: 2000 }));
+    const threaded = await readAll(file, opts({ batchSize: 2000, thread: true }));
+    // Exact: the same library call and the same conversion, only on another thread (values compared bit for bit).
+    expect(threaded.rows).toEqual(direct.rows);
+    expect(threaded.rejected).toEqual(direct.rejected);
+    expect(threaded.batches).toBe(direct.batches);
+    expect(direct.rejected.map((r) => [r.ray, r.gate, r.reason])).toEqual([[12, 3, 'missing_value']]);
+    // A variable the campaign names but the file lacks: InputError naming file and variable, raised on the first pull.
+    const bad = opts({ columns: { cnr_db: 'no_such_variable' }, thread: true });
+    await expect(readAll(file, bad)).rejects.toThrow(/thread\.nc: .*no_such_variable/);
+    await expect(readAll(file, bad)).rejects.toBeInstanceOf(InputError);
+  });
+
   it('"toward" without a standard name follows the campaign sign; with it, the standard name decides', async () => {
     const a = join(tmp, 'toward.nc'), b = join(tmp, 'nosn.nc');
     await writeSampleNetcdf(a, arrays(4, 3), { sign: 'toward' });

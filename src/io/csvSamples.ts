@@ -53,6 +53,14 @@ export interface SampleReaderOptions {
    * batch is a fresh allocation the consumer may keep. @default true
    */
   reuseBatches?: boolean;
+  /**
+   * NetCDF-4 only: read on the shared reader thread (netcdfThread.ts), decompression and conversion beside the
+   * caller's work. Batches arrive fresh from the thread and go back to it when the consumer pulls the next chunk
+   * (the reuseBatches contract). @default false
+   */
+  thread?: boolean;
+  /** NetCDF-4 only: spare batches to fill instead of allocating (the reader thread's recycled ones). */
+  batchPool?: SampleBatch[];
 }
 
 export interface SampleChunk {

@@ -112,7 +112,12 @@ export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions
       const rg = gateRange ?? read(RG, path, sl, what, sr, 3);
       const vr = read(VR, path, sl, what, sr, 4);
       const cn = CN ? read(CN, path, sl, what, sr, 5) : null;
-      const b: SampleBatch = spare ?? createBatch(path, cap);
+      let b: SampleBatch | undefined = spare ?? undefined;
+      while (!b && opts.batchPool?.length) {
+        const p = opts.batchPool.pop()!;
+        if (p.time.length >= cap) { b = p; b.file = path; }
+      }
+      b ??= createBatch(path, cap);
       spare = null;
       b.length = 0;
       const rejected: RejectedRow[] = [];

@@ -49,7 +49,10 @@ export async function checkSamples(path: string, opts: SampleReaderOptions): Pro
 /** Streams the samples of any supported file (see SampleReaderOptions and the readers' docblocks). */
 export async function* openSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const format = sampleFormat(path);
-  if (format === 'netcdf') {
+  if (format === 'netcdf' && opts.thread) {
+    const { readNetcdfThreaded } = await import('./netcdfThread.ts');
+    yield* readNetcdfThreaded(path, opts);
+  } else if (format === 'netcdf') {
     const { readNetcdfSamples } = await import('./netcdfSamples.ts');
     yield* readNetcdfSamples(path, opts);
   } else yield* readSamples(path, { ...opts, gzip: format === 'csv.gz' });

@@ -218,7 +218,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     .filter((f) => !shard?.files || shard.files.has(f.path));
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384 })[Symbol.asyncIterator](),
+    // NetCDF files are read on the reader thread (io/netcdfThread.ts), beside this loop.
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: true })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,

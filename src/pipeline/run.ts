@@ -43,7 +43,6 @@ import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
-import { ncWorker } from '../io/netcdfWrite.ts';
 import { openStaging } from './outputFolder.ts';
 import { preflight } from './preflight.ts';
 
@@ -275,9 +274,12 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     manifest.windows = finisher.windows;
 
     // 3. Ingest and retrieve, window by window.
-    // NetCDF outputs: the writer thread loads the HDF5 library now, beside the ingest, not after the last window.
-    if (c.output.netcdf && stages.some((st) => st.name === 'netcdf')) ncWorker();
-    for (const stage of stages) stage.start?.(stageCtx, planes);
+    // Stages' early work (the NetCDF writer thread loading the HDF5 library and defining the plane files) runs
+    // beside the ingest, not after the last window; it begins once the inputs are hashed, so that three threads do
+    // not share two cores at the start. A window finished before that opens its file itself.
+    let started = false;
+    const startStages = () => { if (!started) { started = true; for (const stage of stages) stage.start?.(stageCtx, planes); } };
+    void digests.then(startStages, startStages);
     progress.stage('reading samples');
     progress.expect?.(pre.estimatedRows);
     t = performance.now();

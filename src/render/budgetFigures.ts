@@ -39,10 +39,20 @@ export function budgetBarsSvg(title: string, subtitle: string, terms: string[], 
   body += text(22, top + ph / 2, 'standard uncertainty (m/s)', { size: 11, anchor: 'middle', rotate: -90 });
   components.forEach((c, j) => {
     const ly = top + 10 + j * 20;
-    body += `<rect x="${n(left + pw + 20)}" y="${n(ly - 9)}" width="14" height="12" fill="${theme.series[j % theme.series.length]}"/>\n`;
-    body += text(left + pw + 40, ly, c, { size: 11 });
+    // A component without any value here (e.g. w with instruments near the ground) is named as such, not drawn.
+    const shown = terms.some((t) => Number.isFinite(values[c]?.[t]));
+    body += shown
+      ? `<rect x="${n(left + pw + 20)}" y="${n(ly - 9)}" width="14" height="12" fill="${theme.series[j % theme.series.length]}"/>\n`
+      : `<rect x="${n(left + pw + 20.5)}" y="${n(ly - 8.5)}" width="13" height="11" fill="none" stroke="${theme.muted}" stroke-width="1"/>\n`;
+    body += text(left + pw + 40, ly, shown ? c : `${c}: not retrieved`, { size: 11, fill: shown ? undefined : theme.muted });
   });
+  // Terms that are zero for every component show no bar: say so, rather than leave an empty slot unexplained.
+  const zero = terms.filter((t) => components.some((c) => Number.isFinite(values[c]?.[t])) && components.every((c) => !(values[c]?.[t] > 0)));
   body += text(left, H - 18, 'Combined: root-sum-square of the independent terms (JCGM 100:2008). Terms are described in the data dictionary (u_unc_<term>_ms).', { size: 10, fill: theme.muted });
+  if (zero.length) {
+    const why = zero.includes('pointing') ? ' (pointing: the campaign gives no instruments[].pointingUncertainty)' : '';
+    body += text(left, H - 4, `No contribution at this cell: ${zero.join(', ')}${why}.`, { size: 10, fill: theme.muted });
+  }
   return svgDocument(W, H, title, body);
 }
 

@@ -1,0 +1,81 @@
+/**
+ * The NetCDF-4 reader thread (started by netcdfThread.ts): runs readNetcdfSamples for every file the main thread
+ * opens and posts its chunks, at most AHEAD per file beyond what the main thread has taken, so that decompression
+ * and conversion run beside the main thread's work with bounded memory. Batches travel by transfer (no copy) and
+ * come back with the next request, to be filled again.
+ *
+ * Messages in: {op: 'open', id, path, opts}, {op: 'next', id, give?} (one more chunk wanted; `give` a batch done
+ * with), {op: 'close', id}. Out: {id, chunk} | {id, done: true} | {id, error: {file, line, reason, message}}.
+ */
+import { parentPort } from 'node:worker_threads';
+import { InputError } from '../errors.ts';
+import type { SampleBatch } from './batch.ts';
+import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
+import { readNetcdfSamples } from './netcdfSamples.ts';
+
+/** Chunks a file may have in flight (posted, not yet taken back by a request). */
+export const AHEAD = 2;
+
+interface Reader {
+  it: AsyncGenerator<SampleChunk>;
+  credits: number;
+  busy: boolean;
+  done: boolean;
+  pool: SampleBatch[];
+}
+
+const readers = new Map<number, Reader>();
+const port = parentPort!;
+
+/** The buffers of a batch, each once (the arrays are separate allocations; a shared one is listed once). */
+function buffers(b: SampleBatch): ArrayBuffer[] {
+  const all = [b.line, b.time, b.instrument, b.azimuth, b.elevation, b.range, b.radialVelocity, b.cnr].map((a) => a.buffer as ArrayBuffer);
+  return [...new Set(all)];
+}
+
+async function pump(id: number): Promise<void> {
+  const r = readers.get(id);
+  if (!r || r.busy || r.done) return;
+  r.busy = true;
+  try {
+    while (r.credits > 0 && !r.done && readers.get(id) === r) {
+      const next = await r.it.next();
+      if (next.done) {
+        r.done = true;
+        port.postMessage({ id, done: true });
+        break;
+      }
+      r.credits--;
+      const chunk = next.value;
+      port.postMessage({ id, chunk }, buffers(chunk.batch));
+    }
+  } catch (e) {
+    r.done = true;
+    const err = e instanceof InputError
+      ? { file: e.file, line: e.line, reason: e.reason, message: e.message }
+      : { file: '', line: undefined, reason: '', message: e instanceof Error ? e.message : String(e) };
+    port.postMessage({ id, error: err });
+  } finally {
+    r.busy = false;
+  }
+}
+
+port.on('message', (m: { op: string; id: number; path?: string; opts?: SampleReaderOptions; give?: SampleBatch }) => {
+  if (m.op === 'open') {
+    const pool: SampleBatch[] = [];
+    // reuseBatches false: a posted batch belongs to the main thread until it comes back
+    const it = readNetcdfSamples(m.path!, { ...m.opts!, thread: false, reuseBatches: false, batchPool: pool });
+    readers.set(m.id, { it, credits: AHEAD, busy: false, done: false, pool });
+    void pump(m.id);
+  } else if (m.op === 'next') {
+    const r = readers.get(m.id);
+    if (!r) return;
+    if (m.give) r.pool.push(m.give);
+    r.credits++;
+    void pump(m.id);
+  } else if (m.op === 'close') {
+    const r = readers.get(m.id);
+    readers.delete(m.id);
+    if (r) void r.it.return(undefined);
+  }
+});
