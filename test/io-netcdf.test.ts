@@ -237,7 +237,10 @@ describe('a whole run from NetCDF-4 files', () => {
           const u = Number(x[k]), v = Number(y[k]);
           const digits = Math.max(x[k].replace(/^-?0?\.?0*/, '').replace('.', '').length, 1);
           const unit = 10 ** (Math.floor(Math.log10(Math.abs(u))) - digits + 1);
-          expect(Math.abs(u - v), `${n}:${i + 1} column ${k}`).toBeLessThanOrEqual(unit * 1.0001); // one unit in the last digit
+          // One unit in the last digit; or, for a value near zero, an absolute 1e-6 (m/s, m^2/s^2): a term that is
+          // a nearly cancelling sum (the direction term's v + x dU/dy) moves by more than its last digit, but 1e-6 is
+          // four orders below the smallest combined uncertainty written here (0.022 m/s).
+          expect(Math.min(Math.abs(u - v) / (unit * 1.0001), Math.abs(u - v) / 1e-6), `${n}:${i + 1} column ${k}`).toBeLessThanOrEqual(1);
         }
       });
     }
