@@ -41,6 +41,7 @@ import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
+import { availableParallelism } from 'node:os';
 import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
@@ -65,6 +66,12 @@ export interface OpenWindow {
 
 export interface IngestOptions {
   campaign: Campaign;
+  /**
+   * Read the files on the reader thread (io/readerThread.ts), beside the per-sample work. @default true where the
+   * process may use two cores or more (os.availableParallelism), unless WAKEPLANE_READER_THREAD=0 (the processes
+   * of `run --cores`, which share the cores already, are started so).
+   */
+  readerThread?: boolean;
   /** Where accepted samples go (grid/target.ts): the planes, and sibling geometries. */
   targets: SampleTarget[];
   /** Target index of each instrument's samples (-1: none; its samples are counted outside_planes). */
@@ -216,10 +223,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const shard = opts.shard;
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
+  const readerThread = opts.readerThread ?? (process.env.WAKEPLANE_READER_THREAD !== '0' && availableParallelism() >= 2);
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    // NetCDF files are read on the reader thread (io/netcdfThread.ts), beside this loop.
-    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: true })[Symbol.asyncIterator](),
+    // Files are read on the reader thread (io/readerThread.ts), beside this loop, where the machine has a core for it.
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: readerThread })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,

@@ -1,7 +1,7 @@
 /**
- * NetCDF-4 samples read on a thread of their own (netcdfReadWorker.ts): the HDF5 library's decompression and the
- * conversion to SI run beside the caller's work instead of before it. The same face as readNetcdfSamples (a
- * SampleChunk stream, InputError for a bad file on the first pull, a batch valid until the next pull); chunks arrive
+ * Samples read on a thread of their own (readerWorker.ts): parsing CSV, the HDF5 library's decompression and the
+ * conversion to SI run beside the caller's work instead of before it. The same face as the readers (a SampleChunk
+ * stream, InputError for a bad file on the first pull, a batch valid until the next pull); chunks arrive
  * at most AHEAD per file ahead of the consumer, so memory stays bounded. One thread serves every file of the
  * process; it keeps the process alive only while a chunk is awaited (a run that stops early does not hang on it).
  */
@@ -14,10 +14,10 @@ import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
 
 type Message = { id: number; chunk?: SampleChunk; done?: boolean; error?: { file: string; line: number | undefined; reason: string; message: string } };
 
-/** The worker script: the bundle's dist/netcdfReader.js, or from the sources a starter that loads the .ts file through tsx. */
+/** The worker script: the bundle's dist/sampleReader.js, or from the sources a starter that loads the .ts file through tsx. */
 function workerUrl(): URL {
-  const built = new URL('./netcdfReader.js', import.meta.url);
-  return existsSync(fileURLToPath(built)) ? built : new URL('./netcdfReadBoot.mjs', import.meta.url);
+  const built = new URL('./sampleReader.js', import.meta.url);
+  return existsSync(fileURLToPath(built)) ? built : new URL('./readerBoot.mjs', import.meta.url);
 }
 
 class ReaderThread {
@@ -39,7 +39,7 @@ class ReaderThread {
       for (const q of this.queues.values()) q.wake?.();
     };
     this.worker.on('error', fail);
-    this.worker.on('exit', (code) => fail(new Error(`NetCDF reader thread stopped (exit code ${code})`)));
+    this.worker.on('exit', (code) => fail(new Error(`sample reader thread stopped (exit code ${code})`)));
     this.worker.unref();
   }
 
@@ -50,8 +50,8 @@ class ReaderThread {
   open(path: string, opts: SampleReaderOptions): number {
     const id = this.nextId++;
     this.queues.set(id, { items: [], wake: null });
-    const { instrumentIndex, owner, columns, sign, batchSize } = opts;
-    this.worker.postMessage({ op: 'open', id, path, opts: { instrumentIndex, owner, columns, sign, batchSize } });
+    const { instrumentIndex, owner, columns, sign, batchSize, highWaterMark } = opts;
+    this.worker.postMessage({ op: 'open', id, path, opts: { instrumentIndex, owner, columns, sign, batchSize, highWaterMark } });
     return id;
   }
 
@@ -92,8 +92,8 @@ function thread(): ReaderThread {
   return shared;
 }
 
-/** readNetcdfSamples on the reader thread. */
-export async function* readNetcdfThreaded(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
+/** openSamples (sampleSource.ts) on the reader thread. */
+export async function* readThreaded(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const t = thread();
   const id = t.open(path, opts);
   try {
