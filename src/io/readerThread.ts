@@ -6,13 +6,26 @@
  * process; it keeps the process alive only while a chunk is awaited (a run that stops early does not hang on it).
  */
 import { existsSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
 import type { SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
 
-type Message = { id: number; chunk?: SampleChunk; done?: boolean; error?: { file: string; line: number | undefined; reason: string; message: string } };
+type Message = { id: number; chunk?: SampleChunk; done?: boolean; checked?: unknown; error?: { file: string; line: number | undefined; reason: string; message: string } };
+
+/**
+ * Whether to read on the reader thread: where the process may use two cores or more (os.availableParallelism),
+ * unless WAKEPLANE_READER_THREAD=0 (the processes of `run --cores`, which share the cores already, are started so).
+ */
+export function readerThreadWanted(): boolean {
+  return process.env.WAKEPLANE_READER_THREAD !== '0' && availableParallelism() >= 2;
+}
+
+function errorFrom(e: NonNullable<Message['error']>): Error {
+  return e.file ? new InputError(e.file, e.line ?? undefined, e.reason) : new Error(e.message);
+}
 
 /** The worker script: the bundle's dist/sampleReader.js, or from the sources a starter that loads the .ts file through tsx. */
 function workerUrl(): URL {
@@ -45,6 +58,21 @@ class ReaderThread {
 
   get failed(): boolean {
     return this.dead !== null;
+  }
+
+  /** checkSamples of `path` on the thread. */
+  async check(path: string, opts: SampleReaderOptions): Promise<unknown> {
+    const id = this.nextId++;
+    this.queues.set(id, { items: [], wake: null });
+    const { instrumentIndex, owner, columns, sign } = opts;
+    this.worker.postMessage({ op: 'check', id, path, opts: { instrumentIndex, owner, columns, sign } });
+    try {
+      const m = await this.take(id);
+      if (m.error) throw errorFrom(m.error);
+      return m.checked;
+    } finally {
+      this.queues.delete(id);
+    }
   }
 
   open(path: string, opts: SampleReaderOptions): number {
@@ -92,6 +120,11 @@ function thread(): ReaderThread {
   return shared;
 }
 
+/** checkSamples (sampleSource.ts) on the reader thread. */
+export function checkThreaded(path: string, opts: SampleReaderOptions): Promise<unknown> {
+  return thread().check(path, opts);
+}
+
 /** openSamples (sampleSource.ts) on the reader thread. */
 export async function* readThreaded(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const t = thread();
@@ -99,10 +132,7 @@ export async function* readThreaded(path: string, opts: SampleReaderOptions): As
   try {
     for (;;) {
       const m = await t.take(id);
-      if (m.error) {
-        const e = m.error;
-        throw e.file ? new InputError(e.file, e.line ?? undefined, e.reason) : new Error(e.message);
-      }
+      if (m.error) throw errorFrom(m.error);
       if (m.done || !m.chunk) return;
       yield m.chunk;
       // the consumer pulled again: it is done with this batch

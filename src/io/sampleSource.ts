@@ -37,6 +37,11 @@ export function sampleFormat(path: string): SampleFormat {
  */
 export async function checkSamples(path: string, opts: SampleReaderOptions): Promise<HeaderInfo & { format: SampleFormat }> {
   const format = sampleFormat(path);
+  if (format === 'netcdf' && opts.thread) {
+    // on the reader thread, which will read the file too: the HDF5 library need not load on this one
+    const { checkThreaded } = await import('./readerThread.ts');
+    return (await checkThreaded(path, opts)) as HeaderInfo & { format: SampleFormat };
+  }
   if (format === 'netcdf') {
     const { checkNetcdf } = await import('./netcdfSamples.ts');
     const { rays, gates } = await checkNetcdf(path, opts);

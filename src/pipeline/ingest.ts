@@ -41,12 +41,12 @@ import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
-import { availableParallelism } from 'node:os';
 import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { openSamples } from '../io/sampleSource.ts';
+import { readerThreadWanted } from '../io/readerThread.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
@@ -66,11 +66,7 @@ export interface OpenWindow {
 
 export interface IngestOptions {
   campaign: Campaign;
-  /**
-   * Read the files on the reader thread (io/readerThread.ts), beside the per-sample work. @default true where the
-   * process may use two cores or more (os.availableParallelism), unless WAKEPLANE_READER_THREAD=0 (the processes
-   * of `run --cores`, which share the cores already, are started so).
-   */
+  /** Read the files on the reader thread (io/readerThread.ts), beside the per-sample work. @default readerThreadWanted() */
   readerThread?: boolean;
   /** Where accepted samples go (grid/target.ts): the planes, and sibling geometries. */
   targets: SampleTarget[];
@@ -223,7 +219,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const shard = opts.shard;
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
-  const readerThread = opts.readerThread ?? (process.env.WAKEPLANE_READER_THREAD !== '0' && availableParallelism() >= 2);
+  const readerThread = opts.readerThread ?? readerThreadWanted();
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
     // Files are read on the reader thread (io/readerThread.ts), beside this loop, where the machine has a core for it.
