@@ -134,7 +134,13 @@ export async function* readThreaded(path: string, opts: SampleReaderOptions): As
       const m = await t.take(id);
       if (m.error) throw errorFrom(m.error);
       if (m.done || !m.chunk) return;
-      yield m.chunk;
+      // The same shape as the readers' own batches (an object rebuilt by the message's deserialiser has another
+      // layout, which makes the consumer's per-sample loop polymorphic).
+      const b = m.chunk.batch;
+      yield {
+        batch: { length: b.length, file: b.file, line: b.line, time: b.time, instrument: b.instrument, azimuth: b.azimuth, elevation: b.elevation, range: b.range, radialVelocity: b.radialVelocity, cnr: b.cnr },
+        rejected: m.chunk.rejected,
+      };
       // the consumer pulled again: it is done with this batch
       t.next(id, m.chunk.batch);
     }
