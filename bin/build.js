@@ -48,10 +48,10 @@ try {
   const { build } = await import('esbuild');
   await build({
     // index: the library (package.json exports); netcdfWorker: the NetCDF output thread, which loads
-    // dist/netcdfWorker.js (src/io/netcdfWrite.ts); netcdfReader: the NetCDF input thread (src/io/netcdfThread.ts)
+    // dist/netcdfWorker.js (src/io/netcdfWrite.ts); sampleReader: the sample reader thread (src/io/readerThread.ts)
     entryPoints: {
       main: join(root, 'src', 'cli', 'main.ts'), index: join(root, 'src', 'index.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs'),
-      netcdfReader: join(root, 'src', 'io', 'netcdfReadWorker.ts'),
+      sampleReader: join(root, 'src', 'io', 'readerWorker.ts'),
     },
     outdir: tmp,
     bundle: true,

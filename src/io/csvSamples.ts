@@ -54,12 +54,12 @@ export interface SampleReaderOptions {
    */
   reuseBatches?: boolean;
   /**
-   * NetCDF-4 only: read on the shared reader thread (netcdfThread.ts), decompression and conversion beside the
-   * caller's work. Batches arrive fresh from the thread and go back to it when the consumer pulls the next chunk
-   * (the reuseBatches contract). @default false
+   * NetCDF-4 files: read on the shared reader thread (readerThread.ts), decompression and conversion beside the
+   * caller's work (other formats read here: sampleSource.ts says why). Batches arrive from the thread and go back to
+   * it when the consumer pulls the next chunk (the reuseBatches contract). @default false
    */
   thread?: boolean;
-  /** NetCDF-4 only: spare batches to fill instead of allocating (the reader thread's recycled ones). */
+  /** Spare batches to fill instead of allocating (the reader thread's recycled ones). */
   batchPool?: SampleBatch[];
 }
 
@@ -71,6 +71,19 @@ export interface SampleChunk {
 /** Longest line accepted, bytes; a longer line is rejected without being held whole. */
 const MAX_LINE = 1 << 20;
 const MAX_TEXT = 500;
+
+/** An empty batch of at least n rows from `pool` (batches handed back by a consumer on another thread), if any. */
+export function pooledBatch(pool: SampleBatch[] | undefined, file: string, n: number): SampleBatch | undefined {
+  while (pool?.length) {
+    const b = pool.pop()!;
+    if (b.time.length >= n) {
+      b.length = 0;
+      b.file = file;
+      return b;
+    }
+  }
+  return undefined;
+}
 
 function createBatch(file: string, n: number): SampleBatch {
   return {
@@ -454,7 +467,7 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
     const head = await readHeader(path, opts, blocks);
     const st: ReaderState = {
       ctx: { layout: head.layout, instrumentIndex: opts.instrumentIndex, owner: opts.owner, days: createDayCache() },
-      batch: createBatch(path, batchSize),
+      batch: pooledBatch(opts.batchPool, path, batchSize) ?? createBatch(path, batchSize),
       rejected: [],
       line: 1,
       scratch: { time: NaN, instrument: 0, azimuth: NaN, elevation: NaN, range: NaN, radialVelocity: NaN, cnr: NaN },
@@ -482,7 +495,7 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
             spare.length = 0;
             st.batch = spare;
             spare = null;
-          } else st.batch = createBatch(path, batchSize);
+          } else st.batch = pooledBatch(opts.batchPool, path, batchSize) ?? createBatch(path, batchSize);
           st.rejected = [];
           yield out;
           // the consumer pulled again: out.batch is free to be filled after the batch now being filled

@@ -16,7 +16,7 @@
 import { InputError } from '../errors.ts';
 import type { RejectReason } from '../qc/reasons.ts';
 import type { RejectedRow, SampleBatch } from './batch.ts';
-import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
+import { pooledBatch, type SampleChunk, type SampleReaderOptions } from './csvSamples.ts';
 import { hdf5Message, loadHdf5, SliceReader, type H5Module } from './hdf5.ts';
 import { resolveNetcdf, type NcVariable, type NetcdfLayout } from './netcdfLayout.ts';
 import { wrap360 } from './sampleRow.ts';
@@ -112,12 +112,7 @@ export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions
       const rg = gateRange ?? read(RG, path, sl, what, sr, 3);
       const vr = read(VR, path, sl, what, sr, 4);
       const cn = CN ? read(CN, path, sl, what, sr, 5) : null;
-      let b: SampleBatch | undefined = spare ?? undefined;
-      while (!b && opts.batchPool?.length) {
-        const p = opts.batchPool.pop()!;
-        if (p.time.length >= cap) { b = p; b.file = path; }
-      }
-      b ??= createBatch(path, cap);
+      const b: SampleBatch = spare ?? pooledBatch(opts.batchPool, path, cap) ?? createBatch(path, cap);
       spare = null;
       b.length = 0;
       const rejected: RejectedRow[] = [];

@@ -46,6 +46,7 @@ import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrai
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { openSamples } from '../io/sampleSource.ts';
+import { readerThreadWanted } from '../io/readerThread.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
 import type { WindowDef, WindowPlan } from '../windows/plan.ts';
@@ -65,6 +66,8 @@ export interface OpenWindow {
 
 export interface IngestOptions {
   campaign: Campaign;
+  /** Read the files on the reader thread (io/readerThread.ts), beside the per-sample work. @default readerThreadWanted() */
+  readerThread?: boolean;
   /** Where accepted samples go (grid/target.ts): the planes, and sibling geometries. */
   targets: SampleTarget[];
   /** Target index of each instrument's samples (-1: none; its samples are counted outside_planes). */
@@ -216,10 +219,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const shard = opts.shard;
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
+  const readerThread = opts.readerThread ?? readerThreadWanted();
   const cursors = files.map((f) => ({
     // 16k-row batches: the same speed as larger ones with less memory held per open file.
-    // NetCDF files are read on the reader thread (io/netcdfThread.ts), beside this loop.
-    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: true })[Symbol.asyncIterator](),
+    // Files are read on the reader thread (io/readerThread.ts), beside this loop, where the machine has a core for it.
+    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: readerThread })[Symbol.asyncIterator](),
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,

@@ -17,6 +17,7 @@ import { plausibilityWarnings } from '../campaign/plausibility.ts';
 import type { Campaign, Instrument } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
 import { checkSamples, openSamples } from '../io/sampleSource.ts';
+import { readerThreadWanted } from '../io/readerThread.ts';
 import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { emptyAccount } from '../qc/reasons.ts';
@@ -102,7 +103,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         keep.set(ins.index, [...(keep.get(ins.index) ?? []), file]);
         files.push({ file, ins });
         try {
-          const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
+          const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() });
           if (!h.hasDataLine) errors.push(new InputError(file, undefined, 'no usable rows: the file has a header and no data lines'));
           const size = statSync(file).size;
           estimatedRows += h.bytesPerLine > 0 ? size / h.bytesPerLine : 0;

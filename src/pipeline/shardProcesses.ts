@@ -77,6 +77,8 @@ function childArgs(jobFile: string): string[] {
 function startChild(job: ShardJob, jobFile: string, ipc: boolean): { child: ChildProcess; done: Promise<void> } {
   writeFileSync(jobFile, serialize(job));
   const child = spawn(process.execPath, childArgs(jobFile), {
+    // the processes share the cores already: no reader thread of their own (pipeline/ingest.ts)
+    env: { ...process.env, WAKEPLANE_READER_THREAD: '0' },
     stdio: ipc ? ['ignore', 'ignore', 'pipe', 'ipc'] : ['ignore', 'ignore', 'pipe'],
   });
   let err = '';

@@ -15,6 +15,7 @@
  */
 import type { Campaign } from '../campaign/types.ts';
 import { openSamples, sampleFormat } from '../io/sampleSource.ts';
+import { readerThreadWanted } from '../io/readerThread.ts';
 import { readCsvSlices } from '../io/csvSlices.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
 import { estimateCnrLimit, type CnrClass, type CnrLimitDecision, type CnrLimitStatus } from './cnrLimit.ts';
@@ -110,7 +111,7 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       continue;
     }
     let taken = 0;
-    for await (const chunk of openSamples(path, { ...opts, batchSize: 16384 })) {
+    for await (const chunk of openSamples(path, { ...opts, batchSize: 16384, thread: readerThreadWanted() })) {
       const b = chunk.batch;
       const m = Math.min(b.length, quota - taken);
       for (let i = 0; i < m; i++) add(b.instrument[i], b.time[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]);

@@ -1,17 +1,18 @@
 /**
- * The NetCDF-4 reader thread (started by netcdfThread.ts): runs readNetcdfSamples for every file the main thread
- * opens and posts its chunks, at most AHEAD per file beyond what the main thread has taken, so that decompression
- * and conversion run beside the main thread's work with bounded memory. Batches travel by transfer (no copy) and
- * come back with the next request, to be filled again.
+ * The sample reader thread (started by readerThread.ts): runs the file's reader (sampleSource.ts: CSV, CSV.gz or
+ * NetCDF-4) for every file the main thread opens and posts its chunks, at most AHEAD per file beyond what the main
+ * thread has taken, so that parsing, decompression and conversion run beside the main thread's work with bounded
+ * memory. Batches travel by transfer (no copy) and come back with the next request, to be filled again.
  *
  * Messages in: {op: 'open', id, path, opts}, {op: 'next', id, give?} (one more chunk wanted; `give` a batch done
- * with), {op: 'close', id}. Out: {id, chunk} | {id, done: true} | {id, error: {file, line, reason, message}}.
+ * with), {op: 'close', id}, {op: 'check', id, path, opts} (checkSamples). Out: {id, chunk} | {id, done: true} |
+ * {id, checked} | {id, error: {file, line, reason, message}}.
  */
 import { parentPort } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
 import type { SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
-import { readNetcdfSamples } from './netcdfSamples.ts';
+import { checkSamples, openSamples } from './sampleSource.ts';
 
 /** Chunks a file may have in flight (posted, not yet taken back by a request). */
 export const AHEAD = 2;
@@ -51,20 +52,28 @@ async function pump(id: number): Promise<void> {
     }
   } catch (e) {
     r.done = true;
-    const err = e instanceof InputError
-      ? { file: e.file, line: e.line, reason: e.reason, message: e.message }
-      : { file: '', line: undefined, reason: '', message: e instanceof Error ? e.message : String(e) };
-    port.postMessage({ id, error: err });
+    port.postMessage({ id, error: errorOf(e) });
   } finally {
     r.busy = false;
   }
 }
 
+function errorOf(e: unknown): { file: string; line: number | undefined; reason: string; message: string } {
+  return e instanceof InputError
+    ? { file: e.file, line: e.line, reason: e.reason, message: e.message }
+    : { file: '', line: undefined, reason: '', message: e instanceof Error ? e.message : String(e) };
+}
+
 port.on('message', (m: { op: string; id: number; path?: string; opts?: SampleReaderOptions; give?: SampleBatch }) => {
-  if (m.op === 'open') {
+  if (m.op === 'check') {
+    checkSamples(m.path!, { ...m.opts!, thread: false }).then(
+      (checked) => port.postMessage({ id: m.id, checked }),
+      (e: unknown) => port.postMessage({ id: m.id, error: errorOf(e) }),
+    );
+  } else if (m.op === 'open') {
     const pool: SampleBatch[] = [];
     // reuseBatches false: a posted batch belongs to the main thread until it comes back
-    const it = readNetcdfSamples(m.path!, { ...m.opts!, thread: false, reuseBatches: false, batchPool: pool });
+    const it = openSamples(m.path!, { ...m.opts!, thread: false, reuseBatches: false, batchPool: pool });
     readers.set(m.id, { it, credits: AHEAD, busy: false, done: false, pool });
     void pump(m.id);
   } else if (m.op === 'next') {
