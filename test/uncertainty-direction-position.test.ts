@@ -14,7 +14,9 @@ import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { cellBudget, NT, sensitivity, type BudgetSettings, type CellRows } from '../src/retrieval/budget.ts';
 import { emptyCellStats } from '../src/retrieval/cellStats.ts';
-import { meanDirectionUncertainty } from '../src/windows/direction.ts';
+import { directionUncertaintyForWindow, meanDirectionUncertainty } from '../src/windows/direction.ts';
+import type { Campaign } from '../src/campaign/types.ts';
+import type { Series } from '../src/io/series.ts';
 import { debianPython } from './helpers/python.ts';
 
 const DEG = Math.PI / 180;
@@ -152,5 +154,28 @@ print(np.std(d, ddof=1) / np.sqrt(len(v)))`;
     const gap = Float64Array.of(10, NaN, 12);
     // Two finite rows 10 and 12: deviations -1, +1, s = sqrt(2), s / sqrt(2) = 1 degree (hand-worked).
     expect(meanDirectionUncertainty(gap, 0, 3)).toBeCloseTo(1, 12);
+  });
+});
+
+describe('direction uncertainty of a window and of an ensemble, with the source\'s own (type B) part', () => {
+  // Two windows of 600 s, rows each minute: window 1 alternates 269, 271 (s = 1.0541, n = 10: s / sqrt(n) = 1/3
+  // degree, hand-worked: deviations +-1, s^2 = 10 / 9); window 2 alternates 268, 272 (2/3 degree).
+  const time = Float64Array.from({ length: 20 }, (_, i) => 30 + 60 * i);
+  const dir = Float64Array.from({ length: 20 }, (_, i) => (i < 10 ? 270 + (i % 2 ? 1 : -1) : 270 + (i % 2 ? 2 : -2)));
+  const series: Series = { file: 'd.csv', time, values: { direction_deg: dir } };
+  const campaign = (b: number, kind: 'series' | 'fixed' = 'series') =>
+    ({ windDirection: kind === 'fixed' ? { kind, deg: 270, uncertainty_deg: b } : { kind, file: 'd.csv', columns: {}, uncertainty_deg: b } }) as unknown as Campaign;
+
+  it('hand-worked: one window s / sqrt(n); with 0.5 degree declared, sqrt(u_A^2 + 0.5^2); a fixed direction only the declared part', () => {
+    const u1 = Math.sqrt(10 / 9 / 10), u2 = 2 * u1;
+    expect(directionUncertaintyForWindow(campaign(0), series, { start_s: 0, end_s: 600 })).toBeCloseTo(u1, 12); // rounding only
+    expect(directionUncertaintyForWindow(campaign(0.5), series, { start_s: 0, end_s: 600 })).toBeCloseTo(Math.hypot(u1, 0.5), 12);
+    expect(directionUncertaintyForWindow(campaign(0.5, 'fixed'), series, { start_s: 0, end_s: 600 })).toBe(0.5);
+    expect(directionUncertaintyForWindow(campaign(0, 'fixed'), series, { start_s: 0, end_s: 600 })).toBe(0);
+    // An ensemble of both windows: the mean of two independent frame errors, sqrt(u1^2 + u2^2) / 2, and the declared
+    // part unreduced (the same vane in both windows).
+    const ens = { start_s: 0, end_s: 1200, members: [[0, 600], [600, 1200]] as [number, number][] };
+    expect(directionUncertaintyForWindow(campaign(0), series, ens)).toBeCloseTo(Math.hypot(u1, u2) / 2, 12);
+    expect(directionUncertaintyForWindow(campaign(0.5), series, ens)).toBeCloseTo(Math.hypot(Math.hypot(u1, u2) / 2, 0.5), 12);
   });
 });

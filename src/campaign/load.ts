@@ -192,7 +192,7 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   const windDirection =
     c.windDirection.kind === 'fixed'
       ? c.windDirection
-      : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns };
+      : { kind: 'series' as const, file: abs(c.windDirection.file), columns: c.windDirection.columns, uncertainty_deg: c.windDirection.uncertainty_deg };
   const inflow = c.inflow.kind === 'series' ? { ...c.inflow, file: abs(c.inflow.file) } : c.inflow;
   if (inflow.kind === 'profile') {
     const ref = instruments.find((i) => i.id === inflow.instrument);

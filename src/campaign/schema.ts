@@ -267,9 +267,11 @@ const seriesFile = z
   })
   .strict();
 
+const directionUncertainty = () =>
+  finite().min(0).max(45).default(0).describe('standard uncertainty of the direction source itself (e.g. a vane\'s alignment), degrees, for the uncertainty budget\'s direction term; added in quadrature to the scatter of a series within the window; default 0');
 const windDirectionSchema = z.union([
-  z.object({ kind: z.literal('fixed'), deg: finite().min(0).max(360).describe('wind direction (from), degrees') }).strict(),
-  seriesFile.extend({ kind: z.literal('series') }).describe('time series with columns time, direction_deg (vector-averaged per window)'),
+  z.object({ kind: z.literal('fixed'), deg: finite().min(0).max(360).describe('wind direction (from), degrees'), uncertainty_deg: directionUncertainty() }).strict(),
+  seriesFile.extend({ kind: z.literal('series'), uncertainty_deg: directionUncertainty() }).describe('time series with columns time, direction_deg (vector-averaged per window)'),
 ]);
 
 const thrustSchema = z.union([

@@ -115,6 +115,7 @@ export type Campaign = Omit<CampaignParsed, 'instruments' | 'planes' | 'turbine'
   /** The first turbine (campaign.turbines[0]): the frame of planes that name none. Prefer turbineOfPlane(). */
   turbine: Turbine;
   site: Omit<CampaignParsed['site'], 'terrain'> & { terrain?: TerrainRef };
-  windDirection: { kind: 'fixed'; deg: number } | ({ kind: 'series' } & SeriesRef);
+  /** uncertainty_deg: the direction source's own standard uncertainty (type B), degrees; 0 when not given. */
+  windDirection: { kind: 'fixed'; deg: number; uncertainty_deg: number } | ({ kind: 'series'; uncertainty_deg: number } & SeriesRef);
   inflow: CampaignParsed['inflow'] extends infer T ? (T extends { kind: 'series' } ? { kind: 'series' } & SeriesRef : T) : never;
 };

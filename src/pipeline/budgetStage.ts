@@ -24,7 +24,7 @@ const NT = TERMS.length;
 /** What the budget leaves out; the README's Uncertainty section says the same. */
 export const NOT_COVERED = [
   'calibration of the radial-velocity scale and range',
-  'systematic errors of the wind direction defining the rotor frame (only the scatter of the direction series within a window is in the budget)',
+  'systematic errors of the wind direction defining the rotor frame unless declared (windDirection.uncertainty_deg; otherwise only the scatter of the direction series within a window is in the budget)',
   'the gradient across the plane (one plane cannot give it)',
   'flow that changes within a window other than by a linear trend',
   'bias of the w = 0 assumption in two-instrument cells',

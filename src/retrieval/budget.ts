@@ -50,7 +50,7 @@
  *   error equalled u times the direction error to 1e-3 m/s.
  *
  * Not in the budget: calibration errors of the velocity scale, the gradient across the plane, systematic errors of
- * the wind direction (a misaligned vane: only the scatter of the series within the window is counted), covariances
+ * the wind direction unless the campaign declares them (windDirection.uncertainty_deg), covariances
  * between terms, flow that is not stationary within a window beyond a linear trend, and the robust filter's
  * rejections of real data.
  *

@@ -41,11 +41,14 @@ function nearestValue(series: Series, values: Float64Array, t: number, maxDistan
  * s / sqrt(n)) of the series rows inside the window, their deviations taken from the circular mean and wrapped into
  * [-180, 180). Rows are taken as independent (minute values of a vane or sonic usually are, nearly; correlated rows
  * would make this too small). A fixed direction, fewer than two rows inside (nearest-row fallback) or no series: 0
- * (the direction is taken as exact; README: Uncertainty). Ensembles (members): each member window defines its own
- * frame, and an equal-weight mean of m independent frame errors has sqrt(sum u_j^2) / m.
+ * from the scatter (README: Uncertainty). Ensembles (members): each member window defines its own frame, and an
+ * equal-weight mean of m independent frame errors has sqrt(sum u_j^2) / m. The campaign's
+ * windDirection.uncertainty_deg (the source's own standard uncertainty, a type B evaluation, GUM 4.3; default 0) is
+ * added in quadrature, unreduced by pooling (the same vane error in every window).
  */
 export function directionUncertaintyForWindow(c: Campaign, series: Series | undefined, w: { start_s: number; end_s: number; members?: [number, number][] }): number {
-  if (c.windDirection.kind === 'fixed' || !series || series.time.length === 0) return 0;
+  const b = c.windDirection.uncertainty_deg ?? 0;
+  if (c.windDirection.kind === 'fixed' || !series || series.time.length === 0) return b;
   const parts = w.members && w.members.length ? w.members : [[w.start_s, w.end_s] as [number, number]];
   let sum2 = 0;
   for (const [start, end] of parts) {
@@ -53,7 +56,8 @@ export function directionUncertaintyForWindow(c: Campaign, series: Series | unde
     const u = meanDirectionUncertainty(series.values.direction_deg, a, b);
     sum2 += u * u;
   }
-  return Math.sqrt(sum2) / parts.length;
+  // The source's own (type B) uncertainty is common to every member window: not reduced by pooling.
+  return Math.sqrt(sum2 / (parts.length * parts.length) + b * b);
 }
 
 /** s / sqrt(n) of the directions in rows [lo, hi) about their circular mean (degrees); 0 with fewer than two finite rows. */
