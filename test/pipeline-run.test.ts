@@ -186,7 +186,7 @@ describe('window and direction options', () => {
     writeFileSync(file, text);
     const c = loadCampaignFile(file);
     expect(c.windows.kind).toBe('record');
-    expect(c.windDirection).toEqual({ kind: 'fixed', deg: 270 });
+    expect(c.windDirection).toEqual({ kind: 'fixed', deg: 270, uncertainty_deg: 0 }); // the declared direction uncertainty defaults to 0
     const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out'), images: false });
     expect(manifest.windows.length).toBe(1);
     // The simulated record is 3 windows of 600 s; the record window runs from the first to the last sample.
