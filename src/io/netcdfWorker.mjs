@@ -1,11 +1,18 @@
 // The output worker: writes NetCDF-4 files off the main thread, so that loading the HDF5 library (WebAssembly) and
 // writing cost the ingest nothing on a machine with a second core. Messages: {op, file, args}; ops are the methods
 // of NcFileWriter plus 'create'. The first error is reported back once ({error}); 'close' and 'abort' are answered.
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdtempSync, readlinkSync, rmSync } from 'node:fs';
+import { setPriority, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parentPort } from 'node:worker_threads';
 import { NcFileWriter } from './netcdfCore.mjs';
+
+// Below the main thread in the scheduler (Linux: a thread's own nice value): the ingest comes first on a busy
+// machine, this thread's work fills the gaps. Elsewhere, or without the right, nothing changes.
+try {
+  const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+  if (tid > 0) setPriority(tid, 10);
+} catch { /* not Linux: same priority */ }
 
 const h5 = await import('h5wasm/node');
 const M = await h5.ready;

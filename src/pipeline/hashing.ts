@@ -7,7 +7,12 @@ import { Worker } from 'node:worker_threads';
 const WORKER = `
 const { parentPort, workerData } = require('node:worker_threads');
 const { createHash } = require('node:crypto');
-const { closeSync, openSync, readSync, statSync } = require('node:fs');
+const { closeSync, openSync, readSync, readlinkSync, statSync } = require('node:fs');
+// Below the main thread in the scheduler (Linux: a thread's own nice value): the digests are awaited only at the end.
+try {
+  const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+  if (tid > 0) require('node:os').setPriority(tid, 10);
+} catch { /* not Linux: same priority */ }
 (async () => {
   const out = [];
   // One buffer for every read (this thread only hashes, so blocking reads are fine): a stream's fresh buffer per
