@@ -12,17 +12,9 @@ import { emptyCellStats } from '../src/retrieval/cellStats.ts';
 import { robustFilter } from '../src/retrieval/robustFilter.ts';
 import { burstMeanVariance, effectiveCount, emptyKeySampling, instrumentSampling, keySampling, MIN_INFLATION } from '../src/retrieval/sampling.ts';
 import { pulseWidthParameter } from '../src/geometry/probe.ts';
+import { cellOf, unit } from './helpers/budgetCell.ts';
 
 const DEG = Math.PI / 180;
-const unit = (az: number, el: number) => [Math.cos(el * DEG) * Math.sin(az * DEG), Math.cos(el * DEG) * Math.cos(az * DEG), Math.sin(el * DEG)];
-
-function cellOf(beams: number[][], wts: number[]): CellRows {
-  const K = beams.length;
-  return {
-    K, keys: Int32Array.from({ length: K }, (_, i) => i), rows: Float64Array.from(beams.flat()), geom: Float64Array.from(beams.flat()),
-    wts: Float64Array.from(wts), dims: 3,
-  };
-}
 
 function settings(I: number, over: Partial<BudgetSettings> = {}): BudgetSettings {
   return {

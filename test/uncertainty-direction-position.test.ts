@@ -18,17 +18,9 @@ import { directionUncertaintyForWindow, meanDirectionUncertainty } from '../src/
 import type { Campaign } from '../src/campaign/types.ts';
 import type { Series } from '../src/io/series.ts';
 import { debianPython } from './helpers/python.ts';
+import { cellOf, unit } from './helpers/budgetCell.ts';
 
 const DEG = Math.PI / 180;
-const unit = (az: number, el: number) => [Math.cos(el * DEG) * Math.sin(az * DEG), Math.cos(el * DEG) * Math.cos(az * DEG), Math.sin(el * DEG)];
-
-function cellOf(beams: number[][], wts: number[]): CellRows {
-  const K = beams.length;
-  return {
-    K, keys: Int32Array.from({ length: K }, (_, i) => i), rows: Float64Array.from(beams.flat()), geom: Float64Array.from(beams.flat()),
-    wts: Float64Array.from(wts), dims: 3,
-  };
-}
 
 function settings(I: number): BudgetSettings {
   return {
