@@ -114,7 +114,7 @@ export function budgetStage(): RunStage {
           plane: acc.plane,
           allCells: comp((ci, ti) => [acc.all[ci * NT + ti], acc.allN[ci * NT + ti]]),
           chosenCell: {
-            y_m: cy, second_m: cz,
+            y_m: cy, second_m: cz, second_axis: cross ? 'z' : 'x',
             how: cross ? 'the cell at hub height on the rotor axis (y = 0), or the retrieved cell nearest to it' : 'the cell on the rotor axis in the middle of the plane, or the retrieved cell nearest to it',
             components: comp((ci, ti) => chosen < 0 ? [0, 0] : [acc.cell[(ci * NT + ti) * nc + chosen], acc.cellN[(ci * NT + ti) * nc + chosen]]),
           },
@@ -188,7 +188,7 @@ function reportSection(s: UncertaintySummary): ReportSection {
     items: [['Combined', 'root-sum-square of independent standard uncertainties with the retrieval\u2019s sensitivities (JCGM 100:2008)'], ['Not covered', s.notCovered.join('; ')]],
     tables: s.planes.flatMap((p) => [
       {
-        title: `Plane ${p.plane}: at y = ${p.chosenCell.y_m.toFixed(0)} m, second axis ${p.chosenCell.second_m.toFixed(0)} m (${p.chosenCell.how}), m/s`,
+        title: `Plane ${p.plane}: at y = ${p.chosenCell.y_m.toFixed(0)} m, ${p.chosenCell.second_axis ?? "second axis"} = ${p.chosenCell.second_m.toFixed(0)} m (${p.chosenCell.how}), m/s`,
         columns: ['component', ...s.terms],
         rows: COMPONENTS.map((k) => [k, ...s.terms.map((t) => p.chosenCell.components[k][t])]),
         link: 'manifest.json',

@@ -97,7 +97,8 @@ export interface UncertaintySummary {
   planes: {
     plane: string;
     allCells: Record<string, Record<string, number> & { values: number }>;
-    chosenCell: { y_m: number; second_m: number; how: string; components: Record<string, Record<string, number> & { values: number }> };
+    /** The cell the report's bar chart shows: y and the plane's second axis (`second_axis`: z on cross planes, x on horizontal ones), metres. */
+    chosenCell: { y_m: number; second_m: number; second_axis: 'z' | 'x'; how: string; components: Record<string, Record<string, number> & { values: number }> };
   }[];
   /** What the budget leaves out (README: Uncertainty). */
   notCovered: string[];
