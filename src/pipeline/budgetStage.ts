@@ -188,7 +188,7 @@ function reportSection(s: UncertaintySummary): ReportSection {
     items: [['Combined', 'root-sum-square of independent standard uncertainties with the retrieval\u2019s sensitivities (JCGM 100:2008)'], ['Not covered', s.notCovered.join('; ')]],
     tables: s.planes.flatMap((p) => [
       {
-        title: `Plane ${p.plane}: at y = ${p.chosenCell.y_m.toFixed(0)} m, ${p.chosenCell.second_axis ?? "second axis"} = ${p.chosenCell.second_m.toFixed(0)} m (${p.chosenCell.how}), m/s`,
+        title: `Plane ${p.plane}: at y = ${p.chosenCell.y_m.toFixed(0)} m, ${p.chosenCell.second_axis ?? 'second axis'} = ${p.chosenCell.second_m.toFixed(0)} m (${p.chosenCell.how}), m/s`,
         columns: ['component', ...s.terms],
         rows: COMPONENTS.map((k) => [k, ...s.terms.map((t) => p.chosenCell.components[k][t])]),
         link: 'manifest.json',
