@@ -40,3 +40,9 @@ export interface RejectedRow {
   /** Index of the instrument the row names, when its instrument field could be read; else the file's owner is charged. */
   instrument?: number;
 }
+
+/** The memory of a batch's arrays, each buffer once: what is transferred when a batch crosses between threads. */
+export function batchBuffers(b: SampleBatch): ArrayBuffer[] {
+  const all = [b.line, b.time, b.instrument, b.azimuth, b.elevation, b.range, b.radialVelocity, b.cnr].map((a) => a.buffer as ArrayBuffer);
+  return [...new Set(all)];
+}

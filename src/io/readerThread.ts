@@ -1,6 +1,6 @@
 /**
- * Samples read on a thread of their own (readerWorker.ts): parsing CSV, the HDF5 library's decompression and the
- * conversion to SI run beside the caller's work instead of before it. The same face as the readers (a SampleChunk
+ * Samples read on a thread of their own (readerWorker.ts): for NetCDF-4 files (sampleSource.ts says why only those),
+ * the HDF5 library's decompression and the conversion to SI run beside the caller's work instead of before it. The same face as the readers (a SampleChunk
  * stream, InputError for a bad file on the first pull, a batch valid until the next pull); chunks arrive
  * at most AHEAD per file ahead of the consumer, so memory stays bounded. One thread serves every file of the
  * process; it keeps the process alive only while a chunk is awaited (a run that stops early does not hang on it).
@@ -10,7 +10,7 @@ import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
-import type { SampleBatch } from './batch.ts';
+import { batchBuffers, type SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
 
 type Message = { id: number; chunk?: SampleChunk; done?: boolean; checked?: unknown; error?: { file: string; line: number | undefined; reason: string; message: string } };
@@ -24,7 +24,7 @@ export function readerThreadWanted(): boolean {
 }
 
 function errorFrom(e: NonNullable<Message['error']>): Error {
-  return e.file ? new InputError(e.file, e.line ?? undefined, e.reason) : new Error(e.message);
+  return e.file ? new InputError(e.file, e.line, e.reason) : new Error(e.message);
 }
 
 /** The worker script: the bundle's dist/sampleReader.js, or from the sources a starter that loads the .ts file through tsx. */
@@ -38,6 +38,8 @@ class ReaderThread {
   private nextId = 0;
   private readonly queues = new Map<number, { items: Message[]; wake: (() => void) | null }>();
   private dead: Error | null = null;
+  /** Callers waiting in take(): the thread is referenced (keeps the process alive) only while there are some. */
+  private waiting = 0;
 
   constructor() {
     this.worker = new Worker(workerUrl(), { execArgv: [] });
@@ -98,13 +100,11 @@ class ReaderThread {
     }
     return q.items.shift()!;
   }
-  private waiting = 0;
 
   /** One more chunk wanted; `give` (a batch the consumer is done with) goes back to be filled again. */
   next(id: number, give?: SampleBatch): void {
     if (this.dead) return;
-    const list = give ? [...new Set([give.line, give.time, give.instrument, give.azimuth, give.elevation, give.range, give.radialVelocity, give.cnr].map((a) => a.buffer as ArrayBuffer))] : [];
-    this.worker.postMessage({ op: 'next', id, give }, list);
+    this.worker.postMessage({ op: 'next', id, give }, give ? batchBuffers(give) : []);
   }
 
   close(id: number): void {

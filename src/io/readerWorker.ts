@@ -1,6 +1,6 @@
 /**
- * The sample reader thread (started by readerThread.ts): runs the file's reader (sampleSource.ts: CSV, CSV.gz or
- * NetCDF-4) for every file the main thread opens and posts its chunks, at most AHEAD per file beyond what the main
+ * The sample reader thread (started by readerThread.ts): runs the file's reader (sampleSource.ts; runs use it for
+ * NetCDF-4 files) for every file the main thread opens and posts its chunks, at most AHEAD per file beyond what the main
  * thread has taken, so that parsing, decompression and conversion run beside the main thread's work with bounded
  * memory. Batches travel by transfer (no copy) and come back with the next request, to be filled again.
  *
@@ -10,7 +10,7 @@
  */
 import { parentPort } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
-import type { SampleBatch } from './batch.ts';
+import { batchBuffers, type SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
 import { checkSamples, openSamples } from './sampleSource.ts';
 
@@ -28,12 +28,6 @@ interface Reader {
 const readers = new Map<number, Reader>();
 const port = parentPort!;
 
-/** The buffers of a batch, each once (the arrays are separate allocations; a shared one is listed once). */
-function buffers(b: SampleBatch): ArrayBuffer[] {
-  const all = [b.line, b.time, b.instrument, b.azimuth, b.elevation, b.range, b.radialVelocity, b.cnr].map((a) => a.buffer as ArrayBuffer);
-  return [...new Set(all)];
-}
-
 async function pump(id: number): Promise<void> {
   const r = readers.get(id);
   if (!r || r.busy || r.done) return;
@@ -48,7 +42,7 @@ async function pump(id: number): Promise<void> {
       }
       r.credits--;
       const chunk = next.value;
-      port.postMessage({ id, chunk }, buffers(chunk.batch));
+      port.postMessage({ id, chunk }, batchBuffers(chunk.batch));
     }
   } catch (e) {
     r.done = true;
