@@ -14,7 +14,8 @@
  *    each followed by a newline pass, so that the ratio is taken pair by pair while the machine's speed drifts;
  *    medians are quoted with the range.
  * 5. Files without ray structure (bench/generateFocus.ts): every row its own angles and almost every sample in the
- *    plane, as the whole job with one whole-record window and with 10-minute windows, --runs times each.
+ *    plane, as the whole job with one whole-record window and with 10-minute windows, --runs times each; each
+ *    whole-record run is followed by the same without the uncertainty budget (its cost where every sample is a ray).
  * 5b. Every core (bench/cores.ts; skip with --skip-cores): the whole job with --cores 1 and with every core,
  *    alternately, --runs-cores times (default 3); medians, speed-up, load average, byte-identical field tables.
  * 6. Figures (skip with --skip-figures): the demo campaign run with and without images, --runs-figures times
@@ -271,6 +272,8 @@ async function main() {
   // 4. Files without ray structure: every row its own angles, almost every sample in the plane; one whole-record
   // window (memory must not grow with the samples) and 10-minute windows.
   const focusRuns: { name: string; secs: number[]; rss: number[]; read: number }[] = [];
+  // The budget's cost on these data (every sample its own ray): whole-record runs with and without it, alternately.
+  const focusBudget: { on: number[]; off: number[]; onCpu: number[]; offCpu: number[] } = { on: [], off: [], onCpu: [], offCpu: [] };
   if (!skipPipeline && !process.argv.includes('--skip-focus')) {
     const f = await generateFocus(rows, undefined, (s) => console.log(s));
     console.log(`4. without ray structure (${f.dir}, ${fmt(f.bytes / 2 ** 20, 1)} MiB): whole job, ${runs} runs per case`);
@@ -286,6 +289,16 @@ async function main() {
         r0.rss.push(Math.max(m.peakRss_bytes / 2 ** 20, r.maxRss_MB ?? 0));
         r0.read = m.samples.total.read;
         console.log(`  ${name}, run ${k + 1}: ${fmt(r.seconds, 3)} s, peak ${fmt(r0.rss[k], 0)} MB`);
+        if (campaign === f.record) {
+          const nb = parse(readFileSync(f.recordNoBudget, 'utf8')) as { name: string; output: { dir: string } };
+          rmSync(join(nb.output.dir, nb.name), { recursive: true, force: true });
+          const q = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', f.recordNoBudget, '--quiet', '--no-images', '--cores', '1'], true);
+          if (q.code === 0) {
+            focusBudget.on.push(r.seconds); focusBudget.off.push(q.seconds);
+            if (r.cpu_s !== undefined && q.cpu_s !== undefined) { focusBudget.onCpu.push(r.cpu_s); focusBudget.offCpu.push(q.cpu_s); }
+            console.log(`    the same without the uncertainty budget: ${fmt(q.seconds, 3)} s`);
+          }
+        }
       }
       focusRuns.push(r0);
     }
@@ -358,6 +371,11 @@ async function main() {
       if (!f.secs.length) continue;
       const rate = f.read / median(f.secs);
       out(`  ${f.name.padEnd(24)} ${spread(f.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...f.rss), 0)} MB   ${verdict(rate >= TARGET.samplesPerSecond)} (>= 3e6/s), ${verdict(Math.max(...f.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
+    }
+    if (focusBudget.on.length) {
+      const wall = focusBudget.on.map((s, k) => 100 * (s / focusBudget.off[k] - 1));
+      const cpu = focusBudget.onCpu.map((s, k) => 100 * (s / focusBudget.offCpu[k] - 1));
+      out(`  uncertainty budget, whole-record window, with / without, pair by pair: ${spread(wall, 1)} % wall${cpu.length ? `, ${spread(cpu, 1)} % CPU` : ''}   ${verdict(median(wall) < 100 * TARGET.budgetCost)} (< ${100 * TARGET.budgetCost} %)`);
     }
   }
   if (!process.argv.includes('--skip-cores')) await coresBench(d, runsFromArgs(process.argv, '--runs-cores', 3), out);
