@@ -13,7 +13,7 @@
 import { REJECT_INDEX } from '../qc/reasons.ts';
 import { ADD_FIELDS, type CellAccumulator } from './accumulator.ts';
 import type { GridSpec } from './grid.ts';
-import { FRAME, SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
+import { FRAME, reachSlab, SAMPLE, type SampleTarget, type WindowFrame } from './target.ts';
 
 export interface PlaneTargetSpec {
   orientation: 'cross' | 'horizontal';
@@ -74,6 +74,21 @@ export class PlaneTarget implements SampleTarget {
     this.zBase = Float64Array.from(planes, (p) => (p.heights === 'site' ? 0 : (p.origin ?? origin)[2]));
     this.onTerrain = Uint8Array.from(planes, (p) => (p.heights === 'terrain' ? 1 : 0));
     this.keyCount = this.off[planes.length] * instrumentCount;
+  }
+
+  /** Ranges along a straight beam that can meet a plane's slab (SampleTarget.reach): the same arithmetic as add(). */
+  reach(f: WindowFrame, oe: number, on: number, ou: number, ne: number, nn: number, nu: number, out: Float64Array): void {
+    out[0] = Infinity; out[1] = -Infinity;
+    const dE = f[FRAME.dE], dN = f[FRAME.dN];
+    for (let p = 0; p < this.P; p++) {
+      if (this.onTerrain[p] === 1) { out[0] = -Infinity; out[1] = Infinity; return; } // heights follow the ground
+      if (this.cross[p] === 1) {
+        // x(r) = (o + r n) . (dE, dN) - origin . (dE, dN)
+        reachSlab(oe * dE + on * dN - (this.oE[p] * dE + this.oN[p] * dN), ne * dE + nn * dN, this.level[p] - this.half[p], this.level[p] + this.half[p], out);
+      } else {
+        reachSlab(ou - this.zBase[p], nu, this.level[p] - this.half[p], this.level[p] + this.half[p], out);
+      }
+    }
   }
 
   add(acc: CellAccumulator, f: WindowFrame, ins: number, s: Float64Array): boolean {

@@ -49,4 +49,37 @@ export interface SampleTarget {
    * (fields SAMPLE below). Returns false when the sample lies outside the target.
    */
   add(acc: CellAccumulator, frame: WindowFrame, ins: number, s: Float64Array): boolean;
+  /**
+   * Optional, for rays of many range gates: the ranges along a straight beam from site-frame point o (oe, on, ou)
+   * with unit vector (ne, nn, nu) outside which no sample can lie in the target for this window frame, written to
+   * out[0] (lowest) and out[1] (highest), metres; [Infinity, -Infinity] when none can. Conservative: a range inside
+   * may still miss (add() decides), a range outside must miss (add() would return false), so the ingest may count
+   * such a sample outside without calling add(). Targets whose membership is not an interval of range on a
+   * straight beam leave it out.
+   */
+  reach?(frame: WindowFrame, oe: number, on: number, ou: number, ne: number, nn: number, nu: number, out: Float64Array): void;
+}
+
+/**
+ * Slack of reach() intervals: REACH_SLACK_M in the coordinate the target tests (metres), far above the rounding
+ * of the per-sample arithmetic (about 1e-12 m at 10 km) and far below a cell, so a sample near the edge always goes
+ * through add().
+ */
+export const REACH_SLACK_M = 1e-3;
+
+/**
+ * The ranges r at which c0 + k r lies in [lo, hi] (a slab along one axis), widened by REACH_SLACK_M, merged into
+ * out (out[0] = min, out[1] = max). A beam along the slab (|k| tiny) reaches it at every range or at none.
+ */
+export function reachSlab(c0: number, k: number, lo: number, hi: number, out: Float64Array): void {
+  const a = lo - REACH_SLACK_M - c0, b = hi + REACH_SLACK_M - c0;
+  if (Math.abs(k) < 1e-9) {
+    // c varies by less than 1e-9 r: under the slack for any range below a million metres.
+    if (a <= 0 && b >= 0) { out[0] = -Infinity; out[1] = Infinity; }
+    return;
+  }
+  const r1 = a / k, r2 = b / k;
+  const rlo = r1 < r2 ? r1 : r2, rhi = r1 < r2 ? r2 : r1;
+  if (rlo < out[0]) out[0] = rlo;
+  if (rhi > out[1]) out[1] = rhi;
 }

@@ -193,6 +193,15 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // for every range gate of a ray, so this cache turns most trigonometry into a comparison.
   const lastAz = new Float64Array(I).fill(NaN), lastEl = new Float64Array(I).fill(NaN);
   const nE = new Float64Array(I), nN = new Float64Array(I), nU = new Float64Array(I);
+  // Per instrument, from the second gate of a ray on: the ranges outside which the ray cannot meet its target in
+  // the open windows (SampleTarget.reach), valid while reachEpoch[ins] equals `epoch` (bumped when the ray or the
+  // set of open windows changes). A gate outside them is counted outside the target without its position and the
+  // target's arithmetic: most gates of a scanning ray miss the plane. Not for the first gate (data without ray
+  // structure would pay for an interval per sample), nor over terrain, with Earth curvature or on a nacelle.
+  const reachLo = new Float64Array(I), reachHi = new Float64Array(I), reachEpoch = new Float64Array(I).fill(-1);
+  const rayGates = new Int32Array(I);
+  const reachOut = new Float64Array(2);
+  let epoch = 0;
 
   const fixedMin = c.qc.cnr_db.min;
   const cnrMin = opts.cnrMin_db ?? new Float64Array(I).fill(typeof fixedMin === 'number' ? fixedMin : -Infinity);
@@ -214,6 +223,9 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // The sample handed to the targets (fields SAMPLE of grid/target.ts, in that order), reused for every sample.
   const smp = new Float64Array(SAMPLE_FIELDS);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
+  // Straight beams over flat ground: where the ingest may use the targets' reach (1 per target that has one).
+  const straight = flat && !curvature;
+  const reaches = Uint8Array.from(targets, (tg) => (tg.reach ? 1 : 0));
 
   // Every file of every instrument (of the shard), read in step; primed with its first batch before the plan is made.
   const shard = opts.shard;
@@ -304,6 +316,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
 
   /** Looks up the windows containing time t and the time range over which they stay the same. */
   const enterRange = (t: number): void => {
+    epoch++;
     nFound = plan.find(t, ids, range);
     rFrom = range[0]; rTo = range[1];
     nLive = 0; nDirected = 0;
@@ -374,6 +387,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
             nU[ins] = m[6] * x0 + m[7] * y0 + m[8] * z0;
             lastAz[ins] = az; lastEl[ins] = el;
             clearTo[ins] = 0; blockedAt[ins] = Infinity;
+            rayGates[ins] = 0; reachEpoch[ins] = -1;
           }
           ne = nE[ins]; nn = nN[ins]; nu = nU[ins]; oe = posE[ins]; on = posN[ins]; ou = posU[ins];
         } else {
@@ -383,6 +397,23 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
           ne = nb[0]; nn = nb[1]; nu = nb[2]; oe = nb[3]; on = nb[4]; ou = nb[5];
         }
         const r = b.range[i] + rOff[ins];
+        const tg = targetOf[ins];
+        if (straight && onNacelle[ins] === 0 && tg >= 0) {
+          // A gate of a ray whose reach is known (see reachLo): below the ground, or beyond the target's reach.
+          if (reachEpoch[ins] !== epoch && ++rayGates[ins] >= 2 && reaches[tg] === 1) {
+            let lo = Infinity, hi = -Infinity;
+            for (let k = 0; k < nDirected; k++) {
+              targets[tg].reach!(liveFrames[k], oe, on, ou, ne, nn, nu, reachOut);
+              if (reachOut[0] < lo) lo = reachOut[0];
+              if (reachOut[1] > hi) hi = reachOut[1];
+            }
+            reachLo[ins] = lo; reachHi[ins] = hi; reachEpoch[ins] = epoch;
+          }
+          if (reachEpoch[ins] === epoch && !(r >= reachLo[ins] && r <= reachHi[ins])) {
+            why = ou + r * nu < groundMin ? R_BELOW_GROUND : targets[tg].outsideReason;
+            break sample;
+          }
+        }
         let pe: number, pn: number, pu: number;
         if (curvature) {
           const elev = Math.asin(Math.max(-1, Math.min(1, nu)));
@@ -409,7 +440,6 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
             }
           }
         }
-        const tg = targetOf[ins];
         if (tg < 0) { why = R_OUTSIDE_PLANES; break sample; }
         const target = targets[tg];
         smp[0] = vr; smp[1] = ne; smp[2] = nn; smp[3] = nu; smp[4] = pe; smp[5] = pn; smp[6] = pu; smp[7] = t; smp[8] = gz;
