@@ -15,7 +15,7 @@ import { loadCampaignFile } from '../src/campaign/load.ts';
 import { InputError } from '../src/errors.ts';
 import type { RejectedRow, SampleBatch } from '../src/io/batch.ts';
 import type { SampleReaderOptions } from '../src/io/csvSamples.ts';
-import { checkSamples, openSamples, sampleFormat } from '../src/io/sampleSource.ts';
+import { checkSamples, openSamples, PrimedFiles, sampleFormat } from '../src/io/sampleSource.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { fieldTableColumns } from '../src/pipeline/fieldTable.ts';
 import { BUDGET_COLUMNS } from '../src/records/tables/fields.ts';
@@ -107,6 +107,27 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     // km and minutes written by the generator and converted back: exact to rounding (1e-9 m, 1e-6 s)
     expect(rows[15].r).toBeCloseTo(100 + 30 * 5, 9);
     expect(rows[10].t).toBeCloseTo(1772366400.5, 6);
+  });
+
+  it('a primed file (PrimedFiles) is opened once: its head is shared, then the stream goes on to the same samples as a fresh read', async () => {
+    const file = join(tmp, 'primed.nc');
+    await writeSampleNetcdf(file, arrays(1000, 10), { chunkRays: 64 });
+    for (const thread of [false, true]) {
+      const primed = new PrimedFiles(2000, thread);
+      const h1 = await primed.head(file, opts()), h2 = await primed.head(file, opts());
+      expect(h2).toBe(h1); // one open, one first read
+      const head = { n: h1.value!.batch.length, t0: h1.value!.batch.time[0] };
+      const p = primed.take(file, 0)!;
+      expect(primed.take(file, 0)).toBeUndefined(); // handed over once
+      let n = head.n;
+      for (let r = await p.it.next(); !r.done; r = await p.it.next()) n += r.value.batch.length;
+      const fresh = await readAll(file, opts({ batchSize: 2000 }));
+      // every sample once: the head and the rest of the taken stream together are the file (exact counts)
+      expect(n).toBe(fresh.rows.length);
+      expect(head.n).toBe(1920);
+      expect(head.t0).toBe(fresh.rows[0].t);
+      await primed.close();
+    }
   });
 
   it('the reader thread gives the same samples and rejections, in the same order, and a bad variable as the same one-line error', async () => {

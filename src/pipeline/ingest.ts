@@ -45,7 +45,7 @@ import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame 
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
-import { openSamples } from '../io/sampleSource.ts';
+import { openSamples, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
@@ -112,6 +112,8 @@ export interface IngestOptions {
    * else no lower limit.
    */
   cnrMin_db?: Float64Array;
+  /** Files opened and read to their first chunk already (the CNR pre-pass's): taken over instead of opened again. */
+  primed?: PrimedFiles;
 }
 
 /** Per-instrument counters: read, accepted (binned into a cell), and one per rejection reason. */
@@ -139,6 +141,9 @@ interface Live extends OpenWindow {
    */
   frame: WindowFrame;
 }
+
+/** Rows per batch of the ingest's streams (and of PrimedFiles made for it). */
+export const INGEST_BATCH = 16384;
 
 /** Times further than this from the median of a file's first batch are not taken as its first sample, s. */
 export const FIRST_SAMPLE_SPAN_S = 86400;
@@ -232,10 +237,14 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
   const readerThread = opts.readerThread ?? readerThreadWanted();
-  const cursors = files.map((f) => ({
-    // 16k-row batches: the same speed as larger ones with less memory held per open file.
+  const cursors = files.map((f) => {
+    const p = opts.primed?.take(f.path, f.owner);
+    return {
+    // 16k-row batches: the same speed as larger ones with less memory held per open file (PrimedFiles: the same).
     // Files are read on the reader thread (io/readerThread.ts), beside this loop, where the machine has a core for it.
-    it: openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: 16384, thread: readerThread })[Symbol.asyncIterator](),
+    it: p?.it ?? openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread })[Symbol.asyncIterator](),
+    /** The first pull, made already when the file was primed. */
+    first: p?.first,
     last: -Infinity,
     done: false,
     pending: undefined as SampleChunk | undefined,
@@ -248,10 +257,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     lastValid: -Infinity,
     /** Instruments whose rows the file held. */
     seen: new Uint8Array(I),
-  }));
+    };
+  });
   let first = Infinity;
   for (const cur of cursors) {
-    const r = await cur.it.next();
+    const r = await (cur.first ?? cur.it.next());
     if (r.done) { cur.done = true; continue; }
     cur.pending = r.value;
     const f = firstSampleTime(r.value.batch);

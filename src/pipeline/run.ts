@@ -11,6 +11,8 @@
  */
 import { planeOrigin, stateTurbine } from '../campaign/turbines.ts';
 import { loadTerrain } from '../io/terrainFile.ts';
+import { PrimedFiles } from '../io/sampleSource.ts';
+import { readerThreadWanted } from '../io/readerThread.ts';
 import { createHash } from 'node:crypto';
 import { readFileSync, rmSync, statSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
@@ -27,7 +29,7 @@ import { resolveCnrLimits, type CnrLimits } from '../qc/cnrLimits.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import { budgetSettings } from './budgetSettings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
-import { campaignFirstSample, Counters, ingest } from './ingest.ts';
+import { campaignFirstSample, Counters, ingest, INGEST_BATCH } from './ingest.ts';
 import { PartialSet, removePartials } from './partial.ts';
 import { runShardsLive, shareFiles } from './shardProcesses.ts';
 import type { FinishedWindow } from './finishWindows.ts';
@@ -217,14 +219,23 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   // shard or core of a run gets the same limits).
   progress.stage('estimating CNR limits');
   t = performance.now();
-  const cnr = await resolveCnrLimits(cRead);
-  if (cnr.mode !== 'fixed') lap('cnr_limits', t);
-  // Partials must have used the same limits (the same data: the estimate depends on the campaign's files only);
-  // checked before anything is written.
-  partialSet?.checkCnrLimits(cnr.min_db);
-
-  // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
-  const staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+  // Opened once: the pre-pass reads the heads of the NetCDF and compressed files, the ingest goes on from there.
+  // Only where this process ingests the files itself (not when spread over cores, nor when merging partials).
+  const primed = new PrimedFiles(INGEST_BATCH, readerThreadWanted());
+  let cnr: CnrLimits;
+  let staging: ReturnType<typeof openStaging>;
+  try {
+    cnr = await resolveCnrLimits(cRead, parallel || partialSet ? undefined : primed);
+    if (cnr.mode !== 'fixed') lap('cnr_limits', t);
+    // Partials must have used the same limits (the same data: the estimate depends on the campaign's files only);
+    // checked before anything is written.
+    partialSet?.checkCnrLimits(cnr.min_db);
+    // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
+    staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+  } catch (e) {
+    await primed.close();
+    throw e;
+  }
   notices.push(...staging.notices);
   const runDir = staging.dir;
   const finalDir = staging.finalDir;
@@ -322,6 +333,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
           targetOf: rt.targetOf,
           nacelleFrames: rt.nacelleFrames,
           cnrMin_db: cnr.min_db,
+          primed,
           windowPlan(first) {
             built ??= buildWindowPlan(c, { ...planInputs, firstSample_s: first });
             finisher.disjoint = built.plan.disjoint;
@@ -335,6 +347,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
         counters,
       );
     }
+    await primed.close(); // streams of the pre-pass the ingest did not take (other paths, shards)
     await finisher.end(manifest, notices);
     // Stages that look at every window (the power gain) read the plan.
     if (built) stageCtx.shared.windowPlan = built.plan;
@@ -408,6 +421,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     return { manifest, runDir: finalDir, notices, shared: stageCtx.shared };
   } catch (e) {
     progress.done();
+    await primed.close();
     staging.abort();
     throw e;
   }

@@ -14,7 +14,7 @@
  * column, gets qc.cnr_db.auto.withoutEvidence_db and the run says so.
  */
 import type { Campaign } from '../campaign/types.ts';
-import { openSamples, sampleFormat } from '../io/sampleSource.ts';
+import { openSamples, sampleFormat, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { readCsvSlices } from '../io/csvSlices.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
@@ -76,7 +76,7 @@ export const PREPASS_SLICES = 8;
  * first rows. Each file once (a file listed by several instruments with the smallest of their quotas), in campaign
  * order; rows go to the instrument they name.
  */
-export async function readPrepass(c: Campaign, rowsPerInstrument: number, which: number[] = c.instruments.map((i) => i.index)): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
+export async function readPrepass(c: Campaign, rowsPerInstrument: number, which: number[] = c.instruments.map((i) => i.index), primed?: PrimedFiles): Promise<{ cols: Columns[]; rowsRead: Float64Array }> {
   const I = c.instruments.length;
   const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
   const cols: Columns[] = [];
@@ -110,6 +110,18 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       readCsvSlices(path, opts, quota, PREPASS_SLICES, (v) => add(v.instrument, v.time, v.azimuth, v.elevation, v.range, v.radialVelocity, v.cnr));
       continue;
     }
+    if (primed) {
+      // The head the ingest will start from (io/sampleSource.ts PrimedFiles), when its first chunk holds the quota;
+      // the same rows as reading the file's head again below.
+      const first = await primed.head(path, opts);
+      if (first.done) continue;
+      const b = first.value.batch;
+      const m = Math.min(b.length, quota);
+      if (m + first.value.rejected.length >= quota) {
+        for (let i = 0; i < m; i++) add(b.instrument[i], b.time[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]);
+        continue;
+      }
+    }
     let taken = 0;
     for await (const chunk of openSamples(path, { ...opts, batchSize: 16384, thread: readerThreadWanted() })) {
       const b = chunk.batch;
@@ -127,7 +139,7 @@ const fmt = (x: number) => (Math.round(x * 10) / 10).toString();
 /**
  * The run's CNR limits from the campaign: fixed, or estimated by the pre-pass. Same campaign and files, same limits.
  */
-export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
+export async function resolveCnrLimits(c: Campaign, primed?: PrimedFiles): Promise<CnrLimits> {
   const q = c.qc.cnr_db;
   const I = c.instruments.length;
   const per: Record<string, InstrumentCnrLimit> = {};
@@ -146,7 +158,7 @@ export async function resolveCnrLimits(c: Campaign): Promise<CnrLimits> {
   const t0 = performance.now();
   const a = q.auto;
   const auto = c.instruments.filter((ins) => wanted[ins.index] === 'auto');
-  const { cols, rowsRead } = await readPrepass(c, a.rowsPerInstrument, auto.map((ins) => ins.index));
+  const { cols, rowsRead } = await readPrepass(c, a.rowsPerInstrument, auto.map((ins) => ins.index), primed);
   for (const ins of auto) {
     const col = cols[ins.index];
     const { evidence: ev, decision: d } = estimateCnrLimit(
