@@ -48,10 +48,11 @@ try {
   const { build } = await import('esbuild');
   await build({
     // index: the library (package.json exports); netcdfWorker: the NetCDF output thread, which loads
-    // dist/netcdfWorker.js (src/io/netcdfWrite.ts); sampleReader: the sample reader thread (src/io/readerThread.ts)
+    // dist/netcdfWorker.js (src/io/netcdfWrite.ts); sampleReader: the sample reader thread (src/io/readerThread.ts);
+    // early: what bin/wakeplane.js starts before loading main (src/cli/early.ts)
     entryPoints: {
       main: join(root, 'src', 'cli', 'main.ts'), index: join(root, 'src', 'index.ts'), netcdfWorker: join(root, 'src', 'io', 'netcdfWorker.mjs'),
-      sampleReader: join(root, 'src', 'io', 'readerWorker.ts'),
+      sampleReader: join(root, 'src', 'io', 'readerWorker.ts'), early: join(root, 'src', 'cli', 'early.ts'),
     },
     outdir: tmp,
     bundle: true,

@@ -21,10 +21,14 @@ function freshBuild() {
 
 const entry = freshBuild();
 let main;
-if (entry) ({ main } = await import(pathToFileURL(entry).href));
-else {
+if (entry) {
+  // work that can begin before the command's modules are loaded (src/cli/early.ts)
+  (await import(pathToFileURL(join(root, 'dist', 'early.js')).href)).startEarly(process.argv.slice(2));
+  ({ main } = await import(pathToFileURL(entry).href));
+} else {
   const { register } = await import('tsx/esm/api');
   register();
+  (await import('../src/cli/early.ts')).startEarly(process.argv.slice(2));
   ({ main } = await import('../src/cli/main.ts'));
 }
 await main(process.argv.slice(2));

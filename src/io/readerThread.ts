@@ -62,6 +62,11 @@ class ReaderThread {
     return this.dead !== null;
   }
 
+  /** Loads the HDF5 library on the thread now (io/hdf5.ts), ahead of the first file. */
+  warm(): void {
+    this.worker.postMessage({ op: 'warm', id: -1 });
+  }
+
   /** checkSamples of `path` on the thread. */
   async check(path: string, opts: SampleReaderOptions): Promise<unknown> {
     const id = this.nextId++;
@@ -118,6 +123,11 @@ let shared: ReaderThread | undefined;
 function thread(): ReaderThread {
   if (!shared || shared.failed) shared = new ReaderThread();
   return shared;
+}
+
+/** Starts the reader thread and has it load the HDF5 library, before any file is asked for (cli/early.ts). */
+export function warmReaderThread(): void {
+  thread().warm();
 }
 
 /** checkSamples (sampleSource.ts) on the reader thread. */

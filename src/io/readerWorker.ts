@@ -4,7 +4,7 @@
  * thread has taken, so that parsing, decompression and conversion run beside the main thread's work with bounded
  * memory. Batches travel by transfer (no copy) and come back with the next request, to be filled again.
  *
- * Messages in: {op: 'open', id, path, opts}, {op: 'next', id, give?} (one more chunk wanted; `give` a batch done
+ * Messages in: {op: 'warm'} (load the HDF5 library now), {op: 'open', id, path, opts}, {op: 'next', id, give?} (one more chunk wanted; `give` a batch done
  * with), {op: 'close', id}, {op: 'check', id, path, opts} (checkSamples). Out: {id, chunk} | {id, done: true} |
  * {id, checked} | {id, error: {file, line, reason, message}}.
  */
@@ -59,7 +59,10 @@ function errorOf(e: unknown): { file: string; line: number | undefined; reason: 
 }
 
 port.on('message', (m: { op: string; id: number; path?: string; opts?: SampleReaderOptions; give?: SampleBatch }) => {
-  if (m.op === 'check') {
+  if (m.op === 'warm') {
+    // the HDF5 library (WebAssembly) set up ahead of the first file; a failure shows when a file is opened
+    import('./hdf5.ts').then((h) => h.loadHdf5()).catch(() => {});
+  } else if (m.op === 'check') {
     checkSamples(m.path!, { ...m.opts!, thread: false }).then(
       (checked) => port.postMessage({ id: m.id, checked }),
       (e: unknown) => port.postMessage({ id: m.id, error: errorOf(e) }),
