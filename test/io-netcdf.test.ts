@@ -109,6 +109,32 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     expect(rows[10].t).toBeCloseTo(1772366400.5, 6);
   });
 
+  it('every sample is a row or a rejection with its reason, variable, ray and gate (bad angles, times, ranges, velocities)', async () => {
+    const file = join(tmp, 'faults.nc');
+    const a = arrays(8, 4);
+    a.azimuth[2] = 800; // outside [-360, 720]: every gate of ray 2
+    a.elevation[4] = 95; // outside [-90, 90]: ray 4
+    a.time[6] = NaN; // a missing time: ray 6
+    a.range[1] = -5; // a non-positive range: gate 1 of every ray still standing
+    a.radialVelocity[3 * 4 + 2] = NaN; // ray 3, gate 2
+    await writeSampleNetcdf(file, a, { chunkRays: 4 });
+    const { rows, rejected } = await readAll(file, opts());
+    // 8 rays x 4 gates: 3 whole rays (12) + gate 1 of the other 5 rays (5) + 1 velocity = 18 rejected (counted by hand)
+    expect(rows.length + rejected.length).toBe(32);
+    expect(rejected.length).toBe(18);
+    const key = (r: RejectedRow) => `${r.ray}/${r.gate}/${r.reason}`;
+    const got = new Set(rejected.map(key));
+    for (let g = 0; g < 4; g++) for (const [ray, reason] of [[2, 'angle_out_of_range'], [4, 'angle_out_of_range'], [6, 'missing_value']] as const) expect(got.has(`${ray}/${g}/${reason}`)).toBe(true);
+    for (const ray of [0, 1, 3, 5, 7]) expect(got.has(`${ray}/1/bad_range`)).toBe(true);
+    expect(got.has('3/2/missing_value')).toBe(true);
+    const az = rejected.find((r) => r.ray === 2)!;
+    expect(az.detail).toBe('azimuth 800 degrees outside [-360, 720]');
+    expect(rejected.find((r) => r.ray === 0 && r.gate === 1)!.detail).toBe('range -5 m is not positive');
+    // rejections come in file order (ray, then gate)
+    const order = rejected.map((r) => r.ray * 10 + r.gate);
+    expect(order).toEqual([...order].sort((x, y) => x - y));
+  });
+
   it('a primed file (PrimedFiles) is opened once: its head is shared, then the stream goes on to the same samples as a fresh read', async () => {
     const file = join(tmp, 'primed.nc');
     await writeSampleNetcdf(file, arrays(1000, 10), { chunkRays: 64 });
