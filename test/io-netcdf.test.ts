@@ -131,7 +131,7 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     expect(az.detail).toBe('azimuth 800 degrees outside [-360, 720]');
     expect(rejected.find((r) => r.ray === 0 && r.gate === 1)!.detail).toBe('range -5 m is not positive');
     // rejections come in file order (ray, then gate)
-    const order = rejected.map((r) => r.ray * 10 + r.gate);
+    const order = rejected.map((r) => (r.ray ?? 0) * 10 + (r.gate ?? 0));
     expect(order).toEqual([...order].sort((x, y) => x - y));
   });
 
