@@ -37,6 +37,8 @@ export interface FocusData {
   tenMinutes: string;
   /** The whole-record campaign with the uncertainty budget off (its cost on these data). */
   recordNoBudget: string;
+  /** The whole-record campaign without NetCDF outputs (their cost when the only window ends at the last sample). */
+  recordNoNetcdf: string;
   files: string[];
   rows: number;
   bytes: number;
@@ -126,8 +128,10 @@ export async function generateFocus(rows: number, dir = benchDir(), log: (s: str
   writeFileSync(record, campaignYaml(sub, files, rows, { kind: 'record' }, `focus-record-${rows}`));
   writeFileSync(tenMinutes, campaignYaml(sub, files, rows, { kind: 'fixed', length_s: 600 }, `focus-10min-${rows}`));
   writeFileSync(recordNoBudget, campaignYaml(sub, files, rows, { kind: 'record' }, `focus-record-no-budget-${rows}`, { uncertainty: { budget: false } }));
+  const recordNoNetcdf = join(sub, 'record-no-netcdf.yaml');
+  writeFileSync(recordNoNetcdf, campaignYaml(sub, files, rows, { kind: 'record' }, `focus-record-no-netcdf-${rows}`, { output: { dir: join(sub, 'output'), writeRejected: true, images: false, netcdf: false } }));
   const bytes = files.reduce((s, f) => s + statSync(f).size, 0);
-  return { dir: sub, record, tenMinutes, recordNoBudget, files, rows, bytes, reused };
+  return { dir: sub, record, tenMinutes, recordNoBudget, recordNoNetcdf, files, rows, bytes, reused };
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(resolve(process.argv[1])).href) {

@@ -274,6 +274,8 @@ async function main() {
   const focusRuns: { name: string; secs: number[]; rss: number[]; read: number }[] = [];
   // The budget's cost on these data (every sample its own ray): whole-record runs with and without it, alternately.
   const focusBudget: { on: number[]; off: number[]; onCpu: number[]; offCpu: number[] } = { on: [], off: [], onCpu: [], offCpu: [] };
+  // The NetCDF outputs' cost there (the field file is written when the run's only window ends, at the last sample).
+  const focusNetcdf: { on: number[]; off: number[] } = { on: [], off: [] };
   if (!skipPipeline && !process.argv.includes('--skip-focus')) {
     const f = await generateFocus(rows, undefined, (s) => console.log(s));
     console.log(`4. without ray structure (${f.dir}, ${fmt(f.bytes / 2 ** 20, 1)} MiB): whole job, ${runs} runs per case`);
@@ -297,6 +299,14 @@ async function main() {
             focusBudget.on.push(r.seconds); focusBudget.off.push(q.seconds);
             if (r.cpu_s !== undefined && q.cpu_s !== undefined) { focusBudget.onCpu.push(r.cpu_s); focusBudget.offCpu.push(q.cpu_s); }
             console.log(`    the same without the uncertainty budget: ${fmt(q.seconds, 3)} s`);
+          }
+          // and without the NetCDF outputs: their cost where the only window ends with the last sample
+          const nn = parse(readFileSync(f.recordNoNetcdf, 'utf8')) as { name: string; output: { dir: string } };
+          rmSync(join(nn.output.dir, nn.name), { recursive: true, force: true });
+          const z = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', f.recordNoNetcdf, '--quiet', '--no-images', '--cores', '1'], true);
+          if (z.code === 0) {
+            focusNetcdf.on.push(r.seconds); focusNetcdf.off.push(z.seconds);
+            console.log(`    the same without NetCDF outputs: ${fmt(z.seconds, 3)} s`);
           }
         }
       }
@@ -376,6 +386,10 @@ async function main() {
       const wall = focusBudget.on.map((s, k) => 100 * (s / focusBudget.off[k] - 1));
       const cpu = focusBudget.onCpu.map((s, k) => 100 * (s / focusBudget.offCpu[k] - 1));
       out(`  uncertainty budget, whole-record window, with / without, pair by pair: ${spread(wall, 1)} % wall${cpu.length ? `, ${spread(cpu, 1)} % CPU` : ''}   ${verdict(median(wall) < 100 * TARGET.budgetCost)} (< ${100 * TARGET.budgetCost} %)`);
+    }
+    if (focusNetcdf.on.length) {
+      const wall = focusNetcdf.on.map((s, k) => 100 * (s / focusNetcdf.off[k] - 1));
+      out(`  NetCDF outputs, whole-record window, with / without, pair by pair: ${spread(wall, 1)} % wall   ${verdict(median(wall) < 100 * TARGET.outputCost)} (< ${100 * TARGET.outputCost} %)`);
     }
   }
   if (!process.argv.includes('--skip-cores')) await coresBench(d, runsFromArgs(process.argv, '--runs-cores', 3), out);
