@@ -205,6 +205,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // structure would pay for an interval per sample), nor over terrain, with Earth curvature or on a nacelle.
   const reachLo = new Float64Array(I), reachHi = new Float64Array(I), reachEpoch = new Float64Array(I).fill(-1);
   const rayGates = new Int32Array(I);
+  // Time of the instrument's last sample that reached the reach test (with the ray's angles: lastAz, lastEl).
+  const rayT = new Float64Array(I).fill(NaN);
   const reachOut = new Float64Array(2);
   let epoch = 0;
 
@@ -377,6 +379,15 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         const vr = b.radialVelocity[i];
         if (vr > vLim || vr < -vLim) { why = R_VR_LIMIT; break sample; }
         const t = b.time[i];
+        if (reachEpoch[ins] === epoch && t === rayT[ins] && b.azimuth[i] === lastAz[ins] && b.elevation[i] === lastEl[ins]) {
+          // A further gate of the ray just placed (same time: same windows, whose first and last times it has
+          // updated already), beyond its reach: the window lookup and the geometry give what they gave it.
+          const r = b.range[i] + rOff[ins];
+          if (!(r >= reachLo[ins] && r <= reachHi[ins])) {
+            why = posU[ins] + r * nU[ins] < groundMin ? R_BELOW_GROUND : targets[targetOf[ins]].outsideReason;
+            break sample;
+          }
+        }
         if (!(t >= rFrom && t < rTo)) enterRange(t);
         if (nLive === 0) { why = nFound > 0 ? R_OUT_OF_ORDER : R_OUTSIDE_WINDOWS; break sample; }
         for (let k = 0; k < nLive; k++) {
@@ -419,6 +430,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
             }
             reachLo[ins] = lo; reachHi[ins] = hi; reachEpoch[ins] = epoch;
           }
+          rayT[ins] = t;
           if (reachEpoch[ins] === epoch && !(r >= reachLo[ins] && r <= reachHi[ins])) {
             why = ou + r * nu < groundMin ? R_BELOW_GROUND : targets[tg].outsideReason;
             break sample;
