@@ -233,6 +233,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // Straight beams over flat ground: where the ingest may use the targets' reach (1 per target that has one).
   const straight = flat && !curvature;
   const reaches = Uint8Array.from(targets, (tg) => (tg.reach ? 1 : 0));
+  // Per instrument, the rejection of a sample outside its target (read per sample: one typed array, not the targets).
+  const outsideWhy = Int32Array.from(targetOf, (tg) => (tg >= 0 ? targets[tg].outsideReason : R.outside_planes));
 
   // Every file of every instrument (of the shard), read in step; primed with its first batch before the plan is made.
   const shard = opts.shard;
@@ -384,7 +386,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
           // updated already), beyond its reach: the window lookup and the geometry give what they gave it.
           const r = b.range[i] + rOff[ins];
           if (!(r >= reachLo[ins] && r <= reachHi[ins])) {
-            why = posU[ins] + r * nU[ins] < groundMin ? R_BELOW_GROUND : targets[targetOf[ins]].outsideReason;
+            why = posU[ins] + r * nU[ins] < groundMin ? R_BELOW_GROUND : outsideWhy[ins];
             break sample;
           }
         }
@@ -432,7 +434,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
           }
           rayT[ins] = t;
           if (reachEpoch[ins] === epoch && !(r >= reachLo[ins] && r <= reachHi[ins])) {
-            why = ou + r * nu < groundMin ? R_BELOW_GROUND : targets[tg].outsideReason;
+            why = ou + r * nu < groundMin ? R_BELOW_GROUND : outsideWhy[ins];
             break sample;
           }
         }
