@@ -121,12 +121,10 @@ export class CellAccumulator {
    * vector); spy, spz (sums of round(p * POS_SCALE), in-plane position).
    */
   sums = new Float64Array(64 * STRIDE);
-  /** Per slot, at [slot * LAG_STRIDE]: q of the last sample, q of the one before, time of the last, samples seen (capped at 2). */
+  /** Per slot, at [slot * LAG_STRIDE]: the state of its open ray, run and burst (LAG_STRIDE; not a sum, not merged). */
   lag = new Float64Array(64 * LAG_STRIDE);
   /** Values of the sample being added by add() (addValues). */
   private readonly values = new Float64Array(ADD_FIELDS);
-  /** Scratch values of the sample being added (addTiming). */
-  private readonly scratch = new Float64Array(6);
   readonly hist = new VrHistograms();
 
   constructor(
