@@ -17,7 +17,7 @@ import { loadCampaignFile } from '../src/campaign/load.ts';
 import type { Campaign } from '../src/campaign/types.ts';
 import { CellAccumulator } from '../src/grid/accumulator.ts';
 import { accumulatorFromState, accumulatorFromStates, accumulatorState } from '../src/grid/accumulatorState.ts';
-import { PartialWriter, PartialReader } from '../src/io/partialFile.ts';
+import { PARTIAL_FORMAT, PartialWriter, PartialReader } from '../src/io/partialFile.ts';
 import { campaignFirstSample } from '../src/pipeline/ingest.ts';
 import { runShard, type ShardSpec } from '../src/pipeline/partial.ts';
 import { defaultCores, runCampaign, type RunResult } from '../src/pipeline/run.ts';
@@ -317,6 +317,15 @@ describe('sharded runs merge exactly', () => {
       bytes.write('"version":"0.0.9"', at, 'latin1');
       writeFileSync(old, bytes);
       await expect(merge([old, parts[1], parts[2]])).rejects.toThrow(`${old}: written by wakeplane 0.0.9, this is 0.1.0: run the shard again with this version`);
+      // An older format: the format byte of the magic (byte 15) set one lower in a copy. The merge refuses it by
+      // name, and a shard asked to write over it leaves it alone (the tool's file, but not one it can read).
+      const older = join(dir, 'errs', 'older-format.wpart');
+      const ob = readFileSync(parts[0]);
+      ob[15] = PARTIAL_FORMAT - 1;
+      writeFileSync(older, ob);
+      await expect(merge([older, parts[1], parts[2]])).rejects.toThrow(`${older}: partial format ${PARTIAL_FORMAT - 1} (written by an older wakeplane), this wakeplane reads format ${PARTIAL_FORMAT}: run the shard again with this wakeplane`);
+      await expect(runShard(c, { from_s: -Infinity, to_s: Infinity }, older)).rejects.toThrow(`${older}: exists and is a partial format ${PARTIAL_FORMAT - 1} (written by an older wakeplane), this wakeplane reads format ${PARTIAL_FORMAT}; left alone. Remove it or choose another --partial file`);
+      expect(readFileSync(older).equals(ob)).toBe(true);
       const cut = join(dir, 'errs', 'cut.wpart');
       writeFileSync(cut, readFileSync(parts[0]).subarray(0, 4000));
       await expect(merge([cut, parts[1], parts[2]])).rejects.toThrow(`${cut}: unfinished partial result (no trailer: its shard did not complete)`);

@@ -121,12 +121,10 @@ export class CellAccumulator {
    * vector); spy, spz (sums of round(p * POS_SCALE), in-plane position).
    */
   sums = new Float64Array(64 * STRIDE);
-  /** Per slot, at [slot * LAG_STRIDE]: q of the last sample, q of the one before, time of the last, samples seen (capped at 2). */
+  /** Per slot, at [slot * LAG_STRIDE]: the state of its open ray, run and burst (LAG_STRIDE; not a sum, not merged). */
   lag = new Float64Array(64 * LAG_STRIDE);
   /** Values of the sample being added by add() (addValues). */
   private readonly values = new Float64Array(ADD_FIELDS);
-  /** Scratch values of the sample being added (addTiming). */
-  private readonly scratch = new Float64Array(6);
   readonly hist = new VrHistograms();
 
   constructor(
@@ -194,8 +192,7 @@ export class CellAccumulator {
     // several times faster than Math.round; every value here is below 2^27.
     const q = vr * VR_SCALE + RND - RND;
     const q2 = q * q;
-    let hi = q2 * INV_SPLIT + RND - RND;
-    if (hi * SQ_SPLIT > q2) hi -= 1; // floor
+    const hi = Math.floor(q2 * INV_SPLIT); // exact (a power-of-two scale); branch-free, unlike a rounding and a correction
     const m = this.sums, o = s * STRIDE;
     m[o]++;
     m[o + 1] += q;
@@ -208,64 +205,71 @@ export class CellAccumulator {
     m[o + 8] += pz * POS_SCALE + RND - RND;
     this.hist.add(s, q);
     if (t === t && this.budget) {
-      // Values for the budget sums go through a scratch array: doubles passed to a call that is not inlined are
-      // boxed on the heap, once per sample (slot and offset are small integers and are not).
-      const b = this.scratch;
-      b[0] = q; b[1] = t; b[2] = tMid; b[3] = nx; b[4] = ny; b[5] = nz;
-      this.addTiming(s, o);
+      // The budget sums, inline (doubles passed to a call that is not inlined are boxed on the heap, once per
+      // sample; slot offsets are small integers and are not). The samples of a ray share its time: their time sums
+      // are added when the ray closes.
+      const L = this.lag, lo = s * LAG_STRIDE;
+      const M = L[lo + L_M];
+      if (M > 0 && L[lo + L_T] === t) {
+        // Another sample of the open ray.
+        L[lo + L_Q] += q;
+        L[lo + L_M] = M + 1;
+      } else {
+        // A new time stamp: close the open ray, if any, and open one with this sample.
+        if (M > 0) this.closeRay(o, lo);
+        L[lo + L_T] = t;
+        L[lo + L_NX] = nx; L[lo + L_NY] = ny; L[lo + L_NZ] = nz;
+        L[lo + L_Q] = q;
+        L[lo + L_M] = 1;
+      }
+      if (t >= tMid) {
+        m[o + F.hn]++;
+        m[o + F.hv] += q;
+      }
     }
   }
 
-  /** The budget sums of one sample (slot s, offset o; fixed-point v_r q, time t, window middle tMid, beam in `scratch`). */
-  private addTiming(s: number, o: number): void {
-    const b = this.scratch;
-    const q = b[0], t = b[1], tMid = b[2], nx = b[3], ny = b[4], nz = b[5];
-    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE;
-    const tq = t * T_SCALE + RND - RND;
-    let th = tq * INV_SPLIT + RND - RND;
-    if (th * SQ_SPLIT > tq) th -= 1;
-    m[o + F.th] += th;
-    m[o + F.tl] += tq - th * SQ_SPLIT;
-    if (L[lo + L_M] > 0 && L[lo + L_T] !== t) this.closeRay(s);
-    if (L[lo + L_M] === 0) {
-      L[lo + L_T] = t;
-      L[lo + L_NX] = nx; L[lo + L_NY] = ny; L[lo + L_NZ] = nz;
-    }
-    L[lo + L_Q] += q;
-    L[lo + L_M]++;
-    if (t >= tMid) {
-      m[o + F.hn]++;
-      m[o + F.hv] += q;
-    }
-  }
-
-  /** Close the open ray of slot s: its mean joins the ray sums and, within its run, pairs with the three before it. */
-  private closeRay(s: number): void {
-    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
-    const a = (L[lo + L_Q] / L[lo + L_M]) * Q_TO_A + RND - RND;
+  /**
+   * Close the open ray of the slot at sums offset o and lag offset lo (it has samples): its mean joins the ray sums
+   * and, within its run, pairs with the three before it. Leaves the ray's sum and count (L_Q, L_M) for the caller
+   * to reset or overwrite.
+   */
+  private closeRay(o: number, lo: number): void {
+    const m = this.sums, L = this.lag;
+    const Q = L[lo + L_Q], M = L[lo + L_M], T = L[lo + L_T];
+    const nx = L[lo + L_NX], ny = L[lo + L_NY], nz = L[lo + L_NZ];
+    // The ray mean (A_SCALE units, rounded); a ray of one sample needs no division (Q / 1 = Q exactly).
+    const a = (M === 1 ? Q * Q_TO_A : (Q / M) * Q_TO_A) + RND - RND;
+    // Time sums of the ray's M samples: M times the high part and the remainder of the time (exact integers).
+    const tq = T * T_SCALE + RND - RND;
+    const th = Math.floor(tq * INV_SPLIT);
+    m[o + F.th] += M * th;
+    m[o + F.tl] += M * (tq - th * SQ_SPLIT);
     m[o + F.ra]++;
     m[o + F.sa] += a;
     splitAdd(m, o + F.sa2h, a * a);
+    const gap = T - L[lo + L_T1];
+    const far = gap > BURST_GAP_S;
     let seen = L[lo + L_SEEN];
-    if (seen === 0 || L[lo + L_NX] !== L[lo + L_PX] || L[lo + L_NY] !== L[lo + L_PY] || L[lo + L_NZ] !== L[lo + L_PZ] || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+    if (seen === 0 || far || nx !== L[lo + L_PX] || ny !== L[lo + L_PY] || nz !== L[lo + L_PZ]) {
       seen = 0; // a new run: another beam direction, a gap (the next pass), or the first ray
     }
-    if (L[lo + L_RM] === 0 || L[lo + L_T] - L[lo + L_T1] > BURST_GAP_S) {
+    if (far || L[lo + L_RM] === 0) {
       // A new burst: the first ray, or one after a gap in the key's samples.
-      this.closeRun(s);
+      this.closeRun(o, lo);
       m[o + F.rb]++;
     }
-    L[lo + L_RQ] += L[lo + L_Q];
-    L[lo + L_RM] += L[lo + L_M];
+    L[lo + L_RQ] += Q;
+    L[lo + L_RM] += M;
     // The ray's beam (one direction per time stamp), weighted by its samples, for the burst's mean beam vector.
-    L[lo + L_RX] += L[lo + L_M] * (L[lo + L_NX] * EB_SCALE + RND - RND);
-    L[lo + L_RY] += L[lo + L_M] * (L[lo + L_NY] * EB_SCALE + RND - RND);
-    L[lo + L_RZ] += L[lo + L_M] * (L[lo + L_NZ] * EB_SCALE + RND - RND);
+    L[lo + L_RX] += M * (nx * EB_SCALE + RND - RND);
+    L[lo + L_RY] += M * (ny * EB_SCALE + RND - RND);
+    L[lo + L_RZ] += M * (nz * EB_SCALE + RND - RND);
+    const a1 = L[lo + L_A1];
     if (seen >= 1) {
       m[o + F.l1n]++;
-      const d1 = a - L[lo + L_A1];
+      const d1 = a - a1;
       splitAdd(m, o + F.l1h, d1 * d1);
-      const gap = L[lo + L_T] - L[lo + L_T1];
       m[o + F.l1d] += (gap > 0 ? gap : -gap) * DT_SCALE + RND - RND;
       if (seen >= 2) {
         m[o + F.l2n]++;
@@ -278,14 +282,15 @@ export class CellAccumulator {
         }
       }
     }
-    L[lo + L_A3] = L[lo + L_A2];
-    L[lo + L_A2] = L[lo + L_A1];
+    // The last ray means of the run: A2 and A3 are read only with 2 and 3 rays of the run seen.
+    if (seen >= 1) {
+      if (seen >= 2) L[lo + L_A3] = L[lo + L_A2];
+      L[lo + L_A2] = a1;
+    }
     L[lo + L_A1] = a;
-    L[lo + L_T1] = L[lo + L_T];
-    L[lo + L_PX] = L[lo + L_NX]; L[lo + L_PY] = L[lo + L_NY]; L[lo + L_PZ] = L[lo + L_NZ];
+    L[lo + L_T1] = T;
+    L[lo + L_PX] = nx; L[lo + L_PY] = ny; L[lo + L_PZ] = nz;
     L[lo + L_SEEN] = seen >= 3 ? 3 : seen + 1;
-    L[lo + L_Q] = 0;
-    L[lo + L_M] = 0;
   }
 
   /**
@@ -293,8 +298,8 @@ export class CellAccumulator {
    * join the burst sums (E_SCALE docblock), from which the sampling statistics take the cluster-robust variance of
    * the key's mean with the part the beam direction explains removed (retrieval/sampling.ts).
    */
-  private closeRun(s: number): void {
-    const m = this.sums, L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+  private closeRun(o: number, lo: number): void {
+    const m = this.sums, L = this.lag;
     const M = L[lo + L_RM];
     if (M === 0) return;
     const a = (L[lo + L_RQ] / M) * Q_TO_A + RND - RND;
@@ -318,10 +323,18 @@ export class CellAccumulator {
   /** Close every open ray and run (before the budget sums are read, and before a merge). */
   closeRays(): void {
     if (!this.budget) return;
-    for (let s = 0; s < this.slots; s++) {
-      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
-      this.closeRun(s);
+    for (let s = 0; s < this.slots; s++) this.closeOpen(s);
+  }
+
+  /** Close slot s's open ray (then empty) and burst. */
+  private closeOpen(s: number): void {
+    const L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
+    if (L[lo + L_M] > 0) {
+      this.closeRay(o, lo);
+      L[lo + L_Q] = 0;
+      L[lo + L_M] = 0;
     }
+    this.closeRun(o, lo);
   }
 
   /**
@@ -334,8 +347,7 @@ export class CellAccumulator {
     const I = this.instrumentCount;
     for (let s = 0; s < this.slots; s++) {
       if (this.keyOf[s] % I !== ins) continue;
-      if (this.lag[s * LAG_STRIDE + L_M] > 0) this.closeRay(s);
-      this.closeRun(s);
+      this.closeOpen(s);
       this.lag.fill(0, s * LAG_STRIDE, (s + 1) * LAG_STRIDE);
     }
   }
@@ -372,8 +384,7 @@ export class CellAccumulator {
 
 /** Add the integer x (|x| < 2^52) to m[at] (multiples of SQ_SPLIT) and m[at + 1] (remainder in [0, SQ_SPLIT)). */
 function splitAdd(m: Float64Array, at: number, x: number): void {
-  let h = x * INV_SPLIT + RND - RND;
-  if (h * SQ_SPLIT > x) h -= 1;
+  const h = Math.floor(x * INV_SPLIT); // exact: x * 2^-26 is exact, and so is its floor
   m[at] += h;
   m[at + 1] += x - h * SQ_SPLIT;
 }

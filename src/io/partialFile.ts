@@ -17,7 +17,11 @@ import { closeSync, fstatSync, openSync, readSync, renameSync, rmSync, writeSync
 import { endianness } from 'node:os';
 import type { TypedArray } from '../grid/accumulatorState.ts';
 
-export const PARTIAL_FORMAT = 2;
+/**
+ * Format of the files this build writes and reads. 3: the accumulator's layout without its scratch array (the
+ * uncertainty budget's per-sample path, grid/accumulator.ts); 2: the burst sums of the sampling term.
+ */
+export const PARTIAL_FORMAT = 3;
 const MAGIC = Buffer.from('WAKEPLANE-PART\n\0', 'latin1');
 MAGIC[15] = PARTIAL_FORMAT;
 const END = Buffer.from('WPEND\0\0\0', 'latin1');
@@ -131,7 +135,7 @@ export class PartialReader {
       const head = Buffer.alloc(16);
       if (size < 32 || readSync(fd, head, 0, 16, 0) !== 16 || head.subarray(0, 15).compare(MAGIC, 0, 15) !== 0) throw new Error('not a wakeplane partial result');
       const format = head[15];
-      if (format !== PARTIAL_FORMAT) throw new Error(`partial format ${format}, this wakeplane reads format ${PARTIAL_FORMAT}`);
+      if (format !== PARTIAL_FORMAT) throw new Error(`partial format ${format}${format < PARTIAL_FORMAT ? ' (written by an older wakeplane)' : ''}, this wakeplane reads format ${PARTIAL_FORMAT}: run the shard again with this wakeplane`);
       const tail = Buffer.alloc(16);
       readSync(fd, tail, 0, 16, size - 16);
       if (tail.subarray(8).compare(END) !== 0) throw new Error('unfinished partial result (no trailer: its shard did not complete)');

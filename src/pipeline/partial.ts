@@ -100,7 +100,10 @@ export function fileSink(partialPath: string, notify?: (n: SinkNote) => void | P
     // Never touch a file the tool did not make: only an earlier partial result is replaced (a shard run again).
     try {
       PartialReader.open(partialPath).close();
-    } catch {
+    } catch (e) {
+      const msg = (e as Error).message;
+      // A partial of another format (an older wakeplane's) says so; anything else is not the tool's file.
+      if (msg.startsWith('partial format')) throw new OutputError(partialPath, `exists and is a ${msg.replace(/: run the shard again.*$/, '')}; left alone. Remove it or choose another --partial file`);
       throw new OutputError(partialPath, 'exists and is not a wakeplane partial result; left alone. Choose another --partial file');
     }
   }
