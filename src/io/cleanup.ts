@@ -6,6 +6,19 @@
 import { rmSync } from 'node:fs';
 
 const registered = new Set<string>();
+/** Whole-removal attempts per path on interrupt, 25 ms apart. */
+const REMOVE_ATTEMPTS = 20;
+const pause = new Int32Array(new SharedArrayBuffer(4));
+const stoppers = new Set<() => void>();
+
+/**
+ * Registers work to stop before the paths are removed on interrupt (a writer thread still creating files in the
+ * staging folder would otherwise race the removal); returns the function that unregisters it.
+ */
+export function stopOnInterrupt(stop: () => void): () => void {
+  stoppers.add(stop);
+  return () => stoppers.delete(stop);
+}
 
 /** Registers `path` for removal on interrupt; returns the function that unregisters it. */
 export function removeOnInterrupt(path: string): () => void {
@@ -14,19 +27,33 @@ export function removeOnInterrupt(path: string): () => void {
 }
 
 /**
- * Removes every registered path (synchronously, as a signal handler must), the innermost first; a write still in
- * flight can add a file to a folder while it is removed, so a folder is tried again a few times. Returns the paths
- * removed and those that could not be.
+ * Stops the registered work (stopOnInterrupt), then removes every registered path (synchronously, as a signal
+ * handler must), the innermost first; a write still in flight can add a file to a folder while it is removed, so a
+ * path is tried again, whole, up to REMOVE_ATTEMPTS times. Returns the paths removed and those that could not be.
  */
 export function removeRegistered(): { removed: string[]; failed: string[] } {
   const removed: string[] = [], failed: string[] = [];
-  for (const p of [...registered].sort((a, b) => b.length - a.length)) {
+  for (const stop of stoppers) {
     try {
-      rmSync(p, { recursive: true, force: true, maxRetries: 10, retryDelay: 20 });
-      removed.push(p);
+      stop();
     } catch {
-      failed.push(p);
+      // stopping is best effort; the removal below retries
     }
+  }
+  stoppers.clear();
+  for (const p of [...registered].sort((a, b) => b.length - a.length)) {
+    // A file whose asynchronous open was in flight (a write stream's, on libuv's thread pool) can appear after a
+    // folder's listing: rmSync's own retries only repeat the last rmdir, so the whole removal is tried again.
+    let ok = false;
+    for (let attempt = 0; attempt < REMOVE_ATTEMPTS && !ok; attempt++) {
+      try {
+        rmSync(p, { recursive: true, force: true, maxRetries: 2, retryDelay: 10 });
+        ok = true;
+      } catch {
+        Atomics.wait(pause, 0, 0, 25); // a synchronous pause of 25 ms (signal handlers cannot await)
+      }
+    }
+    (ok ? removed : failed).push(p);
   }
   registered.clear();
   return { removed, failed };

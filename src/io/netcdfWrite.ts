@@ -16,6 +16,7 @@ import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
 import { hdf5Message, loadHdf5 } from './hdf5.ts';
+import { stopOnInterrupt } from './cleanup.ts';
 import { NcFileWriter, type NcAttr, type NcData, type VariableOptions } from './netcdfCore.mjs';
 
 export type { NcAttr, NcData, VariableOptions };
@@ -78,6 +79,8 @@ export class NcWorker {
     this.worker.on('exit', (code) => { if (code !== 0) this.fail(new Error(`NetCDF writer stopped (exit code ${code})`)); });
     // after the listeners (adding a 'message' listener refs the port again): an idle writer keeps no process alive
     this.worker.unref();
+    // On Ctrl-C or SIGTERM the thread is stopped before the staging folder it writes into is removed.
+    stopOnInterrupt(() => void this.worker.terminate());
   }
 
   private fail(e: Error): void {
