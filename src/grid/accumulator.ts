@@ -38,43 +38,66 @@
  */
 import { VrHistograms } from '../qc/vrHistogram.ts';
 
+/**
+ * The fixed-point constants, as a const enum: the hot paths below compile to immediate values (a module-level
+ * constant is loaded and type-checked at each use in optimised code, dozens of times per ray). Exported one by one
+ * below under their documented names.
+ */
+const enum K {
+  VR_SCALE = 2 ** 20,
+  DIR_SCALE = 2 ** 26,
+  POS_SCALE = 2 ** 10,
+  SQ_SPLIT = 2 ** 26,
+  INV_SPLIT = 1 / K.SQ_SPLIT,
+  /** 1.5 * 2^52: x + RND - RND rounds x to the nearest integer (ties to even), exact for |x| < 2^51. */
+  RND = 6755399441055744,
+  T_SCALE = 2 ** 6,
+  DT_SCALE = 2 ** 10,
+  A_SCALE = 2 ** 10,
+  Q_TO_A = K.A_SCALE / K.VR_SCALE,
+  E_SCALE = 2 ** 12,
+  EB_SCALE = 2 ** 20,
+  W_CAP = 256,
+  BURST_GAP_S = 5,
+}
+
 /** Fixed-point scale of the radial velocity: q = round(v_r * VR_SCALE). */
-export const VR_SCALE = 2 ** 20;
+export const VR_SCALE: number = K.VR_SCALE;
 /** Fixed-point scale of unit-vector components. */
-export const DIR_SCALE = 2 ** 26;
+export const DIR_SCALE: number = K.DIR_SCALE;
 /** Fixed-point scale of in-plane positions (metres). */
-export const POS_SCALE = 2 ** 10;
+export const POS_SCALE: number = K.POS_SCALE;
 /** Split of q^2 into high and low parts. */
-export const SQ_SPLIT = 2 ** 26;
+export const SQ_SPLIT: number = K.SQ_SPLIT;
 /** Samples per key above which a sum could lose exactness. */
 export const MAX_SAMPLES_PER_KEY = 2 ** 27;
 /** Largest |v_r| the fixed-point sums hold exactly, m/s. */
 export const MAX_ABS_VR = 64;
 
-const RND = 6755399441055744; // 1.5 * 2^52
-const INV_SPLIT = 1 / SQ_SPLIT;
-
 /** Fixed-point scale of sample times (absolute Unix seconds), 1/s. */
-export const T_SCALE = 2 ** 6;
+export const T_SCALE: number = K.T_SCALE;
 /** Fixed-point scale of time gaps between successive samples of a key, 1/s. */
-export const DT_SCALE = 2 ** 10;
+export const DT_SCALE: number = K.DT_SCALE;
 
 /**
  * Fields of a slot in CellAccumulator.sums (stride STRIDE). Every field is a sum of integers, merged by addition.
  * n .. spz: the retrieval's sums. th, tl: time sums (high part in units of 2^26 quanta, remainder). l1n, l1h, l1l,
  * l1d: lag-1 pair count, product sums (high, low), gap sum; l2n, l2h, l2l: lag-2 pair count and product sums;
  * hn, hv: count and sum of q of the samples in the later half of the window; rb: bursts; sw .. Tez: the burst sums
- * (E_SCALE below).
+ * (E_SCALE below). An enum, so that the offsets compile to immediate values; `F` is the same as an object.
  */
-export const F = {
-  n: 0, sv: 1, sv2h: 2, sv2l: 3, sx: 4, sy: 5, sz: 6, spy: 7, spz: 8,
-  th: 9, tl: 10, ra: 11, sa: 12, sa2h: 13, sa2l: 14, rb: 15, l1n: 16, l1h: 17, l1l: 18, l1d: 19, l2n: 20, l2h: 21, l2l: 22,
-  l3n: 23, l3h: 24, l3l: 25, hn: 26, hv: 27,
-  sw: 28, sw2: 29, sT: 30, sT2h: 31, sT2l: 32, swT: 33, swex: 34, swey: 35, swez: 36, swwex: 37, swwey: 38, swwez: 39,
-  exxh: 40, exxl: 41, exyh: 42, exyl: 43, exzh: 44, exzl: 45, eyyh: 46, eyyl: 47, eyzh: 48, eyzl: 49, ezzh: 50, ezzl: 51,
-  Texh: 52, Texl: 53, Teyh: 54, Teyl: 55, Tezh: 56, Tezl: 57,
-} as const;
-export const STRIDE = 58;
+enum Field {
+  n, sv, sv2h, sv2l, sx, sy, sz, spy, spz,
+  th, tl, ra, sa, sa2h, sa2l, rb, l1n, l1h, l1l, l1d, l2n, l2h, l2l,
+  l3n, l3h, l3l, hn, hv,
+  sw, sw2, sT, sT2h, sT2l, swT, swex, swey, swez, swwex, swwey, swwez,
+  exxh, exxl, exyh, exyl, exzh, exzl, eyyh, eyyl, eyzh, eyzl, ezzh, ezzl,
+  Texh, Texl, Teyh, Teyl, Tezh, Tezl,
+}
+/** The field offsets of a slot by name (Field): n 0, sv 1, ..., Tezl 57, in this order. */
+export const F = Object.freeze(Object.fromEntries(Object.entries(Field).filter(([, v]) => typeof v === 'number'))) as { readonly [N in keyof typeof Field]: number };
+/** Fields per slot. */
+export const STRIDE: number = Field.Tezl + 1;
 /**
  * Burst sums (fields sw .. Tez): per burst b its weight w_b = min(n_b, W_CAP) (n_b its
  * samples), its mean a_b (A_SCALE units, rounded) and mean beam unit vector e_b (E_SCALE units, each component
@@ -82,32 +105,29 @@ export const STRIDE = 58;
  * squares and products split in high and low parts). Each term stays below 2^48, the single ones below 2^32, so
  * the sums are exact up to 2^21 bursts per key (four months of passes 5 s apart in one window).
  */
-export const E_SCALE = 2 ** 12;
+export const E_SCALE: number = K.E_SCALE;
 /** Largest weight of one burst in the burst sums (samples). */
-export const W_CAP = 256;
-/** Fixed-point scale of the beam components summed per sample within an open burst (lag state). */
-const EB_SCALE = 2 ** 20;
+export const W_CAP: number = K.W_CAP;
 /** Values of one sample for CellAccumulator.addValues: v_r, beam nx, ny, nz, position py, pz, time t, window middle tMid. */
 export const ADD_FIELDS = 8;
 /**
  * Gap in a key's rays (s) that starts a new burst: the bursts of a key are the passes of a scanner through its cell,
  * taken as independent of each other by the sampling statistics (retrieval/sampling.ts). @default 5
  */
-export const BURST_GAP_S = 5;
+export const BURST_GAP_S: number = K.BURST_GAP_S;
 /** Fixed-point scale of ray means, 1/(m/s). */
-export const A_SCALE = 2 ** 10;
+export const A_SCALE: number = K.A_SCALE;
 /**
- * Per-slot state of the rays (not a sum; not merged): sum of q and count of the open ray, its time and beam
- * direction; the last three closed ray means (a) of the current run, the time and direction of the last closed ray;
- * closed rays of the run (capped at 3).
+ * Per-slot state of the rays (not a sum; not merged), at [slot * LAG_STRIDE + Lag.x]. Q, M: sum of q and count of
+ * the open ray; T, NX, NY, NZ: its time and beam direction (those of the last closed ray while no ray is open);
+ * RUN: 1 + the number of earlier rays of its run the open (or last) ray pairs with (0 to 3), 0 before the first
+ * ray; A1, A2, A3: the last three closed ray means of the run (A_SCALE units); RQ, RM: sum of q and count of the
+ * samples of the open burst's closed rays; RX, RY, RZ: their sums of the beam components (EB_SCALE = 2^20 units,
+ * integers). A ray is classified (run, burst) when it opens: everything that needs is known then.
  */
-export const LAG_STRIDE = 19;
-const L_Q = 0, L_M = 1, L_T = 2, L_NX = 3, L_NY = 4, L_NZ = 5, L_A1 = 6, L_A2 = 7, L_A3 = 8, L_T1 = 9, L_SEEN = 10, L_PX = 11, L_PY = 12, L_PZ = 13;
-/** Sum of q and count of the samples of the open burst. */
-const L_RQ = 14, L_RM = 15;
-/** Sums of the beam components (EB_SCALE units, integers) of the samples of the open burst. */
-const L_RX = 16, L_RY = 17, L_RZ = 18;
-const Q_TO_A = A_SCALE / VR_SCALE;
+const enum Lag { Q, M, T, NX, NY, NZ, RUN, A1, A2, A3, RQ, RM, RX, RY, RZ, STRIDE = 16 }
+/** Doubles of per-slot ray state (Lag; 15 used, 128 bytes). */
+export const LAG_STRIDE: number = Lag.STRIDE;
 
 export class CellAccumulator {
   /** key -> slot, or -1 when the key has no sample yet. */
@@ -188,136 +208,140 @@ export class CellAccumulator {
     const vr = v[0], nx = v[1], ny = v[2], nz = v[3], py = v[4], pz = v[5], t = v[6], tMid = v[7];
     let s = this.slotOf[key];
     if (s < 0) s = this.slot(key);
-    // Rounding to the nearest integer (ties to even) by adding and removing 1.5 * 2^52: exact for |x| < 2^51 and
-    // several times faster than Math.round; every value here is below 2^27.
-    const q = vr * VR_SCALE + RND - RND;
+    // Rounding to the nearest integer (ties to even) by adding and removing 1.5 * 2^52 (K.RND): exact for |x| < 2^51
+    // and several times faster than Math.round; every value here is below 2^27.
+    const q = vr * K.VR_SCALE + K.RND - K.RND;
     const q2 = q * q;
-    const hi = Math.floor(q2 * INV_SPLIT); // exact (a power-of-two scale); branch-free, unlike a rounding and a correction
+    const hi = Math.floor(q2 * K.INV_SPLIT); // exact (a power-of-two scale); branch-free, unlike a rounding and a correction
     const m = this.sums, o = s * STRIDE;
-    m[o]++;
-    m[o + 1] += q;
-    m[o + 2] += hi;
-    m[o + 3] += q2 - hi * SQ_SPLIT;
-    m[o + 4] += nx * DIR_SCALE + RND - RND;
-    m[o + 5] += ny * DIR_SCALE + RND - RND;
-    m[o + 6] += nz * DIR_SCALE + RND - RND;
-    m[o + 7] += py * POS_SCALE + RND - RND;
-    m[o + 8] += pz * POS_SCALE + RND - RND;
+    m[o + Field.n]++;
+    m[o + Field.sv] += q;
+    m[o + Field.sv2h] += hi;
+    m[o + Field.sv2l] += q2 - hi * K.SQ_SPLIT;
+    m[o + Field.sx] += nx * K.DIR_SCALE + K.RND - K.RND;
+    m[o + Field.sy] += ny * K.DIR_SCALE + K.RND - K.RND;
+    m[o + Field.sz] += nz * K.DIR_SCALE + K.RND - K.RND;
+    m[o + Field.spy] += py * K.POS_SCALE + K.RND - K.RND;
+    m[o + Field.spz] += pz * K.POS_SCALE + K.RND - K.RND;
     this.hist.add(s, q);
     if (t === t && this.budget) {
       // The budget sums, inline (doubles passed to a call that is not inlined are boxed on the heap, once per
       // sample; slot offsets are small integers and are not). The samples of a ray share its time: their time sums
       // are added when the ray closes.
-      const L = this.lag, lo = s * LAG_STRIDE;
-      const M = L[lo + L_M];
-      if (M > 0 && L[lo + L_T] === t) {
+      const L = this.lag, lo = s * Lag.STRIDE;
+      const M = L[lo + Lag.M];
+      if (M > 0 && L[lo + Lag.T] === t) {
         // Another sample of the open ray.
-        L[lo + L_Q] += q;
-        L[lo + L_M] = M + 1;
+        L[lo + Lag.Q] += q;
+        L[lo + Lag.M] = M + 1;
       } else {
         // A new time stamp: close the open ray, if any, and open one with this sample.
         if (M > 0) this.closeRay(o, lo);
-        L[lo + L_T] = t;
-        L[lo + L_NX] = nx; L[lo + L_NY] = ny; L[lo + L_NZ] = nz;
-        L[lo + L_Q] = q;
-        L[lo + L_M] = 1;
+        // Its run and burst, against the last closed ray (time and direction still in T, NX, NY, NZ): a new run
+        // after another beam direction, a gap of more than BURST_GAP_S (the next pass) or before the first ray; a
+        // new burst after such a gap or when none is open (the first ray, or after closeRays()).
+        const gap = t - L[lo + Lag.T];
+        const far = gap > K.BURST_GAP_S;
+        let seen = L[lo + Lag.RUN]; // 1 + the pairs the last ray formed: the earlier rays this one can pair with
+        if (seen > 3) seen = 3;
+        if (seen === 0 || far || nx !== L[lo + Lag.NX] || ny !== L[lo + Lag.NY] || nz !== L[lo + Lag.NZ]) seen = 0;
+        if (seen >= 1) {
+          // The pair counts and the lag-1 gap now; the squared differences of the ray means when the ray closes.
+          m[o + Field.l1n]++;
+          m[o + Field.l1d] += (gap > 0 ? gap : -gap) * K.DT_SCALE + K.RND - K.RND;
+          if (seen >= 2) {
+            m[o + Field.l2n]++;
+            if (seen >= 3) m[o + Field.l3n]++;
+          }
+        }
+        if (far || L[lo + Lag.RM] === 0) {
+          this.closeRun(o, lo);
+          m[o + Field.rb]++;
+        }
+        L[lo + Lag.T] = t;
+        L[lo + Lag.NX] = nx; L[lo + Lag.NY] = ny; L[lo + Lag.NZ] = nz;
+        L[lo + Lag.Q] = q;
+        L[lo + Lag.M] = 1;
+        L[lo + Lag.RUN] = seen + 1;
       }
       if (t >= tMid) {
-        m[o + F.hn]++;
-        m[o + F.hv] += q;
+        m[o + Field.hn]++;
+        m[o + Field.hv] += q;
       }
     }
   }
 
   /**
    * Close the open ray of the slot at sums offset o and lag offset lo (it has samples): its mean joins the ray sums
-   * and, within its run, pairs with the three before it. Leaves the ray's sum and count (L_Q, L_M) for the caller
-   * to reset or overwrite.
+   * and the burst's, and pairs with the rays of its run its opening counted (Lag.RUN). Leaves the ray's sum and
+   * count (Q, M) for the caller to reset or overwrite, its time and direction for the next ray's classification.
    */
   private closeRay(o: number, lo: number): void {
     const m = this.sums, L = this.lag;
-    const Q = L[lo + L_Q], M = L[lo + L_M], T = L[lo + L_T];
-    const nx = L[lo + L_NX], ny = L[lo + L_NY], nz = L[lo + L_NZ];
+    const Q = L[lo + Lag.Q], M = L[lo + Lag.M], T = L[lo + Lag.T];
+    const nx = L[lo + Lag.NX], ny = L[lo + Lag.NY], nz = L[lo + Lag.NZ];
     // The ray mean (A_SCALE units, rounded); a ray of one sample needs no division (Q / 1 = Q exactly).
-    const a = (M === 1 ? Q * Q_TO_A : (Q / M) * Q_TO_A) + RND - RND;
+    const a = (M === 1 ? Q * K.Q_TO_A : (Q / M) * K.Q_TO_A) + K.RND - K.RND;
     // Time sums of the ray's M samples: M times the high part and the remainder of the time (exact integers).
-    const tq = T * T_SCALE + RND - RND;
-    const th = Math.floor(tq * INV_SPLIT);
-    m[o + F.th] += M * th;
-    m[o + F.tl] += M * (tq - th * SQ_SPLIT);
-    m[o + F.ra]++;
-    m[o + F.sa] += a;
-    splitAdd(m, o + F.sa2h, a * a);
-    const gap = T - L[lo + L_T1];
-    const far = gap > BURST_GAP_S;
-    let seen = L[lo + L_SEEN];
-    if (seen === 0 || far || nx !== L[lo + L_PX] || ny !== L[lo + L_PY] || nz !== L[lo + L_PZ]) {
-      seen = 0; // a new run: another beam direction, a gap (the next pass), or the first ray
-    }
-    if (far || L[lo + L_RM] === 0) {
-      // A new burst: the first ray, or one after a gap in the key's samples.
-      this.closeRun(o, lo);
-      m[o + F.rb]++;
-    }
-    L[lo + L_RQ] += Q;
-    L[lo + L_RM] += M;
+    const tq = T * K.T_SCALE + K.RND - K.RND;
+    const th = Math.floor(tq * K.INV_SPLIT);
+    m[o + Field.th] += M * th;
+    m[o + Field.tl] += M * (tq - th * K.SQ_SPLIT);
+    m[o + Field.ra]++;
+    m[o + Field.sa] += a;
+    splitAdd(m, o + Field.sa2h, a * a);
+    L[lo + Lag.RQ] += Q;
+    L[lo + Lag.RM] += M;
     // The ray's beam (one direction per time stamp), weighted by its samples, for the burst's mean beam vector.
-    L[lo + L_RX] += M * (nx * EB_SCALE + RND - RND);
-    L[lo + L_RY] += M * (ny * EB_SCALE + RND - RND);
-    L[lo + L_RZ] += M * (nz * EB_SCALE + RND - RND);
-    const a1 = L[lo + L_A1];
+    L[lo + Lag.RX] += M * (nx * K.EB_SCALE + K.RND - K.RND);
+    L[lo + Lag.RY] += M * (ny * K.EB_SCALE + K.RND - K.RND);
+    L[lo + Lag.RZ] += M * (nz * K.EB_SCALE + K.RND - K.RND);
+    const seen = L[lo + Lag.RUN] - 1;
     if (seen >= 1) {
-      m[o + F.l1n]++;
+      const a1 = L[lo + Lag.A1];
       const d1 = a - a1;
-      splitAdd(m, o + F.l1h, d1 * d1);
-      m[o + F.l1d] += (gap > 0 ? gap : -gap) * DT_SCALE + RND - RND;
+      splitAdd(m, o + Field.l1h, d1 * d1);
       if (seen >= 2) {
-        m[o + F.l2n]++;
-        const d2 = a - L[lo + L_A2];
-        splitAdd(m, o + F.l2h, d2 * d2);
+        const a2 = L[lo + Lag.A2];
+        const d2 = a - a2;
+        splitAdd(m, o + Field.l2h, d2 * d2);
         if (seen >= 3) {
-          m[o + F.l3n]++;
-          const d3 = a - L[lo + L_A3];
-          splitAdd(m, o + F.l3h, d3 * d3);
+          const d3 = a - L[lo + Lag.A3];
+          splitAdd(m, o + Field.l3h, d3 * d3);
         }
+        L[lo + Lag.A3] = a2;
       }
+      L[lo + Lag.A2] = a1;
     }
-    // The last ray means of the run: A2 and A3 are read only with 2 and 3 rays of the run seen.
-    if (seen >= 1) {
-      if (seen >= 2) L[lo + L_A3] = L[lo + L_A2];
-      L[lo + L_A2] = a1;
-    }
-    L[lo + L_A1] = a;
-    L[lo + L_T1] = T;
-    L[lo + L_PX] = nx; L[lo + L_PY] = ny; L[lo + L_PZ] = nz;
-    L[lo + L_SEEN] = seen >= 3 ? 3 : seen + 1;
+    // The last ray means of the run: A2 and A3 are read only with 2 and 3 earlier rays of the run.
+    L[lo + Lag.A1] = a;
   }
 
   /**
-   * Close the open burst of slot s: its weight w_b, sample mean a_b (2^-10 m/s) and mean beam vector e_b (E_SCALE)
-   * join the burst sums (E_SCALE docblock), from which the sampling statistics take the cluster-robust variance of
-   * the key's mean with the part the beam direction explains removed (retrieval/sampling.ts).
+   * Close the open burst of the slot at o, lo: its weight w_b, sample mean a_b (2^-10 m/s) and mean beam vector e_b
+   * (E_SCALE) join the burst sums (E_SCALE docblock), from which the sampling statistics take the cluster-robust
+   * variance of the key's mean with the part the beam direction explains removed (retrieval/sampling.ts).
    */
   private closeRun(o: number, lo: number): void {
     const m = this.sums, L = this.lag;
-    const M = L[lo + L_RM];
+    const M = L[lo + Lag.RM];
     if (M === 0) return;
-    const a = (L[lo + L_RQ] / M) * Q_TO_A + RND - RND;
-    const k = E_SCALE / (EB_SCALE * M);
-    const ex = L[lo + L_RX] * k + RND - RND, ey = L[lo + L_RY] * k + RND - RND, ez = L[lo + L_RZ] * k + RND - RND;
-    const w = M < W_CAP ? M : W_CAP;
+    const a = (L[lo + Lag.RQ] / M) * K.Q_TO_A + K.RND - K.RND;
+    const k = K.E_SCALE / (K.EB_SCALE * M);
+    const ex = L[lo + Lag.RX] * k + K.RND - K.RND, ey = L[lo + Lag.RY] * k + K.RND - K.RND, ez = L[lo + Lag.RZ] * k + K.RND - K.RND;
+    const w = M < K.W_CAP ? M : K.W_CAP;
     const T = w * a, fx = w * ex, fy = w * ey, fz = w * ez;
-    m[o + F.sw] += w; m[o + F.sw2] += w * w; m[o + F.sT] += T;
-    splitAdd(m, o + F.sT2h, T * T);
-    m[o + F.swT] += w * T;
-    m[o + F.swex] += fx; m[o + F.swey] += fy; m[o + F.swez] += fz;
-    m[o + F.swwex] += w * fx; m[o + F.swwey] += w * fy; m[o + F.swwez] += w * fz;
-    splitAdd(m, o + F.exxh, fx * fx); splitAdd(m, o + F.exyh, fx * fy); splitAdd(m, o + F.exzh, fx * fz);
-    splitAdd(m, o + F.eyyh, fy * fy); splitAdd(m, o + F.eyzh, fy * fz); splitAdd(m, o + F.ezzh, fz * fz);
-    splitAdd(m, o + F.Texh, T * fx); splitAdd(m, o + F.Teyh, T * fy); splitAdd(m, o + F.Tezh, T * fz);
-    L[lo + L_RQ] = 0;
-    L[lo + L_RM] = 0;
-    L[lo + L_RX] = 0; L[lo + L_RY] = 0; L[lo + L_RZ] = 0;
+    m[o + Field.sw] += w; m[o + Field.sw2] += w * w; m[o + Field.sT] += T;
+    splitAdd(m, o + Field.sT2h, T * T);
+    m[o + Field.swT] += w * T;
+    m[o + Field.swex] += fx; m[o + Field.swey] += fy; m[o + Field.swez] += fz;
+    m[o + Field.swwex] += w * fx; m[o + Field.swwey] += w * fy; m[o + Field.swwez] += w * fz;
+    splitAdd(m, o + Field.exxh, fx * fx); splitAdd(m, o + Field.exyh, fx * fy); splitAdd(m, o + Field.exzh, fx * fz);
+    splitAdd(m, o + Field.eyyh, fy * fy); splitAdd(m, o + Field.eyzh, fy * fz); splitAdd(m, o + Field.ezzh, fz * fz);
+    splitAdd(m, o + Field.Texh, T * fx); splitAdd(m, o + Field.Teyh, T * fy); splitAdd(m, o + Field.Tezh, T * fz);
+    L[lo + Lag.RQ] = 0;
+    L[lo + Lag.RM] = 0;
+    L[lo + Lag.RX] = 0; L[lo + Lag.RY] = 0; L[lo + Lag.RZ] = 0;
   }
 
   /** Close every open ray and run (before the budget sums are read, and before a merge). */
@@ -328,11 +352,11 @@ export class CellAccumulator {
 
   /** Close slot s's open ray (then empty) and burst. */
   private closeOpen(s: number): void {
-    const L = this.lag, lo = s * LAG_STRIDE, o = s * STRIDE;
-    if (L[lo + L_M] > 0) {
+    const L = this.lag, lo = s * Lag.STRIDE, o = s * STRIDE;
+    if (L[lo + Lag.M] > 0) {
       this.closeRay(o, lo);
-      L[lo + L_Q] = 0;
-      L[lo + L_M] = 0;
+      L[lo + Lag.Q] = 0;
+      L[lo + Lag.M] = 0;
     }
     this.closeRun(o, lo);
   }
@@ -384,7 +408,7 @@ export class CellAccumulator {
 
 /** Add the integer x (|x| < 2^52) to m[at] (multiples of SQ_SPLIT) and m[at + 1] (remainder in [0, SQ_SPLIT)). */
 function splitAdd(m: Float64Array, at: number, x: number): void {
-  const h = Math.floor(x * INV_SPLIT); // exact: x * 2^-26 is exact, and so is its floor
+  const h = Math.floor(x * K.INV_SPLIT); // exact: x * 2^-26 is exact, and so is its floor
   m[at] += h;
-  m[at + 1] += x - h * SQ_SPLIT;
+  m[at + 1] += x - h * K.SQ_SPLIT;
 }
