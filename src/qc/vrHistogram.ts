@@ -333,54 +333,62 @@ const MEANAD_TO_SIGMA = 1.2533141373155003;
  * k = Infinity keeps everything.
  */
 export function robustStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
-  const t = h.tkeys[s];
-  if (t === null || h.tused[s] === 0) return denseStats(h, s, k, out);
+  // A slot whose bins are all in its dense array (the common case) is walked in place: no sorted copy (two arrays
+  // per slot and window); the same steps in the same order as over the sorted bins.
+  if (h.tkeys[s] === null || h.tused[s] === 0) return binStats(h.dense[s], h.base[s], null, h.width(s), k, out);
   return sortedStats(h, s, k, out);
 }
 
+/** robustStats through the slot's bins in ascending order (sorted()): any slot; robustStats uses it when some bins are in the table. */
+export function sortedStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
+  const { bins, counts } = h.sorted(s);
+  return binStats(counts, 0, bins, h.width(s), k, out);
+}
+
 /**
- * robustStats of a slot whose bins are all in its dense array (the common case), walked in place: the same steps
- * and arithmetic in the same order as sortedStats over the non-empty bins, without building the sorted copy (two
- * arrays per slot and window). Tested equal to sortedStats, bit for bit.
+ * The statistics of robustStats over ascending bins: entry j has count counts[j] (empty entries skipped) and bin
+ * index bins[j], or base + j without `bins` (a dense array); w the bin width, m/s.
  */
-function denseStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
+function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats): HistogramStats {
   out.n = out.kept = out.rejected = 0;
   out.median = out.sigma = NaN;
   out.rejectedSum = out.rejectedSumSq = 0;
-  const w = (out.width = h.width(s));
-  const d = h.dense[s], b0 = h.base[s], len = d.length;
+  out.width = w;
+  const len = counts.length;
+  const centre = (j: number) => ((bins ? bins[j] : base + j) + 0.5) * w;
   let n = 0;
-  for (let j = 0; j < len; j++) n += d[j];
+  for (let j = 0; j < len; j++) n += counts[j];
   out.n = n;
   if (n === 0) return out;
+  // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
   const r1 = Math.floor((n - 1) / 2), r2 = Math.floor(n / 2);
   let cum = 0, j1 = -1, j2 = -1;
   for (let j = 0; j < len && j2 < 0; j++) {
-    const c = d[j];
+    const c = counts[j];
     if (c === 0) continue;
     if (j1 < 0 && cum + c > r1) j1 = j;
     if (cum + c > r2) j2 = j;
     cum += c;
   }
-  const med = ((b0 + j1 + 0.5) * w + (b0 + j2 + 0.5) * w) / 2;
+  const med = (centre(j1) + centre(j2)) / 2;
   out.median = med;
+  // MAD: the same two ranks among |centre - med|, walking outward from the median over non-empty entries (distances
+  // ascend). Entries up to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or the next non-empty one).
   let l = j1, r = j1 + 1;
-  while (r < len && d[r] === 0) r++;
+  while (r < len && counts[r] === 0) r++;
   let rank = 0, m1 = NaN, m2 = NaN;
   while (Number.isNaN(m2)) {
-    const dl = l >= 0 ? med - (b0 + l + 0.5) * w : Infinity;
-    const dr = r < len ? (b0 + r + 0.5) * w - med : Infinity;
+    const dl = l >= 0 ? med - centre(l) : Infinity;
+    const dr = r < len ? centre(r) - med : Infinity;
     let j: number, dist: number;
     if (dl <= dr) {
       j = l; dist = dl;
-      l--;
-      while (l >= 0 && d[l] === 0) l--;
+      do l--; while (l >= 0 && counts[l] === 0);
     } else {
       j = r; dist = dr;
-      r++;
-      while (r < len && d[r] === 0) r++;
+      do r++; while (r < len && counts[r] === 0);
     }
-    const c = d[j];
+    const c = counts[j];
     if (Number.isNaN(m1) && rank + c > r1) m1 = dist;
     if (rank + c > r2) m2 = dist;
     rank += c;
@@ -390,7 +398,7 @@ function denseStats(h: VrHistograms, s: number, k: number, out: HistogramStats):
   if (madv > 0) sigma = MAD_TO_SIGMA * madv;
   else {
     let sum = 0;
-    for (let j = 0; j < len; j++) if (d[j] !== 0) sum += d[j] * Math.abs((b0 + j + 0.5) * w - med);
+    for (let j = 0; j < len; j++) if (counts[j] !== 0) sum += counts[j] * Math.abs(centre(j) - med);
     sigma = (MEANAD_TO_SIGMA * sum) / n;
   }
   out.sigma = sigma;
@@ -398,76 +406,10 @@ function denseStats(h: VrHistograms, s: number, k: number, out: HistogramStats):
   let rej = 0, rs = 0, rss = 0;
   if (sigma > 0 && Number.isFinite(limit)) {
     for (let j = 0; j < len; j++) {
-      const c = d[j];
+      const c = counts[j];
       if (c === 0) continue;
-      const x = (b0 + j + 0.5) * w;
-      if (Math.abs(x - med) > limit) { rej += c; rs += c * x; rss += c * x * x; }
-    }
-  }
-  out.rejected = rej;
-  out.kept = n - rej;
-  out.rejectedSum = rs;
-  out.rejectedSumSq = rss;
-  return out;
-}
-
-/** robustStats through the slot's bins in ascending order (sorted()): every slot; robustStats uses it when some bins are in the table. */
-export function sortedStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
-  out.n = out.kept = out.rejected = 0;
-  out.median = out.sigma = NaN;
-  out.rejectedSum = out.rejectedSumSq = 0;
-  out.width = h.width(s);
-  const { bins, counts } = h.sorted(s);
-  const used = bins.length;
-  let n = 0;
-  for (let j = 0; j < used; j++) n += counts[j];
-  out.n = n;
-  if (n === 0) return out;
-  const w = out.width;
-  const centre = (j: number) => (bins[j] + 0.5) * w;
-  // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
-  const r1 = Math.floor((n - 1) / 2), r2 = Math.floor(n / 2);
-  let cum = 0, j1 = -1, j2 = -1;
-  for (let j = 0; j < used && j2 < 0; j++) {
-    const c = counts[j];
-    if (j1 < 0 && cum + c > r1) j1 = j;
-    if (cum + c > r2) j2 = j;
-    cum += c;
-  }
-  const med = (centre(j1) + centre(j2)) / 2;
-  out.median = med;
-  // MAD: the same two ranks among |centre - med|, walking outward from the median (distances ascend). Entries up
-  // to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or j1 + 1).
-  let l = j1, r = j1 + 1;
-  let rank = 0, m1 = NaN, m2 = NaN;
-  while (Number.isNaN(m2)) {
-    const dl = l >= 0 ? med - centre(l) : Infinity;
-    const dr = r < used ? centre(r) - med : Infinity;
-    let j: number, dist: number;
-    if (dl <= dr) { j = l--; dist = dl; } else { j = r++; dist = dr; }
-    const c = counts[j];
-    if (Number.isNaN(m1) && rank + c > r1) m1 = dist;
-    if (rank + c > r2) m2 = dist;
-    rank += c;
-  }
-  const madv = (m1 + m2) / 2;
-  let sigma: number;
-  if (madv > 0) sigma = MAD_TO_SIGMA * madv;
-  else {
-    let sum = 0;
-    for (let j = 0; j < used; j++) sum += counts[j] * Math.abs(centre(j) - med);
-    sigma = (MEANAD_TO_SIGMA * sum) / n;
-  }
-  out.sigma = sigma;
-  const limit = k * sigma;
-  let rej = 0, rs = 0, rss = 0;
-  if (sigma > 0 && Number.isFinite(limit)) {
-    for (let j = 0; j < used; j++) {
       const x = centre(j);
-      if (Math.abs(x - med) > limit) {
-        const c = counts[j];
-        rej += c; rs += c * x; rss += c * x * x;
-      }
+      if (Math.abs(x - med) > limit) { rej += c; rs += c * x; rss += c * x * x; }
     }
   }
   out.rejected = rej;
