@@ -506,6 +506,12 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
       pos = 0;
     }
     if (st.batch.length > 0 || st.rejected.length > 0) yield { batch: st.batch, rejected: st.rejected };
+    // The consumer pulled after the last chunk: every batch of this stream is free. With a pool (a run reading many
+    // files one after the other), the next file fills them instead of allocating its own.
+    if (reuse && opts.batchPool) {
+      opts.batchPool.push(st.batch);
+      if (spare) opts.batchPool.push(spare);
+    }
   } finally {
     await blocks.close();
   }

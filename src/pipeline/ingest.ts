@@ -48,7 +48,7 @@ import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame 
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
-import { KEEP_PRIMED, openSamples, type PrimedFiles } from '../io/sampleSource.ts';
+import { KEEP_PRIMED, openSamples, sampleFormat, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
@@ -158,7 +158,10 @@ export const FIRST_SAMPLE_SPAN_S = 86400;
  */
 export function firstSampleTime(b: { length: number; time: Float64Array }): number {
   if (b.length === 0) return NaN;
-  const t = Float64Array.from(b.time.subarray(0, b.length)).sort();
+  // Times in order (the usual file): the sorted copy would be the batch itself.
+  let ordered = true;
+  for (let i = 1; i < b.length && ordered; i++) if (!(b.time[i - 1] <= b.time[i])) ordered = false;
+  const t = ordered ? b.time.subarray(0, b.length) : Float64Array.from(b.time.subarray(0, b.length)).sort();
   const med = t[t.length >> 1];
   for (let i = 0; i < t.length; i++) if (t[i] >= med - FIRST_SAMPLE_SPAN_S) return t[i];
   return med;
@@ -246,8 +249,13 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
   const readerThread = opts.readerThread ?? readerThreadWanted();
+  // Batches of CSV files that ended, for the files read after them (many small files: one allocation, not one each).
+  const csvPool: SampleBatch[] = [];
   const stream = (f: (typeof files)[number]) =>
-    openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread })[Symbol.asyncIterator]();
+    openSamples(f.path, {
+      instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread,
+      ...(sampleFormat(f.path) === 'netcdf' ? {} : { batchPool: csvPool }),
+    })[Symbol.asyncIterator]();
   const cursors = files.map((f) => {
     const p = opts.primed?.take(f.path, f.owner);
     return {
