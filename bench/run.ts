@@ -1,7 +1,7 @@
 /**
  * Throughput benchmark (`npm run bench`, or `node bin/run-ts.js bench/run.ts [--rows N] [--skip-pipeline]`).
  *
- * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-cores, --runs-cores N,
+ * Options: --rows N, --runs N (whole-job runs, default 5), --skip-pipeline, --skip-focus, --skip-many, --skip-cores, --runs-cores N,
  * --skip-figures, --runs-figures N,
  * --before DIR (an earlier wakeplane checkout whose demo figures are timed alongside).
  * 1. Generates the benchmark campaign if missing (bench/generate.ts; $WAKEPLANE_BENCH_DIR, default
@@ -16,6 +16,8 @@
  * 5. Files without ray structure (bench/generateFocus.ts): every row its own angles and almost every sample in the
  *    plane, as the whole job with one whole-record window and with 10-minute windows, --runs times each; each
  *    whole-record run is followed by the same without the uncertainty budget (its cost where every sample is a ray).
+ * 5c. Many files (bench/manyFiles.ts; skip with --skip-many): the benchmark's samples cut into 20 files per file,
+ *    --runs times: wall, samples/s, peak memory (must not grow with the number of files).
  * 5b. Every core (bench/cores.ts; skip with --skip-cores): the whole job with --cores 1 and with every core,
  *    alternately, --runs-cores times (default 3); medians, speed-up, load average, byte-identical field tables.
  * 6. Figures (skip with --skip-figures): the demo campaign run with and without images, --runs-figures times
@@ -34,6 +36,7 @@ import { generateBench, isoCopy, rowsFromArgs, type BenchData } from './generate
 import { benchVariants } from './netcdf.ts';
 import { generateFocus } from './generateFocus.ts';
 import { coresBench } from './cores.ts';
+import { manyFilesCampaign } from './manyFiles.ts';
 // @ts-expect-error plain JavaScript helper of the entry point, without type declarations
 import { sourceStamp } from '../bin/stamp.js';
 
@@ -314,6 +317,22 @@ async function main() {
     }
   }
 
+  // 5c. The same samples in many files per instrument: memory and open files must not grow with the file count.
+  const many: { files: number; secs: number[]; rss: number[]; read: number } = { files: 0, secs: [], rss: [], read: 0 };
+  if (!skipPipeline && !process.argv.includes('--skip-many')) {
+    const m = manyFilesCampaign(d, (s) => console.log(s));
+    many.files = m.files;
+    console.log(`5c. the same samples in ${m.files} files: whole job, ${runs} runs`);
+    for (let k = 0; k < runs; k++) {
+      const r = await wholeJob(m.campaign);
+      if (typeof r === 'string') { console.log(`  FAILED ${r}`); break; }
+      many.secs.push(r.seconds);
+      many.rss.push(Math.max(r.peakRss_MB, r.timeRss_MB ?? 0));
+      many.read = r.read;
+      console.log(`  run ${k + 1}: ${fmt(r.seconds, 3)} s, peak ${fmt(many.rss[k], 0)} MB`);
+    }
+  }
+
   const lines: string[] = [];
   const out = (s: string) => lines.push(s);
   out('');
@@ -391,6 +410,11 @@ async function main() {
       const wall = focusNetcdf.on.map((s, k) => 100 * (s / focusNetcdf.off[k] - 1));
       out(`  NetCDF outputs, whole-record window, with / without, pair by pair: ${spread(wall, 1)} % wall   ${verdict(median(wall) < 100 * TARGET.outputCost)} (< ${100 * TARGET.outputCost} %)`);
     }
+  }
+  if (many.secs.length) {
+    const rate = many.read / median(many.secs);
+    out(`the same samples in ${many.files} files (${d.files.length} cut in ${many.files / d.files.length} each)`);
+    out(`  whole job                ${spread(many.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...many.rss), 0)} MB   ${verdict(Math.max(...many.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
   }
   if (!process.argv.includes('--skip-cores')) await coresBench(d, runsFromArgs(process.argv, '--runs-cores', 3), out);
   if (!skipFigures) {
