@@ -1,0 +1,70 @@
+/**
+ * Sample files written the way an analyst writes them with xarray (Debian's python3-xarray over python3-netcdf4,
+ * test/reference/xarray_samples.py): times from a pandas DatetimeIndex, which xarray's default encoding stores as
+ * int64 "microseconds since ..." or "nanoseconds since ..." (regression: those units were refused as unknown, so no
+ * such file could be read), per-ray ranges, a packed int16 radial velocity whose NaN holes became the _FillValue.
+ * The expected values are the ones pandas and numpy print for the file, not ours.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import type { RejectedRow } from '../src/io/batch.ts';
+import { unitsToSi } from '../src/io/cfUnits.ts';
+import { openSamples } from '../src/io/sampleSource.ts';
+import { debianPython } from './helpers/python.ts';
+
+const py = debianPython(['netCDF4', 'numpy', 'pandas', 'xarray']);
+const tmp = mkdtempSync(join(tmpdir(), 'wakeplane-xr-'));
+
+describe('CF time units finer than milliseconds', () => {
+  it('microseconds and nanoseconds since a reference date with a fractional second', () => {
+    // CF/UDUNITS: 1 us = 1e-6 s, 1 ns = 1e-9 s; reference 2026-05-09 10:07:43.6738 UTC = 1778321263.6738 Unix s
+    // (Date.UTC(2026, 4, 9, 10, 7, 43) / 1000 = 1778321263, by hand from the calendar).
+    for (const [u, step] of [['microseconds', 1e-6], ['us', 1e-6], ['nanoseconds', 1e-9], ['ns', 1e-9]] as const) {
+      const a = unitsToSi(`${u} since 2026-05-09 10:07:43.673800`, 'time');
+      if (typeof a === 'string') throw new Error(a);
+      expect(a.scale).toBe(step);
+      expect(Math.abs(a.offset - 1778321263.6738)).toBeLessThan(1e-6); // float64 at 1.8e9 s resolves 2.4e-7 s
+    }
+  });
+});
+
+describe.skipIf(!py.python)(`a file written by xarray from pandas times${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  for (const unit of ['us', 'ns'] as const) {
+    it(`int64 "${unit === 'us' ? 'micro' : 'nano'}seconds since": times, ranges, velocities and holes as pandas decodes them`, async () => {
+      const file = join(tmp, `xr-${unit}.nc`);
+      const r = spawnSync(py.python!, ['test/reference/xarray_samples.py', file, unit], { encoding: 'utf8' });
+      expect(r.status, r.stderr).toBe(0);
+      const ref = JSON.parse(r.stdout) as { units: string; unix: number[]; holes: [number, number][]; vel: (number | null)[][] };
+      // xarray chose the unit itself: this is what the file holds, not what we asked for.
+      expect(ref.units).toBe(`${unit === 'us' ? 'micro' : 'nano'}seconds since 2026-05-09 10:07:43.673800`);
+      const rows: { t: number; r: number; vr: number; ray: number }[] = [];
+      const rejected: RejectedRow[] = [];
+      const o = { instrumentIndex: new Map([['L1', 0]]), owner: 0, columns: {}, sign: 'away' as const };
+      for await (const { batch: b, rejected: rj } of openSamples(file, o)) {
+        rejected.push(...rj);
+        for (let i = 0; i < b.length; i++) rows.push({ t: b.time[i], r: b.range[i], vr: b.radialVelocity[i], ray: b.line[i] });
+      }
+      // 6 rays x 3 gates = 18 samples; the two NaN holes are rejected as missing_value with their ray and gate.
+      expect(rows.length).toBe(16);
+      expect(rejected.map((x) => [x.ray, x.gate, x.reason])).toEqual(ref.holes.map(([i, j]) => [i, j, 'missing_value']));
+      let k = 0;
+      for (let ray = 0; ray < 6; ray++) {
+        for (let g = 0; g < 3; g++) {
+          if (ref.vel[ray][g] === null) continue;
+          const x = rows[k++];
+          expect(x.ray).toBe(ray);
+          // pandas' Unix seconds of each time; float64 at 1.8e9 s resolves 2.4e-7 s, and the int64 offset times
+          // 1e-6 or 1e-9 adds one rounding: 1e-6 s is a few units of the last place.
+          expect(Math.abs(x.t - ref.unix[ray])).toBeLessThan(1e-6);
+          expect(x.r).toBe(500 + 15 * g + ray); // whole metres stored as float64: exact
+          // int16 packing with scale_factor 0.01 of multiples of 0.25: stored = 100 v exactly; 0.01 * stored
+          // differs from v by at most one rounding of a double (1e-15 relative), 1e-12 m/s is generous.
+          expect(Math.abs(x.vr - ref.vel[ray][g]!)).toBeLessThan(1e-12);
+        }
+      }
+    });
+  }
+});
