@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { ConfigError, InputError } from '../src/errors.ts';
-import type { Series } from '../src/io/series.ts';
+import { readSeries, type Series } from '../src/io/series.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { windowsFromFile, windowsFromItems } from '../src/windows/list.ts';
 import { fixedPlan, tablePlan, type WindowDef, type WindowPlan } from '../src/windows/plan.ts';
@@ -150,6 +150,37 @@ describe('segment windows from a turbine series (worked by hand)', () => {
     const none = segmentWindows(series, () => NaN, base);
     expect(none.windows).toHaveLength(0);
     expect(none.summary.excluded_s.gap).toBe(T[T.length - 1] - T[0]);
+  });
+});
+
+describe('segment windows: rows without values (a logger dropout) are skipped, not a cut', () => {
+  // Rows every 10 s from t = 0 to 400 s, yaw offset 0 throughout (nacelle 270, wind 270), maxGap 60 s. Rows 5-6
+  // (t = 50, 60) have no yaw: the rows around them (t = 40 and 70) are 30 s apart, within maxGap, so the span goes
+  // on. Rows 20-28 (t = 200 .. 280) have none: rows 19 and 29 (t = 190, 290) are 100 s apart, a gap. Rows 39-40
+  // (t = 390, 400) have none: the 10 s after row 38 (t = 380) to the series end are a gap too.
+  const T = Float64Array.from({ length: 41 }, (_, i) => 10 * i);
+  const yaw = Float64Array.from(T, (_, i) => ((i >= 5 && i <= 6) || (i >= 20 && i <= 28) || i >= 39 ? NaN : 270));
+  const series: Series = { file: 'turbine.csv', time: T, values: { yaw_deg: yaw } };
+  it('spans [0, 190] and [290, 380]; gap 100 + 20 s; every second accounted for', () => {
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: 60, settle_s: 0 });
+    expect(windows.map((w) => [w.start_s, w.end_s])).toEqual([[0, 190], [290, 380]]);
+    expect(summary.excluded_s.gap).toBe(100 + 20);
+    const excluded = Object.values(summary.excluded_s).reduce((a, b) => a + b, 0);
+    expect(summary.windows_s + excluded).toBe(400);
+  });
+});
+
+describe('series files with missing values', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'wp-series-'));
+  it('an empty cell or NaN in a column the caller allows holes in is NaN; elsewhere an error naming file, line and column', () => {
+    const p = join(dir, 'turbine.csv');
+    // pandas writes a missing float as an empty cell (to_csv default), numpy.savetxt as "nan"
+    writeFileSync(p, 'time,yaw_deg,power_kw\n2026-05-09 10:00:00,270.5,1500\n2026-05-09 10:00:10,,1510\n2026-05-09 10:00:20,nan,NaN\n');
+    const s = readSeries(p, {}, ['yaw_deg'], ['power_kw'], { holes: ['yaw_deg'] });
+    expect(Array.from(s.values.yaw_deg)).toEqual([270.5, NaN, NaN]);
+    expect(Array.from(s.values.power_kw)).toEqual([1500, 1510, NaN]);
+    expect(() => readSeries(p, {}, ['yaw_deg'], ['power_kw'])).toThrow(/turbine\.csv:3: column "yaw_deg": empty/);
+    expect(() => readSeries(p, {}, ['power_kw'])).toThrow(/turbine\.csv:4: column "power_kw": missing value "NaN"/);
   });
 });
 

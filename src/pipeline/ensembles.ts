@@ -42,7 +42,8 @@ export function loadConditionSeries(c: Campaign): ConditionSeries {
     if (need[k].size === 0) continue;
     const r = ref[k];
     if (!r) throw new ConfigError(c.sourceFile, 'conditions.bins', `a bin needs the ${k} series, which the campaign does not have`);
-    out[k] = readSeries(r.file, r.columns, [...need[k]]);
+    // A bin's column may have holes: the window mean skips them (seriesMean).
+    out[k] = readSeries(r.file, r.columns, [...need[k]], [], { holes: [...need[k]] });
   }
   return out;
 }

@@ -124,14 +124,14 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     };
     if (c.windDirection.kind === 'series') {
       const wd = c.windDirection;
-      directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg']));
+      directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg'], [], { holes: ['direction_deg'] }));
       if (directionSeries && directionSeries.time.length === 0) errors.push(new InputError(wd.file, undefined, 'the wind-direction series has no rows'));
     }
     for (const t of c.turbines) {
       const ts = t.series;
       // The state turbine's series must give the yaw; the others may bring only their power.
       const required = t === stateTurbine(c) ? ['yaw_deg'] : [];
-      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status']));
+      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status'], { holes: ['yaw_deg'] }));
     }
     if (c.site.terrain) {
       try {

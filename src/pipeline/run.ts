@@ -198,7 +198,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
   const stateSeries = stateTurbine(c).series;
   const turbineSeries = c.windows.kind === 'segments' && stateSeries
-    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'], { holes: ['yaw_deg'] })
     : undefined;
   const planInputs = { turbineSeries, directionSeries: dirSeries };
   const early: BuiltWindowPlan | undefined =

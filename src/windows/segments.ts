@@ -5,8 +5,11 @@
  * (nearest level), where gamma = nacelle - wind direction wrapped to [-180, 180) degrees (the house convention:
  * positive when the nacelle is turned clockwise seen from above); the wind direction is the series' own
  * wind_direction_deg where given, else the campaign's wind-direction source at that time. A row is excluded as
- * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails, "gap"
- * when it lacks the values. Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
+ * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails. A row
+ * that lacks the values (a logger's dropout: an empty yaw cell, or no wind direction within maxGap_s) says nothing
+ * about the state and is skipped, as if it were not in the file: the rows around it decide, and the time between
+ * them is a gap when they are more than maxGap_s apart (so a dropout of a few rows inside a steady step does not cut
+ * it, while a long one does). Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
  * them to the last (the time between rows of different states is a transition: when exactly the state changed
  * between them is unknown, so it is excluded rather than guessed); the first settle_s of a span are excluded
  * ("settle": the wake needs time to reach the planes after a yaw step), spans shorter than minDuration_s are
@@ -117,19 +120,24 @@ export function segmentWindows(
     }
   };
 
-  // The state is known at the rows only. Between two consecutive rows of one level (no gap) it is taken as steady;
-  // any other interval between rows is excluded, by the reason of the row that is not at a level (transition when
-  // both are at different levels), or as a gap when the rows are more than maxGap_s apart.
-  let spanLevel = -1, spanStart = NaN, spanEnd = NaN;
+  // The state is known at the rows only (rows without values skipped). Between two consecutive rows of one level (no
+  // gap) it is taken as steady; any other interval between rows is excluded, by the reason of the row that is not at
+  // a level (transition when both are at different levels), or as a gap when the rows are more than maxGap_s apart.
+  // Time before the first and after the last row with values is a gap.
+  let spanLevel = -1, spanStart = NaN, spanEnd = NaN, last = -1;
   for (let i = 0; i < N; i++) {
     const st = state[i];
-    if (i > 0) {
-      const dt = T[i] - T[i - 1];
-      const prev = state[i - 1];
+    if (st === GAP) continue;
+    if (last < 0) {
+      excluded.gap += T[i] - T[0];
+    } else {
+      const dt = T[i] - T[last];
+      const prev = state[last];
       if (dt > s.maxGap_s) {
         excluded.gap += dt;
       } else if (st >= 0 && st === prev) {
         spanEnd = T[i];
+        last = i;
         continue;
       } else {
         excluded[prev < 0 ? reasonOf(prev) : st < 0 ? reasonOf(st) : 'transition'] += dt;
@@ -138,7 +146,9 @@ export function segmentWindows(
     if (spanLevel >= 0) closeSpan(spanLevel, spanStart, spanEnd);
     spanLevel = st;
     spanStart = spanEnd = T[i];
+    last = i;
   }
+  excluded.gap += last < 0 ? T[N - 1] - T[0] : T[N - 1] - T[last];
   if (spanLevel >= 0) closeSpan(spanLevel, spanStart, spanEnd);
   summary.total_s = T[N - 1] - T[0];
   summary.windows = windows.length;
