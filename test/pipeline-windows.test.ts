@@ -131,7 +131,7 @@ describe('listed windows and condition bins', () => {
     const c = loadCampaignFile(file);
     c.conditions = { bins: [{ variable: 'turbine.pitch_deg', edges: [0, 5] }], minWindows: 1 };
     const out = join(dir, 'out-col');
-    await expect(runCampaign(c, { outRoot: out, images: false })).rejects.toThrow(/turbine\.csv:1: missing required column "pitch_deg"/);
+    await expect(runCampaign(c, { outRoot: out, images: false })).rejects.toThrow(/turbine\.csv:1: conditions\.bins\[0\]\.variable "turbine\.pitch_deg": no column "pitch_deg"/);
     expect(existsSync(out)).toBe(false);
   });
 });

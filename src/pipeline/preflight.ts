@@ -22,6 +22,7 @@ import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
+import { loadConditionSeries } from './ensembles.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
 export interface PreflightOptions {
@@ -143,6 +144,14 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     if (c.inflow.kind === 'series') {
       const inf = c.inflow;
       series(() => readSeries(inf.file, inf.columns, ['height_m', 'speed_ms'], ['direction_deg']));
+    }
+    // The columns condition bins name (run reads them before any output; check must fail on them as run does).
+    if (c.conditions?.bins.length) {
+      try {
+        loadConditionSeries(c);
+      } catch (e) {
+        errors.push(e as Error);
+      }
     }
     if (opts.scan && errors.length === 0) {
       const found = await scanData(campaign, files);

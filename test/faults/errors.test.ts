@@ -146,6 +146,10 @@ describe('check validates what run reads and fails exactly when run would', () =
       const p = join(dir, 'data', 'turbine.csv');
       writeFileSync(p, readFileSync(p, 'utf8').replace(/^time,yaw_deg/, 'time,nacelle'));
     }, /turbine\.csv:1: missing required column "yaw_deg"/],
+    // Regression: check passed this campaign while run stopped on it (the bin's column was read only by run).
+    ['a condition bin on a column the turbine series lacks', (_dir, file) => {
+      writeFileSync(file, readFileSync(file, 'utf8') + 'conditions:\n  bins:\n    - { variable: turbine.pitch_deg, edges: [0, 5] }\n');
+    }, /turbine\.csv:1: conditions\.bins\[0\]\.variable "turbine\.pitch_deg": no column "pitch_deg"/],
   ];
   for (const [what, damage, message] of cases) {
     it(`${what}: both exit 1 with the same message; run writes nothing`, async () => {
