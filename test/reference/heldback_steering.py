@@ -88,25 +88,41 @@ while t < END + 120:
         U = SPEEDS[step_of(t)]
         rows.append((t, 270 + g + rng.normal(0, 0.5), 2000 * (U / 10) ** 3 * math.cos(math.radians(g)) ** 2, U))
     t += 7.0
+# Logger dropouts in step 2 (index 1), 40 % into it: an empty yaw cell, then "NaN" (what pandas and numpy write
+# for a missing float); the power of the next row is "nan". The yaw values are rounded to 0.01 as written.
+drop = int(np.searchsorted([r[0] for r in rows], starts[1] + 0.4 * (starts[2] - starts[1])))
+rows = [(t, round(y, 2), p, U) for t, y, p, U in rows]
+text = []
+for i, (t, y, p, U) in enumerate(rows):
+    ys = "" if i == drop else "NaN" if i == drop + 1 else f"{y:.2f}"
+    ps = "nan" if i == drop + 2 else f"{p:.1f}"
+    text.append(f"{iso(t)},{ys},{ps}")
+rows = [(t, None if drop <= i <= drop + 1 else y, p, U) for i, (t, y, p, U) in enumerate(rows)]
 with open(os.path.join(out, "data", "turbine.csv"), "w") as f:
-    f.write("time,yaw_deg,power_kw\n")
-    for t, y, p, _ in rows:
-        f.write(f"{iso(t)},{y:.2f},{p:.1f}\n")
+    f.write("time,yaw_deg,power_kw\n" + "\n".join(text) + "\n")
+direction = []
 with open(os.path.join(out, "data", "wind_direction.csv"), "w") as f:
     f.write("time,direction_deg\n")
     t = math.floor((T0 - 120) / 60) * 60 + 30
     while t < END + 120:
-        f.write(f"{int(t)},{270 + rng.normal(0, 0.3):.2f}\n")
+        direction.append((t, round(270 + rng.normal(0, 0.3), 2)))
+        f.write(f"{int(t)},{direction[-1][1]:.2f}\n")
         t += 60
 
-# Expected segment spans: rows whose offset is within TOL of a level, grouped by level without gaps > MAXGAP.
+# Expected segment spans (the README's rule): rows whose offset is within TOL of a level, grouped by level without
+# gaps > MAXGAP; rows without a yaw are skipped (the rows around them decide). The wind direction of a row is the
+# nearest direction-series row (within MAXGAP), as the README says for segments.
 TOL, MAXGAP, SETTLE = 3.0, 60.0, 150.0
 levels_set = sorted(set(LEVELS))
 spans = []
 cur = None
 prev_t = None
+dir_t = np.array([d[0] for d in direction])
+dir_v = np.array([d[1] for d in direction])
 for t, y, p, U in rows:
-    off = y - 270
+    if y is None:
+        continue
+    off = y - dir_v[np.argmin(abs(dir_t - t))]
     lv = [l for l in levels_set if abs(off - l) <= TOL]
     lv = min(lv, key=lambda l: abs(off - l)) if lv else None
     if cur is not None and lv == cur["level"] and t - prev_t <= MAXGAP:
@@ -126,8 +142,16 @@ for s in spans:
     s["step"] = k
     s["yc_m"] = 2.0 * LEVELS[k]
     s["speed_ms"] = SPEEDS[k]
-    s["power_kw"] = float(np.mean([p for t, y, p, U in rows if s["start_s"] <= t < s["end_s"]]))
-    s["yaw_offset_deg"] = float(np.mean([y - 270 for t, y, p, U in rows if s["start_s"] <= t < s["end_s"]]))
+    s["power_kw"] = float(np.mean([p for i, (t, y, p, U) in enumerate(rows) if s["start_s"] <= t < s["end_s"] and i != drop + 2]))
+    # the window's wind direction: mean of the direction rows inside it (all within 2 degrees of 270, so the
+    # arithmetic mean equals the vector mean to 1e-6 degree)
+    wd = float(np.mean(dir_v[(dir_t >= s["start_s"]) & (dir_t < s["end_s"])]))
+    s["direction_deg"] = wd
+    s["yaw_offset_deg"] = float(np.mean([y for t, y, p, U in rows if y is not None and s["start_s"] <= t < s["end_s"]])) - wd
+    # The wake centre as the window's rotor frame sees it: the frame's x axis points to azimuth wd - 180 (from wd),
+    # its y axis to the left; the true centre (600 m east, yc north) has y' = 600 sin(d) + yc cos(d), d = wd - 270.
+    d = math.radians(wd - 270)
+    s["yc_frame_m"] = PLANE_X * math.sin(d) + s["yc_m"] * math.cos(d)
 
 # Samples.
 INSTR = [
@@ -170,7 +194,9 @@ campaign = {
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(campaign, f, indent=1)
+valid_t = [t for t, y, p, U in rows if y is not None]
+gap_s = float(sum(b - a for a, b in zip(valid_t, valid_t[1:]) if b - a > MAXGAP))
 with open(os.path.join(out, "expected.json"), "w") as f:
     json.dump({"T0": T0, "step_starts": starts, "levels": LEVELS, "speeds": SPEEDS, "gap": gap, "spans": spans,
-               "rows": nrows, "series_rows": len(rows)}, f, indent=1)
+               "rows": nrows, "series_rows": len(rows), "gap_s": gap_s}, f, indent=1)
 print(json.dumps([(s["level"], round(s["start_s"], 1), round(s["end_s"], 1)) for s in spans]), nrows)

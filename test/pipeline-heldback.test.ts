@@ -1,0 +1,71 @@
+/**
+ * A reviewer's held-back wake-steering case, written without our simulator (numpy alone:
+ * test/reference/heldback_steering.py): yaw steps of 17, 23, 31, 19 and 29 minutes from 10:07:43.6 UTC, a turbine
+ * series with its own 7-s clock, 40-s ramps between steps, a 4-minute gap and a logger dropout (empty and NaN cells),
+ * a direction series on another clock, and three scanners whose every row has its own angles. Segment windows must
+ * give exactly one wake row per steady span, with no manual shifting: the bounds, state, yaw offset, power and wake
+ * centre the script expects from the rows it wrote (README rule for segments), not values from our code.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { loadCampaignFile } from '../src/campaign/load.ts';
+import { runCampaign } from '../src/pipeline/run.ts';
+import { defaultStages } from '../src/pipeline/stages.ts';
+import { readCsv } from './helpers/csvTable.ts';
+import { debianPython } from './helpers/python.ts';
+
+interface Span { level: number; start_s: number; end_s: number; step: number; yc_frame_m: number; yaw_offset_deg: number; power_kw: number; direction_deg: number }
+
+const py = debianPython(['numpy']);
+
+describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir: string, spans: Span[], gap_s: number;
+  beforeAll(() => {
+    dir = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-'));
+    const r = spawnSync(py.python!, ['test/reference/heldback_steering.py', dir], { encoding: 'utf8' });
+    if (r.status !== 0) throw new Error(r.stderr);
+    ({ spans, gap_s } = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { spans: Span[]; gap_s: number });
+  });
+
+  it('segment windows: one wake row per steady span, with the span\'s bounds, state, yaw offset, power and wake centre', async () => {
+    // The script's spans: steps 1, 2, 4, 5 whole (less settle), step 3 in two pieces around the series gap; the
+    // dropout inside step 2 (two rows without yaw, 21 s between the rows around it) does not cut it.
+    expect(spans.map((s) => [s.level, s.step])).toEqual([[0, 0], [20, 1], [-15, 2], [-15, 2], [10, 3], [0, 4]]);
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    c.output.netcdf = false;
+    const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: defaultStages() });
+    const rows = readCsv(join(runDir, 'wake', 'wake_table.csv'));
+    expect(rows).toHaveLength(spans.length);
+    expect(manifest.windows).toHaveLength(spans.length);
+    spans.forEach((s, k) => {
+      const r = rows[k], w = manifest.windows[k];
+      // Bounds: series rows at x.9 s, written to the millisecond; the CSV's start_s/end_s to 0.1 s or better.
+      expect(Math.abs(w.start_s - s.start_s)).toBeLessThan(1e-3);
+      expect(Math.abs(w.end_s - s.end_s)).toBeLessThan(1e-3);
+      expect(Math.abs(Number(r.start_s) - s.start_s)).toBeLessThan(0.05);
+      expect(w.kind).toBe('segment');
+      expect(r.window_kind).toBe('segment');
+      expect(r.window_label).toBe(`yaw offset ${s.level > 0 ? '+' : ''}${s.level}\u00b0`);
+      expect(Number(r.state_level_deg)).toBe(s.level);
+      // Window means of the rows the script wrote (0.01-degree values): the written table rounds to 1e-3 deg.
+      expect(Math.abs(Number(r.yaw_offset_deg) - s.yaw_offset_deg)).toBeLessThan(2e-3);
+      expect(Math.abs(Number(r.wind_direction_deg) - s.direction_deg)).toBeLessThan(2e-3);
+      expect(Math.abs(Number(r.power_kw) - s.power_kw)).toBeLessThan(0.1); // written to 0.1 kW
+      // Wake centre: the true 2 m per degree of offset, seen in the window's rotor frame (turned by the window's
+      // mean direction: y' = 600 sin(d) + yc cos(d), in the script). Within 3 of the fit's standard errors plus
+      // 0.5 m for the Gaussian fit to 30-m cell means of a sheared wake (common practice, not derived).
+      expect(Math.abs(Number(r.yc_m) - s.yc_frame_m)).toBeLessThan(3 * Number(r.yc_se_m) + 0.5);
+      expect(r.flag).toBe('ok');
+    });
+    // Every second of the series is in a window or excluded by a reason; the gap is the script's (intervals over
+    // maxGap_s between rows with a yaw: the 4-minute hole, not the 21-s dropout). Sums of 0.1-s times: 1e-6 s.
+    const seg = manifest.segments!;
+    const excluded = Object.values(seg.excluded_s).reduce((a, b) => a + b, 0);
+    expect(Math.abs(seg.windows_s + excluded - seg.total_s)).toBeLessThan(1e-6);
+    expect(Math.abs(seg.excluded_s.gap - gap_s)).toBeLessThan(1e-6);
+    expect(manifest.samples.balanced).toBe(true);
+  });
+});
