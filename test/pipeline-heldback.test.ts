@@ -17,17 +17,18 @@ import { defaultStages } from '../src/pipeline/stages.ts';
 import { readCsv } from './helpers/csvTable.ts';
 import { debianPython } from './helpers/python.ts';
 
-interface Span { level: number; start_s: number; end_s: number; step: number; yc_frame_m: number; yaw_offset_deg: number; power_kw: number; direction_deg: number }
+interface Span { level: number; start_s: number; end_s: number; step: number; yc_frame_m: number; yaw_offset_deg: number; power_kw: number; direction_deg: number; speed_ms: number }
+interface Logged { start_s: number; end_s: number; label: string; yc_m: number; direction_deg: number }
 
 const py = debianPython(['numpy']);
 
 describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
-  let dir: string, spans: Span[], gap_s: number;
+  let dir: string, spans: Span[], gap_s: number, log: Logged[];
   beforeAll(() => {
     dir = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-'));
     const r = spawnSync(py.python!, ['test/reference/heldback_steering.py', dir], { encoding: 'utf8' });
     if (r.status !== 0) throw new Error(r.stderr);
-    ({ spans, gap_s } = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { spans: Span[]; gap_s: number });
+    ({ spans, gap_s, log } = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { spans: Span[]; gap_s: number; log: Logged[] });
   });
 
   it('segment windows: one wake row per steady span, with the span\'s bounds, state, yaw offset, power and wake centre', async () => {
@@ -67,5 +68,49 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
     expect(Math.abs(seg.windows_s + excluded - seg.total_s)).toBeLessThan(1e-6);
     expect(Math.abs(seg.excluded_s.gap - gap_s)).toBeLessThan(1e-6);
     expect(manifest.samples.balanced).toBe(true);
+  });
+
+  it('listed windows from the experiment\'s log (ISO with an offset and Unix times, quoted labels): one labelled row each', async () => {
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    c.output.netcdf = false;
+    c.windows = { kind: 'list', file: join(dir, 'data', 'log.csv'), columns: {}, allowOverlap: false };
+    const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, 'out-list'), images: false, stages: defaultStages() });
+    const rows = readCsv(join(runDir, 'wake', 'wake_table.csv'));
+    expect(rows.map((r) => r.window_label)).toEqual(log.map((l) => l.label));
+    expect(rows.map((r) => r.window_kind)).toEqual(log.map(() => 'list'));
+    log.forEach((l, k) => {
+      // Times written to 0.1 s (Unix) or 1 ms (ISO): exact to 1e-6 s after parsing.
+      expect(Math.abs(manifest.windows[k].start_s - l.start_s)).toBeLessThan(1e-6);
+      expect(Math.abs(manifest.windows[k].end_s - l.end_s)).toBeLessThan(1e-6);
+      const d = ((l.direction_deg - 270) * Math.PI) / 180;
+      // As above: the true centre in the window's frame, 3 standard errors + 0.5 m.
+      expect(Math.abs(Number(rows[k].yc_m) - (600 * Math.sin(d) + l.yc_m * Math.cos(d)))).toBeLessThan(3 * Number(rows[k].yc_se_m) + 0.5);
+    });
+  });
+
+  it('condition bins on yaw offset, hub speed and a turbine-series column: members as the script\'s values say, empty bins listed', async () => {
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    c.output.netcdf = false;
+    const yawEdges = [-25, -5, 5, 15, 25, 35], speedEdges = [7, 8.3, 10], powerEdges = [0, 1000, 2000];
+    c.conditions = { bins: [
+      { variable: 'yaw_offset_deg', edges: yawEdges }, { variable: 'hub_speed_ms', edges: speedEdges }, { variable: 'turbine.power_kw', edges: powerEdges },
+    ], minWindows: 1 };
+    const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out-bins'), images: false, stages: defaultStages() });
+    // Expected bin of each span from the script's step level, true hub speed (7.2 .. 9.4 m/s, at least 0.3 m/s from
+    // an edge: the inflow fit is within 0.05 m/s of it here) and window-mean power; bins in row-major order.
+    const idx = (edges: number[], v: number) => edges.findIndex((e, i) => v >= e && v < edges[i + 1]);
+    const expected = new Map<number, number[]>();
+    spans.forEach((s, k) => {
+      const b = (idx(yawEdges, s.level) * 2 + idx(speedEdges, s.speed_ms)) * 2 + idx(powerEdges, s.power_kw);
+      expected.set(b, [...(expected.get(b) ?? []), k]);
+    });
+    const bins = manifest.ensembles!;
+    expect(bins).toHaveLength(5 * 2 * 2);
+    for (const b of bins) {
+      expect(b.windows, b.label).toEqual(expected.get(b.bin) ?? []);
+      expect(b.empty).toBe(!expected.has(b.bin));
+    }
+    // The yaw offsets 25 .. 35 are never set: those four bins are reported empty, not dropped.
+    expect(bins.filter((b) => b.label.startsWith('yaw_offset_deg in [25, 35)')).every((b) => b.empty)).toBe(true);
   });
 });

@@ -194,9 +194,23 @@ campaign = {
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(campaign, f, indent=1)
+# The experimenter's log: each step from 3 minutes after its start to 1 minute before its end; ISO times with a
+# +02:00 offset on odd lines, Unix seconds on even ones; labels with commas (quoted).
+log = []
+with open(os.path.join(out, "data", "log.csv"), "w") as f:
+    f.write("start,end,label\n")
+    for k in range(len(LEVELS)):
+        a, b = starts[k] + 180, starts[k + 1] - 60
+        label = f"step {k + 1}, yaw {LEVELS[k]:+d}"
+        if k % 2 == 0:
+            f.write(f"{iso(a + 7200)[:-1]}+02:00,{iso(b + 7200)[:-1]}+02:00,\"{label}\"\n")
+        else:
+            f.write(f"{a:.1f},{b:.1f},\"{label}\"\n")
+        log.append({"start_s": a, "end_s": b, "label": label, "yc_m": 2.0 * LEVELS[k],
+                    "direction_deg": float(np.mean(dir_v[(dir_t >= a) & (dir_t < b)]))})
 valid_t = [t for t, y, p, U in rows if y is not None]
 gap_s = float(sum(b - a for a, b in zip(valid_t, valid_t[1:]) if b - a > MAXGAP))
 with open(os.path.join(out, "expected.json"), "w") as f:
     json.dump({"T0": T0, "step_starts": starts, "levels": LEVELS, "speeds": SPEEDS, "gap": gap, "spans": spans,
-               "rows": nrows, "series_rows": len(rows), "gap_s": gap_s}, f, indent=1)
+               "rows": nrows, "series_rows": len(rows), "gap_s": gap_s, "log": log}, f, indent=1)
 print(json.dumps([(s["level"], round(s["start_s"], 1), round(s["end_s"], 1)) for s in spans]), nrows)
