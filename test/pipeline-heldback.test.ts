@@ -22,6 +22,43 @@ interface Logged { start_s: number; end_s: number; label: string; yc_m: number; 
 
 const py = debianPython(['numpy']);
 
+/** Runs a generated campaign with its segment windows and checks every wake row against the script's spans. */
+async function checkSegments(dir: string, out: string, spans: Span[], gap_s: number): Promise<void> {
+  const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+  c.output.netcdf = false;
+  const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, out), images: false, stages: defaultStages() });
+  const rows = readCsv(join(runDir, 'wake', 'wake_table.csv'));
+  expect(rows).toHaveLength(spans.length);
+  expect(manifest.windows).toHaveLength(spans.length);
+  spans.forEach((s, k) => {
+    const r = rows[k], w = manifest.windows[k];
+    // Bounds: series rows at x.9 s, written to the millisecond; the CSV's start_s/end_s to 0.1 s or better.
+    expect(Math.abs(w.start_s - s.start_s)).toBeLessThan(1e-3);
+    expect(Math.abs(w.end_s - s.end_s)).toBeLessThan(1e-3);
+    expect(Math.abs(Number(r.start_s) - s.start_s)).toBeLessThan(0.05);
+    expect(w.kind).toBe('segment');
+    expect(r.window_kind).toBe('segment');
+    expect(r.window_label).toBe(`yaw offset ${s.level > 0 ? '+' : ''}${s.level}\u00b0`);
+    expect(Number(r.state_level_deg)).toBe(s.level);
+    // Window means of the rows the script wrote (0.01-degree values): the written table rounds to 1e-3 deg.
+    expect(Math.abs(Number(r.yaw_offset_deg) - s.yaw_offset_deg)).toBeLessThan(2e-3);
+    expect(Math.abs(Number(r.wind_direction_deg) - s.direction_deg)).toBeLessThan(2e-3);
+    expect(Math.abs(Number(r.power_kw) - s.power_kw)).toBeLessThan(0.1); // written to 0.1 kW
+    // Wake centre: the true 2 m per degree of offset, seen in the window's rotor frame (turned by the window's
+    // mean direction: y' = 600 sin(d) + yc cos(d), in the script). Within 3 of the fit's standard errors plus
+    // 0.5 m for the Gaussian fit to 30-m cell means of a sheared wake (common practice, not derived).
+    expect(Math.abs(Number(r.yc_m) - s.yc_frame_m)).toBeLessThan(3 * Number(r.yc_se_m) + 0.5);
+    expect(r.flag).toBe('ok');
+  });
+  // Every second of the series is in a window or excluded by a reason; the gap is the script's (intervals over
+  // maxGap_s between rows with a yaw: the 4-minute hole, not the 21-s dropout). Sums of 0.1-s times: 1e-6 s.
+  const seg = manifest.segments!;
+  const excluded = Object.values(seg.excluded_s).reduce((a, b) => a + b, 0);
+  expect(Math.abs(seg.windows_s + excluded - seg.total_s)).toBeLessThan(1e-6);
+  expect(Math.abs(seg.excluded_s.gap - gap_s)).toBeLessThan(1e-6);
+  expect(manifest.samples.balanced).toBe(true);
+}
+
 describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   let dir: string, spans: Span[], gap_s: number, log: Logged[];
   beforeAll(() => {
@@ -35,39 +72,17 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
     // The script's spans: steps 1, 2, 4, 5 whole (less settle), step 3 in two pieces around the series gap; the
     // dropout inside step 2 (two rows without yaw, 21 s between the rows around it) does not cut it.
     expect(spans.map((s) => [s.level, s.step])).toEqual([[0, 0], [20, 1], [-15, 2], [-15, 2], [10, 3], [0, 4]]);
-    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
-    c.output.netcdf = false;
-    const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: defaultStages() });
-    const rows = readCsv(join(runDir, 'wake', 'wake_table.csv'));
-    expect(rows).toHaveLength(spans.length);
-    expect(manifest.windows).toHaveLength(spans.length);
-    spans.forEach((s, k) => {
-      const r = rows[k], w = manifest.windows[k];
-      // Bounds: series rows at x.9 s, written to the millisecond; the CSV's start_s/end_s to 0.1 s or better.
-      expect(Math.abs(w.start_s - s.start_s)).toBeLessThan(1e-3);
-      expect(Math.abs(w.end_s - s.end_s)).toBeLessThan(1e-3);
-      expect(Math.abs(Number(r.start_s) - s.start_s)).toBeLessThan(0.05);
-      expect(w.kind).toBe('segment');
-      expect(r.window_kind).toBe('segment');
-      expect(r.window_label).toBe(`yaw offset ${s.level > 0 ? '+' : ''}${s.level}\u00b0`);
-      expect(Number(r.state_level_deg)).toBe(s.level);
-      // Window means of the rows the script wrote (0.01-degree values): the written table rounds to 1e-3 deg.
-      expect(Math.abs(Number(r.yaw_offset_deg) - s.yaw_offset_deg)).toBeLessThan(2e-3);
-      expect(Math.abs(Number(r.wind_direction_deg) - s.direction_deg)).toBeLessThan(2e-3);
-      expect(Math.abs(Number(r.power_kw) - s.power_kw)).toBeLessThan(0.1); // written to 0.1 kW
-      // Wake centre: the true 2 m per degree of offset, seen in the window's rotor frame (turned by the window's
-      // mean direction: y' = 600 sin(d) + yc cos(d), in the script). Within 3 of the fit's standard errors plus
-      // 0.5 m for the Gaussian fit to 30-m cell means of a sheared wake (common practice, not derived).
-      expect(Math.abs(Number(r.yc_m) - s.yc_frame_m)).toBeLessThan(3 * Number(r.yc_se_m) + 0.5);
-      expect(r.flag).toBe('ok');
-    });
-    // Every second of the series is in a window or excluded by a reason; the gap is the script's (intervals over
-    // maxGap_s between rows with a yaw: the 4-minute hole, not the 21-s dropout). Sums of 0.1-s times: 1e-6 s.
-    const seg = manifest.segments!;
-    const excluded = Object.values(seg.excluded_s).reduce((a, b) => a + b, 0);
-    expect(Math.abs(seg.windows_s + excluded - seg.total_s)).toBeLessThan(1e-6);
-    expect(Math.abs(seg.excluded_s.gap - gap_s)).toBeLessThan(1e-6);
-    expect(manifest.samples.balanced).toBe(true);
+    await checkSegments(dir, 'out', spans, gap_s);
+  });
+
+  it('the same with the wind from 1.5 degrees: nacelle and direction values wrap through north (shorter steps)', async () => {
+    const d2 = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-north-'));
+    const r = spawnSync(py.python!, ['test/reference/heldback_steering.py', d2, '--direction', '1.5', '--minutes-scale', '0.6'], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    const e = JSON.parse(readFileSync(join(d2, 'expected.json'), 'utf8')) as { spans: Span[]; gap_s: number };
+    // Steps of 10.2 .. 18.6 minutes: step 3's pieces around the 4-minute gap are shorter than 300 s after settling.
+    expect(e.spans.map((s) => [s.level, s.step])).toEqual([[0, 0], [20, 1], [10, 3], [0, 4]]);
+    await checkSegments(d2, 'out', e.spans, e.gap_s);
   });
 
   it('listed windows from the experiment\'s log (ISO with an offset and Unix times, quoted labels): one labelled row each', async () => {

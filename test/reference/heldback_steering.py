@@ -1,10 +1,11 @@
 """A wake-steering campaign written without wakeplane's code (numpy only), as a reviewer's held-back case.
 
-Usage: python3 test/reference/heldback_steering.py OUTDIR [--minutes-scale S]
+Usage: python3 test/reference/heldback_steering.py OUTDIR [--minutes-scale S] [--direction D]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
-Invented site: one turbine at the origin (hub 100 m, rotor 120 m), wind from exactly 270 degrees, so the rotor
-frame is x = east, y = north, z = up. One cross plane at x = 600 m (5 D), y in [-180, 180] m, z in [10, 190] m,
+Invented site: one turbine at the origin (hub 100 m, rotor 120 m), wind from exactly D degrees (default 270, so
+the rotor frame is x = east, y = north, z = up; the site is turned with D: instruments stand at the same rotor-frame
+places, and with D near 0 every direction and nacelle value wraps through north). One cross plane at x = 600 m (5 D), y in [-180, 180] m, z in [10, 190] m,
 cells 30 m x 30 m, slab 30 m thick.
 
 Yaw schedule: steps of 17, 23, 31, 19 and 29 minutes (times the scale) starting at 2026-05-09T10:07:43.6Z (aligned
@@ -37,6 +38,19 @@ import numpy as np
 
 out = sys.argv[1]
 scale = float(sys.argv[sys.argv.index("--minutes-scale") + 1]) if "--minutes-scale" in sys.argv else 1.0
+WD = float(sys.argv[sys.argv.index("--direction") + 1]) if "--direction" in sys.argv else 270.0
+# Rotor frame of the true wind: x downstream (towards azimuth WD + 180), y to its left, z up; site = x d + y l.
+DE, DN = math.sin(math.radians(WD + 180)), math.cos(math.radians(WD + 180))
+LE, LN = -DN, DE
+
+
+def wrap180(a):
+    return (a + 180.0) % 360.0 - 180.0
+
+
+def circmean(a):
+    a = np.radians(np.asarray(a, dtype=float))
+    return float(np.degrees(np.arctan2(np.sin(a).mean(), np.cos(a).mean())) % 360.0)
 os.makedirs(os.path.join(out, "data"), exist_ok=True)
 rng = np.random.default_rng(20260509)
 
@@ -86,7 +100,7 @@ while t < END + 120:
     if not (gap[0] <= t < gap[1]):
         g = gamma(t)
         U = SPEEDS[step_of(t)]
-        rows.append((t, 270 + g + rng.normal(0, 0.5), 2000 * (U / 10) ** 3 * math.cos(math.radians(g)) ** 2, U))
+        rows.append((t, (WD + g + rng.normal(0, 0.5)) % 360.0, 2000 * (U / 10) ** 3 * math.cos(math.radians(g)) ** 2, U))
     t += 7.0
 # Logger dropouts in step 2 (index 1), 40 % into it: an empty yaw cell, then "NaN" (what pandas and numpy write
 # for a missing float); the power of the next row is "nan". The yaw values are rounded to 0.01 as written.
@@ -105,7 +119,7 @@ with open(os.path.join(out, "data", "wind_direction.csv"), "w") as f:
     f.write("time,direction_deg\n")
     t = math.floor((T0 - 120) / 60) * 60 + 30
     while t < END + 120:
-        direction.append((t, round(270 + rng.normal(0, 0.3), 2)))
+        direction.append((t, round((WD + rng.normal(0, 0.3)) % 360.0, 2)))
         f.write(f"{int(t)},{direction[-1][1]:.2f}\n")
         t += 60
 
@@ -122,7 +136,7 @@ dir_v = np.array([d[1] for d in direction])
 for t, y, p, U in rows:
     if y is None:
         continue
-    off = y - dir_v[np.argmin(abs(dir_t - t))]
+    off = wrap180(y - dir_v[np.argmin(abs(dir_t - t))])
     lv = [l for l in levels_set if abs(off - l) <= TOL]
     lv = min(lv, key=lambda l: abs(off - l)) if lv else None
     if cur is not None and lv == cur["level"] and t - prev_t <= MAXGAP:
@@ -143,14 +157,14 @@ for s in spans:
     s["yc_m"] = 2.0 * LEVELS[k]
     s["speed_ms"] = SPEEDS[k]
     s["power_kw"] = float(np.mean([p for i, (t, y, p, U) in enumerate(rows) if s["start_s"] <= t < s["end_s"] and i != drop + 2]))
-    # the window's wind direction: mean of the direction rows inside it (all within 2 degrees of 270, so the
-    # arithmetic mean equals the vector mean to 1e-6 degree)
-    wd = float(np.mean(dir_v[(dir_t >= s["start_s"]) & (dir_t < s["end_s"])]))
+    # the window's wind direction: vector mean of the direction rows inside it; its nacelle: vector mean of the yaw
+    # rows; the yaw offset their difference (README conventions)
+    wd = circmean(dir_v[(dir_t >= s["start_s"]) & (dir_t < s["end_s"])])
     s["direction_deg"] = wd
-    s["yaw_offset_deg"] = float(np.mean([y for t, y, p, U in rows if y is not None and s["start_s"] <= t < s["end_s"]])) - wd
-    # The wake centre as the window's rotor frame sees it: the frame's x axis points to azimuth wd - 180 (from wd),
-    # its y axis to the left; the true centre (600 m east, yc north) has y' = 600 sin(d) + yc cos(d), d = wd - 270.
-    d = math.radians(wd - 270)
+    s["yaw_offset_deg"] = wrap180(circmean([y for t, y, p, U in rows if y is not None and s["start_s"] <= t < s["end_s"]]) - wd)
+    # The wake centre as the window's rotor frame sees it: that frame is the true one turned by d = wd - WD
+    # (clockwise); the true centre (x = 600, y = yc) has y' = 600 sin(d) + yc cos(d) in it.
+    d = math.radians(wrap180(wd - WD))
     s["yc_frame_m"] = PLANE_X * math.sin(d) + s["yc_m"] * math.cos(d)
 
 # Samples.
@@ -167,11 +181,13 @@ for name, (pe, pn, pu), (p1, p2), ph in INSTR:
         y = 170 * math.sin(2 * math.pi * t / p1 + ph)
         z = 100 + 88 * math.sin(2 * math.pi * t / p2)
         x = PLANE_X + rng.uniform(-12, 12)
-        de, dn, du = x - pe, y - pn, z - pu
+        # rotor-frame differences, then the site frame (east, north)
+        dx, dy, du = x - pe, y - pn, z - pu
+        de, dn = dx * DE + dy * LE, dx * DN + dy * LN
         r = math.sqrt(de * de + dn * dn + du * du)
         az = (math.degrees(math.atan2(de, dn)) + 360) % 360
         el = math.degrees(math.asin(du / r))
-        vr = wind(y, z, t) * de / r + rng.normal(0, 0.1)  # wind along +x (east): u * n_east
+        vr = wind(y, z, t) * dx / r + rng.normal(0, 0.1)  # wind along x: u * (beam . x axis)
         lines.append(f"{t:.3f},{name},{az:.4f},{el:.4f},{r:.2f},{vr:.3f},-10.0")
         t += rng.uniform(0.6, 1.4) / 4
     nrows += len(lines) - 1
@@ -182,7 +198,8 @@ campaign = {
     "name": "heldback-steering",
     "turbine": {"id": "HB-1", "position_m": [0, 0, 0], "hubHeight_m": HUB, "rotorDiameter_m": 120,
                 "thrustCoefficient": 0.78, "series": {"file": "data/turbine.csv"}},
-    "instruments": [{"id": n, "position_m": list(p), "files": [f"data/{n}.csv"]} for n, p, _, _ in INSTR],
+    "instruments": [{"id": n, "position_m": [round(p[0] * DE + p[1] * LE, 6), round(p[0] * DN + p[1] * LN, 6), p[2]],
+                     "files": [f"data/{n}.csv"]} for n, p, _, _ in INSTR],
     "planes": [{"id": "x5", "x_m": PLANE_X, "y": {"min": -180, "max": 180}, "z": {"min": 10, "max": 190},
                 "cell_m": [30, 30], "thickness_m": 30}],
     "qc": {"cnr_db": {"min": -25, "max": 5}},
@@ -207,7 +224,7 @@ with open(os.path.join(out, "data", "log.csv"), "w") as f:
         else:
             f.write(f"{a:.1f},{b:.1f},\"{label}\"\n")
         log.append({"start_s": a, "end_s": b, "label": label, "yc_m": 2.0 * LEVELS[k],
-                    "direction_deg": float(np.mean(dir_v[(dir_t >= a) & (dir_t < b)]))})
+                    "direction_deg": circmean(dir_v[(dir_t >= a) & (dir_t < b)]), "true_direction_deg": WD})
 valid_t = [t for t, y, p, U in rows if y is not None]
 gap_s = float(sum(b - a for a, b in zip(valid_t, valid_t[1:]) if b - a > MAXGAP))
 with open(os.path.join(out, "expected.json"), "w") as f:
