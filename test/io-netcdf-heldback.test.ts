@@ -14,7 +14,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
-import { netcdfStage } from '../src/pipeline/stages.ts';
+import { netcdfStage, wakeStage } from '../src/pipeline/stages.ts';
 import { debianPython } from './helpers/python.ts';
 
 const py = debianPython(['netCDF4', 'numpy', 'pandas', 'xarray']);
@@ -28,14 +28,14 @@ describe.skipIf(!py.python)(`held-back NetCDF files written by python3-netcdf4 a
   let csvRun: Awaited<ReturnType<typeof runCampaign>>;
   beforeAll(async () => {
     dir = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-nc-'));
-    const r = spawnSync(py.python!, ['test/reference/heldback_netcdf.py', dir, '--minutes', '10'], { encoding: 'utf8' });
+    const r = spawnSync(py.python!, ['test/reference/heldback_netcdf.py', dir, '--minutes', '6'], { encoding: 'utf8' });
     if (r.status !== 0) throw new Error(r.stderr);
     expected = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as Expected;
     csvRun = await runCampaign(loadCampaignFile(join(dir, 'campaign-csv.yaml')), { outRoot: join(dir, 'out-csv'), images: false });
   });
 
   it('every masked sample is a missing_value rejection; all else and the field tables equal the CSV run', async () => {
-    const nc = await runCampaign(loadCampaignFile(join(dir, 'campaign-nc.yaml')), { outRoot: join(dir, 'out-nc'), images: false, stages: [netcdfStage()] });
+    const nc = await runCampaign(loadCampaignFile(join(dir, 'campaign-nc.yaml')), { outRoot: join(dir, 'out-nc'), images: false, stages: [wakeStage(), netcdfStage()] });
     expect(nc.manifest.samples.balanced).toBe(true);
     for (const id of ['west', 'east', 'back'] as const) {
       const a = csvRun.manifest.samples.perInstrument[id], b = nc.manifest.samples.perInstrument[id];
@@ -56,11 +56,16 @@ describe.skipIf(!py.python)(`held-back NetCDF files written by python3-netcdf4 a
     // unit of the CSV's last digit plus float32 rounding; masks by flag meaning).
     const r = spawnSync(py.python!, ['test/reference/compare_field_netcdf.py', nc.runDir, 'x5'], { encoding: 'utf8' });
     expect(r.status, r.stderr).toBe(0);
-    const cmp = JSON.parse(r.stdout) as { windows_nc: number; windows_csv: number; compared: string[]; cells: number; mismatches: unknown[]; mismatch_count: number };
+    const cmp = JSON.parse(r.stdout) as { wake_table: { missing: string[]; extra: string[]; named: number }; windows_nc: number; windows_csv: number; compared: string[]; cells: number; mismatches: unknown[]; mismatch_count: number };
     expect(cmp.windows_nc).toBe(2);
     expect(cmp.windows_csv).toBe(2);
     expect(cmp.compared).toEqual(expect.arrayContaining(['u', 'v', 'w', 'u_se', 'u_mask', 'samples', 'u_unc_combined']));
     expect(cmp.mismatches).toEqual([]);
+    // The dictionary names every variable of wake/wake_table.nc (regression: x_D, disagreement_D were named "x",
+    // "disagreement" like their metre twins, so a program could not find them by the dictionary).
+    expect(cmp.wake_table.missing).toEqual([]);
+    expect(cmp.wake_table.extra).toEqual([]);
+    expect(cmp.wake_table.named).toBeGreaterThan(60);
   });
 
   it('a .csv.gz file reads as its plain CSV', async () => {

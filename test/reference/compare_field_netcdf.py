@@ -2,7 +2,9 @@
 with xarray (Debian python3-xarray over python3-netcdf4) and the CSV with the csv module, matched by the names in
 the run's dictionary.json. Every variable on (window, z, y) that has a CSV column is compared cell by cell: numbers
 within half a unit of the CSV's last written digit (plus float32 rounding), masks by their flag meanings, empty
-CSV cells against NaN. Prints JSON: windows in each, the variables compared, cells compared, and the mismatches.
+CSV cells against NaN. Prints JSON: windows in each, the variables compared, cells compared, and the mismatches;
+and, when the run wrote wake/wake_table.nc, the wake table's dictionary names (netcdfVariable in dictionary.json)
+that the file lacks and the file's variables the dictionary does not name.
 
 Usage: python3 test/reference/compare_field_netcdf.py RUN_DIR PLANE
 """
@@ -54,4 +56,10 @@ with xr.open_dataset(f"{run}/fields/{plane}.nc") as ds:
                     mismatches.append([name, k, r["y_m"], r["z_m"], text, float(x)])
         compared.append(name)
     nc_windows = int(ds.sizes["window"])
-print(json.dumps({"windows_nc": nc_windows, "windows_csv": len(files), "compared": compared, "cells": cells, "mismatches": mismatches[:20], "mismatch_count": len(mismatches)}))
+wake = None
+if glob.glob(f"{run}/wake/wake_table.nc"):
+    named = {c["netcdfVariable"] for t in d["tables"] if t["id"] == "wake-table" for c in t["columns"] if c["netcdfVariable"]}
+    with xr.open_dataset(f"{run}/wake/wake_table.nc", decode_times=False) as w:
+        present = set(w.variables) - set(w.dims)
+    wake = {"missing": sorted(named - present), "extra": sorted(present - named), "named": len(named)}
+print(json.dumps({"wake_table": wake, "windows_nc": nc_windows, "windows_csv": len(files), "compared": compared, "cells": cells, "mismatches": mismatches[:20], "mismatch_count": len(mismatches)}))
