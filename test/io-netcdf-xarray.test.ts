@@ -12,7 +12,8 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import type { RejectedRow } from '../src/io/batch.ts';
 import { unitsToSi } from '../src/io/cfUnits.ts';
-import { openSamples } from '../src/io/sampleSource.ts';
+import { checkSamples, openSamples } from '../src/io/sampleSource.ts';
+import { InputError } from '../src/errors.ts';
 import { debianPython } from './helpers/python.ts';
 
 const py = debianPython(['netCDF4', 'numpy', 'pandas', 'xarray']);
@@ -68,3 +69,26 @@ describe.skipIf(!py.python)(`a file written by xarray from pandas times${py.pyth
     });
   }
 });
+
+describe.skipIf(!py.python)(`a radial velocity stored as (range, time)${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('the one-line error names the radial velocity and the transposition, not the time variable', async () => {
+    const file = join(tmp, 'transposed.nc');
+    // Written by xarray: the velocity on (gate, time), 3 x 6, azimuth and time on time (6).
+    const code = [
+      'import sys, numpy as np, pandas as pd, xarray as xr',
+      't = pd.to_datetime(1778321263 + np.arange(6), unit="s")',
+      'ds = xr.Dataset({"azimuth": (("time",), np.zeros(6), {"units": "degree"}), "elevation": (("time",), np.zeros(6), {"units": "degree"}),',
+      '  "range": (("gate",), np.array([500.0, 515, 530]), {"units": "m"}),',
+      '  "radial_velocity": (("gate", "time"), np.zeros((3, 6)), {"units": "m s-1"})}, coords={"time": t})',
+      'ds.to_netcdf(sys.argv[1])',
+    ].join('\n');
+    const r = spawnSync(py.python!, ['-c', code, file], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    const o = { instrumentIndex: new Map([['L1', 0]]), owner: 0, columns: {}, sign: 'away' as const };
+    const err = await checkSamples(file, o).then(() => null, (e: unknown) => e);
+    expect(err).toBeInstanceOf(InputError);
+    expect((err as Error).message).toMatch(/transposed\.nc: variable "radial_velocity": must be on \(time, range\), but its first dimension has 3 and its second 6, the length of "time": stored as \(range, time\)\?/);
+    expect((err as Error).message).not.toContain('\n');
+  });
+});
+

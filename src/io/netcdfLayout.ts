@@ -172,6 +172,10 @@ export function resolveNetcdf(f: H5File, file: string, columns: ColumnMap, sign:
       const ok = (x.shape.length === 1 && x.shape[0] === rays) || (scalarOk && (x.shape.length === 0 || (x.shape.length === 1 && x.shape[0] === 1)));
       if (!ok) throw new InputError(file, undefined, `variable "${x.name}": must be on the ray dimension of "${v.name}" (${rays} rays)${scalarOk ? ' or a scalar' : ''}, has ${dims(x)}`);
     };
+    // Stored the other way round, (range, time): say so of the radial velocity rather than blame the time.
+    if (time!.shape.length === 1 && time!.shape[0] === gates && gates !== rays) {
+      throw new InputError(file, undefined, `variable "${v.name}": must be on (time, range), but its first dimension has ${rays} and its second ${gates}, the length of "${time!.name}": stored as (range, time)?`);
+    }
     onRays(time!, false);
     onRays(azimuth!, true);
     onRays(elevation!, true);
