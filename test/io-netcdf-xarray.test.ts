@@ -92,3 +92,28 @@ describe.skipIf(!py.python)(`a radial velocity stored as (range, time)${py.pytho
   });
 });
 
+
+describe.skipIf(!py.python)(`variables in a group${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('not found at the root: the message points to the group and the path form; mapped by path they are read', async () => {
+    const file = join(tmp, 'group.nc');
+    // Written by xarray into group "sweep_0" (as archives keep one sweep per group): 4 rays x 2 gates.
+    const code = [
+      'import sys, numpy as np, pandas as pd, xarray as xr',
+      't = pd.to_datetime(1778321263 + np.arange(4), unit="s")',
+      'ds = xr.Dataset({"azimuth": (("time",), np.array([10.0, 20, 30, 40]), {"units": "degree"}), "elevation": (("time",), np.full(4, 3.0), {"units": "degree"}),',
+      '  "range": (("gate",), np.array([500.0, 515]), {"units": "m"}),',
+      '  "radial_velocity": (("time", "gate"), np.arange(8.0).reshape(4, 2), {"units": "m s-1"})}, coords={"time": t})',
+      'ds.to_netcdf(sys.argv[1], group="sweep_0")',
+    ].join('\n');
+    const r = spawnSync(py.python!, ['-c', code, file], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    const o = { instrumentIndex: new Map([['L1', 0]]), owner: 0, columns: {}, sign: 'away' as const };
+    const err = await checkSamples(file, o).then(() => null, (e: unknown) => e);
+    expect((err as Error).message).toMatch(/group\.nc: variable "time" for time not found .*the file has: sweep_0\/ \(a group\); variables in a group are named by path, e\.g\. "sweep_0\/time"$/);
+    const columns = { time: 'sweep_0/time', azimuth_deg: 'sweep_0/azimuth', elevation_deg: 'sweep_0/elevation', range_m: 'sweep_0/range', radial_velocity_ms: 'sweep_0/radial_velocity' };
+    const vr: number[] = [], t: number[] = [];
+    for await (const { batch: b } of openSamples(file, { ...o, columns })) for (let i = 0; i < b.length; i++) { vr.push(b.radialVelocity[i]); t.push(b.time[i]); }
+    expect(vr).toEqual([0, 1, 2, 3, 4, 5, 6, 7]); // whole numbers stored as float64: exact
+    expect(t).toEqual([0, 0, 1, 1, 2, 2, 3, 3].map((k) => 1778321263 + k)); // whole seconds: exact
+  });
+});

@@ -102,6 +102,14 @@ function attrNumbers(ds: H5Dataset, name: string): number[] | undefined {
   return undefined;
 }
 
+/** The root's entries for a message; groups marked, with the path form that reaches their variables. */
+function contents(f: H5File): string {
+  const keys = f.keys();
+  const groups = keys.filter((k) => { try { return (f.get(k) as { type?: string } | null)?.type === 'Group'; } catch { return false; } });
+  const list = keys.map((k) => (groups.includes(k) ? `${k}/ (a group)` : k)).join(', ');
+  return groups.length ? `${list}; variables in a group are named by path, e.g. "${groups[0]}/time"` : list;
+}
+
 function isDataset(e: unknown): e is H5Dataset {
   return !!e && (e as { type?: string }).type === 'Dataset';
 }
@@ -111,7 +119,7 @@ function find(f: H5File, file: string, key: string, ref: ColumnMap[keyof ColumnM
   if (mapped !== undefined) {
     let e: unknown;
     try { e = f.get(mapped); } catch { e = null; }
-    if (!isDataset(e)) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${f.keys().join(', ')}`);
+    if (!isDataset(e)) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${contents(f)}`);
     return e;
   }
   const datasets: H5Dataset[] = [];
@@ -132,7 +140,7 @@ function resolveVariable(f: H5File, file: string, role: (typeof ROLES)[number], 
   const name0 = ds?.path.replace(/^\//, '') ?? role.names[0];
   if (!ds) {
     if (optional) return null;
-    throw new InputError(file, undefined, `variable "${name0}" for ${role.key} not found (set instruments[].columns.${role.key} to its name); the file has: ${f.keys().join(', ')}`);
+    throw new InputError(file, undefined, `variable "${name0}" for ${role.key} not found (set instruments[].columns.${role.key} to its name); the file has: ${contents(f)}`);
   }
   const name = name0;
   const m = ds.metadata;
