@@ -250,7 +250,7 @@ const conditionsSchema = z
               .string()
               .min(1)
               .describe('hub_speed_ms, wind_direction_deg, turbulence_intensity, yaw_offset_deg, or <series>.<column> with series turbine, inflow or direction'),
-            edges: z.array(finite()).min(2).describe('bin edges, ascending; a window belongs to [edge_i, edge_i+1)'),
+            edges: z.array(finite()).min(2).describe('bin edges, ascending; a window belongs to [edge_i, edge_i+1); angles (_deg) count modulo 360, so a wind-direction sector may cross north ([-10, 0, 10]), within one turn'),
           })
           .strict(),
       )

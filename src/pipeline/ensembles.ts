@@ -129,11 +129,17 @@ export class Ensembles {
     });
   }
 
-  /** Bin of a set of values, or -1 when any value is outside its edges or unknown. */
+  /**
+   * Bin of a set of values, or -1 when any value is outside its edges or unknown. Angles (variables ending in _deg)
+   * count modulo 360: a value is taken as the one of its turns in [first edge, first edge + 360), so a wind-direction
+   * sector may cross north (edges [-10, 0, 10] hold 359 and 1 degrees); the campaign keeps such edges within a turn.
+   */
   binOf(values: number[]): number {
     let bin = 0;
     for (let k = 0; k < this.specs.length; k++) {
-      const e = this.specs[k].edges, v = values[k];
+      const e = this.specs[k].edges;
+      let v = values[k];
+      if (this.specs[k].variable.endsWith('_deg')) v = e[0] + ((((v - e[0]) % 360) + 360) % 360);
       let j = -1;
       for (let i = 0; i + 1 < e.length; i++) if (v >= e[i] && v < e[i + 1]) { j = i; break; }
       if (j < 0) return -1;
