@@ -22,6 +22,7 @@ import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
+import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
@@ -128,11 +129,13 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg'], [], { holes: ['direction_deg'] }));
       if (directionSeries && directionSeries.time.length === 0) errors.push(new InputError(wd.file, undefined, 'the wind-direction series has no rows'));
     }
+    let stateSeries: Series | undefined;
     for (const t of c.turbines) {
       const ts = t.series;
       // The state turbine's series must give the yaw; the others may bring only their power.
       const required = t === stateTurbine(c) ? ['yaw_deg'] : [];
-      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status'], { holes: ['yaw_deg'] }));
+      const read = ts ? series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status'], { holes: ['yaw_deg'] })) : undefined;
+      if (t === stateTurbine(c)) stateSeries = read;
     }
     if (c.site.terrain) {
       try {
@@ -149,6 +152,17 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     if (c.conditions?.bins.length) {
       try {
         loadConditionSeries(c);
+      } catch (e) {
+        errors.push(e as Error);
+      }
+    }
+    // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built by run before
+    // any output: build them here too, so that check fails on a bad window list or no steady span exactly as run
+    // does (only when the series they need were read, so that one problem is not reported twice).
+    const w = c.windows;
+    if (errors.length === 0 && !(w.kind === 'fixed' && w.anchor === 'first-sample')) {
+      try {
+        buildWindowPlan(c, { turbineSeries: w.kind === 'segments' ? stateSeries : undefined, directionSeries });
       } catch (e) {
         errors.push(e as Error);
       }
