@@ -101,8 +101,10 @@ describe('our NetCDF-4 sample writer and the reader', () => {
       n += batch.length;
     }
     expect(n).toBe(10000);
-    // 2000 samples / 10 gates = 200 rays, rounded to whole chunks of 64 rays: 192 rays = 1920 samples per block
-    expect(sizes.slice(0, -1).every((s) => s === 1920)).toBe(true);
+    // The first block one chunk of 64 rays (640 samples: it comes sooner), then 2000 samples / 10 gates = 200 rays,
+    // rounded to whole chunks of 64 rays: 192 rays = 1920 samples per block (exact counts)
+    expect(sizes[0]).toBe(640);
+    expect(sizes.slice(1, -1).every((s) => s === 1920)).toBe(true);
     const { rows } = await readAll(file, opts());
     // km and minutes written by the generator and converted back: exact to rounding (1e-9 m, 1e-6 s)
     expect(rows[15].r).toBeCloseTo(100 + 30 * 5, 9);
@@ -150,7 +152,7 @@ describe('our NetCDF-4 sample writer and the reader', () => {
       const fresh = await readAll(file, opts({ batchSize: 2000 }));
       // every sample once: the head and the rest of the taken stream together are the file (exact counts)
       expect(n).toBe(fresh.rows.length);
-      expect(head.n).toBe(1920);
+      expect(head.n).toBe(640); // the first block: one chunk of 64 rays x 10 gates
       expect(head.t0).toBe(fresh.rows[0].t);
       await primed.close();
     }
@@ -168,6 +170,13 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     expect(threaded.rejected).toEqual(direct.rejected);
     expect(threaded.batches).toBe(direct.batches);
     expect(direct.rejected.map((r) => [r.ray, r.gate, r.reason])).toEqual([[12, 3, 'missing_value']]);
+    // Checked on the thread first (as a run does): the thread keeps the checked file open for the read that follows;
+    // the same samples in the same blocks (bit for bit).
+    expect((await checkSamples(file, opts({ thread: true }))).hasDataLine).toBe(true);
+    const afterCheck = await readAll(file, opts({ batchSize: 2000, thread: true }));
+    expect(afterCheck.rows).toEqual(direct.rows);
+    expect(afterCheck.rejected).toEqual(direct.rejected);
+    expect(afterCheck.batches).toBe(direct.batches);
     // A variable the campaign names but the file lacks: InputError naming file and variable, raised on the first pull.
     const bad = opts({ columns: { cnr_db: 'no_such_variable' }, thread: true });
     await expect(readAll(file, bad)).rejects.toThrow(/thread\.nc: .*no_such_variable/);

@@ -47,6 +47,41 @@ describe('statistics walked in the dense array equal those of the sorted bins', 
   });
 });
 
+describe('rejected counts and sums', () => {
+  it('equal a walk over every occupied bin in ascending order (the definition), bit for bit', () => {
+    // robustStats walks only the entries beyond the limit on either side; this walks every bin of the samples
+    // (bins from the values' fixed-point form at the slot's level), adding count * centre in ascending order.
+    const r = mulberry32(47);
+    let withRejections = 0;
+    for (let t = 0; t < 600; t++) {
+      const n = 2 + Math.floor(r() * (t % 40 === 0 ? 30000 : 400));
+      const sd = 0.01 + r() * 2;
+      const v = new Float64Array(n);
+      for (let i = 0; i < n; i++) v[i] = 4 + sd * gauss(r) + (r() < 0.06 ? 80 * r() - 40 : 0);
+      const h = histogramOf(v);
+      const w = h.width(0), shift = 11 + h.level[0];
+      const counts = new Map<number, number>();
+      for (const x of v) { const b = Math.round(x * VR_SCALE) >> shift; counts.set(b, (counts.get(b) ?? 0) + 1); }
+      const bins = [...counts.keys()].sort((a, b) => a - b);
+      for (const k of [3.5, 2]) {
+        const hs = robustStats(h, 0, k, emptyHistogramStats());
+        const limit = k * hs.sigma;
+        let rej = 0, rs = 0, rss = 0;
+        for (const b of bins) {
+          const c = counts.get(b)!, x = (b + 0.5) * w;
+          if (Math.abs(x - hs.median) > limit) { rej += c; rs += c * x; rss += c * x * x; }
+        }
+        if (rej > 0) withRejections++;
+        expect(hs.rejected).toBe(rej); // exact integers
+        expect(hs.rejectedSum).toBe(rs); // tolerance 0: the same additions in the same order
+        expect(hs.rejectedSumSq).toBe(rss);
+        expect(hs.kept + hs.rejected).toBe(n);
+      }
+    }
+    expect(withRejections).toBeGreaterThan(300); // the tails were exercised (most groups have junk beyond the limit)
+  });
+});
+
 describe('histogram statistics against the exact sample statistics', () => {
   it('median within delta/2, MAD within delta, and decisions differ only within (1.5 k + 1) delta of the exact limit', () => {
     const r = mulberry32(11);

@@ -4,7 +4,7 @@
  * downstream knows the format.
  *
  * Reads blocks of whole rays: hyperslabs [r0, r1) x all gates of the radial velocity and CNR (r1 - r0 a multiple of
- * the variable's chunk rows, about `batchSize` samples), and the matching slices of time, azimuth, elevation and a
+ * the variable's chunk rows, about `batchSize` samples; the first block one chunk of rays when that is less), and the matching slices of time, azimuth, elevation and a
  * per-ray range; only the 1-D range of the gates is read whole. Never the file.
  *
  * Every sample (ray, gate) ends up either in a batch or rejected, so samples read = batch rows + rejected exactly:
@@ -44,11 +44,32 @@ async function open(path: string, opts: SampleReaderOptions): Promise<{ f: H5Fil
   }
 }
 
+type Opened = Awaited<ReturnType<typeof open>>;
+
+/**
+ * Files checkNetcdf opened, left open for the reading that follows (at most keepChecked of them, by file, owner,
+ * column names and sign). Only the reader thread keeps them (keepCheckedFiles): a run checks every file before its
+ * ingest reads them, and opening a file (its metadata) is a few tens of milliseconds each time.
+ */
+const kept = new Map<string, Opened>();
+let keepChecked = 0;
+
+/** Keep up to `n` checked files open for their reader (0: close each after its check, the default). */
+export function keepCheckedFiles(n: number): void {
+  keepChecked = n;
+}
+
+function keptKey(path: string, opts: SampleReaderOptions): string {
+  return `${path}\u0000${opts.owner}\u0000${JSON.stringify(opts.columns ?? null)}\u0000${opts.sign ?? ''}`;
+}
+
 /** Resolves the variables, dimensions and units without reading samples; throws InputError naming the variable. */
 export async function checkNetcdf(path: string, opts: SampleReaderOptions): Promise<{ rays: number; gates: number }> {
-  const { f, layout } = await open(path, opts);
-  f.close();
-  return { rays: layout.rays, gates: layout.gates };
+  const o = await open(path, opts);
+  const k = keptKey(path, opts);
+  if (kept.size < keepChecked && !kept.has(k)) kept.set(k, o);
+  else o.f.close();
+  return { rays: o.layout.rays, gates: o.layout.gates };
 }
 
 /**
@@ -181,11 +202,17 @@ function createBatch(file: string, n: number): SampleBatch {
  * InputError for a structure problem before the first yield. A batch is valid until the next pull (reuseBatches).
  */
 export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
-  const { f, layout: L, sign } = await open(path, opts);
+  const k = keptKey(path, opts);
+  const ready = kept.get(k);
+  kept.delete(k);
+  const { f, layout: L, sign } = ready ?? (await open(path, opts));
   let cleanup = () => {};
   try {
     const G = L.gates, target = opts.batchSize ?? 65536;
     const perBlock = Math.max(1, Math.round(target / G / L.chunkRays)) * L.chunkRays;
+    // The first block one chunk of rays when that is smaller: a run waits for every file's first block before its
+    // ingest starts (the CNR pre-pass takes its rows from it), so it comes sooner.
+    const firstBlock = Math.min(perBlock, L.chunkRays);
     const cap = perBlock * G;
     const reuse = opts.reuseBatches ?? true;
     let spare: SampleBatch | null = null;
@@ -198,8 +225,9 @@ export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions
     const ST = screenOf(T), SA = screenOf(AZ), SE = screenOf(EL), SR = screenOf(RG), SV = screenOf(VR), SC = CN ? screenOf(CN) : EMPTY;
     let bad = new Int32Array(0);
     const nBad = new Int32Array(1);
-    for (let r0 = 0; r0 < L.rays; r0 += perBlock) {
-      const r1 = Math.min(L.rays, r0 + perBlock), nr = r1 - r0;
+    for (let r0 = 0, r1 = 0; r0 < L.rays; r0 = r1) {
+      r1 = Math.min(L.rays, r0 + (r0 === 0 ? firstBlock : perBlock));
+      const nr = r1 - r0;
       const what = `rays ${r0}-${r1 - 1}`;
       const sl: [number, number][] = [[r0, r1], [0, G]];
       const t = read(T, path, sl, what, sr, 0), az = read(AZ, path, sl, what, sr, 1), el = read(EL, path, sl, what, sr, 2);

@@ -12,6 +12,7 @@ import { parentPort } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
 import { batchBuffers, type SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
+import { keepCheckedFiles } from './netcdfSamples.ts';
 import { checkSamples, openSamples } from './sampleSource.ts';
 
 /** Chunks a file may have in flight (posted, not yet taken back by a request). */
@@ -26,6 +27,8 @@ interface Reader {
 }
 
 const readers = new Map<number, Reader>();
+// A run checks its files on this thread, then reads them here: the checked files stay open for their readers.
+keepCheckedFiles(64);
 const port = parentPort!;
 
 async function pump(id: number): Promise<void> {
@@ -43,6 +46,9 @@ async function pump(id: number): Promise<void> {
       r.credits--;
       const chunk = next.value;
       port.postMessage({ id, chunk }, batchBuffers(chunk.batch));
+      // Let waiting messages in before the next chunk (a file opened meanwhile gets its first chunk next, instead of
+      // after this file's chunks ahead: the main thread waits for every file's first chunk before its ingest).
+      if (r.credits > 0) await new Promise<void>((resolve) => setImmediate(resolve));
     }
   } catch (e) {
     r.done = true;

@@ -103,12 +103,8 @@ function medianOfSorted(a: Float64Array, len: number): number {
   return len % 2 === 1 ? a[(len - 1) >> 1] : 0.5 * (a[len / 2 - 1] + a[len / 2]);
 }
 
-/**
- * Deviations from stronger neighbours for one binning: d[i] = v[i] - median of the members of i's group with a higher
- * CNR (the strongest minGroup members: the median of the other minGroup - 1 of them); NaN where the group is smaller
- * than minGroup. Returns the number of samples with a deviation.
- */
-function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array): number {
+/** Group key of each used sample for one binning (time block, azimuth, elevation and range bins). */
+function groupKeys(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning']): Float64Array {
   const n = use.length;
   let t0 = Infinity;
   for (let k = 0; k < n; k++) t0 = Math.min(t0, Math.floor(s.time[use[k]] / bins.timeBlock_s));
@@ -126,8 +122,16 @@ function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binni
     const rb = Math.floor(s.range[i] / bins.rangeBin_m);
     key[k] = ((tb * na + ab) * ne + eb) * nr + rb; // exact below 2^53 for any real campaign (blocks x bins)
   }
-  // Group members together (groups in key order, members in sample order): the distinct keys by a native numeric
-  // sort, each sample's group by binary search, then a counting sort.
+  return key;
+}
+
+/**
+ * Members grouped together (groups in key order, members in sample order): the distinct keys by a native numeric
+ * sort, each sample's group by binary search, then a counting sort. Returns the group starts (G + 1 entries) and the
+ * members' positions in group order.
+ */
+function groupMembers(key: Float64Array): { starts: Uint32Array; order: Uint32Array } {
+  const n = key.length;
   const uniq = Float64Array.from(key).sort();
   let G = 0;
   for (let k = 0; k < n; k++) if (k === 0 || uniq[k] !== uniq[G - 1]) uniq[G++] = uniq[k];
@@ -144,37 +148,57 @@ function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binni
   const fill = starts.slice(0, G);
   const order = new Uint32Array(n);
   for (let k = 0; k < n; k++) order[fill[groupOf[k]]++] = k;
+  return { starts, order };
+}
+
+/** Sorts mem[0, m) by CNR, strongest first (ties by position: deterministic). */
+function byCnr(s: SampleColumns, use: Uint32Array, mem: Uint32Array, m: number): void {
+  if (m <= 32) {
+    for (let k = 1; k < m; k++) {
+      const x = mem[k], cx = s.cnr[use[x]];
+      let j = k;
+      while (j > 0 && (s.cnr[use[mem[j - 1]]] < cx || (s.cnr[use[mem[j - 1]]] === cx && mem[j - 1] > x))) { mem[j] = mem[j - 1]; j--; }
+      mem[j] = x;
+    }
+  } else mem.subarray(0, m).sort((a, b) => s.cnr[use[b]] - s.cnr[use[a]] || a - b);
+}
+
+/**
+ * Each member of a group (mem[0, m), strongest first) with at least minGroup - 1 stronger ones: its deviation from
+ * their median (a running sorted list, `sorted` at least MAX_REFERENCE long). The strongest minGroup - 1 have no
+ * reference: in a group that is mostly junk they could be good samples among junk, and comparing them with each
+ * other would count junk as their neighbours.
+ */
+function groupDeviations(s: SampleColumns, use: Uint32Array, mem: Uint32Array, m: number, minGroup: number, sorted: Float64Array, d: Float64Array): void {
+  const top = minGroup - 1;
+  let L = 0;
+  for (let j = 0; j < top; j++) insertSorted(sorted, L++, s.radialVelocity[use[mem[j]]]);
+  for (let k = top; k < m; k++) {
+    d[mem[k]] = s.radialVelocity[use[mem[k]]] - medianOfSorted(sorted, L);
+    if (L < MAX_REFERENCE) insertSorted(sorted, L++, s.radialVelocity[use[mem[k]]]);
+  }
+}
+
+/**
+ * Deviations from stronger neighbours for one binning: d[i] = v[i] - median of the members of i's group with a higher
+ * CNR (the strongest minGroup members: the median of the other minGroup - 1 of them); NaN where the group is smaller
+ * than minGroup. Returns the number of samples with a deviation. (Its steps are small functions of their own: one
+ * function holding every loop was recompiled by the optimiser about ten times per run as each loop became hot.)
+ */
+function deviations(s: SampleColumns, use: Uint32Array, bins: CnrEvidence['binning'], minGroup: number, d: Float64Array): number {
+  const { starts, order } = groupMembers(groupKeys(s, use, bins));
+  const G = starts.length - 1;
   d.fill(NaN);
   let mem = new Uint32Array(64), sorted = new Float64Array(64);
   let withRef = 0;
   for (let g = 0; g < G; g++) {
-    const lo = starts[g], hi = starts[g + 1];
-    const m = hi - lo;
+    const lo = starts[g], m = starts[g + 1] - lo;
     if (m < minGroup) continue;
-    {
-      if (mem.length < m) { mem = new Uint32Array(2 * m); sorted = new Float64Array(2 * m); }
-      // Members by CNR, strongest first (ties by position: deterministic).
-      for (let k = 0; k < m; k++) mem[k] = order[lo + k];
-      if (m <= 32) {
-        for (let k = 1; k < m; k++) {
-          const x = mem[k], cx = s.cnr[use[x]];
-          let j = k;
-          while (j > 0 && (s.cnr[use[mem[j - 1]]] < cx || (s.cnr[use[mem[j - 1]]] === cx && mem[j - 1] > x))) { mem[j] = mem[j - 1]; j--; }
-          mem[j] = x;
-        }
-      } else mem.subarray(0, m).sort((a, b) => s.cnr[use[b]] - s.cnr[use[a]] || a - b);
-      const top = minGroup - 1;
-      // Each member with at least minGroup - 1 stronger ones: against their median (a running sorted list). The
-      // strongest minGroup - 1 have no reference: in a group that is mostly junk they could be good samples among
-      // junk, and comparing them with each other would count junk as their neighbours.
-      let L = 0;
-      for (let j = 0; j < top; j++) insertSorted(sorted, L++, s.radialVelocity[use[mem[j]]]);
-      for (let k = top; k < m; k++) {
-        d[mem[k]] = s.radialVelocity[use[mem[k]]] - medianOfSorted(sorted, L);
-        if (L < MAX_REFERENCE) insertSorted(sorted, L++, s.radialVelocity[use[mem[k]]]);
-      }
-      withRef += m - top;
-    }
+    if (mem.length < m) { mem = new Uint32Array(2 * m); sorted = new Float64Array(2 * m); }
+    for (let k = 0; k < m; k++) mem[k] = order[lo + k];
+    byCnr(s, use, mem, m);
+    groupDeviations(s, use, mem, m, minGroup, sorted, d);
+    withRef += m - (minGroup - 1);
   }
   return withRef;
 }

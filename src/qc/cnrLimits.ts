@@ -104,6 +104,13 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       if (!q || quota < q.quota) quotas.set(path, { quota, ins: q?.ins ?? ins });
     }
   }
+  // Every primed file's head asked for at once: the reader thread then reads each file's first chunk before any
+  // file's second, instead of one file at a time as the heads are awaited below.
+  if (primed) {
+    for (const [path, { ins }] of quotas) {
+      if (sampleFormat(path) !== 'csv') primed.head(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign }).catch(() => {});
+    }
+  }
   for (const [path, { quota, ins }] of quotas) {
     const opts = { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign };
     if (sampleFormat(path) === 'csv') {

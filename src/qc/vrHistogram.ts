@@ -335,7 +335,8 @@ const MEANAD_TO_SIGMA = 1.2533141373155003;
 export function robustStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
   // A slot whose bins are all in its dense array (the common case) is walked in place: no sorted copy (two arrays
   // per slot and window); the same steps in the same order as over the sorted bins.
-  if (h.tkeys[s] === null || h.tused[s] === 0) return binStats(h.dense[s], h.base[s], null, h.width(s), k, out);
+  // Every sample of such a slot is in its dense array, so its count is the slot's total (no walk to sum it).
+  if (h.tkeys[s] === null || h.tused[s] === 0) return binStats(h.dense[s], h.base[s], null, h.width(s), k, out, h.total[s]);
   return sortedStats(h, s, k, out);
 }
 
@@ -349,15 +350,18 @@ export function sortedStats(h: VrHistograms, s: number, k: number, out: Histogra
  * The statistics of robustStats over ascending bins: entry j has count counts[j] (empty entries skipped) and bin
  * index bins[j], or base + j without `bins` (a dense array); w the bin width, m/s.
  */
-function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats): HistogramStats {
+function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1): HistogramStats {
   out.n = out.kept = out.rejected = 0;
   out.median = out.sigma = NaN;
   out.rejectedSum = out.rejectedSumSq = 0;
   out.width = w;
   const len = counts.length;
   const centre = (j: number) => ((bins ? bins[j] : base + j) + 0.5) * w;
-  let n = 0;
-  for (let j = 0; j < len; j++) n += counts[j];
+  let n = total;
+  if (n < 0) {
+    n = 0;
+    for (let j = 0; j < len; j++) n += counts[j];
+  }
   out.n = n;
   if (n === 0) return out;
   // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
@@ -405,11 +409,27 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
   const limit = k * sigma;
   let rej = 0, rs = 0, rss = 0;
   if (sigma > 0 && Number.isFinite(limit)) {
-    for (let j = 0; j < len; j++) {
+    // Centres ascend with j, so |x - med| > limit holds on a prefix (x below med) and a suffix (x above) of the
+    // entries: only those are walked, in ascending order as a walk over all entries would add them (same sums,
+    // bit for bit). Below med |x - med| is med - x exactly (IEEE subtraction is sign-symmetric).
+    // The two boundaries by bisection on those monotone conditions (a few centres computed, not one per entry).
+    let a = 0, b = len;
+    while (a < b) { const m = (a + b) >> 1; if (med - centre(m) > limit) a = m + 1; else b = m; }
+    const lowEnd = a; // entries [0, lowEnd) lie below med - limit
+    b = len;
+    while (a < b) { const m = (a + b) >> 1; if (centre(m) - med > limit) b = m; else a = m + 1; }
+    const top = a; // entries [top, len) lie above med + limit
+    for (let j = 0; j < lowEnd; j++) {
       const c = counts[j];
       if (c === 0) continue;
       const x = centre(j);
-      if (Math.abs(x - med) > limit) { rej += c; rs += c * x; rss += c * x * x; }
+      rej += c; rs += c * x; rss += c * x * x;
+    }
+    for (let i = top; i < len; i++) {
+      const c = counts[i];
+      if (c === 0) continue;
+      const x = centre(i);
+      rej += c; rs += c * x; rss += c * x * x;
     }
   }
   out.rejected = rej;
