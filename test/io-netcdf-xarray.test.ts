@@ -117,3 +117,44 @@ describe.skipIf(!py.python)(`variables in a group${py.python ? '' : ` (skipped: 
     expect(t).toEqual([0, 0, 1, 1, 2, 2, 3, 3].map((k) => 1778321263 + k)); // whole seconds: exact
   });
 });
+
+describe.skipIf(!py.python)(`time stored as 32-bit floats${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  // python3-netcdf4 writes 4 rays x 2 gates with a float32 time; REF is the reference date's Unix seconds.
+  const write = (file: string, units: string, values: number[]) => {
+    const code = [
+      'import sys, json, numpy as np, netCDF4',
+      'with netCDF4.Dataset(sys.argv[1], "w") as d:',
+      '  d.createDimension("time", None); d.createDimension("range", 2)',
+      '  t = d.createVariable("time", "f4", ("time",)); t.units = sys.argv[2]; t[:] = np.array(json.loads(sys.argv[3]), dtype="f4")',
+      '  r = d.createVariable("range", "f8", ("range",)); r.units = "m"; r[:] = [500.0, 515.0]',
+      '  for n in ("azimuth", "elevation"):',
+      '    a = d.createVariable(n, "f8", ("time",)); a.units = "degree"; a[:] = np.zeros(4)',
+      '  v = d.createVariable("radial_velocity", "f4", ("time", "range")); v.units = "m s-1"; v[:] = np.zeros((4, 2))',
+      '  print(json.dumps([float(x) for x in t[:]]))',
+    ].join('\n');
+    const r = spawnSync(py.python!, ['-c', code, file, units, JSON.stringify(values)], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    return JSON.parse(r.stdout) as number[];
+  };
+  const o = { instrumentIndex: new Map([['L1', 0]]), owner: 0, columns: {}, sign: 'away' as const };
+
+  it('seconds since 1970 in single precision: refused naming the variable and the resolution (128 s)', async () => {
+    // Regression: 2387 rays a second apart collapsed onto 10 stamps and the run went on. By hand: 1.78e9 lies in
+    // [2^30, 2^31), where binary32 values are 2^(30 - 23) = 128 apart.
+    const file = join(tmp, 'time32.nc');
+    write(file, 'seconds since 1970-01-01', [1778321263.6, 1778321264.1, 1778321264.6, 1778321265.1]);
+    const err = await checkSamples(file, o).then(() => null, (e: unknown) => e);
+    expect(err).toBeInstanceOf(InputError);
+    expect((err as Error).message).toMatch(/time32\.nc: variable "time": stored as 32-bit floats, which resolve only 128 s at these times/);
+  });
+
+  it('seconds since a reference near the data in single precision: read, to the float32 values', async () => {
+    const file = join(tmp, 'time32near.nc');
+    // Values below 64 s: binary32 spacing 2^(5 - 23) = 3.8e-6 s, well under the 1 s limit.
+    const stored = write(file, 'seconds since 2026-05-09 10:07:43', [0.6, 1.1, 1.6, 2.1]);
+    const t: number[] = [];
+    for await (const { batch: b } of openSamples(file, o)) for (let i = 0; i < b.length; i += 2) t.push(b.time[i]);
+    // 2026-05-09T10:07:43Z = 1778321263 Unix s (by hand); python's float32 values plus it: exact to 1e-6 s.
+    t.forEach((x, k) => expect(Math.abs(x - (1778321263 + stored[k]))).toBeLessThan(1e-6));
+  });
+});

@@ -167,6 +167,23 @@ function resolveVariable(f: H5File, file: string, role: (typeof ROLES)[number], 
 const dims = (v: NcVariable) => (v.shape.length ? `[${v.shape.join(' x ')}]` : 'a scalar');
 
 /**
+ * Seconds between neighbouring values a 32-bit float time can hold at the file's own times (its first and last ray):
+ * 2^(floor(log2 |stored|) - 23) stored units (IEEE 754 binary32: 24-bit significand). Time in single precision as
+ * seconds since 1970 resolves 128 s, so rays a second apart collapse onto a few stamps; 0 for other types.
+ */
+function float32TimeStep(t: NcVariable, rays: number): number {
+  const m = t.ds.metadata;
+  if (m.type !== 1 || m.size !== 4 || rays === 0) return 0;
+  let big = 0;
+  for (const i of [0, rays - 1]) {
+    let v = NaN;
+    try { v = Number((t.ds.slice([[i, i + 1]]) as ArrayLike<number> | null)?.[0]); } catch { /* unreadable here: the reader says so */ }
+    if (Number.isFinite(v) && !t.fills.includes(v)) big = Math.max(big, Math.abs(v));
+  }
+  return big > 0 ? 2 ** (Math.floor(Math.log2(big)) - 23) * Math.abs(t.scale) : 0;
+}
+
+/**
  * Resolves the layout of an open file.
  * @throws InputError(file, undefined, 'variable "x": ...') for a missing variable, wrong dimensions or unknown units.
  */
@@ -185,6 +202,10 @@ export function resolveNetcdf(f: H5File, file: string, columns: ColumnMap, sign:
       throw new InputError(file, undefined, `variable "${v.name}": must be on (time, range), but its first dimension has ${rays} and its second ${gates}, the length of "${time!.name}": stored as (range, time)?`);
     }
     onRays(time!, false);
+    // Time that cannot tell rays apart would put them in the wrong windows without a trace: refuse it (1 s: rays
+    // come a fraction of a second to a few seconds apart; windows are minutes long).
+    const step = float32TimeStep(time!, rays);
+    if (step > 1) throw new InputError(file, undefined, `variable "${time!.name}": stored as 32-bit floats, which resolve only ${step >= 10 ? Math.round(step) : step.toPrecision(2)} s at these times; store it as double (or with a reference date near the data)`);
     onRays(azimuth!, true);
     onRays(elevation!, true);
     const r = range!;
