@@ -73,4 +73,34 @@ describe.skipIf(!py.python)(`held-back NetCDF files written by python3-netcdf4 a
     expect(gz.manifest.samples.perInstrument.back).toEqual(csvRun.manifest.samples.perInstrument.back);
     expect(gz.manifest.samples.perInstrument.east).toEqual(csvRun.manifest.samples.perInstrument.east);
   });
+
+  it('a file with no rays, and one whose every sample is masked: one line in NetCDF terms (rays, variable, ray, gate)', async () => {
+    // Regression: the messages spoke of "a header and no data lines" and of "line NaN".
+    const code = [
+      'import sys, numpy as np, netCDF4',
+      'for path, n in ((sys.argv[1], 0), (sys.argv[2], 4)):',
+      '  with netCDF4.Dataset(path, "w") as d:',
+      '    d.createDimension("time", None); d.createDimension("range", 3)',
+      '    t = d.createVariable("time", "f8", ("time",)); t.units = "seconds since 2026-05-09 10:07:43"; t[:] = np.arange(n, dtype="f8")',
+      '    r = d.createVariable("range", "f8", ("range",)); r.units = "m"; r[:] = [500.0, 515.0, 530.0]',
+      '    for a in ("azimuth", "elevation"):',
+      '      x = d.createVariable(a, "f8", ("time",)); x.units = "degree"; x[:] = np.zeros(n)',
+      '    v = d.createVariable("radial_velocity", "f4", ("time", "range"), fill_value=-999.0); v.units = "m s-1"',
+      '    if n: v[:] = np.ma.masked_all((n, 3))',
+    ].join('\n');
+    const empty = join(dir, 'data', 'empty.nc'), masked = join(dir, 'data', 'masked.nc');
+    const r = spawnSync(py.python!, ['-c', code, empty, masked], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    for (const [f, re] of [
+      [empty, /empty\.nc: no usable rows: the file has no rays \(its time dimension is empty\)/],
+      [masked, /masked\.nc: no usable samples: none of its 12 samples could be read \(missing_value 12; the first, variable "radial_velocity" at ray 0, gate 0: radial velocity: missing value -999\)/],
+    ] as const) {
+      const c = loadCampaignFile(join(dir, 'campaign-nc.yaml'));
+      c.instruments[0].files = [f];
+      const err = await runCampaign(c, { outRoot: join(dir, 'out-bad'), images: false }).then(() => null, (e: unknown) => e);
+      expect((err as Error).message).toMatch(re);
+      expect((err as Error).message).not.toContain('\n');
+    }
+  });
 });
+

@@ -16,7 +16,7 @@ import { relative } from 'node:path';
 import { plausibilityWarnings } from '../campaign/plausibility.ts';
 import type { Campaign, Instrument } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
-import { checkSamples, openSamples } from '../io/sampleSource.ts';
+import { checkSamples, openSamples, sampleFormat } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
@@ -110,7 +110,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         ordered.push(
           checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() }).then(
             (h) => {
-              if (!h.hasDataLine) return new InputError(file, undefined, 'no usable rows: the file has a header and no data lines');
+              if (!h.hasDataLine) return new InputError(file, undefined, sampleFormat(file) === 'netcdf' ? 'no usable rows: the file has no rays (its time dimension is empty)' : 'no usable rows: the file has a header and no data lines');
               const size = statSync(file).size;
               return h.bytesPerLine > 0 ? size / h.bytesPerLine : 0; // estimated rows
             },
