@@ -11,7 +11,7 @@ import { readSeries, type Series } from '../src/io/series.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { windowsFromFile, windowsFromItems } from '../src/windows/list.ts';
 import { fixedPlan, tablePlan, type WindowDef, type WindowPlan } from '../src/windows/plan.ts';
-import { segmentWindows } from '../src/windows/segments.ts';
+import { defaultSegmentGap, segmentWindows } from '../src/windows/segments.ts';
 
 function lookup(plan: WindowPlan, t: number): { ids: number[]; range: [number, number] } {
   const out = new Int32Array(plan.maxOverlap);
@@ -167,6 +167,36 @@ describe('segment windows: rows without values (a logger dropout) are skipped, n
     expect(summary.excluded_s.gap).toBe(100 + 20);
     const excluded = Object.values(summary.excluded_s).reduce((a, b) => a + b, 0);
     expect(summary.windows_s + excluded).toBe(400);
+  });
+});
+
+describe('the default gap of segment windows follows the series rate', () => {
+  // One row a minute from a logger whose clock jitters by up to 0.5 s (intervals 59.5 .. 60.5 s), offset 0 all along,
+  // and one missing row (a 120 s interval) at row 30, and two missing rows (180 s) at row 60.
+  const T: number[] = [];
+  for (let i = 0, t = 0; i < 90; i++) {
+    if (i === 30 || i === 60 || i === 61) { t += 60; continue; }
+    T.push(t + (i % 2 ? 0.5 : -0.5) * ((i % 3) / 2));
+    t += 60;
+  }
+  const series: Series = { file: 'turbine.csv', time: Float64Array.from(T), values: { yaw_deg: Float64Array.from(T, () => 270) } };
+  it('2.5 times the median interval, at least 60 s: jitter and one missing row are no gap, two are', () => {
+    // Median of the intervals: 60 s to within the jitter (most intervals are 59.5 .. 60.5 s): 2.5 x 60 = 150 s +- 1.25 s.
+    const g = defaultSegmentGap(series);
+    expect(Math.abs(g - 150)).toBeLessThanOrEqual(1.25);
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: g, settle_s: 0 });
+    // One cut only, at the two missing rows (the 180 s interval from row 59 to row 62).
+    expect(windows).toHaveLength(2);
+    // Rows i = 59 and 62 are T[58] and T[59] (row 30 is missing before them): their interval, about 180 s, is the gap.
+    expect(Math.abs(T[59] - T[58] - 180)).toBeLessThanOrEqual(1);
+    expect(summary.excluded_s.gap).toBe(T[59] - T[58]);
+    // With the old fixed default of 60 s, every interval a little over 60 s was a gap.
+    const old = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: 60, settle_s: 0 });
+    // (each interval of 60.25 or 60.5 s counted whole: more than ten of them here)
+    expect(old.summary.excluded_s.gap).toBeGreaterThan(10 * 60);
+  });
+  it('a series of one row or none falls back to 60 s', () => {
+    expect(defaultSegmentGap({ file: 'x', time: Float64Array.of(5), values: {} })).toBe(60);
   });
 });
 

@@ -42,7 +42,26 @@ export interface SegmentSettings {
 export const EXCLUSION_REASONS = ['transition', 'wind_sector', 'power', 'gap', 'settle', 'short', 'remainder'] as const;
 export type ExclusionReason = (typeof EXCLUSION_REASONS)[number];
 
+/**
+ * The gap between series rows beyond which the state is unknown, when the campaign does not give one: 2.5 times the
+ * median interval between consecutive rows, at least 60 s. So one missing row (twice the interval) or a logger clock
+ * that jitters around its rate is not a gap, while two missing rows (three intervals) are; a series of one row a
+ * minute is not cut at every interval a little over 60 s. A choice of ours, not a published rule.
+ */
+export function defaultSegmentGap(series: Series): number {
+  const T = series.time;
+  const d: number[] = [];
+  for (let i = 1; i < T.length; i++) if (T[i] > T[i - 1]) d.push(T[i] - T[i - 1]);
+  if (d.length === 0) return 60;
+  d.sort((a, b) => a - b);
+  const m = d.length >> 1;
+  const median = d.length % 2 ? d[m] : (d[m - 1] + d[m]) / 2;
+  return Math.max(60, 2.5 * median);
+}
+
 export interface SegmentSummary {
+  /** Rows further apart than this were a gap, seconds (the campaign's maxGap_s or defaultSegmentGap). */
+  maxGap_s: number;
   /** Series time span considered, seconds. */
   total_s: number;
   /** Time inside windows, seconds. */
@@ -71,7 +90,7 @@ export function segmentWindows(
   const T = series.time;
   const N = T.length;
   const excluded = Object.fromEntries(EXCLUSION_REASONS.map((r) => [r, 0])) as Record<ExclusionReason, number>;
-  const summary: SegmentSummary = { total_s: 0, windows_s: 0, excluded_s: excluded, spans: 0, windows: 0 };
+  const summary: SegmentSummary = { maxGap_s: s.maxGap_s, total_s: 0, windows_s: 0, excluded_s: excluded, spans: 0, windows: 0 };
   const windows: Omit<WindowDef, 'id'>[] = [];
   if (N === 0) return { windows, summary };
   const yaw = series.values.yaw_deg, wd = series.values.wind_direction_deg, pw = series.values.power_kw;
