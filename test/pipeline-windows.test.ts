@@ -120,6 +120,15 @@ describe('listed windows and condition bins', () => {
     expect(readCsv(join(runDir, 'wake', 'wake_table.csv'))).toHaveLength(6);
   });
 
+  it('ensembles of overlapping windows carry a warning that samples count more than once', async () => {
+    // Windows of 600 s every 200 s: each sample is in 3 windows, so an ensemble of them counts it 3 times.
+    const c = loadCampaignFile(file);
+    c.windows = { kind: 'fixed', length_s: 600, step_s: 200, anchor: 'first-sample' };
+    c.conditions = { bins: [{ variable: 'yaw_offset_deg', edges: [-20, 20] }], minWindows: 1 };
+    const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out-ovl'), images: false, stages: defaultStages() });
+    expect(manifest.warnings.join(' ')).toMatch(/condition bins pool overlapping windows: a sample in k windows of a bin counts k times/);
+  });
+
   it('conditions that select no window: a ConfigError naming the key, and no result folder', async () => {
     const c = loadCampaignFile(file);
     c.conditions = { bins: [{ variable: 'yaw_offset_deg', edges: [30, 40] }], minWindows: 1 };
