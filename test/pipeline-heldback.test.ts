@@ -75,9 +75,12 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
     await checkSegments(dir, 'out', spans, gap_s);
   });
 
-  it('the same with the wind from 1.5 degrees: nacelle and direction values wrap through north (shorter steps)', async () => {
+  it('the same with the wind from 1.5 degrees (values wrap through north) and a direction series of 10-minute means', async () => {
+    // Two regressions at once, from one generated case: nacelle and direction values on both sides of north; and a
+    // met mast's 10-minute means, where a row's direction was looked up within maxGap_s (60 s) only, so 5 of 6 rows
+    // had none and no window was found (the script pairs each row with the nearest direction row, as the README says).
     const d2 = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-north-'));
-    const r = spawnSync(py.python!, ['test/reference/heldback_steering.py', d2, '--direction', '1.5', '--minutes-scale', '0.6'], { encoding: 'utf8' });
+    const r = spawnSync(py.python!, ['test/reference/heldback_steering.py', d2, '--direction', '1.5', '--direction-every', '600', '--minutes-scale', '0.6'], { encoding: 'utf8' });
     expect(r.status, r.stderr).toBe(0);
     const e = JSON.parse(readFileSync(join(d2, 'expected.json'), 'utf8')) as { spans: Span[]; gap_s: number };
     // Steps of 10.2 .. 18.6 minutes: step 3's pieces around the 4-minute gap are shorter than 300 s after settling.

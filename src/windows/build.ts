@@ -9,7 +9,7 @@ import { parseTime } from '../io/time.ts';
 import { directionAt } from './direction.ts';
 import { windowsFromFile, windowsFromItems } from './list.ts';
 import { fixedPlan, recordPlan, tablePlan, type WindowPlan } from './plan.ts';
-import { defaultSegmentGap, segmentWindows, type SegmentSummary } from './segments.ts';
+import { defaultSegmentGap, medianInterval, segmentWindows, type SegmentSummary } from './segments.ts';
 
 export interface WindowPlanInputs {
   /** Time of the earliest sample of the run, Unix seconds (for the "first-sample" anchor). */
@@ -50,7 +50,11 @@ export function buildWindowPlan(c: Campaign, inputs: WindowPlanInputs): BuiltWin
       const ts = inputs.turbineSeries;
       if (!ts) throw new ConfigError(c.sourceFile, 'windows', 'segment windows need the turbine series (turbine.series with yaw_deg)');
       const maxGap_s = w.maxGap_s ?? defaultSegmentGap(ts);
-      const { windows, summary } = segmentWindows(ts, (t) => directionAt(c, inputs.directionSeries, t, maxGap_s), {
+      // A row's wind direction: the nearest direction row, within maxGap_s or the direction series' own median
+      // interval, whichever is longer (a 10-minute mean stands for its period: with one row every 600 s, the nearest
+      // is at most 300 s away, one missing row makes it 600 s).
+      const reach = Math.max(maxGap_s, inputs.directionSeries ? medianInterval(inputs.directionSeries) : 0);
+      const { windows, summary } = segmentWindows(ts, (t) => directionAt(c, inputs.directionSeries, t, reach), {
         levels_deg: w.levels_deg, tolerance_deg: w.tolerance_deg, minDuration_s: w.minDuration_s, maxGap_s,
         settle_s: w.settle_s, windSector_deg: w.windSector_deg, power_kw: w.power_kw, subWindow_s: w.subWindow_s,
       });

@@ -49,14 +49,19 @@ export type ExclusionReason = (typeof EXCLUSION_REASONS)[number];
  * minute is not cut at every interval a little over 60 s. A choice of ours, not a published rule.
  */
 export function defaultSegmentGap(series: Series): number {
+  const median = medianInterval(series);
+  return median > 0 ? Math.max(60, 2.5 * median) : 60;
+}
+
+/** Median interval between consecutive rows of a series (ascending times), seconds; 0 with fewer than two. */
+export function medianInterval(series: Series): number {
   const T = series.time;
   const d: number[] = [];
   for (let i = 1; i < T.length; i++) if (T[i] > T[i - 1]) d.push(T[i] - T[i - 1]);
-  if (d.length === 0) return 60;
+  if (d.length === 0) return 0;
   d.sort((a, b) => a - b);
   const m = d.length >> 1;
-  const median = d.length % 2 ? d[m] : (d[m - 1] + d[m]) / 2;
-  return Math.max(60, 2.5 * median);
+  return d.length % 2 ? d[m] : (d[m - 1] + d[m]) / 2;
 }
 
 export interface SegmentSummary {

@@ -1,6 +1,6 @@
 """A wake-steering campaign written without wakeplane's code (numpy only), as a reviewer's held-back case.
 
-Usage: python3 test/reference/heldback_steering.py OUTDIR [--minutes-scale S] [--direction D]
+Usage: python3 test/reference/heldback_steering.py OUTDIR [--minutes-scale S] [--direction D] [--direction-every S]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
 Invented site: one turbine at the origin (hub 100 m, rotor 120 m), wind from exactly D degrees (default 270, so
@@ -19,7 +19,7 @@ the time the air left the rotor: yc(t) = 2 * gamma(t - 600 / U). The hub speed c
 Turbine series: its own clock, one row every 7 s at 3.3 s past a whole 7 s from the schedule start (no row on a
 step boundary); nacelle = 270 + gamma(t) + N(0, 0.5) deg; power_kw = 2000 (U / 10)^3 cos^2(gamma); a 4-minute gap
 (rows missing) in the middle of step 3. Direction series: one row every 60 s at 30 s past the minute, 270 + N(0,
-0.3) deg.
+0.3) deg (with --direction-every S, one row every S seconds instead, as a met mast's 10-minute means).
 
 Instruments: three lidars, each steering its beam along its own Lissajous path over the plane (so every row has
 its own azimuth, elevation and range), one sample per row at irregular times (gaps uniform in [0.6, 1.4] / 4 s);
@@ -39,6 +39,7 @@ import numpy as np
 out = sys.argv[1]
 scale = float(sys.argv[sys.argv.index("--minutes-scale") + 1]) if "--minutes-scale" in sys.argv else 1.0
 WD = float(sys.argv[sys.argv.index("--direction") + 1]) if "--direction" in sys.argv else 270.0
+DIR_EVERY = int(sys.argv[sys.argv.index("--direction-every") + 1]) if "--direction-every" in sys.argv else 60
 # Rotor frame of the true wind: x downstream (towards azimuth WD + 180), y to its left, z up; site = x d + y l.
 DE, DN = math.sin(math.radians(WD + 180)), math.cos(math.radians(WD + 180))
 LE, LN = -DN, DE
@@ -119,8 +120,10 @@ with open(os.path.join(out, "data", "wind_direction.csv"), "w") as f:
     f.write("time,direction_deg\n")
     t = math.floor((T0 - 120) / 60) * 60 + 30
     while t < END + 120:
-        direction.append((t, round((WD + rng.normal(0, 0.3)) % 360.0, 2)))
-        f.write(f"{int(t)},{direction[-1][1]:.2f}\n")
+        d = round((WD + rng.normal(0, 0.3)) % 360.0, 2)  # drawn every minute whatever is written (same stream)
+        if (t - 30) % DIR_EVERY == 0 or t + 60 >= END + 120:
+            direction.append((t, d))
+            f.write(f"{int(t)},{d:.2f}\n")
         t += 60
 
 # Expected segment spans (the README's rule): rows whose offset is within TOL of a level, grouped by level without
@@ -133,6 +136,17 @@ cur = None
 prev_t = None
 dir_t = np.array([d[0] for d in direction])
 dir_v = np.array([d[1] for d in direction])
+
+
+def window_direction(a, b):
+    """README: the vector mean of the direction rows in [a, b); with none, the nearest row within one window length."""
+    inside = dir_v[(dir_t >= a) & (dir_t < b)]
+    if inside.size:
+        return circmean(inside)
+    k = int(np.argmin(abs(dir_t - 0.5 * (a + b))))
+    return float(dir_v[k]) if abs(dir_t[k] - 0.5 * (a + b)) <= b - a else float("nan")
+
+
 for t, y, p, U in rows:
     if y is None:
         continue
@@ -159,7 +173,7 @@ for s in spans:
     s["power_kw"] = float(np.mean([p for i, (t, y, p, U) in enumerate(rows) if s["start_s"] <= t < s["end_s"] and i != drop + 2]))
     # the window's wind direction: vector mean of the direction rows inside it; its nacelle: vector mean of the yaw
     # rows; the yaw offset their difference (README conventions)
-    wd = circmean(dir_v[(dir_t >= s["start_s"]) & (dir_t < s["end_s"])])
+    wd = window_direction(s["start_s"], s["end_s"])
     s["direction_deg"] = wd
     s["yaw_offset_deg"] = wrap180(circmean([y for t, y, p, U in rows if y is not None and s["start_s"] <= t < s["end_s"]]) - wd)
     # The wake centre as the window's rotor frame sees it: that frame is the true one turned by d = wd - WD
@@ -224,7 +238,7 @@ with open(os.path.join(out, "data", "log.csv"), "w") as f:
         else:
             f.write(f"{a:.1f},{b:.1f},\"{label}\"\n")
         log.append({"start_s": a, "end_s": b, "label": label, "yc_m": 2.0 * LEVELS[k],
-                    "direction_deg": circmean(dir_v[(dir_t >= a) & (dir_t < b)]), "true_direction_deg": WD})
+                    "direction_deg": window_direction(a, b), "true_direction_deg": WD})
 valid_t = [t for t, y, p, U in rows if y is not None]
 gap_s = float(sum(b - a for a, b in zip(valid_t, valid_t[1:]) if b - a > MAXGAP))
 with open(os.path.join(out, "expected.json"), "w") as f:
