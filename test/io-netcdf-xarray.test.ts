@@ -158,3 +158,40 @@ describe.skipIf(!py.python)(`time stored as 32-bit floats${py.python ? '' : ` (s
     t.forEach((x, k) => expect(Math.abs(x - (1778321263 + stored[k]))).toBeLessThan(1e-6));
   });
 });
+
+describe.skipIf(!py.python)(`ranges per ray in a variable named like its dimension${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('range(time, range): netCDF-C keeps it as _nc4_non_coord_range; read by its NetCDF name, masked gates rejected', async () => {
+    // Regression: the reader took the data-less dimension "range" instead, and stopped ("no units attribute").
+    const file = join(tmp, 'noncoord.nc');
+    const code = [
+      'import sys, json, numpy as np, netCDF4',
+      'with netCDF4.Dataset(sys.argv[1], "w") as d:',
+      '  d.createDimension("time", None); d.createDimension("range", 3)',
+      '  t = d.createVariable("time", "f8", ("time",)); t.units = "seconds since 2026-05-09 10:00:00"; t[:] = np.arange(4.0)',
+      '  r = d.createVariable("range", "f4", ("time", "range"), fill_value=-1.0); r.units = "km"',
+      '  m = np.zeros((4, 3), bool); m[1, 2] = True; m[3, 0] = True',
+      '  r[:] = np.ma.masked_array(np.tile([0.5, 0.515, 0.53], (4, 1)) + 0.001 * np.arange(4)[:, None], mask=m)',
+      '  for n in ("azimuth", "elevation"):',
+      '    a = d.createVariable(n, "f8", ("time",)); a.units = "degree"; a[:] = np.full(4, 10.0)',
+      '  v = d.createVariable("radial_velocity", "f8", ("time", "range")); v.units = "m s-1"; v[:] = np.arange(12.0).reshape(4, 3)',
+      'with netCDF4.Dataset(sys.argv[1]) as d:',
+      '  print(json.dumps(np.ma.filled(d["range"][:].astype("f8"), np.nan).tolist()))',
+    ].join('\n');
+    const r = spawnSync(py.python!, ['-c', code, file], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    const km = JSON.parse(r.stdout.replace(/NaN/g, 'null')) as (number | null)[][]; // the float32 values netCDF4 reads back
+    const o = { instrumentIndex: new Map([['L1', 0]]), owner: 0, columns: {}, sign: 'away' as const };
+    const got: [number, number, number][] = [];
+    const rejected: RejectedRow[] = [];
+    for await (const { batch: b, rejected: rj } of openSamples(file, o)) {
+      rejected.push(...rj);
+      for (let i = 0; i < b.length; i++) got.push([b.line[i], b.range[i], b.radialVelocity[i]]);
+    }
+    expect(rejected.map((x) => [x.variable, x.ray, x.gate, x.reason])).toEqual([['range', 1, 2, 'missing_value'], ['range', 3, 0, 'missing_value']]);
+    const want: [number, number, number][] = [];
+    km.forEach((row, ray) => row.forEach((x, g) => { if (x !== null) want.push([ray, x * 1000, ray * 3 + g]); }));
+    expect(got.length).toBe(10);
+    // km x 1000 of the same float32 values: equal to 1e-9 m (one rounding of the product)
+    got.forEach((x, k) => { expect(x[0]).toBe(want[k][0]); expect(Math.abs(x[1] - want[k][1])).toBeLessThan(1e-9); expect(x[2]).toBe(want[k][2]); });
+  });
+});

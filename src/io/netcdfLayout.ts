@@ -104,7 +104,7 @@ function attrNumbers(ds: H5Dataset, name: string): number[] | undefined {
 
 /** The root's entries for a message; groups marked, with the path form that reaches their variables. */
 function contents(f: H5File): string {
-  const keys = f.keys();
+  const keys = [...new Set(f.keys().map(ncName))];
   const groups = keys.filter((k) => { try { return (f.get(k) as { type?: string } | null)?.type === 'Group'; } catch { return false; } });
   const list = keys.map((k) => (groups.includes(k) ? `${k}/ (a group)` : k)).join(', ');
   return groups.length ? `${list}; variables in a group are named by path, e.g. "${groups[0]}/time"` : list;
@@ -114,12 +114,30 @@ function isDataset(e: unknown): e is H5Dataset {
   return !!e && (e as { type?: string }).type === 'Dataset';
 }
 
+/**
+ * netCDF-C stores a variable that has a dimension's name without being its coordinate (range(time, range): ranges
+ * per ray on a dimension also called range) as the HDF5 dataset "_nc4_non_coord_<name>", and the dimension itself as
+ * a data-less dataset "<name>". Paths are mapped back to the NetCDF names, and such a variable wins over the
+ * dimension of its name.
+ */
+const NON_COORD = '_nc4_non_coord_';
+const ncName = (path: string) => path.replace(/^\//, '').replace(new RegExp(`(^|/)${NON_COORD}`), '$1');
+const nonCoordPath = (name: string) => name.replace(/(^|\/)([^/]*)$/, `$1${NON_COORD}$2`);
+
+function getDataset(f: H5File, path: string): H5Dataset | null {
+  for (const p of [nonCoordPath(path), path]) {
+    let e: unknown;
+    try { e = f.get(p); } catch { e = null; }
+    if (isDataset(e)) return e;
+  }
+  return null;
+}
+
 function find(f: H5File, file: string, key: string, ref: ColumnMap[keyof ColumnMap], names: readonly string[], standard: readonly string[]): H5Dataset | null {
   const mapped = ref === undefined ? undefined : typeof ref === 'string' ? ref : ref.name;
   if (mapped !== undefined) {
-    let e: unknown;
-    try { e = f.get(mapped); } catch { e = null; }
-    if (!isDataset(e)) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${contents(f)}`);
+    const e = getDataset(f, mapped);
+    if (!e) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${contents(f)}`);
     return e;
   }
   const datasets: H5Dataset[] = [];
@@ -131,13 +149,17 @@ function find(f: H5File, file: string, key: string, ref: ColumnMap[keyof ColumnM
     const hit = datasets.find((d) => standard.includes(attrText(d, 'standard_name') ?? ''));
     if (hit) return hit;
   }
-  return datasets.find((d) => names.includes(d.path.replace(/^\//, ''))) ?? null;
+  for (const n of names) {
+    const hit = getDataset(f, n);
+    if (hit) return hit;
+  }
+  return null;
 }
 
 function resolveVariable(f: H5File, file: string, role: (typeof ROLES)[number], columns: ColumnMap, optional: boolean): NcVariable | null {
   const ref = columns[role.key];
   const ds = find(f, file, role.key, ref, role.names, role.standard);
-  const name0 = ds?.path.replace(/^\//, '') ?? role.names[0];
+  const name0 = ds ? ncName(ds.path) : role.names[0];
   if (!ds) {
     if (optional) return null;
     throw new InputError(file, undefined, `variable "${name0}" for ${role.key} not found (set instruments[].columns.${role.key} to its name); the file has: ${contents(f)}`);
