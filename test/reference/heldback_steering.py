@@ -5,8 +5,8 @@ Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and
 
 Invented site: one turbine at the origin (hub 100 m, rotor 120 m), wind from exactly D degrees (default 270, so
 the rotor frame is x = east, y = north, z = up; the site is turned with D: instruments stand at the same rotor-frame
-places, and with D near 0 every direction and nacelle value wraps through north). One cross plane at x = 600 m (5 D), y in [-180, 180] m, z in [10, 190] m,
-cells 30 m x 30 m, slab 30 m thick.
+places, and with D near 0 every direction and nacelle value wraps through north). One cross plane at x = 600 m
+(5 D), y in [-180, 180] m, z in [10, 190] m, cells 30 m x 30 m, slab 30 m thick.
 
 Yaw schedule: steps of 17, 23, 31, 19 and 29 minutes (times the scale) starting at 2026-05-09T10:07:43.6Z (aligned
 to nothing), yaw offsets 0, +20, -15, +10, 0 degrees; the nacelle turns between steps in a linear ramp of 40 s.
@@ -17,17 +17,19 @@ with the wake centre yc = 2 m per degree of yaw offset (positive offset: wake to
 the time the air left the rotor: yc(t) = 2 * gamma(t - 600 / U). The hub speed changes at the step boundaries.
 
 Turbine series: its own clock, one row every 7 s at 3.3 s past a whole 7 s from the schedule start (no row on a
-step boundary); nacelle = 270 + gamma(t) + N(0, 0.5) deg; power_kw = 2000 (U / 10)^3 cos^2(gamma); a 4-minute gap
-(rows missing) in the middle of step 3. Direction series: one row every 60 s at 30 s past the minute, 270 + N(0,
-0.3) deg (with --direction-every S, one row every S seconds instead, as a met mast's 10-minute means).
+step boundary); nacelle = D + gamma(t) + N(0, 0.5) deg; power_kw = 2000 (U / 10)^3 cos^2(gamma); a 4-minute gap
+(rows missing) in the middle of step 3; a logger dropout 40 % into step 2 (an empty yaw cell, then NaN, then a
+power of nan). Direction series: one row every 60 s at 30 s past the minute, D + N(0, 0.3) deg (with --direction-every S, one row every S seconds instead, as a met mast's 10-minute means).
 
 Instruments: three lidars, each steering its beam along its own Lissajous path over the plane (so every row has
 its own azimuth, elevation and range), one sample per row at irregular times (gaps uniform in [0.6, 1.4] / 4 s);
 radial velocity = wind along the beam (positive away) + N(0, 0.1) m/s; CNR -10 dB.
 
-expected.json holds, computed here from the rows written: for each step the first and the last series row at its
-level (the README's segment rule: a span runs from the first to the last row of one state; rows in a ramp whose
-offset is more than the tolerance from every level are transitions), the level and the wake centre yc.
+expected.json holds, computed here from the rows written: the segment spans by the README's rule (a span runs from
+the first to the last row of one state, less the settle time; rows in a ramp whose offset is more than the
+tolerance from every level are transitions; rows without a yaw are skipped; rows more than maxGap_s apart are a
+gap), with each span's level, step, window means of yaw offset, direction and power, and the wake centre as the
+window's rotor frame sees it; the gap seconds; and the experimenter's log (data/log.csv) with its windows.
 """
 import json
 import math
