@@ -113,7 +113,7 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
     c.conditions = { bins: [
       { variable: 'yaw_offset_deg', edges: yawEdges }, { variable: 'hub_speed_ms', edges: speedEdges }, { variable: 'turbine.power_kw', edges: powerEdges },
     ], minWindows: 1 };
-    const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out-bins'), images: false, stages: defaultStages() });
+    const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, 'out-bins'), images: false, stages: defaultStages() });
     // Expected bin of each span from the script's step level, true hub speed (7.2 .. 9.4 m/s, at least 0.3 m/s from
     // an edge: the inflow fit is within 0.05 m/s of it here) and window-mean power; bins in row-major order.
     const idx = (edges: number[], v: number) => edges.findIndex((e, i) => v >= e && v < edges[i + 1]);
@@ -127,6 +127,15 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
     for (const b of bins) {
       expect(b.windows, b.label).toEqual(expected.get(b.bin) ?? []);
       expect(b.empty).toBe(!expected.has(b.bin));
+    }
+    // Each ensemble row says why it exists: its condition, and the state level its segment windows share (they are
+    // binned by yaw offset here, so every bin holds one level; before, the level column was empty for ensembles).
+    const ens = readCsv(join(runDir, 'wake', 'ensembles.csv'));
+    expect(ens.map((r) => r.bin)).toEqual([...expected.keys()].sort((a, b) => a - b).map(String));
+    for (const r of ens) {
+      expect(r.window_kind).toBe('ensemble');
+      expect(r.window_label).toBe(bins.find((b) => String(b.bin) === r.bin)!.label);
+      expect(Number(r.state_level_deg)).toBe(spans[expected.get(Number(r.bin))![0]].level);
     }
     // The yaw offsets 25 .. 35 are never set: those four bins are reported empty, not dropped.
     expect(bins.filter((b) => b.label.startsWith('yaw_offset_deg in [25, 35)')).every((b) => b.empty)).toBe(true);

@@ -66,6 +66,8 @@ export interface BinInfo {
 interface BinState {
   stats: CellStats;
   members: [number, number][];
+  /** The members' state levels (segment windows; NaN for other kinds). */
+  levels: number[];
   sin: number;
   cos: number;
 }
@@ -160,7 +162,7 @@ export class Ensembles {
   }
 
   /** Add a finished window's kept-sample statistics to its bin. */
-  add(window: number, w: { start_s: number; end_s: number; direction_deg: number }, stats: CellStats, values: number[]): number {
+  add(window: number, w: { start_s: number; end_s: number; direction_deg: number; def?: { level: number } }, stats: CellStats, values: number[]): number {
     const bin = this.binOf(values);
     if (bin < 0) {
       this.outside.push({ window, values: Object.fromEntries(this.specs.map((b, k) => [b.variable, values[k]])) });
@@ -168,11 +170,12 @@ export class Ensembles {
     }
     let st = this.state.get(bin);
     if (!st) {
-      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], sin: 0, cos: 0 };
+      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], levels: [], sin: 0, cos: 0 };
       this.state.set(bin, st);
     }
     mergeCellStats(st.stats, stats);
     st.members.push([w.start_s, w.end_s]);
+    st.levels.push(w.def?.level ?? NaN);
     const D = (w.direction_deg * Math.PI) / 180;
     if (Number.isFinite(D)) { st.sin += Math.sin(D); st.cos += Math.cos(D); }
     this.windowsOf.set(bin, [...(this.windowsOf.get(bin) ?? []), window]);
@@ -200,8 +203,11 @@ export class Ensembles {
       if (!st || bin.windows.length < minWindows) continue;
       const members = [...st.members].sort((a, b) => a[0] - b[0]);
       const dir = ((Math.atan2(st.sin, st.cos) * 180) / Math.PI + 360) % 360;
+      // The state level, when every member window has the same one (a bin of segment windows of one level).
+      const level = st.levels.every((l) => l === st.levels[0]) && Number.isFinite(st.levels[0]) ? st.levels[0] : undefined;
       const info: WindowInfo = {
         index: bin.index, start_s: members[0][0], end_s: Math.max(...members.map((m) => m[1])), kind: 'ensemble', label: bin.label, members,
+        ...(level !== undefined ? { level } : {}),
       };
       out.push({ bin, fields: retrieveStats(st.stats, planes, info, dir, settings) });
     }
