@@ -15,7 +15,7 @@ import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { readCsv } from './helpers/csvTable.ts';
-import { debianPython } from './helpers/python.ts';
+import { debianPython, hasCommand } from './helpers/python.ts';
 
 interface Span { level: number; start_s: number; end_s: number; step: number; yc_frame_m: number; yaw_offset_deg: number; power_kw: number; direction_deg: number; speed_ms: number }
 interface Logged { start_s: number; end_s: number; label: string; yc_m: number; direction_deg: number }
@@ -108,7 +108,6 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
 
   it('condition bins on yaw offset, hub speed and a turbine-series column: members as the script\'s values say, empty bins listed', async () => {
     const c = loadCampaignFile(join(dir, 'campaign.yaml'));
-    c.output.netcdf = false;
     const yawEdges = [-25, -5, 5, 15, 25, 35], speedEdges = [7, 8.3, 10], powerEdges = [0, 1000, 2000];
     c.conditions = { bins: [
       { variable: 'yaw_offset_deg', edges: yawEdges }, { variable: 'hub_speed_ms', edges: speedEdges }, { variable: 'turbine.power_kw', edges: powerEdges },
@@ -136,6 +135,12 @@ describe.skipIf(!py.python)(`held-back yaw steps at arbitrary clock times${py.py
       expect(r.window_kind).toBe('ensemble');
       expect(r.window_label).toBe(bins.find((b) => String(b.bin) === r.bin)!.label);
       expect(Number(r.state_level_deg)).toBe(spans[expected.get(Number(r.bin))![0]].level);
+    }
+    // The bins' NetCDF file says what each bin is (bin_label; before, only bin numbers), read by Debian's ncdump.
+    if (hasCommand('ncdump')) {
+      const out = spawnSync('ncdump', ['-v', 'bin_label', join(runDir, 'fields', 'x5_bins.nc')], { encoding: 'utf8' }).stdout;
+      const labels = [...out.slice(out.indexOf('bin_label =')).matchAll(/"([^"]*)"/g)].map((m) => m[1]);
+      expect(labels).toEqual(bins.filter((b) => !b.empty).map((b) => b.label));
     }
     // The yaw offsets 25 .. 35 are never set: those four bins are reported empty, not dropped.
     expect(bins.filter((b) => b.label.startsWith('yaw_offset_deg in [25, 35)')).every((b) => b.empty)).toBe(true);
