@@ -47,14 +47,16 @@ async function open(path: string, opts: SampleReaderOptions): Promise<{ f: H5Fil
 type Opened = Awaited<ReturnType<typeof open>>;
 
 /**
- * Files checkNetcdf opened, left open for the reading that follows (at most keepChecked of them, by file, owner,
- * column names and sign). Only the reader thread keeps them (keepCheckedFiles): a run checks every file before its
- * ingest reads them, and opening a file (its metadata) is a few tens of milliseconds each time.
+ * Files checkNetcdf opened, left open for the reading that follows (by file, owner, column names and sign): the
+ * first file checked of each instrument (the one its ingest starts with; later ones would be held open for long),
+ * at most keepChecked of them. Only the reader thread keeps them (keepCheckedFiles): a run checks every file before
+ * its ingest reads them, and opening a file (its metadata) is a few tens of milliseconds each time.
  */
 const kept = new Map<string, Opened>();
+const keptOwners = new Set<number>();
 let keepChecked = 0;
 
-/** Keep up to `n` checked files open for their reader (0: close each after its check, the default). */
+/** Keep up to `n` checked files open for their reader, one per instrument (0: close each after its check, the default). */
 export function keepCheckedFiles(n: number): void {
   keepChecked = n;
 }
@@ -67,8 +69,10 @@ function keptKey(path: string, opts: SampleReaderOptions): string {
 export async function checkNetcdf(path: string, opts: SampleReaderOptions): Promise<{ rays: number; gates: number }> {
   const o = await open(path, opts);
   const k = keptKey(path, opts);
-  if (kept.size < keepChecked && !kept.has(k)) kept.set(k, o);
-  else o.f.close();
+  if (kept.size < keepChecked && !keptOwners.has(opts.owner) && !kept.has(k)) {
+    kept.set(k, o);
+    keptOwners.add(opts.owner);
+  } else o.f.close();
   return { rays: o.layout.rays, gates: o.layout.gates };
 }
 

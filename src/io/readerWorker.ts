@@ -27,8 +27,9 @@ interface Reader {
 }
 
 const readers = new Map<number, Reader>();
-// A run checks its files on this thread, then reads them here: the checked files stay open for their readers.
-keepCheckedFiles(64);
+// A run checks its files on this thread, then reads them here: each instrument's first checked file stays open for
+// its reader.
+keepCheckedFiles(16);
 const port = parentPort!;
 
 async function pump(id: number): Promise<void> {

@@ -26,6 +26,9 @@ import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
+/** Input files checked at the same time at most (preflight). */
+const CHECKS_AHEAD = 8;
+
 export interface PreflightOptions {
   /** Output root (absolute). */
   outRoot: string;
@@ -83,8 +86,9 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
     const seen = new Map<string, { file: string; ins: Instrument }>();
     const keep = new Map<number, string[]>();
-    // Each file's problem in campaign order: an error, or a check under way (the checks run together: NetCDF files
-    // are checked on the reader thread, which takes them one after the other without waiting for the main thread).
+    // Each file's problem in campaign order: an error, or a check under way. Up to CHECKS_AHEAD checks run together
+    // (NetCDF files are checked on the reader thread, which then takes them one after the other without waiting for
+    // the main thread); no more, so that a campaign of thousands of files does not open them all at once.
     const ordered: (Error | Promise<Error | number>)[] = [];
     for (const ins of c.instruments) {
       for (const file of ins.files) {
@@ -107,6 +111,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         seen.set(real, { file, ins });
         keep.set(ins.index, [...(keep.get(ins.index) ?? []), file]);
         files.push({ file, ins });
+        if (ordered.length >= CHECKS_AHEAD) await ordered[ordered.length - CHECKS_AHEAD]; // never rejects (see below)
         ordered.push(
           checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() }).then(
             (h) => {
