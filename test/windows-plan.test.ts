@@ -200,6 +200,19 @@ describe('the default gap of segment windows follows the series rate', () => {
   });
 });
 
+describe('segment windows with a power condition: a row without power is skipped, not a failed condition', () => {
+  it('rows every 10 s, offset 0, power 2000 kW but NaN at t = 50 and 60: one span [0, 200]', () => {
+    // The rows around the two without power (t = 40 and 70) are 30 s apart, within maxGap 60 s: no cut. Before, the
+    // two rows failed the condition (NaN is not >= 500) and cut the span into [0, 40] and [70, 200].
+    const T = Float64Array.from({ length: 21 }, (_, i) => 10 * i);
+    const power = Float64Array.from(T, (t) => (t === 50 || t === 60 ? NaN : 2000));
+    const series: Series = { file: 'turbine.csv', time: T, values: { yaw_deg: Float64Array.from(T, () => 270), power_kw: power } };
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 10, maxGap_s: 60, settle_s: 0, power_kw: { min: 500 } });
+    expect(windows.map((w) => [w.start_s, w.end_s])).toEqual([[0, 200]]);
+    expect(summary.excluded_s.power).toBe(0);
+  });
+});
+
 describe('series files with missing values', () => {
   const dir = mkdtempSync(join(tmpdir(), 'wp-series-'));
   it('an empty cell or NaN in a column the caller allows holes in is NaN; elsewhere an error naming file, line and column', () => {

@@ -6,7 +6,8 @@
  * positive when the nacelle is turned clockwise seen from above); the wind direction is the series' own
  * wind_direction_deg where given, else the campaign's wind-direction source at that time. A row is excluded as
  * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails. A row
- * that lacks the values (a logger's dropout: an empty yaw cell, or no wind direction within maxGap_s) says nothing
+ * that lacks the values (a logger's dropout: an empty yaw cell, no wind direction within reach, or no power under a
+ * power condition) says nothing
  * about the state and is skipped, as if it were not in the file: the rows around it decide, and the time between
  * them is a gap when they are more than maxGap_s apart (so a dropout of a few rows inside a steady step does not cut
  * it, while a long one does). Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
@@ -117,6 +118,9 @@ export function segmentWindows(
     if (s.windSector_deg && !inSector(dir, s.windSector_deg.from, s.windSector_deg.to)) { state[i] = SECTOR; continue; }
     if (s.power_kw) {
       const p = pw ? pw[i] : NaN;
+      // A row without a power value (a dropout in a series that has the column) says nothing about the condition:
+      // skipped like a row without a yaw. A series without the column fails the condition everywhere.
+      if (pw && !Number.isFinite(p)) { state[i] = GAP; continue; }
       const lo = s.power_kw.min ?? -Infinity, hi = s.power_kw.max ?? Infinity;
       if (!(p >= lo && p <= hi)) { state[i] = POWER; continue; }
     }
