@@ -7,10 +7,9 @@
  * wind_direction_deg where given, else the campaign's wind-direction source at that time. A row is excluded as
  * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails. A row
  * that lacks the values (a logger's dropout: an empty yaw cell, no wind direction within reach, or no power under a
- * power condition) says nothing
- * about the state and is skipped, as if it were not in the file: the rows around it decide, and the time between
- * them is a gap when they are more than maxGap_s apart (so a dropout of a few rows inside a steady step does not cut
- * it, while a long one does). Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
+ * power condition) says nothing about the state and is skipped, as if it were not in the file: the rows around it
+ * decide, and the time between them is a gap when they are more than maxGap_s apart (so a dropout of a few rows
+ * inside a steady step does not cut it, while a long one does). Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
  * them to the last (the time between rows of different states is a transition: when exactly the state changed
  * between them is unknown, so it is excluded rather than guessed); the first settle_s of a span are excluded
  * ("settle": the wake needs time to reach the planes after a yaw step), spans shorter than minDuration_s are
