@@ -74,6 +74,13 @@ export async function* openSamples(path: string, opts: SampleReaderOptions): Asy
  * before the ingest could start). Keyed by path and owning instrument; a stream nobody takes is closed by close().
  * The chunk stays valid until the stream is pulled again (the readers' reuse contract), so it is handed over once.
  */
+/**
+ * Files whose first batches a run keeps open while it starts (about 1 MB each, more ahead on the reader thread); with
+ * more files, one per instrument (pipeline/ingest.ts, qc/cnrLimits.ts readPrepass), so that memory and open files do
+ * not grow with the number of files.
+ */
+export const KEEP_PRIMED = 8;
+
 export class PrimedFiles {
   private readonly open = new Map<string, { it: AsyncIterator<SampleChunk>; first: Promise<IteratorResult<SampleChunk>> }>();
 

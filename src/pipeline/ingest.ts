@@ -10,7 +10,9 @@
  *
  * Reading in step: the next batch is always pulled from the file that is furthest behind in time. Files are
  * expected in time order (as instruments write them); a sample whose window was already finished is counted as
- * out_of_time_order, never silently dropped.
+ * out_of_time_order, never silently dropped. With many files (more than KEEP_PRIMED), only one file per instrument is
+ * kept open from the start; the others are opened when the reading reaches where they start (their first batch read
+ * twice), so memory and open files do not grow with the number of files.
  *
  * Per sample, in this order (the first failing rule names the rejection): CNR below the instrument's resolved limit
  * (qc.cnr_db.min, fixed or estimated before the run: qc/cnrLimits.ts) (low_cnr);
@@ -46,7 +48,7 @@ import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame 
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
-import { openSamples, type PrimedFiles } from '../io/sampleSource.ts';
+import { KEEP_PRIMED, openSamples, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { REJECT_INDEX, REJECT_REASONS } from '../qc/reasons.ts';
 import { batchEndTime, type SuspicionInspector } from '../qc/suspicion.ts';
@@ -244,12 +246,14 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const files = c.instruments.flatMap((ins) => ins.files.map((f) => ({ path: f, owner: ins.index, ins })))
     .filter((f) => !shard?.files || shard.files.has(f.path));
   const readerThread = opts.readerThread ?? readerThreadWanted();
+  const stream = (f: (typeof files)[number]) =>
+    openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread })[Symbol.asyncIterator]();
   const cursors = files.map((f) => {
     const p = opts.primed?.take(f.path, f.owner);
     return {
     // 16k-row batches: the same speed as larger ones with less memory held per open file (PrimedFiles: the same).
     // Files are read on the reader thread (io/readerThread.ts), beside this loop, where the machine has a core for it.
-    it: p?.it ?? openSamples(f.path, { instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread })[Symbol.asyncIterator](),
+    it: p?.it ?? stream(f),
     /** The first pull, made already when the file was primed. */
     first: p?.first,
     last: -Infinity,
@@ -257,6 +261,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     pending: undefined as SampleChunk | undefined,
     /** First sample time of the pending (primed) batch: where the file starts in the reading order. */
     pendingFrom: -Infinity,
+    /** Primed, then closed until its turn (many files: see KEEP_PRIMED): reopened from its start when first pulled. */
+    waiting: false,
     path: f.path,
     owner: f.owner,
     rows: 0,
@@ -267,13 +273,31 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     };
   });
   let first = Infinity;
+  // With more than KEEP_PRIMED files, one primed stream per instrument stays open (its earliest-starting file so
+  // far); every other file is closed again once its start is known and reopened from its start in its turn (its
+  // first batch read twice), so that memory and open files do not grow with the number of files.
+  const keptOf = new Map<number, (typeof cursors)[number]>();
+  const release = async (cur: (typeof cursors)[number]) => {
+    cur.pending = undefined;
+    cur.waiting = true;
+    await cur.it.return?.(undefined);
+    cur.it = stream(files[cursors.indexOf(cur)]);
+  };
   for (const cur of cursors) {
     const r = await (cur.first ?? cur.it.next());
+    cur.first = undefined;
     if (r.done) { cur.done = true; continue; }
     cur.pending = r.value;
     const f = firstSampleTime(r.value.batch);
     if (f < first) first = f;
     cur.pendingFrom = Number.isFinite(f) ? f : -Infinity;
+    if (cursors.length <= KEEP_PRIMED) continue;
+    const kept = keptOf.get(cur.owner);
+    if (kept && kept.pendingFrom <= cur.pendingFrom) await release(cur);
+    else {
+      if (kept) await release(kept);
+      keptOf.set(cur.owner, cur);
+    }
   }
   if (opts.firstSample_s !== undefined) first = opts.firstSample_s;
   const plan = opts.windowPlan(Number.isFinite(first) ? first : NaN);
@@ -511,7 +535,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     let k = -1;
     // The file that has read least far next; a primed file by where it starts, so that a later file of an instrument
     // is not begun before an earlier one ends (until then only windows ending before its first sample can finish).
-    const at = (q: (typeof cursors)[number]) => (q.pending ? q.pendingFrom : q.last);
+    const at = (q: (typeof cursors)[number]) => (q.pending || q.waiting ? q.pendingFrom : q.last);
     for (let j = 0; j < cursors.length; j++) if (!cursors[j].done && (k < 0 || at(cursors[j]) < at(cursors[k]))) k = j;
     if (k < 0) break;
     const cur = cursors[k];
@@ -521,6 +545,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       cur.pending = undefined;
     } else {
       const r = await cur.it.next();
+      cur.waiting = false;
       if (r.done) cur.done = true;
       else chunk = r.value;
     }
@@ -547,7 +572,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
       // ending before that can finish. Without this, every window until the start of an instrument's next file
       // stayed open (memory growing with the length of the files: 43 open windows, 90 MB, on the benchmark).
       let watermark = Infinity;
-      for (const q of cursors) if (!q.done) watermark = Math.min(watermark, q.pending ? q.pendingFrom - orderJitter : q.last);
+      for (const q of cursors) if (!q.done) watermark = Math.min(watermark, q.pending || q.waiting ? q.pendingFrom - orderJitter : q.last);
       if (Number.isFinite(watermark)) await finishUpTo(watermark);
     }
   }

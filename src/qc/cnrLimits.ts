@@ -14,7 +14,7 @@
  * column, gets qc.cnr_db.auto.withoutEvidence_db and the run says so.
  */
 import type { Campaign } from '../campaign/types.ts';
-import { openSamples, sampleFormat, type PrimedFiles } from '../io/sampleSource.ts';
+import { KEEP_PRIMED, openSamples, sampleFormat, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { readCsvSlices } from '../io/csvSlices.ts';
 import type { CnrEvidence } from './cnrEvidence.ts';
@@ -104,11 +104,19 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       if (!q || quota < q.quota) quotas.set(path, { quota, ins: q?.ins ?? ins });
     }
   }
-  // Every primed file's head asked for at once: the reader thread then reads each file's first chunk before any
-  // file's second, instead of one file at a time as the heads are awaited below.
+  // Files read through `primed` (their streams kept open for the ingest): every compressed or NetCDF file when there
+  // are at most KEEP_PRIMED of them, else the first of each instrument (as the ingest keeps them: pipeline/ingest.ts);
+  // the others are read here and closed. Their heads asked for at once: the reader thread then reads each file's first
+  // chunk before any file's second, instead of one file at a time as the heads are awaited below.
+  const streamed = [...quotas].filter(([path]) => sampleFormat(path) !== 'csv');
+  const primedPaths = new Set<string>();
   if (primed) {
-    for (const [path, { ins }] of quotas) {
-      if (sampleFormat(path) !== 'csv') primed.head(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign }).catch(() => {});
+    const firstOf = new Set<number>();
+    for (const [path, { ins }] of streamed) {
+      if (streamed.length > KEEP_PRIMED && firstOf.has(ins.index)) continue;
+      firstOf.add(ins.index);
+      primedPaths.add(path);
+      primed.head(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign }).catch(() => {});
     }
   }
   for (const [path, { quota, ins }] of quotas) {
@@ -117,7 +125,7 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       readCsvSlices(path, opts, quota, PREPASS_SLICES, (v) => add(v.instrument, v.time, v.azimuth, v.elevation, v.range, v.radialVelocity, v.cnr));
       continue;
     }
-    if (primed) {
+    if (primed && primedPaths.has(path)) {
       // The head the ingest will start from (io/sampleSource.ts PrimedFiles), when its first chunk holds the quota;
       // the same rows as reading the file's head again below.
       const first = await primed.head(path, opts);
