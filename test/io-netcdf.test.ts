@@ -220,7 +220,7 @@ describe('bad input: one line naming the file and the variable, before any outpu
       w.close();
       return f;
     }, /dims\.nc: variable "azimuth": must be on the ray dimension of "radial_velocity" \(4 rays\) or a scalar, has \[3\]/],
-    ['unknown units', async () => { const f = join(tmp, 'units.nc'); await writeSampleNetcdf(f, arrays(4, 3), { attrs: { azimuth: { units: 'gradians' } } }); return f; }, /units\.nc: variable "azimuth": units "gradians" unknown for a angle/],
+    ['unknown units', async () => { const f = join(tmp, 'units.nc'); await writeSampleNetcdf(f, arrays(4, 3), { attrs: { azimuth: { units: 'gradians' } } }); return f; }, /units\.nc: variable "azimuth": units "gradians" unknown for an angle/],
     ['truncated file', async () => {
       const f = join(tmp, 'full.nc'), t = join(tmp, 'truncated.nc');
       await writeSampleNetcdf(f, arrays(2000, 10), { chunkRays: 100 });

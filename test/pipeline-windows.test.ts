@@ -12,7 +12,9 @@ import { existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
+import type { Campaign } from '../src/campaign/types.ts';
 import { ConfigError } from '../src/errors.ts';
+import { Ensembles } from '../src/pipeline/ensembles.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
@@ -118,6 +120,15 @@ describe('listed windows and condition bins', () => {
     expect(readCsv(join(runDir, 'wake', 'wake_table.csv'))).toHaveLength(6);
   });
 
+  it('ensembles of overlapping windows carry a warning that samples count more than once', async () => {
+    // Windows of 600 s every 200 s: each sample is in 3 windows, so an ensemble of them counts it 3 times.
+    const c = loadCampaignFile(file);
+    c.windows = { kind: 'fixed', length_s: 600, step_s: 200, anchor: 'first-sample' };
+    c.conditions = { bins: [{ variable: 'yaw_offset_deg', edges: [-20, 20] }], minWindows: 1 };
+    const { manifest } = await runCampaign(c, { outRoot: join(dir, 'out-ovl'), images: false, stages: defaultStages() });
+    expect(manifest.warnings.join(' ')).toMatch(/condition bins pool overlapping windows: a sample in k windows of a bin counts k times/);
+  });
+
   it('conditions that select no window: a ConfigError naming the key, and no result folder', async () => {
     const c = loadCampaignFile(file);
     c.conditions = { bins: [{ variable: 'yaw_offset_deg', edges: [30, 40] }], minWindows: 1 };
@@ -131,7 +142,24 @@ describe('listed windows and condition bins', () => {
     const c = loadCampaignFile(file);
     c.conditions = { bins: [{ variable: 'turbine.pitch_deg', edges: [0, 5] }], minWindows: 1 };
     const out = join(dir, 'out-col');
-    await expect(runCampaign(c, { outRoot: out, images: false })).rejects.toThrow(/turbine\.csv:1: missing required column "pitch_deg"/);
+    await expect(runCampaign(c, { outRoot: out, images: false })).rejects.toThrow(/turbine\.csv:1: conditions\.bins\[0\]\.variable "turbine\.pitch_deg": no column "pitch_deg"/);
     expect(existsSync(out)).toBe(false);
   });
 });
+
+describe('condition bins on angles count modulo 360 (a sector may cross north)', () => {
+  it('wind direction edges [-10, 0, 10]: 350 and 359.1 degrees in the first bin, 1.5 in the second, 10 in none', () => {
+    // Regression: directions are reported in [0, 360), so 359.1 fell outside [-10, 0) and such windows were lost.
+    // By hand: a value is taken as its turn in [first edge, first edge + 360) = [-10, 350): 359.1 -> -0.9,
+    // 350 -> -10 (the first bin's lower edge, included), 1.5 -> 1.5, 10 -> 10 (no bin: [0, 10) excludes it).
+    const c = { conditions: { bins: [{ variable: 'wind_direction_deg', edges: [-10, 0, 10] }], minWindows: 1 } } as unknown as Campaign;
+    const e = new Ensembles(c, {}, 0, 0);
+    expect([359.1, 350, 1.5, 10, NaN].map((d) => e.binOf([d]))).toEqual([0, 0, 1, -1, -1]);
+  });
+
+  it('edges of an angle spanning more than one turn are refused with the key', () => {
+    const { file } = writeTinyCampaign({ conditions: { bins: [{ variable: 'wind_direction_deg', edges: [0, 180, 361] }] } });
+    expect(() => loadCampaignFile(file)).toThrow(/conditions\.bins\[0\]\.edges: edges of an angle \(_deg\) may span 360 degrees at most/);
+  });
+});
+

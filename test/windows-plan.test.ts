@@ -7,11 +7,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { ConfigError, InputError } from '../src/errors.ts';
-import type { Series } from '../src/io/series.ts';
+import { readSeries, type Series } from '../src/io/series.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { windowsFromFile, windowsFromItems } from '../src/windows/list.ts';
 import { fixedPlan, tablePlan, type WindowDef, type WindowPlan } from '../src/windows/plan.ts';
-import { segmentWindows } from '../src/windows/segments.ts';
+import { defaultSegmentGap, segmentWindows } from '../src/windows/segments.ts';
 
 function lookup(plan: WindowPlan, t: number): { ids: number[]; range: [number, number] } {
   const out = new Int32Array(plan.maxOverlap);
@@ -150,6 +150,80 @@ describe('segment windows from a turbine series (worked by hand)', () => {
     const none = segmentWindows(series, () => NaN, base);
     expect(none.windows).toHaveLength(0);
     expect(none.summary.excluded_s.gap).toBe(T[T.length - 1] - T[0]);
+  });
+});
+
+describe('segment windows: rows without values (a logger dropout) are skipped, not a cut', () => {
+  // Rows every 10 s from t = 0 to 400 s, yaw offset 0 throughout (nacelle 270, wind 270), maxGap 60 s. Rows 5-6
+  // (t = 50, 60) have no yaw: the rows around them (t = 40 and 70) are 30 s apart, within maxGap, so the span goes
+  // on. Rows 20-28 (t = 200 .. 280) have none: rows 19 and 29 (t = 190, 290) are 100 s apart, a gap. Rows 39-40
+  // (t = 390, 400) have none: the 10 s after row 38 (t = 380) to the series end are a gap too.
+  const T = Float64Array.from({ length: 41 }, (_, i) => 10 * i);
+  const yaw = Float64Array.from(T, (_, i) => ((i >= 5 && i <= 6) || (i >= 20 && i <= 28) || i >= 39 ? NaN : 270));
+  const series: Series = { file: 'turbine.csv', time: T, values: { yaw_deg: yaw } };
+  it('spans [0, 190] and [290, 380]; gap 100 + 20 s; every second accounted for', () => {
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: 60, settle_s: 0 });
+    expect(windows.map((w) => [w.start_s, w.end_s])).toEqual([[0, 190], [290, 380]]);
+    expect(summary.excluded_s.gap).toBe(100 + 20);
+    const excluded = Object.values(summary.excluded_s).reduce((a, b) => a + b, 0);
+    expect(summary.windows_s + excluded).toBe(400);
+  });
+});
+
+describe('the default gap of segment windows follows the series rate', () => {
+  // One row a minute from a logger whose clock jitters by up to 0.5 s (intervals 59.5 .. 60.5 s), offset 0 all along,
+  // and one missing row (a 120 s interval) at row 30, and two missing rows (180 s) at row 60.
+  const T: number[] = [];
+  for (let i = 0, t = 0; i < 90; i++) {
+    if (i === 30 || i === 60 || i === 61) { t += 60; continue; }
+    T.push(t + (i % 2 ? 0.5 : -0.5) * ((i % 3) / 2));
+    t += 60;
+  }
+  const series: Series = { file: 'turbine.csv', time: Float64Array.from(T), values: { yaw_deg: Float64Array.from(T, () => 270) } };
+  it('2.5 times the median interval, at least 60 s: jitter and one missing row are no gap, two are', () => {
+    // Median of the intervals: 60 s to within the jitter (most intervals are 59.5 .. 60.5 s): 2.5 x 60 = 150 s +- 1.25 s.
+    const g = defaultSegmentGap(series);
+    expect(Math.abs(g - 150)).toBeLessThanOrEqual(1.25);
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: g, settle_s: 0 });
+    // One cut only, at the two missing rows (the 180 s interval from row 59 to row 62).
+    expect(windows).toHaveLength(2);
+    // Rows i = 59 and 62 are T[58] and T[59] (row 30 is missing before them): their interval, about 180 s, is the gap.
+    expect(Math.abs(T[59] - T[58] - 180)).toBeLessThanOrEqual(1);
+    expect(summary.excluded_s.gap).toBe(T[59] - T[58]);
+    // With the old fixed default of 60 s, every interval a little over 60 s was a gap.
+    const old = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 60, maxGap_s: 60, settle_s: 0 });
+    // (each interval of 60.25 or 60.5 s counted whole: more than ten of them here)
+    expect(old.summary.excluded_s.gap).toBeGreaterThan(10 * 60);
+  });
+  it('a series of one row or none falls back to 60 s', () => {
+    expect(defaultSegmentGap({ file: 'x', time: Float64Array.of(5), values: {} })).toBe(60);
+  });
+});
+
+describe('segment windows with a power condition: a row without power is skipped, not a failed condition', () => {
+  it('rows every 10 s, offset 0, power 2000 kW but NaN at t = 50 and 60: one span [0, 200]', () => {
+    // The rows around the two without power (t = 40 and 70) are 30 s apart, within maxGap 60 s: no cut. Before, the
+    // two rows failed the condition (NaN is not >= 500) and cut the span into [0, 40] and [70, 200].
+    const T = Float64Array.from({ length: 21 }, (_, i) => 10 * i);
+    const power = Float64Array.from(T, (t) => (t === 50 || t === 60 ? NaN : 2000));
+    const series: Series = { file: 'turbine.csv', time: T, values: { yaw_deg: Float64Array.from(T, () => 270), power_kw: power } };
+    const { windows, summary } = segmentWindows(series, () => 270, { levels_deg: [0], tolerance_deg: 2, minDuration_s: 10, maxGap_s: 60, settle_s: 0, power_kw: { min: 500 } });
+    expect(windows.map((w) => [w.start_s, w.end_s])).toEqual([[0, 200]]);
+    expect(summary.excluded_s.power).toBe(0);
+  });
+});
+
+describe('series files with missing values', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'wp-series-'));
+  it('an empty cell or NaN in a column the caller allows holes in is NaN; elsewhere an error naming file, line and column', () => {
+    const p = join(dir, 'turbine.csv');
+    // pandas writes a missing float as an empty cell (to_csv default), numpy.savetxt as "nan"
+    writeFileSync(p, 'time,yaw_deg,power_kw\n2026-05-09 10:00:00,270.5,1500\n2026-05-09 10:00:10,,1510\n2026-05-09 10:00:20,nan,NaN\n');
+    const s = readSeries(p, {}, ['yaw_deg'], ['power_kw'], { holes: ['yaw_deg'] });
+    expect(Array.from(s.values.yaw_deg)).toEqual([270.5, NaN, NaN]);
+    expect(Array.from(s.values.power_kw)).toEqual([1500, 1510, NaN]);
+    expect(() => readSeries(p, {}, ['yaw_deg'], ['power_kw'])).toThrow(/turbine\.csv:3: column "yaw_deg": empty/);
+    expect(() => readSeries(p, {}, ['power_kw'])).toThrow(/turbine\.csv:4: column "power_kw": missing value "NaN"/);
   });
 });
 

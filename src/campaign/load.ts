@@ -222,6 +222,8 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
       for (let k = 1; k < b.edges.length; k++) {
         if (!(b.edges[k] > b.edges[k - 1])) { bad([...where, 'edges'], 'edges must ascend', b.edges); break; }
       }
+      // Angles are binned modulo 360 (a sector may cross north): their edges may span one turn at most.
+      if (b.variable.endsWith('_deg') && b.edges[b.edges.length - 1] - b.edges[0] > 360) bad([...where, 'edges'], 'edges of an angle (_deg) may span 360 degrees at most (angles are binned modulo 360)', b.edges);
       const problem = conditionVariableProblem(b.variable, { turbine: !!tSeries, inflow: c.inflow.kind === 'series', direction: c.windDirection.kind === 'series' });
       if (problem) bad([...where, 'variable'], problem, b.variable);
     });

@@ -224,7 +224,10 @@ const windowSchema = z.union([
       levels_deg: z.array(finite()).min(1).describe('yaw-offset levels of the experiment (nacelle minus wind direction), degrees'),
       tolerance_deg: finite().positive().default(2).describe('a series row belongs to a level within this, degrees; default 2'),
       minDuration_s: finite().min(0).default(300).describe('shortest steady span kept, s; default 300'),
-      maxGap_s: finite().positive().default(60).describe('series rows further apart leave a gap, s; default 60'),
+      maxGap_s: finite()
+        .positive()
+        .optional()
+        .describe('series rows further apart leave a gap, s; default: 2.5 times the median interval between the series rows, at least 60 s (one missing row or a jittering clock is no gap, two missing rows are)'),
       settle_s: finite().min(0).default(0).describe('excluded at the start of each span while the wake adjusts, s; default 0 (set it to the travel time to the farthest plane)'),
       windSector_deg: z
         .object({ from: finite(), to: finite() })
@@ -250,7 +253,7 @@ const conditionsSchema = z
               .string()
               .min(1)
               .describe('hub_speed_ms, wind_direction_deg, turbulence_intensity, yaw_offset_deg, or <series>.<column> with series turbine, inflow or direction'),
-            edges: z.array(finite()).min(2).describe('bin edges, ascending; a window belongs to [edge_i, edge_i+1)'),
+            edges: z.array(finite()).min(2).describe('bin edges, ascending; a window belongs to [edge_i, edge_i+1); angles (_deg) count modulo 360, so a wind-direction sector may cross north ([-10, 0, 10]), within one turn'),
           })
           .strict(),
       )

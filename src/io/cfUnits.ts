@@ -3,8 +3,8 @@
  * wakeplane's SI units: SI = stored * scale + offset. Only the units a sample file can sensibly hold are known;
  * anything else is an error naming the variable, never a guess.
  *
- * time: "<unit> since <date>[ <time>][ <zone>]" with unit seconds, minutes, hours, days or milliseconds (and their
- *   usual abbreviations) -> Unix seconds; calendar standard, gregorian or proleptic_gregorian (the same for dates
+ * time: "<unit> since <date>[ <time>][ <zone>]" with unit seconds, minutes, hours, days, milliseconds, microseconds or
+ *   nanoseconds (and their usual abbreviations) -> Unix seconds; calendar standard, gregorian or proleptic_gregorian (the same for dates
  *   after 1582).
  * angles: degrees or radians -> degrees. lengths: m or km -> m. speeds: m s-1 (m/s) or km h-1 -> m/s. CNR: dB.
  */
@@ -20,6 +20,10 @@ const norm = (u: string) => u.trim().replace(/\s+/g, ' ').toLowerCase();
 const TIME_UNITS: Record<string, number> = {
   s: 1, sec: 1, secs: 1, second: 1, seconds: 1,
   ms: 1e-3, msec: 1e-3, millisecond: 1e-3, milliseconds: 1e-3,
+  // xarray stores pandas times as int64 "microseconds since ..." or "nanoseconds since ..." when they have sub-
+  // millisecond parts (its default encoding picks the coarsest unit that holds them exactly).
+  us: 1e-6, usec: 1e-6, microsecond: 1e-6, microseconds: 1e-6,
+  ns: 1e-9, nsec: 1e-9, nanosecond: 1e-9, nanoseconds: 1e-9,
   min: 60, mins: 60, minute: 60, minutes: 60,
   h: 3600, hr: 3600, hrs: 3600, hour: 3600, hours: 3600,
   d: 86400, day: 86400, days: 86400,
@@ -53,7 +57,7 @@ export function unitsToSi(units: string, q: Quantity, calendar?: string): Affine
     const m = u.match(/^(\S+) since (.+)$/);
     if (!m) return `units "${units}" are not "<unit> since <date>"`;
     const step = TIME_UNITS[m[1]];
-    if (step === undefined) return `time unit "${m[1]}" unknown (seconds, minutes, hours, days, milliseconds)`;
+    if (step === undefined) return `time unit "${m[1]}" unknown (seconds, minutes, hours, days, milliseconds, microseconds, nanoseconds)`;
     const t0 = parseReferenceDate(m[2]);
     if (!Number.isFinite(t0)) return `reference date "${m[2]}" not understood`;
     if (calendar !== undefined && !['standard', 'gregorian', 'proleptic_gregorian'].includes(norm(calendar))) return `calendar "${calendar}" not supported (standard, gregorian, proleptic_gregorian)`;
@@ -61,6 +65,6 @@ export function unitsToSi(units: string, q: Quantity, calendar?: string): Affine
   }
   const table = q === 'angle' ? ANGLE : q === 'length' ? LENGTH : q === 'speed' ? SPEED : DB;
   const k = table[u];
-  if (k === undefined) return `units "${units}" unknown for ${q === 'ratio_db' ? 'a ratio in dB' : `a ${q}`} (known: ${Object.keys(table).slice(0, 6).join(', ')}, ...)`;
+  if (k === undefined) return `units "${units}" unknown for ${q === 'ratio_db' ? 'a ratio in dB' : `${q === 'angle' ? 'an' : 'a'} ${q}`} (known: ${Object.keys(table).slice(0, 6).join(', ')}, ...)`;
   return { scale: k, offset: 0 };
 }

@@ -63,8 +63,10 @@ export class NcFileWriter {
     });
     const total = shape.reduce((a, b) => a * b, 1);
     if (data.length !== total) throw new Error(`NetCDF variable ${name}: ${data.length} values for shape [${shape}]`);
-    const grows = dims.length > 0 && this.unlimited.has(dims[0]);
     const text = Array.isArray(data);
+    // Text is written whole (a variable on an unlimited dimension defined once its rows are in, as bin labels at
+    // the close), numbers may grow by append.
+    const grows = dims.length > 0 && this.unlimited.has(dims[0]) && !text;
     const chunks = opts.chunks ?? (grows ? [1, ...shape.slice(1)] : shape.map((n) => Math.max(1, n)));
     const ds = this.f.create_dataset({
       name, data, shape, dtype: dtypeOf(data),
@@ -88,6 +90,8 @@ export class NcFileWriter {
     const at = shape[0];
     ds.resize([at + rows, ...rest]);
     ds.write_slice([[at, at + rows], ...rest.map((n) => [0, n])], values);
+    // an unlimited dimension's coordinate: its current length is the dimension's size for variables defined later
+    if (this.unlimited.has(name)) this.sizes.set(name, at + rows);
   }
 
   global(attrs) {

@@ -102,16 +102,42 @@ function attrNumbers(ds: H5Dataset, name: string): number[] | undefined {
   return undefined;
 }
 
+/** The root's entries for a message; groups marked, with the path form that reaches their variables. */
+function contents(f: H5File): string {
+  const keys = [...new Set(f.keys().map(ncName))];
+  const groups = keys.filter((k) => { try { return (f.get(k) as { type?: string } | null)?.type === 'Group'; } catch { return false; } });
+  const list = keys.map((k) => (groups.includes(k) ? `${k}/ (a group)` : k)).join(', ');
+  return groups.length ? `${list}; variables in a group are named by path, e.g. "${groups[0]}/time"` : list;
+}
+
 function isDataset(e: unknown): e is H5Dataset {
   return !!e && (e as { type?: string }).type === 'Dataset';
+}
+
+/**
+ * netCDF-C stores a variable that has a dimension's name without being its coordinate (range(time, range): ranges
+ * per ray on a dimension also called range) as the HDF5 dataset "_nc4_non_coord_<name>", and the dimension itself as
+ * a data-less dataset "<name>". Paths are mapped back to the NetCDF names, and such a variable wins over the
+ * dimension of its name.
+ */
+const NON_COORD = '_nc4_non_coord_';
+const ncName = (path: string) => path.replace(/^\//, '').replace(new RegExp(`(^|/)${NON_COORD}`), '$1');
+const nonCoordPath = (name: string) => name.replace(/(^|\/)([^/]*)$/, `$1${NON_COORD}$2`);
+
+function getDataset(f: H5File, path: string): H5Dataset | null {
+  for (const p of [nonCoordPath(path), path]) {
+    let e: unknown;
+    try { e = f.get(p); } catch { e = null; }
+    if (isDataset(e)) return e;
+  }
+  return null;
 }
 
 function find(f: H5File, file: string, key: string, ref: ColumnMap[keyof ColumnMap], names: readonly string[], standard: readonly string[]): H5Dataset | null {
   const mapped = ref === undefined ? undefined : typeof ref === 'string' ? ref : ref.name;
   if (mapped !== undefined) {
-    let e: unknown;
-    try { e = f.get(mapped); } catch { e = null; }
-    if (!isDataset(e)) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${f.keys().join(', ')}`);
+    const e = getDataset(f, mapped);
+    if (!e) throw new InputError(file, undefined, `variable "${mapped}" (columns.${key}) not found in the file; it has: ${contents(f)}`);
     return e;
   }
   const datasets: H5Dataset[] = [];
@@ -123,16 +149,20 @@ function find(f: H5File, file: string, key: string, ref: ColumnMap[keyof ColumnM
     const hit = datasets.find((d) => standard.includes(attrText(d, 'standard_name') ?? ''));
     if (hit) return hit;
   }
-  return datasets.find((d) => names.includes(d.path.replace(/^\//, ''))) ?? null;
+  for (const n of names) {
+    const hit = getDataset(f, n);
+    if (hit) return hit;
+  }
+  return null;
 }
 
 function resolveVariable(f: H5File, file: string, role: (typeof ROLES)[number], columns: ColumnMap, optional: boolean): NcVariable | null {
   const ref = columns[role.key];
   const ds = find(f, file, role.key, ref, role.names, role.standard);
-  const name0 = ds?.path.replace(/^\//, '') ?? role.names[0];
+  const name0 = ds ? ncName(ds.path) : role.names[0];
   if (!ds) {
     if (optional) return null;
-    throw new InputError(file, undefined, `variable "${name0}" for ${role.key} not found (set instruments[].columns.${role.key} to its name); the file has: ${f.keys().join(', ')}`);
+    throw new InputError(file, undefined, `variable "${name0}" for ${role.key} not found (set instruments[].columns.${role.key} to its name); the file has: ${contents(f)}`);
   }
   const name = name0;
   const m = ds.metadata;
@@ -159,6 +189,23 @@ function resolveVariable(f: H5File, file: string, role: (typeof ROLES)[number], 
 const dims = (v: NcVariable) => (v.shape.length ? `[${v.shape.join(' x ')}]` : 'a scalar');
 
 /**
+ * Seconds between neighbouring values a 32-bit float time can hold at the file's own times (its first and last ray):
+ * 2^(floor(log2 |stored|) - 23) stored units (IEEE 754 binary32: 24-bit significand). Time in single precision as
+ * seconds since 1970 resolves 128 s, so rays a second apart collapse onto a few stamps; 0 for other types.
+ */
+function float32TimeStep(t: NcVariable, rays: number): number {
+  const m = t.ds.metadata;
+  if (m.type !== 1 || m.size !== 4 || rays === 0) return 0;
+  let big = 0;
+  for (const i of [0, rays - 1]) {
+    let v = NaN;
+    try { v = Number((t.ds.slice([[i, i + 1]]) as ArrayLike<number> | null)?.[0]); } catch { /* unreadable here: the reader says so */ }
+    if (Number.isFinite(v) && !t.fills.includes(v)) big = Math.max(big, Math.abs(v));
+  }
+  return big > 0 ? 2 ** (Math.floor(Math.log2(big)) - 23) * Math.abs(t.scale) : 0;
+}
+
+/**
  * Resolves the layout of an open file.
  * @throws InputError(file, undefined, 'variable "x": ...') for a missing variable, wrong dimensions or unknown units.
  */
@@ -172,7 +219,15 @@ export function resolveNetcdf(f: H5File, file: string, columns: ColumnMap, sign:
       const ok = (x.shape.length === 1 && x.shape[0] === rays) || (scalarOk && (x.shape.length === 0 || (x.shape.length === 1 && x.shape[0] === 1)));
       if (!ok) throw new InputError(file, undefined, `variable "${x.name}": must be on the ray dimension of "${v.name}" (${rays} rays)${scalarOk ? ' or a scalar' : ''}, has ${dims(x)}`);
     };
+    // Stored the other way round, (range, time): say so of the radial velocity rather than blame the time.
+    if (time!.shape.length === 1 && time!.shape[0] === gates && gates !== rays) {
+      throw new InputError(file, undefined, `variable "${v.name}": must be on (time, range), but its first dimension has ${rays} and its second ${gates}, the length of "${time!.name}": stored as (range, time)?`);
+    }
     onRays(time!, false);
+    // Time that cannot tell rays apart would put them in the wrong windows without a trace: refuse it (1 s: rays
+    // come a fraction of a second to a few seconds apart; windows are minutes long).
+    const step = float32TimeStep(time!, rays);
+    if (step > 1) throw new InputError(file, undefined, `variable "${time!.name}": stored as 32-bit floats, which resolve only ${step >= 10 ? Math.round(step) : step.toPrecision(2)} s at these times; store it as double (or with a reference date near the data)`);
     onRays(azimuth!, true);
     onRays(elevation!, true);
     const r = range!;

@@ -5,7 +5,7 @@
  * decode as times). Also the global attributes every NetCDF output of a run carries.
  */
 import type { Campaign } from '../campaign/types.ts';
-import type { Column } from '../records/dictionary.ts';
+import { netcdfNames, type Column } from '../records/dictionary.ts';
 import type { Cell, TableLayout } from '../records/tableText.ts';
 import { UNITS } from '../records/units.ts';
 import { VERSION } from '../version.ts';
@@ -37,11 +37,10 @@ export function runAttributes(c: Campaign, campaignSha256: string, title: string
 /** Writes the rows of a declared table along dimension `dim` (a row-number coordinate). */
 export function writeTableNetcdf(w: NcTarget, L: TableLayout, rows: readonly Cell[][], dim: string): void {
   w.coordinate(dim, Int32Array.from(rows, (_, i) => i), { long_name: `${L.table.row} (row number)` });
-  const used = new Set<string>([dim]);
+  const names = netcdfNames(L.columns, [dim]);
   L.columns.forEach((c, k) => {
-    if (c.unit === 'iso') return;
-    const name = used.has(c.name) ? L.headers[k] : c.name;
-    used.add(name);
+    const name = names[k];
+    if (name === null) return;
     if (c.unit === 'text') {
       w.variable(name, [dim], rows.map((r) => (r[k] === undefined || r[k] === null ? '' : String(r[k]))), { long_name: c.meaning });
       return;

@@ -2,6 +2,10 @@
  * Small time-series files (wind direction, turbine yaw and power, inflow reference): CSV with a header row, read
  * whole (they hold one row per second or per minute, not the raw samples). Column names are ours; `columns` maps
  * them to the file's headers. Errors name the file, the line and the column.
+ *
+ * A missing value is an empty cell or the text NaN (any case; what pandas and numpy write for a missing float). It
+ * is NaN in an optional column and in a required column the caller lists in `holes` (a logger's dropout in the
+ * yaw or direction: consumers treat it as a gap); elsewhere in a required column it is an error.
  */
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.ts';
@@ -37,11 +41,15 @@ export function splitCsvLine(line: string): string[] {
   return out;
 }
 
+/** An empty cell or NaN in any case: a missing value. */
+const isMissing = (s: string) => s === '' || /^nan$/i.test(s);
+
 export function readSeries(
   file: string,
   columns: Record<string, string>,
   required: string[],
   optional: string[] = [],
+  opts: { holes?: readonly string[] } = {},
 ): Series {
   const bad = fileProblem(file);
   if (bad) throw new InputError(file, undefined, `series file ${bad.reason}`);
@@ -75,8 +83,8 @@ export function readSeries(
       const c = idx[name];
       if (c < 0) return NaN;
       const s = (cells[c] ?? '').trim();
-      if (s === '') {
-        if (required.includes(name)) throw new InputError(file, i + 1, `column ${excerpt(header[c], 40)}: empty`);
+      if (isMissing(s)) {
+        if (required.includes(name) && !opts.holes?.includes(name)) throw new InputError(file, i + 1, `column ${excerpt(header[c], 40)}: ${s === '' ? 'empty' : `missing value ${excerpt(s)}`}`);
         return NaN;
       }
       const x = Number(s);

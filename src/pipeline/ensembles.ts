@@ -42,7 +42,16 @@ export function loadConditionSeries(c: Campaign): ConditionSeries {
     if (need[k].size === 0) continue;
     const r = ref[k];
     if (!r) throw new ConfigError(c.sourceFile, 'conditions.bins', `a bin needs the ${k} series, which the campaign does not have`);
-    out[k] = readSeries(r.file, r.columns, [...need[k]]);
+    // A bin's column may have holes: the window mean skips them (seriesMean).
+    try {
+      out[k] = readSeries(r.file, r.columns, [...need[k]], [], { holes: [...need[k]] });
+    } catch (e) {
+      // A column the file lacks: name the campaign key that asked for it, beside the file and its header.
+      const col = e instanceof InputError && e.line === 1 ? /missing required column "([^"]*)"/.exec(e.reason)?.[1] : undefined;
+      const i = col === undefined ? -1 : bins.findIndex((b) => b.variable.startsWith(`${k}.`) && (r.columns[b.variable.slice(k.length + 1)] ?? b.variable.slice(k.length + 1)) === col);
+      if (i < 0) throw e;
+      throw new InputError(r.file, 1, `conditions.bins[${i}].variable "${bins[i].variable}": ${(e as InputError).reason.replace('missing required column', 'no column')}`);
+    }
   }
   return out;
 }
@@ -57,6 +66,8 @@ export interface BinInfo {
 interface BinState {
   stats: CellStats;
   members: [number, number][];
+  /** The members' state levels (segment windows; NaN for other kinds). */
+  levels: number[];
   sin: number;
   cos: number;
 }
@@ -120,11 +131,17 @@ export class Ensembles {
     });
   }
 
-  /** Bin of a set of values, or -1 when any value is outside its edges or unknown. */
+  /**
+   * Bin of a set of values, or -1 when any value is outside its edges or unknown. Angles (variables ending in _deg)
+   * count modulo 360: a value is taken as the one of its turns in [first edge, first edge + 360), so a wind-direction
+   * sector may cross north (edges [-10, 0, 10] hold 359 and 1 degrees); the campaign keeps such edges within a turn.
+   */
   binOf(values: number[]): number {
     let bin = 0;
     for (let k = 0; k < this.specs.length; k++) {
-      const e = this.specs[k].edges, v = values[k];
+      const e = this.specs[k].edges;
+      let v = values[k];
+      if (this.specs[k].variable.endsWith('_deg')) v = e[0] + ((((v - e[0]) % 360) + 360) % 360);
       let j = -1;
       for (let i = 0; i + 1 < e.length; i++) if (v >= e[i] && v < e[i + 1]) { j = i; break; }
       if (j < 0) return -1;
@@ -145,7 +162,7 @@ export class Ensembles {
   }
 
   /** Add a finished window's kept-sample statistics to its bin. */
-  add(window: number, w: { start_s: number; end_s: number; direction_deg: number }, stats: CellStats, values: number[]): number {
+  add(window: number, w: { start_s: number; end_s: number; direction_deg: number; def?: { level: number } }, stats: CellStats, values: number[]): number {
     const bin = this.binOf(values);
     if (bin < 0) {
       this.outside.push({ window, values: Object.fromEntries(this.specs.map((b, k) => [b.variable, values[k]])) });
@@ -153,11 +170,12 @@ export class Ensembles {
     }
     let st = this.state.get(bin);
     if (!st) {
-      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], sin: 0, cos: 0 };
+      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], levels: [], sin: 0, cos: 0 };
       this.state.set(bin, st);
     }
     mergeCellStats(st.stats, stats);
     st.members.push([w.start_s, w.end_s]);
+    st.levels.push(w.def?.level ?? NaN);
     const D = (w.direction_deg * Math.PI) / 180;
     if (Number.isFinite(D)) { st.sin += Math.sin(D); st.cos += Math.cos(D); }
     this.windowsOf.set(bin, [...(this.windowsOf.get(bin) ?? []), window]);
@@ -185,8 +203,11 @@ export class Ensembles {
       if (!st || bin.windows.length < minWindows) continue;
       const members = [...st.members].sort((a, b) => a[0] - b[0]);
       const dir = ((Math.atan2(st.sin, st.cos) * 180) / Math.PI + 360) % 360;
+      // The state level, when every member window has the same one (a bin of segment windows of one level).
+      const level = st.levels.every((l) => l === st.levels[0]) && Number.isFinite(st.levels[0]) ? st.levels[0] : undefined;
       const info: WindowInfo = {
         index: bin.index, start_s: members[0][0], end_s: Math.max(...members.map((m) => m[1])), kind: 'ensemble', label: bin.label, members,
+        ...(level !== undefined ? { level } : {}),
       };
       out.push({ bin, fields: retrieveStats(st.stats, planes, info, dir, settings) });
     }

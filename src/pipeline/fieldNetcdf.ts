@@ -54,6 +54,8 @@ interface PlaneFile {
   pendingWindows: number;
   /** Condition bins (ensembles) rather than windows. */
   bins: boolean;
+  /** Bins: each one's condition, written as bin_label when the file closes. */
+  labels: string[];
 }
 
 type TypedArray = Float64Array | Float32Array | Int32Array | Int8Array;
@@ -159,7 +161,7 @@ export class FieldNetcdf {
       ...(f.orientation === 'cross' ? { plane_x_m: f.x_m } : { plane_z_m: f.z_m }),
       turbine_position_m: Float64Array.from(this.c.turbine.position),
     });
-    const pf: PlaneFile = { w, path: rel, planeId: f.planeId, windows: 0, cells: g.ny * g.nz, pending: new Map(), pendingWindows: 0, bins };
+    const pf: PlaneFile = { w, path: rel, planeId: f.planeId, windows: 0, cells: g.ny * g.nz, pending: new Map(), pendingWindows: 0, bins, labels: [] };
     this.files.set(key, pf);
     return pf;
   }
@@ -171,7 +173,10 @@ export class FieldNetcdf {
     const n = pf.cells, g = f.grid;
     const w = { append: (name: string, values: TypedArray) => { const l = pf.pending.get(name); if (l) l.push(values); else pf.pending.set(name, [values]); } };
     const D = (f.direction_deg * Math.PI) / 180, sD = Math.sin(D), cD = Math.cos(D);
-    if (pf.bins) w.append('bin', Float64Array.of(ordinal));
+    if (pf.bins) {
+      w.append('bin', Float64Array.of(ordinal));
+      pf.labels.push(f.window.label ?? '');
+    }
     else {
       w.append('window', Float64Array.of((f.window.start_s + f.window.end_s) / 2));
       w.append('window_bounds', Float64Array.of(f.window.start_s, f.window.end_s));
@@ -231,6 +236,8 @@ export class FieldNetcdf {
         continue;
       }
       this.flush(pf);
+      // What each bin is (the file's bin numbers alone do not say): its condition, as in wake/ensembles.csv.
+      if (pf.bins) pf.w.variable('bin_label', ['bin'], pf.labels, attrs('bin_label'));
       await pf.w.close();
       out.push({ kind: 'field-netcdf', path: pf.path, plane: pf.planeId, description: `retrieved wind fields of plane ${pf.planeId}, ${pf.windows} ${pf.bins ? 'condition bins' : 'windows'}, NetCDF-4/CF` });
     }

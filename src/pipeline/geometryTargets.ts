@@ -43,7 +43,7 @@ export function runTargets(c: Campaign, planes: SampleTarget): RunTargets {
   const onNacelle = c.instruments.filter((i) => i.beamFrame === 'nacelle');
   if (onNacelle.length) {
     if (!c.turbine.series) throw new ConfigError(c.sourceFile, 'turbine.series', 'instruments with nacelle-relative beams need the turbine series (time, yaw_deg)');
-    const ts = readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
+    const ts = readSeries(c.turbine.series.file, c.turbine.series.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'], { holes: ['yaw_deg'] });
     out.turbineSeries = ts;
     for (const ins of onNacelle) {
       const orient = ins.orientationSeries ? readSeries(ins.orientationSeries.file, ins.orientationSeries.columns, [], ['tilt_deg', 'roll_deg']) : undefined;

@@ -155,7 +155,7 @@ export async function runShardTo(c: Campaign, spec: ShardSpec, sink: ShardSink, 
   if (!(spec.from_s < spec.to_s)) throw new RangeError(`shard time range is empty: ${isoTime(spec.from_s)} .. ${isoTime(spec.to_s)}`);
   const stateSeries = stateTurbine(c).series;
   const turbineSeries = c.windows.kind === 'segments' && stateSeries
-    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'], { holes: ['yaw_deg'] })
     : undefined;
   const planInputs = { turbineSeries, directionSeries: pre.directionSeries };
   const firstSample = opts.firstSample_s ?? (await campaignFirstSample(cRead));

@@ -40,7 +40,7 @@ export function powerStage(): RunStage {
         series.set(t.id, ser);
       }
       if (series.size < 2) return [];
-      const dirSeries = c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg']) : undefined;
+      const dirSeries = c.windDirection.kind === 'series' ? readSeries(c.windDirection.file, c.windDirection.columns, ['direction_deg'], [], { holes: ['direction_deg'] }) : undefined;
       const plan = ctx.shared.windowPlan as WindowPlan | undefined;
       const defs = plan?.all && plan.kind !== 'record'
         ? plan.all.map((d) => ({ id: d.id, start_s: d.start_s, end_s: d.end_s, level: d.level }))

@@ -16,12 +16,14 @@ import { relative } from 'node:path';
 import { plausibilityWarnings } from '../campaign/plausibility.ts';
 import type { Campaign, Instrument } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
-import { checkSamples, openSamples } from '../io/sampleSource.ts';
+import { checkSamples, openSamples, sampleFormat } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { fileProblem } from '../io/fileKind.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
+import { buildWindowPlan } from '../windows/build.ts';
+import { loadConditionSeries } from './ensembles.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
 /** Input files checked at the same time at most (preflight). */
@@ -113,7 +115,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         ordered.push(
           checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() }).then(
             (h) => {
-              if (!h.hasDataLine) return new InputError(file, undefined, 'no usable rows: the file has a header and no data lines');
+              if (!h.hasDataLine) return new InputError(file, undefined, sampleFormat(file) === 'netcdf' ? 'no usable rows: the file has no rays (its time dimension is empty)' : 'no usable rows: the file has a header and no data lines');
               const size = statSync(file).size;
               return h.bytesPerLine > 0 ? size / h.bytesPerLine : 0; // estimated rows
             },
@@ -139,14 +141,16 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     };
     if (c.windDirection.kind === 'series') {
       const wd = c.windDirection;
-      directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg']));
+      directionSeries = series(() => readSeries(wd.file, wd.columns, ['direction_deg'], [], { holes: ['direction_deg'] }));
       if (directionSeries && directionSeries.time.length === 0) errors.push(new InputError(wd.file, undefined, 'the wind-direction series has no rows'));
     }
+    let stateSeries: Series | undefined;
     for (const t of c.turbines) {
       const ts = t.series;
       // The state turbine's series must give the yaw; the others may bring only their power.
       const required = t === stateTurbine(c) ? ['yaw_deg'] : [];
-      if (ts) series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status']));
+      const read = ts ? series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status'], { holes: ['yaw_deg'] })) : undefined;
+      if (t === stateTurbine(c)) stateSeries = read;
     }
     if (c.site.terrain) {
       try {
@@ -158,6 +162,25 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     if (c.inflow.kind === 'series') {
       const inf = c.inflow;
       series(() => readSeries(inf.file, inf.columns, ['height_m', 'speed_ms'], ['direction_deg']));
+    }
+    // The columns condition bins name (run reads them before any output; check must fail on them as run does).
+    if (c.conditions?.bins.length) {
+      try {
+        loadConditionSeries(c);
+      } catch (e) {
+        errors.push(e as Error);
+      }
+    }
+    // Windows that do not depend on the samples (lists, segments, fixed with a given anchor) are built by run before
+    // any output: build them here too, so that check fails on a bad window list or no steady span exactly as run
+    // does (only when the series they need were read, so that one problem is not reported twice).
+    const w = c.windows;
+    if (errors.length === 0 && !(w.kind === 'fixed' && w.anchor === 'first-sample')) {
+      try {
+        buildWindowPlan(c, { turbineSeries: w.kind === 'segments' ? stateSeries : undefined, directionSeries });
+      } catch (e) {
+        errors.push(e as Error);
+      }
     }
     if (opts.scan && errors.length === 0) {
       const found = await scanData(campaign, files);

@@ -198,7 +198,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   // their errors come before any output; fixed windows anchored at the first sample are built by the ingest.
   const stateSeries = stateTurbine(c).series;
   const turbineSeries = c.windows.kind === 'segments' && stateSeries
-    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'])
+    ? readSeries(stateSeries.file, stateSeries.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'], { holes: ['yaw_deg'] })
     : undefined;
   const planInputs = { turbineSeries, directionSeries: dirSeries };
   const early: BuiltWindowPlan | undefined =
@@ -354,6 +354,9 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     outputs.push(...finisher.outputs);
     if (built?.segments) manifest.segments = built.segments;
     if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
+    if (!finisher.disjoint && c.conditions?.bins.length) {
+      warnings.push('condition bins pool overlapping windows: a sample in k windows of a bin counts k times in its ensemble, so the ensemble\'s sample counts are inflated and its standard uncertainties too small (by up to the square root of k); use windows that do not overlap for ensembles');
+    }
     lap('ingest_total', t);
     const stageFieldTime = Object.values(finisher.times.stages).reduce((a, b) => a + b, 0);
     for (const [name, secs] of Object.entries(finisher.times.stages)) timings[name] = (timings[name] ?? 0) + secs;

@@ -42,7 +42,7 @@ export function loadWakeInputs(c: Campaign): WakeInputs {
   }
   const ts = stateTurbine(c).series;
   if (ts) {
-    inputs.turbineSeries = readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw']);
+    inputs.turbineSeries = readSeries(ts.file, ts.columns, ['yaw_deg'], ['wind_direction_deg', 'power_kw'], { holes: ['yaw_deg'] });
   }
   return inputs;
 }

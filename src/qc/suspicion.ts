@@ -523,7 +523,9 @@ export class SuspicionInspector {
         const bad = [...e.rejected].map(([r, k]) => `${r} ${k}`).join(', ');
         const f = e.firstRejected;
         errors.push(new InputError(name, undefined, bad && f
-          ? `no usable rows: none of its ${[...e.rejected.values()].reduce((a, b) => a + b, 0)} data lines could be read (${bad}; the first, line ${f.line}: ${f.detail})`
+          ? Number.isFinite(f.line)
+            ? `no usable rows: none of its ${[...e.rejected.values()].reduce((a, b) => a + b, 0)} data lines could be read (${bad}; the first, line ${f.line}: ${f.detail})`
+            : `no usable samples: none of its ${[...e.rejected.values()].reduce((a, b) => a + b, 0)} samples could be read (${bad}; the first, variable "${f.variable ?? '?'}" at ray ${f.ray ?? '?'}, gate ${f.gate ?? '?'}: ${f.detail})`
           : 'no usable rows: the file has a header and no data lines'));
         continue;
       }

@@ -3,7 +3,7 @@
  * the repository) and JSON for programs (dictionary.json), plus the compact column list of the README. All are
  * generated from the declarations; a test keeps the committed copies in step.
  */
-import { header, type Column, type Table } from './dictionary.ts';
+import { header, netcdfNames, type Column, type Table } from './dictionary.ts';
 import type { Precision } from './precision.ts';
 import { UNITS } from './units.ts';
 import { TABLES } from './tables/index.ts';
@@ -63,11 +63,13 @@ export function dictionaryMarkdown(): string {
 export function dictionaryJson(): string {
   const j = {
     precisionRule: PRECISION_RULE,
-    tables: TABLES.map((t) => ({
+    tables: TABLES.map((t) => ({ t, nc: netcdfNames(t.columns) })).map(({ t, nc }) => ({
       id: t.id, path: t.path, also: t.also ?? [], row: t.row,
-      columns: t.columns.map((c) => ({
+      columns: t.columns.map((c, k) => ({
         header: headerOf(c), name: c.name, unit: UNITS[c.unit].text, cfUnits: UNITS[c.unit].cf ?? null, frame: c.frame,
         meaning: c.meaning, precision: precisionText(c.precision), standardName: c.standardName ?? null, only: c.only ?? null,
+        // the variable's name where the table is also written as NetCDF rows (wake/*.nc); unique within the table
+        netcdfVariable: nc[k],
       })),
     })),
     netcdf: NETCDF_VARIABLES.map((v) => ({ name: v.name, units: UNITS[v.unit].cf ?? null, standardName: v.standardName ?? null, meaning: v.meaning })),

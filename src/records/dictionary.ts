@@ -6,7 +6,8 @@
  *
  * Naming: a column's `name` is what it is (no author names: published models keep their names in `meaning`); the
  * CSV header is the name followed by the unit's suffix (`u` in m/s -> `u_ms`, `y` in m -> `y_m`), the NetCDF
- * variable is the name with a CF `units` attribute.
+ * variable is the name with a CF `units` attribute, or the CSV header where an earlier column of the table has the
+ * same name (`x` in m and `x_D` in rotor diameters): `netcdfNames`, used by the writer and the dictionary alike.
  */
 import type { Precision } from './precision.ts';
 import { UNITS, type UnitId } from './units.ts';
@@ -44,6 +45,21 @@ export interface Table {
 export function header(c: Column): string {
   const suffix = UNITS[c.unit].csv;
   return suffix ? `${c.name}_${suffix}` : c.name;
+}
+
+/**
+ * NetCDF variable name of each column of a table written as NetCDF rows (null: not written, as ISO time text next to
+ * its Unix-seconds twin): the column's name, or its CSV header when the name is taken (by `reserved`, e.g. the row
+ * dimension, or an earlier column).
+ */
+export function netcdfNames(columns: readonly Column[], reserved: readonly string[] = []): (string | null)[] {
+  const used = new Set(reserved);
+  return columns.map((c) => {
+    if (c.unit === 'iso') return null;
+    const name = used.has(c.name) ? header(c) : c.name;
+    used.add(name);
+    return name;
+  });
 }
 
 /** Shorthand for declarations. */

@@ -9,7 +9,7 @@ import { parseTime } from '../io/time.ts';
 import { directionAt } from './direction.ts';
 import { windowsFromFile, windowsFromItems } from './list.ts';
 import { fixedPlan, recordPlan, tablePlan, type WindowPlan } from './plan.ts';
-import { segmentWindows, type SegmentSummary } from './segments.ts';
+import { defaultSegmentGap, medianInterval, segmentWindows, type SegmentSummary } from './segments.ts';
 
 export interface WindowPlanInputs {
   /** Time of the earliest sample of the run, Unix seconds (for the "first-sample" anchor). */
@@ -49,13 +49,18 @@ export function buildWindowPlan(c: Campaign, inputs: WindowPlanInputs): BuiltWin
     case 'segments': {
       const ts = inputs.turbineSeries;
       if (!ts) throw new ConfigError(c.sourceFile, 'windows', 'segment windows need the turbine series (turbine.series with yaw_deg)');
-      const { windows, summary } = segmentWindows(ts, (t) => directionAt(c, inputs.directionSeries, t, w.maxGap_s), {
-        levels_deg: w.levels_deg, tolerance_deg: w.tolerance_deg, minDuration_s: w.minDuration_s, maxGap_s: w.maxGap_s,
+      const maxGap_s = w.maxGap_s ?? defaultSegmentGap(ts);
+      // A row's wind direction: the nearest direction row, within maxGap_s or the direction series' own median
+      // interval, whichever is longer (a 10-minute mean stands for its period: with one row every 600 s, the nearest
+      // is at most 300 s away, one missing row makes it 600 s).
+      const reach = Math.max(maxGap_s, inputs.directionSeries ? medianInterval(inputs.directionSeries) : 0);
+      const { windows, summary } = segmentWindows(ts, (t) => directionAt(c, inputs.directionSeries, t, reach), {
+        levels_deg: w.levels_deg, tolerance_deg: w.tolerance_deg, minDuration_s: w.minDuration_s, maxGap_s,
         settle_s: w.settle_s, windSector_deg: w.windSector_deg, power_kw: w.power_kw, subWindow_s: w.subWindow_s,
       });
       if (windows.length === 0) {
         const ex = Object.entries(summary.excluded_s).filter(([, v]) => v > 0).map(([k, v]) => `${k} ${Math.round(v)} s`).join(', ');
-        throw new ConfigError(c.sourceFile, 'windows', `no steady span of at least ${w.minDuration_s} s at the levels ${w.levels_deg.join(', ')} deg in ${ts.file} (excluded: ${ex || 'everything'})`);
+        throw new ConfigError(c.sourceFile, 'windows', `no steady span of at least ${w.minDuration_s} s at the levels ${w.levels_deg.join(', ')} deg in ${ts.file} (excluded: ${ex || 'everything'}; rows over ${Math.round(maxGap_s)} s apart are a gap)`);
       }
       return { plan: tablePlan('segment', windows), segments: summary };
     }

@@ -5,8 +5,11 @@
  * (nearest level), where gamma = nacelle - wind direction wrapped to [-180, 180) degrees (the house convention:
  * positive when the nacelle is turned clockwise seen from above); the wind direction is the series' own
  * wind_direction_deg where given, else the campaign's wind-direction source at that time. A row is excluded as
- * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails, "gap"
- * when it lacks the values. Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
+ * "transition" when no level is within tolerance, "wind_sector" or "power" when an optional condition fails. A row
+ * that lacks the values (a logger's dropout: an empty yaw cell, no wind direction within reach, or no power under a
+ * power condition) says nothing about the state and is skipped, as if it were not in the file: the rows around it
+ * decide, and the time between them is a gap when they are more than maxGap_s apart (so a dropout of a few rows
+ * inside a steady step does not cut it, while a long one does). Consecutive rows of one level, no more than maxGap_s apart, form a span from the first of
  * them to the last (the time between rows of different states is a transition: when exactly the state changed
  * between them is unknown, so it is excluded rather than guessed); the first settle_s of a span are excluded
  * ("settle": the wake needs time to reach the planes after a yaw step), spans shorter than minDuration_s are
@@ -39,7 +42,31 @@ export interface SegmentSettings {
 export const EXCLUSION_REASONS = ['transition', 'wind_sector', 'power', 'gap', 'settle', 'short', 'remainder'] as const;
 export type ExclusionReason = (typeof EXCLUSION_REASONS)[number];
 
+/**
+ * The gap between series rows beyond which the state is unknown, when the campaign does not give one: 2.5 times the
+ * median interval between consecutive rows, at least 60 s. So one missing row (twice the interval) or a logger clock
+ * that jitters around its rate is not a gap, while two missing rows (three intervals) are; a series of one row a
+ * minute is not cut at every interval a little over 60 s. A choice of ours, not a published rule.
+ */
+export function defaultSegmentGap(series: Series): number {
+  const median = medianInterval(series);
+  return median > 0 ? Math.max(60, 2.5 * median) : 60;
+}
+
+/** Median interval between consecutive rows of a series (ascending times), seconds; 0 with fewer than two. */
+export function medianInterval(series: Series): number {
+  const T = series.time;
+  const d: number[] = [];
+  for (let i = 1; i < T.length; i++) if (T[i] > T[i - 1]) d.push(T[i] - T[i - 1]);
+  if (d.length === 0) return 0;
+  d.sort((a, b) => a - b);
+  const m = d.length >> 1;
+  return d.length % 2 ? d[m] : (d[m - 1] + d[m]) / 2;
+}
+
 export interface SegmentSummary {
+  /** Rows further apart than this were a gap, seconds (the campaign's maxGap_s or defaultSegmentGap). */
+  maxGap_s: number;
   /** Series time span considered, seconds. */
   total_s: number;
   /** Time inside windows, seconds. */
@@ -68,7 +95,7 @@ export function segmentWindows(
   const T = series.time;
   const N = T.length;
   const excluded = Object.fromEntries(EXCLUSION_REASONS.map((r) => [r, 0])) as Record<ExclusionReason, number>;
-  const summary: SegmentSummary = { total_s: 0, windows_s: 0, excluded_s: excluded, spans: 0, windows: 0 };
+  const summary: SegmentSummary = { maxGap_s: s.maxGap_s, total_s: 0, windows_s: 0, excluded_s: excluded, spans: 0, windows: 0 };
   const windows: Omit<WindowDef, 'id'>[] = [];
   if (N === 0) return { windows, summary };
   const yaw = series.values.yaw_deg, wd = series.values.wind_direction_deg, pw = series.values.power_kw;
@@ -90,6 +117,9 @@ export function segmentWindows(
     if (s.windSector_deg && !inSector(dir, s.windSector_deg.from, s.windSector_deg.to)) { state[i] = SECTOR; continue; }
     if (s.power_kw) {
       const p = pw ? pw[i] : NaN;
+      // A row without a power value (a dropout in a series that has the column) says nothing about the condition:
+      // skipped like a row without a yaw. A series without the column fails the condition everywhere.
+      if (pw && !Number.isFinite(p)) { state[i] = GAP; continue; }
       const lo = s.power_kw.min ?? -Infinity, hi = s.power_kw.max ?? Infinity;
       if (!(p >= lo && p <= hi)) { state[i] = POWER; continue; }
     }
@@ -117,19 +147,24 @@ export function segmentWindows(
     }
   };
 
-  // The state is known at the rows only. Between two consecutive rows of one level (no gap) it is taken as steady;
-  // any other interval between rows is excluded, by the reason of the row that is not at a level (transition when
-  // both are at different levels), or as a gap when the rows are more than maxGap_s apart.
-  let spanLevel = -1, spanStart = NaN, spanEnd = NaN;
+  // The state is known at the rows only (rows without values skipped). Between two consecutive rows of one level (no
+  // gap) it is taken as steady; any other interval between rows is excluded, by the reason of the row that is not at
+  // a level (transition when both are at different levels), or as a gap when the rows are more than maxGap_s apart.
+  // Time before the first and after the last row with values is a gap.
+  let spanLevel = -1, spanStart = NaN, spanEnd = NaN, last = -1;
   for (let i = 0; i < N; i++) {
     const st = state[i];
-    if (i > 0) {
-      const dt = T[i] - T[i - 1];
-      const prev = state[i - 1];
+    if (st === GAP) continue;
+    if (last < 0) {
+      excluded.gap += T[i] - T[0];
+    } else {
+      const dt = T[i] - T[last];
+      const prev = state[last];
       if (dt > s.maxGap_s) {
         excluded.gap += dt;
       } else if (st >= 0 && st === prev) {
         spanEnd = T[i];
+        last = i;
         continue;
       } else {
         excluded[prev < 0 ? reasonOf(prev) : st < 0 ? reasonOf(st) : 'transition'] += dt;
@@ -138,7 +173,9 @@ export function segmentWindows(
     if (spanLevel >= 0) closeSpan(spanLevel, spanStart, spanEnd);
     spanLevel = st;
     spanStart = spanEnd = T[i];
+    last = i;
   }
+  excluded.gap += last < 0 ? T[N - 1] - T[0] : T[N - 1] - T[last];
   if (spanLevel >= 0) closeSpan(spanLevel, spanStart, spanEnd);
   summary.total_s = T[N - 1] - T[0];
   summary.windows = windows.length;

@@ -8,7 +8,13 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { parse, stringify } from 'yaml';
 import { HEADER, freshCampaign, runCli } from './helpers.ts';
+
+/** Replaces the campaign file's windows. */
+function setWindows(file: string, windows: Record<string, unknown>): void {
+  writeFileSync(file, stringify({ ...parse(readFileSync(file, 'utf8')), windows }));
+}
 
 describe('data paths that are not data files', () => {
   const cases: [string, (dir: string) => string, string][] = [
@@ -146,6 +152,18 @@ describe('check validates what run reads and fails exactly when run would', () =
       const p = join(dir, 'data', 'turbine.csv');
       writeFileSync(p, readFileSync(p, 'utf8').replace(/^time,yaw_deg/, 'time,nacelle'));
     }, /turbine\.csv:1: missing required column "yaw_deg"/],
+    // Regression: check passed this campaign while run stopped on it (the bin's column was read only by run).
+    ['a condition bin on a column the turbine series lacks', (_dir, file) => {
+      writeFileSync(file, readFileSync(file, 'utf8') + 'conditions:\n  bins:\n    - { variable: turbine.pitch_deg, edges: [0, 5] }\n');
+    }, /turbine\.csv:1: conditions\.bins\[0\]\.variable "turbine\.pitch_deg": no column "pitch_deg"/],
+    // Regressions: check passed these (the window plan was built only by run, before its first output).
+    ['a window list with a reversed row', (dir, file) => {
+      writeFileSync(join(dir, 'log.csv'), 'start,end,label\n2026-03-01T12:01:00Z,2026-03-01T12:04:00Z,a\n2026-03-01T12:09:00Z,2026-03-01T12:06:00Z,b\n');
+      setWindows(file, { kind: 'list', file: 'log.csv' });
+    }, /log\.csv:3: window list: end "2026-03-01T12:06:00Z" is not after start "2026-03-01T12:09:00Z"/],
+    ['segment windows that find no steady span', (_dir, file) => {
+      setWindows(file, { kind: 'segments', levels_deg: [40] });
+    }, /windows: no steady span of at least 300 s at the levels 40 deg in .*turbine\.csv/],
   ];
   for (const [what, damage, message] of cases) {
     it(`${what}: both exit 1 with the same message; run writes nothing`, async () => {

@@ -18,7 +18,7 @@ export const wakeTable: Table = {
     col('end', 'unix_s', dec(3), 'window end, seconds since 1970-01-01 UTC'),
     col('window_kind', 'text', TEXT, 'why the window exists: fixed, list, segment or record'),
     col('window_label', 'text', TEXT, 'the window\'s label (list label or state level)'),
-    col('state_level', 'deg', dec(3), 'segment windows: the yaw-offset level of the state'),
+    col('state_level', 'deg', dec(3), 'segment windows: the yaw-offset level of the state; ensembles: the level all their windows share (empty when they differ)'),
     col('x', 'm', dec(3), 'downstream distance of a cross plane (NaN for a horizontal plane)', rotor),
     col('x', 'D', dec(5), 'downstream distance in rotor diameters', rotor),
     col('direction', 'deg', dec(3), 'wind direction (from) defining the rotor frame', site),
