@@ -41,7 +41,6 @@
 import type { Campaign } from '../campaign/types.ts';
 import { calibrationMatrix } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
-import { SinCosCache } from '../geometry/trigCache.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame } from '../grid/target.ts';
@@ -233,8 +232,6 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const nacelles = opts.nacelleFrames ?? [];
   const onNacelle = Uint8Array.from(c.instruments, (i) => (nacelles[i.index] ? 1 : 0));
   const nb = new Float64Array(6);
-  // Sine and cosine of the reported angles, remembered per millidegree (geometry/trigCache.ts: the same doubles).
-  const azTrig = new SinCosCache(0, 360), elTrig = new SinCosCache(-90, 90);
   // The sample handed to the targets (fields SAMPLE of grid/target.ts, in that order), reused for every sample.
   const smp = new Float64Array(SAMPLE_FIELDS);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
@@ -437,10 +434,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
         if (onNacelle[ins] === 0) {
           if (az !== lastAz[ins] || el !== lastEl[ins]) {
-            azTrig.sinCos(az);
-            elTrig.sinCos(el);
-            const ce = elTrig.cos;
-            const x0 = ce * azTrig.sin, y0 = ce * azTrig.cos, z0 = elTrig.sin;
+            const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
+            const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
             const m = Rm[ins];
             nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
             nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
