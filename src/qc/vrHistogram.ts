@@ -412,15 +412,19 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
     // Centres ascend with j, so |x - med| > limit holds on a prefix (x below med) and a suffix (x above) of the
     // entries: only those are walked, in ascending order as a walk over all entries would add them (same sums,
     // bit for bit). Below med |x - med| is med - x exactly (IEEE subtraction is sign-symmetric).
-    let j = 0;
-    for (; j < len; j++) {
-      const x = centre(j);
-      if (!(med - x > limit)) break;
+    // The two boundaries by bisection on those monotone conditions (a few centres computed, not one per entry).
+    let a = 0, b = len;
+    while (a < b) { const m = (a + b) >> 1; if (med - centre(m) > limit) a = m + 1; else b = m; }
+    const lowEnd = a; // entries [0, lowEnd) lie below med - limit
+    b = len;
+    while (a < b) { const m = (a + b) >> 1; if (centre(m) - med > limit) b = m; else a = m + 1; }
+    const top = a; // entries [top, len) lie above med + limit
+    for (let j = 0; j < lowEnd; j++) {
       const c = counts[j];
-      if (c !== 0) { rej += c; rs += c * x; rss += c * x * x; }
+      if (c === 0) continue;
+      const x = centre(j);
+      rej += c; rs += c * x; rss += c * x * x;
     }
-    let top = len;
-    while (top > j && centre(top - 1) - med > limit) top--;
     for (let i = top; i < len; i++) {
       const c = counts[i];
       if (c === 0) continue;
