@@ -170,8 +170,7 @@ describe('our NetCDF-4 sample writer and the reader', () => {
     expect(threaded.rejected).toEqual(direct.rejected);
     expect(threaded.batches).toBe(direct.batches);
     expect(direct.rejected.map((r) => [r.ray, r.gate, r.reason])).toEqual([[12, 3, 'missing_value']]);
-    // Checked on the thread first (as a run does): the thread keeps the checked file open for the read that follows;
-    // the same samples in the same blocks (bit for bit).
+    // Checked on the thread first (as a run does), then read there: the same samples in the same blocks (bit for bit).
     expect((await checkSamples(file, opts({ thread: true }))).hasDataLine).toBe(true);
     const afterCheck = await readAll(file, opts({ batchSize: 2000, thread: true }));
     expect(afterCheck.rows).toEqual(direct.rows);

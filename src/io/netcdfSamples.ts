@@ -44,36 +44,11 @@ async function open(path: string, opts: SampleReaderOptions): Promise<{ f: H5Fil
   }
 }
 
-type Opened = Awaited<ReturnType<typeof open>>;
-
-/**
- * Files checkNetcdf opened, left open for the reading that follows (by file, owner, column names and sign): the
- * first file checked of each instrument (the one its ingest starts with; later ones would be held open for long),
- * at most keepChecked of them. Only the reader thread keeps them (keepCheckedFiles): a run checks every file before
- * its ingest reads them, and opening a file (its metadata) is a few tens of milliseconds each time.
- */
-const kept = new Map<string, Opened>();
-const keptOwners = new Set<number>();
-let keepChecked = 0;
-
-/** Keep up to `n` checked files open for their reader, one per instrument (0: close each after its check, the default). */
-export function keepCheckedFiles(n: number): void {
-  keepChecked = n;
-}
-
-function keptKey(path: string, opts: SampleReaderOptions): string {
-  return `${path}\u0000${opts.owner}\u0000${JSON.stringify(opts.columns ?? null)}\u0000${opts.sign ?? ''}`;
-}
-
 /** Resolves the variables, dimensions and units without reading samples; throws InputError naming the variable. */
 export async function checkNetcdf(path: string, opts: SampleReaderOptions): Promise<{ rays: number; gates: number }> {
-  const o = await open(path, opts);
-  const k = keptKey(path, opts);
-  if (kept.size < keepChecked && !keptOwners.has(opts.owner) && !kept.has(k)) {
-    kept.set(k, o);
-    keptOwners.add(opts.owner);
-  } else o.f.close();
-  return { rays: o.layout.rays, gates: o.layout.gates };
+  const { f, layout } = await open(path, opts);
+  f.close();
+  return { rays: layout.rays, gates: layout.gates };
 }
 
 /**
@@ -206,10 +181,7 @@ function createBatch(file: string, n: number): SampleBatch {
  * InputError for a structure problem before the first yield. A batch is valid until the next pull (reuseBatches).
  */
 export async function* readNetcdfSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
-  const k = keptKey(path, opts);
-  const ready = kept.get(k);
-  kept.delete(k);
-  const { f, layout: L, sign } = ready ?? (await open(path, opts));
+  const { f, layout: L, sign } = await open(path, opts);
   let cleanup = () => {};
   try {
     const G = L.gates, target = opts.batchSize ?? 65536;

@@ -12,7 +12,6 @@ import { parentPort } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
 import { batchBuffers, type SampleBatch } from './batch.ts';
 import type { SampleChunk, SampleReaderOptions } from './csvSamples.ts';
-import { keepCheckedFiles } from './netcdfSamples.ts';
 import { checkSamples, openSamples } from './sampleSource.ts';
 
 /** Chunks a file may have in flight (posted, not yet taken back by a request). */
@@ -27,9 +26,6 @@ interface Reader {
 }
 
 const readers = new Map<number, Reader>();
-// A run checks its files on this thread, then reads them here: each instrument's first checked file stays open for
-// its reader.
-keepCheckedFiles(16);
 const port = parentPort!;
 
 async function pump(id: number): Promise<void> {

@@ -26,9 +26,6 @@ import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
-/** Input files checked at the same time at most (preflight). */
-const CHECKS_AHEAD = 8;
-
 export interface PreflightOptions {
   /** Output root (absolute). */
   outRoot: string;
@@ -86,15 +83,11 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
     const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
     const seen = new Map<string, { file: string; ins: Instrument }>();
     const keep = new Map<number, string[]>();
-    // Each file's problem in campaign order: an error, or a check under way. Up to CHECKS_AHEAD checks run together
-    // (NetCDF files are checked on the reader thread, which then takes them one after the other without waiting for
-    // the main thread); no more, so that a campaign of thousands of files does not open them all at once.
-    const ordered: (Error | Promise<Error | number>)[] = [];
     for (const ins of c.instruments) {
       for (const file of ins.files) {
         const bad = fileProblem(file);
         if (bad) {
-          ordered.push(new InputError(file, undefined, bad.kind === 'missing' ? `data file of instrument "${ins.id}" not found` : `data file of instrument "${ins.id}" ${bad.reason}`));
+          errors.push(new InputError(file, undefined, bad.kind === 'missing' ? `data file of instrument "${ins.id}" not found` : `data file of instrument "${ins.id}" ${bad.reason}`));
           continue;
         }
         let real = file;
@@ -111,23 +104,15 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         seen.set(real, { file, ins });
         keep.set(ins.index, [...(keep.get(ins.index) ?? []), file]);
         files.push({ file, ins });
-        if (ordered.length >= CHECKS_AHEAD) await ordered[ordered.length - CHECKS_AHEAD]; // never rejects (see below)
-        ordered.push(
-          checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() }).then(
-            (h) => {
-              if (!h.hasDataLine) return new InputError(file, undefined, sampleFormat(file) === 'netcdf' ? 'no usable rows: the file has no rays (its time dimension is empty)' : 'no usable rows: the file has a header and no data lines');
-              const size = statSync(file).size;
-              return h.bytesPerLine > 0 ? size / h.bytesPerLine : 0; // estimated rows
-            },
-            (e: unknown) => e as Error,
-          ),
-        );
+        try {
+          const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() });
+          if (!h.hasDataLine) errors.push(new InputError(file, undefined, sampleFormat(file) === 'netcdf' ? 'no usable rows: the file has no rays (its time dimension is empty)' : 'no usable rows: the file has a header and no data lines'));
+          const size = statSync(file).size;
+          estimatedRows += h.bytesPerLine > 0 ? size / h.bytesPerLine : 0;
+        } catch (e) {
+          errors.push(e as Error);
+        }
       }
-    }
-    for (const o of ordered) {
-      const r = await o;
-      if (typeof r === 'number') estimatedRows += r;
-      else errors.push(r);
     }
     if (c.instruments.every((i) => i.files.length === 0)) errors.push(new InputError(c.sourceFile, undefined, 'no data files: list them under instruments[].files'));
     campaign = { ...c, instruments: c.instruments.map((i) => ({ ...i, files: keep.get(i.index) ?? [] })) };
