@@ -463,9 +463,12 @@ export async function checkHeader(path: string, opts: SampleReaderOptions): Prom
 export async function* readSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const batchSize = opts.batchSize ?? 65536;
   const blocks = await openBlocks(path, opts.highWaterMark ?? 1 << 20, opts.gzip);
+  const reuse = opts.reuseBatches ?? true;
+  let st: ReaderState | undefined;
+  let spare: SampleBatch | null = null;
   try {
     const head = await readHeader(path, opts, blocks);
-    const st: ReaderState = {
+    st = {
       ctx: { layout: head.layout, instrumentIndex: opts.instrumentIndex, owner: opts.owner, days: createDayCache() },
       batch: pooledBatch(opts.batchPool, path, batchSize) ?? createBatch(path, batchSize),
       rejected: [],
@@ -476,9 +479,7 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
       idIndex: -1,
       values: new Float64Array(7),
     };
-    const reuse = opts.reuseBatches ?? true;
     const canonical = isCanonicalLayout(head.layout);
-    let spare: SampleBatch | null = null;
     let block = head.block;
     let pos = head.pos;
     while (block !== null) {
@@ -506,13 +507,14 @@ export async function* readSamples(path: string, opts: SampleReaderOptions): Asy
       pos = 0;
     }
     if (st.batch.length > 0 || st.rejected.length > 0) yield { batch: st.batch, rejected: st.rejected };
-    // The consumer pulled after the last chunk: every batch of this stream is free. With a pool (a run reading many
-    // files one after the other), the next file fills them instead of allocating its own.
-    if (reuse && opts.batchPool) {
+  } finally {
+    // The consumer pulled after the last chunk, or ended the stream: by the reuseBatches contract every batch of this
+    // stream is free. With a pool (a run reading many files one after the other), the next file fills them instead
+    // of allocating its own.
+    if (st && reuse && opts.batchPool) {
       opts.batchPool.push(st.batch);
       if (spare) opts.batchPool.push(spare);
     }
-  } finally {
     await blocks.close();
   }
 }
