@@ -4,8 +4,9 @@
  * downstream knows the format.
  *
  * Reads blocks of whole rays: hyperslabs [r0, r1) x all gates of the radial velocity and CNR (r1 - r0 a multiple of
- * the variable's chunk rows, about `batchSize` samples; the first block one chunk of rays when that is less), and the matching slices of time, azimuth, elevation and a
- * per-ray range; only the 1-D range of the gates is read whole. Never the file.
+ * the variable's chunk rows, about `batchSize` samples; the first block one chunk of rays when that is less), and
+ * the matching slices of time, azimuth, elevation and a per-ray range; only the 1-D range of the gates is read
+ * whole. Never the file.
  *
  * Every sample (ray, gate) ends up either in a batch or rejected, so samples read = batch rows + rejected exactly:
  * a missing value (fill, missing_value, outside the valid range, NaN) of time, azimuth, elevation, range or radial

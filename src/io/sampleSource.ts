@@ -67,6 +67,13 @@ export async function* openSamples(path: string, opts: SampleReaderOptions): Asy
 }
 
 /**
+ * Files whose first batches a run keeps open while it starts (about 1 MB each, more ahead on the reader thread); with
+ * more files, one per instrument (pipeline/ingest.ts, qc/cnrLimits.ts readPrepass), so that memory and open files do
+ * not grow with the number of files.
+ */
+export const KEEP_PRIMED = 8;
+
+/**
  * Files opened once and read up to their first chunk, shared by the steps of a run that begin with the head of every
  * file: the CNR pre-pass (qc/cnrLimits.ts) looks at the first chunk of the NetCDF and compressed files, then the
  * ingest takes over each opened stream where it stands, with that chunk as its first, instead of opening and
@@ -74,13 +81,6 @@ export async function* openSamples(path: string, opts: SampleReaderOptions): Asy
  * before the ingest could start). Keyed by path and owning instrument; a stream nobody takes is closed by close().
  * The chunk stays valid until the stream is pulled again (the readers' reuse contract), so it is handed over once.
  */
-/**
- * Files whose first batches a run keeps open while it starts (about 1 MB each, more ahead on the reader thread); with
- * more files, one per instrument (pipeline/ingest.ts, qc/cnrLimits.ts readPrepass), so that memory and open files do
- * not grow with the number of files.
- */
-export const KEEP_PRIMED = 8;
-
 export class PrimedFiles {
   private readonly open = new Map<string, { it: AsyncIterator<SampleChunk>; first: Promise<IteratorResult<SampleChunk>> }>();
 

@@ -268,6 +268,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     pendingFrom: -Infinity,
     /** Primed, then closed until its turn (many files: see KEEP_PRIMED): reopened from its start when first pulled. */
     waiting: false,
+    /** The file, to open it again (see waiting). */
+    file: f,
     path: f.path,
     owner: f.owner,
     rows: 0,
@@ -286,7 +288,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     cur.pending = undefined;
     cur.waiting = true;
     await cur.it.return?.(undefined);
-    cur.it = stream(files[cursors.indexOf(cur)]);
+    cur.it = stream(cur.file);
   };
   for (const cur of cursors) {
     const r = await (cur.first ?? cur.it.next());

@@ -108,6 +108,7 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
   // are at most KEEP_PRIMED of them, else the first of each instrument (as the ingest keeps them: pipeline/ingest.ts);
   // the others are read here and closed. Their heads asked for at once: the reader thread then reads each file's first
   // chunk before any file's second, instead of one file at a time as the heads are awaited below.
+  const optsOf = (ins: (typeof c.instruments)[number]) => ({ instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign });
   const streamed = [...quotas].filter(([path]) => sampleFormat(path) !== 'csv');
   const primedPaths = new Set<string>();
   if (primed) {
@@ -116,11 +117,11 @@ export async function readPrepass(c: Campaign, rowsPerInstrument: number, which:
       if (streamed.length > KEEP_PRIMED && firstOf.has(ins.index)) continue;
       firstOf.add(ins.index);
       primedPaths.add(path);
-      primed.head(path, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign }).catch(() => {});
+      primed.head(path, optsOf(ins)).catch(() => {});
     }
   }
   for (const [path, { quota, ins }] of quotas) {
-    const opts = { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign };
+    const opts = optsOf(ins);
     if (sampleFormat(path) === 'csv') {
       readCsvSlices(path, opts, quota, PREPASS_SLICES, (v) => add(v.instrument, v.time, v.azimuth, v.elevation, v.range, v.radialVelocity, v.cnr));
       continue;
