@@ -165,7 +165,7 @@ function byCnr(s: SampleColumns, use: Uint32Array, mem: Uint32Array, m: number):
 
 /**
  * Each member of a group (mem[0, m), strongest first) with at least minGroup - 1 stronger ones: its deviation from
- * their median (a running sorted list, `sorted` at least MAX_REFERENCE long). The strongest minGroup - 1 have no
+ * their median (a running sorted list in `sorted`, at least m long). The strongest minGroup - 1 have no
  * reference: in a group that is mostly junk they could be good samples among junk, and comparing them with each
  * other would count junk as their neighbours.
  */
