@@ -142,8 +142,9 @@ describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.py
     }
     const g = readCsv(join(res.runDir, 'power', 'power_gain.csv')).filter((r) => r.turbine === 'R-2');
     for (const r of g) {
-      // Mean steered minus mean baseline centre: as above, 2 m.
-      expect(Math.abs(Number(r.deflection_m) - e.deflection_R2), `${r.direction_lo_deg} ${r.speed_lo_ms}`).toBeLessThan(2);
+      // Mean steered minus mean baseline centre: each mean within the 2 m above, so 4 m (the per-window standard
+      // errors, 0.2-1.3 m, leave out the discretisation: its scatter between windows is 2-3 m here).
+      expect(Math.abs(Number(r.deflection_m) - e.deflection_R2), `${r.direction_lo_deg} ${r.speed_lo_ms}`).toBeLessThan(4);
     }
   });
 });
