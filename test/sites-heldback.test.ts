@@ -148,3 +148,22 @@ describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.py
     }
   });
 });
+
+describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('still takes the windows\' state from a steered turbine, not from the unyawed reference', async () => {
+    // Regression: the state of listed windows came from the first turbine with a series; listing the reference
+    // (never yawed) first made every window a baseline and left power_gain.csv without a row. The script's states
+    // are R-1's (the first steered turbine); its gains as above (exact to the written precision, 6e-5).
+    const d = generate('heldback_row.py', ['--reference-first', '--rate', '2']);
+    const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
+    const res = await run(d);
+    const wp = readCsv(join(res.runDir, 'power', 'window_power.csv'));
+    for (const w of x.windows) expect(wp.find((r) => Number(r.window) === w.window)!.state, `window ${w.window}`).toBe(w.state);
+    const g = readCsv(join(res.runDir, 'power', 'power_gain.csv'));
+    for (const turbine of ['R-2', 'R-3']) {
+      const c = g.find((r) => r.turbine === turbine && r.direction_lo_deg === 'all');
+      expect(c, turbine).toBeDefined();
+      expect(Math.abs(Number(c!.gain) - x.gains[turbine].combined)).toBeLessThan(6e-5);
+    }
+  }, 120_000);
+});
