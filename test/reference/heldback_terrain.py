@@ -27,8 +27,9 @@ nodes (or the exact hill for the rotated raster, where wakeplane resamples), by 
 - beam_blocked: the point is above that, but the beam passes below the ground somewhere before it;
 - else the point lies in the terrain-following plane (40 +/- 15 m above the ground, within its lateral extent) or
   outside it (outside_planes).
-Rows whose decision lies within 1.5 m of a threshold (point clearance, plane slab and edges, lowest beam clearance) are not
-written, so the expected counts do not hang on interpolation or the march step. Radial velocity 3 m/s, CNR -8 dB.
+Rows whose decision lies within 1.5 m of a threshold (point clearance, plane slab and edges, lowest beam clearance), or
+for the turned raster within two pixels of its edge (wakeplane resamples it onto a site grid), are not written, so
+the expected counts do not hang on interpolation or the march step. Radial velocity 3 m/s, CNR -8 dB.
 """
 import json
 import math
@@ -218,6 +219,12 @@ while min(len(v) for v in written.values()) < 400 and tries < 200000:
         rr = rng.uniform(60, 1400)
     nb = np.array([math.cos(math.radians(el)) * math.sin(math.radians(az)), math.cos(math.radians(el)) * math.cos(math.radians(az)), math.sin(math.radians(el))])
     p = o + rr * nb
+    if KIND == "rotated":
+        # wakeplane resamples a turned raster onto a site grid of its pixel size: within two pixels of the raster's
+        # edge, whether a point has ground depends on that grid. Such rows are not written.
+        I, J = rc(p[0], p[1])
+        if min(abs(I), abs(I - (nx - 1)), abs(J), abs(J - (ny - 1))) < 2 and -2 < I < nx + 1 and -2 < J < ny + 1:
+            continue
     if not extent(p[0], p[1]):
         reason = "outside_terrain"
     else:
