@@ -12,7 +12,7 @@
  *   terrain-following plane or outside it.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -22,6 +22,7 @@ import { runCampaign, type RunResult } from '../src/pipeline/run.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
 import { readCsv } from './helpers/csvTable.ts';
 import { debianPython } from './helpers/python.ts';
+import { runCli, snapshot } from './faults/helpers.ts';
 
 const py = debianPython(['numpy', 'scipy']);
 
@@ -33,7 +34,7 @@ interface RowGain {
   bins: { bin: [number, number]; n_base: number; n_steer: number; ratio_base: number; ratio_steer: number; gain: number; weight: number }[];
   combined: number; combined_ci: [number, number]; combined_se: number;
 }
-interface RowExpected { windows: RowWindow[]; gains: Record<string, RowGain>; deflection_R2: number }
+interface RowExpected { windows: RowWindow[]; gains: Record<string, RowGain>; deflection_R2: number; faults: { negative_line: number; gap_lines: [number, number] } }
 
 function generate(script: string, args: string[]): string {
   const dir = mkdtempSync(join(tmpdir(), 'wakeplane-sites-heldback-'));
@@ -84,6 +85,11 @@ describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.py
     expect(e.windows[4].flag['R-3']).toBe('unavailable');
     expect(e.windows[9].flag['R-2']).toBe('negative_power');
     expect(e.windows[14].flag['R-3']).toBe('gap');
+    // Each names the file and the line(s) as written (rows shuffled in blocks: the lines are the script's count).
+    const reason = (w: number, t: string) => wp.find((x) => Number(x.window) === w && x.turbine === t)!.reason;
+    expect(reason(9, 'R-2')).toBe(`${join(dir, 'data', 'R-2.csv')}:${e.faults.negative_line}: negative power -12.5 kW`);
+    expect(reason(14, 'R-3')).toMatch(new RegExp(`R-3\\.csv:${e.faults.gap_lines[0]}-${e.faults.gap_lines[1]}: \\d+ s between rows`));
+    expect(reason(4, 'R-3')).toMatch(/R-3\.csv: \d+ of \d+ rows available with power/);
   });
 
   it('gives the energy ratios and gains of every bin and the combined gain of the rows written', () => {
@@ -189,4 +195,62 @@ describe.skipIf(!py.python)(`held-back terrain: one hill in four rasters${py.pyt
       expect(res.manifest.samples.balanced).toBe(true);
     }, 60_000);
   }
+});
+
+describe.skipIf(!py.python)(`held-back bad input of issue 16: one line naming file and key or line, before any output${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir: string;
+  beforeAll(async () => {
+    dir = generate('heldback_terrain.py', ['--raster', 'tiepoint']);
+    // An earlier good result in the output folder: a refused run must leave it (and everything else) as it was.
+    const r = await runCli(['run', join(dir, 'campaign.yaml')]);
+    expect(r.code, r.stderr).toBe(0);
+  }, 60_000);
+
+  const variant = (name: string, edit: (c: Record<string, any>) => void): string => {
+    const c = JSON.parse(readFileSync(join(dir, 'campaign.yaml'), 'utf8')) as Record<string, any>;
+    edit(c);
+    const file = join(dir, `${name}.yaml`);
+    writeFileSync(file, JSON.stringify(c, null, 1));
+    return file;
+  };
+
+  const cases: [string, (c: Record<string, any>) => void, RegExp][] = [
+    ['a turbine listed twice', (c) => { c.turbines = [c.turbine, { ...c.turbine, position_m: [900, 200, 12] }]; delete c.turbine; },
+      /twice\.yaml:\d+:\d+: turbines\[1\]\.id: turbine ids must be unique/],
+    ['overlapping rotors', (c) => { c.turbines = [c.turbine, { ...c.turbine, id: 'H-2', position_m: [700, 200, 12] }]; delete c.turbine; },
+      /overlap\.yaml:\d+:\d+: turbines\[1\]\.position_m: rotors overlap with turbine "H-1"/],
+    ['a plane in the frame of a turbine that does not exist', (c) => { c.planes[0].frame = 'H-9'; },
+      /frame\.yaml:\d+:\d+: planes\[0\]\.frame: no turbine with this id/],
+    ['a raster that does not cover an instrument', (c) => { c.instruments[1].position_m = [3000, 300, 14]; },
+      /cover\.yaml: site\.terrain: the terrain raster .*terrain\.tif does not cover instrument "b"/],
+    ['a coordinate system that cannot be converted', (c) => { c.site.terrain.crs = 'EPSG:3857'; },
+      /crs\.yaml: site\.terrain\.crs: cannot convert this coordinate system/],
+    ['UTM without the site origin in WGS84', (c) => { c.site.terrain.crs = 'EPSG:32632'; },
+      /utm\.yaml: site\.terrain: the raster is in EPSG:32632: site\.origin_wgs84 is needed/],
+  ];
+  const names = ['twice', 'overlap', 'frame', 'cover', 'crs', 'utm'];
+  cases.forEach(([what, edit, message], k) => {
+    it(what, async () => {
+      const file = variant(names[k], edit);
+      const before = snapshot(dir);
+      const r = await runCli(['run', file]);
+      expect(r.code).not.toBe(0);
+      expect(r.stderr.trim().split('\n')).toHaveLength(1);
+      expect(r.stderr).toMatch(message);
+      // Nothing written, nothing removed: the folder holds exactly what it held, byte for byte.
+      expect(snapshot(dir)).toEqual(before);
+    });
+  });
+
+  it('a GeoTIFF stating a coordinate system wakeplane cannot convert (its own keys, EPSG:3857)', async () => {
+    const d = generate('heldback_terrain.py', ['--raster', 'tiepoint', '--epsg', '3857']);
+    const c = JSON.parse(readFileSync(join(d, 'campaign.yaml'), 'utf8')) as Record<string, any>;
+    delete c.site.terrain.crs;
+    writeFileSync(join(d, 'campaign.yaml'), JSON.stringify(c));
+    const before = snapshot(d);
+    const r = await runCli(['run', join(d, 'campaign.yaml')]);
+    expect(r.code).not.toBe(0);
+    expect(r.stderr).toMatch(/terrain\.tif: terrain raster in EPSG:3857, which wakeplane cannot convert/);
+    expect(snapshot(d)).toEqual(before);
+  });
 });

@@ -192,9 +192,12 @@ for k, rows in series_rows.items():
     rng.shuffle(blocks)
     with open(os.path.join(out, "data", f"{k}.csv"), "w") as fh:
         fh.write("time,yaw_deg,power_kw,wind_speed_ms,status\n")
+        line = 1
         for bl in blocks:
             for i in bl:
                 r = rows[i]
+                line += 1
+                r["line"] = line
                 fh.write(f"{r['time']:.1f},{r['yaw']:.2f},{r['power']},{r['ws']},{r['status']}\n")
     # The values as written (rounded to the file's precision), for the expectations below.
     for r in rows:
@@ -311,6 +314,13 @@ def window_power(rows, a, b, name):
     return {"flag": "ok" if av >= MIN_AV else "unavailable", "power": p, "availability": av, "ws": float(np.mean(ws)) if ws else float("nan")}
 
 
+# The planted faults' lines in the files as written (rows shuffled in blocks): the negative power row; the two rows
+# around R-3's hole (consecutive in time).
+faults = {"negative_line": w9[len(w9) // 2]["line"]}
+r3 = sorted(series_rows["R-3"], key=lambda r: r["time"])
+k = next(i for i in range(1, len(r3)) if r3[i]["time"] - r3[i - 1]["time"] > 150)
+faults["gap_lines"] = [r3[k - 1]["line"], r3[k]["line"]]
+
 per_window = []
 for w, (a, b, lab) in enumerate(windows):
     sel = (dir_t >= a) & (dir_t < b)
@@ -347,7 +357,7 @@ def ratio(g):
     return sum(p for p, _, _ in g) / sum(r for _, r, _ in g)
 
 
-expected = {"windows": per_window, "gains": {}}
+expected = {"windows": per_window, "gains": {}, "faults": faults}
 try:
     from scipy.stats import bootstrap
 except ImportError:  # pragma: no cover

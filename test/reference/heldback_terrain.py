@@ -1,6 +1,6 @@
 """A reviewer's held-back terrain case, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated}
+Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated} [--epsg N]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/terrain.(csv|tif), OUTDIR/a.csv, OUTDIR/b.csv and
 OUTDIR/expected.json.
 
@@ -134,6 +134,9 @@ def write_tiff(path, heights, geo_tags):
 # GeoKeyDirectory: version 1.1.0, keys GTModelTypeGeoKey (1024) = 1 projected, GTRasterTypeGeoKey (1025) = 1 area;
 # no coordinate-system code: the campaign states crs "site".
 GEOKEYS = (34735, 3, [1, 1, 0, 2, 1024, 0, 1, 1, 1025, 0, 1, 1])
+if "--epsg" in sys.argv:
+    # With --epsg N the file states ProjectedCSTypeGeoKey (3072) = N (a bad-input case: the campaign then drops crs).
+    GEOKEYS = (34735, 3, [1, 1, 0, 3, 1024, 0, 1, 1, 1025, 0, 1, 1, 3072, 0, 1, int(sys.argv[sys.argv.index("--epsg") + 1])])
 if KIND == "xyz":
     E = e0 + de * np.arange(ne)
     N = n0 + dn * np.arange(nn)
