@@ -34,7 +34,10 @@ interface RowGain {
   bins: { bin: [number, number]; n_base: number; n_steer: number; ratio_base: number; ratio_steer: number; gain: number; weight: number }[];
   combined: number; combined_ci: [number, number]; combined_se: number;
 }
-interface RowExpected { windows: RowWindow[]; gains: Record<string, RowGain>; deflection_R2: number; faults: { negative_line: number; gap_lines: [number, number] } }
+interface RowExpected {
+  windows: RowWindow[]; gains: Record<string, RowGain>; deflection_R2: number; faults: { negative_line: number; gap_lines: [number, number] };
+  steps: { starts: number[]; steered: number[] };
+}
 
 function generate(script: string, args: string[]): string {
   const dir = mkdtempSync(join(tmpdir(), 'wakeplane-sites-heldback-'));
@@ -158,6 +161,41 @@ describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.py
       expect(Math.abs(Number(r.deflection_m) - e.deflection_R2), `${r.direction_lo_deg} ${r.speed_lo_ms}`).toBeLessThan(4);
     }
   });
+});
+
+describe.skipIf(!py.python)(`held-back row with fixed windows across the yaw steps${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('leaves windows that straddle a step out of both states and never calls a window steered at level 0', async () => {
+    // Regression: 10-minute windows over 5-9 minute steps. A window's state was its mean yaw offset rounded to
+    // wake.yawBin_deg, so a window half in each state became "steered" at an intermediate level (5, 10, 15) and
+    // one 15 % steered "steered at level 0", and each such level got a gain of its own.
+    const d = generate('heldback_row.py', ['--rate', '0.5']);
+    const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
+    const c = loadCampaignFile(join(d, 'campaign.yaml'));
+    c.windows = { kind: 'fixed', length_s: 600, anchor: '2026-08-14T13:40:00Z' } as typeof c.windows;
+    const res = await runCampaign(c, { outRoot: join(d, 'out-fixed'), images: false, stages: [powerStage()] });
+    // Share of a window's time in which R-1 was steered, from the script's step times and states.
+    const { starts, steered } = x.steps;
+    const share = (a: number, b: number) => {
+      let s = 0;
+      for (let k = 0; k + 1 < starts.length; k++) if (steered[k]) s += Math.max(0, Math.min(b, starts[k + 1]) - Math.max(a, starts[k]));
+      return s / (b - a);
+    };
+    const wp = readCsv(join(res.runDir, 'power', 'window_power.csv')).filter((r) => r.turbine === 'R-2');
+    let mixed = 0;
+    for (const r of wp) {
+      const f = share(Date.parse(r.start) / 1000, Date.parse(r.end) / 1000);
+      // Nearly one state (95 % of the time): that state, steered at the level nearest 18 deg on the 5-deg grid.
+      if (f >= 0.95) expect([r.state, r.level_deg], r.start).toEqual(['steered', '20']);
+      if (f <= 0.05) expect(r.state, r.start).toBe('baseline');
+      // A step between a fifth and four fifths of the way through: neither state.
+      if (f >= 0.2 && f <= 0.8) { expect(r.state, `${r.start} (${f.toFixed(2)} steered)`).toBe('unknown'); mixed++; }
+      if (r.state === 'steered') expect(r.level_deg).not.toBe('0');
+    }
+    expect(mixed).toBeGreaterThan(3);
+    // Gains only at the one level set, 20 (18 deg on the 5-deg grid).
+    const levels = new Set(readCsv(join(res.runDir, 'power', 'power_gain.csv')).map((r) => r.level_deg));
+    expect([...levels]).toEqual(['20']);
+  }, 120_000);
 });
 
 describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${py.python ? '' : ` (skipped: ${py.why})`}`, () => {

@@ -357,7 +357,8 @@ def ratio(g):
     return sum(p for p, _, _ in g) / sum(r for _, r, _ in g)
 
 
-expected = {"windows": per_window, "gains": {}, "faults": faults}
+expected = {"windows": per_window, "gains": {}, "faults": faults,
+            "steps": {"starts": [float(x) for x in starts], "steered": [int(st[2]) for st in steps]}}
 try:
     from scipy.stats import bootstrap
 except ImportError:  # pragma: no cover
