@@ -198,6 +198,26 @@ describe.skipIf(!py.python)(`held-back row with fixed windows across the yaw ste
   }, 120_000);
 });
 
+describe.skipIf(!py.python)(`held-back row turned through north${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('bins the wind from 356 and 4 degrees by edges [-10, 0, 10] and gives the script\'s gains', async () => {
+    // The whole site turned by 110 degrees: the same rows and power, directions on both sides of north. Exact to
+    // the written precision (6e-5 in gain), as the first case.
+    const d = generate('heldback_row.py', ['--turn', '110', '--rate', '0.5']);
+    const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
+    const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [powerStage()] });
+    const g = readCsv(join(res.runDir, 'power', 'power_gain.csv'));
+    for (const turbine of ['R-2', 'R-3']) {
+      for (const b of x.gains[turbine].bins) {
+        const r = g.find((q) => q.turbine === turbine && Number(q.direction_lo_deg) === [-10, 0][b.bin[0]] && Number(q.speed_lo_ms) === [6, 8.2][b.bin[1]])!;
+        expect([Number(r.windows_baseline), Number(r.windows_steered)], `${turbine} ${b.bin}`).toEqual([b.n_base, b.n_steer]);
+        if (b.weight > 0) expect(Math.abs(Number(r.gain) - b.gain)).toBeLessThan(6e-5);
+      }
+      const c = g.find((r) => r.turbine === turbine && r.direction_lo_deg === 'all')!;
+      expect(Math.abs(Number(c.gain) - x.gains[turbine].combined)).toBeLessThan(6e-5);
+    }
+  }, 120_000);
+});
+
 describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   it('still takes the windows\' state from a steered turbine, not from the unyawed reference', async () => {
     // Regression: the state of listed windows came from the first turbine with a series; listing the reference

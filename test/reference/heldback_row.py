@@ -1,9 +1,11 @@
 """A reviewer's held-back row of turbines with wake steering, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_row.py OUTDIR [--reference-first] [--cell M] [--rate HZ]
+Usage: python3 test/reference/heldback_row.py OUTDIR [--reference-first] [--cell M] [--rate HZ] [--turn DEG]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 With --reference-first the unwaked reference turbine is listed first among the turbines (nothing else changes);
---cell sets the plane's cell size (default 40 m), --rate the scanners' rows per second inside windows (default 15).
+--cell sets the plane's cell size (default 40 m), --rate the scanners' rows per second inside windows (default 15);
+--turn DEG turns the whole site and every direction by DEG (110: the wind from 356 and 4 deg, through north, with
+direction bin edges [-10, 0, 10]).
 
 Invented site. Three turbines in a row (R-1, R-2, R-3; rotor 100 m, hub 90 m) 500 m apart along the azimuth 70 deg
 (wind from about 250 deg blows down the row), the first tower base at site (120, -40, 0); a fourth turbine Q-0,
@@ -58,6 +60,7 @@ import numpy as np
 out = sys.argv[1]
 REF_FIRST = "--reference-first" in sys.argv
 CELL = float(sys.argv[sys.argv.index("--cell") + 1]) if "--cell" in sys.argv else 40.0
+TURN = float(sys.argv[sys.argv.index("--turn") + 1]) if "--turn" in sys.argv else 0.0
 RATE = float(sys.argv[sys.argv.index("--rate") + 1]) if "--rate" in sys.argv else 15.0
 os.makedirs(os.path.join(out, "data"), exist_ok=True)
 rng = np.random.default_rng(20260814)
@@ -65,7 +68,7 @@ rng = np.random.default_rng(20260814)
 T0 = 1786714877.3  # 2026-08-14T13:41:17.3Z
 assert abs(T0 - (np.datetime64("2026-08-14T13:41:17.3") - np.datetime64("1970-01-01T00:00:00")) / np.timedelta64(1, "s")) < 1e-6
 D, HUB, A_DEF = 100.0, 90.0, 0.3
-ROW_AZ = 70.0
+ROW_AZ = 70.0 + TURN
 ROW0 = np.array([120.0, -40.0])
 along = np.array([math.sin(math.radians(ROW_AZ)), math.cos(math.radians(ROW_AZ))])
 left = np.array([-along[1], along[0]])
@@ -78,7 +81,7 @@ TURB = {
 DEFL_PER_DEG = 2.2
 
 # Steps: 4 bins x 2 states x 3.
-combos = [(d, u, s) for d in (246.0, 254.0) for u in (7.0, 9.4) for s in (0, 1) for _ in range(3)]
+combos = [(d, u, s) for d in ((246.0 + TURN) % 360, (254.0 + TURN) % 360) for u in (7.0, 9.4) for s in (0, 1) for _ in range(3)]
 order = rng.permutation(len(combos))
 steps = [combos[i] for i in order]
 dur = rng.uniform(5.3, 8.7, len(steps)) * 60
@@ -225,7 +228,7 @@ def wrap180(a):
 
 # ---- lidar samples
 INSTR = {"lid-w": (-150.0, -450.0), "lid-e": (1150.0, -450.0)}
-d0, l0 = frame(250.0)
+d0, l0 = frame(250.0 + TURN)
 inst_pos = {i: np.array([x * d0[0] + y * l0[0], x * d0[1] + y * l0[1], 2.0]) for i, (x, y) in INSTR.items()}
 PX, PY = (-100.0, 1300.0), (-160.0, 160.0)  # plane extent, rotor frame about the site origin (frame: site)
 samples = {i: [] for i in INSTR}
@@ -278,7 +281,7 @@ turbines = [{"id": k, "position_m": [float(TURB[k][0]), float(TURB[k][1]), 0.0],
              "thrustCoefficient": 0.78, "series": {"file": f"data/{k}.csv"}} for k in ("R-1", "R-2", "R-3", "Q-0")]
 if REF_FIRST:
     turbines = turbines[3:] + turbines[:3]
-DIR_EDGES, SPEED_EDGES = [240.0, 250.0, 260.0], [6.0, 8.2, 10.5]
+DIR_EDGES, SPEED_EDGES = [240.0 + TURN - 360 * (TURN > 100), 250.0 + TURN - 360 * (TURN > 100), 260.0 + TURN - 360 * (TURN > 100)], [6.0, 8.2, 10.5]
 campaign = {
     "name": "heldback-row",
     "turbines": turbines,
@@ -334,10 +337,11 @@ for w, (a, b, lab) in enumerate(windows):
                        "speed": pw["Q-0"].get("ws", float("nan")), "power": {k: v["power"] for k, v in pw.items()}, "flag": {k: v["flag"] for k, v in pw.items()}})
 
 
-def bin_of(edges, v):
-    for i in range(len(edges) - 1):
-        if edges[i] <= v < edges[i + 1]:
-            return i
+def bin_of(edges, v, circular=False):
+    for x in ((v, v - 360, v + 360) if circular else (v,)):
+        for i in range(len(edges) - 1):
+            if edges[i] <= x < edges[i + 1]:
+                return i
     return -1
 
 
@@ -347,7 +351,7 @@ def gains(turbine):
     for w in per_window:
         if w["flag"][turbine] != "ok" or w["flag"]["Q-0"] != "ok":
             continue
-        i, j = bin_of(DIR_EDGES, w["direction"]), bin_of(SPEED_EDGES, w["speed"])
+        i, j = bin_of(DIR_EDGES, w["direction"], True), bin_of(SPEED_EDGES, w["speed"])
         assert i >= 0 and j >= 0
         groups.setdefault((i, j), ([], []))[1 if w["state"] == "steered" else 0].append((w["power"][turbine], w["power"]["Q-0"], w["window"]))
     return groups
