@@ -5,6 +5,8 @@
  *   steps of two turbines at arbitrary clock times, power series on their own clocks with dropouts, empty and NaN
  *   power, a negative power, a hole and an unavailable stretch; scanners whose every row has its own angles, junk at
  *   -33..-28 dB, rows out of time order. Expected gains from the rows written (energy ratios, scipy's bootstrap).
+ * - heldback_cross.py: two turbines side by side whose wakes cross a cross plane, a third behind one of them, a
+ *   cross plane behind it; the first turbine steps to +20 degrees.
  * - heldback_terrain.py: a Gaussian hill as an XYZ grid with its own origin and spacing in shuffled rows, and as
  *   GeoTIFFs written byte by byte (tie point and pixel scale; a model transformation, north up; a model
  *   transformation turned by 30 degrees); every row its own beam; the script's ray march (0.5-m steps on its own
@@ -310,5 +312,43 @@ describe.skipIf(!py.python)(`held-back bad input of issue 16: one line naming fi
     expect(r.code).not.toBe(0);
     expect(r.stderr).toMatch(/terrain\.tif: terrain raster in EPSG:3857, which wakeplane cannot convert/);
     expect(snapshot(d)).toEqual(before);
+  });
+});
+
+interface CrossView { window: number; plane: string; turbine: string; yc_m: number; zc_m: number; inflow_hub_ms?: number; waked_by?: string }
+
+describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir: string, x: CrossView[], rows: Record<string, string>[];
+  beforeAll(async () => {
+    dir = generate('heldback_cross.py', []);
+    x = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as CrossView[];
+    const res = await run(dir);
+    rows = readCsv(join(res.runDir, 'wake', 'turbine_wakes.csv'));
+    rows = rows.map((r) => ({ ...r, ...readCsv(join(res.runDir, 'wake', 'wake_table.csv')).find((w) => w.plane === r.plane && w.window === r.window) }));
+  }, 60_000);
+
+  const view = (w: number, plane: string, turbine: string) => rows.find((r) => Number(r.window) === w && r.plane.split('@')[0] === plane && r.turbine === turbine);
+
+  it('analyses both side-by-side wakes at P4, each centre in its own frame', () => {
+    for (const e of x.filter((v) => v.plane === 'P4')) {
+      const r = view(e.window, 'P4', e.turbine)!;
+      expect(r, `${e.window} ${e.turbine}`).toBeDefined();
+      // 2-D Gaussian fit to 25 x 20 m cell means of an exactly Gaussian wake: 3 standard errors + 1 m (cells).
+      expect(Math.abs(Number(r.yc_m) - e.yc_m), `${e.window} ${e.turbine}`).toBeLessThan(3 * Number(r.yc_se_m) + 1);
+      expect(Math.abs(Number(r.zc_m) - e.zc_m)).toBeLessThan(3 * Number(r.zc_se_m) + 1);
+    }
+  });
+
+  it('gives P11 to C-3 (standing in C-1\'s wake), with its inflow from P4, and to C-2; not to C-1', () => {
+    for (const w of [0, 1]) {
+      expect(view(w, 'P11', 'C-1')).toBeUndefined();
+      expect(view(w, 'P11', 'C-2')).toBeDefined();
+      const r = view(w, 'P11', 'C-3')!;
+      const e = x.find((v) => v.window === w && v.plane === 'P11' && v.turbine === 'C-3')!;
+      expect(r.waked_by).toBe(e.waked_by);
+      expect(r.inflow_from).toBe('plane P4, 300 m upstream of C-3');
+      // The P4 field at C-3's hub, bilinear between 25 x 20 m cell means of a Gaussian wake: 3 % (common practice).
+      expect(Math.abs(Number(r.inflow_hub_speed_ms) / e.inflow_hub_ms! - 1)).toBeLessThan(0.03);
+    }
   });
 });
