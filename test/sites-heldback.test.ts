@@ -257,6 +257,27 @@ describe.skipIf(!py.python)(`held-back terrain: one hill in four rasters${py.pyt
   }
 });
 
+describe.skipIf(!py.python)(`held-back terrain: the planner\'s blocked beams${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('flags exactly the beams to terrain-following cells that the script\'s march finds below the hill', async () => {
+    const d = generate('heldback_terrain.py', ['--raster', 'xyz']);
+    const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as { plan_beams: [number, number, string, boolean][] };
+    const c = JSON.parse(readFileSync(join(d, 'campaign.yaml'), 'utf8')) as Record<string, any>;
+    c.plan = { directions_deg: [270] };
+    writeFileSync(join(d, 'campaign.yaml'), JSON.stringify(c));
+    const r = await runCli(['plan', join(d, 'campaign.yaml'), '--no-images', '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    const cells = readCsv(join(d, 'out', 'heldback-terrain-xyz-plan', 'plan', 'cells_tf.csv'));
+    let blocked = 0;
+    for (const [iy, ix, inst, hit] of x.plan_beams) {
+      // Horizontal plane: the cell table's iz runs along x (the grid's second axis).
+      const cell = cells.find((q) => Number(q.iy) === iy && Number(q.iz) === ix)!;
+      expect(cell[`${inst}_flags`].split(';').includes('terrain'), `(${iy}, ${ix}) ${inst}`).toBe(hit);
+      blocked += hit ? 1 : 0;
+    }
+    expect(blocked).toBeGreaterThan(5); // the hill hides some cells from each side
+  });
+});
+
 describe.skipIf(!py.python)(`held-back bad input of issue 16: one line naming file and key or line, before any output${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   let dir: string;
   beforeAll(async () => {
@@ -321,7 +342,7 @@ describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? 
   let dir: string, x: CrossView[], rows: Record<string, string>[];
   beforeAll(async () => {
     dir = generate('heldback_cross.py', []);
-    x = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as CrossView[];
+    x = (JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { views: CrossView[] }).views;
     const res = await run(dir);
     rows = readCsv(join(res.runDir, 'wake', 'turbine_wakes.csv'));
     rows = rows.map((r) => ({ ...r, ...readCsv(join(res.runDir, 'wake', 'wake_table.csv')).find((w) => w.plane === r.plane && w.window === r.window) }));
@@ -350,5 +371,24 @@ describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? 
       // The P4 field at C-3's hub, bilinear between 25 x 20 m cell means of a Gaussian wake: 3 % (common practice).
       expect(Math.abs(Number(r.inflow_hub_speed_ms) / e.inflow_hub_ms! - 1)).toBeLessThan(0.03);
     }
+  });
+
+  it('the planner flags exactly the beams that cross a rotor disk, as the script\'s geometry finds them', async () => {
+    const beams = (JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { beams: [string, number, number, string, boolean][] }).beams;
+    const c = JSON.parse(readFileSync(join(dir, 'campaign.yaml'), 'utf8')) as Record<string, any>;
+    c.plan = { directions_deg: [200] };
+    writeFileSync(join(dir, 'plan.yaml'), JSON.stringify(c));
+    const r = await runCli(['plan', join(dir, 'plan.yaml'), '--no-images', '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    let through = 0;
+    for (const plane of ['P4', 'P11']) {
+      const cells = readCsv(join(dir, 'out', 'heldback-cross-plan', 'plan', `cells_${plane}.csv`));
+      for (const [p, iy, iz, inst, hit] of beams.filter((b) => b[0] === plane)) {
+        const cell = cells.find((q) => Number(q.iy) === iy && Number(q.iz) === iz)!;
+        expect(cell[`${inst}_flags`].split(';').includes('rotor'), `${p} (${iy}, ${iz}) ${inst}`).toBe(hit);
+        through += hit ? 1 : 0;
+      }
+    }
+    expect(through).toBeGreaterThan(10); // the case holds beams through the disks of C-1 and C-3
   });
 });

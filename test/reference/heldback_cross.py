@@ -21,7 +21,8 @@ N(0, 0.08); CNR -9 dB.
 expected.json: for each window and turbine view the README's rules give (a cross plane behind a turbine standing in
 another's wake belongs to that turbine; a waked turbine's inflow from the cross plane between it and the turbine
 waking it): the true wake centre in the view's own frame at its plane, and for C-3 at P11 the true u at C-3's hub
-position in P4 (its inflow).
+position in P4 (its inflow); for the planner, per plane cell and scanner whether the straight beam to the cell
+centre crosses a rotor disk (beams within 1 m of a rim left out).
 """
 import json
 import math
@@ -128,5 +129,27 @@ for w, (a, b, g1) in enumerate(WIN):
                 view["inflow_hub_ms"] = float(u_at(PLANES["P4"], 0.0, H, g1))
                 view["waked_by"] = "C-1"
             expected.append(view)
+# Planner check: the straight beam from each scanner to each cell centre of each plane, and whether it crosses a
+# rotor disk (radius 50 m about the hub, in the plane normal to the wind: the turbines face the planned 200 deg).
+# Beams passing within 1 m of a rim are left out (the decision would hang on rounding).
+beams = []
+dvec = np.array([dE, dN, 0.0])
+hubs = [np.array([*site(*T[k]), H]) for k in T]
+for pid, x in PLANES.items():
+    for iz, z in enumerate(np.arange(Z[0] + 10.0, Z[1], 20.0)):
+        for iy, y in enumerate(np.arange(Y[0] + 12.5, Y[1], 25.0)):
+            q = np.array([*site(x, y), z])
+            for inst, (xi, yi) in INSTR.items():
+                o = np.array([*site(xi, yi), 3.0])
+                hit, near = False, False
+                for h in hubs:
+                    sa, sb = (o - h) @ dvec, (q - h) @ dvec
+                    if sa * sb > 0 or sa == sb:
+                        continue
+                    dist = float(np.linalg.norm(o + sa / (sa - sb) * (q - o) - h))
+                    near |= abs(dist - D / 2) < 1.0
+                    hit |= dist <= D / 2
+                if not near:
+                    beams.append([pid, iy, iz, inst, hit])
 with open(os.path.join(out, "expected.json"), "w") as fh:
-    json.dump(expected, fh, indent=1)
+    json.dump({"views": expected, "beams": beams}, fh, indent=1)

@@ -27,6 +27,8 @@ nodes (or the exact hill for the rotated raster, where wakeplane resamples), by 
 - beam_blocked: the point is above that, but the beam passes below the ground somewhere before it;
 - else the point lies in the terrain-following plane (40 +/- 15 m above the ground, within its lateral extent) or
   outside it (outside_planes).
+For the planner: per cell of the plane and instrument, whether the straight beam to the cell centre (40 m above the
+ground there) passes below the ground (the same march; beams within 1.5 m of touching left out).
 Rows whose decision lies within 1.5 m of a threshold (point clearance, plane slab and edges, lowest beam clearance), or
 for the turned raster within two pixels of its edge (wakeplane resamples it onto a site grid), are not written, so
 the expected counts do not hang on interpolation or the march step. Radial velocity 3 m/s, CNR -8 dB.
@@ -278,6 +280,27 @@ campaign = {
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as fh:
     json.dump(campaign, fh, indent=1)
+# Planner check: the straight beam from each instrument to each cell centre of the plane (40 m above the ground
+# under the centre), marched in 0.5-m steps: blocked when it passes below the ground. Cells whose lowest clearance
+# lies within 1.5 m of zero, or off the raster, are left out.
+plan_beams = []
+for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)):
+    for ix, x in enumerate(np.arange(PX[0] + 50.0, PX[1], 100.0)):
+        g = float(ground(x, y))
+        if not math.isfinite(g):
+            continue
+        q = np.array([x, y, g + PLANE_Z])
+        for inst, o in INSTR.items():
+            L = float(np.linalg.norm(q - o))
+            s = np.arange(0.0, L, 0.5)
+            v = (q - o) / L
+            gg = ground(o[0] + s * v[0], o[1] + s * v[1])
+            if np.isnan(gg).any():
+                continue
+            lowest = float(np.min(o[2] + s * v[2] - gg))
+            if abs(lowest) >= 1.5:
+                plan_beams.append([iy, ix, inst, lowest < 0])
+expected["plan_beams"] = plan_beams
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump(expected, fh, indent=1)
 print(json.dumps(expected))
