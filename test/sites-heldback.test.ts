@@ -373,6 +373,17 @@ describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? 
     }
   });
 
+  it('says where a neighbouring wake reaches into a turbine\'s region (C-2 at P11), and not where none does (P4)', () => {
+    // C-2's region at P11 is |y - 300| <= 150 m; C-1's wake there (11 D, the script's sigma 101 m) still holds 0.12
+    // deficit at its edge. A fit of that region alone (scipy curve_fit on the script's exact deficit at the cell
+    // centres, offset fitted: 286.2 and 270.1 m) pulls C-2's centre 14 and 30 m towards C-1's wake; wakeplane gives
+    // the same (-14.2, -31.2 m). The method's bias, not a slip: the row must say so.
+    for (const w of [0, 1]) {
+      expect(view(w, 'P11', 'C-2')!.reason).toMatch(/wake of C-1 reaches into this turbine's region/);
+      for (const t of ['C-1', 'C-2']) expect(view(w, 'P4', t)!.reason ?? '').not.toMatch(/reaches into/);
+    }
+  });
+
   it('the planner flags exactly the beams that cross a rotor disk, as the script\'s geometry finds them', async () => {
     const beams = (JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { beams: [string, number, number, string, boolean][] }).beams;
     const c = JSON.parse(readFileSync(join(dir, 'campaign.yaml'), 'utf8')) as Record<string, any>;
