@@ -11,7 +11,7 @@
  *   GeoTIFFs written byte by byte (tie point and pixel scale; a model transformation, north up; a model
  *   transformation turned by 30 degrees); every row its own beam; the script's ray march (0.5-m steps on its own
  *   bilinear interpolation) decides each row: outside the terrain, below the ground, blocked by the hill, in the
- *   terrain-following plane or outside it.
+ *   terrain-following plane or outside it; once more ten times as wide with beams over the 4/3 Earth.
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
@@ -239,12 +239,13 @@ describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${
   }, 120_000);
 });
 
-describe.skipIf(!py.python)(`held-back terrain: one hill in four rasters${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+describe.skipIf(!py.python)(`held-back terrain: one hill in four rasters, and a ridge across a valley over the 4/3 Earth${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   // Rows within 1.5 m of a decision are not written by the script, so the counts are exact whatever the
   // interpolation (bilinear on the nodes, or on wakeplane's resampled site grid for the turned raster) or march step.
-  for (const kind of ['xyz', 'tiepoint', 'transform', 'rotated']) {
+  for (const kind of ['xyz', 'tiepoint', 'transform', 'rotated', 'xyz --curvature']) {
     it(`${kind}: every row's fate as the script's ray march decides it`, async () => {
-      const d = generate('heldback_terrain.py', ['--raster', kind]);
+      // With --curvature: a ridge 5 km away, ranges to 14 km, beams over the 4/3 Earth (Doviak & Zrnic 1993).
+      const d = generate('heldback_terrain.py', ['--raster', ...kind.split(' ')]);
       const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as Record<string, Record<string, number>>;
       const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [] });
       for (const id of ['a', 'b']) {

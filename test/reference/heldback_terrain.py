@@ -1,6 +1,6 @@
 """A reviewer's held-back terrain case, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated} [--epsg N]
+Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated} [--epsg N] [--curvature]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/terrain.(csv|tif), OUTDIR/a.csv, OUTDIR/b.csv and
 OUTDIR/expected.json.
 
@@ -15,6 +15,10 @@ Invented site: flat ground at 12 m (site-frame up) with a Gaussian hill h(e, n) 
   4x4 affine matrix from raster (I, J) to model (X, Y): X = a I + b J + d, Y = e I + f J + h; north up: f < 0);
 - rotated: a raster whose columns run 30 degrees north of east (a = 10 cos 30, e = 10 sin 30, b = 10 sin 30,
   f = -10 cos 30), so the model transformation has rotation terms.
+With --curvature (XYZ only) everything is ten times as wide (the ridge 30 m high, 5.2 km away, the XYZ spacing 100 x
+90 m, ranges to 14 km, elevations a tenth) and the beams follow the 4/3 Earth: height h(r) = sqrt(r^2 + (k a)^2 +
+2 r k a sin(el)) - k a and ground distance s(r) = k a asin(r cos(el) / (k a + h)), k a = 4/3 x 6371 km (Doviak &
+Zrnic 1993, eq. 2.28b, c [from memory]); the campaign sets site.earthCurvature.
 The heights of each raster are the hill's at its pixel centres (PixelIsArea: the centre of pixel (I, J) is at
 raster coordinates (I + 0.5, J + 0.5)).
 
@@ -46,7 +50,14 @@ KIND = sys.argv[sys.argv.index("--raster") + 1]
 rng = np.random.default_rng(16)
 os.makedirs(out, exist_ok=True)
 
+CURVED = "--curvature" in sys.argv
 BASE, AMP, HE, HN, HS = 12.0, 45.0, 520.0, 140.0, 110.0
+# The 4/3 effective Earth radius (Doviak & Zrnic 1993, eq. 2.28b and 2.28c [equation numbers from memory]).
+KA = 4.0 / 3.0 * 6371000.0
+SCALE = 10.0 if CURVED else 1.0
+if CURVED:
+    # A ridge across a valley, kilometres away: the same shapes, ten times as wide, 30 m high.
+    AMP, HE, HN, HS = 30.0, 5200.0, 1400.0, 1100.0
 CLEAR, PLANE_Z, SLAB = 2.0, 40.0, 15.0
 
 
@@ -69,6 +80,8 @@ def bilinear(Z, e0, n0, de, dn, e, n):
 # ---- rasters
 if KIND == "xyz":
     e0, n0, de, dn, ne, nn = -333.3, -417.7, 12.5, 9.0, 170, 140
+    if CURVED:
+        e0, n0, de, dn, ne, nn = -3333.0, -4177.0, 100.0, 90.0, 213, 140
 elif KIND in ("tiepoint", "transform"):
     # GeoTIFF pixels: corner at (x0, y0), pixel size 10 m, rows southwards; pixel centres half a pixel in.
     x0, y0, px, nx, ny = -350.0, 850.0, 10.0, 200, 140
@@ -200,9 +213,21 @@ else:
             return bilinear(Hn, xs[0], ys[-1], px, px, e, n)
 
 # ---- rows
-INSTR = {"a": np.array([0.0, 0.0, 14.0]), "b": np.array([1100.0, 300.0, 14.0])}
+INSTR = {"a": np.array([0.0, 0.0, 14.0]), "b": np.array([1100.0 * SCALE, 300.0 * SCALE, 14.0])}
 # Plane: site frame, wind from 270 (x = east, y = north), terrain-following at 40 m, x -200..1300, y -300..600.
-PX, PY = (-200.0, 1300.0), (-300.0, 600.0)
+PX, PY = (-200.0 * SCALE, 1300.0 * SCALE), (-300.0 * SCALE, 600.0 * SCALE)
+
+
+def beam(o, az, el, r):
+    """Points at ranges r along a beam: straight, or over the 4/3 Earth (height h(r), ground distance s(r))."""
+    r = np.asarray(r, dtype=float)
+    ca, sa = math.cos(math.radians(az)), math.sin(math.radians(az))
+    if not CURVED:
+        ce, se = math.cos(math.radians(el)), math.sin(math.radians(el))
+        return o[0] + r * ce * sa, o[1] + r * ce * ca, o[2] + r * se
+    h = np.sqrt(r * r + KA * KA + 2 * r * KA * math.sin(math.radians(el))) - KA
+    sg = KA * np.arcsin(r * math.cos(math.radians(el)) / (KA + h))
+    return o[0] + sg * sa, o[1] + sg * ca, o[2] + h
 expected = {k: {"read": 0, "accepted": 0, "below_ground": 0, "beam_blocked": 0, "outside_terrain": 0, "outside_planes": 0} for k in INSTR}
 T0 = 1790000000.0
 written = {k: [] for k in INSTR}
@@ -216,14 +241,14 @@ while min(len(v) for v in written.values()) < 400 and tries < 200000:
     if rng.uniform() < 0.65:
         # Towards the hill, low: the rows that meet its flanks.
         az = math.degrees(math.atan2(HE - o[0], HN - o[1])) + rng.uniform(-25, 25)
-        el = rng.uniform(0.3, 6.0)
-        rr = rng.uniform(100, 1000)
+        el = rng.uniform(0.3, 6.0) / SCALE
+        rr = rng.uniform(100, 1000) * SCALE
     else:
         az = rng.uniform(0, 360)
-        el = rng.uniform(0.5, 9.0)
-        rr = rng.uniform(60, 1400)
+        el = rng.uniform(0.5, 9.0) / SCALE
+        rr = rng.uniform(60, 1400) * SCALE
     nb = np.array([math.cos(math.radians(el)) * math.sin(math.radians(az)), math.cos(math.radians(el)) * math.cos(math.radians(az)), math.sin(math.radians(el))])
-    p = o + rr * nb
+    p = np.array(beam(o, az, el, rr), dtype=float)
     if KIND == "rotated":
         # wakeplane resamples a turned raster onto a site grid of its pixel size: within two pixels of the raster's
         # edge, whether a point has ground depends on that grid. Such rows are not written.
@@ -241,7 +266,8 @@ while min(len(v) for v in written.values()) < 400 and tries < 200000:
             reason = "below_ground"
         else:
             s = np.arange(0.0, rr, 0.5)
-            lowest = float(np.nanmin((o[2] + s * nb[2]) - ground(o[0] + s * nb[0], o[1] + s * nb[1])))
+            be, bn, bz = beam(o, az, el, s)
+            lowest = float(np.nanmin(bz - ground(be, bn)))
             if abs(lowest) < 1.5:
                 continue
             if lowest < 0:
@@ -268,11 +294,11 @@ for inst, rows in written.items():
 
 campaign = {
     "name": f"heldback-terrain-{KIND}",
-    "site": {"terrain": terrain},
+    "site": {"terrain": terrain, "earthCurvature": CURVED},
     "turbine": {"id": "H-1", "position_m": [650.0, 200.0, float(hill(650.0, 200.0))], "hubHeight_m": 80, "rotorDiameter_m": 80},
     "instruments": [{"id": k, "position_m": [float(v[0]), float(v[1]), float(v[2])], "files": [f"{k}.csv"]} for k, v in INSTR.items()],
     "planes": [{"id": "tf", "orientation": "horizontal", "frame": "site", "heights": "terrain", "z_m": PLANE_Z, "thickness_m": 2 * SLAB,
-                "y": {"min": PY[0], "max": PY[1]}, "xRange": {"min": PX[0], "max": PX[1]}, "cell_m": [100, 100]}],
+                "y": {"min": PY[0], "max": PY[1]}, "xRange": {"min": PX[0], "max": PX[1]}, "cell_m": [100 * SCALE, 100 * SCALE]}],
     "qc": {"groundClearance_m": CLEAR, "cnr_db": {"min": -30}},
     "windows": {"kind": "record"},
     "windDirection": {"kind": "fixed", "deg": 270},
@@ -280,11 +306,11 @@ campaign = {
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as fh:
     json.dump(campaign, fh, indent=1)
-# Planner check: the straight beam from each instrument to each cell centre of the plane (40 m above the ground
+# Planner check (flat Earth only): the straight beam from each instrument to each cell centre of the plane (40 m above the ground
 # under the centre), marched in 0.5-m steps: blocked when it passes below the ground. Cells whose lowest clearance
 # lies within 1.5 m of zero, or off the raster, are left out.
 plan_beams = []
-for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)):
+for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)) if not CURVED else []:
     for ix, x in enumerate(np.arange(PX[0] + 50.0, PX[1], 100.0)):
         g = float(ground(x, y))
         if not math.isfinite(g):
@@ -303,4 +329,4 @@ for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)):
 expected["plan_beams"] = plan_beams
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump(expected, fh, indent=1)
-print(json.dumps(expected))
+print(json.dumps({k: v for k, v in expected.items() if k != "plan_beams"}))
