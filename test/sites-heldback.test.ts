@@ -25,6 +25,8 @@ import { wakeStage } from '../src/pipeline/stages.ts';
 import { readCsv } from './helpers/csvTable.ts';
 import { debianPython } from './helpers/python.ts';
 import { runCli, snapshot } from './faults/helpers.ts';
+import { overlaps, svgTexts } from './helpers/svgText.ts';
+import { smallMultiplesSvg } from '../src/render/smallMultiples.ts';
 
 const py = debianPython(['numpy', 'scipy']);
 
@@ -402,5 +404,26 @@ describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? 
       }
     }
     expect(through).toBeGreaterThan(10); // the case holds beams through the disks of C-1 and C-3
+  });
+});
+
+describe('small multiples of a long, narrow horizontal plane over a row (the held-back row\'s 24 windows)', () => {
+  it('keeps every panel label within its own column, none overlapping another', () => {
+    // Regression: the row's 1400 x 320 m plane gave 66-unit wide panels; the label "window 0 · 13:43:17–13:46:57"
+    // wrapped only at spaces, so its time range (about 100 units in bold 11 px) ran over the next panel's label.
+    const grid = { ny: 8, nz: 35, y0: -140, z0: -80, dy: 40, dz: 40 };
+    const values = Float64Array.from({ length: grid.ny * grid.nz }, (_, k) => 5 + (k % 7));
+    const t0 = Date.parse('2026-08-14T13:43:17Z') / 1000;
+    const hhmmss = (s: number) => new Date(s * 1000).toISOString().slice(11, 19);
+    const panels = Array.from({ length: 24 }, (_, k) => ({
+      label: `window ${k} \u00b7 ${hhmmss(t0 + 400 * k)}\u2013${hhmmss(t0 + 400 * k + 220)}`, sublabel: 'wind from 246\u00b0', grid, values,
+    }));
+    const svg = smallMultiplesSvg(panels, { title: 'hub: streamwise speed u in 24 windows', colorbarLabel: 'u (m/s)', axes: { yLabel: 'y (m)', zLabel: 'x (m)' } });
+    const labels = svgTexts(svg).filter((t) => t.cls === 'panel-label');
+    // Every label line of every panel is drawn (the time range kept whole, over as many lines as it needs).
+    for (let k = 0; k < 24; k++) expect(labels.map((l) => l.text).join(' ')).toContain(`window ${k}`);
+    expect(labels.filter((l) => /^\d\d:\d\d:\d\d/.test(l.text))).not.toHaveLength(0);
+    // No two texts of the figure overlap (boxes from DejaVu Sans advance widths, helpers/svgText.ts; 0.5 unit slack).
+    expect(overlaps(svgTexts(svg)).map(([a, b]) => `${a.text} | ${b.text}`)).toEqual([]);
   });
 });
