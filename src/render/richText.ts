@@ -86,20 +86,24 @@ export function textWidth(label: string, size: number, bold = false): number {
 }
 
 /**
- * Splits a label into lines no wider than `maxWidth` user units at font size `size`, breaking only at ordinary
- * spaces: a no-break space (U+00A0) or narrow no-break space (U+202F) keeps a number with its unit, and script
- * markup is never split. A single word wider than the line stays whole.
+ * Splits a label into lines no wider than `maxWidth` user units at font size `size`, breaking at ordinary spaces:
+ * a no-break space (U+00A0) or narrow no-break space (U+202F) keeps a number with its unit, and script markup is
+ * never split. A word wider than the line is also broken after its en dashes (a time range "13:43:17–13:46:57"),
+ * the dash kept at the line's end; a word without one stays whole.
  */
 export function wrapText(label: string, maxWidth: number, size: number, bold = false): string[] {
-  const words = splitWords(label);
   const lines: string[] = [];
   let cur = '';
-  for (const w of words) {
-    const next = cur ? `${cur} ${w}` : w;
-    if (cur && textWidth(next, size, bold) > maxWidth) {
-      lines.push(cur);
-      cur = w;
-    } else cur = next;
+  for (const word of splitWords(label)) {
+    // Pieces of a too-wide word follow each other without a space.
+    const pieces = textWidth(word, size, bold) > maxWidth ? word.split(/(?<=\u2013)/) : [word];
+    pieces.forEach((w, i) => {
+      const next = cur ? (i > 0 ? cur + w : `${cur} ${w}`) : w;
+      if (cur && textWidth(next, size, bold) > maxWidth) {
+        lines.push(cur);
+        cur = w;
+      } else cur = next;
+    });
   }
   if (cur) lines.push(cur);
   return lines.length ? lines : [''];
