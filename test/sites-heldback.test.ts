@@ -27,6 +27,10 @@ import { debianPython } from './helpers/python.ts';
 import { runCli, snapshot } from './faults/helpers.ts';
 import { overlaps, svgTexts } from './helpers/svgText.ts';
 import { smallMultiplesSvg } from '../src/render/smallMultiples.ts';
+import { planePanelsSvg } from '../src/render/runFigures.ts';
+import { ScaleCollector } from '../src/render/runScales.ts';
+import type { PanelField } from '../src/render/panelField.ts';
+import { gridSpecOf } from '../src/grid/grid.ts';
 
 const py = debianPython(['numpy', 'scipy']);
 
@@ -418,12 +422,48 @@ describe('small multiples of a long, narrow horizontal plane over a row (the hel
     const panels = Array.from({ length: 24 }, (_, k) => ({
       label: `window ${k} \u00b7 ${hhmmss(t0 + 400 * k)}\u2013${hhmmss(t0 + 400 * k + 220)}`, sublabel: 'wind from 246\u00b0', grid, values,
     }));
-    const svg = smallMultiplesSvg(panels, { title: 'hub: streamwise speed u in 24 windows', colorbarLabel: 'u (m/s)', axes: { yLabel: 'y (m)', zLabel: 'x (m)' } });
+    const svg = smallMultiplesSvg(panels, { title: 'hub: streamwise speed u in 24 windows', colorbarLabel: 'u (m/s)', axes: { yLabel: 'y (m)', zLabel: 'x (m)' }, maskNames: {} });
     const labels = svgTexts(svg).filter((t) => t.cls === 'panel-label');
     // Every label line of every panel is drawn (the time range kept whole, over as many lines as it needs).
     for (let k = 0; k < 24; k++) expect(labels.map((l) => l.text).join(' ')).toContain(`window ${k}`);
     expect(labels.filter((l) => /^\d\d:\d\d:\d\d/.test(l.text))).not.toHaveLength(0);
     // No two texts of the figure overlap (boxes from DejaVu Sans advance widths, helpers/svgText.ts; 0.5 unit slack).
     expect(overlaps(svgTexts(svg)).map(([a, b]) => `${a.text} | ${b.text}`)).toEqual([]);
+  });
+});
+
+describe.skipIf(!py.python)(`held-back row: turbine marks of the panels${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('marks every turbine where it stands in each panel\'s own rotor frame (246 and 254 degrees)', () => {
+    // Regression: the panels of a horizontal plane all took the turbine marks of the first panel's wind direction,
+    // so in the windows with the other direction R-2 and R-3 were drawn up to 85 m from where they stand.
+    const d = generate('heldback_row.py', ['--rate', '0.1']);
+    const c = loadCampaignFile(join(d, 'campaign.yaml'));
+    const plane = c.planes[0];
+    const grid = gridSpecOf(plane);
+    const n = grid.ny * grid.nz;
+    const panel = (index: number, direction_deg: number): PanelField => ({
+      planeId: plane.id, orientation: 'horizontal', index, ensemble: false, label: '', members: 1, start_s: 1e9 + 600 * index, end_s: 1e9 + 600 * index + 300,
+      direction_deg, yawOffset_deg: NaN, grid, values: new Float32Array(n).fill(NaN), u: new Float32Array(n).fill(7), normalised: false,
+      codes: new Uint8Array(n), codesU: new Uint8Array(n), v: new Float32Array(n), w: new Float32Array(n), assumedW: new Uint8Array(n), hasData: new Uint8Array(n).fill(1),
+    });
+    const scales = new ScaleCollector();
+    scales.add('u_ms', new Float64Array(n).fill(7));
+    const svg = planePanelsSvg(plane, [panel(0, 246), panel(1, 254)], 2, scales.scales(c.output.figures, [grid]), c);
+    const marks = [...svg.matchAll(/<g class="panel" data-index="(\d)">|<g class="turbine" data-y="([-0-9.e]+)" data-x="([-0-9.e]+)"/g)];
+    let k = -1;
+    const got: [number, number, number][] = [];
+    for (const m of marks) if (m[1] !== undefined) k = Number(m[1]); else got.push([k, Number(m[2]), Number(m[3])]);
+    // Expected: each tower base in the rotor frame of the panel's direction about the site origin (frame: site),
+    // x = e sin(d + 180) + n cos(d + 180), y = -e cos(d + 180) + n sin(d + 180) (x downstream, y to the left).
+    for (const [p, dir] of [[0, 246], [1, 254]] as const) {
+      const a = ((dir + 180) * Math.PI) / 180;
+      for (const t of c.turbines) {
+        const [e, nn] = t.position;
+        const x = e * Math.sin(a) + nn * Math.cos(a), y = -e * Math.cos(a) + nn * Math.sin(a);
+        if (y < -160 || y > 160) continue; // outside the plane (Q-0)
+        // Positions written with full precision: 1e-6 m.
+        expect(got.some(([q, gy, gx]) => q === p && Math.abs(gy - y) < 1e-6 && Math.abs(gx - x) < 1e-6), `panel ${p} ${t.id} at (${x.toFixed(1)}, ${y.toFixed(1)})`).toBe(true);
+      }
+    }
   });
 });
