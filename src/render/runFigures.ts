@@ -161,6 +161,8 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
     ...(p.diskCentre ? { diskCentre: p.diskCentre } : {}),
     ...(p.ellipse ? { ellipse: p.ellipse } : {}),
     ...(p.track ? { track: p.track } : {}),
+    // Horizontal planes: the turbines where they stand in this window's rotor frame (its own wind direction).
+    ...(cross ? {} : { turbines: turbineMarks(campaign, plane, p.direction_deg) }),
   }));
   const first = shown[0], last = shown[shown.length - 1];
   const span = windowLabel({ index: 0, start_s: first.start_s, end_s: last.end_s });
