@@ -6,6 +6,7 @@ import { setPriority, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parentPort } from 'node:worker_threads';
 import { NcFileWriter } from './netcdfCore.mjs';
+import { tuneWasmTiering } from './wasmTiering.mjs';
 
 // Below the main thread in the scheduler (Linux: a thread's own nice value): the ingest comes first on a busy
 // machine, this thread's work fills the gaps. Elsewhere, or without the right, nothing changes.
@@ -14,6 +15,7 @@ try {
   if (tid > 0) setPriority(tid, 10);
 } catch { /* not Linux: same priority */ }
 
+tuneWasmTiering();
 const h5 = await import('h5wasm/node');
 const M = await h5.ready;
 M.activate_throwing_error_handler();
