@@ -72,7 +72,7 @@ describe('a row of three turbines on rolling terrain, simulated and run', () => 
     for (const w of used) {
       const st = stateOf(w);
       const p1 = Number(st.find((r) => r.turbine === 'TR-1')!.power_kw), p2 = Number(st.find((r) => r.turbine === 'TR-2')!.power_kw);
-      const k = Number(st[0].yaw_offset_deg) > 10 ? sums.on : sums.off;
+      const k = Number(st.find((r) => r.turbine === 'TR-1')!.yaw_offset_deg) > 10 ? sums.on : sums.off; // the yawed turbine's state
       k[0] += p2; k[1] += p1;
     }
     const expected = sums.on[0] / sums.on[1] / (sums.off[0] / sums.off[1]) - 1;
