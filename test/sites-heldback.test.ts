@@ -345,10 +345,12 @@ describe.skipIf(!py.python)(`held-back bad input of issue 16: one line naming fi
 
 interface CrossView { window: number; plane: string; turbine: string; yc_m: number; zc_m: number; inflow_hub_ms?: number; waked_by?: string }
 
-describe.skipIf(!py.python)(`held-back wakes crossing cross planes${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+for (const variant of ['P11 in C-1\'s frame', 'P11 in C-3\'s frame'])
+describe.skipIf(!py.python)(`held-back wakes crossing cross planes, ${variant}${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   let dir: string, x: CrossView[], rows: Record<string, string>[];
   beforeAll(async () => {
-    dir = generate('heldback_cross.py', []);
+    // The second variant gives the same plane in the waked turbine's own frame: every expectation is the same.
+    dir = generate('heldback_cross.py', variant.includes('C-3') ? ['--frame-c3'] : []);
     x = (JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { views: CrossView[] }).views;
     const res = await run(dir);
     rows = readCsv(join(res.runDir, 'wake', 'turbine_wakes.csv'));

@@ -1,13 +1,13 @@
 """A reviewer's held-back case of wakes crossing cross planes, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_cross.py OUTDIR
+Usage: python3 test/reference/heldback_cross.py OUTDIR [--frame-c3]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
 Invented site, wind from exactly 200 deg (rotor frame: x towards azimuth 20 deg, y towards azimuth 290 deg, z up),
 flat ground at 0. Three turbines (rotor 100 m, hub 90 m): C-1 at the site origin, C-2 side by side 300 m to its
 left (y = +300), C-3 700 m behind C-1 (x = 700, y = 0). Two cross planes in C-1's frame: P4 at x = 400 m (the wakes
 of C-1 and C-2 cross it side by side) and P11 at x = 1100 m (behind C-3, 4 D; C-2's wake at 11 D beside it).
-Planes: y from -250 to 550 m in 25-m cells, z from 10 to 190 m in 20-m cells, slabs 20 m thick.
+With --frame-c3, P11 is given in C-3's frame (x = 400 m): the same plane. Planes: y from -250 to 550 m in 25-m cells, z from 10 to 190 m in 20-m cells, slabs 20 m thick.
 
 Flow: u = U (z / 90)^0.12 prod_k (1 - a_k exp(-((y - yc_k(x))^2 + (z - 90)^2) / (2 s_k(x)^2))) behind each turbine
 (x > x_k), a_k = 0.35 (C-3: 0.25), s_k = 35 m + 0.06 (x - x_k), yc_k = y_k + 2 m per degree of yaw offset x
@@ -115,6 +115,10 @@ campaign = {
     "inflow": {"kind": "fixed", "speed_ms": U, "height_m": H, "law": "power", "alpha": ALPHA},
     "output": {"dir": "out", "images": False, "netcdf": False},
 }
+if "--frame-c3" in sys.argv:
+    # The same plane P11 given in C-3's frame: 400 m behind C-3's tower base, its y from C-3's axis (C-3 stands at
+    # y = 0 of C-1's frame, so the extent is unchanged).
+    campaign["planes"][1].update({"frame": "C-3", "x_m": PLANES["P11"] - T["C-3"][0]})
 with open(os.path.join(out, "campaign.yaml"), "w") as fh:
     json.dump(campaign, fh, indent=1)
 
