@@ -226,6 +226,27 @@ describe.skipIf(!py.python)(`held-back row turned through north${py.python ? '' 
   }, 120_000);
 });
 
+describe.skipIf(!py.python)(`held-back row with segment windows of R-1's yaw offset${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  it('finds the script\'s spans, gives each its level as state, and the script\'s gains', async () => {
+    const d = generate('heldback_row.py', ['--segments', '--rate', '0.5']);
+    const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
+    const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [powerStage()] });
+    const wp = readCsv(join(res.runDir, 'power', 'window_power.csv')).filter((r) => r.turbine === 'R-2');
+    expect(wp).toHaveLength(x.windows.length);
+    x.windows.forEach((w, k) => {
+      // Bounds are series rows (0.1 s) plus the settle time; written to the millisecond: 1e-3 s.
+      expect(Math.abs(Date.parse(wp[k].start) / 1000 - w.start_s), `window ${k}`).toBeLessThan(1e-3);
+      expect(Math.abs(Date.parse(wp[k].end) / 1000 - w.end_s), `window ${k}`).toBeLessThan(1e-3);
+      expect([wp[k].state, Number(wp[k].level_deg)]).toEqual([w.state, w.level]);
+    });
+    const g = readCsv(join(res.runDir, 'power', 'power_gain.csv'));
+    for (const turbine of ['R-2', 'R-3']) {
+      const c = g.find((r) => r.turbine === turbine && r.direction_lo_deg === 'all')!;
+      expect(Math.abs(Number(c.gain) - x.gains[turbine].combined)).toBeLessThan(6e-5); // gains written to 1e-4
+    }
+  }, 120_000);
+});
+
 describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   it('still takes the windows\' state from a steered turbine, not from the unyawed reference', async () => {
     // Regression: the state of listed windows came from the first turbine with a series; listing the reference

@@ -1,11 +1,12 @@
 """A reviewer's held-back row of turbines with wake steering, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_row.py OUTDIR [--reference-first] [--cell M] [--rate HZ] [--turn DEG]
+Usage: python3 test/reference/heldback_row.py OUTDIR [--reference-first] [--cell M] [--rate HZ] [--turn DEG] [--segments]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 With --reference-first the unwaked reference turbine is listed first among the turbines (nothing else changes);
 --cell sets the plane's cell size (default 40 m), --rate the scanners' rows per second inside windows (default 15);
 --turn DEG turns the whole site and every direction by DEG (110: the wind from 356 and 4 deg, through north, with
-direction bin edges [-10, 0, 10]).
+direction bin edges [-10, 0, 10]); --segments uses segment windows of R-1's yaw offset instead of the log (the
+spans computed here by the README's rule, below).
 
 Invented site. Three turbines in a row (R-1, R-2, R-3; rotor 100 m, hub 90 m) 500 m apart along the azimuth 70 deg
 (wind from about 250 deg blows down the row), the first tower base at site (120, -40, 0); a fourth turbine Q-0,
@@ -60,6 +61,7 @@ import numpy as np
 out = sys.argv[1]
 REF_FIRST = "--reference-first" in sys.argv
 CELL = float(sys.argv[sys.argv.index("--cell") + 1]) if "--cell" in sys.argv else 40.0
+SEGMENTS = "--segments" in sys.argv
 TURN = float(sys.argv[sys.argv.index("--turn") + 1]) if "--turn" in sys.argv else 0.0
 RATE = float(sys.argv[sys.argv.index("--rate") + 1]) if "--rate" in sys.argv else 15.0
 os.makedirs(os.path.join(out, "data"), exist_ok=True)
@@ -277,6 +279,8 @@ for inst, rows in samples.items():
             fh.write(f"{t:.2f},{inst},{az:.4f},{el:.4f},{rr:.2f},{vr:.3f},{cnr:.1f}\n")
 
 # ---- campaign
+# Segment windows (--segments): levels 0 and 18 deg within 4 deg, rows at most 60 s apart, 60 s settle, 120 s least.
+SEG = {"turbine": "R-1", "levels_deg": [0, 18], "tolerance_deg": 4, "maxGap_s": 60, "settle_s": 60, "minDuration_s": 120}
 turbines = [{"id": k, "position_m": [float(TURB[k][0]), float(TURB[k][1]), 0.0], "hubHeight_m": HUB, "rotorDiameter_m": D,
              "thrustCoefficient": 0.78, "series": {"file": f"data/{k}.csv"}} for k in ("R-1", "R-2", "R-3", "Q-0")]
 if REF_FIRST:
@@ -288,7 +292,7 @@ campaign = {
     "instruments": [{"id": i, "position_m": [float(p[0]), float(p[1]), 2.0], "kind": "pulsed", "files": [f"data/{i}.csv"]} for i, p in inst_pos.items()],
     "planes": [{"id": "hub", "orientation": "horizontal", "frame": "site", "heights": "base", "z_m": HUB, "thickness_m": 16,
                 "y": {"min": PY[0], "max": PY[1]}, "xRange": {"min": PX[0], "max": PX[1]}, "cell_m": [CELL, CELL]}],
-    "windows": {"kind": "list", "file": "data/log.csv"},
+    "windows": {"kind": "segments", **SEG} if SEGMENTS else {"kind": "list", "file": "data/log.csv"},
     "windDirection": {"kind": "series", "file": "data/direction.csv"},
     "power": {"reference": "Q-0", "directionEdges_deg": DIR_EDGES, "speedEdges_ms": SPEED_EDGES, "replicates": 4000, "seed": 11},
     "output": {"dir": "out", "images": False, "netcdf": False},
@@ -324,14 +328,44 @@ r3 = sorted(series_rows["R-3"], key=lambda r: r["time"])
 k = next(i for i in range(1, len(r3)) if r3[i]["time"] - r3[i - 1]["time"] > 150)
 faults["gap_lines"] = [r3[k - 1]["line"], r3[k]["line"]]
 
+# --segments: the README's rule for segment windows on R-1's rows as written (levels 0 and 18 within 4 deg; each
+# row's yaw offset against the nearest direction row; rows of one level no more than 60 s apart form a span from
+# the first to the last of them; the first 60 s dropped; spans under 120 s left out).
+seg_windows = []
+if SEGMENTS:
+    spans, cur, prev_t = [], None, None
+    for r in sorted(series_rows["R-1"], key=lambda r: r["time"]):
+        t = r["time"]
+        off = wrap180(r["yaw"] - dir_v[int(np.argmin(abs(dir_t - t)))])
+        lv = [l for l in SEG["levels_deg"] if abs(off - l) <= SEG["tolerance_deg"]]
+        lv = min(lv, key=lambda l: abs(off - l)) if lv else None
+        if cur is not None and lv == cur["level"] and t - prev_t <= SEG["maxGap_s"]:
+            cur["last"] = t
+        else:
+            if cur is not None and cur["level"] is not None:
+                spans.append(cur)
+            cur = {"level": lv, "first": t, "last": t}
+        prev_t = t
+    if cur is not None and cur["level"] is not None:
+        spans.append(cur)
+    for sp in spans:
+        a = sp["first"] + SEG["settle_s"]
+        if sp["last"] - a >= SEG["minDuration_s"]:
+            seg_windows.append((a, sp["last"], sp["level"]))
+
 per_window = []
-for w, (a, b, lab) in enumerate(windows):
+for w, (a, b, lab) in enumerate(seg_windows if SEGMENTS else windows):
     sel = (dir_t >= a) & (dir_t < b)
     direction = circmean(dir_v[sel])
     yaw_rows = [r["yaw"] for r in series_rows["R-1"] if a <= r["time"] < b]
     off = wrap180(circmean(yaw_rows) - direction)
-    state = "baseline" if abs(off) <= 2 else "steered"
-    level = 0.0 if state == "baseline" else float(round(off / 10) * 10)
+    if SEGMENTS:
+        # A segment window's state is its level.
+        state, level = ("baseline" if lab == 0 else "steered"), float(lab)
+    else:
+        # Listed windows: the mean offset, within 2 deg of 0 a baseline, else rounded to wake.yawBin_deg (5).
+        state = "baseline" if abs(off) <= 2 else "steered"
+        level = 0.0 if state == "baseline" else float(round(off / 5) * 5)
     pw = {k: window_power(series_rows[k], a, b, k) for k in TURB}
     per_window.append({"window": w, "start_s": a, "end_s": b, "direction": direction, "yaw_offset": off, "state": state, "level": level,
                        "speed": pw["Q-0"].get("ws", float("nan")), "power": {k: v["power"] for k, v in pw.items()}, "flag": {k: v["flag"] for k, v in pw.items()}})
