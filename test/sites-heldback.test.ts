@@ -176,7 +176,7 @@ describe.skipIf(!py.python)(`held-back row with fixed windows across the yaw ste
     // Regression: 10-minute windows over 5-9 minute steps. A window's state was its mean yaw offset rounded to
     // wake.yawBin_deg, so a window half in each state became "steered" at an intermediate level (5, 10, 15) and
     // one 15 % steered "steered at level 0", and each such level got a gain of its own.
-    const d = generate('heldback_row.py', ['--rate', '0.5']);
+    const d = generate('heldback_row.py', ['--rate', '0.5', '--no-bootstrap']);
     const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
     const c = loadCampaignFile(join(d, 'campaign.yaml'));
     c.windows = { kind: 'fixed', length_s: 600, anchor: '2026-08-14T13:40:00Z' } as typeof c.windows;
@@ -210,7 +210,7 @@ describe.skipIf(!py.python)(`held-back row turned through north${py.python ? '' 
   it('bins the wind from 356 and 4 degrees by edges [-10, 0, 10] and gives the script\'s gains', async () => {
     // The whole site turned by 110 degrees: the same rows and power, directions on both sides of north. Exact to
     // the written precision (6e-5 in gain), as the first case.
-    const d = generate('heldback_row.py', ['--turn', '110', '--rate', '0.5']);
+    const d = generate('heldback_row.py', ['--turn', '110', '--rate', '0.5', '--no-bootstrap']);
     const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
     const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [powerStage()] });
     const g = readCsv(join(res.runDir, 'power', 'power_gain.csv'));
@@ -228,7 +228,7 @@ describe.skipIf(!py.python)(`held-back row turned through north${py.python ? '' 
 
 describe.skipIf(!py.python)(`held-back row with segment windows of R-1's yaw offset${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   it('finds the script\'s spans, gives each its level as state, and the script\'s gains', async () => {
-    const d = generate('heldback_row.py', ['--segments', '--rate', '0.5']);
+    const d = generate('heldback_row.py', ['--segments', '--rate', '0.5', '--no-bootstrap']);
     const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
     const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [powerStage()] });
     const wp = readCsv(join(res.runDir, 'power', 'window_power.csv')).filter((r) => r.turbine === 'R-2');
@@ -252,7 +252,7 @@ describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${
     // Regression: the state of listed windows came from the first turbine with a series; listing the reference
     // (never yawed) first made every window a baseline and left power_gain.csv without a row. The script's states
     // are R-1's (the first steered turbine); its gains as above (exact to the written precision, 6e-5).
-    const d = generate('heldback_row.py', ['--reference-first', '--rate', '2']);
+    const d = generate('heldback_row.py', ['--reference-first', '--rate', '0.5', '--no-bootstrap']);
     const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as RowExpected;
     const res = await run(d);
     const wp = readCsv(join(res.runDir, 'power', 'window_power.csv'));
@@ -459,7 +459,7 @@ describe.skipIf(!py.python)(`held-back row: turbine marks of the panels${py.pyth
   it('marks every turbine where it stands in each panel\'s own rotor frame (246 and 254 degrees)', () => {
     // Regression: the panels of a horizontal plane all took the turbine marks of the first panel's wind direction,
     // so in the windows with the other direction R-2 and R-3 were drawn up to 85 m from where they stand.
-    const d = generate('heldback_row.py', ['--rate', '0.1']);
+    const d = generate('heldback_row.py', ['--rate', '0.1', '--no-bootstrap']);
     const c = loadCampaignFile(join(d, 'campaign.yaml'));
     const plane = c.planes[0];
     const grid = gridSpecOf(plane);

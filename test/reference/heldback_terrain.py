@@ -25,7 +25,8 @@ raster coordinates (I + 0.5, J + 0.5)).
 Instruments: "a" at (0, 0, 14) and "b" at (1100, 300, 14) m. Every row its own beam: 65 % aimed at the hill
 (azimuth within 25 deg of it, elevation 0.3 .. 6 deg, range 100 .. 1000 m), the others azimuth and elevation drawn at
 random, range 60 .. 1400 m. For each row the script computes, from its own bilinear interpolation of the raster
-nodes (or the exact hill for the rotated raster, where wakeplane resamples), by ray marching in 0.5-m steps:
+nodes (or the exact hill for the rotated raster, where wakeplane resamples), by ray marching in 0.5-m steps (5 m
+with --curvature, where the ridge is ten times as wide):
 - outside_terrain: the point lies outside the raster's extent;
 - below_ground: the point lies below the ground plus the 2-m clearance (qc.groundClearance_m);
 - beam_blocked: the point is above that, but the beam passes below the ground somewhere before it;
@@ -265,7 +266,7 @@ while min(len(v) for v in written.values()) < 400 and tries < 200000:
         if c < 0:
             reason = "below_ground"
         else:
-            s = np.arange(0.0, rr, 0.5)
+            s = np.arange(0.0, rr, 0.5 * SCALE)
             be, bn, bz = beam(o, az, el, s)
             lowest = float(np.nanmin(bz - ground(be, bn)))
             if abs(lowest) < 1.5:
@@ -318,7 +319,7 @@ for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)) if not CURVED else
         q = np.array([x, y, g + PLANE_Z])
         for inst, o in INSTR.items():
             L = float(np.linalg.norm(q - o))
-            s = np.arange(0.0, L, 0.5)
+            s = np.arange(0.0, L, 0.5 * SCALE)
             v = (q - o) / L
             gg = ground(o[0] + s * v[0], o[1] + s * v[1])
             if np.isnan(gg).any():
