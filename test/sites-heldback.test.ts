@@ -31,6 +31,10 @@ import { planePanelsSvg } from '../src/render/runFigures.ts';
 import { ScaleCollector } from '../src/render/runScales.ts';
 import type { PanelField } from '../src/render/panelField.ts';
 import { gridSpecOf } from '../src/grid/grid.ts';
+import { renderRun } from '../src/render/renderRun.ts';
+import type { FieldResult } from '../src/retrieval/types.ts';
+import type { WakeAnalysis } from '../src/wake/types.ts';
+import type { RunStage } from '../src/pipeline/run.ts';
 
 const py = debianPython(['numpy', 'scipy']);
 
@@ -54,17 +58,26 @@ function generate(script: string, args: string[]): string {
   return dir;
 }
 
-async function run(dir: string): Promise<RunResult> {
+/** Fields and wake analysis a run handed to its stages (for figure tests that need them in memory). */
+interface Captured { fields: FieldResult[]; wake?: WakeAnalysis }
+
+async function run(dir: string, captured?: Captured): Promise<RunResult> {
   const c = loadCampaignFile(join(dir, 'campaign.yaml'));
-  return runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: [wakeStage(), powerStage()] });
+  const capture: RunStage = {
+    name: 'capture',
+    async field(f) { captured?.fields.push(f); return []; },
+    async finish(ctx) { if (captured) captured.wake = ctx.shared.wake as WakeAnalysis; return []; },
+  };
+  return runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: [wakeStage(), powerStage(), ...(captured ? [capture] : [])] });
 }
 
 describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   let dir: string, e: RowExpected, res: RunResult;
+  const captured: Captured = { fields: [] };
   beforeAll(async () => {
     dir = generate('heldback_row.py', ['--rate', '12']);
     e = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as RowExpected;
-    res = await run(dir);
+    res = await run(dir, captured);
   }, 120_000);
 
   it('accounts for every sample and drops the junk by the automatic CNR limit', () => {
@@ -151,6 +164,20 @@ describe.skipIf(!py.python)(`held-back row of turbines with wake steering${py.py
       }
     }
   });
+
+  it('draws every turbine\'s wake track on the single-window map of the site-frame plane', async () => {
+    // Regression: a window's own map looked its wake row up by the plane's id ("hub"); with several turbines the
+    // rows are "hub@R-1" .. "hub@R-3", so the map had no wake mark at all and said "no inflow reference".
+    const out = mkdtempSync(join(tmpdir(), 'wakeplane-sites-figures-'));
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    await renderRun(captured.fields.filter((f) => f.window.index === 2), captured.wake, c, out, { windowImages: [2], workers: 1, density: 30 });
+    const svg = readFileSync(join(out, 'images', 'hub_w2_u.svg'), 'utf8');
+    // The tracks the wake analysis found for window 2, every turbine's (wake/turbine_wakes.csv rows of the run).
+    const found = captured.wake!.rows.filter((r) => r.window.index === 2).reduce((n, r) => n + (r.horizontalTrack?.yc_m.filter(Number.isFinite).length ?? 0), 0);
+    expect(found).toBeGreaterThan(10);
+    expect((svg.match(/class="marker marker-circle"/g) ?? []).length).toBe(found);
+    expect(svg).not.toMatch(/no inflow reference/);
+  }, 60_000);
 
   it('measures the deflection of R-1\'s wake at R-2 in every window and beside the gain', () => {
     const tw = readCsv(join(res.runDir, 'wake', 'turbine_wakes.csv'));
