@@ -296,9 +296,10 @@ describe.skipIf(!py.python)(`held-back row, the reference turbine listed first${
 describe.skipIf(!py.python)(`held-back terrain: one hill in four rasters, and a ridge across a valley over the 4/3 Earth${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
   // Rows within 1.5 m of a decision are not written by the script, so the counts are exact whatever the
   // interpolation (bilinear on the nodes, or on wakeplane's resampled site grid for the turned raster) or march step.
-  for (const kind of ['xyz', 'tiepoint', 'transform', 'rotated', 'xyz --curvature']) {
+  for (const kind of ['xyz', 'tiepoint', 'transform', 'rotated', 'xyz --curvature', 'tiepoint --heights-site']) {
     it(`${kind}: every row's fate as the script's ray march decides it`, async () => {
-      // With --curvature: a ridge 5 km away, ranges to 14 km, beams over the 4/3 Earth (Doviak & Zrnic 1993).
+      // With --curvature: a ridge 5 km away, ranges to 14 km, beams over the 4/3 Earth (Doviak & Zrnic 1993); with
+      // --heights-site: the plane at an altitude (heights: site) over the hill instead of following it.
       const d = generate('heldback_terrain.py', ['--raster', ...kind.split(' ')]);
       const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as Record<string, Record<string, number>>;
       const res = await runCampaign(loadCampaignFile(join(d, 'campaign.yaml')), { outRoot: join(d, 'out'), images: false, stages: [] });

@@ -1,6 +1,6 @@
 """A reviewer's held-back terrain case, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated} [--epsg N] [--curvature]
+Usage: python3 test/reference/heldback_terrain.py OUTDIR --raster {xyz,tiepoint,transform,rotated} [--epsg N] [--curvature] [--heights-site]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/terrain.(csv|tif), OUTDIR/a.csv, OUTDIR/b.csv and
 OUTDIR/expected.json.
 
@@ -15,6 +15,7 @@ Invented site: flat ground at 12 m (site-frame up) with a Gaussian hill h(e, n) 
   4x4 affine matrix from raster (I, J) to model (X, Y): X = a I + b J + d, Y = e I + f J + h; north up: f < 0);
 - rotated: a raster whose columns run 30 degrees north of east (a = 10 cos 30, e = 10 sin 30, b = 10 sin 30,
   f = -10 cos 30), so the model transformation has rotation terms.
+With --heights-site the plane lies at a fixed altitude (site-frame up 60 +/- 15 m) instead of 40 m above the ground.
 With --curvature (XYZ only) everything is ten times as wide (the ridge 30 m high, 5.2 km away, the XYZ spacing 100 x
 90 m, ranges to 14 km, elevations a tenth) and the beams follow the 4/3 Earth: height h(r) = sqrt(r^2 + (k a)^2 +
 2 r k a sin(el)) - k a and ground distance s(r) = k a asin(r cos(el) / (k a + h)), k a = 4/3 x 6371 km (Doviak &
@@ -60,6 +61,10 @@ if CURVED:
     # A ridge across a valley, kilometres away: the same shapes, ten times as wide, 30 m high.
     AMP, HE, HN, HS = 30.0, 5200.0, 1400.0, 1100.0
 CLEAR, PLANE_Z, SLAB = 2.0, 40.0, 15.0
+# --heights site: the plane at an altitude (site-frame up 60 m), not following the ground.
+SITE_HEIGHTS = "--heights-site" in sys.argv
+if SITE_HEIGHTS:
+    PLANE_Z = 60.0
 
 
 def hill(e, n):
@@ -274,7 +279,7 @@ while min(len(v) for v in written.values()) < 400 and tries < 200000:
             if lowest < 0:
                 reason = "beam_blocked"
             else:
-                hz = p[2] - g
+                hz = p[2] if SITE_HEIGHTS else p[2] - g
                 if abs(hz - (PLANE_Z - SLAB)) < 1.5 or abs(hz - (PLANE_Z + SLAB)) < 1.5:
                     continue
                 if min(abs(p[0] - PX[0]), abs(p[0] - PX[1]), abs(p[1] - PY[0]), abs(p[1] - PY[1])) < 1.5:
@@ -298,7 +303,7 @@ campaign = {
     "site": {"terrain": terrain, "earthCurvature": CURVED},
     "turbine": {"id": "H-1", "position_m": [650.0, 200.0, float(hill(650.0, 200.0))], "hubHeight_m": 80, "rotorDiameter_m": 80},
     "instruments": [{"id": k, "position_m": [float(v[0]), float(v[1]), float(v[2])], "files": [f"{k}.csv"]} for k, v in INSTR.items()],
-    "planes": [{"id": "tf", "orientation": "horizontal", "frame": "site", "heights": "terrain", "z_m": PLANE_Z, "thickness_m": 2 * SLAB,
+    "planes": [{"id": "tf", "orientation": "horizontal", "frame": "site", "heights": "site" if SITE_HEIGHTS else "terrain", "z_m": PLANE_Z, "thickness_m": 2 * SLAB,
                 "y": {"min": PY[0], "max": PY[1]}, "xRange": {"min": PX[0], "max": PX[1]}, "cell_m": [100 * SCALE, 100 * SCALE]}],
     "qc": {"groundClearance_m": CLEAR, "cnr_db": {"min": -30}},
     "windows": {"kind": "record"},
@@ -311,7 +316,7 @@ with open(os.path.join(out, "campaign.yaml"), "w") as fh:
 # under the centre), marched in 0.5-m steps: blocked when it passes below the ground. Cells whose lowest clearance
 # lies within 1.5 m of zero, or off the raster, are left out.
 plan_beams = []
-for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)) if not CURVED else []:
+for iy, y in enumerate(np.arange(PY[0] + 50.0, PY[1], 100.0)) if not (CURVED or SITE_HEIGHTS) else []:
     for ix, x in enumerate(np.arange(PX[0] + 50.0, PX[1], 100.0)):
         g = float(ground(x, y))
         if not math.isfinite(g):
