@@ -11,7 +11,11 @@
  *   GeoTIFFs written byte by byte (tie point and pixel scale; a model transformation, north up; a model
  *   transformation turned by 30 degrees); every row its own beam; the script's ray march (0.5-m steps on its own
  *   bilinear interpolation) decides each row: outside the terrain, below the ground, blocked by the hill, in the
- *   terrain-following plane or outside it; once more ten times as wide with beams over the 4/3 Earth.
+ *   terrain-following plane or outside it; once more ten times as wide with beams over the 4/3 Earth, and with the
+ *   plane at an altitude. The planner's rotor and terrain flags against the scripts' own segment geometry.
+ * Bad input of the issue: one line naming file and key or line, nothing written or removed. Figures of the row:
+ * panel labels in their columns, turbine marks in each window's own rotor frame (the rotation written out below),
+ * every turbine's wake track on a window's map.
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
@@ -19,22 +23,21 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
+import { gridSpecOf } from '../src/grid/grid.ts';
 import { powerStage } from '../src/pipeline/powerStage.ts';
-import { runCampaign, type RunResult } from '../src/pipeline/run.ts';
+import { runCampaign, type RunResult, type RunStage } from '../src/pipeline/run.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
-import { readCsv } from './helpers/csvTable.ts';
-import { debianPython } from './helpers/python.ts';
-import { runCli, snapshot } from './faults/helpers.ts';
-import { overlaps, svgTexts } from './helpers/svgText.ts';
-import { smallMultiplesSvg } from '../src/render/smallMultiples.ts';
+import type { PanelField } from '../src/render/panelField.ts';
+import { renderRun } from '../src/render/renderRun.ts';
 import { planePanelsSvg } from '../src/render/runFigures.ts';
 import { ScaleCollector } from '../src/render/runScales.ts';
-import type { PanelField } from '../src/render/panelField.ts';
-import { gridSpecOf } from '../src/grid/grid.ts';
-import { renderRun } from '../src/render/renderRun.ts';
+import { smallMultiplesSvg } from '../src/render/smallMultiples.ts';
 import type { FieldResult } from '../src/retrieval/types.ts';
 import type { WakeAnalysis } from '../src/wake/types.ts';
-import type { RunStage } from '../src/pipeline/run.ts';
+import { runCli, snapshot } from './faults/helpers.ts';
+import { readCsv } from './helpers/csvTable.ts';
+import { debianPython } from './helpers/python.ts';
+import { overlaps, svgTexts } from './helpers/svgText.ts';
 
 const py = debianPython(['numpy', 'scipy']);
 
