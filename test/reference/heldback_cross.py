@@ -1,12 +1,13 @@
 """A reviewer's held-back case of wakes crossing cross planes, written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_cross.py OUTDIR [--frame-c3]
+Usage: python3 test/reference/heldback_cross.py OUTDIR [--frame-c3] [--plane6]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
 Invented site, wind from exactly 200 deg (rotor frame: x towards azimuth 20 deg, y towards azimuth 290 deg, z up),
 flat ground at 0. Three turbines (rotor 100 m, hub 90 m): C-1 at the site origin, C-2 side by side 300 m to its
 left (y = +300), C-3 700 m behind C-1 (x = 700, y = 0). Two cross planes in C-1's frame: P4 at x = 400 m (the wakes
 of C-1 and C-2 cross it side by side) and P11 at x = 1100 m (behind C-3, 4 D; C-2's wake at 11 D beside it).
+With --plane6 a third plane P6 at x = 620 m, 0.8 D upstream of C-3, shares the samples.
 With --frame-c3, P11 is given in C-3's frame (x = 400 m): the same plane. Planes: y from -250 to 550 m in 25-m cells, z from 10 to 190 m in 20-m cells, slabs 20 m thick.
 
 Flow: u = U (z / 90)^0.12 prod_k (1 - a_k exp(-((y - yc_k(x))^2 + (z - 90)^2) / (2 s_k(x)^2))) behind each turbine
@@ -40,6 +41,9 @@ lE, lN = -dN, dE
 T = {"C-1": (0.0, 0.0), "C-2": (0.0, 300.0), "C-3": (700.0, 0.0)}
 A = {"C-1": 0.35, "C-2": 0.35, "C-3": 0.25}
 PLANES = {"P4": 400.0, "P11": 1100.0}
+if "--plane6" in sys.argv:
+    # A third plane 0.8 D upstream of C-3: where the deflection of C-1's wake at C-3 is read.
+    PLANES["P6"] = 620.0
 Y, Z = (-250.0, 550.0), (10.0, 190.0)
 T0 = 1791234567.8
 WIN = [(T0 + 60.0, T0 + 660.0, 0.0), (T0 + 780.0, T0 + 1380.0, 20.0)]
@@ -73,7 +77,7 @@ for a, b, g1 in WIN:
         o = np.array([oe, on, 3.0])
         n = rng.poisson(8.0 * (b - a))
         t = np.sort(rng.uniform(a, b, n))
-        which = rng.integers(0, 2, n)
+        which = rng.integers(0, len(PLANES), n)
         for tk, wk in zip(t, which):
             x = list(PLANES.values())[wk] + rng.uniform(-9, 9)
             y, z = rng.uniform(*Y), rng.uniform(*Z)
@@ -155,5 +159,24 @@ for pid, x in PLANES.items():
                     hit |= dist <= D / 2
                 if not near:
                     beams.append([pid, iy, iz, inst, hit])
+# --plane6: what a fit of C-1's region of P6 alone gives (README: the region is |y| <= the wake envelope R + 0.1 x
+# plus D/2 = 162 m, but never past half the distance to C-2's wake, 150 m), from the exact deficit at the cell
+# centres against the fixed inflow: scipy.optimize.curve_fit of the 2-D Gaussian with a constant offset.
+crop_fit = {}
+if "P6" in PLANES:
+    from scipy.optimize import curve_fit
+
+    ycs = np.arange(Y[0] + 12.5, Y[1], 25.0)
+    zcs = np.arange(Z[0] + 10.0, Z[1], 20.0)
+    YY, ZZ = np.meshgrid(ycs, zcs)
+
+    def gauss(X, A, y0, z0, sy, sz, c):
+        return A * np.exp(-(X[0] - y0) ** 2 / (2 * sy * sy) - (X[1] - z0) ** 2 / (2 * sz * sz)) + c
+
+    for w, (a, b, g1) in enumerate(WIN):
+        d = 1 - u_at(PLANES["P6"], YY, ZZ, g1) / (U * (ZZ / H) ** ALPHA)
+        m = np.abs(YY) <= 150.0
+        p, _ = curve_fit(gauss, (YY[m], ZZ[m]), d[m], p0=(0.3, 0.0, H, 80.0, 80.0, 0.0))
+        crop_fit[w] = {"yc_m": float(p[1]), "truth_m": centre("C-1", PLANES["P6"], g1)}
 with open(os.path.join(out, "expected.json"), "w") as fh:
-    json.dump({"views": expected, "beams": beams}, fh, indent=1)
+    json.dump({"views": expected, "beams": beams, "crop_fit": crop_fit}, fh, indent=1)
