@@ -11,9 +11,10 @@
  * - horizontal planes: from half a diameter behind its rotor to the first turbine it wakes (beyond that the two wakes
  *   are one: that turbine's region); cross planes: a plane behind a turbine k that stands in j's wake belongs to k
  *   alone (the merged wake is reported as k's, with j named in its wakedBy).
- * On a cross plane, another turbine's wake whose envelope reaches into j's region (one not merged into it) is named
- * in the row's reason: the fit of the region alone is pulled towards it (a wake 3 sigma away, at 11 D, pulled a
- * held-back case's centre by 14-30 m: test/sites-heldback.test.ts); a joint fit of all wakes would remove it.
+ * On a cross plane, another turbine's wake whose envelope, with half a diameter to spare, reaches into j's region
+ * (one not merged into it) is named in the row's reason: the fit of the region alone is pulled towards it (in the
+ * held-back cases of test/sites-heldback.test.ts by 2.4 m at 6 D beside a wake 3 D away, and by 14-30 m at 11 D
+ * beside one 3 sigma away); a joint fit of all wakes would remove it.
  * Inflow of turbine j, "taken from upstream of it, not from the free stream":
  * - horizontal planes: per lateral column, the mean u of the rows 2.5 D_j to 0.5 D_j upstream of its rotor (the free
  *   stream for an unwaked turbine, the waked flow for a waked one);
@@ -97,7 +98,8 @@ export function turbineViews(f: FieldResult, c: Pick<Campaign, 'planes' | 'turbi
     if (cross) {
       // Other wakes whose envelope reaches into this region (not those merged into it: wakedBy): a fit of the
       // region alone is pulled towards them (see the file docblock).
-      const reach = list.filter((k) => k !== j && !wakedBy.includes(k.id) && Math.abs(k.y - j.y) - wakeHalfWidth(k, f.x_m - k.x) < half);
+      // The envelope with half a diameter to spare, as the regions take it: a Gaussian wake's tail reaches beyond it.
+      const reach = list.filter((k) => k !== j && !wakedBy.includes(k.id) && Math.abs(k.y - j.y) - (wakeHalfWidth(k, f.x_m - k.x) + k.diameter / 2) < half);
       if (reach.length) note = `wake of ${reach.map((k) => k.id).join(', ')} reaches into this turbine's region: its centre may be pulled towards ${reach.length > 1 ? 'them' : 'it'}`;
     }
     const view = shiftedField(f, j, half, cross ? -Infinity : j.x + j.diameter / 2, sEnd);
