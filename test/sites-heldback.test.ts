@@ -523,7 +523,7 @@ describe.skipIf(!py.python)(`held-back row: turbine marks of the panels${py.pyth
 });
 
 describe.skipIf(!py.python)(`held-back cross planes: the deflection read 0.8 D upstream of the waked turbine${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
-  it('reads C-1\'s wake centre at P6 as a fit of its region gives it, says the neighbour pulls it, and reports it beside the gain', async () => {
+  it('reads C-1\'s wake centre at P6 with the neighbouring wake of C-2 divided out, says so, and reports it beside the gain', async () => {
     const d = generate('heldback_cross.py', ['--plane6']);
     const x = JSON.parse(readFileSync(join(d, 'expected.json'), 'utf8')) as { crop_fit: Record<string, { yc_m: number; truth_m: number }> };
     const res = await run(d);
@@ -532,14 +532,17 @@ describe.skipIf(!py.python)(`held-back cross planes: the deflection read 0.8 D u
     for (const w of [0, 1]) {
       const r = tw.find((q) => Number(q.window) === w && q.plane === 'P6' && q.at_turbine === 'C-3')!;
       const f = x.crop_fit[w];
-      // scipy's fit of the same region of the exact deficit at the cell centres (the script): wakeplane's from 25 x
-      // 20 m cell means of noisy samples, within 3 standard errors + 0.5 m (cell means against centre values).
-      expect(Math.abs(Number(r.centre_y_m) - f.yc_m), `window ${w}`).toBeLessThan(3 * Number(r.centre_y_se_m) + 0.5);
-      // That fit is pulled 1.4 and 2.4 m towards C-2's wake, 300 m to the side: the row must say so.
-      expect(wt.find((q) => Number(q.window) === w && q.plane === 'P6')!.reason).toMatch(/wake of C-2 reaches into this turbine's region/);
+      // A fit of C-1's region alone is pulled towards C-2's wake, 300 m to the side: scipy's fit of the exact deficit
+      // at the cell centres (the script) gives 1.4 and 42.4 m for the true 0 and 40.0 m. With C-2's fitted wake
+      // divided out of the region, the true centre within 3 standard errors + 0.5 m (cell means against centre
+      // values); and at least half of the pull gone.
+      expect(Math.abs(f.yc_m - f.truth_m)).toBeGreaterThan(1.2);
+      expect(Math.abs(Number(r.centre_y_m) - f.truth_m), `window ${w}`).toBeLessThan(3 * Number(r.centre_y_se_m) + 0.5);
+      expect(Math.abs(Number(r.centre_y_m) - f.truth_m), `window ${w}`).toBeLessThan(0.5 * Math.abs(f.yc_m - f.truth_m));
+      expect(wt.find((q) => Number(q.window) === w && q.plane === 'P6')!.reason).toMatch(/wake of C-2 reaches into this turbine's region: its fitted wake divided out/);
     }
-    // Beside the gain: steered minus baseline centre, against the true 39.98 m: the two pulls nearly cancel, 2 m.
+    // Beside the gain: steered minus baseline centre, against the true 39.98 m: 1 m (two centres as above).
     const g = readCsv(join(res.runDir, 'power', 'power_gain.csv')).find((q) => q.turbine === 'C-3' && q.direction_lo_deg !== 'all')!;
-    expect(Math.abs(Number(g.deflection_m) - (x.crop_fit[1].truth_m - x.crop_fit[0].truth_m))).toBeLessThan(2);
+    expect(Math.abs(Number(g.deflection_m) - (x.crop_fit[1].truth_m - x.crop_fit[0].truth_m))).toBeLessThan(1);
   }, 60_000);
 });
