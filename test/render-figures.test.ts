@@ -26,7 +26,7 @@ import { scalarMapSvg } from '../src/render/scalarMap.ts';
 import { summaryFigures } from '../src/render/summaryPlots.ts';
 import { theme } from '../src/render/theme.ts';
 import { niceExtent } from '../src/render/ticks.ts';
-import { wrapText } from '../src/render/richText.ts';
+import { textWidth, wrapText } from '../src/render/richText.ts';
 import { MaskReason, type FieldResult } from '../src/retrieval/types.ts';
 import { DEFAULT_SHAPE, fixtureAnalysis, fixtureCampaign, fixtureField, fixtureWake } from './render-fixture.ts';
 import { overlaps, svgTexts } from './helpers/svgText.ts';
@@ -310,6 +310,16 @@ describe('typography of every figure type', async () => {
   it('wraps at ordinary spaces only: a no-break space keeps a number with its unit', () => {
     expect(wrapText('width ellipse: σ_{y}\u00a0=\u00a035.0\u00a0±\u00a00.2\u00a0m, more words here', 60, 10.5)).toContain('σ_{y}\u00a0=\u00a035.0\u00a0±\u00a00.2\u00a0m,');
     expect(wrapText('a b', 1, 10)).toEqual(['a', 'b']);
+  });
+
+  it('cuts a word wider than the line after its dashes (a time span over a narrow panel), never after a leading sign', () => {
+    // 70 user units at 11 px bold hold "window 0 ·" but not "09:01:30–09:09:30" (about 100): the span goes on two
+    // lines, cut after its en dash, each within the width (widths from the font's advance widths: textWidth).
+    const lines = wrapText('window 0 \u00b7 09:01:30\u201309:09:30', 70, 11, true);
+    expect(lines).toEqual(['window 0 \u00b7', '09:01:30\u2013', '09:09:30']);
+    for (const l of lines) expect(textWidth(l, 11, true)).toBeLessThanOrEqual(70);
+    // A negative number joined to its unit by no-break spaces is not cut after its sign.
+    expect(wrapText('-1234.5\u00a0m', 10, 11)).toEqual(['-1234.5\u00a0m']);
   });
 });
 

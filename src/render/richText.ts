@@ -91,7 +91,7 @@ export function textWidth(label: string, size: number, bold = false): number {
  * markup is never split. A single word wider than the line stays whole.
  */
 export function wrapText(label: string, maxWidth: number, size: number, bold = false): string[] {
-  const words = splitWords(label);
+  const words = splitWords(label).flatMap((w) => (textWidth(w, size, bold) > maxWidth ? splitLongWord(w, maxWidth, size, bold) : [w]));
   const lines: string[] = [];
   let cur = '';
   for (const w of words) {
@@ -103,6 +103,32 @@ export function wrapText(label: string, maxWidth: number, size: number, bold = f
   }
   if (cur) lines.push(cur);
   return lines.length ? lines : [''];
+}
+
+/**
+ * A word wider than the line (a time span "09:01:30\u201309:09:30" over a narrow panel) cut after its dashes, slashes
+ * or commas, as few pieces as fit; a word without such a place stays whole (and overflows, as before).
+ */
+function splitLongWord(word: string, maxWidth: number, size: number, bold: boolean): string[] {
+  if (word.includes('_{') || word.includes('^{')) return [word];
+  const pieces: string[] = [];
+  let start = 0, lastBreak = -1;
+  for (let i = 0; i < word.length; i++) {
+    // not a leading sign: a break place follows a character of the word that is not a (no-break) space
+    if ('\u2013-/,'.includes(word[i]) && i > 0 && i < word.length - 1 && !/\s/.test(word[i - 1])) {
+      if (lastBreak >= start && textWidth(word.slice(start, i + 1), size, bold) > maxWidth) {
+        pieces.push(word.slice(start, lastBreak + 1));
+        start = lastBreak + 1;
+      }
+      lastBreak = i;
+    }
+  }
+  if (lastBreak >= start && textWidth(word.slice(start), size, bold) > maxWidth) {
+    pieces.push(word.slice(start, lastBreak + 1));
+    start = lastBreak + 1;
+  }
+  pieces.push(word.slice(start));
+  return pieces;
 }
 
 /** Words separated by ordinary spaces (tabs, newlines), not inside `_{...}` or `^{...}`. */
