@@ -110,6 +110,14 @@ describe('report HTML (pure)', () => {
     expect(html).toMatch(/\.scroll \{ overflow: auto;/); // the frame scrolls both ways
   });
 
+  it('gives a long text cell (a reason) a reading width instead of squeezing it between numeric columns', () => {
+    const reason = 'horizontal plane: lateral track per downstream row instead of a cross-section fit';
+    const html = reportHtml(fixtureManifest(campaign, outputs), { wakeTables: [{ title: 'w', columns: ['plane', 'x', 'reason'], rows: [['hub@TR-1', 1.5, reason], ['hub@TR-2', 2, 'ok']] }] });
+    expect(html).toContain(`<td class="long">${reason}</td>`); // over 40 characters: the reading width
+    expect(html).toContain('<td>ok</td>'); // a short text as before
+    expect(html).toMatch(/td\.long \{ min-width: 32em; \}/);
+  });
+
   it('rounds a value to its uncertainty in table cells, and plain numbers to the decimals of their column', () => {
     const html = reportHtml(fixtureManifest(campaign, outputs), {
       wakeTables: [{ title: 'u', columns: ['y_{c} (m) ± s.e.', 'γ (°)'], rows: [[{ value: 12.3456, uncertainty: 0.0712 }, -0.009]], decimals: [undefined, 1] }],

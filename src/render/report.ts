@@ -53,6 +53,9 @@ export const CAUTIONS = [
   'Laser instruments and any work near turbines follow the instruments\u2019 safety instructions and local regulations.',
 ];
 
+/** Characters from which a table's text cell is given a reading width (td.long). */
+const LONG_TEXT = 40;
+
 export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): string {
   const m = manifest;
   const show = pathShower(m);
@@ -299,7 +302,10 @@ function galleryHtml(images: OutputRecord[]): string {
 function tableHtml(t: ReportTable): string {
   const numericCol = t.columns.map((_, j) => t.rows.length > 0 && t.rows.every((r) => r[j] === null || r[j] === undefined || typeof r[j] === 'number' || typeof r[j] === 'object'));
   const head = `<tr>${t.columns.map((c, j) => `<th${numericCol[j] ? ' class="num"' : ''}>${richHtml(c)}</th>`).join('')}</tr>`;
-  const body = t.rows.map((r) => `<tr>${r.map((v, j) => `<td${numericCol[j] ? ' class="num"' : ''}>${esc(cell(v, t.decimals?.[j]))}</td>`).join('')}</tr>`).join('');
+  // A long text (a reason, a note) gets a column wide enough to read in a few lines: squeezed between numeric columns
+  // it made rows a dozen lines tall; the table scrolls sideways instead.
+  const tdClass = (v: unknown, j: number) => (numericCol[j] ? ' class="num"' : typeof v === 'string' && v.length > LONG_TEXT ? ' class="long"' : '');
+  const body = t.rows.map((r) => `<tr>${r.map((v, j) => `<td${tdClass(v, j)}>${esc(cell(v, t.decimals?.[j]))}</td>`).join('')}</tr>`).join('');
   const foot = t.link || t.note ? `<p class="note">${t.link ? `Full table: ${link(t.link)}. ` : ''}${esc(t.note ?? '')}</p>` : '';
   return `${t.title ? `<h3>${esc(t.title)}</h3>` : ''}<div class="scroll" data-rows="${t.rows.length}"><table><thead>${head}</thead><tbody>${body}</tbody></table></div>${foot}`;
 }

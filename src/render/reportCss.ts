@@ -30,6 +30,8 @@ table { border-collapse: collapse; margin: 6px 0 4px; font-size: 12.5px; font-va
 th, td { padding: 3px 10px; border-bottom: 1px solid var(--faint); text-align: left; vertical-align: top; }
 th { border-bottom: 1px solid var(--ink); font-weight: bold; white-space: nowrap; background: var(--paper); }
 td.num, th.num { text-align: right; white-space: nowrap; }
+td.long { min-width: 32em; }
+.scroll td:not(.long) { white-space: nowrap; }
 table.accounting th { vertical-align: bottom; }
 th.group { text-align: center; border-bottom: 1px solid var(--rule); font-weight: normal; color: var(--muted); }
 th.reason { white-space: normal; font-weight: normal; max-width: 9em; vertical-align: bottom; }

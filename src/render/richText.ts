@@ -86,27 +86,49 @@ export function textWidth(label: string, size: number, bold = false): number {
 }
 
 /**
- * Splits a label into lines no wider than `maxWidth` user units at font size `size`, breaking at ordinary spaces:
- * a no-break space (U+00A0) or narrow no-break space (U+202F) keeps a number with its unit, and script markup is
- * never split. A word wider than the line is also broken after its en dashes (a time range "13:43:17–13:46:57"),
- * the dash kept at the line's end; a word without one stays whole.
+ * Splits a label into lines no wider than `maxWidth` user units at font size `size`, breaking only at ordinary
+ * spaces: a no-break space (U+00A0) or narrow no-break space (U+202F) keeps a number with its unit, and script
+ * markup is never split. A single word wider than the line stays whole.
  */
 export function wrapText(label: string, maxWidth: number, size: number, bold = false): string[] {
+  const words = splitWords(label).flatMap((w) => (textWidth(w, size, bold) > maxWidth ? splitLongWord(w, maxWidth, size, bold) : [w]));
   const lines: string[] = [];
   let cur = '';
-  for (const word of splitWords(label)) {
-    // Pieces of a too-wide word follow each other without a space.
-    const pieces = textWidth(word, size, bold) > maxWidth ? word.split(/(?<=\u2013)/) : [word];
-    pieces.forEach((w, i) => {
-      const next = cur ? (i > 0 ? cur + w : `${cur} ${w}`) : w;
-      if (cur && textWidth(next, size, bold) > maxWidth) {
-        lines.push(cur);
-        cur = w;
-      } else cur = next;
-    });
+  for (const w of words) {
+    const next = cur ? `${cur} ${w}` : w;
+    if (cur && textWidth(next, size, bold) > maxWidth) {
+      lines.push(cur);
+      cur = w;
+    } else cur = next;
   }
   if (cur) lines.push(cur);
   return lines.length ? lines : [''];
+}
+
+/**
+ * A word wider than the line (a time span "09:01:30\u201309:09:30" over a narrow panel) cut after its dashes, slashes
+ * or commas, as few pieces as fit; a word without such a place stays whole (and overflows, as before).
+ */
+function splitLongWord(word: string, maxWidth: number, size: number, bold: boolean): string[] {
+  if (word.includes('_{') || word.includes('^{')) return [word];
+  const pieces: string[] = [];
+  let start = 0, lastBreak = -1;
+  for (let i = 0; i < word.length; i++) {
+    // not a leading sign: a break place follows a character of the word that is not a (no-break) space
+    if ('\u2013-/,'.includes(word[i]) && i > 0 && i < word.length - 1 && !/\s/.test(word[i - 1])) {
+      if (lastBreak >= start && textWidth(word.slice(start, i + 1), size, bold) > maxWidth) {
+        pieces.push(word.slice(start, lastBreak + 1));
+        start = lastBreak + 1;
+      }
+      lastBreak = i;
+    }
+  }
+  if (lastBreak >= start && textWidth(word.slice(start), size, bold) > maxWidth) {
+    pieces.push(word.slice(start, lastBreak + 1));
+    start = lastBreak + 1;
+  }
+  pieces.push(word.slice(start));
+  return pieces;
 }
 
 /** Words separated by ordinary spaces (tabs, newlines), not inside `_{...}` or `^{...}`. */

@@ -72,8 +72,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   const layout = chooseLayout(panels.length, vw, vh, area, 32);
   const { cols, rows, s } = layout;
   const pw = vw * s, ph = vh * s;
-  // Panel labels wrapped to the panel width (at most three lines for the label: "window k ·" and a time range
-  // broken after its dash on narrow panels; two for the sublabel).
+  // Panel labels wrapped to the panel width (at most three lines for the label, two for the sublabel).
   const labelLines = panels.map((p) => [
     ...wrap(p.label, pw, LABEL_SIZE, true).slice(0, 3).map((t) => ({ t, bold: true })),
     ...(p.sublabel ? wrap(p.sublabel, pw, LABEL_SIZE).slice(0, 2).map((t) => ({ t, bold: false })) : []),
