@@ -22,6 +22,11 @@ export type ProfileFlag =
 export interface ProfilePoint {
   instrumentId: string;
   height_m: number;
+  /**
+   * Mean height above ground of the samples in the fit, metres: the height the fitted wind belongs to. The bin
+   * centre (height_m) only labels the bin; gates rarely sit on it (NaN without samples).
+   */
+  sampleHeight_m: number;
   /** Mean horizontal distance of the samples from the instrument (the ring radius for a VAD), metres. */
   radius_m: number;
   u_ms: number;
