@@ -7,13 +7,15 @@
  * computed from the rows it wrote (textbook formulas named there and beside each check), never with our own output.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
+import { planCampaign } from '../src/plan/planCampaign.ts';
+import { writePlanOutputs } from '../src/plan/writeOutputs.ts';
 import { inflowFromProfile } from '../src/profile/inflow.ts';
 import type { ProfilePoint } from '../src/profile/types.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
@@ -182,5 +184,79 @@ describe.skipIf(!py.python)(`held-back nacelle instrument: changing misalignment
       expect(Math.abs(Number(r.hub_speed_shear_ms) / x.hub_speed_ms - 1)).toBeLessThan(0.002);
       expect(Math.abs(Number(r.free_stream_ms) / x.free_stream_ms - 1)).toBeLessThan(0.002);
     }
+  });
+});
+
+interface DdCell { window: number; x_m: number; y_m: number; u: number; v: number; u_amp: number; v_amp: number; crossing_deg: number; crossing_mean_deg: number }
+interface PlanCell { x_m: number; y_m: number; u_amp: number; v_amp: number; crossing_deg: number; elevations_deg: number[]; usable: boolean; trusted: boolean }
+
+describe.skipIf(!py.python)(`held-back two instruments: dual-Doppler in a horizontal plane, run and plan${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir: string, e: { window_starts: number[]; cells: DdCell[]; plan_cells: PlanCell[]; junk: Record<string, number>; rows: Record<string, number> };
+  beforeAll(() => {
+    ({ dir, expected: e } = generate('heldback_dualdoppler.py'));
+  });
+
+  it('u and v of every unmasked cell against the cell\'s true wind (w = 0), every row accounted for', async () => {
+    const res = await run(dir);
+    expect(res.manifest.samples.balanced).toBe(true);
+    for (const id of ['dd-a', 'dd-b']) {
+      const a = res.manifest.samples.perInstrument[id];
+      expect(a.read).toBe(e.rows[id]);
+      // Junk at -33 +/- 1 dB, good rows -15 +/- 4 dB (clipped at -2): the junk and at most 0.5 % of the good rows.
+      expect(Math.abs(a.rejected.low_cnr - e.junk[id])).toBeLessThan(0.005 * e.rows[id]);
+    }
+    const rows = readdirSync(join(res.runDir, 'fields')).filter((f) => f.endsWith('.csv')).flatMap((f) => readCsv(join(res.runDir, 'fields', f)));
+    let checked = 0, masked = 0;
+    for (const c of e.cells) {
+      const r = rows.find((q) => Math.abs(unix(q.window_start) - e.window_starts[c.window - 1]) < 1e-3 && Number(q.x_m) === c.x_m && Number(q.y_m) === c.y_m)!;
+      expect(r, `cell ${c.x_m} ${c.y_m} window ${c.window}`).toBeDefined();
+      // The mask follows the amplification of the cell's mean beams (threshold 3): the script's values at the cell
+      // centre differ from those of the samples' mean beams, so only clear cases are checked (outside 2.5..3.5).
+      if (c.u_amp < 2.5 && c.v_amp < 2.5) expect(r.u_mask, `cell ${c.x_m} ${c.y_m}`).toBe('');
+      if (c.u_amp > 3.5) expect(r.u_mask).toBe('amplification_above_threshold');
+      if (r.u_mask !== '') { masked++; continue; }
+      // Truth: the mean over the cell's samples of the true rotor-frame wind (smooth: within 0.05 m/s of what the
+      // instruments' sample means see); within 4 standard uncertainties + 0.05 m/s.
+      expect(Math.abs(Number(r.u_ms) - c.u), `u ${c.x_m} ${c.y_m} w${c.window}`).toBeLessThan(4 * Number(r.u_se_ms) + 0.05);
+      expect(Math.abs(Number(r.v_ms) - c.v), `v ${c.x_m} ${c.y_m} w${c.window}`).toBeLessThan(4 * Number(r.v_se_ms) + 0.05);
+      expect(r.w_ms).toBe('');
+      // Crossing of the two mean beams in the plane of u and v (the script's mean unit beams over the cell's good
+      // samples; the robust filter drops a few): within 0.5 deg. Before, the 3-D angle (up to 10 deg more here).
+      expect(Math.abs(Number(r.min_crossing_deg) - c.crossing_mean_deg), `crossing ${c.x_m} ${c.y_m}`).toBeLessThan(0.5);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(100);
+    expect(masked).toBeGreaterThan(20);
+  }, 120_000);
+
+  it('plan: amplification, crossing in the plane of u and v, and trust of each cell as the README\'s rules give', async () => {
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    const plan = planCampaign(c);
+    const out = join(dir, 'plan-out');
+    await writePlanOutputs(plan, c, out, { images: false });
+    const rows = readCsv(join(out, 'plan', 'cells_hh.csv'));
+    expect(rows).toHaveLength(e.plan_cells.length);
+    for (const p of e.plan_cells) {
+      const r = rows.find((q) => Number(q.x_m) === p.x_m && Number(q.y_m) === p.y_m)!;
+      p.elevations_deg.forEach((el, k) => expect(Math.abs(Number(r[`${['dd-b', 'dd-a'][k]}_elevation_deg`]) - el)).toBeLessThan(1e-3)); // written to 0.001 deg
+      if (!p.usable) { expect(r.category).toBe('elevation'); expect(r.trusted).toBe('0'); continue; }
+      // Two-beam amplification sqrt(diag((A^T A)^-1)) with w = 0 (the script's numpy inverse): 4 significant digits.
+      expect(Math.abs(Number(r.u_amplification) / p.u_amp - 1)).toBeLessThan(1e-3);
+      expect(Math.abs(Number(r.v_amplification) / p.v_amp - 1)).toBeLessThan(1e-3);
+      // With w = 0 the two beams resolve u and v: their crossing is that of the horizontal projections (written to
+      // 0.01 deg). Before, the 3-D angle was used (the tower scanner looks down, the ground one up, which adds up to
+      // 10 degrees), and a cell crossing at 28.5 deg passed plan.minCrossing_deg = 30.
+      expect(Math.abs(Number(r.min_crossing_deg) - p.crossing_deg), `${p.x_m} ${p.y_m}`).toBeLessThan(0.01);
+      // Trusted (u and v pass on a two-scanner plane): the column and the category agree with the rules. Before,
+      // the column asked for w too and said 0 in every cell while the category and the summary said trusted.
+      expect(r.category === 'trusted', `${p.x_m} ${p.y_m}: ${r.category}`).toBe(p.trusted);
+      expect(r.trusted, `${p.x_m} ${p.y_m}`).toBe(p.trusted ? '1' : '0');
+    }
+    // Shares: the rotor shadow band (|y| <= 50 m: the 40 cells with centres at +/-15 and +/-45 m) and the plane.
+    const band = e.plan_cells.filter((p) => Math.abs(p.y_m) < 50);
+    const s = plan.summary.planes[0];
+    expect(s.components).toBe('uv');
+    expect(s.rotor.all).toBeCloseTo(band.filter((p) => p.trusted).length / band.length, 12);
+    expect(s.plane.all).toBeCloseTo(e.plan_cells.filter((p) => p.trusted).length / e.plan_cells.length, 12);
   });
 });
