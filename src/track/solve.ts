@@ -14,11 +14,17 @@
  * centre and width is reported as the direction bias.
  *
  * Per downstream bin: a 1D Gaussian across the wake (gaussian1d.ts; at least 5 bins) and the deficit-weighted
- * centroid of the bins above half the peak. Flags (first that applies): no_free_stream, too_few_bins, no_wake (peak
+ * centroid of the bins above half the peak. With at least MIN_BINS_BASELINE bins the Gaussian carries a constant
+ * baseline b: a free stream S_ref that is off by a share e (outer bins still in the wake, an inflow reference from
+ * elsewhere) turns the true deficit d into d' = 1 - (1 - d) / (1 - e) = (d - e) / (1 - e): the same Gaussian,
+ * scaled, on a baseline b = -e / (1 - e). So the centre and width are those of the fit, the deficit against the free
+ * stream S_ref (1 - b) is (d' - b) / (1 - b), the amplitude A / (1 - b), and the free stream reported is
+ * S_ref (1 - b). Without the baseline a sector only 2.5 widths wide read the wake 6-15 % too narrow
+ * (test/geometries-heldback.test.ts). Flags (first that applies): no_free_stream, too_few_bins, no_wake (peak
  * below minDeficit), not_converged, off_edge.
  */
 import type { CellStats } from '../retrieval/cellStats.ts';
-import { fitGaussian1D } from './gaussian1d.ts';
+import { fitGaussian1D, fitGaussian1DOffset, type Gaussian1DFit } from './gaussian1d.ts';
 import type { TrackerLayout } from './target.ts';
 import type { TrackFlag, TrackPoint } from './types.ts';
 
@@ -66,16 +72,32 @@ function analyseRow(bins: Bin[], dir_deg: number, maxAngle_deg: number, ctx: Tra
   return { c, d, sd, sInf: sInf.length ? sInf.reduce((s, v) => s + v, 0) / sInf.length : NaN, source, samples: use.reduce((s, b) => s + b.n, 0) };
 }
 
+/** Fewest across-wake bins for the fit with a baseline (four parameters and three degrees of freedom). */
+export const MIN_BINS_BASELINE = 7;
+
+/**
+ * The Gaussian across one row, with a baseline when there are enough bins and that fit converges (else without);
+ * the fit's amplitude is returned as the deficit against the corrected free stream, A / (1 - b).
+ */
 function fitRow(c: number[], d: number[], lo: number, hi: number, step: number, minDef: number) {
   const ok = c.map((_, i) => i).filter((i) => Number.isFinite(d[i]));
   const cc = ok.map((i) => c[i]), dd = ok.map((i) => d[i]);
   if (cc.length < 5) return { flag: 'too_few_bins' as TrackFlag, reason: `${cc.length} usable bins < 5`, fit: null, centroid: NaN };
   const peak = Math.max(...dd);
   if (!(peak >= minDef)) return { flag: 'no_wake' as TrackFlag, reason: `peak deficit ${peak.toFixed(3)} < ${minDef}`, fit: null, centroid: NaN };
+  let fit: Gaussian1DFit = fitGaussian1D(cc, dd);
+  if (cc.length >= MIN_BINS_BASELINE && fit.converged && fit.width > 0) {
+    const f4 = fitGaussian1DOffset(cc, dd, [fit.amplitude, fit.centre, fit.width, 0]);
+    if (f4.converged && f4.width > 0 && f4.offset < 0.5 && f4.stderr.every(Number.isFinite)) {
+      const k = 1 / (1 - f4.offset);
+      fit = { ...f4, amplitude: f4.amplitude * k, stderr: [f4.stderr[0] * k, f4.stderr[1], f4.stderr[2], f4.stderr[3]] };
+    }
+  }
+  const b = fit.offset, base = (v: number) => (v - b) / (1 - b);
+  const top = base(peak);
   let sw = 0, swc = 0;
-  dd.forEach((v, i) => { if (v >= peak / 2) { sw += v; swc += v * cc[i]; } });
+  dd.forEach((v, i) => { const x = base(v); if (x >= top / 2) { sw += x; swc += x * cc[i]; } });
   const centroid = swc / sw;
-  const fit = fitGaussian1D(cc, dd);
   if (!fit.converged || !(fit.width > 0) || !Number.isFinite(fit.centre)) return { flag: 'not_converged' as TrackFlag, reason: 'Gaussian fit did not converge', fit, centroid };
   if (!(fit.centre > lo + step && fit.centre < hi - step)) return { flag: 'off_edge' as TrackFlag, reason: `centre ${fit.centre.toFixed(1)} m outside or within one bin of the edge`, fit, centroid };
   if (!(fit.amplitude >= minDef)) return { flag: 'no_wake' as TrackFlag, reason: `fitted amplitude ${fit.amplitude.toFixed(3)} < ${minDef}`, fit, centroid };
@@ -117,9 +139,12 @@ export function solveTrack(st: CellStats, layout: TrackerLayout, ctx: TrackSolve
       const row = analyseRow(bins, ctx.direction_deg, tr.maxBeamAngle_deg, ctx);
       if (!row) { out.push({ ...base, flag: bins.length < 5 ? 'too_few_bins' : 'no_free_stream', reason: bins.length < 5 ? `${bins.length} bins with data < 5` : 'too few bins to estimate the free stream from the sector edges' }); continue; }
       const res = fitRow(row.c, row.d, lo, hi, step, minDef);
+      // The baseline of the fit corrects the free stream and the deficit profile (see the docblock).
+      const b = res.fit ? res.fit.offset : 0;
       const p: TrackPoint = {
-        ...base, freeStream_ms: row.sInf, freeStreamSource: row.source, flag: res.flag, reason: res.reason, centroid_m: res.centroid,
-        profile: { c_m: row.c, deficit: row.d, sdeficit: row.sd },
+        ...base, freeStream_ms: row.sInf * (1 - b), freeStreamSource: b !== 0 ? `${row.source}, corrected by the fitted baseline (${(-100 * b).toFixed(1)} %)` : row.source,
+        flag: res.flag, reason: res.reason, centroid_m: res.centroid,
+        profile: { c_m: row.c, deficit: row.d.map((v) => (v - b) / (1 - b)), sdeficit: row.sd.map((v) => v / (1 - b)) },
       };
       if (res.fit) {
         p.amplitude = res.fit.amplitude; p.centre_m = res.fit.centre; p.width_m = res.fit.width;
