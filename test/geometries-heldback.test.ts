@@ -7,7 +7,7 @@
  * computed from the rows it wrote (textbook formulas named there and beside each check), never with our own output.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -20,6 +20,7 @@ import { inflowFromProfile } from '../src/profile/inflow.ts';
 import type { ProfilePoint } from '../src/profile/types.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { readCsv } from './helpers/csvTable.ts';
+import { runCli } from './faults/helpers.ts';
 import { debianPython } from './helpers/python.ts';
 
 const py = debianPython(['numpy']);
@@ -184,6 +185,44 @@ describe.skipIf(!py.python)(`held-back nacelle instrument: changing misalignment
       expect(Math.abs(Number(r.hub_speed_shear_ms) / x.hub_speed_ms - 1)).toBeLessThan(0.002);
       expect(Math.abs(Number(r.free_stream_ms) / x.free_stream_ms - 1)).toBeLessThan(0.002);
     }
+  });
+});
+
+describe.skipIf(!py.python)(`held-back nacelle case: bad inclinometer inputs${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir: string;
+  beforeAll(() => {
+    ({ dir } = generate('heldback_nacelle.py'));
+  });
+
+  /** The campaign with its instrument's orientation series edited, written beside the original. */
+  function variant(name: string, edit: (o: { file: string; columns: Record<string, string> }) => void): string {
+    const c = JSON.parse(readFileSync(join(dir, 'campaign.yaml'), 'utf8'));
+    edit(c.instruments[0].orientationSeries);
+    const f = join(dir, `${name}.yaml`);
+    writeFileSync(f, JSON.stringify(c, null, 1));
+    return f;
+  }
+
+  it('an inclinometer column mapped to a header the file lacks: one line naming the file, the header and the key, before any output', async () => {
+    // Before, the mapped column was read as empty: every sample lost its tilt and was rejected as
+    // no_nacelle_direction ("turbine-series gaps"), the run ended with exit 0 and tables of no_data.
+    const f = variant('bad-column', (o) => (o.columns.tilt_deg = 'pitch_x'));
+    for (const cmd of ['check', 'run']) {
+      const r = await runCli([cmd, f, '--out', join(dir, `out-${cmd}`)]);
+      expect(r.code, `${cmd}: ${r.stdout}`).toBe(1);
+      expect(r.stderr).toContain(join(dir, 'data', 'incl.csv'));
+      expect(r.stderr).toMatch(/missing column "pitch_x" \(columns\.tilt_deg\)/);
+      expect(existsSync(join(dir, `out-${cmd}`, 'ottersike-heldback'))).toBe(false);
+    }
+  });
+
+  it('a missing inclinometer file: check fails as run does', async () => {
+    // Before, check said nothing (exit 0) and run stopped on it.
+    const f = variant('no-file', (o) => (o.file = 'data/absent.csv'));
+    const r = await runCli(['check', f]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toContain(join(dir, 'data', 'absent.csv'));
+    expect(r.stderr).toMatch(/not found/);
   });
 });
 
