@@ -216,6 +216,34 @@ describe.skipIf(!py.python)(`held-back nacelle case: bad inclinometer inputs${py
     }
   });
 
+  it('an inclinometer gap: its samples rejected as no_nacelle_direction and the window flagged with the reason', async () => {
+    // Rows of the inclinometer series left out over 200 s of window 2 (from anchor + 800 s): the samples between the
+    // two rows around the gap (more than maxGap_s = 120 s apart) have no tilt, as between turbine-series rows.
+    // Before, they were rejected but the window stayed 'ok' with no reason (only the turbine series was checked),
+    // and the run's warning said they came from turbine-series gaps and that their windows were flagged.
+    const e = JSON.parse(readFileSync(join(dir, 'expected.json'), 'utf8')) as { anchor_s: number; gap_rows: number; gap_junk: number; windows: NacExp[] };
+    const [head, ...rows] = readFileSync(join(dir, 'data', 'incl.csv'), 'utf8').trim().split('\n');
+    const t = (l: string) => Number(l.split(',')[0]);
+    const kept = rows.filter((l) => !(t(l) > e.anchor_s + 800 && t(l) < e.anchor_s + 1000));
+    writeFileSync(join(dir, 'data', 'incl-gap.csv'), [head, ...kept].join('\n') + '\n');
+    const lo = Math.max(...kept.map(t).filter((x) => x <= e.anchor_s + 800)), hi = Math.min(...kept.map(t).filter((x) => x >= e.anchor_s + 1000));
+    // Samples strictly inside (lo, hi) that pass the CNR limit (junk at -31 dB, good rows above -25 dB: -26 splits them).
+    const [sh, ...samples] = readFileSync(join(dir, 'data', 'fwd4.csv'), 'utf8').trim().split('\n');
+    const col = (name: string) => sh.split(',').indexOf(name);
+    const inGap = samples.filter((l) => { const c = l.split(','); const ts = Number(c[col('time')]); return ts > lo && ts < hi && Number(c[col('cnr_db')]) > -26; }).length;
+    expect(inGap).toBeGreaterThan(2000);
+    const c = loadCampaignFile(variant('incl-gap', (o) => (o.file = 'data/incl-gap.csv')));
+    const res = await runCampaign(c, { outRoot: join(dir, 'out-gap'), images: false, stages: defaultStages() });
+    const a = res.manifest.samples.perInstrument['fwd-4'];
+    expect(res.manifest.samples.balanced).toBe(true);
+    expect(a.rejected.no_nacelle_direction).toBe(e.gap_rows - e.gap_junk + inGap);
+    const nac = readCsv(join(res.runDir, 'nacelle', 'fwd-4.csv'));
+    const w2 = nac.find((r) => Math.abs(unix(r.window_start) - e.windows[1].start_s) < 1e-3)!;
+    expect(w2.flag).toBe('nacelle_series_gap');
+    expect(w2.reason).toMatch(/inclinometer/);
+    expect(res.manifest.warnings.join('\n')).toMatch(/inclinometer/);
+  });
+
   it('a missing inclinometer file: check fails as run does', async () => {
     // Before, check said nothing (exit 0) and run stopped on it.
     const f = variant('no-file', (o) => (o.file = 'data/absent.csv'));

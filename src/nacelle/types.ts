@@ -12,7 +12,7 @@ export type NacelleFlag =
   | 'no_data'
   /** A beam of a pair has no samples at some gates (those gates, or the shear, are left out). */
   | 'missing_beam'
-  /** The turbine series has a gap inside the window: samples there had no nacelle direction. */
+  /** The turbine series (or the instrument's inclinometer series) has a gap inside the window: samples there had no nacelle direction (or tilt). */
   | 'nacelle_series_gap'
   /** The chosen distance lies outside the gates: the nearest gate is reported. */
   | 'distance_outside_gates';
