@@ -119,6 +119,29 @@ describe.skipIf(!py.python)(`held-back profilers: a veering, sheared profile${py
     }
   });
 
+  it('plan: heights covered, ring diameters and amplification of each profiler from its declared pattern', () => {
+    // Analytic: N evenly spaced azimuths on a cone at elevation phi give sqrt(diag((A^T A)^-1)) = 1 / (cos phi
+    // sqrt(N / 2)) for u and v and 1 / (sin phi sqrt N) for w (A^T A diagonal: N cos^2 phi / 2, N cos^2 phi / 2,
+    // N sin^2 phi); the DBS set (4 beams 90 deg apart at 62 deg and a vertical one): 1 / (cos 62 sqrt 2) and
+    // 1 / sqrt(4 sin^2 62 + 1). Ring diameter 2 r cos phi of the gate in the bin. Rounded to 0.01 in the plan.
+    const plan = planCampaign(loadCampaignFile(join(dir, 'campaign.yaml')));
+    const D = Math.PI / 180;
+    const cases = [
+      { id: 'cone-7', el: 74, du: 1 / (Math.cos(74 * D) * Math.sqrt(18)), dw: 1 / (Math.sin(74 * D) * 6), z0: 2.5, gates: [52.3, 77.1, 114.4, 140.3, 174.4, 200.3] },
+      { id: 'dbs-4', el: 62, du: 1 / (Math.cos(62 * D) * Math.SQRT2), dw: 1 / Math.sqrt(4 * Math.sin(62 * D) ** 2 + 1), z0: 1, gates: [61, 89, 120, 148, 183] },
+    ];
+    for (const c of cases) {
+      const rows = plan.geometries.find((g) => g.instrumentId === c.id)!.rows as Record<string, number>[];
+      for (const r of rows) {
+        expect(Math.abs(r.dop_u - c.du)).toBeLessThan(0.006);
+        expect(Math.abs(r.dop_w - c.dw)).toBeLessThan(0.006);
+        const inBin = c.gates.filter((g) => Math.abs(c.z0 + g * Math.sin(c.el * D) - r.height_m) <= 15);
+        expect(r.gates).toBe(inBin.length);
+        expect(Math.abs(r.ring_diameter_m - (2 * inBin.reduce((a, g) => a + g, 0) * Math.cos(c.el * D)) / inBin.length)).toBeLessThan(0.006);
+      }
+    }
+  });
+
   it('DBS: the four-beam formulas (turned set, vertical beam), a missing slanted beam and a missing vertical beam', () => {
     const rows = readCsv(join(res.runDir, 'profiles', 'dbs-4.csv'));
     for (const x of e.dbs) {
@@ -161,6 +184,22 @@ describe.skipIf(!py.python)(`held-back nacelle instrument: changing misalignment
     // the gap counts as low_cnr).
     expect(a.rejected.low_cnr).toBe(e.junk);
     expect(a.rejected.no_nacelle_direction).toBe(e.gap_rows - e.gap_junk);
+  });
+
+  it('plan: upstream distance, beam heights and pair separation per gate from the declared beams', () => {
+    // Analytic, beams (+/-17 deg, -5 / +7 deg) from 96.5 m: upstream = mean r cos(el) cos(az), lowest 96.5 +
+    // r sin(-5 deg), highest 96.5 + r sin(7 deg), half separation max r cos(el) sin(17 deg); rounded to 0.01 m.
+    const plan = planCampaign(loadCampaignFile(join(dir, 'campaign.yaml')));
+    const rows = plan.geometries.find((g) => g.instrumentId === 'fwd-4')!.rows as Record<string, number>[];
+    const D = Math.PI / 180, c17 = Math.cos(17 * D), s17 = Math.sin(17 * D);
+    expect(rows.map((r) => r.range_m)).toEqual([80, 130, 205, 260, 340]);
+    for (const r of rows) {
+      const R = r.range_m;
+      expect(Math.abs(r.upstream_m - (R * c17 * (Math.cos(5 * D) + Math.cos(7 * D))) / 2)).toBeLessThan(0.006);
+      expect(Math.abs(r.lowest_m - (96.5 - R * Math.sin(5 * D)))).toBeLessThan(0.006);
+      expect(Math.abs(r.highest_m - (96.5 + R * Math.sin(7 * D)))).toBeLessThan(0.006);
+      expect(Math.abs(r.half_separation_m - R * Math.cos(5 * D) * s17)).toBeLessThan(0.006);
+    }
   });
 
   it('yaw misalignment, shear exponent, hub speed at 2.5 D and the free stream against the script\'s flow', () => {
@@ -368,5 +407,27 @@ describe.skipIf(!py.python)(`held-back wake tracker: a sector through north, the
       // it by up to 0.019 before).
       expect(Math.abs(Number(r.amplitude) - b.amplitude), `amplitude w${b.window} x${b.x_m}`).toBeLessThan(0.012);
     }
+  });
+
+  it('plan: per downstream bin the span, beam-to-flow angle and direction sensitivity over the tracker\'s bins', () => {
+    // The script's rows from the declared sweep and the README's tracker bins. Before, every gate of the sweep
+    // counted, also those beyond the across bins the analysis uses: the span -364 .. +206 m at 300 m and 40 deg
+    // at every distance, where the tracked bins see at most 36, 29 and 23 deg, and the sensitivity was rounded
+    // to 0.01 (0.0127 .. 0.0074 here).
+    const c = loadCampaignFile(join(dir, 'campaign.yaml'));
+    const plan = planCampaign(c);
+    const g = plan.geometries.find((x) => x.instrumentId === 'trk-q')!;
+    const want = (e as unknown as { plan: { x_m: number; across_min_m: number; across_max_m: number; max_beam_angle_deg: number; rays: number; speed_error_per_deg: number }[] }).plan;
+    expect(g.rows).toHaveLength(want.length);
+    want.forEach((w, k) => {
+      const r = g.rows[k] as Record<string, number>;
+      expect(r.x_m).toBe(w.x_m);
+      // Rounded to 0.01 m and 0.01 deg in the plan; the sensitivity to 1e-4.
+      expect(Math.abs(r.across_min_m - w.across_min_m)).toBeLessThan(0.006);
+      expect(Math.abs(r.across_max_m - w.across_max_m)).toBeLessThan(0.006);
+      expect(r.rays).toBe(w.rays);
+      expect(Math.abs(r.max_beam_angle_deg - w.max_beam_angle_deg)).toBeLessThan(0.006);
+      expect(Math.abs(r.speed_error_per_deg - w.speed_error_per_deg)).toBeLessThan(6e-5);
+    });
   });
 });

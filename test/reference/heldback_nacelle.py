@@ -227,6 +227,7 @@ camp = {
     "windows": {"kind": "fixed", "length_s": W, "anchor": "2026-09-02T06:11:53.4Z"},
     "windDirection": {"kind": "series", "file": "data/direction.csv"},
     "output": {"images": False, "netcdf": False},
+    "plan": {"directions_deg": [355]},
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(camp, f, indent=1)

@@ -234,13 +234,15 @@ camp = {
                      "radial_velocity_ms": "vel", "cnr_db": "snr"},
          "profile": {"mode": "dbs", "heights_m": DBS_BINS, "pattern": {"elevation_deg": 62, "azimuths_deg": [10, 100, 190, 280], "vertical": True, "ranges_m": DBS_R}}},
         {"id": "cone-7", "role": "profiler", "position_m": list(VAD_POS), "files": ["data/cone7.csv"],
-         "profile": {"mode": "vad", "heights_m": BINS, "sectors": 36}},
+         "profile": {"mode": "vad", "heights_m": BINS, "sectors": 36,
+                     "pattern": {"elevation_deg": 74, "azimuths_deg": [10.0 * k for k in range(36)], "ranges_m": VAD_R, "ray_s": 0.9}}},
     ],
     "planes": [],
     "windows": {"kind": "fixed", "length_s": W, "anchor": iso(ANCHOR)},
     "windDirection": {"kind": "series", "file": "data/direction.csv"},
     "inflow": {"kind": "profile", "instrument": "cone-7", "law": "power"},
     "output": {"images": False, "netcdf": False},
+    "plan": {"directions_deg": [4]},
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(camp, f, indent=1)

@@ -139,20 +139,44 @@ for k in (1, 2):
         A, yc, sg = wake(xm)
         exp.append(dict(window=k, start_s=lo, x_m=xc, mean_x_m=xm, centre_m=yc, width_m=sg, amplitude=A, direction_error_deg=TRUE_OFF[k]))
 
+# Planner (wind from 178 deg, the campaign's plan.directions_deg): the declared sweep (azimuths 322 .. 398 deg in
+# 0.5-deg steps, elevation 0, the gates above) seen in the rotor frame; per downstream bin, the gates that fall in
+# the tracker's bins (x within 50 m of the centre, y within the across bins -157.5 .. 157.5 m): their across span,
+# the largest angle between a beam and the flow axis, and tan(beta) pi / 180, the first-order fractional error of the
+# apparent speed per degree of direction error (from S cos(beta - delta) ~ S cos beta (1 + delta tan beta)).
+xh, yh = axes(178.0)
+plan_rows = []
+for xc in (300.0, 400.0, 500.0):
+    lo, hi, beta, n = math.inf, -math.inf, 0.0, 0
+    for k in range(int(round((398 - 322) / 0.5)) + 1):
+        a = math.radians(322 + 0.5 * k)
+        nb = np.array([math.sin(a), math.cos(a), 0.0])
+        for r in RANGES:
+            p = POS + r * nb
+            x, y = float(p @ xh), float(p @ yh)
+            if abs(x - xc) <= 50 and abs(y) <= 157.5:
+                lo, hi, n = min(lo, y), max(hi, y), n + 1
+                beta = max(beta, math.degrees(math.acos(min(1.0, abs(float(nb @ xh))))))
+    plan_rows.append(dict(x_m=xc, across_min_m=lo, across_max_m=hi, max_beam_angle_deg=beta, rays=n,
+                          speed_error_per_deg=math.tan(math.radians(beta)) * math.pi / 180))
+
 camp = {
     "name": "quernbeck-heldback",
     "turbine": {"id": "QB-5", "position_m": [0, 0, 0], "hubHeight_m": 90, "rotorDiameter_m": 100, "thrustCoefficient": 0.8},
     "instruments": [
         {"id": "trk-q", "role": "tracker", "position_m": POS.tolist(), "files": ["data/trkq.csv"],
          "track": {"sector": "horizontal", "x_m": {"min": 300, "max": 500, "step": 100}, "across_m": {"min": -150, "max": 150, "step": 15},
-                   "scan_s": 30.4, "directionUncertainty_deg": 3}},
+                   "scan_s": 30.4, "directionUncertainty_deg": 3,
+                   "pattern": {"azimuth_deg": {"min": 322, "max": 398, "step": 0.5}, "elevation_deg": {"min": 0, "max": 0, "step": 1},
+                               "ranges_m": RANGES, "ray_s": 0.4}}},
     ],
     "planes": [],
     "windows": {"kind": "fixed", "length_s": W, "anchor": "epoch"},
     "windDirection": {"kind": "series", "file": "data/direction.csv"},
     "output": {"images": False, "netcdf": False},
+    "plan": {"directions_deg": [178]},
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(camp, f, indent=1)
-json.dump({"bins": exp, "junk": int(sum(s[6] for ray in rows for s in ray)), "rows": sum(len(r) for r in rows)},
+json.dump({"bins": exp, "plan": plan_rows, "junk": int(sum(s[6] for ray in rows for s in ray)), "rows": sum(len(r) for r in rows)},
           open(os.path.join(out, "expected.json"), "w"), indent=1)
