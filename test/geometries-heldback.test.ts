@@ -297,7 +297,7 @@ interface DdCell { window: number; x_m: number; y_m: number; u: number; v: numbe
 interface PlanCell { x_m: number; y_m: number; u_amp: number; v_amp: number; crossing_deg: number; elevations_deg: number[]; usable: boolean; trusted: boolean }
 
 describe.skipIf(!py.python)(`held-back two instruments: dual-Doppler in a horizontal plane, run and plan${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
-  let dir: string, e: { window_starts: number[]; cells: DdCell[]; plan_cells: PlanCell[]; junk: Record<string, number>; rows: Record<string, number> };
+  let dir: string, e: { window_starts: number[]; cells: DdCell[]; plan_cells: PlanCell[]; junk: Record<string, number>; rows: Record<string, number>; inflow: { alpha: number; hub_speed_ms: number } };
   beforeAll(() => {
     ({ dir, expected: e } = generate('heldback_dualdoppler.py'));
   });
@@ -333,6 +333,20 @@ describe.skipIf(!py.python)(`held-back two instruments: dual-Doppler in a horizo
     }
     expect(checked).toBeGreaterThan(100);
     expect(masked).toBeGreaterThan(20);
+    // The plane's inflow from the upstream VAD cone (campaign inflow: profile): the script's truth projected on the
+    // rotor axis is 8.5 (z / 90)^0.15 cos(2 deg), so exponent 0.15 and hub speed 8.4948 m/s. Exponent within 0.012
+    // (about 3 standard uncertainties: 0.25 % speed noise per height over ln(139 / 45) = 1.1), hub speed within 0.5 %.
+    // The law is exact in the truth, so its RMS residual is the speeds' noise: standard uncertainties 0.02-0.03 m/s
+    // per height, about 0.02 m/s expected for 5 points about a 2-parameter law (sqrt(3/5) of it): below 0.03 m/s. Fitted at the bin centres (up to 6.7 m from the gates' heights here) the residual
+    // was 0.046-0.054 m/s and the exponent 0.141-0.149.
+    const wake = readCsv(join(res.runDir, 'wake', 'wake_table.csv'));
+    expect(wake).toHaveLength(3);
+    for (const r of wake) {
+      expect(r.inflow_source).toBe('profile');
+      expect(Math.abs(Number(r.inflow_alpha) - e.inflow.alpha), r.start).toBeLessThan(0.012);
+      expect(Math.abs(Number(r.inflow_hub_speed_ms) / e.inflow.hub_speed_ms - 1), r.start).toBeLessThan(0.005);
+      expect(Number(r.inflow_rmse_ms), r.start).toBeLessThan(0.03);
+    }
   }, 120_000);
 
   it('plan: amplification, crossing in the plane of u and v, and trust of each cell as the README\'s rules give', async () => {

@@ -13,7 +13,9 @@ v = -S sin 2 deg, y to the left looking downstream), S(z) = 8.5 (z / 90)^0.15 m/
 Horizontal plane `hh` at 90 m: y in [-150, 150] m, x in [200, 500] m, cells 30 m x 30 m, slab 30 m thick.
 Instruments, columns in another order and the instrument id in the second-to-last column:
 - `dd-b`, on a 140-m tower at (-300, -420, 140) m: looks down at the plane (negative elevations);
-- `dd-a`, at (260, -480, 2) m on the ground.
+- `dd-a`, at (260, -480, 2) m on the ground;
+- `vad-n`, a VAD cone (elevation 65 deg + N(0, 0.15), turning 12 deg/s, irregular gates) upstream at (40, 420, 1.5),
+  the inflow reference of the plane (campaign inflow: profile).
 Each ray aims at its own random point of the plane's area (x 185..515 m, y -165..165 m, z 90 +/- 10 m), so every
 row has its own azimuth and elevation, with gates at irregular offsets (-41, -13, 0, +17, +52 m) from the aimed
 range (gates off the slab are outside the plane). Rays every 0.3 +/- 0.1 s; ISO 8601 times without fractional
@@ -118,6 +120,31 @@ for name, pos in INS.items():
         t += 0.3 + rng.uniform(-0.1, 0.1)
 
 
+# ---- a VAD cone upstream (north of the turbine), the inflow reference of the plane --------------------------
+VAD = np.array([40.0, 420.0, 1.5])
+VAD_R = [48.0, 83.0, 101.0, 127.0, 152.0]
+vad_rows = []
+t = T0 + 0.2
+while t < WIN_START + 3 * W - 1:
+    az = (350.0 + 12.0 * (t - T0)) % 360.0
+    el = 65.0 + rng.normal(0, 0.15)
+    a, e_ = math.radians(az), math.radians(el)
+    n = np.array([math.cos(e_) * math.sin(a), math.cos(e_) * math.cos(a), math.sin(e_)])
+    for r in VAD_R:
+        p = VAD + r * n
+        junk = rng.random() < 0.04
+        if junk:
+            vr, cnr = rng.uniform(-20, 20), -33 + rng.normal(0, 1)
+        else:
+            vr, cnr = float(n @ np.array(true_wind(t, p))) + rng.normal(0, 0.12), min(-2.0, -15 + rng.normal(0, 4))
+        vad_rows.append((t, az, el, r, vr, cnr))
+    t += 1.1 + rng.uniform(-0.2, 0.2)
+with open(os.path.join(out, "data", "vadn.csv"), "w") as f:
+    f.write("time,instrument,azimuth_deg,elevation_deg,range_m,radial_velocity_ms,cnr_db\n")
+    for s in vad_rows:
+        f.write(f"{s[0]:.2f},vad-n,{s[1]:.3f},{s[2]:.3f},{s[3]:.1f},{s[4]:.4f},{s[5]:.2f}\n")
+
+
 def iso_s(t):
     return str(np.datetime64(int(math.floor(t)), "s")) + "Z"
 
@@ -208,7 +235,10 @@ camp = {
          "columns": {"time": "t", "instrument": "id", "azimuth_deg": "az", "elevation_deg": "el", "range_m": "rng_m", "radial_velocity_ms": "vr_ms", "cnr_db": "snr_db"}},
         {"id": "dd-a", "position_m": list(INS["dd-a"]), "files": ["data/dda.csv"],
          "columns": {"time": "t", "instrument": "id", "azimuth_deg": "az", "elevation_deg": "el", "range_m": "rng_m", "radial_velocity_ms": "vr_ms", "cnr_db": "snr_db"}},
+        {"id": "vad-n", "role": "profiler", "position_m": VAD.tolist(), "files": ["data/vadn.csv"],
+         "profile": {"mode": "vad", "heights_m": {"min": 45, "max": 145, "step": 25}, "sectors": 24}},
     ],
+    "inflow": {"kind": "profile", "instrument": "vad-n", "law": "power"},
     "planes": [{"id": "hh", "orientation": "horizontal", "z_m": 90, "y": {"min": -150, "max": 150}, "xRange": {"min": 200, "max": 500},
                 "cell_m": [30, 30], "thickness_m": 30}],
     "windows": {"kind": "fixed", "length_s": W, "anchor": "epoch"},
@@ -219,6 +249,10 @@ camp = {
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as f:
     json.dump(camp, f, indent=1)
-json.dump({"window_starts": [WIN_START + (k - 1) * W for k in (1, 2, 3)], "cells": cells, "plan_cells": plan_cells,
+# The inflow the planes should get from vad-n: its wind projected on the series direction (the rotor axis), the
+# true flow being 2 deg off it: u_inf(z) = 8.5 (z / 90)^0.15 cos(2 deg), a power law with exponent 0.15 and hub
+# speed 8.5 cos(2 deg) at 90 m (the upstream cone sees no wake).
+inflow = dict(alpha=0.15, hub_speed_ms=8.5 * math.cos(math.radians(2.0)))
+json.dump({"inflow": inflow, "window_starts": [WIN_START + (k - 1) * W for k in (1, 2, 3)], "cells": cells, "plan_cells": plan_cells,
            "junk": {n: int(sum(s[6] for s in samples[n])) for n in INS}, "rows": {n: len(samples[n]) for n in INS}},
           open(os.path.join(out, "expected.json"), "w"), indent=1)
