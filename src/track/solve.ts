@@ -2,9 +2,10 @@
  * Single-instrument wake tracking: one scanner sees only the line-of-sight component, so the wind is taken to blow
  * along an assumed direction D (the window's wind direction, horizontal, d = -(sin D, cos D, 0)). Per bin, the
  * apparent streamwise speed is S_app = mean(v_r) / (mean(n) . d); the deficit is 1 - S_app / S_inf(z), with S_inf the
- * campaign's inflow reference at the bin's height when it has one (a profiler, a fixed profile), else the mean
- * apparent speed of the outer fifth of the bins on each side of the sector (at least two each; assumed outside the
- * wake). Bins whose beam makes more than maxBeamAngle_deg with d are masked: the projection n . d becomes small and
+ * campaign's inflow reference at the bin's height when it has one (a profiler, a fixed profile), else from the outer
+ * fifth of the bins on each side of the sector (at least two each; assumed outside the wake): their mean apparent
+ * speed across a horizontal sector, a power law in height through them across a vertical one (edgePowerLaw: the
+ * bottom and top of a vertical sector differ by the shear). Bins whose beam makes more than maxBeamAngle_deg with d are masked: the projection n . d becomes small and
  * divides the noise up.
  *
  * Bias of the direction assumption: if the flow comes from D + delta, a beam at angle beta from d sees
@@ -44,7 +45,24 @@ export interface TrackSolveContext {
 
 interface Bin { c: number; vr: number; n: number; a: [number, number, number]; z: number; sdv: number }
 
-function analyseRow(bins: Bin[], dir_deg: number, maxAngle_deg: number, ctx: TrackSolveContext) {
+/**
+ * Free stream of a vertical sector from its outer bins: the power law S(z) = S_h (z / z_h)^alpha fitted through
+ * ln S_app against ln z of the outer bins below and above the wake (ordinary least squares), so that the shear
+ * between the bottom and the top of the sector is not read as a deficit. Null when a speed or height is not
+ * positive (the mean is used then).
+ */
+function edgePowerLaw(z: number[], s: number[]): { at: (z: number) => number; alpha: number } | null {
+  if (z.some((v) => !(v > 0)) || s.some((v) => !(v > 0))) return null;
+  const X = z.map(Math.log), Y = s.map(Math.log), n = X.length;
+  const mx = X.reduce((a, b) => a + b, 0) / n, my = Y.reduce((a, b) => a + b, 0) / n;
+  let sxx = 0, sxy = 0;
+  for (let i = 0; i < n; i++) { sxx += (X[i] - mx) ** 2; sxy += (X[i] - mx) * (Y[i] - my); }
+  if (!(sxx > 0)) return null;
+  const alpha = sxy / sxx;
+  return { at: (h) => Math.exp(my + alpha * (Math.log(h) - mx)), alpha };
+}
+
+function analyseRow(bins: Bin[], dir_deg: number, maxAngle_deg: number, ctx: TrackSolveContext, vertical: boolean) {
   const D = (dir_deg * Math.PI) / 180, dE = -Math.sin(D), dN = -Math.cos(D);
   const cosMax = Math.cos((maxAngle_deg * Math.PI) / 180);
   const use = bins.filter((b) => {
@@ -65,6 +83,13 @@ function analyseRow(bins: Bin[], dir_deg: number, maxAngle_deg: number, ctx: Tra
     const m = edge.reduce((s, v) => s + v, 0) / edge.length;
     sInf = use.map(() => m);
     source = `outer ${k} bins on each side`;
+    if (vertical) {
+      const law = edgePowerLaw([...use.slice(0, k), ...use.slice(use.length - k)].map((b) => b.z), edge);
+      if (law) {
+        sInf = use.map((b) => law.at(b.z));
+        source = `power law (alpha ${law.alpha.toFixed(3)}) through the outer ${k} bins below and above`;
+      }
+    }
   }
   const c = use.map((b) => b.c);
   const d = app.map((s, i) => 1 - s / sInf[i]);
@@ -136,7 +161,7 @@ export function solveTrack(st: CellStats, layout: TrackerLayout, ctx: TrackSolve
         r2: NaN, bins: bins.length, samples: bins.reduce((s, b) => s + b.n, 0), directionBiasCentre_m: NaN, directionBiasWidth_m: NaN,
         flag: 'ok', reason: '', profile: { c_m: [], deficit: [], sdeficit: [] },
       };
-      const row = analyseRow(bins, ctx.direction_deg, tr.maxBeamAngle_deg, ctx);
+      const row = analyseRow(bins, ctx.direction_deg, tr.maxBeamAngle_deg, ctx, tr.sector === 'vertical');
       if (!row) { out.push({ ...base, flag: bins.length < 5 ? 'too_few_bins' : 'no_free_stream', reason: bins.length < 5 ? `${bins.length} bins with data < 5` : 'too few bins to estimate the free stream from the sector edges' }); continue; }
       const res = fitRow(row.c, row.d, lo, hi, step, minDef);
       // The baseline of the fit corrects the free stream and the deficit profile (see the docblock).
@@ -153,7 +178,7 @@ export function solveTrack(st: CellStats, layout: TrackerLayout, ctx: TrackSolve
       if (res.flag === 'ok' && delta > 0) {
         let bc = 0, bw = 0;
         for (const sgn of [-1, 1]) {
-          const alt = analyseRow(bins, ctx.direction_deg + sgn * delta, tr.maxBeamAngle_deg, ctx);
+          const alt = analyseRow(bins, ctx.direction_deg + sgn * delta, tr.maxBeamAngle_deg, ctx, tr.sector === 'vertical');
           const f = alt ? fitRow(alt.c, alt.d, lo, hi, step, minDef) : null;
           if (!f?.fit || f.flag !== 'ok') { bc = NaN; bw = NaN; break; }
           bc = Math.max(bc, Math.abs(f.fit.centre - p.centre_m));
