@@ -3,8 +3,12 @@
  * never depend on it); these cases pin down when it is made, so that runs on CSV or spread over cores do not load
  * the HDF5 library for nothing.
  */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { earlyReaderWanted } from '../src/cli/early.ts';
+import { earlyReaderWanted, earlyWriterWanted } from '../src/cli/early.ts';
 
 const files: Record<string, string> = {
   'nc.yaml': 'instruments:\n  - id: a\n    files: [data/a-00.nc, data/a-01.nc]\n',
@@ -28,4 +32,48 @@ describe('early start of the reader thread', () => {
     expect(earlyReaderWanted(['run', 'missing.yaml'], read, 2)).toBe(false);
     expect(earlyReaderWanted(['run'], read, 2)).toBe(false);
   });
+});
+
+describe('early start of the NetCDF output thread', () => {
+  const texts: Record<string, string> = {
+    'default.yaml': 'instruments:\n  - id: a\n    files: [data/a.csv]\noutput:\n  dir: out\n',
+    'off.yaml': 'instruments:\n  - id: a\n    files: [data/a.csv]\noutput:\n  dir: out\n  netcdf: false\n',
+    'off.json': '{"instruments": [{"id": "a", "files": ["data/a.csv"]}], "output": {"dir": "out", "netcdf": false}}',
+    'no.yaml': 'output:\n  netcdf: no\n',
+  };
+  const readText = (p: string) => {
+    if (!(p in texts)) throw new Error('ENOENT');
+    return texts[p];
+  };
+  it('for `run` in one process on a campaign that keeps the default NetCDF outputs', () => {
+    expect(earlyWriterWanted(['run', 'default.yaml'], readText, 2)).toBe(true);
+    expect(earlyWriterWanted(['run', 'default.yaml', '--cores', '1'], readText, 16)).toBe(true);
+  });
+  it('not when the campaign turns NetCDF off (YAML or JSON), for other commands, several processes, or an unreadable campaign', () => {
+    expect(earlyWriterWanted(['run', 'off.yaml'], readText, 2)).toBe(false);
+    expect(earlyWriterWanted(['run', 'off.json'], readText, 2)).toBe(false);
+    expect(earlyWriterWanted(['run', 'no.yaml'], readText, 2)).toBe(false);
+    expect(earlyWriterWanted(['check', 'default.yaml'], readText, 2)).toBe(false);
+    expect(earlyWriterWanted(['run', 'default.yaml', '--cores', '2'], readText, 2)).toBe(false);
+    expect(earlyWriterWanted(['run', 'missing.yaml'], readText, 2)).toBe(false);
+  });
+});
+
+describe('the output thread started early leaves nothing behind', () => {
+  it('a run that stops at once on a bad campaign leaves no warm-up folder in the temporary directory', () => {
+    // The thread's warm-up files go into a folder of the system's temporary directory; a process that ends while
+    // they are written (here: a campaign that is not valid YAML, refused in well under a second) must remove it.
+    const ROOT = join(import.meta.dirname, '..');
+    const tmp = mkdtempSync(join(tmpdir(), 'wp-early-'));
+    try {
+      const campaign = join(tmp, 'campaign.yaml');
+      writeFileSync(campaign, 'name: [unclosed\n'); // readable (the early start happens), not valid
+      const r = spawnSync(process.execPath, ['bin/wakeplane.js', 'run', campaign, '--cores', '1'], { cwd: ROOT, env: { ...process.env, TMPDIR: tmp }, encoding: 'utf8' });
+      expect(r.status).toBe(1); // refused: a configuration error
+      expect(r.stderr).toMatch(/campaign\.yaml/); // the message names the file
+      expect(readdirSync(tmp).filter((n) => n.startsWith('wakeplane-nc-'))).toEqual([]); // exact: nothing of ours left
+    } finally {
+      rmSync(tmp, { recursive: true, force: true });
+    }
+  }, 30_000);
 });

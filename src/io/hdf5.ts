@@ -5,6 +5,7 @@
  */
 import { closeSync, openSync, readSync } from 'node:fs';
 import type * as H5 from 'h5wasm';
+import { tuneWasmTiering } from './wasmTiering.mjs';
 
 export type H5Module = typeof H5;
 let loaded: Promise<H5Module> | undefined;
@@ -21,6 +22,7 @@ interface Hdf5Wasm {
 
 export function loadHdf5(): Promise<H5Module> {
   loaded ??= (async () => {
+    tuneWasmTiering();
     const h5 = (await import('h5wasm/node')) as unknown as H5Module;
     const M = await h5.ready;
     M.activate_throwing_error_handler();

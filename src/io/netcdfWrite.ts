@@ -11,7 +11,9 @@
  * the same operations to a worker thread (the run's outputs: loading the 4 MB HDF5 library and writing then cost the
  * ingest almost nothing on a second core). Errors of the worker surface, with the file named, when it is closed.
  */
-import { existsSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.ts';
@@ -66,7 +68,15 @@ export class NcWorker {
   private dead: Error | null = null;
 
   constructor() {
-    this.worker = new Worker(workerUrl(), { execArgv: [] });
+    // The folder of the thread's warm-up files (netcdfWorker.mjs): made and removed at exit here, so that a process
+    // ending while the thread still writes them (a run stopped by bad input in its first second) leaves nothing.
+    let warmDir: string | undefined;
+    try {
+      warmDir = mkdtempSync(join(tmpdir(), 'wakeplane-nc-'));
+      const dir = warmDir;
+      process.once('exit', () => rmSync(dir, { recursive: true, force: true, maxRetries: 3 }));
+    } catch { /* no temporary folder: the thread skips its warm-up */ }
+    this.worker = new Worker(workerUrl(), { execArgv: [], workerData: { warmDir } });
     this.worker.on('message', (m: { reply?: number; error?: string | null }) => {
       if (m.reply === undefined) return;
       const w = this.waiting.get(m.reply);
