@@ -15,7 +15,8 @@
  * centre and width is reported as the direction bias.
  *
  * Per downstream bin: a 1D Gaussian across the wake (gaussian1d.ts; at least 5 bins) and the deficit-weighted
- * centroid of the bins above half the peak. With at least MIN_BINS_BASELINE bins the Gaussian carries a constant
+ * centroid of the bins above half the peak (NaN when the first or last bin with data is itself above half the peak:
+ * the sweep cuts the region and the centroid would lean away from the cut). With at least MIN_BINS_BASELINE bins the Gaussian carries a constant
  * baseline b: a free stream S_ref that is off by a share e (outer bins still in the wake, an inflow reference from
  * elsewhere) turns the true deficit d into d' = 1 - (1 - d) / (1 - e) = (d - e) / (1 - e): the same Gaussian,
  * scaled, on a baseline b = -e / (1 - e). So the centre and width are those of the fit, the deficit against the free
@@ -122,7 +123,11 @@ function fitRow(c: number[], d: number[], lo: number, hi: number, step: number, 
   const top = base(peak);
   let sw = 0, swc = 0;
   dd.forEach((v, i) => { const x = base(v); if (x >= top / 2) { sw += x; swc += x * cc[i]; } });
-  const centroid = swc / sw;
+  // The centroid is shape-independent only when the half-peak region lies inside the data: a first or last bin
+  // still above half the peak means the sweep cut it (a yawed nacelle's sweep, a narrow sector), and the centroid
+  // would lean away from the cut. It is left out then.
+  const cut = base(dd[0]) >= top / 2 || base(dd[dd.length - 1]) >= top / 2;
+  const centroid = cut ? NaN : swc / sw;
   if (!fit.converged || !(fit.width > 0) || !Number.isFinite(fit.centre)) return { flag: 'not_converged' as TrackFlag, reason: 'Gaussian fit did not converge', fit, centroid };
   if (!(fit.centre > lo + step && fit.centre < hi - step)) return { flag: 'off_edge' as TrackFlag, reason: `centre ${fit.centre.toFixed(1)} m outside or within one bin of the edge`, fit, centroid };
   if (!(fit.amplitude >= minDef)) return { flag: 'no_wake' as TrackFlag, reason: `fitted amplitude ${fit.amplitude.toFixed(3)} < ${minDef}`, fit, centroid };

@@ -25,7 +25,7 @@ export const trackerTable: Table = {
     col('width', 'm', byUnc('width_se_m', 3), 'standard deviation of that Gaussian across the wake'),
     col('width_se', 'm', SE, 'its standard error'),
     col('amplitude', 'one', dec(4), 'peak line-of-sight deficit of the fit, against free_stream (with 7 or more bins the Gaussian sits on a fitted baseline, which corrects the free stream)'),
-    col('centroid', 'm', dec(2), 'deficit-weighted centroid of the bins above half the peak (shape-independent centre)', rotor),
+    col('centroid', 'm', dec(2), 'deficit-weighted centroid of the bins above half the peak (shape-independent centre); empty when the first or last bin with data is above half the peak (the sweep cuts that region)', rotor),
     col('r2', 'one', dec(4), 'coefficient of determination of the fit'),
     col('bins', 'count', INT, 'across-wake bins with data'),
     col('samples', 'count', INT, 'kept samples'),
