@@ -110,10 +110,12 @@ export class GeometryFinisher {
         const [lo, hi] = ts ? rowsInWindow(ts, w.start_s, w.end_s) : [0, 0];
         const nacelle = ts ? circularMeanDeg(ts.values.yaw_deg, lo, hi) : NaN;
         const incl = this.t.orientationSeries[l.instrument.index];
+        const gaps = [seriesGapIn(ts, w.start_s, w.end_s, maxGap), incl ? seriesGapIn(incl, w.start_s, w.end_s, maxGap, 'inclinometer') : '']
+          .filter((g) => g).join('; ');
         this.results.nacelle.push(solveNacelle(st, l, info, {
           hubHeight_m: this.c.turbine.hubHeight_m, rotorDiameter_m: this.c.turbine.rotorDiameter_m,
           ctAt: (v) => thrustCoefficientAt(this.c.turbine.thrustCoefficient as number | [number, number][], v).ct,
-          nacelle_deg: nacelle, seriesGap: [seriesGapIn(ts, w.start_s, w.end_s, maxGap), incl ? seriesGapIn(incl, w.start_s, w.end_s, maxGap, 'inclinometer') : ''].filter((g) => g).join('; '),
+          nacelle_deg: nacelle, seriesGap: gaps,
         }));
       }
     }

@@ -5,8 +5,8 @@
  * campaign's inflow reference at the bin's height when it has one (a profiler, a fixed profile), else from the outer
  * fifth of the bins on each side of the sector (at least two each; assumed outside the wake): their mean apparent
  * speed across a horizontal sector, a power law in height through them across a vertical one (edgePowerLaw: the
- * bottom and top of a vertical sector differ by the shear). Bins whose beam makes more than maxBeamAngle_deg with d are masked: the projection n . d becomes small and
- * divides the noise up.
+ * bottom and top of a vertical sector differ by the shear). Bins whose beam makes more than maxBeamAngle_deg with d
+ * are masked: the projection n . d becomes small and divides the noise up.
  *
  * Bias of the direction assumption: if the flow comes from D + delta, a beam at angle beta from d sees
  * S cos(beta - delta) instead of S cos(beta), so S_app = S (cos delta + tan beta sin delta): across a sector tan beta
@@ -16,14 +16,14 @@
  *
  * Per downstream bin: a 1D Gaussian across the wake (gaussian1d.ts; at least 5 bins) and the deficit-weighted
  * centroid of the bins above half the peak (NaN when the first or last bin with data is itself above half the peak:
- * the sweep cuts the region and the centroid would lean away from the cut). With at least MIN_BINS_BASELINE bins the Gaussian carries a constant
- * baseline b: a free stream S_ref that is off by a share e (outer bins still in the wake, an inflow reference from
- * elsewhere) turns the true deficit d into d' = 1 - (1 - d) / (1 - e) = (d - e) / (1 - e): the same Gaussian,
- * scaled, on a baseline b = -e / (1 - e). So the centre and width are those of the fit, the deficit against the free
- * stream S_ref (1 - b) is (d' - b) / (1 - b), the amplitude A / (1 - b), and the free stream reported is
- * S_ref (1 - b). Without the baseline a sector only 2.5 widths wide read the wake 6-15 % too narrow
- * (test/geometries-heldback.test.ts). Flags (first that applies): no_free_stream, too_few_bins, no_wake (peak
- * below minDeficit), not_converged, off_edge.
+ * the sweep cuts the region and the centroid would lean away from the cut). With at least MIN_BINS_BASELINE bins the
+ * Gaussian carries a constant baseline b: a free stream S_ref that is off by a share e (outer bins still in the
+ * wake, an inflow reference from elsewhere) turns the true deficit d into d' = 1 - (1 - d) / (1 - e) =
+ * (d - e) / (1 - e): the same Gaussian, scaled, on a baseline b = -e / (1 - e). So the centre and width are those of
+ * the fit, the deficit against the free stream S_ref (1 - b) is (d' - b) / (1 - b), the amplitude A / (1 - b), and
+ * the free stream reported is S_ref (1 - b). Without the baseline a sector only 2.5 widths wide read the wake 6-15 %
+ * too narrow (test/geometries-heldback.test.ts). Flags (first that applies): no_free_stream, too_few_bins, no_wake
+ * (peak below minDeficit), not_converged, off_edge.
  */
 import type { CellStats } from '../retrieval/cellStats.ts';
 import { fitGaussian1D, fitGaussian1DOffset, type Gaussian1DFit } from './gaussian1d.ts';
