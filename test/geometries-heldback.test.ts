@@ -16,6 +16,7 @@ import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { planCampaign } from '../src/plan/planCampaign.ts';
 import { writePlanOutputs } from '../src/plan/writeOutputs.ts';
+import { formatPlanSummary } from '../src/pipeline/plan.ts';
 import { inflowFromProfile } from '../src/profile/inflow.ts';
 import type { ProfilePoint } from '../src/profile/types.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
@@ -125,6 +126,11 @@ describe.skipIf(!py.python)(`held-back profilers: a veering, sheared profile${py
     // N sin^2 phi); the DBS set (4 beams 90 deg apart at 62 deg and a vertical one): 1 / (cos 62 sqrt 2) and
     // 1 / sqrt(4 sin^2 62 + 1). Ring diameter 2 r cos phi of the gate in the bin. Rounded to 0.01 in the plan.
     const plan = planCampaign(loadCampaignFile(join(dir, 'campaign.yaml')));
+    // A campaign of profilers only: no plane lines in the summary (before: an empty 'resolved' heading and a note on
+    // two-beam cells of planes it does not have).
+    const text = formatPlanSummary(plan.summary, 'out');
+    expect(text).not.toMatch(/resolved|two usable beams/);
+    expect(text).toMatch(/profiler cone-7: 6 heights/);
     const D = Math.PI / 180;
     const cases = [
       { id: 'cone-7', el: 74, du: 1 / (Math.cos(74 * D) * Math.sqrt(18)), dw: 1 / (Math.sin(74 * D) * 6), z0: 2.5, gates: [52.3, 77.1, 114.4, 140.3, 174.4, 200.3] },
