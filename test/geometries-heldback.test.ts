@@ -289,6 +289,46 @@ describe.skipIf(!py.python)(`held-back nacelle case: bad inclinometer inputs${py
     expect(res.manifest.warnings.join('\n')).toMatch(/inclinometer/);
   });
 
+  it('a turbine series sparser than the windows: every window gets the nacelle direction its samples were turned with', async () => {
+    // Every 100th row of the turbine series (one per 300 s), windows of 200 s, maxGap_s 400: some windows hold no
+    // series row. Their samples are placed with the series interpolated between the rows around them (README), but
+    // the window's nacelle direction and yaw misalignment were taken from the rows inside the window only: empty,
+    // with the flag 'ok' and no reason. Expected here from the rows: the time average over the window of the
+    // direction interpolated linearly (the short way round) between the rows around each instant, evaluated on a
+    // 1-s grid (the turbine series is piecewise linear, so the grid average is within 0.01 deg of the integral).
+    const [head, ...rows] = readFileSync(join(dir, 'data', 'turbine.csv'), 'utf8').trim().split('\n');
+    const sparse = rows.filter((_, k) => k % 100 === 0);
+    writeFileSync(join(dir, 'data', 'turbine-sparse.csv'), [head, ...sparse].join('\n') + '\n');
+    const T = sparse.map((l) => unix(l.split(',')[0])), Y = sparse.map((l) => Number(l.split(',')[1]));
+    const at = (t: number) => {
+      const i = T.findIndex((x) => x > t);
+      if (i <= 0) return NaN;
+      const d = ((Y[i] - Y[i - 1] + 540) % 360) - 180;
+      return Y[i - 1] + ((t - T[i - 1]) / (T[i] - T[i - 1])) * d;
+    };
+    const c = JSON.parse(readFileSync(join(dir, 'campaign.yaml'), 'utf8'));
+    c.turbine.series.file = 'data/turbine-sparse.csv';
+    c.windows.length_s = 200;
+    c.instruments[0].nacelle.maxGap_s = 400;
+    writeFileSync(join(dir, 'sparse.yaml'), JSON.stringify(c, null, 1));
+    const res = await runCampaign(loadCampaignFile(join(dir, 'sparse.yaml')), { outRoot: join(dir, 'out-sparse'), images: false, stages: defaultStages() });
+    const nac = readCsv(join(res.runDir, 'nacelle', 'fwd-4.csv')).filter((r) => Number(r.samples) > 0);
+    let withoutRow = 0;
+    for (const r of nac) {
+      const s = unix(r.window_start), e = unix(r.window_end);
+      const inside = T.filter((t) => t >= s && t < e).length;
+      expect(r.nacelle_deg, `window ${r.window}`).not.toBe('');
+      expect(r.yaw_misalignment_deg, `window ${r.window}`).not.toBe('');
+      if (inside > 0) continue;
+      withoutRow++;
+      let sn = 0, cs = 0;
+      for (let t = s + 0.5; t < e; t += 1) { const v = (at(t) * Math.PI) / 180; sn += Math.sin(v); cs += Math.cos(v); }
+      const want = ((Math.atan2(sn, cs) * 180) / Math.PI + 360) % 360;
+      expect(Math.abs(((Number(r.nacelle_deg) - want + 540) % 360) - 180), `window ${r.window}`).toBeLessThan(0.01);
+    }
+    expect(withoutRow).toBeGreaterThanOrEqual(2);
+  });
+
   it('a missing inclinometer file: check fails as run does', async () => {
     // Before, check said nothing (exit 0) and run stopped on it.
     const f = variant('no-file', (o) => (o.file = 'data/absent.csv'));

@@ -53,7 +53,7 @@ export interface NacelleGate {
 export interface NacelleWindow {
   instrumentId: string;
   window: { index: number; start_s: number; end_s: number; kind?: string; label?: string };
-  /** Mean nacelle direction over the window from the turbine series, degrees. */
+  /** Mean nacelle direction over the window from the turbine series (its rows in the window, else the series interpolated over it), degrees. */
   nacelle_deg: number;
   /** Upstream distance of the reported values, metres and rotor diameters. */
   distance_m: number;

@@ -12,6 +12,7 @@ import { circularMeanDeg, rowsInWindow, type Series } from '../io/series.ts';
 import { inflowFromProfile } from '../profile/inflow.ts';
 import { solveProfile } from '../profile/solve.ts';
 import type { ProfileWindow } from '../profile/types.ts';
+import { interpolatedMeanDeg } from '../geometry/nacelle.ts';
 import { solveNacelle } from '../nacelle/solve.ts';
 import type { NacelleWindow } from '../nacelle/types.ts';
 import { solveTrack } from '../track/solve.ts';
@@ -108,7 +109,10 @@ export class GeometryFinisher {
         const maxGap = l.instrument.nacelle!.maxGap_s;
         const ts = this.t.turbineSeries;
         const [lo, hi] = ts ? rowsInWindow(ts, w.start_s, w.end_s) : [0, 0];
-        const nacelle = ts ? circularMeanDeg(ts.values.yaw_deg, lo, hi) : NaN;
+        // The mean of the series rows in the window; a window with no row (a series sparser than the windows) takes
+        // the series interpolated over it, as its samples were turned.
+        let nacelle = ts ? circularMeanDeg(ts.values.yaw_deg, lo, hi) : NaN;
+        if (ts && !Number.isFinite(nacelle)) nacelle = interpolatedMeanDeg(ts.time, ts.values.yaw_deg, w.start_s, w.end_s, maxGap);
         const incl = this.t.orientationSeries[l.instrument.index];
         const gaps = [seriesGapIn(ts, w.start_s, w.end_s, maxGap), incl ? seriesGapIn(incl, w.start_s, w.end_s, maxGap, 'inclinometer') : '']
           .filter((g) => g).join('; ');

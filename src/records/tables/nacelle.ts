@@ -26,7 +26,7 @@ export const nacelleTable: Table = {
     col('alpha_se', 'one', SE, 'its standard uncertainty'),
     col('direction', 'deg', byUnc('direction_se_deg', 3), 'wind direction at the distance, where the wind comes from', site),
     col('direction_se', 'deg', SE, 'its standard uncertainty', site),
-    col('nacelle', 'deg', dec(3), 'window-mean nacelle direction from the turbine series, clockwise from north', site),
+    col('nacelle', 'deg', dec(3), 'window-mean nacelle direction from the turbine series (its rows in the window; without one, the series interpolated over the window), clockwise from north', site),
     col('yaw_misalignment', 'deg', byUnc('yaw_misalignment_se_deg', 3), 'nacelle minus wind direction in (-180, 180], positive = nacelle turned clockwise from the wind'),
     col('yaw_misalignment_se', 'deg', SE, 'its standard uncertainty'),
     col('induction_a', 'one', dec(4), 'axial induction factor a = (1 - sqrt(1 - Ct)) / 2, Ct from the thrust curve'),
