@@ -343,7 +343,7 @@ interface DdCell { window: number; x_m: number; y_m: number; u: number; v: numbe
 interface PlanCell { x_m: number; y_m: number; u_amp: number; v_amp: number; crossing_deg: number; elevations_deg: number[]; usable: boolean; trusted: boolean }
 
 describe.skipIf(!py.python)(`held-back two instruments: dual-Doppler in a horizontal plane, run and plan${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
-  let dir: string, e: { window_starts: number[]; cells: DdCell[]; plan_cells: PlanCell[]; junk: Record<string, number>; rows: Record<string, number>; inflow: { alpha: number; hub_speed_ms: number } };
+  let dir: string, e: { window_starts: number[]; cells: DdCell[]; plan_cells: PlanCell[]; junk: Record<string, number>; rows: Record<string, number>; inflow: { alpha: number; hub_speed_ms: number }; outside: Record<string, number> };
   beforeAll(() => {
     ({ dir, expected: e } = generate('heldback_dualdoppler.py'));
   });
@@ -356,6 +356,9 @@ describe.skipIf(!py.python)(`held-back two instruments: dual-Doppler in a horizo
       expect(a.read).toBe(e.rows[id]);
       // Junk at -33 +/- 1 dB, good rows -15 +/- 4 dB (clipped at -2): the junk and at most 0.5 % of the good rows.
       expect(Math.abs(a.rejected.low_cnr - e.junk[id])).toBeLessThan(0.005 * e.rows[id]);
+      // Good rows beyond the plane's extent or slab, as the script places them: exactly, but for the good rows the
+      // CNR limit took first (low_cnr above the junk count).
+      expect(Math.abs(a.rejected.outside_planes - e.outside[id]), id).toBeLessThanOrEqual(Math.max(0, a.rejected.low_cnr - e.junk[id]));
     }
     const rows = readdirSync(join(res.runDir, 'fields')).filter((f) => f.endsWith('.csv')).flatMap((f) => readCsv(join(res.runDir, 'fields', f)));
     let checked = 0, masked = 0;

@@ -211,6 +211,20 @@ for k in (1, 2):
         cells.append(dict(window=k, x_m=xc, y_m=yc, u=float(allv[:, 0].mean()), v=float(allv[:, 1].mean()),
                           u_amp=au, v_amp=av, crossing_deg=cross, crossing_mean_deg=cross_mean, n=[len(a["dd-a"]), len(a["dd-b"])]))
 
+# Good rows of the two scanners whose point lies outside the plane (beyond its x or y extent in the window's rotor
+# frame, or more than half the slab thickness from 90 m): the run counts them as outside_planes.
+outside = {n: 0 for n in INS}
+for name in INS:
+    for s in samples[name]:
+        if s[6]:
+            continue
+        d = DIRS[min(2, max(1, win(s[0])))]
+        (xe, xn), (ye, yn) = axes(d)
+        p = s[7]
+        x, y = p[0] * xe + p[1] * xn, p[0] * ye + p[1] * yn
+        if abs(p[2] - PLANE["z"]) > PLANE["thick"] / 2 or not (PLANE["xmin"] <= x < PLANE["xmax"]) or not (PLANE["ymin"] <= y < PLANE["ymax"]):
+            outside[name] += 1
+
 plan_cells = []
 (xe, xn), (ye, yn) = axes(0.0)
 for ix in range(nx):
@@ -253,6 +267,6 @@ with open(os.path.join(out, "campaign.yaml"), "w") as f:
 # true flow being 2 deg off it: u_inf(z) = 8.5 (z / 90)^0.15 cos(2 deg), a power law with exponent 0.15 and hub
 # speed 8.5 cos(2 deg) at 90 m (the upstream cone sees no wake).
 inflow = dict(alpha=0.15, hub_speed_ms=8.5 * math.cos(math.radians(2.0)))
-json.dump({"inflow": inflow, "window_starts": [WIN_START + (k - 1) * W for k in (1, 2, 3)], "cells": cells, "plan_cells": plan_cells,
+json.dump({"outside": outside, "inflow": inflow, "window_starts": [WIN_START + (k - 1) * W for k in (1, 2, 3)], "cells": cells, "plan_cells": plan_cells,
            "junk": {n: int(sum(s[6] for s in samples[n])) for n in INS}, "rows": {n: len(samples[n]) for n in INS}},
           open(os.path.join(out, "expected.json"), "w"), indent=1)
