@@ -1,10 +1,16 @@
 /**
- * A reviewer's held-back cases for the single-instrument geometries (issue 10), written without our simulator by
- * numpy scripts (test/reference/heldback_profiles.py, heldback_nacelle.py): irregular gates whose heights never sit
- * on the bin centres, every ray its own angles, azimuths through north, junk rows at another CNR level, rows out of
- * order, renamed columns in another order, Unix, ISO and offset times, a stuck cone, missing DBS beams, a turning
- * nacelle, an inclinometer, a turbine-series gap. Each check compares a run's tables with the values the script
- * computed from the rows it wrote (textbook formulas named there and beside each check), never with our own output.
+ * A reviewer's held-back cases for the geometries of issue 10, written without our simulator by numpy scripts in
+ * test/reference/: heldback_profiles.py (VAD cone and DBS beams, a veering, sheared wind), heldback_nacelle.py (a
+ * four-beam nacelle instrument under changing misalignment and shear, an inclinometer, a series gap),
+ * heldback_dualdoppler.py (two scanners in a horizontal plane, one looking down from a tower, a VAD cone as inflow
+ * reference, and the plan), heldback_tracker.py, heldback_tracker_vertical.py and heldback_tracker_nacelle.py (wake
+ * tracking in a horizontal sector through north, a vertical sector under shear, and a rear sweep on a yawed nacelle).
+ * The data differ from our simulator's on purpose: irregular gates whose heights never sit on the bin centres, every
+ * ray its own angles, azimuths through north, negative elevations, junk rows at another CNR level, rows out of
+ * order, renamed columns in another order, Unix, ISO and offset times, windows anchored off the minute, a stuck
+ * cone, missing DBS beams. Each check compares a run's (or plan's) tables with the values the script computed from
+ * the rows it wrote (textbook formulas named there and beside each check), never with our own output; the bad
+ * inputs of the issue (and a few more) must give one clear line or a flagged window, with every sample counted.
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
