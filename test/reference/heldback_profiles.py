@@ -30,7 +30,7 @@ Expected (expected.json), computed here per window and height bin (nearest centr
   for per-ray elevations; for DBS the same fit equals the four-beam formulas u = (v_E - v_W) / (2 cos el),
   v = (v_N - v_S) / (2 cos el) of the turned set, w from the vertical beam (common practice);
   its standard errors from the residual variance (ordinary least squares);
-- the true wind at the mean height of the bin's samples, and that mean height;
+- the true wind at the mean height of the bin's slanted-beam samples (those that give u and v), and that height;
 - the junk rows written per instrument (to be rejected, not used);
 - for the inflow reference (cone-7 window 2, dbs-4 window 1): the true wind at the bins' mean heights projected on
   the hub-height direction and a power law fitted to it in log-log.
@@ -178,7 +178,10 @@ def expected(rows, pos, bins, name):
                     s2 = resid @ resid / (len(y) - 3)
                     cov = s2 * np.linalg.inv(A.T @ A)
                     se = np.sqrt(np.diag(cov))
-                    zm = float(z[idx].mean())
+                    # The height u and v belong to: the mean height of the slanted beams' samples (a DBS set's
+                    # vertical beam gives only w, and its gates lie higher: range r at r, not r sin(el)).
+                    slanted = [i for i in idx if rows_ok[i][2] < 80]
+                    zm = float(z[slanted].mean())
                     tu, tv, tw = wind(ANCHOR + (k - 0.5) * W, zm)
                     entry.update(u=float(sol[0]), v=float(sol[1]), w=float(sol[2]), u_se=float(se[0]), v_se=float(se[1]),
                                  w_se=float(se[2]), mean_height_m=zm, true_u=tu, true_v=tv, true_w=tw,

@@ -15,7 +15,7 @@ export const profilerTable: Table = {
     col('window_start', 'iso', TIME, 'start of the averaging window (inclusive)'),
     col('window_end', 'iso', TIME, 'end of the averaging window (exclusive)'),
     col('height', 'm', dec(3), 'centre of the height bin, above ground (labels the bin)', site),
-    col('sample_height', 'm', dec(3), 'mean height above ground of the samples in the fit: the height the row\'s wind belongs to (gates rarely sit on the bin centre); the inflow law is fitted at these heights', site),
+    col('sample_height', 'm', dec(3), 'mean height above ground of the slanted-beam samples in the fit: the height the row\'s horizontal wind belongs to (gates rarely sit on the bin centre; a DBS set\'s vertical beam reaches the bin from other gates); the inflow law is fitted at these heights', site),
     col('radius', 'm', dec(2), 'mean horizontal distance of the samples from the instrument (the ring radius of a VAD)'),
     col('u', 'ms', byUnc('u_se_ms', 4), 'eastward wind component of the uniform-wind fit (Browning & Wexler 1968)', site),
     col('v', 'ms', byUnc('v_se_ms', 4), 'northward wind component', site),
