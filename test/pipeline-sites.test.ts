@@ -72,7 +72,7 @@ describe('a row of three turbines on rolling terrain, simulated and run', () => 
     for (const w of used) {
       const st = stateOf(w);
       const p1 = Number(st.find((r) => r.turbine === 'TR-1')!.power_kw), p2 = Number(st.find((r) => r.turbine === 'TR-2')!.power_kw);
-      const k = Number(st[0].yaw_offset_deg) > 10 ? sums.on : sums.off;
+      const k = Number(st.find((r) => r.turbine === 'TR-1')!.yaw_offset_deg) > 10 ? sums.on : sums.off; // the yawed turbine's state
       k[0] += p2; k[1] += p1;
     }
     const expected = sums.on[0] / sums.on[1] / (sums.off[0] / sums.off[1]) - 1;
@@ -99,5 +99,14 @@ describe('a row of three turbines on rolling terrain, simulated and run', () => 
     const flagged = w.filter((r) => r.flag !== 'ok');
     for (const r of flagged) expect(r.reason).toMatch(/TR-\d\.csv: \d+ of \d+ rows available with power \(lines \d+-\d+\)/);
     expect(res.manifest.assumptions.some((a) => /reference turbine TR-1 is unaffected/.test(a))).toBe(true);
+  });
+
+  it('warns that the reference is itself yawed when it is (this test takes the yawed TR-1 as reference)', () => {
+    // TR-1 steps between 0 and +20 deg with the experiment: its mean yaw offset differs by about 20 deg between the
+    // states, far beyond the baseline tolerance (default 2 deg), so the run must say its ratios carry TR-1's own loss.
+    const w = res.manifest.warnings.find((x) => x.startsWith('power.reference TR-1: the reference turbine is itself yawed'));
+    expect(w).toBeDefined();
+    const [steered, base] = [...w!.matchAll(/(-?\d+\.\d) deg/g)].map((m) => Number(m[1]));
+    expect(Math.abs(steered - base - 20)).toBeLessThan(4); // the schedule's 20 deg within the segment tolerance (4 deg)
   });
 });

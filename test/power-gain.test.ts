@@ -170,5 +170,33 @@ describe('power analysis: window states from the plan', () => {
     expect(a.windows.map((w) => [w.state, w.level_deg])).toEqual([['baseline', NaN], ['steered', 20], ['baseline', NaN], ['steered', 20], ['baseline', NaN], ['steered', -10]]);
     expect(a.gains.map((g) => g.level_deg)).toEqual([-10, 20]);
   });
+  it('adds the compared turbines together: their summed power against the reference, the yawed one\'s loss included', () => {
+    // A yawed upstream turbine U loses power at level 20 (800 -> 680 kW, about cos^1.6 of 20 degrees), the waked
+    // turbine D gains (400 -> 500 kW); the reference R beside the row is steady at 1000 kW. Group gain by hand:
+    // (680 + 500) / (800 + 400) - 1 = 1180 / 1200 - 1 = -1/60; U alone -0.15, D alone +0.25 (energy ratios as sums,
+    // the field wake-steering practice of ratio of sums over windows: common practice).
+    const rows: [number, number][] = [];
+    for (let k = 0; k < 80; k++) rows.push([minute(k), 1000]);
+    const ref = series('ref.csv', rows);
+    const up = series('up.csv', rows.map(([t], k) => [t, Math.floor(k / 10) % 2 === 0 ? 800 : 680]));
+    const down = series('down.csv', rows.map(([t], k) => [t, k === 31 ? -5 : Math.floor(k / 10) % 2 === 0 ? 400 : 500]));
+    const wins: PowerWindow[] = Array.from({ length: 8 }, (_, i) => ({
+      id: i, start_s: i * 600, end_s: (i + 1) * 600, direction_deg: 270, level_deg: i % 2 === 0 ? 0 : 20, yawOffset_deg: NaN, inflowSpeed_ms: 8, centreAt: {},
+    }));
+    const a = analysePower(wins, [{ id: 'R', series: ref }, { id: 'U', series: up }, { id: 'D', series: down }], 'R', ['U', 'D'], {
+      availableStatus: [1], minAvailability: 0.9, maxGap_s: 90, replicates: 200, confidence: 0.9, seed: 1, baselineTolerance_deg: 2, levelStep_deg: 5,
+      directionEdges_deg: [260, 280], speedEdges_ms: [6, 10],
+    });
+    expect(a.gains.map((g) => g.turbine)).toEqual(['U', 'D', 'U+D']);
+    const [u, d, group] = a.gains;
+    // Constant powers per state: the ratios are exact, so 1e-12.
+    expect(u.result.combined.gain).toBeCloseTo(-0.15, 12);
+    expect(d.result.combined.gain).toBeCloseTo(0.25, 12);
+    expect(group.result.combined.gain).toBeCloseTo(1180 / 1200 - 1, 12);
+    // Window 3 (D's negative row) is out of the group as it is out of D's comparison: 4 baseline, 3 steered.
+    expect(group.result.bins[0]).toMatchObject({ nBaseline: 4, nSteered: 3 });
+    expect(u.result.bins[0]).toMatchObject({ nBaseline: 4, nSteered: 4 });
+    expect(Number.isNaN(group.result.combined.deflection_m)).toBe(true); // no wake centre belongs to a group
+  });
   function minute(k: number) { return 30 + 60 * k; }
 });

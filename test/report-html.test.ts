@@ -138,6 +138,13 @@ describe('report HTML (pure)', () => {
     expect(html).toContain('<td>total</td><td class="num">2.718</td>');
     expect(html).toContain('2.718 s (manifest: timings_s.total)');
     expect(html).toContain('123.4 MiB (manifest: peakRss_bytes)');
+    // A run whose process had reached that peak before it started (the demo runs three campaigns and a simulation
+    // in one process): the report gives the figure as an upper bound, not as the run's own peak.
+    const earlier = reportHtml({ ...m, peakRssAtStart_bytes: 123.4 * 2 ** 20 });
+    expect(earlier).toContain('at most 123.4 MiB: the process reached this peak before the run');
+    const grew = reportHtml({ ...m, peakRssAtStart_bytes: 80 * 2 ** 20 });
+    expect(grew).toContain('123.4 MiB (manifest: peakRss_bytes)');
+    expect(grew).not.toContain('at most');
   });
 
   it('puts the planner\'s maps in the planner section and the others under Figures', () => {

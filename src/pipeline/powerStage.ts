@@ -73,6 +73,8 @@ export function powerStage(): RunStage {
       });
       ctx.shared.power = a;
       ctx.manifest.assumptions.push(...a.assumptions);
+      const yawed = referenceYawed(a, series.get(reference)!, s.baselineTolerance_deg);
+      if (yawed) ctx.manifest.warnings.push(`power.reference ${reference}: ${yawed}`);
       writeFileAtomic(join(ctx.runDir, 'power', 'power_gain.csv'), powerGainCsv(a));
       writeFileAtomic(join(ctx.runDir, 'power', 'window_power.csv'), windowPowerCsv(a));
       const out = [
@@ -95,6 +97,25 @@ async function powerFigure(a: PowerAnalysis, runDir: string) {
     { kind: 'image', path: 'images/power_gain.svg', description: 'power gain of wake steering per direction bin with bootstrap intervals, and combined' },
     { kind: 'image', path: 'images/power_gain.png', description: 'power gain of wake steering (PNG)' },
   ];
+}
+
+/**
+ * Whether the reference turbine is itself yawed with the experiment: its own mean yaw offset (its nacelle direction
+ * minus the window's wind direction, from its series) over the steered windows differs from that over the baseline
+ * windows by more than the baseline tolerance. Then its loss under yaw raises every energy ratio, and the gains are
+ * not the downstream turbines' alone. Returns the warning's text, or '' (no yaw column, no windows of a state, or
+ * not yawed).
+ */
+function referenceYawed(a: PowerAnalysis, ref: Series, tolerance_deg: number): string {
+  if (!ref.values.yaw_deg) return '';
+  const mean = (state: 'baseline' | 'steered') => {
+    const v = a.windows.filter((w) => w.state === state).map((w) => windowYaw(ref, w.window.start_s, w.window.end_s, w.window.direction_deg).yawOffset_deg).filter(Number.isFinite);
+    return v.length ? v.reduce((x, y) => x + y, 0) / v.length : NaN;
+  };
+  const base = mean('baseline'), steered = mean('steered');
+  if (!(Math.abs(steered - base) > tolerance_deg)) return '';
+  const deg = (x: number) => (Math.abs(x) < 0.05 ? 0 : x).toFixed(1); // no "-0.0"
+  return `the reference turbine is itself yawed (mean yaw offset ${deg(steered)} deg in the windows with yaw offset, ${deg(base)} deg without): its own loss under yaw raises every energy ratio, so the gains are not the compared turbines' alone; choose a turbine the yaw offsets do not affect (an unwaked one that is not yawed)`;
 }
 
 /** The turbine furthest upstream for the windows' mean wind direction. */

@@ -178,6 +178,8 @@ export function withResolvedCnr(c: Campaign, cnr: CnrLimits): Campaign {
 export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<RunResult> {
   const progress = opts.progress ?? silent;
   const t0 = performance.now();
+  // the process's peak so far (a demo's simulation, an earlier run of the same process): says whether the peak at the end is this run's
+  const peakAtStart = process.resourceUsage().maxRSS * 1024;
   const timings: Record<string, number> = {};
   const lap = (name: string, since: number) => (timings[name] = (timings[name] ?? 0) + (performance.now() - since) / 1000);
   const images = opts.images ?? c.output.images;
@@ -271,6 +273,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
       outputs,
       timings_s: timings,
       peakRss_bytes: 0,
+      peakRssAtStart_bytes: peakAtStart,
       samplesPerSecond: 0,
       assumptions: [],
       warnings,

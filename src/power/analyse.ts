@@ -2,7 +2,8 @@
  * The power question of wake steering for a campaign: for each downstream turbine and each yaw-offset level, the gain
  * of its energy ratio to a reference turbine between windows with and without yaw offset (gain.ts), per wind-direction
  * and wind-speed bin and combined, with bootstrap intervals, the windows behind each number and the measured wake
- * deflection at the turbine. Pure: the stage (pipeline/powerStage.ts) loads the series and hands the windows in.
+ * deflection at the turbine; with two turbines or more compared, the same for their summed power (the group's net
+ * gain: the yawed turbines' losses against the downstream ones' gains). Pure: the stage (pipeline/powerStage.ts) loads the series and hands the windows in.
  *
  * Window state: a segment window's state level (windows/segments.ts); any other window's mean yaw offset of the
  * turbine whose series gives the state (campaign/turbines.ts stateTurbine). Within baselineTolerance_deg of 0 it is a
@@ -77,6 +78,28 @@ function autoEdges(values: number[], width: number, circular: boolean): number[]
   return out;
 }
 
+/** Separator of the turbine ids of a group row (power_gain.csv `turbine`). */
+export const GROUP_JOIN = '+';
+
+/**
+ * The gain of the compared turbines together at level L: their summed window-mean power over the reference's, in the
+ * windows where every one of them and the reference were available. The yawed turbines' own losses count against
+ * the downstream turbines' gains, so this is the net answer for the group (the farm's, when the group is every
+ * turbine but the reference). Same bins, weights and bootstrap as one turbine's (gain.ts); no deflection.
+ */
+function groupGain(rows: { window: PowerWindow; state: 'baseline' | 'steered' | 'unknown'; level_deg: number; speed_ms: number; perTurbine: Record<string, WindowPower> }[], members: string[], reference: string, L: number, edges: GainEdges, s: PowerSettings): PowerGainResult {
+  const list: GainWindow[] = [];
+  for (const r of rows) {
+    if (r.state === 'unknown') continue;
+    if (r.state === 'steered' && !(r.level_deg === L || (Number.isNaN(L) && Number.isNaN(r.level_deg)))) continue;
+    const pr = r.perTurbine[reference];
+    if (pr.flag !== 'ok' || members.some((m) => r.perTurbine[m].flag !== 'ok')) continue;
+    const sum = members.reduce((acc, m) => acc + r.perTurbine[m].power_kw, 0);
+    list.push({ window: r.window.id, direction_deg: r.window.direction_deg, speed_ms: r.speed_ms, steered: r.state === 'steered', power_kw: sum, reference_kw: pr.power_kw, centre_m: NaN });
+  }
+  return { turbine: members.join(GROUP_JOIN), reference, level_deg: L, result: powerGain(list, edges, s, s.minWindowsPerState ?? 2) };
+}
+
 export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], reference: string, downstream: string[], s: PowerSettings): PowerAnalysis {
   const ref = turbines.find((t) => t.id === reference)!;
   const rows = windows.map((w) => {
@@ -109,6 +132,7 @@ export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], r
       gains.push({ turbine: d, reference: ref.id, level_deg: L, result: powerGain(list, edges, s, s.minWindowsPerState ?? 2) });
     }
   }
+  if (downstream.length >= 2) for (const L of levels) gains.push(groupGain(rows, downstream, ref.id, L, edges, s));
   const flagged = rows.reduce((n, r) => n + Object.values(r.perTurbine).filter((p) => p.flag !== 'ok').length, 0);
   const assumptions = [
     'power gain: the flow is stationary within each wind-direction and wind-speed bin (windows with and without yaw offset differ only by the yaw offset)',

@@ -71,7 +71,13 @@ export interface RunManifest {
   segments?: SegmentSummary;
   outputs: OutputRecord[];
   timings_s: Record<string, number>;
+  /** The process's peak resident memory at the end of the run, bytes (the whole process's, since it started). */
   peakRss_bytes: number;
+  /**
+   * The same peak when the run started: where it equals peakRss_bytes, the process reached its peak before the run
+   * (other work in the same process: the demo's simulation, an earlier run) and the run's own peak is at most that.
+   */
+  peakRssAtStart_bytes?: number;
   samplesPerSecond: number;
   assumptions: string[];
   warnings: string[];

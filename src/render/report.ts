@@ -80,7 +80,7 @@ export function reportHtml(manifest: RunManifest, extras: ReportExtras = {}): st
     ['Samples accepted', `${num(tot.accepted)}${tot.read ? ` (${((100 * tot.accepted) / tot.read).toFixed(1)} %)` : ''}`],
     ['Throughput', `${num(Math.round(m.samplesPerSecond))} samples/s`],
     ...(Number.isFinite(m.timings_s.total) ? [['Run time', `${secondsText(m.timings_s.total)} s (manifest: timings_s.total)`] as [string, string]] : []),
-    ...(m.peakRss_bytes > 0 ? [['Peak memory', `${mibText(m.peakRss_bytes)} MiB (manifest: peakRss_bytes)`] as [string, string]] : []),
+    ...(m.peakRss_bytes > 0 ? [['Peak memory', peakText(m)] as [string, string]] : []),
     ['Tool', `${esc(m.tool.name)} ${esc(m.tool.version)}`],
   ];
   section('summary', 'Run summary', `<dl class="facts">${facts.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${v}</dd>`).join('')}</dl>`);
@@ -349,6 +349,15 @@ export function secondsText(s: number): string {
 }
 
 /** Bytes as MiB with one decimal. */
+/** The run's peak memory, or an upper bound when the process had reached its peak before the run started. */
+function peakText(m: RunManifest): string {
+  const before = m.peakRssAtStart_bytes;
+  if (before !== undefined && before >= m.peakRss_bytes) {
+    return `at most ${mibText(m.peakRss_bytes)} MiB: the process reached this peak before the run (earlier work in the same process, such as the demo's simulation or another campaign) (manifest: peakRss_bytes, peakRssAtStart_bytes)`;
+  }
+  return `${mibText(m.peakRss_bytes)} MiB (manifest: peakRss_bytes)`;
+}
+
 export function mibText(bytes: number): string {
   return (bytes / 2 ** 20).toFixed(1);
 }

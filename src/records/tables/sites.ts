@@ -33,9 +33,9 @@ export const turbineWakesTable: Table = {
 export const powerGainTable: Table = {
   id: 'power-gain',
   path: 'power/power_gain.csv',
-  row: 'one downstream turbine, yaw-offset level and wind-direction and wind-speed bin, then its combined row (bins "all")',
+  row: 'one compared turbine (or the group of them), yaw-offset level and wind-direction and wind-speed bin, then its combined row (bins "all")',
   columns: [
-    col('turbine', 'text', TEXT, 'downstream turbine'),
+    col('turbine', 'text', TEXT, 'compared turbine; with two or more, a last group "TR-1+TR-2+..." of their summed power (the net gain of the group, the yawed turbines\' own losses included)'),
     col('reference', 'text', TEXT, 'reference turbine of the energy ratio'),
     col('level', 'deg', dec(3), 'yaw-offset level of the steered windows'),
     col('direction_lo', 'deg', dec(3), 'wind-direction bin, lower edge (from)', site),
