@@ -20,7 +20,7 @@ const point = (z: number, flag: ProfilePoint['flag'] = 'ok'): ProfilePoint => ({
 });
 const profiles = [0, 1].map((i) => ({ instrumentId: 'p<1>', window: win(i), points: [point(40), point(80), point(120, 'too_few_azimuths')] }));
 const nac: NacelleWindow[] = [0, 1].map((i) => ({
-  instrumentId: 'n', window: win(i), nacelle_deg: 230, distance_m: 250, distance_D: 2.5, hubSpeed_ms: 8, shubSpeed_ms: 0.05, hubSpeedShear_ms: 8.1, shubSpeedShear_ms: 0.05,
+  instrumentId: 'n', window: win(i), nacelle_deg: 230, distance_m: 250, distance_D: 2.5, hubSpeed_ms: 8, shubSpeed_ms: 0.05, speedHeight_m: 100, hubSpeedShear_ms: 8.1, shubSpeedShear_ms: 0.05,
   alpha: 0.2, salpha: 0.01, direction_deg: 225, sdirection_deg: 0.3, yawMisalignment_deg: 5, syawMisalignment_deg: 0.3, induction_a: 0.25, inductionRatio: 0.995,
   freeStream_ms: 8.14, sfreeStream_ms: 0.05, samples: 1000, gates: [], flag: 'ok', reason: '',
 }));

@@ -41,6 +41,8 @@ export interface NacelleGate {
   /** Horizontal speed at hub height: the pair's (2 beams), or the mean of the pairs (4 beams), m/s. */
   hubSpeed_ms: number;
   shubSpeed_ms: number;
+  /** Height above ground of hubSpeed_ms: the pair's (2 beams) or the mean of the pairs' heights (4 beams), metres. */
+  speedHeight_m: number;
   /** 4 beams: V_hub = V_lower (H / z_lower)^alpha, m/s (NaN with 2 beams). */
   hubSpeedShear_ms: number;
   shubSpeedShear_ms: number;
@@ -60,6 +62,11 @@ export interface NacelleWindow {
   distance_D: number;
   hubSpeed_ms: number;
   shubSpeed_ms: number;
+  /**
+   * Height above ground of hubSpeed_ms at the distance, metres: the beam pair's (2 beams: its speed is measured
+   * there, not at the hub, and cannot be carried to the hub without a second pair) or the mean of the pairs' (4 beams).
+   */
+  speedHeight_m: number;
   hubSpeedShear_ms: number;
   shubSpeedShear_ms: number;
   alpha: number;

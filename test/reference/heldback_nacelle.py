@@ -1,7 +1,7 @@
 """Held-back nacelle case: a four-beam forward-looking instrument under changing misalignment and shear, written
 without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_nacelle.py OUTDIR
+Usage: python3 test/reference/heldback_nacelle.py OUTDIR [--two-beams]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
 Invented site "Ottersike" (no real place), flat ground at 0 m. Turbine OS-3 at the origin, hub 95 m, rotor 100 m,
@@ -36,7 +36,8 @@ Expected (expected.json), from the flow written here, per window k = 1..4 (windo
 - yaw misalignment = circular mean of the turbine-series nacelle values in the window minus the wind direction
   (the README's sign: positive when the nacelle is turned clockwise from the wind);
 - hub-height speed at 2.5 D = 250 m upstream: U_inf r(250 m); shear exponent alpha; free stream U_inf;
-- the samples inside the turbine-series gap (to be rejected as no_nacelle_direction) and the junk rows.
+- the samples inside the turbine-series gap (to be rejected as no_nacelle_direction) and the junk rows;
+- with --two-beams: the height of the pair's speed at 250 m upstream (from the rows) and the true speed there.
 """
 import json
 import math
@@ -55,6 +56,11 @@ H, D, CT = 95.0, 100.0, 0.75
 A_IND = (1 - math.sqrt(1 - CT)) / 2
 MOUNT = (1.5, 0.4, 96.5)
 BEAMS = [(17.0, -5.0), (-17.0, 7.0), (-17.0, -5.0), (17.0, 7.0)]
+TWO = "--two-beams" in sys.argv
+if TWO:
+    # --two-beams: one pair, opened asymmetrically (25 and -10 deg) and looking 2 deg down: its speed at 2.5 D is
+    # measured below the hub, at the height the script reports for it (speed_height_m).
+    BEAMS = [(25.0, -2.0), (-10.0, -2.0)]
 RANGES = [80.0, 130.0, 205.0, 260.0, 340.0]
 WIND = {1: 262.0, 2: 355.0, 3: 8.0, 4: 300.0}
 UINF = {1: 8.4, 2: 10.1, 3: 6.9, 4: 9.0}
@@ -154,7 +160,7 @@ t = ANCHOR + 0.37
 b = 0
 gap_rejected = 0
 while t < ANCHOR + 4 * W:
-    az0, el0 = BEAMS[b % 4]
+    az0, el0 = BEAMS[b % len(BEAMS)]
     az, el = az0 + rng.normal(0, 0.2), el0 + rng.normal(0, 0.2)
     psi = interp_yaw(t)
     tilt = tilt_at(t)
@@ -177,7 +183,7 @@ while t < ANCHOR + 4 * W:
             vr, cnr = n[0] * u + n[1] * v + rng.normal(0, 0.1), min(-2.0, -12 + rng.normal(0, 3))
         if ingap:
             gap_rejected += 1
-        rows.append((t, az % 360.0, el, r, vr, cnr, junk, ingap))
+        rows.append((t, az % 360.0, el, r, vr, cnr, junk, ingap, p[2], r * math.cos(math.radians(el)) * math.cos(math.radians(az))))
     b += 1
     t += 0.25 + rng.uniform(-0.05, 0.05)
 
@@ -206,6 +212,21 @@ def circmean(a):
     return float(np.degrees(np.arctan2(np.sin(a).mean(), np.cos(a).mean())) % 360)
 
 
+def speed_height(lo, hi):
+    """Two beams: the height of the pair's speed at 250 m upstream. Per gate the mean height and the mean upstream
+    distance (r cos(el) cos(az) of the reported angles, the README's definition) of the good rows in the window,
+    then linear interpolation in upstream distance between the gates around 250 m."""
+    g = []
+    for r_ in RANGES:
+        sel = [x for x in rows if x[3] == r_ and not x[6] and not x[7] and lo <= x[0] < hi]
+        g.append((float(np.mean([x[9] for x in sel])), float(np.mean([x[8] for x in sel]))))
+    g.sort()
+    for (u0, z0), (u1, z1) in zip(g, g[1:]):
+        if u0 <= 250.0 <= u1:
+            return z0 + (250.0 - u0) / (u1 - u0) * (z1 - z0)
+    return float("nan")
+
+
 exp = []
 for k in (1, 2, 3, 4):
     lo, hi = ANCHOR + (k - 1) * W, ANCHOR + k * W
@@ -213,6 +234,9 @@ for k in (1, 2, 3, 4):
     nac = circmean(ys)
     exp.append(dict(window=k, start_s=lo, wind_deg=WIND[k], nacelle_deg=nac, yaw_misalignment_deg=(nac - WIND[k] + 180) % 360 - 180,
                     hub_speed_ms=UINF[k] * ratio(250.0), free_stream_ms=UINF[k], alpha=ALPHA[k], ratio_250=ratio(250.0)))
+    if TWO:
+        zs = speed_height(lo, hi)
+        exp[-1].update(speed_height_m=zs, speed_at_height_ms=UINF[k] * (zs / H) ** ALPHA[k] * ratio(250.0))
 
 camp = {
     "name": "ottersike-heldback",

@@ -20,6 +20,7 @@ export const nacelleTable: Table = {
     col('distance', 'D', dec(4), 'the same in rotor diameters'),
     col('hub_speed', 'ms', byUnc('hub_speed_se_ms', 4), 'horizontal speed at hub height as measured: the beam pair (2 beams) or the mean of the two pairs (4 beams)'),
     col('hub_speed_se', 'ms', SE, 'its standard uncertainty'),
+    col('speed_height', 'm', dec(2), 'height above ground where hub_speed_ms is measured at the distance: the beam pair\'s (2 beams: no second pair to carry it to the hub height) or the mean of the pairs\' (4 beams; hub_speed_shear_ms is at the hub height)'),
     col('hub_speed_shear', 'ms', byUnc('hub_speed_shear_se_ms', 4), '4 beams: the lower pair\'s speed carried to hub height by the power law V_lower (H / z_lower)^alpha'),
     col('hub_speed_shear_se', 'ms', SE, 'its standard uncertainty'),
     col('alpha', 'one', byUnc('alpha_se', 4), 'power-law shear exponent between the upper and lower pairs (4 beams)'),
