@@ -178,6 +178,23 @@ describe.skipIf(!py.python)(`held-back profilers: a veering, sheared profile${py
   });
 });
 
+const pyNc = debianPython(['numpy', 'netCDF4']);
+
+describe.skipIf(!pyNc.python)(`held-back VAD cone from NetCDF-4${pyNc.python ? '' : ` (skipped: ${pyNc.why})`}`, () => {
+  it('the same rays as NetCDF-4 (time, range) give byte-identical profiles', async () => {
+    // heldback_profiles.py --netcdf writes the cone's rays once more in the scanning-instrument layout (the values
+    // as printed to the CSV file). The CSV run is checked against the script's truth above; the NetCDF door must
+    // hand the profile target the same samples, so the tables must be equal byte for byte.
+    const dir = mkdtempSync(join(tmpdir(), 'wakeplane-heldback-geo-'));
+    const g = spawnSync(pyNc.python!, ['test/reference/heldback_profiles.py', dir, '--netcdf'], { encoding: 'utf8' });
+    expect(g.status, g.stderr).toBe(0);
+    const a = await run(dir);
+    const b = await runCampaign(loadCampaignFile(join(dir, 'campaign-nc.yaml')), { outRoot: join(dir, 'out-nc'), images: false, stages: defaultStages() });
+    expect(b.manifest.samples.perInstrument['cone-7']).toEqual(a.manifest.samples.perInstrument['cone-7']);
+    expect(readFileSync(join(b.runDir, 'profiles', 'cone-7.csv'), 'utf8')).toBe(readFileSync(join(a.runDir, 'profiles', 'cone-7.csv'), 'utf8'));
+  }, 120_000);
+});
+
 interface NacExp { window: number; start_s: number; wind_deg: number; nacelle_deg: number; yaw_misalignment_deg: number; hub_speed_ms: number; free_stream_ms: number; alpha: number }
 
 describe.skipIf(!py.python)(`held-back nacelle instrument: changing misalignment and shear${py.python ? '' : ` (skipped: ${py.why})`}`, () => {

@@ -1,6 +1,6 @@
 """Held-back profiler cases (VAD cone and DBS beams) written without wakeplane's code (numpy only).
 
-Usage: python3 test/reference/heldback_profiles.py OUTDIR
+Usage: python3 test/reference/heldback_profiles.py OUTDIR [--netcdf]
 Writes OUTDIR/campaign.yaml (JSON text, which YAML reads), OUTDIR/data/*.csv and OUTDIR/expected.json.
 
 Invented site "Brackenlow" (no real place), flat ground at 0 m. Wind: horizontally uniform in each window, a
@@ -34,6 +34,9 @@ Expected (expected.json), computed here per window and height bin (nearest centr
 - the junk rows written per instrument (to be rejected, not used);
 - for the inflow reference (cone-7 window 2, dbs-4 window 1): the true wind at the bins' mean heights projected on
   the hub-height direction and a power law fitted to it in log-log.
+With --netcdf (python3-netcdf4) also data/cone7.nc, the cone's rays as written to cone7.csv (same order, values as
+printed there) in the NetCDF-4 layout of scanning instruments (radial velocity and CNR on (time, range), angles on
+time, range on the gates, times in seconds since 1970 as float64), and campaign-nc.yaml reading it instead.
 """
 import json
 import math
@@ -269,3 +272,43 @@ json.dump({"anchor_s": ANCHOR, "window_s": W, "junk": junk, "rows": {"cone-7": l
            "vad": VAD_EXP, "dbs": DBS_EXP,
            "inflow": {"cone-7": inflow_expected(VAD_EXP, 2, DH[2]), "dbs-4": inflow_expected(DBS_EXP, 1, DH[1])}},
           open(os.path.join(out, "expected.json"), "w"), indent=1)
+
+if "--netcdf" in sys.argv:
+    import netCDF4
+
+    def parse_iso(x):
+        return (np.datetime64(x.rstrip("Z"), "ms") - np.datetime64(0, "ms")) / np.timedelta64(1, "s")
+
+    rays = []
+    for r in vad_out:
+        if rays and rays[-1][0][0] == r[0]:
+            rays[-1].append(r)
+        else:
+            rays.append([r])
+    nc = netCDF4.Dataset(os.path.join(out, "data", "cone7.nc"), "w")
+    nc.createDimension("time", len(rays))
+    nc.createDimension("range", len(VAD_R))
+    tv = nc.createVariable("time", "f8", ("time",))
+    tv.units = "seconds since 1970-01-01 00:00:00"
+    av = nc.createVariable("azimuth", "f8", ("time",))
+    av.units = "degrees"
+    ev = nc.createVariable("elevation", "f8", ("time",))
+    ev.units = "degrees"
+    rv = nc.createVariable("range", "f8", ("range",))
+    rv.units = "m"
+    vv = nc.createVariable("radial_velocity", "f4", ("time", "range"), fill_value=-999.0)
+    vv.units = "m s-1"
+    vv.standard_name = "radial_velocity_of_scatterers_away_from_instrument"
+    cv = nc.createVariable("cnr", "f4", ("time", "range"))
+    cv.units = "dB"
+    rv[:] = VAD_R
+    # the values as printed to the CSV file, so both files hold the same samples
+    tv[:] = [parse_iso(iso(ray[0][0])) for ray in rays]
+    av[:] = [float(f"{ray[0][1]:.3f}") for ray in rays]
+    ev[:] = [float(f"{ray[0][2]:.3f}") for ray in rays]
+    vv[:] = [[float(f"{r[4]:.4f}") for r in ray] for ray in rays]
+    cv[:] = [[float(f"{r[5]:.2f}") for r in ray] for ray in rays]
+    nc.close()
+    camp["instruments"][1]["files"] = ["data/cone7.nc"]
+    with open(os.path.join(out, "campaign-nc.yaml"), "w") as f:
+        json.dump(camp, f, indent=1)
