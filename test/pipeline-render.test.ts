@@ -126,6 +126,25 @@ describe('wakeplane render', () => {
     for (const f of ['a.csv', 'b.csv', 'c.csv']) renameSync(join(dataDir, `${f}.away`), join(dataDir, f));
   }, 60_000);
 
+  it('keeps the figures of stages it does not redo (profiles, nacelle, trackers, power gain) as the run drew them', async () => {
+    // A run's figure from a stage whose results are not in the field tables (here a profiler's, written beside the
+    // others as the geometry stage writes it), and a single-window image the current selection does not draw.
+    const m = manifest();
+    writeFileSync(join(runDir, 'images', 'profile_speed_up.svg'), '<svg xmlns="http://www.w3.org/2000/svg"/>');
+    writeFileSync(join(runDir, 'images', 'p5_w2_u_norm.svg'), '<svg xmlns="http://www.w3.org/2000/svg"/>');
+    m.outputs.push({ kind: 'image', path: 'images/profile_speed_up.svg', description: 'profiler up: speed' });
+    m.outputs.push({ kind: 'image', path: 'images/p5_w2_u_norm.svg', plane: 'p5', window: 2, description: 'u/u_inf' });
+    writeFileSync(join(runDir, 'manifest.json'), JSON.stringify(m, null, 2));
+    const r = await renderRunFolder(runDir, { windowImages: 'none' });
+    expect(r.kept).toBe(1); // exact: the one figure of another stage
+    expect(r.removed).toBe(1); // exact: the one window image no longer selected
+    expect(existsSync(join(runDir, 'images', 'profile_speed_up.svg'))).toBe(true);
+    expect(existsSync(join(runDir, 'images', 'p5_w2_u_norm.svg'))).toBe(false);
+    const after = manifest();
+    expect(images(after)).toContain('images/profile_speed_up.svg'); // still listed, so the report shows it
+    expect(readFileSync(join(runDir, 'report.html'), 'utf8')).toContain('images/profile_speed_up.svg');
+  }, 60_000);
+
   it('names a folder that is not a finished run, and leaves a folder wakeplane did not mark alone', async () => {
     await expect(renderRunFolder(join(runDir, 'images'))).rejects.toThrow(/manifest\.json: not a finished run folder/);
     // A copy of the run's manifest in a folder of someone else's (no marker, another campaign name in it).

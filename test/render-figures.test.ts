@@ -21,6 +21,7 @@ import { panelField } from '../src/render/panelField.ts';
 import { planeWindowFigures } from '../src/render/planeImages.ts';
 import { FigureCollector, planePanelsSvg } from '../src/render/runFigures.ts';
 import { ValueHistogram } from '../src/render/runScales.ts';
+import { linePlotSvg } from '../src/render/linePlot.ts';
 import { scalarMapSvg } from '../src/render/scalarMap.ts';
 import { summaryFigures } from '../src/render/summaryPlots.ts';
 import { theme } from '../src/render/theme.ts';
@@ -384,5 +385,24 @@ describe('multi-panel figures of long campaigns', () => {
     const svg = planePanelsSvg(P5D, shown, total, col.runScales(FIGURES_DEFAULT, campaign.planes), campaign);
     expect(svgTexts(svg).map((t) => t.text).join(' ')).toContain(`4 of 37 windows shown, evenly spaced: windows ${idx.join(', ')}`);
     expect((svg.match(/<g class="panel"/g) ?? []).length).toBe(4);
+  });
+});
+
+describe('line plots: intervals that are not symmetric about the value', () => {
+  it('draws a bar from the interval\'s lower to its upper end (bootstrap percentile intervals), not +/- half its width', () => {
+    // Plot area 470 x 300 from y = 50 (no subtitle); y axis fixed to [0, 10], so a value v sits at 350 - 30 v.
+    const svg = linePlotSvg({
+      title: 't', xLabel: 'x', yLabel: 'y', yDomain: [0, 10], xDomain: [0, 2],
+      series: [{ label: 's', kind: 'points', x: [1], y: [2], yInterval: [[1], [7]] }],
+      xDivider: { at: 1.5, label: 'combined' },
+    });
+    const bar = /<path class="errorbar" d="M([\d.]+),([\d.]+)L([\d.]+),([\d.]+)/.exec(svg)!;
+    // Exact to the SVG's rounding (0.01 user units): ends at v = 1 and v = 7, i.e. y = 320 and 140; a symmetric bar
+    // about 2 of half-width 3 would end at -1 and 5 (y = 380 and 200).
+    expect(Number(bar[2])).toBeCloseTo(320, 1);
+    expect(Number(bar[4])).toBeCloseTo(140, 1);
+    expect(svg).toMatch(/<line class="divider" x1="([\d.]+)"/);
+    expect(Number(/<line class="divider" x1="([\d.]+)"/.exec(svg)![1])).toBeCloseTo(72 + 470 * 0.75, 1); // x = 1.5 of [0, 2]
+    expect(svg).toContain('>combined<');
   });
 });

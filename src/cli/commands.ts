@@ -215,7 +215,7 @@ export function commands(y: Argv): Argv {
         const r = await renderRunFolder(a.folder as string, { ...selection, progress });
         const rel = relative(process.cwd(), r.runDir);
         const where = rel && !rel.startsWith('..') ? rel : r.runDir;
-        say(a.quiet as boolean, `rendered ${where}/: ${r.images} figures (SVG and PNG) and report.html in ${r.seconds.toFixed(1)} s${r.removed ? `; ${r.removed} files of images no longer drawn removed` : ''}`);
+        say(a.quiet as boolean, `rendered ${where}/: ${r.images} figures (SVG and PNG) and report.html in ${r.seconds.toFixed(1)} s${r.removed ? `; ${r.removed} files of images no longer drawn removed` : ''}${r.kept ? `; ${r.kept} files of figures it does not redo (profiles, nacelle, trackers, power gain) kept as the run drew them` : ''}`);
       },
     )
     .command(

@@ -4,8 +4,10 @@
  * from the field tables (read back one at a time), the wake analysis is recomputed from those fields and the
  * series files (pure and quick), and the planner's maps are redrawn when the run had them. Only a complete run
  * folder that wakeplane marked for the manifest's campaign is touched (pipeline/outputFolder.ts). The field tables, wake
- * tables and accounting stay as they are; images and report.html are replaced, images the new selection no longer
- * draws are removed (only files the manifest lists as this run's images), and manifest.json lists the new outputs
+ * tables and accounting stay as they are; images and report.html are replaced, images of single windows, condition
+ * bins or the planner that the new selection no longer draws are removed (only files the manifest lists as this
+ * run's images), figures of stages the render does not redo (profiles, nacelle instruments, trackers, the power gain:
+ * their results are not in the field tables) are kept as the run drew them, and manifest.json lists the new outputs
  * with the time of the render.
  */
 import { existsSync, readFileSync, rmSync } from 'node:fs';
@@ -32,6 +34,8 @@ export interface RenderResult {
   manifest: RunManifest;
   images: number;
   removed: number;
+  /** Figure files of stages the render does not redo, kept as the run drew them (listed in the manifest still). */
+  kept: number;
   seconds: number;
 }
 
@@ -61,7 +65,7 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
   const campaign = campaignFromManifest(m, manifestPath);
   const progress = opts.progress;
-  const oldImages = m.outputs.filter((o) => o.kind === 'image').map((o) => o.path);
+  const oldImages = m.outputs.filter((o) => o.kind === 'image');
   const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
   const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
   const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s }, warnings: [...m.warnings] };
@@ -100,11 +104,20 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
     manifest.timings_s.planner = (performance.now() - t) / 1000;
   }
   const fresh = new Set(manifest.outputs.map((o) => o.path));
-  let removed = 0;
-  for (const p of oldImages) {
-    if (fresh.has(p) || !/^(images|plan)\/[^/]+\.(svg|png)$/.test(p)) continue;
-    rmSync(join(runDir, p), { force: true });
-    removed++;
+  let removed = 0, keptAsDrawn = 0;
+  for (const o of oldImages) {
+    if (fresh.has(o.path)) continue;
+    // Drawn or not by the selection (single windows, bins) or by the planner redrawn: gone when not drawn now.
+    const bySelection = o.window !== undefined || o.bin !== undefined || (hadPlan && o.path.startsWith('plan/'));
+    if (bySelection) {
+      if (!/^(images|plan)\/[^/]+\.(svg|png)$/.test(o.path)) continue;
+      rmSync(join(runDir, o.path), { force: true });
+      removed++;
+    } else if (existsSync(join(runDir, o.path))) {
+      // A figure of a stage this render does not redo (its results are not in the field tables): kept, still listed.
+      manifest.outputs.push(o);
+      keptAsDrawn++;
+    }
   }
   // The analysis again may state a warning the run already recorded: keep each once.
   manifest.warnings = [...new Set(manifest.warnings)];
@@ -114,5 +127,5 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   manifest.outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
   writeFileAtomic(manifestPath, JSON.stringify(manifest, null, 2) + '\n');
   progress?.done();
-  return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, seconds: manifest.rendered.seconds };
+  return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, kept: keptAsDrawn, seconds: manifest.rendered.seconds };
 }

@@ -14,6 +14,11 @@ export interface PlotSeries {
   y: ArrayLike<number>;
   /** Half-length of the vertical error bar per point (same unit as y); NaN or absent draws none. */
   yErr?: ArrayLike<number>;
+  /**
+   * The vertical bar's two ends per point instead (same unit as y), for intervals that are not symmetric about the
+   * value (bootstrap percentile intervals); takes the place of yErr where given.
+   */
+  yInterval?: [ArrayLike<number>, ArrayLike<number>];
   /** Half-length of the horizontal error bar per point (same unit as x). */
   xErr?: ArrayLike<number>;
   /** 'line': a polyline through the finite points in the given order; 'points': markers; 'both'. */
@@ -45,6 +50,8 @@ export interface PlotOptions {
   plotHeight?: number;
   /** A horizontal reference line (e.g. zero). */
   yReference?: number;
+  /** A vertical dashed line at `at` (x units) with `label` beside its top: sets apart what is right of it. */
+  xDivider?: { at: number; label: string };
 }
 
 export function linePlotSvg(o: PlotOptions): string {
@@ -75,6 +82,11 @@ export function linePlotSvg(o: PlotOptions): string {
     grid.push(text(left - 8, y, formatTick(t, yStep), { anchor: 'end', dy: 0.35, cls: 'tick' }));
   }
   out.push(`<g class="grid">${grid.join('')}</g>`);
+  if (o.xDivider && o.xDivider.at > xd[0] && o.xDivider.at < xd[1]) {
+    const x = X(o.xDivider.at);
+    out.push(`<line class="divider" x1="${n(x)}" y1="${top}" x2="${n(x)}" y2="${top + ph}" stroke="${theme.muted}" stroke-width="0.9" stroke-dasharray="5 3"/>`);
+    out.push(text(x + 6, top + 14, o.xDivider.label, { size: 10.5, fill: theme.muted, cls: 'divider-label' }));
+  }
   if (o.yReference !== undefined && o.yReference > yd[0] && o.yReference < yd[1]) {
     out.push(`<line x1="${left}" y1="${n(Y(o.yReference))}" x2="${left + pw}" y2="${n(Y(o.yReference))}" stroke="${theme.muted}" stroke-width="0.8"/>`);
   }
@@ -86,19 +98,22 @@ export function linePlotSvg(o: PlotOptions): string {
   o.series.forEach((s, si) => {
     const colour = s.colour ?? theme.series[si % theme.series.length];
     const marker = s.marker ?? (['circle', 'square', 'triangle', 'diamond'] as const)[si % 4];
-    const pts: [number, number, number, number][] = [];
+    // x, y, the vertical bar's ends (NaN: none), the horizontal bar's half-length
+    const pts: [number, number, number, number, number][] = [];
     for (let i = 0; i < s.x.length; i++) {
       const x = s.x[i], y = s.y[i];
-      if (Number.isFinite(x) && Number.isFinite(y)) pts.push([x + (s.xOffset ?? 0), y, s.yErr ? s.yErr[i] : NaN, s.xErr ? s.xErr[i] : NaN]);
+      if (!(Number.isFinite(x) && Number.isFinite(y))) continue;
+      const [lo, hi] = barEnds(s, i);
+      pts.push([x + (s.xOffset ?? 0), y, lo, hi, s.xErr ? s.xErr[i] : NaN]);
     }
     const g: string[] = [];
     if (s.kind !== 'points' && pts.length > 1) {
       g.push(`<path class="series-line" d="M${pts.map(([x, y]) => `${n(X(x))},${n(Y(y))}`).join('L')}" fill="none" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''} stroke-linejoin="round"/>`);
     }
     if (s.kind !== 'line') {
-      for (const [x, y, ey, ex] of pts) {
-        if (Number.isFinite(ey) && ey > 0) {
-          const a = Y(y - ey), b = Y(y + ey), cx = X(x);
+      for (const [x, y, lo, hi, ex] of pts) {
+        if (Number.isFinite(lo) && Number.isFinite(hi) && hi > lo) {
+          const a = Y(lo), b = Y(hi), cx = X(x);
           g.push(`<path class="errorbar" d="M${n(cx)},${n(a)}L${n(cx)},${n(b)}M${n(cx - 3.5)},${n(a)}L${n(cx + 3.5)},${n(a)}M${n(cx - 3.5)},${n(b)}L${n(cx + 3.5)},${n(b)}" stroke="${colour}" stroke-width="1.1" fill="none"/>`);
         }
         if (Number.isFinite(ex) && ex > 0) {
@@ -136,16 +151,30 @@ export function linePlotSvg(o: PlotOptions): string {
   return svgDocument(width, height, o.title, head + out.join('\n') + '\n', defs);
 }
 
+/** The ends of point i's vertical bar: yInterval's, else y -/+ yErr; NaN when it has none. */
+function barEnds(s: PlotSeries, i: number): [number, number] {
+  if (s.yInterval) return [s.yInterval[0][i], s.yInterval[1][i]];
+  const e = s.yErr ? Math.abs(s.yErr[i]) : NaN;
+  return Number.isFinite(e) && e > 0 ? [s.y[i] - e, s.y[i] + e] : [NaN, NaN];
+}
+
 function dataDomain(series: PlotSeries[], axis: 'x' | 'y', includeZero: boolean): [number, number] {
   let lo = Infinity, hi = -Infinity;
   for (const s of series) {
     const v = axis === 'x' ? s.x : s.y;
-    const e = axis === 'x' ? s.xErr : s.yErr;
     for (let i = 0; i < v.length; i++) {
       if (!Number.isFinite(v[i]) || !Number.isFinite(axis === 'x' ? s.y[i] : s.x[i])) continue;
-      const err = e && Number.isFinite(e[i]) ? Math.abs(e[i]) : 0;
-      lo = Math.min(lo, v[i] - err);
-      hi = Math.max(hi, v[i] + err);
+      let a = v[i], b = v[i];
+      if (axis === 'x') {
+        const err = s.xErr && Number.isFinite(s.xErr[i]) ? Math.abs(s.xErr[i]) : 0;
+        a -= err; b += err;
+      } else {
+        const [l, h] = barEnds(s, i);
+        if (Number.isFinite(l)) a = Math.min(a, l);
+        if (Number.isFinite(h)) b = Math.max(b, h);
+      }
+      lo = Math.min(lo, a);
+      hi = Math.max(hi, b);
     }
   }
   if (!Number.isFinite(lo)) return [0, 1];
