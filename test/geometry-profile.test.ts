@@ -197,10 +197,10 @@ describe('a profile as inflow reference', () => {
     // from 270 (u = +S east): the projection on d = -(sin 270, cos 270) = (1, 0) returns S.
     const pts = [60, 100, 160].map((z) => {
       const S = 8 * Math.pow(z / 100, 0.2);
-      return { instrumentId: 'p', height_m: z, radius_m: 50, u_ms: S, v_ms: 0, w_ms: 0, su_ms: 0.05, sv_ms: 0.05, sw_ms: 0.02, speed_ms: S, sspeed_ms: 0.05, direction_deg: 270, sdirection_deg: 0.3, sectors: 12, samples: 600, rmse_ms: 0.05, r2: 0.99, chi2dof: 1, maxGap_deg: 30, flag: 'ok' as const, reason: '' };
+      return { instrumentId: 'p', height_m: z, sampleHeight_m: z, radius_m: 50, u_ms: S, v_ms: 0, w_ms: 0, su_ms: 0.05, sv_ms: 0.05, sw_ms: 0.02, speed_ms: S, sspeed_ms: 0.05, direction_deg: 270, sdirection_deg: 0.3, sectors: 12, samples: 600, rmse_ms: 0.05, r2: 0.99, chi2dof: 1, maxGap_deg: 30, flag: 'ok' as const, reason: '' };
     });
     expect(pts[0].speed_ms).toBeCloseTo(7.223044, 6);
-    const p = inflowFromProfile([...pts, { ...pts[0], height_m: 200, flag: 'too_few_azimuths' }], 270, 100, 'power', 'p');
+    const p = inflowFromProfile([...pts, { ...pts[0], height_m: 200, sampleHeight_m: 200, flag: 'too_few_azimuths' }], 270, 100, 'power', 'p');
     expect(p.ok).toBe(true);
     expect(p.alpha).toBeCloseTo(0.2, 9);
     expect(p.hubSpeed_ms).toBeCloseTo(8, 9);

@@ -15,12 +15,12 @@ import { emptyAccount } from '../src/qc/reasons.ts';
 
 const win = (i: number) => ({ index: i, start_s: 1.8e9 + 600 * i, end_s: 1.8e9 + 600 * (i + 1) });
 const point = (z: number, flag: ProfilePoint['flag'] = 'ok'): ProfilePoint => ({
-  instrumentId: 'p<1>', height_m: z, radius_m: 50, u_ms: 5, v_ms: 5, w_ms: 0, su_ms: 0.1, sv_ms: 0.1, sw_ms: 0.05, speed_ms: 7 + z / 100, sspeed_ms: 0.1,
+  instrumentId: 'p<1>', height_m: z, sampleHeight_m: z, radius_m: 50, u_ms: 5, v_ms: 5, w_ms: 0, su_ms: 0.1, sv_ms: 0.1, sw_ms: 0.05, speed_ms: 7 + z / 100, sspeed_ms: 0.1,
   direction_deg: 225, sdirection_deg: 0.5, sectors: 12, samples: 600, rmse_ms: 0.1, r2: 0.99, chi2dof: 1, maxGap_deg: 30, flag, reason: '',
 });
 const profiles = [0, 1].map((i) => ({ instrumentId: 'p<1>', window: win(i), points: [point(40), point(80), point(120, 'too_few_azimuths')] }));
 const nac: NacelleWindow[] = [0, 1].map((i) => ({
-  instrumentId: 'n', window: win(i), nacelle_deg: 230, distance_m: 250, distance_D: 2.5, hubSpeed_ms: 8, shubSpeed_ms: 0.05, hubSpeedShear_ms: 8.1, shubSpeedShear_ms: 0.05,
+  instrumentId: 'n', window: win(i), nacelle_deg: 230, distance_m: 250, distance_D: 2.5, hubSpeed_ms: 8, shubSpeed_ms: 0.05, speedHeight_m: 100, hubSpeedShear_ms: 8.1, shubSpeedShear_ms: 0.05,
   alpha: 0.2, salpha: 0.01, direction_deg: 225, sdirection_deg: 0.3, yawMisalignment_deg: 5, syawMisalignment_deg: 0.3, induction_a: 0.25, inductionRatio: 0.995,
   freeStream_ms: 8.14, sfreeStream_ms: 0.05, samples: 1000, gates: [], flag: 'ok', reason: '',
 }));

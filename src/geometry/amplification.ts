@@ -82,6 +82,24 @@ export function minCrossingAngle(rows: ArrayLike<number>, k: number): number {
   return k < 2 ? NaN : best;
 }
 
+/**
+ * Smallest crossing angle of K beams as a two-component (w = 0) system sees them: the angle between their
+ * projections on the plane of the first two columns (u, v), degrees in [0, 90]; NaN for fewer than two beams. The
+ * 3-D angle (minCrossingAngle) also counts an elevation difference, which resolves only w: a beam looking down and
+ * one looking up cross at up to 10 degrees more in 3-D than in u, v.
+ */
+export function minCrossingAngleUV(rows: ArrayLike<number>, k: number): number {
+  let best = Infinity;
+  for (let i = 0; i < k; i++)
+    for (let j = i + 1; j < k; j++) {
+      const dot = Math.abs(rows[i * 3] * rows[j * 3] + rows[i * 3 + 1] * rows[j * 3 + 1]);
+      const n = Math.hypot(rows[i * 3], rows[i * 3 + 1]) * Math.hypot(rows[j * 3], rows[j * 3 + 1]);
+      const ang = n > 0 ? (Math.acos(Math.min(1, dot / n)) * 180) / Math.PI : 0;
+      if (ang < best) best = ang;
+    }
+  return k < 2 ? NaN : best;
+}
+
 /** Amplification, conditioning and crossing angle of K >= 1 beams (rows of A in `rows`). */
 export function amplification3(rows: ArrayLike<number>, k: number): Amplification3 {
   const N = normalMatrix(rows, k);

@@ -97,6 +97,27 @@ export class SeriesInterpolator {
   }
 }
 
+/**
+ * Time average of a direction series over [start, end) as the interpolator gives it (linear between rows, the short
+ * way round; NaN in gaps): the circular mean of its values at the midpoints of n equal steps, n = the window's
+ * length in seconds (1 to 100000). For a window that holds no row of a series sparser than the windows, this is the
+ * direction its samples were turned with. NaN when the series gives no value anywhere in the window.
+ */
+export function interpolatedMeanDeg(time: Float64Array, values: Float64Array, start: number, end: number, maxGap_s: number): number {
+  if (!(end > start)) return NaN;
+  const ip = new SeriesInterpolator(time, values, maxGap_s, true);
+  const n = Math.min(100000, Math.max(1, Math.ceil(end - start)));
+  let s = 0, c = 0, k = 0;
+  for (let i = 0; i < n; i++) {
+    const v = ip.at(start + ((i + 0.5) * (end - start)) / n);
+    if (v !== v) continue;
+    s += Math.sin(v * DEG); c += Math.cos(v * DEG); k++;
+  }
+  if (k === 0) return NaN;
+  const d = Math.atan2(s, c) / DEG;
+  return d < 0 ? d + 360 : d;
+}
+
 /** Why a nacelle-frame sample could not be placed (indices into qc/reasons.ts are chosen by the caller). */
 export const NacelleMiss = { none: -1, noDirection: 0, notForward: 1 } as const;
 

@@ -70,7 +70,11 @@ export function readSeries(
     idx[name] = colOf(name);
     if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"${has}`);
   }
-  for (const name of optional) idx[name] = colOf(name);
+  for (const name of optional) {
+    idx[name] = colOf(name);
+    // An optional column the campaign maps by name must be there: read as empty, it would lose every row's value.
+    if (idx[name] < 0 && columns[name] !== undefined) throw new InputError(file, 1, `missing column "${columns[name]}" (columns.${name})${has}`);
+  }
   const rows: { t: number; v: number[]; line: number }[] = [];
   const names = [...required, ...optional];
   for (let i = 1; i < lines.length; i++) {

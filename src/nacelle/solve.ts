@@ -113,7 +113,7 @@ export function solveNacelle(st: CellStats, layout: NacelleLayout, window: Nacel
     const present = means.filter((m): m is BeamMean => m !== null);
     const upstream = present.length ? present.reduce((s, m) => s + m.up * m.n, 0) / present.reduce((s, m) => s + m.n, 0) : NaN;
     const gate: NacelleGate = {
-      range_m: layout.ranges[g], upstream_m: upstream, pairs, alpha: NaN, salpha: NaN, hubSpeed_ms: NaN, shubSpeed_ms: NaN,
+      range_m: layout.ranges[g], upstream_m: upstream, pairs, alpha: NaN, salpha: NaN, hubSpeed_ms: NaN, shubSpeed_ms: NaN, speedHeight_m: NaN,
       hubSpeedShear_ms: NaN, shubSpeedShear_ms: NaN, direction_deg: NaN, sdirection_deg: NaN, ok: pairs.length === groups.length, note: notes.join('; '),
     };
     if (notes.length && present.length) missing.push(`${layout.ranges[g]} m (${notes.join('; ')})`);
@@ -121,10 +121,12 @@ export function solveNacelle(st: CellStats, layout: NacelleLayout, window: Nacel
       if (pairs.length === 1) {
         const p = pairs[0];
         gate.hubSpeed_ms = p.speed_ms; gate.shubSpeed_ms = p.sspeed_ms; gate.direction_deg = p.direction_deg; gate.sdirection_deg = p.sdirection_deg;
+        gate.speedHeight_m = p.height_m;
       } else {
         const [up, lo] = pairs;
         gate.hubSpeed_ms = (up.speed_ms + lo.speed_ms) / 2;
         gate.shubSpeed_ms = Math.hypot(up.sspeed_ms, lo.sspeed_ms) / 2;
+        gate.speedHeight_m = (up.height_m + lo.height_m) / 2;
         const sc = shearCorrection(up.speed_ms, up.sspeed_ms, up.height_m, lo.speed_ms, lo.sspeed_ms, lo.height_m, H);
         gate.alpha = sc.alpha; gate.salpha = sc.salpha; gate.hubSpeedShear_ms = sc.hub; gate.shubSpeedShear_ms = sc.shub;
         // Direction of the mean horizontal wind of the two pairs.
@@ -141,7 +143,7 @@ export function solveNacelle(st: CellStats, layout: NacelleLayout, window: Nacel
   const ok = gates.filter((g) => g.ok && Number.isFinite(g.upstream_m)).sort((a, b) => a.upstream_m - b.upstream_m);
   const base: NacelleWindow = {
     instrumentId: ins.id, window, nacelle_deg: ctx.nacelle_deg, distance_m: target, distance_D: cfg.distance_D,
-    hubSpeed_ms: NaN, shubSpeed_ms: NaN, hubSpeedShear_ms: NaN, shubSpeedShear_ms: NaN, alpha: NaN, salpha: NaN,
+    hubSpeed_ms: NaN, shubSpeed_ms: NaN, speedHeight_m: NaN, hubSpeedShear_ms: NaN, shubSpeedShear_ms: NaN, alpha: NaN, salpha: NaN,
     direction_deg: NaN, sdirection_deg: NaN, yawMisalignment_deg: NaN, syawMisalignment_deg: NaN,
     induction_a: NaN, inductionRatio: NaN, freeStream_ms: NaN, sfreeStream_ms: NaN, samples, gates, flag: 'ok', reason: '',
   };
@@ -172,7 +174,7 @@ export function solveNacelle(st: CellStats, layout: NacelleLayout, window: Nacel
   const direction = (((dirLo + f * wrap180(dirHi - dirLo)) % 360) + 360) % 360;
   const out: NacelleWindow = {
     ...base,
-    hubSpeed_ms: lerp(lo.hubSpeed_ms, hi.hubSpeed_ms), shubSpeed_ms: lerpSd(lo.shubSpeed_ms, hi.shubSpeed_ms),
+    hubSpeed_ms: lerp(lo.hubSpeed_ms, hi.hubSpeed_ms), shubSpeed_ms: lerpSd(lo.shubSpeed_ms, hi.shubSpeed_ms), speedHeight_m: lerp(lo.speedHeight_m, hi.speedHeight_m),
     hubSpeedShear_ms: lerp(lo.hubSpeedShear_ms, hi.hubSpeedShear_ms), shubSpeedShear_ms: lerpSd(lo.shubSpeedShear_ms, hi.shubSpeedShear_ms),
     alpha: lerp(lo.alpha, hi.alpha), salpha: lerpSd(lo.salpha, hi.salpha),
     direction_deg: direction, sdirection_deg: lerpSd(lo.sdirection_deg, hi.sdirection_deg),

@@ -15,7 +15,7 @@ export function nacelleTableCsv(rows: NacelleWindow[]): string {
   for (const r of rows)
     out.push(rowLine(L.window, [
       r.instrumentId, r.window.index, isoTime(r.window.start_s), isoTime(r.window.end_s), r.distance_m, r.distance_D, r.hubSpeed_ms, r.shubSpeed_ms,
-      r.hubSpeedShear_ms, r.shubSpeedShear_ms, r.alpha, r.salpha, r.direction_deg, r.sdirection_deg, r.nacelle_deg, r.yawMisalignment_deg,
+      r.speedHeight_m, r.hubSpeedShear_ms, r.shubSpeedShear_ms, r.alpha, r.salpha, r.direction_deg, r.sdirection_deg, r.nacelle_deg, r.yawMisalignment_deg,
       r.syawMisalignment_deg, r.induction_a, r.inductionRatio, r.freeStream_ms, r.sfreeStream_ms, r.samples, r.flag, r.reason,
     ]));
   return out.join('');

@@ -12,7 +12,7 @@ export type NacelleFlag =
   | 'no_data'
   /** A beam of a pair has no samples at some gates (those gates, or the shear, are left out). */
   | 'missing_beam'
-  /** The turbine series has a gap inside the window: samples there had no nacelle direction. */
+  /** The turbine series (or the instrument's inclinometer series) has a gap inside the window: samples there had no nacelle direction (or tilt). */
   | 'nacelle_series_gap'
   /** The chosen distance lies outside the gates: the nearest gate is reported. */
   | 'distance_outside_gates';
@@ -41,6 +41,8 @@ export interface NacelleGate {
   /** Horizontal speed at hub height: the pair's (2 beams), or the mean of the pairs (4 beams), m/s. */
   hubSpeed_ms: number;
   shubSpeed_ms: number;
+  /** Height above ground of hubSpeed_ms: the pair's (2 beams) or the mean of the pairs' heights (4 beams), metres. */
+  speedHeight_m: number;
   /** 4 beams: V_hub = V_lower (H / z_lower)^alpha, m/s (NaN with 2 beams). */
   hubSpeedShear_ms: number;
   shubSpeedShear_ms: number;
@@ -53,13 +55,18 @@ export interface NacelleGate {
 export interface NacelleWindow {
   instrumentId: string;
   window: { index: number; start_s: number; end_s: number; kind?: string; label?: string };
-  /** Mean nacelle direction over the window from the turbine series, degrees. */
+  /** Mean nacelle direction over the window from the turbine series (its rows in the window, else the series interpolated over it), degrees. */
   nacelle_deg: number;
   /** Upstream distance of the reported values, metres and rotor diameters. */
   distance_m: number;
   distance_D: number;
   hubSpeed_ms: number;
   shubSpeed_ms: number;
+  /**
+   * Height above ground of hubSpeed_ms at the distance, metres: the beam pair's (2 beams: its speed is measured
+   * there, not at the hub, and cannot be carried to the hub without a second pair) or the mean of the pairs' (4 beams).
+   */
+  speedHeight_m: number;
   hubSpeedShear_ms: number;
   shubSpeedShear_ms: number;
   alpha: number;

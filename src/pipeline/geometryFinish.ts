@@ -12,6 +12,7 @@ import { circularMeanDeg, rowsInWindow, type Series } from '../io/series.ts';
 import { inflowFromProfile } from '../profile/inflow.ts';
 import { solveProfile } from '../profile/solve.ts';
 import type { ProfileWindow } from '../profile/types.ts';
+import { interpolatedMeanDeg } from '../geometry/nacelle.ts';
 import { solveNacelle } from '../nacelle/solve.ts';
 import type { NacelleWindow } from '../nacelle/types.ts';
 import { solveTrack } from '../track/solve.ts';
@@ -37,18 +38,22 @@ export interface GeometryResults {
   notes: string[];
 }
 
-/** A turbine-series gap overlapping [start, end), described; '' when none. */
-export function seriesGapIn(s: Series | undefined, start: number, end: number, maxGap_s: number): string {
-  if (!s || s.time.length === 0) return 'no turbine series';
+/**
+ * A gap of the series giving a nacelle instrument its frame (the turbine series, or its inclinometer series:
+ * `what`) overlapping [start, end), described; '' when none.
+ */
+export function seriesGapIn(s: Series | undefined, start: number, end: number, maxGap_s: number, what: 'turbine' | 'inclinometer' = 'turbine'): string {
+  if (!s || s.time.length === 0) return `no ${what} series`;
   const T = s.time;
   const gaps: string[] = [];
   if (T[0] - maxGap_s > start) gaps.push(`series starts ${(T[0] - start).toFixed(0)} s after the window start`);
   if (T[T.length - 1] + maxGap_s < end) gaps.push(`series ends ${(end - T[T.length - 1]).toFixed(0)} s before the window end`);
   const [lo, hi] = rowsInWindow(s, start, end);
   for (let i = Math.max(1, lo); i <= Math.min(T.length - 1, hi); i++) {
-    if (T[i] - T[i - 1] > maxGap_s && T[i] > start && T[i - 1] < end) gaps.push(`no turbine-series row for ${(T[i] - T[i - 1]).toFixed(0)} s`);
+    if (T[i] - T[i - 1] > maxGap_s && T[i] > start && T[i - 1] < end) gaps.push(`no ${what}-series row for ${(T[i] - T[i - 1]).toFixed(0)} s`);
   }
-  return gaps.length ? `nacelle direction missing: ${gaps.join(', ')} (samples there rejected as no_nacelle_direction)` : '';
+  const missing = what === 'turbine' ? 'nacelle direction missing' : 'inclinometer tilt and roll missing';
+  return gaps.length ? `${missing}: ${gaps.join(', ')} (samples there rejected as no_nacelle_direction)` : '';
 }
 
 export class GeometryFinisher {
@@ -104,11 +109,17 @@ export class GeometryFinisher {
         const maxGap = l.instrument.nacelle!.maxGap_s;
         const ts = this.t.turbineSeries;
         const [lo, hi] = ts ? rowsInWindow(ts, w.start_s, w.end_s) : [0, 0];
-        const nacelle = ts ? circularMeanDeg(ts.values.yaw_deg, lo, hi) : NaN;
+        // The mean of the series rows in the window; a window with no row (a series sparser than the windows) takes
+        // the series interpolated over it, as its samples were turned.
+        let nacelle = ts ? circularMeanDeg(ts.values.yaw_deg, lo, hi) : NaN;
+        if (ts && !Number.isFinite(nacelle)) nacelle = interpolatedMeanDeg(ts.time, ts.values.yaw_deg, w.start_s, w.end_s, maxGap);
+        const incl = this.t.orientationSeries[l.instrument.index];
+        const gaps = [seriesGapIn(ts, w.start_s, w.end_s, maxGap), incl ? seriesGapIn(incl, w.start_s, w.end_s, maxGap, 'inclinometer') : '']
+          .filter((g) => g).join('; ');
         this.results.nacelle.push(solveNacelle(st, l, info, {
           hubHeight_m: this.c.turbine.hubHeight_m, rotorDiameter_m: this.c.turbine.rotorDiameter_m,
           ctAt: (v) => thrustCoefficientAt(this.c.turbine.thrustCoefficient as number | [number, number][], v).ct,
-          nacelle_deg: nacelle, seriesGap: seriesGapIn(ts, w.start_s, w.end_s, maxGap),
+          nacelle_deg: nacelle, seriesGap: gaps,
         }));
       }
     }

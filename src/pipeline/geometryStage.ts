@@ -25,7 +25,7 @@ export function geometryStage(): RunStage {
       // Beam-frame slips show up as rejections; say what they most likely mean, once per instrument.
       for (const [id, a] of Object.entries(ctx.manifest.samples.perInstrument)) {
         if (a.rejected.wrong_beam_frame > 0) ctx.manifest.warnings.push(`${id}: ${a.rejected.wrong_beam_frame} samples with beam azimuths more than 90 deg off the nacelle axis (rejected as wrong_beam_frame): were site azimuths given as nacelle-relative? (beamFrame: site if the file holds site azimuths)`);
-        if (a.rejected.no_nacelle_direction > 0) ctx.manifest.warnings.push(`${id}: ${a.rejected.no_nacelle_direction} samples without a nacelle direction (turbine-series gaps; rejected as no_nacelle_direction); the windows concerned are flagged nacelle_series_gap`);
+        if (a.rejected.no_nacelle_direction > 0) ctx.manifest.warnings.push(`${id}: ${a.rejected.no_nacelle_direction} samples without a nacelle direction (gaps of the turbine series or of its inclinometer series; rejected as no_nacelle_direction); the windows concerned are flagged nacelle_series_gap`);
       }
       const out: OutputRecord[] = [];
       const write = (rel: string, text: string, kind: string, description: string) => {

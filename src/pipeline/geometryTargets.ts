@@ -31,6 +31,8 @@ export interface RunTargets {
   track?: TrackTarget;
   /** The turbine series when an instrument needed it (nacelle frames), for the nacelle solver. */
   turbineSeries?: Series;
+  /** Per instrument index: its inclinometer series (orientationSeries), for the nacelle solver's gap check. */
+  orientationSeries: (Series | undefined)[];
 }
 
 /** Builds the targets; `planes` is the plane target (index 0). */
@@ -39,7 +41,7 @@ export function runTargets(c: Campaign, planes: SampleTarget): RunTargets {
   const targets: SampleTarget[] = [planes];
   const targetOf = new Int32Array(I).fill(0);
   const nacelleFrames: (NacelleFrame | undefined)[] = new Array(I).fill(undefined);
-  const out: RunTargets = { targets, targetOf, nacelleFrames, profileIndex: -1, nacelleIndex: -1, trackIndex: -1 };
+  const out: RunTargets = { targets, targetOf, nacelleFrames, profileIndex: -1, nacelleIndex: -1, trackIndex: -1, orientationSeries: new Array(I).fill(undefined) };
   const onNacelle = c.instruments.filter((i) => i.beamFrame === 'nacelle');
   if (onNacelle.length) {
     if (!c.turbine.series) throw new ConfigError(c.sourceFile, 'turbine.series', 'instruments with nacelle-relative beams need the turbine series (time, yaw_deg)');
@@ -47,6 +49,7 @@ export function runTargets(c: Campaign, planes: SampleTarget): RunTargets {
     out.turbineSeries = ts;
     for (const ins of onNacelle) {
       const orient = ins.orientationSeries ? readSeries(ins.orientationSeries.file, ins.orientationSeries.columns, [], ['tilt_deg', 'roll_deg']) : undefined;
+      out.orientationSeries[ins.index] = orient;
       const maxGap = ins.nacelle?.maxGap_s ?? 120;
       nacelleFrames[ins.index] = new NacelleFrame(ts, maxGap, ins.calibration, c.turbine.position, ins.mount, ins.role === 'nacelle', orient);
     }

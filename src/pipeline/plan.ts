@@ -14,7 +14,7 @@ const pc = (x: number) => `${(100 * x).toFixed(1)}%`;
 export function formatPlanSummary(s: PlanSummary, where: string): string {
   const lines = [
     `plan for ${s.campaign} (wind from ${s.direction_deg.toFixed(1)} deg) -> ${where}/plan/`,
-    '  resolved (every target component within the thresholds):',
+    ...(s.planes.length ? ['  resolved (every target component within the thresholds):'] : []),
     ...s.planes.map((p) => `    ${p.planeId.padEnd(8)} ${p.components === 'uvw' ? 'u, v, w' : 'u, v   '} ${p.region} ${pc(p.rotor.all).padStart(6)}  plane ${pc(p.plane.all).padStart(6)}  (u ${pc(p.rotor.u)}, v ${pc(p.rotor.v)}, w ${pc(p.rotor.w)} of the ${p.region})`),
     ...(s.planes.length ? [`    all planes: region ${pc(s.rotor.all)}, whole planes ${pc(s.plane.all)}`] : []),
   ];

@@ -137,6 +137,11 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       const read = ts ? series(() => readSeries(ts.file, ts.columns, required, ['yaw_deg', 'wind_direction_deg', 'power_kw', 'wind_speed_ms', 'status'], { holes: ['yaw_deg'] })) : undefined;
       if (t === stateTurbine(c)) stateSeries = read;
     }
+    // Inclinometer series of nacelle-mounted instruments (run reads them before any output).
+    for (const ins of c.instruments) {
+      const o = ins.orientationSeries;
+      if (o) series(() => readSeries(o.file, o.columns, [], ['tilt_deg', 'roll_deg']));
+    }
     if (c.site.terrain) {
       try {
         await loadTerrain(c);

@@ -5,7 +5,8 @@
  * u, v, w is sqrt(diag((A^T A)^-1)) (geometry/amplification.ts, amplification3); with two and the campaign's w = 0
  * assumption, u and v come from the two-component system (amplification2) and w is not resolved. A component passes
  * when its amplification is at most retrieval.maxAmplification and the cell carries no soft flag: smallest crossing
- * angle below plan.minCrossing_deg (nearly parallel beams), a probe footprint wider than plan.maxFootprintCells, or a
+ * angle below plan.minCrossing_deg (nearly parallel beams; for two beams under w = 0 the angle between their
+ * projections on the u, v plane, minCrossingAngleUV), a probe footprint wider than plan.maxFootprintCells, or a
  * CW focus beyond the validity of the probe formula. A cell is trusted when all three components pass.
  *
  * Each cell gets one category, the first that applies in this order: trusted; fewer than two usable beams (named
@@ -16,7 +17,7 @@
  * with three or more plane scanners; u and v in a horizontal plane (near-horizontal beams do not resolve w) and with
  * two scanners (w = 0 assumed). "Trusted" and the fraction `all` refer to the target components.
  */
-import { amplification2, amplification3, invertSym3, minCrossingAngle, normalMatrix } from '../geometry/amplification.ts';
+import { amplification2, amplification3, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
 import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
 import type { PlanSettings } from './settings.ts';
 
@@ -143,8 +144,7 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
       const a = amplification2(rows, 2);
       t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1];
       t.cond[c] = a.cond;
-      const dot = Math.abs(rows[0] * rows[3] + rows[1] * rows[4] + rows[2] * rows[5]);
-      t.minCrossing_deg[c] = (Math.acos(Math.min(1, dot)) * 180) / Math.PI;
+      t.minCrossing_deg[c] = minCrossingAngleUV(rows, 2);
       const allowed = s.twoInstrumentAssumption === 'w-zero';
       okU = allowed && a.dop[0] <= maxA; okV = allowed && a.dop[1] <= maxA;
     }

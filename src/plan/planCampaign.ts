@@ -106,7 +106,7 @@ export function planCampaign(campaign: Campaign, opts: PlanOptions = {}): PlanRe
   ];
   if (campaign.site.earthCurvature) notes.push('site.earthCurvature is true but the planner does not apply it: check long beams');
   if (scanners.length < 3 && scanners.length > 0) notes.push(`${scanners.length} plane scanner${scanners.length === 1 ? '' : 's'}: w cannot be resolved; the planes are planned for u and v${s.twoInstrumentAssumption === 'w-zero' ? ' (w = 0 assumed)' : ', which needs twoInstrumentAssumption w-zero'}`);
-  if (s.twoInstrumentAssumption === 'w-zero') notes.push('cells with two usable beams: u, v from the two-component system assuming w = 0; w not resolved');
+  if (s.twoInstrumentAssumption === 'w-zero' && planes.length > 0 && scanners.length > 1) notes.push('cells with two usable beams: u, v from the two-component system assuming w = 0; w not resolved');
   if (planes.some((p) => p.geometry.plane.orientation === 'horizontal')) notes.push('horizontal planes: planned for u and v over the rotor shadow band (|y| within the rotor outline at the plane height), not a rotor disk; near-horizontal beams leave w poorly resolved');
   const skipped = Object.keys(s.candidates).filter((id) => !scanners.some((i) => i.id === id));
   if (skipped.length) notes.push(`candidates of ${skipped.join(', ')} ignored: only plane scanners take part in the layout search`);

@@ -7,8 +7,10 @@
  * - nacelle instruments: per gate, the upstream distance along the axis, the heights of the beams and their lateral
  *   half-separation (the span the pair assumes homogeneous), and the amplification of the along- and across-axis
  *   components of a pair at +/- a: 1 / (sqrt2 cos a) and 1 / (sqrt2 sin a) (REFERENCES.md 2, two-beam case);
- * - trackers: per downstream bin, the across-wake span the sweep covers, the largest angle between a beam and the
- *   flow, and the first-order change of the apparent speed per degree of direction error there, tan(beta) pi/180.
+ * - trackers: per downstream bin, over the gates that fall in the tracker's bins (x within half a step of the bin
+ *   centre, the across coordinate within the across bins: the samples the analysis uses), the across-wake span they
+ *   cover, the largest angle between a beam and the flow, and the first-order change of the apparent speed per
+ *   degree of direction error there, tan(beta) pi/180 (from S cos(beta - delta) = S cos beta (1 + delta tan beta)).
  * Straight beams, flat ground, like the plane planner.
  */
 import type { Campaign, Instrument } from '../campaign/types.ts';
@@ -95,6 +97,9 @@ function trackerPlan(c: Campaign, ins: Instrument, dir: number): SingleInstrumen
       const xc = t.x_m.min + ix * t.x_m.step;
       if (ix < 0 || xc > t.x_m.max + 1e-9) continue;
       const across = horizontal ? y : pu;
+      // Only the gates that land in an across bin (as track/target.ts places samples) serve the analysis.
+      const ia = Math.round((across - t.across_m.min) / t.across_m.step);
+      if (ia < 0 || t.across_m.min + ia * t.across_m.step > t.across_m.max + 1e-9) continue;
       const e = bins.get(xc) ?? { lo: Infinity, hi: -Infinity, beta: 0, n: 0 };
       e.lo = Math.min(e.lo, across); e.hi = Math.max(e.hi, across); e.beta = Math.max(e.beta, Math.acos(Math.min(1, cosb)) / DEG); e.n++;
       bins.set(xc, e);
@@ -103,7 +108,7 @@ function trackerPlan(c: Campaign, ins: Instrument, dir: number): SingleInstrumen
   for (let x = t.x_m.min; x <= t.x_m.max + 1e-9; x += t.x_m.step) {
     const e = bins.get(x);
     out.rows.push(e
-      ? { x_m: x, x_D: r2(x / c.turbine.rotorDiameter_m), across_min_m: r2(e.lo), across_max_m: r2(e.hi), rays: e.n, max_beam_angle_deg: r2(e.beta), speed_error_per_deg: r2(Math.tan(e.beta * DEG) * DEG), usable: e.beta <= t.maxBeamAngle_deg ? 'yes' : 'partly (beams beyond maxBeamAngle_deg are masked)' }
+      ? { x_m: x, x_D: r2(x / c.turbine.rotorDiameter_m), across_min_m: r2(e.lo), across_max_m: r2(e.hi), rays: e.n, max_beam_angle_deg: r2(e.beta), speed_error_per_deg: Math.round(Math.tan(e.beta * DEG) * DEG * 1e4) / 1e4, usable: e.beta <= t.maxBeamAngle_deg ? 'yes' : 'partly (beams beyond maxBeamAngle_deg are masked)' }
       : { x_m: x, x_D: r2(x / c.turbine.rotorDiameter_m), rays: 0, usable: 'not reached by the sweep' });
   }
   out.notes.push('speed_error_per_deg: fractional error of the apparent speed per degree of direction error at the widest beam angle (first order)');

@@ -42,7 +42,7 @@ export function cellTableCsv(pt: PlaneTrust, instrumentIds: readonly string[]): 
       c, c % g.grid.ny, Math.floor(c / g.grid.ny),
       g.rotor[3 * c], g.rotor[3 * c + 1], g.rotor[3 * c + 2], g.site[3 * c], g.site[3 * c + 1], g.site[3 * c + 2],
       g.inRotor[c], t.usable[c], t.dopU[c], t.dopV[c], t.dopW[c], t.cond[c], t.minCrossing_deg[c],
-      t.passU[c], t.passV[c], t.passW[c], t.passU[c] & t.passV[c] & t.passW[c],
+      t.passU[c], t.passV[c], t.passW[c], t.passTarget[c],
       trustCategoryName[t.category[c]], cellReasonNames(t.reasons[c]).join(';'),
     ];
     for (const b of pt.beams) row.push(b.elevation_deg[c], b.range_m[c], b.probe_m[c], b.footprint_m[c], b.footprintCells[c], beamFlagNames(b.flags[c]));

@@ -61,7 +61,7 @@ export function gapMiddle(az: number[]): number {
 
 function emptyPoint(id: string, h: number, flag: ProfileFlag, reason: string): ProfilePoint {
   return {
-    instrumentId: id, height_m: h, radius_m: NaN, u_ms: NaN, v_ms: NaN, w_ms: NaN, su_ms: NaN, sv_ms: NaN, sw_ms: NaN,
+    instrumentId: id, height_m: h, sampleHeight_m: NaN, radius_m: NaN, u_ms: NaN, v_ms: NaN, w_ms: NaN, su_ms: NaN, sv_ms: NaN, sw_ms: NaN,
     speed_ms: NaN, sspeed_ms: NaN, direction_deg: NaN, sdirection_deg: NaN, sectors: 0, samples: 0, rmse_ms: NaN, r2: NaN,
     chi2dof: NaN, maxGap_deg: NaN, flag, reason,
   };
@@ -76,7 +76,8 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
   for (let hb = 0; hb < layout.heights.length; hb++) {
     const h = layout.heights[hb];
     const rows: number[] = [], y: number[] = [], wt: number[] = [], cnt: number[] = [], az: number[] = [];
-    let vertical = false, radius = 0, nAll = 0;
+    // Heights: of the slanted sectors (they give u and v; a DBS set's vertical beam reaches a bin from other gates).
+    let vertical = false, radius = 0, height = 0, nSlant = 0, heightAll = 0, nAll = 0;
     for (let s = 0; s <= S; s++) {
       const key = (layout.offset + hb * (S + 1) + s) * I + ins.index;
       const n = st.n[key];
@@ -86,7 +87,8 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
       const sd = Math.max(floor, Math.sqrt(variance));
       const a = st.sx[key] / n, b = st.sy[key] / n, c = st.sz[key] / n;
       rows.push(a, b, c); y.push(m); wt.push(n / (sd * sd)); cnt.push(n);
-      radius += st.spy[key]; nAll += n;
+      radius += st.spy[key]; heightAll += st.spz[key]; nAll += n;
+      if (s < S) { height += st.spz[key]; nSlant += n; }
       if (s === S) vertical = true;
       else az.push(Math.atan2(a, b) * DEG);
     }
@@ -95,14 +97,14 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     const gap = largestGap(az);
     if (K < p.minSectors) {
       const pt = emptyPoint(ins.id, h, 'too_few_azimuths', `${K} sectors with data < ${p.minSectors} needed for the fit and its residual`);
-      out.push({ ...pt, sectors: K, samples: nAll, maxGap_deg: gap });
+      out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
       continue;
     }
     let flag: ProfileFlag = 'ok', reason = '';
     if (p.mode === 'dbs') {
       if (gap >= 135) {
         const pt = emptyPoint(ins.id, h, 'missing_beam', `DBS: ${az.length} slanted beams with data, a gap of ${gap.toFixed(0)} deg around azimuth ${gapMiddle(az).toFixed(0)} (a beam is missing): no fit`);
-        out.push({ ...pt, sectors: K, samples: nAll, maxGap_deg: gap });
+        out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
         continue;
       }
       if (p.pattern?.vertical && !vertical) { flag = 'missing_beam'; reason = 'DBS: the declared vertical beam has no data; w from the slanted beams'; }
@@ -121,7 +123,7 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     const inv = invertSym3(N);
     if (!Number.isFinite(inv[0])) {
       const pt = emptyPoint(ins.id, h, 'singular', 'beam directions do not determine u, v and w');
-      out.push({ ...pt, sectors: K, samples: nAll, maxGap_deg: gap });
+      out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
       continue;
     }
     const U = [0, 1, 2].map((i) => inv[3 * i] * bvec[0] + inv[3 * i + 1] * bvec[1] + inv[3 * i + 2] * bvec[2]);
@@ -140,7 +142,7 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     if (flag === 'ok' && r2 < p.minR2) { flag = 'inhomogeneous'; reason = `R^2 ${r2.toFixed(3)} < ${p.minR2}: a uniform wind does not explain the ring`; }
     const sd = speedDirection(U[0], U[1], inv[0] * scale, inv[4] * scale, inv[1] * scale);
     out.push({
-      instrumentId: ins.id, height_m: h, radius_m: radius / nAll,
+      instrumentId: ins.id, height_m: h, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, radius_m: radius / nAll,
       u_ms: U[0], v_ms: U[1], w_ms: U[2],
       su_ms: Math.sqrt(inv[0] * scale), sv_ms: Math.sqrt(inv[4] * scale), sw_ms: Math.sqrt(inv[8] * scale),
       speed_ms: sd.speed, sspeed_ms: sd.sspeed, direction_deg: sd.dir, sdirection_deg: sd.sdir,

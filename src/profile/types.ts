@@ -22,6 +22,13 @@ export type ProfileFlag =
 export interface ProfilePoint {
   instrumentId: string;
   height_m: number;
+  /**
+   * Mean height above ground of the slanted-beam samples in the fit (those that give u and v; all samples when
+   * only a vertical beam has data), metres: the height the fitted horizontal wind belongs to. The bin centre
+   * (height_m) only labels the bin; gates rarely sit on it, and a DBS set's vertical beam reaches it from other
+   * gates (NaN without samples).
+   */
+  sampleHeight_m: number;
   /** Mean horizontal distance of the samples from the instrument (the ring radius for a VAD), metres. */
   radius_m: number;
   u_ms: number;

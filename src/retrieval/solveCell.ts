@@ -29,7 +29,7 @@
  * Two instruments with the w-zero assumption: u, v from the first two rotor-frame columns of A with w = 0, the same
  * weights; the bias from a non-zero w is not in the uncertainty.
  */
-import { amplification2, amplification3, invertSym3, minCrossingAngle, normalMatrix } from '../geometry/amplification.ts';
+import { amplification2, amplification3, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
 import { MaskReason } from './types.ts';
 
 /** Result of one cell, written into a reusable object. */
@@ -114,7 +114,7 @@ export function solve2(
 ): void {
   reset(out, MaskReason.ok);
   out.maskW = MaskReason.assumedZero;
-  out.minCrossing_deg = minCrossingAngle(geom, K);
+  out.minCrossing_deg = minCrossingAngleUV(geom, K);
   const amp = amplification2(geom, K);
   if (!Number.isFinite(amp.inv[0])) {
     out.maskU = out.maskV = out.maskW = MaskReason.singular;

@@ -1,6 +1,7 @@
 /**
  * One-dimensional Gaussian fit d(c) = A exp(-(c - c0)^2 / (2 s^2)) by Levenberg-Marquardt (wake/levenbergMarquardt.ts),
- * with standard errors from (J^T J)^-1 SSR / (N - 3) as scipy.optimize.curve_fit gives with absolute_sigma = False.
+ * with standard errors from (J^T J)^-1 SSR / (N - p) as scipy.optimize.curve_fit gives with absolute_sigma = False;
+ * and the same with a constant baseline, d(c) = A exp(-(c - c0)^2 / (2 s^2)) + b (fitGaussian1DOffset, p = 4).
  */
 import { levenbergMarquardt } from '../wake/levenbergMarquardt.ts';
 
@@ -8,7 +9,10 @@ export interface Gaussian1DFit {
   amplitude: number;
   centre: number;
   width: number;
-  stderr: [number, number, number];
+  /** Constant baseline b (0 for the three-parameter fit). */
+  offset: number;
+  /** Standard errors of amplitude, centre, width and (four-parameter fit) the baseline; NaN for the baseline otherwise. */
+  stderr: [number, number, number, number];
   r2: number;
   converged: boolean;
 }
@@ -32,5 +36,24 @@ export function fitGaussian1D(c: number[], d: number[], p0?: [number, number, nu
   for (const v of d) mean += v / d.length;
   let sst = 0;
   for (const v of d) sst += (v - mean) ** 2;
-  return { amplitude: A, centre: c0, width: Math.abs(s), stderr: [r.stderr[0], r.stderr[1], r.stderr[2]], r2: sst > 0 ? 1 - r.ssr / sst : NaN, converged: r.converged };
+  return { amplitude: A, centre: c0, width: Math.abs(s), offset: 0, stderr: [r.stderr[0], r.stderr[1], r.stderr[2], NaN], r2: sst > 0 ? 1 - r.ssr / sst : NaN, converged: r.converged };
+}
+
+/** The Gaussian with a constant baseline b, started from p0 = [A, c0, s, b]. */
+export function fitGaussian1DOffset(c: number[], d: number[], p0: [number, number, number, number]): Gaussian1DFit {
+  const r = levenbergMarquardt({
+    n: c.length, y: d,
+    model: (p, i, gr) => {
+      const dc = c[i] - p[1];
+      const e = Math.exp((-0.5 * dc * dc) / (p[2] * p[2]));
+      gr[0] = e; gr[1] = (p[0] * e * dc) / (p[2] * p[2]); gr[2] = (p[0] * e * dc * dc) / (p[2] * p[2] * p[2]); gr[3] = 1;
+      return p[0] * e + p[3];
+    },
+  }, [...p0]);
+  const [A, c0, s, b] = r.params;
+  let mean = 0;
+  for (const v of d) mean += v / d.length;
+  let sst = 0;
+  for (const v of d) sst += (v - mean) ** 2;
+  return { amplitude: A, centre: c0, width: Math.abs(s), offset: b, stderr: [r.stderr[0], r.stderr[1], r.stderr[2], r.stderr[3]], r2: sst > 0 ? 1 - r.ssr / sst : NaN, converged: r.converged };
 }

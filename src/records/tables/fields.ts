@@ -65,7 +65,7 @@ export const fieldTable: Table = {
     col('v_amplification', 'one', sig(4), 'error amplification of v', rotor),
     col('w_amplification', 'one', sig(4), 'error amplification of w', rotor),
     col('condition_number', 'one', sig(4), 'condition number of the beam matrix A (2-norm)'),
-    col('min_crossing', 'deg', dec(2), 'smallest angle between two beams used in the cell'),
+    col('min_crossing', 'deg', dec(2), 'smallest angle between two beams used in the cell (u and v from two-component cells with w = 0: between the beams\' projections on the u, v plane)'),
     col('samples', 'count', INT, 'accepted samples used in the cell, after the robust filter'),
     col('instruments', 'count', INT, 'instruments used in the cell'),
     col('u_mask', 'text', TEXT, MASK_MEANING),
