@@ -236,7 +236,7 @@ const windowSchema = z.union([
         .describe('keep rows whose wind direction lies clockwise from "from" to "to", degrees'),
       power_kw: z.object({ min: finite().optional(), max: finite().optional() }).strict().optional().describe('keep rows whose power lies in [min, max], kW'),
       subWindow_s: finite().positive().optional().describe('cut each span into windows of this length, s'),
-      turbine: z.string().min(1).optional().describe('id of the turbine whose series gives the state; default: the first turbine with a series'),
+      turbine: z.string().min(1).optional().describe('id of the turbine whose series gives the state; default: the first turbine with a series other than power.reference'),
     })
     .strict()
     .describe('spans of steady turbine state from the turbine series'),

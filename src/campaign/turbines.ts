@@ -16,12 +16,16 @@ export function turbineOfPlane(c: Pick<Campaign, 'turbines'>, plane: Pick<PlaneS
 }
 
 /**
- * The turbine whose series gives the windows their turbine state (segment windows, yaw-offset condition bins):
- * windows.turbine when given, else the first turbine with a series, else the first turbine.
+ * The turbine whose series gives the windows their turbine state (segment windows, yaw-offset condition bins, the
+ * steered and baseline windows of the power gain): windows.turbine when given, else the first turbine with a series
+ * that is not the power question's reference (power.reference is taken to be unaffected by the yaw offsets, so its
+ * yaw cannot say whether a window was steered), else the first turbine with a series, else the first turbine.
  */
-export function stateTurbine(c: Pick<Campaign, 'turbines' | 'windows'>): Turbine {
+export function stateTurbine(c: Pick<Campaign, 'turbines' | 'windows'> & { power?: { reference?: string } }): Turbine {
   const id = c.windows.kind === 'segments' ? c.windows.turbine : undefined;
-  return (id !== undefined ? turbineById(c, id) : undefined) ?? c.turbines.find((t) => t.series) ?? c.turbines[0];
+  const ref = c.power?.reference;
+  return (id !== undefined ? turbineById(c, id) : undefined)
+    ?? c.turbines.find((t) => t.series && t.id !== ref) ?? c.turbines.find((t) => t.series) ?? c.turbines[0];
 }
 
 /** A plane's frame origin in the site frame, metres (its turbine's tower base unless given). */

@@ -1,12 +1,14 @@
 /**
  * Reading a terrain model (campaign key site.terrain) into a site-frame height grid (geometry/terrain.ts):
- * - GeoTIFF through the `geotiff` library: the first band, its tie point and pixel scale (or an axis-aligned model
- *   transformation), GDAL's no-data value, and the coordinate system from its GeoKeys (ProjectedCSTypeGeoKey or
- *   GeographicTypeGeoKey); pixel centres follow GTRasterTypeGeoKey (area: half a pixel in from the tie point).
+ * - GeoTIFF through the `geotiff` library: the first band, its georeference read from the tags themselves (GeoTIFF
+ *   1.0, section 2.6.1: a tie point with a pixel scale, X = (I - i) Sx + x, Y = -(J - j) Sy + y; or the model
+ *   transformation X = a I + b J + d, Y = e I + f J + h, rotation terms b and e included), GDAL's no-data value,
+ *   and the coordinate system from its GeoKeys (ProjectedCSTypeGeoKey or GeographicTypeGeoKey); pixel centres
+ *   follow GTRasterTypeGeoKey (area, the default: raster coordinates I + 1/2, J + 1/2).
  * - XYZ grid: CSV with a header and columns x, y, z (renamed by `columns`), one row per node of a regular grid
  *   (any order; empty z = no data).
- * A raster in the site frame is used as it is (rows turned north-up). One in WGS84 longitude/latitude or UTM is
- * resampled once onto a regular site-frame grid at its own resolution: the exact transformation (geometry/crs.ts)
+ * A raster in the site frame is used as it is (rows turned north-up). One in WGS84 longitude/latitude or UTM, or a
+ * turned one (rotation terms), is resampled once onto a regular site-frame grid at its own resolution: the exact transformation (geometry/crs.ts)
  * on a lattice of every 8th node, interpolated bilinearly between (the mapping is smooth: well below a millimetre
  * over such a lattice for sites of a few kilometres), then the raster sampled bilinearly at each node.
  *
@@ -23,12 +25,17 @@ import { wgs84ToEnu } from '../geometry/geodetic.ts';
 import { flatTerrain, GridTerrain, type Terrain } from '../geometry/terrain.ts';
 import { splitCsvLine } from './series.ts';
 
-/** A raster in its own coordinates: node (i, j) at (x0 + i dx, y0 + j dy), values row-major, i fastest. */
+/**
+ * A raster in its own coordinates: node (i, j) at (x0 + i dx + j skew[0], y0 + i skew[1] + j dy) (skew absent:
+ * axis-aligned), values row-major, i fastest.
+ */
 export interface Raster {
   x0: number;
   y0: number;
   dx: number;
   dy: number;
+  /** Rotation terms of a turned raster: x per row, y per column (GeoTIFF model transformation b and e). */
+  skew?: [number, number];
   nx: number;
   ny: number;
   values: Float64Array;
@@ -57,17 +64,11 @@ export async function readGeoTiff(path: string): Promise<Raster> {
     throw new InputError(path, undefined, `not a readable GeoTIFF: ${(e as Error).message}`);
   }
   const nx = image.getWidth(), ny = image.getHeight();
-  let origin: number[], res: number[];
-  try {
-    origin = image.getOrigin();
-    res = image.getResolution();
-  } catch {
-    throw new InputError(path, undefined, 'the GeoTIFF has no georeference (tie point and pixel scale, or a model transformation)');
-  }
   const keys = image.getGeoKeys() ?? {};
   const code = (keys.ProjectedCSTypeGeoKey ?? keys.GeographicTypeGeoKey) as number | undefined;
   const pixelIsPoint = keys.GTRasterTypeGeoKey === 2;
   const half = pixelIsPoint ? 0 : 0.5;
+  const [a, b, d, e, f, h] = modelTransformation(path, image.getFileDirectory());
   const rasters = (await image.readRasters({ samples: [0] })) as unknown as ArrayLike<number>[];
   const band = rasters[0];
   const noData = image.getGDALNoData();
@@ -76,12 +77,34 @@ export async function readGeoTiff(path: string): Promise<Raster> {
     const v = band[k];
     values[k] = noData !== null && v === noData ? NaN : v;
   }
-  const out: Raster = { x0: origin[0] + half * res[0], y0: origin[1] + half * res[1], dx: res[0], dy: res[1], nx, ny, values };
+  const out: Raster = { x0: d + half * (a + b), y0: h + half * (e + f), dx: a, dy: f, nx, ny, values };
+  if (b !== 0 || e !== 0) out.skew = [b, e];
   if (code !== undefined && code !== 32767) {
     out.epsg = code;
     out.crs = crsOfEpsg(code);
   }
   return out;
+}
+
+/**
+ * The affine map [a, b, d, e, f, h] from raster coordinates (I, J) to model coordinates, X = a I + b J + d,
+ * Y = e I + f J + h, from the GeoTIFF tags (GeoTIFF 1.0, section 2.6.1). The tags are read directly: the library's
+ * getResolution() drops the rotation terms and, for a model transformation, returns the row step with its sign
+ * flipped (a north-up raster came out upside down).
+ */
+function modelTransformation(path: string, fd: { getValue(tag: 'ModelTiepoint' | 'ModelPixelScale' | 'ModelTransformation'): unknown }): [number, number, number, number, number, number] {
+  const nums = (v: unknown) => (v && typeof (v as ArrayLike<number>).length === 'number' ? Array.from(v as ArrayLike<number>, Number) : undefined);
+  const tie = nums(fd.getValue('ModelTiepoint')), scale = nums(fd.getValue('ModelPixelScale')), m = nums(fd.getValue('ModelTransformation'));
+  if (tie && tie.length === 6 && scale && scale.length >= 2) {
+    const [i, j, , x, y] = tie;
+    return [scale[0], 0, x - i * scale[0], 0, -scale[1], y + j * scale[1]];
+  }
+  if (m && m.length === 16) {
+    if (!(Math.abs(m[0] * m[5] - m[1] * m[4]) > 0)) throw new InputError(path, undefined, 'the GeoTIFF\'s model transformation is singular (ModelTransformationTag)');
+    return [m[0], m[1], m[3], m[4], m[5], m[7]];
+  }
+  if (tie && tie.length > 6) throw new InputError(path, undefined, `the GeoTIFF is georeferenced by ${tie.length / 6} tie points without a pixel scale (a warped raster): reproject it onto a regular grid`);
+  throw new InputError(path, undefined, 'the GeoTIFF has no georeference (tie point and pixel scale, or a model transformation)');
 }
 
 /** XYZ grid text to a raster (site coordinates unless the campaign says otherwise). */
@@ -139,9 +162,22 @@ export function readXyzGrid(path: string, columns: Record<string, string>): Rast
   return { x0: ax.v0, y0: ay.v0, dx: ax.d, dy: ay.d, nx: ax.n, ny: ay.n, values };
 }
 
+/** Coordinates of node (i, j) of a raster, in its own coordinate system. */
+function rasterNode(r: Raster, i: number, j: number): [number, number] {
+  const [bx, ey] = r.skew ?? [0, 0];
+  return [r.x0 + i * r.dx + j * bx, r.y0 + i * ey + j * r.dy];
+}
+
 /** Bilinear value of a raster at (x, y) in its own coordinates; NaN outside or next to no-data. */
 export function rasterValue(r: Raster, x: number, y: number): number {
-  const fx = (x - r.x0) / r.dx, fy = (y - r.y0) / r.dy;
+  let fx: number, fy: number;
+  if (r.skew) {
+    // Fractional node indices: solve [dx b; e dy] (fx, fy) = (x - x0, y - y0).
+    const [b, e] = r.skew, det = r.dx * r.dy - b * e, px = x - r.x0, py = y - r.y0;
+    fx = (r.dy * px - b * py) / det; fy = (r.dx * py - e * px) / det;
+  } else {
+    fx = (x - r.x0) / r.dx; fy = (y - r.y0) / r.dy;
+  }
   if (!(fx >= 0 && fy >= 0 && fx <= r.nx - 1 && fy <= r.ny - 1)) return NaN;
   let i = Math.floor(fx), j = Math.floor(fy);
   if (i === r.nx - 1) i--;
@@ -171,7 +207,7 @@ export function resolveCrs(ref: Pick<TerrainRef, 'file' | 'crs' | 'format'>, r: 
 
 /** A raster in any supported coordinate system as a site-frame terrain (heights in site-frame up). */
 export function rasterToTerrain(r: Raster, crs: RasterCrs, heightOffset_m: number, origin?: { lat_deg: number; lon_deg: number; alt_m: number }): GridTerrain {
-  if (crs.kind === 'site') {
+  if (crs.kind === 'site' && !r.skew) {
     // North-up, east-right in the site frame (a GeoTIFF's rows usually run southwards: dy < 0).
     const flipY = r.dy < 0, flipX = r.dx < 0;
     const heights = new Float64Array(r.nx * r.ny);
@@ -185,16 +221,15 @@ export function rasterToTerrain(r: Raster, crs: RasterCrs, heightOffset_m: numbe
       de: Math.abs(r.dx), dn: Math.abs(r.dy), ne: r.nx, nn: r.ny, heights,
     });
   }
-  if (!origin) throw new RangeError('a WGS84 or UTM raster needs site.origin_wgs84');
+  if (crs.kind !== 'site' && !origin) throw new RangeError('a WGS84 or UTM raster needs site.origin_wgs84');
   const toRaster = siteToRaster(crs, origin);
   // Site-frame extent of the raster: its corners and edge midpoints mapped to the site frame.
   const corners: [number, number][] = [];
-  const xs = [r.x0, r.x0 + ((r.nx - 1) * r.dx) / 2, r.x0 + (r.nx - 1) * r.dx], ys = [r.y0, r.y0 + ((r.ny - 1) * r.dy) / 2, r.y0 + (r.ny - 1) * r.dy];
-  for (const x of xs) for (const y of ys) corners.push(rasterPointToSite(crs, x, y, origin));
+  for (const i of [0, (r.nx - 1) / 2, r.nx - 1]) for (const j of [0, (r.ny - 1) / 2, r.ny - 1]) corners.push(rasterPointToSite(crs, ...rasterNode(r, i, j), origin));
   const eMin = Math.min(...corners.map((c) => c[0])), eMax = Math.max(...corners.map((c) => c[0]));
   const nMin = Math.min(...corners.map((c) => c[1])), nMax = Math.max(...corners.map((c) => c[1]));
   // Spacing: the raster's pixel size in metres (its finer axis).
-  const a = rasterPointToSite(crs, r.x0, r.y0, origin), b = rasterPointToSite(crs, r.x0 + r.dx, r.y0, origin), c = rasterPointToSite(crs, r.x0, r.y0 + r.dy, origin);
+  const a = rasterPointToSite(crs, ...rasterNode(r, 0, 0), origin), b = rasterPointToSite(crs, ...rasterNode(r, 1, 0), origin), c = rasterPointToSite(crs, ...rasterNode(r, 0, 1), origin);
   let step = Math.min(Math.hypot(b[0] - a[0], b[1] - a[1]), Math.hypot(c[0] - a[0], c[1] - a[1]));
   // At most 4 million nodes.
   step = Math.max(step, Math.sqrt(((eMax - eMin) * (nMax - nMin)) / 4e6));
@@ -222,12 +257,12 @@ export function rasterToTerrain(r: Raster, crs: RasterCrs, heightOffset_m: numbe
   return new GridTerrain({ e0: eMin, n0: nMin, de: step, dn: step, ne, nn, heights });
 }
 
-function rasterPointToSite(crs: RasterCrs, x: number, y: number, origin: { lat_deg: number; lon_deg: number; alt_m: number }): [number, number] {
+function rasterPointToSite(crs: RasterCrs, x: number, y: number, origin?: { lat_deg: number; lon_deg: number; alt_m: number }): [number, number] {
+  if (crs.kind === 'site' || !origin) return [x, y];
   if (crs.kind === 'geographic') {
     const p = wgs84ToEnu({ lat_deg: y, lon_deg: x, alt_m: origin.alt_m }, origin);
     return [p[0], p[1]];
   }
-  if (crs.kind === 'site') return [x, y];
   return utmToSite(crs, x, y, origin);
 }
 

@@ -11,11 +11,12 @@ import { ConfigError, InputError } from '../errors.ts';
 import { frameAxes } from '../geometry/site.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { readSeries, type Series } from '../io/series.ts';
-import { analysePower, type PowerAnalysis, type PowerWindow } from '../power/analyse.ts';
+import { analysePower, meanRowYawOffset, type PowerAnalysis, type PowerWindow } from '../power/analyse.ts';
 import { powerGainCsv, windowPowerCsv } from '../power/output.ts';
 import { windowYaw } from '../wake/yawOffset.ts';
 import type { WakeAnalysis } from '../wake/types.ts';
-import { directionForWindow } from '../windows/direction.ts';
+import { directionAt, directionForWindow } from '../windows/direction.ts';
+import { medianInterval } from '../windows/segments.ts';
 import type { WindowPlan } from '../windows/plan.ts';
 import type { RunStage } from './run.ts';
 
@@ -46,6 +47,9 @@ export function powerStage(): RunStage {
         ? plan.all.map((d) => ({ id: d.id, start_s: d.start_s, end_s: d.end_s, level: d.level }))
         : ctx.manifest.windows.map((w) => ({ id: w.index, start_s: w.start_s, end_s: w.end_s, level: w.level_deg ?? NaN }));
       const wake = ctx.shared.wake as WakeAnalysis | undefined;
+      // A row's wind direction: the nearest direction row within the direction series' own interval (at least 60 s).
+      const reach = Math.max(60, dirSeries ? medianInterval(dirSeries) : 0);
+      const rowDirection = (t: number) => directionAt(c, dirSeries, t, reach);
       const state = stateTurbine(c);
       const stateSeries = series.get(state.id);
       const windows: PowerWindow[] = defs.map((d) => {
@@ -57,6 +61,11 @@ export function powerStage(): RunStage {
         return {
           id: d.id, start_s: d.start_s, end_s: d.end_s, direction_deg: direction, level_deg: d.level,
           yawOffset_deg: stateSeries ? windowYaw(stateSeries, d.start_s, d.end_s, direction).yawOffset_deg : NaN,
+          // Each row against the wind direction at its own time (as segment windows pair them): the nacelle follows
+          // the wind, the offset should not.
+          yawThirds_deg: stateSeries && Number.isFinite(d.end_s - d.start_s)
+            ? [0, 1, 2].map((k) => meanRowYawOffset(stateSeries, d.start_s + (k * (d.end_s - d.start_s)) / 3, d.start_s + ((k + 1) * (d.end_s - d.start_s)) / 3, rowDirection))
+            : undefined,
           inflowSpeed_ms: speeds.length ? speeds.reduce((x, y) => x + y, 0) / speeds.length : NaN,
           centreAt,
         };

@@ -8,12 +8,15 @@
  * Window state: a segment window's state level (windows/segments.ts); any other window's mean yaw offset of the
  * turbine whose series gives the state (campaign/turbines.ts stateTurbine). Within baselineTolerance_deg of 0 it is a
  * baseline window; otherwise a steered window of its level (other windows: their mean yaw offset rounded to the
- * nearest multiple of levelStep_deg, the campaign's wake.yawBin_deg).
+ * nearest multiple of levelStep_deg, the campaign's wake.yawBin_deg). A window that is not one state is neither
+ * ('unknown', left out): its yaw offset changes inside it (the mean yaw offsets of its thirds differ by more than
+ * levelStep_deg / 2: a yaw step inside it), or its mean lies outside the baseline tolerance but rounds to level 0.
  * Wind direction of a window: the campaign's direction source (windows/direction.ts). Wind speed: the reference
  * turbine's nacelle wind speed (wind_speed_ms) when its series has one, else the window's measured hub-height inflow
  * speed (the wake analysis); windows without either are left out.
  */
-import type { Series } from '../io/series.ts';
+import { wrapDeg180 } from '../geometry/angles.ts';
+import { rowsInWindow, type Series } from '../io/series.ts';
 import { powerGain, type GainEdges, type GainResult, type GainWindow } from './gain.ts';
 import { windowPower, type WindowPower, type WindowPowerSettings } from './windowPower.ts';
 import type { BootstrapSettings } from './bootstrap.ts';
@@ -28,6 +31,8 @@ export interface PowerWindow {
   level_deg: number;
   /** Mean yaw offset of the state turbine in the window (degrees) or NaN. */
   yawOffset_deg: number;
+  /** Mean yaw offsets of the state turbine in the window's first, middle and last thirds (degrees, NaN without rows). */
+  yawThirds_deg?: readonly number[];
   /** Measured hub-height inflow speed of the window, m/s (NaN when none). */
   inflowSpeed_ms: number;
   /** Measured wake centre at each turbine (by id), rotor frame of the turbine waking it, metres. */
@@ -78,6 +83,29 @@ function autoEdges(values: number[], width: number, circular: boolean): number[]
   return out;
 }
 
+/**
+ * Mean yaw offset (degrees) of a turbine series' rows in [start, end): each row's nacelle direction minus the wind
+ * direction at its time (its own wind_direction_deg, else `directionAt(t)`), wrapped to [-180, 180); NaN without rows.
+ */
+export function meanRowYawOffset(s: Series, start: number, end: number, directionAt: (t: number) => number): number {
+  const [lo, hi] = rowsInWindow(s, start, end);
+  const yaw = s.values.yaw_deg, wd = s.values.wind_direction_deg;
+  if (!yaw) return NaN;
+  let sum = 0, n = 0;
+  for (let i = lo; i < hi; i++) {
+    const dir = wd && Number.isFinite(wd[i]) ? wd[i] : directionAt(s.time[i]);
+    const g = wrapDeg180(yaw[i] - dir);
+    if (Number.isFinite(g)) { sum += g; n++; }
+  }
+  return n ? sum / n : NaN;
+}
+
+/** True when a window's yaw offset changes inside it: its thirds' mean yaw offsets differ by more than half a level step. */
+function mixedWindow(w: PowerWindow, s: PowerSettings): boolean {
+  const t = (w.yawThirds_deg ?? []).filter(Number.isFinite);
+  return t.length >= 2 && Math.max(...t) - Math.min(...t) > s.levelStep_deg / 2;
+}
+
 /** Separator of the turbine ids of a group row (power_gain.csv `turbine`). */
 export const GROUP_JOIN = '+';
 
@@ -102,15 +130,19 @@ function groupGain(rows: { window: PowerWindow; state: 'baseline' | 'steered' | 
 
 export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], reference: string, downstream: string[], s: PowerSettings): PowerAnalysis {
   const ref = turbines.find((t) => t.id === reference)!;
+  let mixed = 0;
   const rows = windows.map((w) => {
     const perTurbine: Record<string, WindowPower> = {};
     for (const t of turbines) perTurbine[t.id] = windowPower(t.series, w.start_s, w.end_s, s);
     const lvl = Number.isFinite(w.level_deg) ? w.level_deg : w.yawOffset_deg;
-    const state: 'baseline' | 'steered' | 'unknown' = !Number.isFinite(lvl) ? 'unknown' : Math.abs(lvl) <= s.baselineTolerance_deg ? 'baseline' : 'steered';
+    let state: 'baseline' | 'steered' | 'unknown' = !Number.isFinite(lvl) ? 'unknown' : Math.abs(lvl) <= s.baselineTolerance_deg ? 'baseline' : 'steered';
+    if (!Number.isFinite(w.level_deg) && state !== 'unknown' && mixedWindow(w, s)) { state = 'unknown'; mixed++; }
     const nacelle = perTurbine[ref.id].windSpeed_ms;
     const speed = Number.isFinite(nacelle) ? nacelle : w.inflowSpeed_ms;
     // Segment windows carry their level; other windows take their mean yaw offset to the nearest multiple of levelStep_deg.
-    const level = Number.isFinite(w.level_deg) ? w.level_deg : state === 'steered' ? Math.round(lvl / s.levelStep_deg) * s.levelStep_deg : NaN;
+    let level = Number.isFinite(w.level_deg) ? w.level_deg : state === 'steered' ? Math.round(lvl / s.levelStep_deg) * s.levelStep_deg : NaN;
+    // Outside the baseline tolerance yet nearest level 0: neither state (mostly a transition's tail).
+    if (state === 'steered' && level === 0) { state = 'unknown'; level = NaN; mixed++; }
     return { window: w, state, level_deg: level, speed_ms: speed, perTurbine };
   });
   const edges: GainEdges = {
@@ -143,6 +175,7 @@ export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], r
     `bootstrap: ${s.replicates} replicates, percentile intervals at ${(100 * s.confidence).toFixed(0)} %, seed ${s.seed} (Efron & Tibshirani 1993)`,
     `${flagged} turbine-windows flagged and left out (power/window_power.csv names file and line)`,
   ];
+  if (mixed) notes.push(`${mixed} windows not in one yaw state (a yaw step inside the window, or a mean offset between baseline and the first level) left out`);
   if (!levels.length) notes.push('no window with a yaw offset: no gain to compute');
   if (!rows.some((r) => r.state === 'baseline')) notes.push('no window without yaw offset: no baseline');
   return { reference: ref.id, edges, windows: rows, gains, assumptions, notes };

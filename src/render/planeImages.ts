@@ -75,9 +75,10 @@ function baseOptions(field: FieldResult, campaign: Campaign, view: View | undefi
  * @param wake the wake analysis of this plane and window, if any (its deficit may be empty: completed from the inflow)
  * @param scales the run's shared scales; without them each figure takes its own range
  */
-export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, scales?: RunScales, geometry = true): FigureSpec[] {
+export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | undefined, campaign: Campaign, scales?: RunScales, geometry = true, siteRows?: readonly WakePlaneWindow[]): FigureSpec[] {
   const D = campaign.turbine.rotorDiameter_m;
-  const p = panelField(field, wake);
+  // Several turbines: the wake tracks of every turbine's view of this field (render/turbineMarks.ts siteTracks).
+  const p = panelField(field, wake, siteRows?.length ? { campaign, rows: siteRows } : undefined);
   const view = field.orientation === 'horizontal' ? horizontalView(field.grid, [p.hasData], campaign) : undefined;
   const base = baseOptions(field, campaign, view);
   const win = field.window.index;

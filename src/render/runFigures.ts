@@ -126,10 +126,23 @@ export async function renderRunFigures(i: RunFiguresInput): Promise<OutputRecord
       ...(analysis?.rows ?? []).map((r) => [key(r.planeId, r.window.index, false), r] as const),
       ...(i.ensembleRows ?? []).map((r) => [key(r.planeId, r.window.index, true), r] as const),
     ]);
+    // Several turbines: every turbine's view of a field is a row "plane@turbine" (the plane's own turbine keeps the
+    // plane's id); the window's map draws all their wakes.
+    const site = new Map<string, WakePlaneWindow[]>();
+    if (campaign.turbines.length > 1) {
+      for (const [r, ens] of [...(analysis?.rows ?? []).map((r) => [r, false] as const), ...(i.ensembleRows ?? []).map((r) => [r, true] as const)]) {
+        if (r.turbineId === undefined) continue;
+        const k = key(r.planeId.split('@')[0], r.window.index, ens);
+        site.set(k, [...(site.get(k) ?? []), r]);
+      }
+    }
     const want = (_pid: string, k: number, ens: boolean) => windowSelected(ens ? (settings.binImages ?? 'none') : settings.windowImages, k);
     for await (const f of i.windowFields(want)) {
       const ens = f.window.kind === 'ensemble';
-      for (const fig of planeWindowFigures(f, rows.get(key(f.planeId, f.window.index, ens)), campaign, scales, true)) {
+      const views = site.get(key(f.planeId, f.window.index, ens));
+      // The plane's own row, else (a site-frame plane) the first turbine's view: its inflow and yaw in the subtitle.
+      const own = rows.get(key(f.planeId, f.window.index, ens)) ?? views?.[0];
+      for (const fig of planeWindowFigures(f, own, campaign, scales, true, views)) {
         await queue.add(fig.svg, `images/${fig.name}`, { plane: fig.plane, window: fig.window, bin: fig.bin, description: fig.description });
       }
     }
@@ -161,6 +174,8 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
     ...(p.diskCentre ? { diskCentre: p.diskCentre } : {}),
     ...(p.ellipse ? { ellipse: p.ellipse } : {}),
     ...(p.track ? { track: p.track } : {}),
+    // Horizontal planes: the turbines where they stand in this window's rotor frame (its own wind direction).
+    ...(cross ? {} : { turbines: turbineMarks(campaign, plane, p.direction_deg) }),
   }));
   const first = shown[0], last = shown[shown.length - 1];
   const span = windowLabel({ index: 0, start_s: first.start_s, end_s: last.end_s });

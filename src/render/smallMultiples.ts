@@ -35,6 +35,8 @@ export interface Panel {
   diskCentre?: { y: number; z: number };
   ellipse?: { y: number; z: number; ry: number; rz: number };
   track?: { x: number[]; yc: number[] };
+  /** This panel's turbines, where they stand in its own rotor frame (default: the options' turbines). */
+  turbines?: TurbineMark[];
 }
 
 export interface SmallMultiplesOptions {
@@ -111,7 +113,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
       arrowCounts.capped += a.counts.capped;
     }
     if (o.rotor) g.push(rotorLayer(f, o.rotor, 2));
-    for (const t of o.turbines ?? []) g.push(turbineLayer(f, t));
+    for (const t of p.turbines ?? o.turbines ?? []) g.push(turbineLayer(f, t));
     if (p.ellipse) {
       const e = ellipseLayer(f, p.ellipse);
       if (e) (g.push(e), (overlays.ellipse = true));
