@@ -11,7 +11,7 @@ import { loadCampaignFile, campaignJsonSchema } from '../campaign/load.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { OptionError, Problems } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
-import { openStaging } from '../pipeline/outputFolder.ts';
+import { campaignInputs, openStaging } from '../pipeline/outputFolder.ts';
 import { preflight } from '../pipeline/preflight.ts';
 import { defaultCores, PARALLEL_MIN_BYTES, runCampaign, type RunResult } from '../pipeline/run.ts';
 import { formatRunSummary } from './summary.ts';
@@ -258,7 +258,7 @@ export function commands(y: Argv): Argv {
         const { createHash } = await import('node:crypto');
         const { readFileSync } = await import('node:fs');
         const sha = c.sourceFile === '<memory>' ? '' : createHash('sha256').update(readFileSync(c.sourceFile)).digest('hex');
-        const staging = openStaging({ root: outRoot, folder, kind: 'plan', campaign: c.name, campaignSha256: sha, clean: a.clean as boolean });
+        const staging = openStaging({ root: outRoot, folder, kind: 'plan', campaign: c.name, campaignSha256: sha, clean: a.clean as boolean, inputs: campaignInputs(c) });
         let notes: string[];
         let summary: string;
         try {

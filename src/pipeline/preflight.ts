@@ -24,7 +24,7 @@ import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
 import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
-import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
+import { campaignInputs, checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
 export interface PreflightOptions {
   /** Output root (absolute). */
@@ -68,7 +68,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
   const warnings = [...plausibilityWarnings(c)];
   const notes: string[] = [];
   if (opts.output !== false) try {
-    checkTarget({ root: opts.outRoot, folder: opts.folder, kind: opts.kind, campaign: c.name, campaignSha256: '' });
+    checkTarget({ root: opts.outRoot, folder: opts.folder, kind: opts.kind, campaign: c.name, campaignSha256: '', inputs: campaignInputs(c) });
   } catch (e) {
     errors.push(e as Error);
   }

@@ -1,0 +1,111 @@
+/**
+ * Held-back cases for issue 14 (output safety and clear errors), built as a hostile but realistic user would: the
+ * campaign and its data kept inside an earlier result folder, an output root that is a data file, a render of a
+ * result folder whose field table was deleted, a campaign file whose name starts with a dash given after "--". Each
+ * asserts the exact outcome: exit code, one line naming the file or folder, and that the user's files did not move
+ * or change (snapshots before and after).
+ */
+import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { parse, stringify } from 'yaml';
+import { describe, expect, it } from 'vitest';
+import { freshCampaign, manifestOf, runCli, snapshot } from './faults/helpers.ts';
+
+describe('an earlier result that holds what the command reads is not moved', () => {
+  it('campaign and data kept inside the earlier result: refused in one line, nothing moved, no staging folder left', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file], dir)).code).toBe(0);
+    // The user keeps a copy of the campaign and its data inside the result folder and runs it from there.
+    const mine = join(dir, 'out', 'faulty', 'mine');
+    mkdirSync(mine);
+    cpSync(join(dir, 'data'), join(mine, 'data'), { recursive: true });
+    const c = parse(readFileSync(file, 'utf8'));
+    c.output.dir = '../..';
+    writeFileSync(join(mine, 'campaign.yaml'), stringify(c));
+    const before = snapshot(join(dir, 'out'));
+    const r = await runCli(['run', 'campaign.yaml'], mine);
+    expect(r.code).toBe(1);
+    // Before the fix the earlier result (with the user's campaign and data in it) was renamed to .replaced-...
+    expect(r.stderr).toBe(
+      'wakeplane: ..: holds campaign.yaml, which this command reads; left alone. Move your files out of the result folder or choose another output.dir (--out)\n',
+    );
+    expect(snapshot(join(dir, 'out'))).toEqual(before); // nothing renamed, no staging folder
+    expect(readdirSync(join(dir, 'out'))).toEqual(['faulty']);
+  });
+
+  it('only the data inside the earlier result (campaign outside): refused, the data file named', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file], dir)).code).toBe(0);
+    mkdirSync(join(dir, 'out', 'faulty', 'raw'));
+    cpSync(join(dir, 'data', 'c.csv'), join(dir, 'out', 'faulty', 'raw', 'c.csv'));
+    const c = parse(readFileSync(file, 'utf8'));
+    c.instruments[2].files = ['out/faulty/raw/c.csv'];
+    writeFileSync(file, stringify(c));
+    const before = snapshot(join(dir, 'out'));
+    for (const cmd of ['check', 'run']) {
+      const r = await runCli([cmd, file], dir);
+      expect(r.code).toBe(1); // check exits 1 exactly when run would stop
+      expect(r.stderr).toContain('out/faulty: holds out/faulty/raw/c.csv, which this command reads; left alone.');
+      expect(r.stderr.trim().split('\n').length).toBe(1);
+    }
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
+  });
+
+  it('a result folder holding nothing the command reads is still replaced as before', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file], dir)).code).toBe(0);
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(0);
+    expect(readdirSync(join(dir, 'out')).filter((n) => n.startsWith('faulty.replaced-')).length).toBe(1);
+  });
+});
+
+describe('an output root that cannot hold folders', () => {
+  it('output.dir naming a data file: check and run exit 1 with one line naming it, before any work; the file unchanged', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.output.dir = 'data/a.csv'; });
+    const before = snapshot(join(dir, 'data'));
+    for (const cmd of ['check', 'run']) {
+      const r = await runCli([cmd, file], dir);
+      expect(r.code).toBe(1);
+      // Before the fix: check said the campaign was fine (exit 0); run failed with a raw "error: EEXIST ... mkdir".
+      expect(r.stderr).toBe('wakeplane: data/a.csv: the output folder (output.dir) is a file, not a folder; nothing written. Choose another output.dir (--out)\n');
+    }
+    expect(snapshot(join(dir, 'data'))).toEqual(before);
+  });
+
+  it('output.dir below a data file: the same one line, naming the file in the way', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.output.dir = 'data/a.csv/results'; });
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('wakeplane: data/a.csv: the output folder (output.dir) is a file, not a folder; nothing written. Choose another output.dir (--out)\n');
+  });
+});
+
+describe('render of a result folder with a deleted field table', () => {
+  it('one line naming the missing table, exit 1, nothing redrawn', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file], dir)).code).toBe(0);
+    const runDir = join(dir, 'out', 'faulty');
+    const table = manifestOf(runDir).outputs.find((o: { kind: string; path: string }) => o.path.startsWith('fields/') && o.path.endsWith('.csv')).path;
+    rmSync(join(runDir, table));
+    const before = snapshot(runDir);
+    const r = await runCli(['render', 'out/faulty'], dir);
+    expect(r.code).toBe(1);
+    // Before the fix: "wakeplane: error: ENOENT: no such file or directory, open ..." and the --debug hint.
+    expect(r.stderr).toBe(`wakeplane: ${join(runDir, table)}: field table listed in the manifest is missing; nothing redrawn\n`);
+    expect(snapshot(runDir)).toEqual(before);
+  });
+});
+
+describe('command-line conventions', () => {
+  it('"--" ends the options: a campaign file named with a leading dash runs', async () => {
+    const { dir, file } = await freshCampaign();
+    const dashed = join(dir, '-campaign ü.yaml');
+    writeFileSync(dashed, readFileSync(file));
+    const r = await runCli(['run', '--', '-campaign ü.yaml'], dir);
+    // Before the fix: "Not enough non-option arguments: got 0, need at least 1" (the POSIX "--" was not honoured).
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(existsSync(join(dir, 'out', 'faulty', 'manifest.json'))).toBe(true);
+  });
+});
