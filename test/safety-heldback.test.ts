@@ -5,6 +5,7 @@
  * asserts the exact outcome: exit code, one line naming the file or folder, and that the user's files did not move
  * or change (snapshots before and after).
  */
+import { spawn } from 'node:child_process';
 import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parse, stringify } from 'yaml';
@@ -108,4 +109,30 @@ describe('command-line conventions', () => {
     expect(r.code).toBe(0);
     expect(existsSync(join(dir, 'out', 'faulty', 'manifest.json'))).toBe(true);
   });
+});
+
+describe('interrupting a shard run (run --partial)', () => {
+  const bin = join(import.meta.dirname, '..', 'bin', 'wakeplane.js');
+  it('SIGINT while the partial file is written: its temporary file is removed, one line, exit 130', async () => {
+    const { dir, file } = await freshCampaign();
+    // c.csv made 40 times longer (the record repeated, shifted by 600 s each time), so the shard runs long enough
+    // to be interrupted while it writes.
+    const lines = readFileSync(join(dir, 'data', 'c.csv'), 'utf8').trimEnd().split('\n');
+    const rows = lines.slice(1);
+    const out = [lines[0]];
+    for (let k = 0; k < 40; k++) for (const r of rows) out.push(`${(Number(r.slice(0, r.indexOf(','))) + 600 * k).toFixed(3)}${r.slice(r.indexOf(','))}`);
+    writeFileSync(join(dir, 'data', 'c.csv'), out.join('\n') + '\n');
+    const child = spawn(process.execPath, [bin, 'run', file, '--partial', 'p.wpart', '--files', 'data/c.csv'], { cwd: dir, stdio: ['ignore', 'pipe', 'pipe'] });
+    let stderr = '';
+    child.stderr.on('data', (d) => (stderr += d));
+    const exited = new Promise<number | null>((res) => child.on('close', (c) => res(c)));
+    const writing = () => readdirSync(dir).filter((n) => n.startsWith('p.wpart.writing-'));
+    for (let k = 0; k < 800 && !writing().length; k++) await new Promise((r) => setTimeout(r, 25));
+    expect(writing().length).toBe(1);
+    child.kill('SIGINT');
+    expect(await exited).toBe(130);
+    // Before the fix: "nothing unfinished to remove" and p.wpart.writing-<pid> left behind for good.
+    expect(stderr).toMatch(/^wakeplane: interrupted by SIGINT; removed the unfinished p\.wpart\.writing-\d+; no result was written\n$/);
+    expect(readdirSync(dir).sort()).toEqual(['campaign.yaml', 'data']);
+  }, 60_000);
 });
