@@ -5,8 +5,8 @@
  * asserts the exact outcome: exit code, one line naming the file or folder, and that the user's files did not move
  * or change (snapshots before and after).
  */
-import { spawn } from 'node:child_process';
-import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { spawn, spawnSync } from 'node:child_process';
+import { chmodSync, cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parse, stringify } from 'yaml';
 import { describe, expect, it } from 'vitest';
@@ -134,5 +134,33 @@ describe('interrupting a shard run (run --partial)', () => {
     // Before the fix: "nothing unfinished to remove" and p.wpart.writing-<pid> left behind for good.
     expect(stderr).toMatch(/^wakeplane: interrupted by SIGINT; removed the unfinished p\.wpart\.writing-\d+; no result was written\n$/);
     expect(readdirSync(dir).sort()).toEqual(['campaign.yaml', 'data']);
+  }, 60_000);
+});
+
+describe('an output root without write permission', () => {
+  const bin = join(import.meta.dirname, '..', 'bin', 'wakeplane.js');
+  // Root writes into any folder, so the case is run as an unprivileged user: as "nobody" through setpriv when the
+  // tests run as root, else as the user running them.
+  const asRoot = process.getuid?.() === 0;
+  const hasSetpriv = spawnSync('setpriv', ['--version']).status === 0;
+  it.runIf(!asRoot || hasSetpriv)('check and run exit 1 with one line naming the folder; nothing written', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.output.dir = 'locked/results'; });
+    mkdirSync(join(dir, 'locked'));
+    spawnSync('chmod', ['-R', 'a+rwX', dir]);
+    chmodSync(join(dir, 'locked'), 0o555);
+    const cmd = (verb: string) => {
+      const args = [bin, verb, file];
+      const r = asRoot
+        ? spawnSync('setpriv', ['--reuid=65534', '--regid=65534', '--clear-groups', process.execPath, ...args], { cwd: dir, encoding: 'utf8' })
+        : spawnSync(process.execPath, args, { cwd: dir, encoding: 'utf8' });
+      return { code: r.status, stderr: r.stderr };
+    };
+    for (const verb of ['check', 'run']) {
+      const r = cmd(verb);
+      // Before the fix: check exit 0 ("results: locked/results/faulty"), run "error: EACCES: permission denied, mkdir".
+      expect(r.stderr).toBe('wakeplane: locked: the output folder (output.dir) cannot be written here (no write permission); nothing written. Choose another output.dir (--out)\n');
+      expect(r.code).toBe(1);
+    }
+    expect(readdirSync(join(dir, 'locked'))).toEqual([]);
   }, 60_000);
 });

@@ -23,7 +23,7 @@
  *   installs the handlers).
  */
 import { hostname } from 'node:os';
-import { existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { accessSync, constants, existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { basename, dirname, isAbsolute, join, relative, sep } from 'node:path';
 import { OutputError } from '../errors.ts';
 import { removeOnInterrupt } from '../io/cleanup.ts';
@@ -204,7 +204,8 @@ function ownRefusal(path: string, kind: FolderKind, campaign: string): string {
 
 /**
  * Throws OutputError when the output root cannot hold folders: it, or the nearest existing folder above it, is a
- * file (a path through a file fails every write with ENOTDIR or EEXIST).
+ * file (a path through a file fails every write with ENOTDIR or EEXIST), or that folder is not writable by this
+ * process (so `check` fails exactly when the run's first mkdir would).
  */
 export function checkRoot(root: string): void {
   for (let p = root; ; p = dirname(p)) {
@@ -216,6 +217,11 @@ export function checkRoot(root: string): void {
       continue; // not there yet: created by the command
     }
     if (!st.isDirectory()) throw new OutputError(rel(p), 'the output folder (output.dir) is a file, not a folder; nothing written. Choose another output.dir (--out)');
+    try {
+      accessSync(p, constants.W_OK | constants.X_OK);
+    } catch {
+      throw new OutputError(rel(p), 'the output folder (output.dir) cannot be written here (no write permission); nothing written. Choose another output.dir (--out)');
+    }
     return;
   }
 }
