@@ -164,3 +164,20 @@ describe('an output root without write permission', () => {
     expect(readdirSync(join(dir, 'locked'))).toEqual([]);
   }, 60_000);
 });
+
+describe('campaign file errors name the key', () => {
+  it('a key given twice: each repeat named with its line and column', async () => {
+    const { dir, file } = await freshCampaign();
+    const text = readFileSync(file, 'utf8');
+    const lines = text.trimEnd().split('\n').length;
+    writeFileSync(file, `${text.trimEnd()}\nname: other\n"windows": { kind: fixed, length_s: 600 }\n`);
+    const r = await runCli(['check', file], dir);
+    expect(r.code).toBe(1);
+    // Before the fix: "not valid YAML/JSON: Map keys must be unique", naming no key.
+    expect(r.stderr).toBe(
+      `wakeplane: ${file}: 2 problems in the campaign file:\n` +
+        `  ${file}:${lines + 1}:1: duplicate key "name": a key may be given once in a mapping\n` +
+        `  ${file}:${lines + 2}:1: duplicate key "windows": a key may be given once in a mapping\n`,
+    );
+  });
+});

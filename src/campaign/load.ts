@@ -57,7 +57,11 @@ export function parseCampaignText(text: string, file: string): Campaign {
   if (doc.errors.length > 0) {
     const problems = doc.errors.map((err) => {
       const p = err.linePos?.[0];
-      return new ConfigError(file, '', `not valid YAML/JSON: ${err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`, undefined, p ? { line: p.line, col: p.col } : undefined);
+      const at = p ? { line: p.line, col: p.col } : undefined;
+      // The parser names neither the key nor where it first stood: the key is read from the text at the error.
+      const dup = err.code === 'DUPLICATE_KEY' ? /^("[^"\n]*"|'[^'\n]*'|[^:,{}[\]\n]+?)\s*:/.exec(text.replace(/^\uFEFF/, '').slice(err.pos[0]))?.[1] : undefined;
+      if (dup) return new ConfigError(file, '', `duplicate key ${JSON.stringify(dup.replace(/^["']|["']$/g, '').slice(0, 60))}: a key may be given once in a mapping`, undefined, at);
+      return new ConfigError(file, '', `not valid YAML/JSON: ${err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`, undefined, at);
     });
     throw problems.length === 1 ? problems[0] : new ConfigErrors(file, problems);
   }
