@@ -181,3 +181,27 @@ describe('campaign file errors name the key', () => {
     );
   });
 });
+
+describe('simulate never writes over files it did not write', () => {
+  it('a campaign naming the user\'s own data: refused in one line, every file unchanged; its own files are redone', async () => {
+    const { dir, file } = await freshCampaign();
+    // The copied data carry no record of the simulator: to wakeplane they are the user's measurements.
+    writeFileSync(join(dir, 'data', 'a.csv'), 'my own measurements\n');
+    const before = snapshot(dir);
+    const r = await runCli(['simulate', file], dir);
+    expect(r.code).toBe(1);
+    // Before the fix: "wrote 5 files", and data/a.csv replaced by synthetic samples.
+    // (the first file in the campaign's order is named, the others counted)
+    expect(r.stderr).toBe('wakeplane: data/turbine.csv: exists and was not written by wakeplane simulate (and 4 more files in its way); left alone, nothing simulated. Move it away or name other files in the campaign\n');
+    expect(snapshot(dir)).toEqual(before);
+    // With the data out of the way the simulator writes them, and may write them again (they are its own)...
+    rmSync(join(dir, 'data'), { recursive: true });
+    expect((await runCli(['simulate', file, '--quiet'], dir)).code).toBe(0);
+    expect((await runCli(['simulate', file, '--quiet'], dir)).code).toBe(0);
+    // ...but not once the user has changed one of them.
+    writeFileSync(join(dir, 'data', 'b.csv'), readFileSync(join(dir, 'data', 'b.csv'), 'utf8') + '1772367000.000,b,10,1,300,1.0,0.0\n');
+    const again = await runCli(['simulate', file], dir);
+    expect(again.code).toBe(1);
+    expect(again.stderr).toBe('wakeplane: data/b.csv: was written by wakeplane simulate but has changed since; left alone, nothing simulated. Move it away or name other files in the campaign\n');
+  });
+});
