@@ -205,3 +205,24 @@ describe('simulate never writes over files it did not write', () => {
     expect(again.stderr).toBe('wakeplane: data/b.csv: was written by wakeplane simulate but has changed since; left alone, nothing simulated. Move it away or name other files in the campaign\n');
   });
 });
+
+describe('a data file cut short in its last row', () => {
+  it('the cut falls inside the last number, which still reads: warned, naming instrument and file; the row kept', async () => {
+    const { dir, file } = await freshCampaign();
+    const path = join(dir, 'data', 'c.csv');
+    const text = readFileSync(path, 'utf8');
+    // Cut inside the last row's CNR (e.g. "-19.08" -> "-19"): the row still parses, with a wrong value.
+    const cut = text.slice(0, text.trimEnd().length - 3);
+    expect(cut.endsWith('\n')).toBe(false);
+    writeFileSync(path, cut);
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(0);
+    const rows = cut.split('\n').length - 1; // data rows: lines after the header, the last one without its break
+    // Before the fix: no word; the cut row was accepted with its shortened value.
+    const last = cut.slice(cut.lastIndexOf('\n') + 1);
+    const warning = `instrument c, data/c.csv: the file ends without a line break: its last row ("\u2026${last.slice(-40)}") may have been cut short (a copy or write interrupted?); read as it stands`;
+    expect(r.stdout).toContain(`warning: ${warning}\n`);
+    expect(manifestOf(join(dir, 'out', 'faulty')).warnings).toContain(warning);
+    expect(manifestOf(join(dir, 'out', 'faulty')).samples.perInstrument.c.read).toBe(rows); // the cut row read (and counted) as it stands
+  });
+});
