@@ -25,6 +25,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
+import { MIN_DOF, typeAFactor } from '../src/retrieval/budget.ts';
 
 const SCRIPT = join(import.meta.dirname, 'reference', 'heldback_budget.py');
 
@@ -75,5 +76,25 @@ describe('held-back coverage of the combined standard uncertainty (numpy-generat
       // Between the junk (below -18 dB) and the signal: within 1 dB of the edge (CNR classes about 1 dB wide).
       expect(Math.abs(db + 18), id).toBeLessThanOrEqual(1);
     }
+  });
+});
+
+describe('the Type A factor of the combined uncertainty (few degrees of freedom)', () => {
+  it('is the variance of Student\'s t, nu / (nu - 2), at the Welch-Satterthwaite degrees of freedom', () => {
+    // scipy.stats.t(nu).var() (scipy 1.x, printed 2026-12-03): nu 3 -> 3.0, 4 -> 2.0, 6 -> 1.5, 10 -> 1.25,
+    // 30 -> 1.0714285714285714 (JCGM 101:2008, 6.4.9.4: the t distribution's standard deviation is sqrt(nu / (nu - 2)) s).
+    const ref: [number, number][] = [[3, 3.0], [4, 2.0], [6, 1.5], [10, 1.25], [30, 1.0714285714285714]];
+    for (const [nu, v] of ref) {
+      // One input: a = u^2, ws = a^2 / nu gives nu back (JCGM 100:2008, G.4.1, eq. G.2b); exact to rounding.
+      const a = 0.04;
+      expect(typeAFactor(a, (a * a) / nu)).toBeCloseTo(v, 12);
+    }
+    // Two inputs with u1^2 = 0.03 (nu 4) and u2^2 = 0.01 (nu 9): nu_eff = 0.04^2 / (0.03^2 / 4 + 0.01^2 / 9) =
+    // 0.0016 / 0.000236111 = 6.776 (hand-worked), factor 6.776 / 4.776 = 1.4188.
+    expect(typeAFactor(0.04, 0.03 ** 2 / 4 + 0.01 ** 2 / 9)).toBeCloseTo(6.7765 / 4.7765, 3);
+    // Below MIN_DOF (3) the factor stays at that of 3 degrees of freedom; no Type A part: 1.
+    expect(MIN_DOF).toBe(3);
+    expect(typeAFactor(0.04, 0.04 * 0.04)).toBe(3);
+    expect(typeAFactor(0, 0)).toBe(1);
   });
 });
