@@ -4,6 +4,8 @@ src/sim or the TypeScript test helpers).
 
   python3 test/reference/heldback_budget.py write DIR --case NAME [--windows N] [--seed S]
       writes DIR/campaign.yaml, DIR/data/<instrument>.csv and DIR/truth.csv
+      [--tau S] [--junk DB]; environment HB_SYNC=1: every scanner on one schedule of aim points (synchronised
+      scanning, the instruments looking at one point together); HB_NO_W=1: no vertical wind (mean and fluctuation)
   python3 test/reference/heldback_budget.py coverage RUNDIR TRUTH.csv
       prints JSON: per component n, share within 2 u_combined and within 2 u_se, binomial standard error,
       and the instruments' resolved CNR limits
@@ -37,13 +39,14 @@ HUB, D = 100.0, 120.0
 T0 = 1.8e9  # a multiple of 600 s
 WIN = 600.0
 DT = 0.05
+SYNC = bool(os.environ.get('HB_SYNC'))
 
 CASES = {
     # Cross plane at 4 D, three scanners, crossing angles near 90 degrees, elevations up to about 30 degrees.
     'wide': dict(plane='cross', tau=1.0, junk=-18.0, c0=-10.0, r0=300.0,
                  ins=[('sw', (300, -280, 2)), ('nw', (260, 300, 1)), ('ea', (760, 40, 3))], point=(0.1, 0.1)),
     # Far scanners: crossing angles about 30-40 degrees, elevations below 8 degrees, so w is poorly resolved.
-    'narrow': dict(plane='cross', tau=1.0, junk=-31.0, c0=-22.0, r0=1000.0,
+    'narrow': dict(plane='cross', tau=1.0, junk=-31.0, c0=-25.0, r0=1000.0,
                    ins=[('fa', (-700, 450, 2)), ('fb', (-700, -450, 1)), ('fc', (1600, 250, 3))], point=(0.05, 0.05)),
     # Horizontal plane at hub height, two scanners crossing at about 60 degrees.
     'horiz': dict(plane='horizontal', tau=1.0, junk=-18.0, c0=-11.0, r0=400.0,
@@ -104,21 +107,22 @@ def write(out, name, windows, seed, tau=None, junk=None):
     rows_all = 0; junk_n = 0
     for i, (iid, pos) in enumerate(case['ins']):
         pos = np.array(pos, float)
-        # Burst schedule.
-        times = []; t = rng.uniform(0, 1)
+        # Burst schedule (sync: every scanner on the same schedule and aim points, looking at one point together).
+        srng = np.random.default_rng(seed + 99) if SYNC else rng
+        times = []; t = srng.uniform(0, 1)
         while t < T:
             for _ in range(3):
-                times.append(t); t += rng.uniform(0.4, 0.7)
-            t += rng.uniform(0.3, 1.0)
+                times.append(t); t += srng.uniform(0.4, 0.7)
+            t += srng.uniform(0.3, 1.0)
         times = np.array([x for x in times if x < T])
         n = len(times)
         # Aim points: a random cell per burst, a random point in it.
         burst = np.arange(n) // 3
-        cb = rng.integers(0, ncell, burst.max() + 1)[burst]
+        cb = srng.integers(0, ncell, burst.max() + 1)[burst]
         iy, js = cb % ny, cb // ny
-        y = g['y'][0] + (iy + rng.uniform(0.05, 0.95, n)) * g['cell'][0]
-        s = g['s'][0] + (js + rng.uniform(0.05, 0.95, n)) * g['cell'][1]
-        off = rng.uniform(-0.8, 0.8, n) * g['half']
+        y = g['y'][0] + (iy + srng.uniform(0.05, 0.95, n)) * g['cell'][0]
+        s = g['s'][0] + (js + srng.uniform(0.05, 0.95, n)) * g['cell'][1]
+        off = srng.uniform(-0.8, 0.8, n) * g['half']
         p = to_site(case, g, y, s, off)
         d = p - pos; r = np.linalg.norm(d, axis=1); nvec = d / r[:, None]
         az = np.degrees(np.arctan2(nvec[:, 0], nvec[:, 1])) % 360
