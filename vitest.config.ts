@@ -6,5 +6,7 @@ export default defineConfig({
     testTimeout: 60_000,
     hookTimeout: 120_000,
     pool: 'forks',
+    // a temporary directory per test file, removed after it (test/setup/tmpdir.ts)
+    setupFiles: ['test/setup/tmpdir.ts'],
   },
 });

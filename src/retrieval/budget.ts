@@ -253,10 +253,13 @@ export interface BudgetCellInput {
 
 /**
  * The budget terms of one cell (squared, per component k and term t at out[k * NT + t]) from its rows, sensitivity H
- * (dims x K) and kept statistics.
+ * (dims x K) and kept statistics. `ws` (optional, 3 values): per component the Welch-Satterthwaite denominator of the
+ * Type A part (noise + sampling), sum_i (H_ki^2 u_i^2)^2 / nu_i, nu_i = N_eff,i - 1 (GUM, JCGM 100:2008, G.4.1,
+ * eq. G.2b); typeAFactor turns it into the factor of the combined uncertainty.
  */
-export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: BudgetCellInput, set: BudgetSettings, noise2: Float64Array, out: Float64Array): void {
+export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: BudgetCellInput, set: BudgetSettings, noise2: Float64Array, out: Float64Array, ws?: Float64Array): void {
   out.fill(0);
+  if (ws) ws.fill(0);
   posA.fill(0); posB.fill(0);
   const K = cell.K, U = inp.U, D = inp.D, sa = inp.secondAxis;
   const DEG = Math.PI / 180;
@@ -304,8 +307,13 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     // Position: this row's mean sample position relative to the cell centre (0 where unknown).
     const dyi = inp.py[i] - inp.yc, dzi = inp.pz[i] - inp.zc;
     const dy = dyi === dyi ? dyi : 0, dz = dzi === dzi ? dzi : 0;
+    // Degrees of freedom of this instrument's Type A variance (scatter + sampling): its effective sample count less
+    // one (n - 1 for independent samples; about the number of independent passes when they are correlated).
+    const ne = st.ne[key];
+    const nu = Math.max(1, (ne > 0 ? ne : n) - 1);
     for (let k = 0; k < cell.dims; k++) {
       const hk = H[k * K + i], h2 = hk * hk;
+      if (ws) { const a = h2 * (scat2 + samp2); ws[k] += (a * a) / nu; }
       out[k * NT] += h2 * scat2;
       out[k * NT + 1] += h2 * samp2;
       out[k * NT + 2] += h2 * point2;
@@ -336,4 +344,24 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     const sd = (rot + xc * gy - inp.yc * gx) * inp.dirUnc_rad;
     out[k * NT + 6] = sd === sd ? sd * sd : 0;
   }
+}
+
+/** Smallest effective degrees of freedom used by typeAFactor (its factor is then 3; below 2 a t variance is infinite). */
+export const MIN_DOF = 3;
+
+/**
+ * Factor on the Type A variance (noise + sampling terms, squared) of a component in its combined uncertainty, for the
+ * few degrees of freedom of an estimated variance. The Type A part a = sum_i H_ki^2 u_i^2 has the effective degrees of
+ * freedom nu = a^2 / ws (Welch-Satterthwaite, JCGM 100:2008, G.4.1, eq. G.2b; ws from cellBudget). The mean of nu + 1
+ * samples with an estimated standard deviation s then has a scaled and shifted t distribution with nu degrees of
+ * freedom, whose standard deviation is sqrt(nu / (nu - 2)) s / sqrt(n) (JCGM 101:2008, 6.4.9.4, with n - 1 = nu):
+ * that is the standard uncertainty reported, so that two of them cover about 95 % whatever nu (t with 3 degrees
+ * of freedom: P(|t| <= 2 sqrt(3)) = 0.96; 10: P(|t| <= 2.24) = 0.95). Without it two scatter-based
+ * uncertainties cover P(|t_nu| <= 2): 0.86 for nu = 3, 0.93 for nu = 10 (the held-back horizontal-plane cases,
+ * about 7-12 samples per instrument and cell: 87-90 %). nu is floored at MIN_DOF. Returns 1 when a or ws is 0.
+ */
+export function typeAFactor(a: number, ws: number): number {
+  if (!(a > 0) || !(ws > 0)) return 1;
+  const nu = Math.max(MIN_DOF, (a * a) / ws);
+  return nu / (nu - 2);
 }

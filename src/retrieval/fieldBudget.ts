@@ -1,7 +1,8 @@
 /**
  * The budget pass over one retrieved field (after every cell is solved, since the pointing, probe and position
  * terms need the field's gradients): per cell the terms of budget.ts, the combined standard uncertainty (GUM
- * root-sum-square), the optional mask on it, and the turbulence statistics.
+ * root-sum-square, its Type A part times the t factor of budget.ts typeAFactor), the optional mask on it, and the
+ * turbulence statistics.
  *
  * Turbulence statistics per cell. Radial-velocity variance with the noise removed: the instruments' s_t^2
  * (sampling.ts), averaged with their kept samples as weights. Variances of the components by the variance equations
@@ -17,7 +18,7 @@
  */
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
 import { cellCentre } from '../grid/grid.ts';
-import { BUDGET_TERMS, cellBudget, NT, COMPONENTS, derivatives, derivativeVariances, secondDerivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
+import { BUDGET_TERMS, cellBudget, typeAFactor, NT, COMPONENTS, derivatives, derivativeVariances, secondDerivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
 import type { CellStats, InstrumentMeans } from './cellStats.ts';
 import { MaskReason, type FieldResult } from './types.ts';
 
@@ -48,6 +49,7 @@ export function fieldBudget(
   const U = new Float64Array(3), D = new Float64Array(15), d5 = new Float64Array(5);
   const py = new Float64Array(I), pz = new Float64Array(I), ins = new Int32Array(I);
   const out = new Float64Array(3 * NT);
+  const ws = new Float64Array(3);
   const DVar = new Float64Array(6), dv = new Float64Array(2), D2Var = new Float64Array(9), dv2 = new Float64Array(3);
   const dirDeg = set.directionUncertainty_deg?.(f.window) ?? 0;
   const inp = { c: 0, secondAxis, level_m, U, D, py, pz, ins, insPos, yc: NaN, zc: NaN, DVar, D2Var, dirUnc_rad: Number.isFinite(dirDeg) ? (dirDeg * Math.PI) / 180 : 0 };
@@ -84,7 +86,7 @@ export function fieldBudget(
     }
     const [yc, zc] = cellCentre(f.grid, c);
     inp.c = c; inp.yc = yc; inp.zc = zc;
-    cellBudget(cell, H, stats, inp, set, noise2, out);
+    cellBudget(cell, H, stats, inp, set, noise2, out, ws);
     for (let k = 0; k < 3; k++) {
       if (!Number.isFinite(comps[k][c])) continue;
       const name = COMPONENTS[k];
@@ -93,7 +95,9 @@ export function fieldBudget(
         b.terms[name][t][c] = Math.sqrt(out[k * NT + j]);
         sum += out[k * NT + j];
       });
-      b.combined[name][c] = Math.sqrt(sum);
+      // The Type A part (noise + sampling) with the factor of its few degrees of freedom (budget.ts typeAFactor).
+      const a = out[k * NT] + out[k * NT + 1];
+      b.combined[name][c] = Math.sqrt(sum + (typeAFactor(a, ws[k]) - 1) * a);
     }
     turbulenceOfCell(cell, stats, c, turb);
     if (Number.isFinite(turb.variance.u[c]) && Math.abs(f.u[c]) > 0) turb.tiU[c] = Math.sqrt(Math.max(0, turb.variance.u[c])) / Math.abs(f.u[c]);

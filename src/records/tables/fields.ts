@@ -17,7 +17,7 @@ const TERM_MEANING: Record<string, string> = {
   timing: 'non-simultaneity: each instrument\'s mean sample time offset from the window middle times its radial-velocity trend',
   position: 'first-order bias of reporting at the cell centre: each instrument\'s mean sample offset from the centre times the in-plane gradients, through the solve',
   direction: 'uncertainty of the window wind direction defining the rotor frame (s/√n of the direction series), turning the components and moving the cell',
-  combined: 'combined standard uncertainty: root-sum-square of the seven terms (JCGM 100:2008)',
+  combined: 'combined standard uncertainty: root-sum-square of the seven terms (JCGM 100:2008), the noise and sampling terms times nu / (nu - 2) for their effective degrees of freedom nu (Welch-Satterthwaite; JCGM 101:2008, 6.4.9.4)',
 };
 
 /** The budget and turbulence columns, in writing order (pipeline/fieldTable.ts and fieldNetcdf.ts take them from here). */
