@@ -7,7 +7,7 @@
  */
 import { spawn, spawnSync } from 'node:child_process';
 import { chmodSync, cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { parse, stringify } from 'yaml';
 import { describe, expect, it } from 'vitest';
 import { freshCampaign, manifestOf, runCli, snapshot } from './faults/helpers.ts';
@@ -142,16 +142,20 @@ describe('an output root without write permission', () => {
   // Root writes into any folder, so the case is run as an unprivileged user: as "nobody" through setpriv when the
   // tests run as root, else as the user running them.
   const asRoot = process.getuid?.() === 0;
-  const hasSetpriv = spawnSync('setpriv', ['--version']).status === 0;
-  it.runIf(!asRoot || hasSetpriv)('check and run exit 1 with one line naming the folder; nothing written', async () => {
+  const NOBODY = ['--reuid=65534', '--regid=65534', '--clear-groups'];
+  // As root, the case needs setpriv and an installation "nobody" can run (the entry from a fresh bundle, or tsx with
+  // an esbuild binary others may execute): probed with --version.
+  const nobodyRuns = asRoot && spawnSync('setpriv', [...NOBODY, process.execPath, bin, '--version'], { encoding: 'utf8' }).status === 0;
+  it.runIf(!asRoot || nobodyRuns)('check and run exit 1 with one line naming the folder; nothing written', async () => {
     const { dir, file } = await freshCampaign((c) => { c.output.dir = 'locked/results'; });
     mkdirSync(join(dir, 'locked'));
     spawnSync('chmod', ['-R', 'a+rwX', dir]);
+    if (asRoot) chmodSync(dirname(dir), 0o711); // the test file's own temporary folder (test/setup/tmpdir.ts): passable
     chmodSync(join(dir, 'locked'), 0o555);
     const cmd = (verb: string) => {
       const args = [bin, verb, file];
       const r = asRoot
-        ? spawnSync('setpriv', ['--reuid=65534', '--regid=65534', '--clear-groups', process.execPath, ...args], { cwd: dir, encoding: 'utf8' })
+        ? spawnSync('setpriv', [...NOBODY, process.execPath, ...args], { cwd: dir, encoding: 'utf8' })
         : spawnSync(process.execPath, args, { cwd: dir, encoding: 'utf8' });
       return { code: r.status, stderr: r.stderr };
     };
