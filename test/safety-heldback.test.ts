@@ -230,3 +230,23 @@ describe('a data file cut short in its last row', () => {
     expect(manifestOf(join(dir, 'out', 'faulty')).samples.perInstrument.c.read).toBe(rows); // the cut row read (and counted) as it stands
   });
 });
+
+describe('a path starting with "~" in the campaign file', () => {
+  it('output.dir "~/wp-results" goes to the home folder, never to a folder named "~" beside the campaign', async () => {
+    const { dir, file } = await freshCampaign((c) => { c.output.dir = '~/wp-results'; });
+    const home = join(dir, 'home');
+    mkdirSync(home);
+    const oldHome = process.env.HOME;
+    process.env.HOME = home; // os.homedir() reads HOME on POSIX systems
+    try {
+      const r = await runCli(['run', file, '--quiet'], dir);
+      expect(r.code).toBe(0);
+    } finally {
+      process.env.HOME = oldHome;
+    }
+    // Before the fix: the result went to <campaign folder>/~/wp-results/faulty, a folder named "~" (one
+    // "rm -rf ~" away from the user's home).
+    expect(existsSync(join(dir, '~'))).toBe(false);
+    expect(existsSync(join(home, 'wp-results', 'faulty', 'manifest.json'))).toBe(true);
+  });
+});

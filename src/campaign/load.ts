@@ -12,6 +12,7 @@
  * the working directory.
  */
 import { readFileSync } from 'node:fs';
+import { homedir } from 'node:os';
 import { dirname, isAbsolute, resolve } from 'node:path';
 import { parseDocument, LineCounter } from 'yaml';
 import { z } from 'zod';
@@ -91,7 +92,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   const bad = (path: KeyPath, rule: string, received?: unknown) =>
     problems.push(new ConfigError(file, keyPathOf(path), rule, received, locate?.(path)));
   const baseDir = file === '<memory>' ? process.cwd() : dirname(file);
-  const abs = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
+  // "~" and "~/..." mean the home folder, as in a shell (not a folder named "~" beside the campaign file).
+  const home = (p: string) => (/^~(?=$|[/\\])/.test(p) ? homedir() + p.slice(1) : p);
+  const abs = (p: string) => (isAbsolute(home(p)) ? home(p) : resolve(baseDir, p));
 
   const turbines = resolveTurbines(c, abs, bad);
   // Instruments on a nacelle sit on the first turbine.
