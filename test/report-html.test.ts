@@ -151,7 +151,7 @@ describe('report HTML (pure)', () => {
     const earlier = reportHtml({ ...m, peakRssAtStart_bytes: 123.4 * 2 ** 20 });
     expect(earlier).toContain('at most 123.4 MiB: the process reached this peak before the run');
     const grew = reportHtml({ ...m, peakRssAtStart_bytes: 80 * 2 ** 20 });
-    expect(grew).toContain('123.4 MiB (manifest: peakRss_bytes)');
+    expect(grew).toContain("123.4 MiB, the process's peak (80.0 MiB when the run started)");
     expect(grew).not.toContain('at most');
   });
 

@@ -361,6 +361,8 @@ function peakText(m: RunManifest): string {
   if (before !== undefined && before >= m.peakRss_bytes) {
     return `at most ${mibText(m.peakRss_bytes)} MiB: the process reached this peak before the run (earlier work in the same process, such as the demo's simulation or another campaign) (manifest: peakRss_bytes, peakRssAtStart_bytes)`;
   }
+  // the process's peak counts what it held before the run (modules; in the demo, the simulation and earlier campaigns)
+  if (before !== undefined && before > 0) return `${mibText(m.peakRss_bytes)} MiB, the process's peak (${mibText(before)} MiB when the run started) (manifest: peakRss_bytes, peakRssAtStart_bytes)`;
   return `${mibText(m.peakRss_bytes)} MiB (manifest: peakRss_bytes)`;
 }
 
