@@ -12,6 +12,7 @@
  * the working directory.
  */
 import { readFileSync } from 'node:fs';
+import { homedir } from 'node:os';
 import { dirname, isAbsolute, resolve } from 'node:path';
 import { parseDocument, LineCounter } from 'yaml';
 import { z } from 'zod';
@@ -57,7 +58,11 @@ export function parseCampaignText(text: string, file: string): Campaign {
   if (doc.errors.length > 0) {
     const problems = doc.errors.map((err) => {
       const p = err.linePos?.[0];
-      return new ConfigError(file, '', `not valid YAML/JSON: ${err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`, undefined, p ? { line: p.line, col: p.col } : undefined);
+      const at = p ? { line: p.line, col: p.col } : undefined;
+      // The parser names neither the key nor where it first stood: the key is read from the text at the error.
+      const dup = err.code === 'DUPLICATE_KEY' ? /^("[^"\n]*"|'[^'\n]*'|[^:,{}[\]\n]+?)\s*:/.exec(text.replace(/^\uFEFF/, '').slice(err.pos[0]))?.[1] : undefined;
+      if (dup) return new ConfigError(file, '', `duplicate key ${JSON.stringify(dup.replace(/^["']|["']$/g, '').slice(0, 60))}: a key may be given once in a mapping`, undefined, at);
+      return new ConfigError(file, '', `not valid YAML/JSON: ${err.message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '')}`, undefined, at);
     });
     throw problems.length === 1 ? problems[0] : new ConfigErrors(file, problems);
   }
@@ -87,7 +92,9 @@ export function resolveCampaign(raw: unknown, file: string, locate?: Locator): C
   const bad = (path: KeyPath, rule: string, received?: unknown) =>
     problems.push(new ConfigError(file, keyPathOf(path), rule, received, locate?.(path)));
   const baseDir = file === '<memory>' ? process.cwd() : dirname(file);
-  const abs = (p: string) => (isAbsolute(p) ? p : resolve(baseDir, p));
+  // "~" and "~/..." mean the home folder, as in a shell (not a folder named "~" beside the campaign file).
+  const home = (p: string) => (/^~(?=$|[/\\])/.test(p) ? homedir() + p.slice(1) : p);
+  const abs = (p: string) => (isAbsolute(home(p)) ? home(p) : resolve(baseDir, p));
 
   const turbines = resolveTurbines(c, abs, bad);
   // Instruments on a nacelle sit on the first turbine.

@@ -11,7 +11,7 @@ import { loadCampaignFile, campaignJsonSchema } from '../campaign/load.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { OptionError, Problems } from '../errors.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
-import { openStaging } from '../pipeline/outputFolder.ts';
+import { campaignInputs, openStaging } from '../pipeline/outputFolder.ts';
 import { preflight } from '../pipeline/preflight.ts';
 import { defaultCores, PARALLEL_MIN_BYTES, runCampaign, type RunResult } from '../pipeline/run.ts';
 import { formatRunSummary } from './summary.ts';
@@ -116,6 +116,7 @@ export function commands(y: Argv): Argv {
           if (a.regenerate || dataMissing(c)) {
             say(a.quiet, `simulating the demo campaign "${c.name}" (deterministic from its seed) ...`);
             const s = await (await simulator()).simulateCampaign(c);
+            (await import('../pipeline/simulatedFiles.ts')).recordSimulation(c); // so that `simulate` may redo them
             say(a.quiet, `  wrote ${Object.values(s.rows).reduce((x, y) => x + y, 0).toLocaleString('en')} samples in ${s.windows} windows; truth in ${relative(process.cwd(), s.truthDir)}`);
           }
           await runAndReport(c, { ...(a as unknown as Common), plan: true });
@@ -258,7 +259,7 @@ export function commands(y: Argv): Argv {
         const { createHash } = await import('node:crypto');
         const { readFileSync } = await import('node:fs');
         const sha = c.sourceFile === '<memory>' ? '' : createHash('sha256').update(readFileSync(c.sourceFile)).digest('hex');
-        const staging = openStaging({ root: outRoot, folder, kind: 'plan', campaign: c.name, campaignSha256: sha, clean: a.clean as boolean });
+        const staging = openStaging({ root: outRoot, folder, kind: 'plan', campaign: c.name, campaignSha256: sha, clean: a.clean as boolean, inputs: campaignInputs(c) });
         let notes: string[];
         let summary: string;
         try {
@@ -283,7 +284,11 @@ export function commands(y: Argv): Argv {
       async (a) => {
         const c = loadCampaignFile(a.campaign as string);
         if (!c.simulation) throw new OptionError('campaign', `${c.sourceFile} has no "simulation" section to simulate from`);
+        // Never over files the simulator did not write (real measurements the campaign names, say).
+        const { checkSimulationTargets, recordSimulation } = await import('../pipeline/simulatedFiles.ts');
+        checkSimulationTargets(c);
         const s = await (await simulator()).simulateCampaign(c);
+        recordSimulation(c);
         say(a.quiet as boolean, `wrote ${s.files.length} files (${Object.entries(s.rows).map(([k, v]) => `${k}: ${v.toLocaleString('en')} samples`).join(', ')}); truth in ${s.truthDir}`);
       },
     )

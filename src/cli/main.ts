@@ -14,7 +14,19 @@ function commandOf(argv: string[]): string | undefined {
   return argv.find((a) => !a.startsWith('-'));
 }
 
-export async function main(argv: string[], opts: { signals?: boolean } = {}): Promise<void> {
+/**
+ * The POSIX end of options: every word after "--" is an argument, even one starting with a dash (a file named
+ * "-x.yaml"). yargs never fills positionals from words after "--", so they are passed on as paths that cannot be
+ * read as options ("./-x.yaml", the same file) and the "--" is dropped.
+ */
+export function endOfOptions(argv: string[]): string[] {
+  const at = argv.indexOf('--');
+  if (at < 0) return argv;
+  return [...argv.slice(0, at), ...argv.slice(at + 1).map((a) => (a.startsWith('-') ? `./${a}` : a))];
+}
+
+export async function main(argvGiven: string[], opts: { signals?: boolean } = {}): Promise<void> {
+  const argv = endOfOptions(argvGiven);
   const debug = argv.includes('--debug');
   if (opts.signals !== false) installSignalHandlers();
   try {

@@ -16,6 +16,7 @@
 import { closeSync, fstatSync, openSync, readSync, renameSync, rmSync, writeSync } from 'node:fs';
 import { endianness } from 'node:os';
 import type { TypedArray } from '../grid/accumulatorState.ts';
+import { removeOnInterrupt } from './cleanup.ts';
 
 /**
  * Format of the files this build writes and reads. 3: the accumulator's layout without its scratch array (the
@@ -53,9 +54,12 @@ export class PartialWriter {
   private pos = 0;
   /** Where the file is written until close() renames it (a reader may follow the records there). */
   readonly tmp: string;
+  /** Unregisters the temporary name from removal on SIGINT/SIGTERM (io/cleanup.ts) once it is renamed or removed. */
+  private readonly unregister: () => void;
   constructor(readonly path: string) {
     this.tmp = `${path}.writing-${process.pid}`;
     this.fd = openSync(this.tmp, 'w');
+    this.unregister = removeOnInterrupt(this.tmp);
     this.put(MAGIC);
   }
 
@@ -93,12 +97,14 @@ export class PartialWriter {
     this.put(t);
     closeSync(this.fd);
     renameSync(this.tmp, this.path);
+    this.unregister();
   }
 
   /** Stops writing and leaves no file. */
   abort(): void {
     try { closeSync(this.fd); } catch { /* closed */ }
     try { rmSync(this.tmp, { force: true }); } catch { /* gone */ }
+    this.unregister();
   }
 }
 

@@ -8,7 +8,10 @@
  * - Names must be safe folder names: not empty, not "." or "..", no leading dot, no path separator.
  * - Whatever stands at the target and is not a folder marked by wakeplane for the same campaign and kind (a file, a
  *   symbolic link, a user's folder, another campaign's result) stops the command before any work, with one line
- *   naming it; it is never moved. (Results written before markers existed are recognised by their manifest.json
+ *   naming it; it is never moved. So does an earlier result that holds a file the command reads (the campaign file,
+ *   a data or series file kept inside it): replacing it would move the user's files away.
+ * - The output root must be a folder or not exist yet; a file in its place (or in the place of a folder above it)
+ *   stops the command before any work. (Results written before markers existed are recognised by their manifest.json
  *   naming wakeplane and the campaign.)
  * - An earlier result is kept as `<folder>.replaced-<UTC time to the millisecond>-<pid>` (a counter is added should
  *   that exist), so two runs finishing in the same second never collide.
@@ -20,8 +23,8 @@
  *   installs the handlers).
  */
 import { hostname } from 'node:os';
-import { existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
-import { basename, join, relative, sep } from 'node:path';
+import { accessSync, constants, existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { basename, dirname, isAbsolute, join, relative, sep } from 'node:path';
 import { OutputError } from '../errors.ts';
 import { removeOnInterrupt } from '../io/cleanup.ts';
 
@@ -54,6 +57,8 @@ export interface FolderRequest {
   campaignSha256: string;
   /** Also remove stale staging folders whose state cannot be proven (other host, unknown process). */
   clean?: boolean;
+  /** Absolute paths of the files the command reads (campaignInputs): an earlier result holding one is not replaced. */
+  inputs?: readonly string[];
 }
 
 export interface PartialFolder {
@@ -130,10 +135,52 @@ function legacyResultOf(dir: string): string | undefined {
 }
 
 /**
- * Why wakeplane may not replace what stands at `path`, or '' when it may (nothing there, or a complete folder it
- * marked for the same campaign and kind).
+ * Absolute paths of the files a campaign reads: the campaign file, every data file (`files`) and every other `file`
+ * key (series, terrain), found by walking the resolved campaign, so a new series kind is covered without a change here.
  */
-export function replaceRefusal(path: string, kind: FolderKind, campaign: string): string {
+export function campaignInputs(c: object): string[] {
+  const out: string[] = [];
+  const walk = (v: unknown, key: string) => {
+    if (typeof v === 'string') {
+      if ((key === 'file' || key === 'files' || key === 'sourceFile') && isAbsolute(v)) out.push(v);
+    } else if (Array.isArray(v)) {
+      for (const x of v) walk(x, key);
+    } else if (v && typeof v === 'object') {
+      for (const [k, x] of Object.entries(v)) walk(x, k);
+    }
+  };
+  const file = (c as { sourceFile?: unknown }).sourceFile;
+  if (typeof file === 'string') walk(file, 'sourceFile'); // the campaign file first: named first when several are held
+  walk(c, '');
+  return [...new Set(out)];
+}
+
+function realOr(p: string): string {
+  try {
+    return realpathSync(p);
+  } catch {
+    return p;
+  }
+}
+
+/** The first of `inputs` that lies inside the folder `dir` (symbolic links resolved), or undefined. */
+function inputInside(dir: string, inputs: readonly string[]): string | undefined {
+  const real = realOr(dir);
+  return inputs.find((f) => realOr(f).startsWith(real + sep));
+}
+
+/**
+ * Why wakeplane may not replace what stands at `path`, or '' when it may (nothing there, or a complete folder it
+ * marked for the same campaign and kind that holds none of `inputs`, the files the command reads).
+ */
+export function replaceRefusal(path: string, kind: FolderKind, campaign: string, inputs: readonly string[] = []): string {
+  const why = ownRefusal(path, kind, campaign);
+  if (why || !inputs.length || !existsSync(path)) return why;
+  const held = inputInside(path, inputs);
+  return held ? `holds ${rel(held)}, which this command reads; left alone. Move your files out of the result folder or choose another output.dir (--out)` : '';
+}
+
+function ownRefusal(path: string, kind: FolderKind, campaign: string): string {
   let st;
   try {
     st = lstatSync(path);
@@ -155,11 +202,36 @@ export function replaceRefusal(path: string, kind: FolderKind, campaign: string)
   return '';
 }
 
+/**
+ * Throws OutputError when the output root cannot hold folders: it, or the nearest existing folder above it, is a
+ * file (a path through a file fails every write with ENOTDIR or EEXIST), or that folder is not writable by this
+ * process (so `check` fails exactly when the run's first mkdir would).
+ */
+export function checkRoot(root: string): void {
+  for (let p = root; ; p = dirname(p)) {
+    let st;
+    try {
+      st = statSync(p);
+    } catch {
+      if (dirname(p) === p) return;
+      continue; // not there yet: created by the command
+    }
+    if (!st.isDirectory()) throw new OutputError(rel(p), 'the output folder (output.dir) is a file, not a folder; nothing written. Choose another output.dir (--out)');
+    try {
+      accessSync(p, constants.W_OK | constants.X_OK);
+    } catch {
+      throw new OutputError(rel(p), 'the output folder (output.dir) cannot be written here (no write permission); nothing written. Choose another output.dir (--out)');
+    }
+    return;
+  }
+}
+
 /** Throws OutputError when the target of a command exists and is not wakeplane's to replace (before any work). */
 export function checkTarget(req: FolderRequest): void {
   checkFolderName(req.folder, req.root);
+  checkRoot(req.root);
   const target = join(req.root, req.folder);
-  const why = replaceRefusal(target, req.kind, req.campaign);
+  const why = replaceRefusal(target, req.kind, req.campaign, req.inputs);
   if (why) throw new OutputError(rel(target), why);
 }
 
@@ -256,13 +328,21 @@ export interface Staging {
 export function openStaging(req: FolderRequest): Staging {
   checkTarget(req);
   const finalDir = join(req.root, req.folder);
-  mkdirSync(req.root, { recursive: true });
+  const made = (path: string, make: () => void) => {
+    try {
+      make();
+    } catch (e) {
+      // a read-only or full file system, a folder without write permission: one line naming the folder
+      throw new OutputError(rel(path), `cannot create the output folder (${(e as NodeJS.ErrnoException).code ?? (e as Error).message}); nothing written. Choose another output.dir (--out)`);
+    }
+  };
+  made(req.root, () => mkdirSync(req.root, { recursive: true }));
   const notices = sweepPartials(req.root, req.folder, req.clean ?? false);
   const dir = join(req.root, `.${req.folder}.partial-${process.pid}`);
   if (existsSync(dir)) {
     throw new OutputError(rel(dir), 'a staging folder of this process id exists and is not provably stale; left alone. Remove it (or run with --clean) and try again');
   }
-  mkdirSync(dir);
+  made(dir, () => mkdirSync(dir));
   const marker: FolderMarker = {
     tool: 'wakeplane', kind: req.kind, campaign: req.campaign, campaignSha256: req.campaignSha256, state: 'partial',
     host: hostname(), bootId: bootId(), pid: process.pid, processStart: processStartOf(process.pid), startedAt: new Date().toISOString(),
@@ -278,7 +358,7 @@ export function openStaging(req: FolderRequest): Staging {
       const out: string[] = [];
       writeFileSync(join(dir, MARKER), JSON.stringify({ ...marker, state: 'complete', finishedAt: new Date().toISOString() }, null, 2) + '\n');
       for (let attempt = 0; ; attempt++) {
-        const why = replaceRefusal(finalDir, req.kind, req.campaign);
+        const why = replaceRefusal(finalDir, req.kind, req.campaign, req.inputs);
         if (why) throw new OutputError(rel(finalDir), `${why} (it appeared while this command ran; the new result was not kept)`);
         if (existsSync(finalDir)) {
           let kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}`;

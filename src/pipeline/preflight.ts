@@ -19,12 +19,14 @@ import { InputError } from '../errors.ts';
 import { checkSamples, openSamples, sampleFormat } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
 import { fileProblem } from '../io/fileKind.ts';
+import { unterminatedLastLine } from '../io/fileTail.ts';
+import { printable } from '../io/excerpt.ts';
 import { readSeries, type Series } from '../io/series.ts';
 import { emptyAccount } from '../qc/reasons.ts';
 import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
 import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
-import { checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
+import { campaignInputs, checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 
 export interface PreflightOptions {
   /** Output root (absolute). */
@@ -68,7 +70,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
   const warnings = [...plausibilityWarnings(c)];
   const notes: string[] = [];
   if (opts.output !== false) try {
-    checkTarget({ root: opts.outRoot, folder: opts.folder, kind: opts.kind, campaign: c.name, campaignSha256: '' });
+    checkTarget({ root: opts.outRoot, folder: opts.folder, kind: opts.kind, campaign: c.name, campaignSha256: '', inputs: campaignInputs(c) });
   } catch (e) {
     errors.push(e as Error);
   }
@@ -107,6 +109,11 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
         try {
           const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() });
           if (!h.hasDataLine) errors.push(new InputError(file, undefined, sampleFormat(file) === 'netcdf' ? 'no usable rows: the file has no rays (its time dimension is empty)' : 'no usable rows: the file has a header and no data lines'));
+          const tail = h.hasDataLine && h.format === 'csv' ? unterminatedLastLine(file) : undefined;
+          if (tail !== undefined) {
+            const end = [...tail].length > 40 ? `\u2026${printable([...tail].slice(-40).join(''))}` : printable(tail);
+            warnings.push(`instrument ${ins.id}, ${shown(c, file)}: the file ends without a line break: its last row ("${end}") may have been cut short (a copy or write interrupted?); read as it stands`);
+          }
           const size = statSync(file).size;
           estimatedRows += h.bytesPerLine > 0 ? size / h.bytesPerLine : 0;
         } catch (e) {

@@ -64,6 +64,13 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
   if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
   const campaign = campaignFromManifest(m, manifestPath);
+  // Every field table the manifest lists must be there before anything is redrawn (a deleted or moved table would
+  // otherwise stop the render half way, with some figures replaced).
+  for (const o of m.outputs ?? []) {
+    if (o.kind !== 'field-table' || !o.path.endsWith('.csv')) continue;
+    const table = join(runDir, o.path);
+    if (!existsSync(table)) throw new InputError(table, undefined, 'field table listed in the manifest is missing; nothing redrawn');
+  }
   const progress = opts.progress;
   const oldImages = m.outputs.filter((o) => o.kind === 'image');
   const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));

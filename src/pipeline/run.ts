@@ -45,7 +45,7 @@ import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
-import { openStaging } from './outputFolder.ts';
+import { campaignInputs, openStaging } from './outputFolder.ts';
 import { preflight } from './preflight.ts';
 
 export interface RunOptions {
@@ -233,7 +233,10 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     // checked before anything is written.
     partialSet?.checkCnrLimits(cnr.min_db);
     // 2. Staging folder (marked as wakeplane's; stale ones of killed runs removed or reported).
-    staging = openStaging({ root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean });
+    staging = openStaging({
+      root: outRoot, folder: c.name, kind: 'run', campaign: c.name, campaignSha256: sha256Text(campaignText), clean: opts.clean,
+      inputs: [...campaignInputs(c), ...(opts.partials ?? []).map((p) => resolve(p))],
+    });
   } catch (e) {
     await primed.close();
     throw e;
