@@ -3,17 +3,13 @@
  * for `run` on a campaign naming NetCDF-4/HDF5 files, the sample reader thread starts and loads the HDF5 library
  * (about 0.3 s of WebAssembly set-up) meanwhile, instead of after the campaign has been read; for `run` on a
  * campaign that writes NetCDF outputs (the default), the output thread does the same, while the second core is
- * otherwise idle (the command's start is one thread's work), instead of during the ingest; and the data files the
- * campaign names start being hashed (pipeline/hashing.ts takes the digests of files unchanged since). Guesses from the
+ * otherwise idle (the command's start is one thread's work), instead of during the ingest. Guesses from the
  * campaign's text only: a wrong guess costs that set-up on the other core, or nothing (the thread starts later as
  * before); never a different result.
  */
-import { readFileSync, statSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { dirname, isAbsolute, resolve } from 'node:path';
-import { parse } from 'yaml';
 import { ncWorker } from '../io/netcdfWrite.ts';
-import { startHashing } from '../pipeline/hashing.ts';
 import { readerThreadWanted, warmReaderThread } from '../io/readerThread.ts';
 
 /** File names a campaign gives NetCDF-4/HDF5 sample files (io/sampleSource.ts reads them by content). */
@@ -53,42 +49,8 @@ function singleProcessRun(argv: string[], read: (path: string) => string, parall
   }
 }
 
-/**
- * The data files a campaign's text names (instruments[].files, relative to the campaign file, as campaign/load.ts
- * resolves them) that exist as regular files, for `run CAMPAIGN` (in this process or spread over cores: the
- * digests are taken by the process that starts the run); [] when the text does not parse or names none.
- */
-export function guessedDataFiles(argv: string[], read: (path: string) => string): string[] {
-  const words = argv.filter((a) => !a.startsWith('-'));
-  if (words[0] !== 'run' || words.length < 2 || argv.includes('--partial')) return [];
-  let doc: unknown;
-  try {
-    doc = parse(read(words[1]));
-  } catch {
-    return []; // not readable or not YAML/JSON: the command says so
-  }
-  const instruments = (doc as { instruments?: unknown } | null)?.instruments;
-  if (!Array.isArray(instruments)) return [];
-  const base = dirname(resolve(words[1]));
-  const out: string[] = [];
-  for (const ins of instruments) {
-    const files = (ins as { files?: unknown } | null)?.files;
-    if (!Array.isArray(files)) continue;
-    for (const f of files) {
-      if (typeof f !== 'string' || !f) continue;
-      const file = isAbsolute(f) ? f : resolve(base, f);
-      try {
-        if (statSync(file).isFile()) out.push(file);
-      } catch { /* missing: the checks say so */ }
-    }
-  }
-  return out;
-}
-
 export function startEarly(argv: string[]): void {
   const read = (p: string) => readFileSync(p, 'utf8');
-  const files = guessedDataFiles(argv, read);
-  if (files.length) startHashing(files);
   if (readerThreadWanted() && earlyReaderWanted(argv, read, availableParallelism())) warmReaderThread();
   if (availableParallelism() >= 2 && earlyWriterWanted(argv, read, availableParallelism())) ncWorker();
 }
