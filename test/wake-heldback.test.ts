@@ -15,6 +15,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
+import { sampleBilinear } from '../src/wake/profiles.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { readCsv } from './helpers/csvTable.ts';
 import { debianPython } from './helpers/python.ts';
@@ -33,7 +34,7 @@ async function generateAndRun(args: string[]) {
   const c = loadCampaignFile(join(dir, 'campaign.yaml'));
   const { manifest, runDir } = await runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: defaultStages() });
   const rows = readCsv(join(runDir, 'wake', 'wake_table.csv'));
-  const fits = JSON.parse(readFileSync(join(runDir, 'wake', 'model_fits.json'), 'utf8')) as { gaussian: { kStar: number; eps: number; kStarSE: number; epsSE: number; nPlanes: number } };
+  const fits = JSON.parse(readFileSync(join(runDir, 'wake', 'model_fits.json'), 'utf8')) as { gaussian: { kStar: number; eps: number; kStarCI95: [number, number]; epsCI95: [number, number]; nPlanes: number } };
   return { e, rows, fits, manifest };
 }
 
@@ -76,11 +77,17 @@ describe.skipIf(!py.python)(`held-back wake analysis (Gaussian wake, power-law i
       expect(Math.abs(Number(r.hub_deficit) - v.hub_cell_deficit), `${r.plane} w${r.window} hub_deficit '${r.hub_deficit}'`).toBeLessThan(0.04);
     }
     // Model calibration: k* and eps of s/D = k* x/D + eps (Bastankhah & Porte-Agel 2014) against curve_fit of the
-    // same line through the reference widths; within 3 of our standard errors (3 planes, 1 degree of freedom).
+    // same line through the reference widths: the reference inside our reported 95 % intervals (3 planes, 1 degree
+    // of freedom, Student t), and k* within 0.006 and eps within 0.03 of it (each plane's width carries ~1.5 m of
+    // fit error, ~0.012 D, over a span of 3.4 D: about 0.004 in k*; common practice, not derived).
     const g = fits.gaussian;
     expect(g.nPlanes).toBe(3);
-    expect(Math.abs(g.kStar - e.k_star_curve_fit)).toBeLessThan(3 * g.kStarSE);
-    expect(Math.abs(g.eps - e.eps_curve_fit)).toBeLessThan(3 * g.epsSE);
+    expect(e.k_star_curve_fit).toBeGreaterThan(g.kStarCI95[0]);
+    expect(e.k_star_curve_fit).toBeLessThan(g.kStarCI95[1]);
+    expect(e.eps_curve_fit).toBeGreaterThan(g.epsCI95[0]);
+    expect(e.eps_curve_fit).toBeLessThan(g.epsCI95[1]);
+    expect(Math.abs(g.kStar - e.k_star_curve_fit)).toBeLessThan(0.006);
+    expect(Math.abs(g.eps - e.eps_curve_fit)).toBeLessThan(0.03);
   });
 
   it('wind from 200 deg, hub 84 m, empty and NaN radial velocities: the same checks, every row fitted', async () => {
@@ -94,5 +101,20 @@ describe.skipIf(!py.python)(`held-back wake analysis (Gaussian wake, power-law i
       checkRow(r, v, e);
       expect(Math.abs(Number(r.hub_deficit) - v.hub_cell_deficit), `${r.plane} w${r.window} hub_deficit '${r.hub_deficit}'`).toBeLessThan(0.04);
     }
+  });
+});
+
+describe('hub value between cells when a neighbour is masked', () => {
+  it('a point on a cell boundary with one upper corner masked: the mean of the two cells either side, not one of them', () => {
+    // Cells at y = -15, 15 and z = 115, 145; the field 0.37 | 0.485 along y (the held-back wake's flank at its hub,
+    // plane 2.7 D, +16 deg), one upper corner NaN. At (0, 115) linear interpolation along y of a field constant in z
+    // gives the midpoint (0.37 + 0.485) / 2 = 0.4275 (handbook linear interpolation; the remaining weights renormalised).
+    // Before: the heaviest corner alone, 0.37. Tolerance 1e-12: arithmetic only.
+    const g = { ny: 2, nz: 2, y0: -15, z0: 115, dy: 30, dz: 30 };
+    const v = new Float64Array([0.37, 0.485, 0.37, NaN]);
+    expect(Math.abs(sampleBilinear(g, v, 0, 115) - 0.4275)).toBeLessThan(1e-12);
+    // Every corner finite: plain bilinear (unchanged); the one finite corner of weight < 0.25 alone: NaN (unchanged).
+    expect(Math.abs(sampleBilinear(g, new Float64Array([0.37, 0.485, 0.37, 0.485]), 0, 117) - 0.4275)).toBeLessThan(1e-12);
+    expect(sampleBilinear(g, new Float64Array([NaN, NaN, NaN, 0.5]), -10, 120)).toBeNaN();
   });
 });
