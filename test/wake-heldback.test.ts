@@ -21,7 +21,7 @@ import { readCsv } from './helpers/csvTable.ts';
 import { debianPython } from './helpers/python.ts';
 
 interface Fit { amplitude: number; yc_m: number; zc_m: number; sigma_y_m: number; sigma_z_m: number }
-interface View { window: number; plane: string; x_m: number; yaw_offset_deg: number; amplitude: number; yc_m: number; zc_m: number; hub_cell_deficit: number; fit: Fit }
+interface View { window: number; plane: string; x_m: number; yaw_offset_deg: number; amplitude: number; yc_m: number; zc_m: number; sigma_y_m: number; hub_cell_deficit: number; fit: Fit }
 interface Expected { U_ms: number; alpha: number; hub_m: number; D_m: number; k_star_curve_fit: number; eps_curve_fit: number; views: View[] }
 
 const py = debianPython(['numpy', 'scipy']);
@@ -100,6 +100,24 @@ describe.skipIf(!py.python)(`held-back wake analysis (Gaussian wake, power-law i
       const v = view(e, r.plane, Number(r.window));
       checkRow(r, v, e);
       expect(Math.abs(Number(r.hub_deficit) - v.hub_cell_deficit), `${r.plane} w${r.window} hub_deficit '${r.hub_deficit}'`).toBeLessThan(0.04);
+    }
+  });
+
+  it('a plane cut through the wake (y from -60 m at 2.7 D): the row says the wake reaches past the edge', async () => {
+    const { e, rows } = await generateAndRun(['--wd', '200', '--edge']);
+    for (const r of rows) {
+      const v = view(e, r.plane, Number(r.window));
+      // The fit itself stays right: the Gaussian's centre and widths are seen from its inner side.
+      checkRow(r, v, e);
+      // The plane's integrals do not: with the edge 60 m from a wake of sigma_y = 57 m, the part of the Gaussian
+      // outside is Phi(-60/57) = 15 % (normal distribution table) of the momentum deficit, which was written with
+      // flag ok and no word. A row whose fitted 2-sigma ellipse crosses the plane's edge says so; the others not.
+      // The script's truths: y from -60 m on Q3 (else -420 m); 2 sigma_y is 114 m there, so both windows of Q3
+      // cross (yc 0 and 28.7 m), the other planes' wakes stay > 290 m inside; z from 10 to 297 m, zc 117 m,
+      // 2 sigma_z <= 101 m: inside.
+      const yMin = r.plane === 'Q3' ? -60 : -420;
+      const cut = v.yc_m - 2 * v.fit.sigma_y_m < yMin;
+      expect(r.reason.includes('past the plane edge'), `${r.plane} w${r.window}: '${r.reason}'`).toBe(cut);
     }
   });
 });
