@@ -61,6 +61,16 @@ CASES = [
     planes=[dict(id='x6', x_D=6, y=dict(min=-100, max=100), z=dict(min=10, max=170), cell_m=[25, 40]),
             dict(id='x2', x_D=2, y=dict(min=-80, max=80), z=dict(min=0, max=160), cell_m=[40, 40])],
     plan=dict(minElevation_deg=-5, maxRange_m=dict(pulsed=800, cw=250))),
+  dict(name='hb-312', wind=312,
+    turbine=dict(position_m=[0, 0, 4], hubHeight_m=95, rotorDiameter_m=120),
+    instruments=[
+      dict(id='up', position_m=[-500, 420, 6], kind='pulsed'),      # upstream (wind from NW): beams cross the rotor
+      dict(id='l', position_m=[-100, -500, 2], kind='pulsed'),
+      dict(id='l2', position_m=[-60, -520, 2], kind='pulsed'),      # beside l: nearly parallel beams
+      dict(id='r', position_m=[520, 380, 45], kind='pulsed')],
+    planes=[dict(id='x3', x_D=3, y=dict(min=-150, max=150), z=dict(min=-24, max=216), cell_m=[50, 40])],
+    plan=dict(minCrossing_deg=25, candidates=dict(r=[[520, 380], [600, 200]])),
+    retrieval=dict(maxAmplification=2.5)),
 ]
 
 fails = 0
@@ -71,7 +81,7 @@ def check(ok, what):
         print('FAIL', what)
 
 def run(case, tmp):
-    camp = dict(name=case['name'], turbine=case['turbine'], instruments=case['instruments'], planes=case['planes'],
+    camp = dict(**({'retrieval': case['retrieval']} if 'retrieval' in case else {}), name=case['name'], turbine=case['turbine'], instruments=case['instruments'], planes=case['planes'],
                 windDirection=dict(kind='fixed', deg=case['wind']), plan=case['plan'], output=dict(dir='out', images=False))
     path = os.path.join(tmp, case['name'] + '.json')
     json.dump(camp, open(path, 'w'))
@@ -148,6 +158,21 @@ def main():
                         rows.append([np.dot(n, xh), np.dot(n, yh), n[2]])
                 A = np.array(rows)
                 check(int(row['usable_beams']) == len(rows), '%s/%s cell %s usable %s vs %d' % (case['name'], pl['id'], row['cell'], row['usable_beams'], len(rows)))
+                maxA = case.get('retrieval', {}).get('maxAmplification', 3)
+                minC = plan.get('minCrossing_deg', 30)
+                soft = any(f in (row[i2['id'] + '_flags'] or '') for i2 in case['instruments'] for f in ('footprint', 'probeModel')
+                           if not any(h in (row[i2['id'] + '_flags'] or '') for h in ('ground', 'elevation', 'range', 'rotor', 'terrain')))
+                if len(rows) >= 3:
+                    # crossing criterion: some three beams cross pairwise at minCrossing or more (see cellTrust.ts)
+                    import itertools
+                    ang = lambda i, j: math.degrees(math.acos(min(1, abs(np.dot(A[i], A[j])))))
+                    best3 = max(min(ang(i, j), ang(i, l), ang(j, l)) for i, j, l in itertools.combinations(range(len(rows)), 3))
+                    ampAll = np.sqrt(np.diag(np.linalg.inv(A.T @ A)))
+                    ok = [a_ <= maxA and best3 >= minC and not soft for a_ in ampAll]
+                    for c_, o_ in zip('uvw', ok):
+                        check(int(row[c_ + '_pass']) == int(o_), '%s/%s cell %s %s_pass %s vs %s' % (case['name'], pl['id'], row['cell'], c_, row[c_ + '_pass'], o_))
+                    target = ok[0] and ok[1] and (ok[2] or horiz)
+                    check(int(row['trusted']) == int(target), '%s/%s cell %s trusted %s vs %s' % (case['name'], pl['id'], row['cell'], row['trusted'], target))
                 if len(rows) >= 3:
                     amp = np.sqrt(np.diag(np.linalg.inv(A.T @ A)))
                     sv = np.linalg.svd(A, compute_uv=False); cond = sv[0] / sv[-1]
@@ -171,7 +196,13 @@ def main():
         for ins in case['instruments']:
             p0 = np.array(ins['position_m'], float)
             cal = ins.get('calibration')
-            for row in read_csv(os.path.join(out, 'pointing_%s.csv' % ins['id'])):
+            prow = read_csv(os.path.join(out, 'pointing_%s.csv' % ins['id']))
+            served = 0
+            for pl in case['planes']:
+                for crow in read_csv(os.path.join(out, 'cells_%s.csv' % pl['id'])):
+                    if not any(h in crow[ins['id'] + '_flags'] for h in ('ground', 'elevation', 'range', 'rotor', 'terrain')): served += 1
+            check(len(prow) == served, '%s %s pointing rows %d vs served cells %d' % (case['name'], ins['id'], len(prow), served))
+            for row in prow:
                 t = np.array([float(row['target_east_m']), float(row['target_north_m']), float(row['target_up_m'])])
                 d = t - p0; r = float(np.linalg.norm(d))
                 check(abs(float(row['range_m']) - (r - (cal or {}).get('rangeOffset_m', 0))) < 2e-3, 'pointing range')
@@ -182,6 +213,9 @@ def main():
                 # sqrt(3)*0.5 mm / r rad (azimuth: divided by cos(elevation)); 1.5 mm / r plus the angle rounding
                 tol = math.degrees(1.5e-3 / (r * max(1e-9, math.cos(math.radians(el))))) + 2e-6
                 check(abs(daz) < tol and abs(float(row['elevation_deg']) - el) < math.degrees(1.5e-3 / r) + 2e-6, '%s %s az/el %s %s vs %.5f %.5f' % (case['name'], ins['id'], row['azimuth_deg'], row['elevation_deg'], az, el))
+    # layout candidates given as [east, north] keep the instrument's height above ground (schema: ground level + height)
+    lay = read_csv(os.path.join(tmp, 'out', 'hb-312-plan', 'plan', 'layouts.csv'))
+    check(all(abs(float(l['r_up_m']) - 45) < 1e-3 for l in lay), 'layout candidates keep r at 45 m: %s' % [l['r_up_m'] for l in lay])
     print('cells checked:', ncheck, 'failures:', fails)
     sys.exit(1 if fails else 0)
 
