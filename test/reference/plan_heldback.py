@@ -15,10 +15,12 @@ Independent formulas:
 - pulsed probe FWHM of [erf((s+dp/2)/rp) - erf((s-dp/2)/rp)]/(2dp), rp = c tau / (4 sqrt(ln 2)) (Banakh & Smalikho
   1997, from memory; REFERENCES.md section on probe volumes); CW FWHM 2 lambda R^2 / (pi a^2) (Sonnenschein &
   Horrigan 1971, from memory).
+Calibration: scipy.spatial.transform.Rotation (SciPy reference library).
 Usage: python3 test/reference/plan_heldback.py  (prints one line per check; exit 1 on any mismatch)
 """
 import json, math, os, subprocess, sys, tempfile
 import numpy as np
+from scipy.spatial.transform import Rotation as Rot
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 CLI = os.path.join(HERE, '..', '..', 'bin', 'wakeplane.js')
@@ -206,7 +208,17 @@ def main():
                 t = np.array([float(row['target_east_m']), float(row['target_north_m']), float(row['target_up_m'])])
                 d = t - p0; r = float(np.linalg.norm(d))
                 check(abs(float(row['range_m']) - (r - (cal or {}).get('rangeOffset_m', 0))) < 2e-3, 'pointing range')
-                if cal: continue
+                if cal:
+                    # calibrated: the reported angles in the instrument frame, turned by heading (clockwise about up),
+                    # pitch (raising the instrument north axis) and roll (raising its east axis), R = Rh Rp Rr
+                    # (README / beam.ts convention), built here with scipy's rotations about the site axes
+                    Rcal = Rot.from_euler('z', -cal.get('heading_deg', 0), degrees=True) * Rot.from_euler('x', cal.get('pitch_deg', 0), degrees=True) * Rot.from_euler('y', -cal.get('roll_deg', 0), degrees=True)
+                    a_, e_ = math.radians(float(row['azimuth_deg'])), math.radians(float(row['elevation_deg']))
+                    nI = np.array([math.cos(e_) * math.sin(a_), math.cos(e_) * math.cos(a_), math.sin(e_)])
+                    hit = p0 + Rcal.apply(nI) * (float(row['range_m']) + cal.get('rangeOffset_m', 0))
+                    # printed target 1 mm, range 1 mm, angles 1e-6 deg: within 1.5 mm (as plan-outputs.test.ts)
+                    check(np.linalg.norm(hit - t) < 1.5e-3, '%s %s calibrated beam lands %.4f m off' % (case['name'], ins['id'], np.linalg.norm(hit - t)))
+                    continue
                 az = math.degrees(math.atan2(d[0], d[1])) % 360; el = math.degrees(math.asin(d[2] / r))
                 daz = (float(row['azimuth_deg']) - az + 180) % 360 - 180
                 # angles printed to 1e-6 deg; the target is printed to 1 mm, so the angles to it move by up to
