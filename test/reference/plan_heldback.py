@@ -142,6 +142,19 @@ def main():
                         L = pulsed_fwhm(pu['pulseFwhm_ns'], pu['gateLength_m'])
                     # probe length printed to 1e-2 m
                     check(abs(float(row[k + '_probe_m']) - L) < 1e-2, '%s %s probe %s vs %.3f' % (pl['id'], k, row[k + '_probe_m'], L))
+                    # probe footprint on the plane: projection of a segment L along n (vector algebra)
+                    nr = np.array([np.dot(n, xh), np.dot(n, yh), n[2]])
+                    nrm, ax2 = (np.array([0, 0, 1.0]), np.array([1.0, 0, 0])) if horiz else (np.array([1.0, 0, 0]), np.array([0, 0, 1.0]))
+                    fpm = L * math.sqrt(max(0, 1 - np.dot(nr, nrm) ** 2))
+                    fpc = max(L * abs(nr[1]) / pl['cell_m'][0], L * abs(np.dot(nr, ax2)) / pl['cell_m'][1])
+                    check(abs(float(row[k + '_footprint_m']) - fpm) < 1e-2, '%s %s footprint %s vs %.3f' % (pl['id'], k, row[k + '_footprint_m'], fpm))
+                    # printed to 3 significant digits: relative 5e-3
+                    check(abs(float(row[k + '_footprint_cells']) - fpc) <= 5e-3 * fpc + 1e-9, '%s %s footprint cells %s vs %.4f' % (pl['id'], k, row[k + '_footprint_cells'], fpc))
+                    fl = row[k + '_flags'].split(';') if row[k + '_flags'] else []
+                    check(('footprint' in fl) == (fpc > plan.get('maxFootprintCells', 2)), 'footprint flag')
+                    if ins['kind'] == 'cw':
+                        zL = math.pi * cw['apertureRadius_m'] ** 2 / cw['wavelength_m']
+                        check(('probeModel' in fl) == (r > plan.get('cwValidityFraction', 0.1) * zL), 'cw validity flag %s r %.1f zL %.1f' % (fl, r, zL))
                     # hard limits, from their definitions: ground clearance 2 m (default), elevation, range, rotor disk
                     hard = []
                     if site[2] < 2 or p0[2] < 0: hard.append('ground')
