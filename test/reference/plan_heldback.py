@@ -217,6 +217,23 @@ def main():
                 for crow in read_csv(os.path.join(out, 'cells_%s.csv' % pl['id'])):
                     if not any(h in crow[ins['id'] + '_flags'] for h in ('ground', 'elevation', 'range', 'rotor', 'terrain')): served += 1
             check(len(prow) == served, '%s %s pointing rows %d vs served cells %d' % (case['name'], ins['id'], len(prow), served))
+            # timing: two axes slewing together at 30 deg/s (default), the slower axis decides (common practice);
+            # azimuth steps taken the short way round; closed tour (the first point's slew comes from the last)
+            sc = ins.get('scan', {}); dwell = sc.get('dwell_s', 1); rate = sc.get('slewRate_degs', 30)
+            for pid in [pl['id'] for pl in case['planes']]:
+                rr = [r_ for r_ in prow if r_['plane'] == pid]
+                tot = 0.0
+                for j, r_ in enumerate(rr):
+                    q_ = rr[j - 1]
+                    da = abs(float(r_['azimuth_deg']) - float(q_['azimuth_deg'])) % 360; da = min(da, 360 - da)
+                    sl = max(da, abs(float(r_['elevation_deg']) - float(q_['elevation_deg']))) if len(rr) > 1 else 0
+                    check(abs(float(r_['slew_deg']) - sl) < 2e-3, '%s %s slew %s vs %.4f' % (pid, ins['id'], r_['slew_deg'], sl))
+                    tot += sl
+                    if j > 0:
+                        # start times printed to 1e-2 s
+                        check(abs(float(r_['start_s']) - float(q_['start_s']) - dwell - sl / rate) < 2e-2, 'start_s step')
+                pt = [x for x in summary['pointing'] if x['instrumentId'] == ins['id'] and x['planeId'] == pid][0]
+                check(abs(pt['passTime_s'] - (len(rr) * dwell + tot / rate)) < 1e-3 * max(1, len(rr)), 'pass time %s vs %s' % (pt['passTime_s'], len(rr) * dwell + tot / rate))
             for row in prow:
                 t = np.array([float(row['target_east_m']), float(row['target_north_m']), float(row['target_up_m'])])
                 d = t - p0; r = float(np.linalg.norm(d))
