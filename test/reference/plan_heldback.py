@@ -203,6 +203,38 @@ def main():
                     amp = np.sqrt(np.diag(np.linalg.inv(A2.T @ A2)))
                     for c, v in zip('uv', amp):
                         check(abs(float(row[c + '_amplification']) - v) <= 5e-4 * v, '2-beam %s amp' % c)
+                # reasons and category, from the definitions in the README / cellTrust.ts docblock
+                hardAll = set(f for i2 in case['instruments'] for f in (row[i2['id'] + '_flags'].split(';') if row[i2['id'] + '_flags'] else []) if f in ('ground', 'elevation', 'range', 'rotor', 'terrain'))
+                k_ = len(rows); exp = set(hardAll)
+                softU = set(f for i2 in case['instruments'] for f in (row[i2['id'] + '_flags'].split(';') if row[i2['id'] + '_flags'] else [])
+                            if not hardAll.intersection(row[i2['id'] + '_flags'].split(';')) and f in ('footprint', 'probeModel'))
+                exp |= softU
+                if k_ < 3: exp.add('tooFewInstruments')
+                ampX = {}
+                if k_ >= 3:
+                    ampX = dict(zip('uvw', np.sqrt(np.diag(np.linalg.inv(A.T @ A)))))
+                    crossC = best3
+                elif k_ == 2:
+                    ampX = dict(zip('uv', np.sqrt(np.diag(np.linalg.inv(A[:, :2].T @ A[:, :2])))))
+                    h0, h1 = A[0, :2], A[1, :2]
+                    crossC = math.degrees(math.acos(min(1, abs(np.dot(h0, h1)) / (np.linalg.norm(h0) * np.linalg.norm(h1)))))
+                if k_ >= 2 and crossC < minC: exp.add('parallelBeams')
+                for c_, v_ in ampX.items():
+                    if not v_ <= maxA: exp.add('amplification' + c_.upper())
+                got_r = set(row['reasons'].split(';')) if row['reasons'] else set()
+                check(got_r == exp, '%s/%s cell %s reasons %s vs %s' % (case['name'], pl['id'], row['cell'], sorted(got_r), sorted(exp)))
+                okU = 'u' in ampX and ampX['u'] <= maxA and not exp & {'parallelBeams', 'footprint', 'probeModel'}
+                okV = 'v' in ampX and ampX['v'] <= maxA and not exp & {'parallelBeams', 'footprint', 'probeModel'}
+                okW = 'w' in ampX and ampX['w'] <= maxA and not exp & {'parallelBeams', 'footprint', 'probeModel'}
+                if okU and okV and (okW or horiz): cat = 'trusted'
+                elif k_ < 2:
+                    cat = next((h for h in ('ground', 'terrain', 'rotor', 'elevation', 'range') if h in hardAll), 'too_few_instruments')
+                elif 'parallelBeams' in exp: cat = 'parallel_beams'
+                elif 'footprint' in exp: cat = 'footprint'
+                elif 'probeModel' in exp: cat = 'probe_model'
+                elif not (okU and okV): cat = 'amplification'
+                else: cat = 'w_not_resolved'
+                check(row['category'] == cat, '%s/%s cell %s category %s vs %s' % (case['name'], pl['id'], row['cell'], row['category'], cat))
                 counts[row['category']] = counts.get(row['category'], 0) + 1
             sp = [p for p in summary['planes'] if p['planeId'] == pl['id']][0]
             check(all(sp['categories'].get(k2, 0) == v for k2, v in counts.items()), 'summary categories %s vs %s' % (sp['categories'], counts))
