@@ -5,9 +5,15 @@
  * (python3 + numpy, independent of this code; three campaigns, 143 cells of 5 planes: it agrees within the CSV
  * rounding, output in plan_heldback.out).
  */
-import { describe, expect, it } from 'vitest';
-import { resolveCampaign } from '../src/campaign/load.ts';
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { loadCampaignFile, resolveCampaign } from '../src/campaign/load.ts';
 import { planCampaign } from '../src/plan/planCampaign.ts';
+import { writePlanOutputs } from '../src/plan/writeOutputs.ts';
+import { debianPython } from './helpers/python.ts';
 
 const base = {
   name: 'heldback-45',
@@ -72,5 +78,26 @@ describe('planner, held-back cases', () => {
     }
     expect(west).toBeGreaterThan(0); // the case does cross north
     expect(east).toBeGreaterThan(0);
+  });
+});
+
+const py = debianPython(['numpy', 'scipy']);
+describe.skipIf(!py.python)(`planner against the numpy reference${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  const dir = mkdtempSync(join(tmpdir(), 'wakeplane-plan-heldback-'));
+  afterAll(() => rmSync(dir, { recursive: true, force: true }));
+  it('three campaigns unlike the demos: every cell, beam flag, reason, category and pointing row as numpy computes them', async () => {
+    const script = join(import.meta.dirname, 'reference', 'plan_heldback.py');
+    const w = spawnSync(py.python!, [script, 'write', dir], { encoding: 'utf8' });
+    expect(w.status, w.stderr).toBe(0);
+    const files = readdirSync(dir).filter((f) => f.endsWith('.json'));
+    expect(files.length).toBe(3);
+    for (const f of files) {
+      const campaign = loadCampaignFile(join(dir, f));
+      await writePlanOutputs(planCampaign(campaign), campaign, join(dir, 'out', `${campaign.name}-plan`), { images: false });
+    }
+    const c = spawnSync(py.python!, [script, 'check', dir], { encoding: 'utf8' });
+    // the script prints each failed check and exits 1 on any; its tolerances follow the printed digits (see there)
+    expect(c.stdout + c.stderr).toContain('cells checked: 143 failures: 0');
+    expect(c.status).toBe(0);
   });
 });

@@ -16,7 +16,7 @@ Independent formulas:
   1997, from memory; REFERENCES.md section on probe volumes); CW FWHM 2 lambda R^2 / (pi a^2) (Sonnenschein &
   Horrigan 1971, from memory).
 Calibration: scipy.spatial.transform.Rotation (SciPy reference library).
-Usage: python3 test/reference/plan_heldback.py  (prints one line per check; exit 1 on any mismatch)
+Usage: python3 test/reference/plan_heldback.py [write DIR | check DIR]  (prints each failed check; exit 1 on any)
 """
 import json, math, os, subprocess, sys, tempfile
 import numpy as np
@@ -82,12 +82,15 @@ def check(ok, what):
         fails += 1
         print('FAIL', what)
 
-def run(case, tmp):
+def campaign_file(case, tmp):
     camp = dict(**({'retrieval': case['retrieval']} if 'retrieval' in case else {}), name=case['name'], turbine=case['turbine'], instruments=case['instruments'], planes=case['planes'],
                 windDirection=dict(kind='fixed', deg=case['wind']), plan=case['plan'], output=dict(dir='out', images=False))
     path = os.path.join(tmp, case['name'] + '.json')
     json.dump(camp, open(path, 'w'))
-    subprocess.run(['node', CLI, 'plan', path, '--quiet'], check=True)
+    return path
+
+def run(case, tmp):
+    subprocess.run(['node', CLI, 'plan', campaign_file(case, tmp), '--quiet'], check=True)
     return os.path.join(tmp, 'out', case['name'] + '-plan', 'plan')
 
 def read_csv(p):
@@ -96,10 +99,17 @@ def read_csv(p):
     return [dict(zip(head, l.split(','))) for l in lines[1:]]
 
 def main():
-    tmp = tempfile.mkdtemp(prefix='wakeplane-hb5-')
+    # no arguments: write the campaigns to a temporary folder, run the CLI on each, check.
+    # `write DIR`: write DIR/<name>.json only; `check DIR`: check DIR/out/<name>-plan/plan/ written by someone else
+    # (test/plan-heldback.test.ts plans in-process, so the check does not depend on a fresh dist/).
+    mode = sys.argv[1] if len(sys.argv) > 1 else 'run'
+    tmp = sys.argv[2] if len(sys.argv) > 2 else tempfile.mkdtemp(prefix='wakeplane-hb5-')
+    if mode == 'write':
+        for case in CASES: campaign_file(case, tmp)
+        return
     ncheck = 0
     for case in CASES:
-        out = run(case, tmp)
+        out = run(case, tmp) if mode == 'run' else os.path.join(tmp, 'out', case['name'] + '-plan', 'plan')
         xh, yh, zh = frame(case['wind'])
         T = case['turbine']; base = np.array(T['position_m'], float); H = T['hubHeight_m']; R = T['rotorDiameter_m'] / 2
         D = T['rotorDiameter_m']
