@@ -83,6 +83,33 @@ export function minCrossingAngle(rows: ArrayLike<number>, k: number): number {
 }
 
 /**
+ * Best crossing of three beams among K: the largest, over every choice of three beams, of the smallest angle between
+ * the lines of two of them, degrees (the smallest crossing angle itself for K = 3; NaN for fewer than three). A beam
+ * added nearly parallel to another lowers minCrossingAngle but not this: least-squares amplification can only fall
+ * when a beam is added, so a crossing criterion on redundant beams must not fail a cell that three of its beams
+ * resolve at well-spread angles.
+ */
+export function bestTripleCrossingAngle(rows: ArrayLike<number>, k: number): number {
+  if (k < 3) return NaN;
+  const ang = new Float64Array(k * k);
+  for (let i = 0; i < k; i++)
+    for (let j = i + 1; j < k; j++) {
+      const dot = rows[i * 3] * rows[j * 3] + rows[i * 3 + 1] * rows[j * 3 + 1] + rows[i * 3 + 2] * rows[j * 3 + 2];
+      const ni = Math.hypot(rows[i * 3], rows[i * 3 + 1], rows[i * 3 + 2]);
+      const nj = Math.hypot(rows[j * 3], rows[j * 3 + 1], rows[j * 3 + 2]);
+      ang[i * k + j] = (Math.acos(Math.min(1, Math.abs(dot) / (ni * nj))) * 180) / Math.PI;
+    }
+  let best = -Infinity;
+  for (let i = 0; i < k; i++)
+    for (let j = i + 1; j < k; j++)
+      for (let l = j + 1; l < k; l++) {
+        const m = Math.min(ang[i * k + j], ang[i * k + l], ang[j * k + l]);
+        if (m > best) best = m;
+      }
+  return best;
+}
+
+/**
  * Smallest crossing angle of K beams as a two-component (w = 0) system sees them: the angle between their
  * projections on the plane of the first two columns (u, v), degrees in [0, 90]; NaN for fewer than two beams. The
  * 3-D angle (minCrossingAngle) also counts an elevation difference, which resolves only w: a beam looking down and

@@ -4,9 +4,10 @@
  * The beams that can serve a cell (no hard flag) form the rows of A. With three or more, the error amplification of
  * u, v, w is sqrt(diag((A^T A)^-1)) (geometry/amplification.ts, amplification3); with two and the campaign's w = 0
  * assumption, u and v come from the two-component system (amplification2) and w is not resolved. A component passes
- * when its amplification is at most retrieval.maxAmplification and the cell carries no soft flag: smallest crossing
- * angle below plan.minCrossing_deg (nearly parallel beams; for two beams under w = 0 the angle between their
- * projections on the u, v plane, minCrossingAngleUV), a probe footprint wider than plan.maxFootprintCells, or a
+ * when its amplification is at most retrieval.maxAmplification and the cell carries no soft flag: crossing angle
+ * below plan.minCrossing_deg (nearly parallel beams: with three or more beams, no three of them whose smallest
+ * crossing reaches it, bestTripleCrossingAngle, so an extra beam beside another never costs trust; for two beams under
+ * w = 0 the angle between their projections on the u, v plane, minCrossingAngleUV), a probe footprint wider than plan.maxFootprintCells, or a
  * CW focus beyond the validity of the probe formula. A cell is trusted when all three components pass.
  *
  * Each cell gets one category, the first that applies in this order: trusted; fewer than two usable beams (named
@@ -17,7 +18,7 @@
  * with three or more plane scanners; u and v in a horizontal plane (near-horizontal beams do not resolve w) and with
  * two scanners (w = 0 assumed). "Trusted" and the fraction `all` refer to the target components.
  */
-import { amplification2, amplification3, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
+import { amplification2, amplification3, bestTripleCrossingAngle, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
 import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
 import type { PlanSettings } from './settings.ts';
 
@@ -158,7 +159,11 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
       okU = allowed && a.dop[0] <= maxA; okV = allowed && a.dop[1] <= maxA;
     }
     if (k < 3) reasons |= CellReason.tooFewInstruments;
-    if (k >= 2 && t.minCrossing_deg[c] < s.minCrossing_deg) reasons |= CellReason.parallelBeams;
+    // Crossing criterion: two beams (w = 0) by their u, v crossing; three or more by the best three of them, so that
+    // a redundant beam nearly parallel to another never fails a cell (least squares: adding a beam can only lower
+    // the amplification). minCrossing_deg still reports the smallest angle between any two usable beams.
+    const crossing = k >= 3 ? bestTripleCrossingAngle(rows, k) : t.minCrossing_deg[c];
+    if (k >= 2 && crossing < s.minCrossing_deg) reasons |= CellReason.parallelBeams;
     if (k >= 2 && !(t.dopU[c] <= maxA)) reasons |= CellReason.amplificationU;
     if (k >= 2 && !(t.dopV[c] <= maxA)) reasons |= CellReason.amplificationV;
     if (k >= 3 && !(t.dopW[c] <= maxA)) reasons |= CellReason.amplificationW;

@@ -66,7 +66,7 @@ export const planSchema = z
       .min(0)
       .max(90)
       .default(30)
-      .describe('flag a cell whose smallest beam crossing angle is below this, degrees; default 30 (common practice for dual-Doppler lobes)'),
+      .describe('flag a cell whose beams cross at less than this, degrees: two beams by their crossing on the u, v plane, three or more by the best three of them (a redundant beam beside another costs no trust); default 30 (common practice for dual-Doppler lobes)'),
     candidates: z
       .record(z.string(), candidateSetSchema)
       .default({})
