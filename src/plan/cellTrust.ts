@@ -141,15 +141,6 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
       }
       t.dopU[c] = du; t.dopV[c] = dv; t.dopW[c] = dw;
       okU = du <= maxA; okV = dv <= maxA; okW = dw <= maxA;
-      if (s.twoInstrumentAssumption === 'w-zero' && !(okU && okV)) {
-        // As the retrieval does (retrieveWindow.ts): u, v with w = 0 from the same beams when that keeps more of them.
-        const a2 = amplification2(rows, k);
-        const u2 = a2.dop[0] <= maxA, v2 = a2.dop[1] <= maxA;
-        if (Number(u2) + Number(v2) > Number(okU) + Number(okV)) {
-          t.dopU[c] = a2.dop[0]; t.dopV[c] = a2.dop[1];
-          okU = u2; okV = v2; okW = false;
-        }
-      }
     } else if (k === 2) {
       const a = amplification2(rows, 2);
       t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1];
