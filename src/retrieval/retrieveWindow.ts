@@ -8,7 +8,8 @@
  * instruments for the component, but too few of them reach minSamplesPerInstrument); too_few_instruments (fewer
  * instruments than the component needs: three for u, v, w; two for u, v with the w-zero assumption); singular;
  * amplification (the component's error amplification > maxAmplification; the other components stay valid);
- * assumed_zero (w in a two-instrument cell solved with w = 0).
+ * assumed_zero (w in a two-instrument cell solved with w = 0; with w-zero allowed, also in a cell of three or more
+ * instruments whose three-component solve loses u or v, mostly to amplification, where the w = 0 solve keeps more).
  *
  * Cell counters: `samples` = kept samples of the instruments used (those with >= minSamplesPerInstrument);
  * `instruments` = how many instruments were used. Samples of instruments below the minimum are not outliers and
@@ -153,6 +154,11 @@ export function retrieveWindow(
   return { fields: retrieveStats(stats, planes, window, direction_deg, settings, sampling), outliers };
 }
 
+/** 1 when a u or v mask loses the component (anything but ok), else 0. */
+function uvLost(mask: number): number {
+  return mask === MaskReason.ok ? 0 : 1;
+}
+
 /**
  * Retrieve every plane from kept-sample statistics (one window, or the merged statistics of an ensemble).
  * `direction_deg` is the wind direction that defined the rotor frame (recorded in each field). `sampling` (one
@@ -176,7 +182,7 @@ export function retrieveStats(
   const wZero = settings.twoInstrumentAssumption === 'w-zero';
   const rows = new Float64Array(I * 3), geom = new Float64Array(I * 3), m = new Float64Array(I), wts = new Float64Array(I);
   const posY = new Float64Array(I), posZ = new Float64Array(I);
-  const sol = emptyCellSolution();
+  const sol = emptyCellSolution(), sol2 = emptyCellSolution();
   const fields: FieldResult[] = [];
   const budget = settings.budget?.enabled ? settings.budget : undefined;
   const planeCells: PlaneCells[] = [];
@@ -210,8 +216,21 @@ export function retrieveStats(
       f.samples[c] = used;
       f.instruments[c] = K;
       if (cells) cells.K[c] = K;
+      let dims: 2 | 3 = K >= 3 ? 3 : 2;
       if (K >= 3) {
         solve3(rows, geom, m, wts, K, settings.maxAmplification, sol);
+        if (wZero && uvLost(sol.maskU) + uvLost(sol.maskV) > 0) {
+          // Three or more scanners near the ground: w is barely seen, and solving for it can spoil u and v (their
+          // amplification over the limit) where the same beams give u, v well with w = 0, as two scanners would.
+          // The w-zero solution is taken when it keeps more of u and v (stated, as in a two-instrument cell).
+          const lost3 = uvLost(sol.maskU) + uvLost(sol.maskV);
+          solve2(rows, geom, m, wts, K, settings.maxAmplification, sol2);
+          if (uvLost(sol2.maskU) + uvLost(sol2.maskV) < lost3) {
+            Object.assign(sol, sol2);
+            usedWZero = true;
+            dims = 2;
+          }
+        }
       } else if (K === 2 && wZero) {
         solve2(rows, geom, m, wts, K, settings.maxAmplification, sol);
         if (sol.maskW === MaskReason.assumedZero) usedWZero = true;
@@ -223,7 +242,7 @@ export function retrieveStats(
         sol.maskU = sol.maskV = sol.maskW = reason;
       }
       store(f, c, sol);
-      if (Number.isFinite(sol.u)) effectivePosition(rows, wts, posY, posZ, K, K >= 3 ? 3 : 2, f, c);
+      if (Number.isFinite(sol.u)) effectivePosition(rows, wts, posY, posZ, K, dims, f, c);
     }
     if (usedWZero) f.assumptions.push(W_ZERO_ASSUMPTION);
     fields.push(f);

@@ -217,6 +217,19 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     addedTurbulence: addedTurbulence(f.budget?.turbulence.tiU, def.deficit, hasWake ? maxDeficit : NaN, o.minDeficit),
   };
   if (!cross) row.horizontalTrack = horizontalTrack(g, def.deficit, o.minDeficit);
-  if (cross && disk.atEdge && flag === 'ok') row.reason = 'note: the disk estimator found its minimum at the edge of its search range';
+  const notes: string[] = [];
+  if (cross && disk.atEdge && flag === 'ok') notes.push('note: the disk estimator found its minimum at the edge of its search range');
+  if (cross && flag === 'ok' && fit) {
+    const q = fit.params;
+    // A good fit can still have part of the wake outside the plane (it is fitted from its inner side); the plane's
+    // integrals (momentum deficit, centroid) then miss that part: said, not hidden (2 sigma: common practice).
+    const out: string[] = [];
+    if (q.yc_m - 2 * q.sigmaY_m < yMin) out.push('y min');
+    if (q.yc_m + 2 * q.sigmaY_m > yMax) out.push('y max');
+    if (q.zc_m - 2 * q.sigmaZ_m < zMin) out.push('z min');
+    if (q.zc_m + 2 * q.sigmaZ_m > zMax) out.push('z max');
+    if (out.length) notes.push(`note: the fitted wake (2 sigma) reaches past the plane edge (${out.join(', ')}): the momentum deficit and centroid cover only the part inside`);
+  }
+  if (notes.length) row.reason = notes.join('; ');
   return row;
 }

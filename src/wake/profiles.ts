@@ -7,7 +7,10 @@ import type { GridSpec } from '../grid/grid.ts';
 import type { Gaussian2DFit, Profile1D } from './types.ts';
 import { gaussian2d } from './gaussian2d.ts';
 
-/** Bilinear interpolation at (y, z); falls back to the nearest valid corner when some corners are NaN; NaN outside. */
+/**
+ * Bilinear interpolation at (y, z); when some corners are NaN, the renormalised weighted mean of the finite ones if
+ * one of them weighs at least 0.25, else NaN; NaN outside.
+ */
 export function sampleBilinear(g: GridSpec, v: Float64Array, y: number, z: number): number {
   const fy = (y - g.y0) / g.dy, fz = (z - g.z0) / g.dz;
   if (!(fy >= -0.5 && fy <= g.ny - 0.5 && fz >= -0.5 && fz <= g.nz - 0.5)) return NaN;
@@ -19,9 +22,16 @@ export function sampleBilinear(g: GridSpec, v: Float64Array, y: number, z: numbe
   const c = [v[iy + iz * g.ny], v[iy + 1 + iz * g.ny], v[iy + (iz + 1) * g.ny], v[iy + 1 + (iz + 1) * g.ny]];
   const w = [(1 - ty) * (1 - tz), ty * (1 - tz), (1 - ty) * tz, ty * tz];
   if (c.every(Number.isFinite)) return c[0] * w[0] + c[1] * w[1] + c[2] * w[2] + c[3] * w[3];
-  let best = -1;
-  for (let k = 0; k < 4; k++) if (Number.isFinite(c[k]) && (best < 0 || w[k] > w[best])) best = k;
-  return best >= 0 && w[best] >= 0.25 ? c[best] : NaN;
+  // Some neighbours masked: the weighted mean of the finite ones, renormalised, when one of them weighs at least
+  // 0.25 (before: the heaviest one alone, which on a cell boundary picked one side arbitrarily and, across a wake's
+  // flank, gave that cell's value rather than one between the two).
+  let sw = 0, sv = 0, best = 0;
+  for (let k = 0; k < 4; k++) {
+    if (!Number.isFinite(c[k])) continue;
+    sw += w[k]; sv += w[k] * c[k];
+    if (w[k] > best) best = w[k];
+  }
+  return best >= 0.25 && sw > 0 ? sv / sw : NaN;
 }
 
 export interface CutFields {

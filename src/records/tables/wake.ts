@@ -74,7 +74,7 @@ export const wakeTable: Table = {
     col('momentum_ratio', 'one', dec(4), 'momentum deficit over the thrust expected from Ct (1 = all the thrust accounted for)'),
     col('ct', 'one', dec(4), 'thrust coefficient at the hub-height inflow speed'),
     col('flag', 'text', TEXT, 'ok, no_wake, off_edge, too_few_cells, not_converged, absurd_width, no_inflow or horizontal_plane'),
-    col('reason', 'text', TEXT, 'why the row is flagged'),
+    col('reason', 'text', TEXT, 'why the row is flagged; on an ok row, notes (the disk estimator at its search edge; the fitted wake reaching past the plane edge, so its integrals miss a part)'),
     col('wake_turbulence_intensity', 'one', dec(4), 'median turbulence intensity of u over the wake cells (deficit at least half the largest); empty without the uncertainty budget'),
     col('ambient_turbulence_intensity', 'one', dec(4), 'median turbulence intensity of u over the undisturbed cells of the plane (|deficit| below the wake threshold)'),
     col('added_turbulence_intensity', 'one', dec(4), 'added turbulence intensity sqrt(I_wake² - I_ambient²) (Crespo & Hernández 1996, from memory)'),
