@@ -156,7 +156,7 @@ describe('masks', () => {
     expect(f.minCrossing_deg[0]).toBeCloseTo(90, 9);
     expect(f.dopU[0]).toBeCloseTo(1, 12);
     expect(f.assumptions).toEqual([W_ZERO_ASSUMPTION]);
-    expect(W_ZERO_ASSUMPTION).toBe('w = 0 assumed in cells with two instruments');
+    expect(W_ZERO_ASSUMPTION).toBe('w = 0 assumed in cells with two instruments, and in cells of three or more whose three-component solve loses u or v');
   });
 
   it("two instruments with 'none': too_few_instruments, no assumption", () => {

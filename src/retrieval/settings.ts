@@ -53,4 +53,4 @@ export interface PlaneGrid {
 }
 
 /** The one statement pushed into FieldResult.assumptions when any cell used the w = 0 assumption. */
-export const W_ZERO_ASSUMPTION = 'w = 0 assumed in cells with two instruments';
+export const W_ZERO_ASSUMPTION = 'w = 0 assumed in cells with two instruments, and in cells of three or more whose three-component solve loses u or v';

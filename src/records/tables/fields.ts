@@ -5,7 +5,7 @@ const rotor = { frame: 'rotor' } as const;
 
 export const MASK_MEANING =
   'why the component is not retrieved in the cell, empty when it is: no_data, too_few_samples, too_few_instruments, ' +
-  'amplification_above_threshold, singular_geometry, assumed_zero (w = 0 assumed in a two-instrument cell), ' +
+  'amplification_above_threshold, singular_geometry, assumed_zero (w = 0 assumed in a two-instrument cell, or in a cell of three or more whose three-component solve loses u or v), ' +
   'uncertainty_above_threshold (combined standard uncertainty above uncertainty.maxCombined_ms)';
 
 /** What each budget term is (retrieval/budget.ts), for the column meanings. */
