@@ -6,7 +6,7 @@
  * any file is written, with one line naming it.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, lstatSync, readdirSync, readFileSync } from 'node:fs';
+import { closeSync, existsSync, lstatSync, openSync, readdirSync, readFileSync, readSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import type { Campaign } from '../campaign/types.ts';
 import { OutputError } from '../errors.ts';
@@ -23,7 +23,16 @@ interface SimRecord {
 
 const truthDirOf = (c: Campaign) => join(c.baseDir, 'truth');
 const recordPath = (c: Campaign) => join(truthDirOf(c), SIM_RECORD);
-const sha256 = (path: string) => createHash('sha256').update(readFileSync(path)).digest('hex');
+/** SHA-256 of a file read in blocks (simulated data files run to hundreds of MB: never held whole). */
+function sha256(path: string): string {
+  const h = createHash('sha256'), buf = Buffer.allocUnsafe(1 << 20), fd = openSync(path, 'r');
+  try {
+    for (let n; (n = readSync(fd, buf, 0, buf.length, null)) > 0; ) h.update(buf.subarray(0, n));
+  } finally {
+    closeSync(fd);
+  }
+  return h.digest('hex');
+}
 
 /** The files a simulation of `c` writes or replaces: the files the campaign reads (not itself) and its truth folder's. */
 function targets(c: Campaign): string[] {

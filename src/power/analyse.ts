@@ -109,21 +109,25 @@ function mixedWindow(w: PowerWindow, s: PowerSettings): boolean {
 /** Separator of the turbine ids of a group row (power_gain.csv `turbine`). */
 export const GROUP_JOIN = '+';
 
+type StateRow = { window: PowerWindow; state: 'baseline' | 'steered' | 'unknown'; level_deg: number; speed_ms: number; perTurbine: Record<string, WindowPower> };
+
 /**
- * The gain of the compared turbines together at level L: their summed window-mean power over the reference's, in the
- * windows where every one of them and the reference were available. The yawed turbines' own losses count against
- * the downstream turbines' gains, so this is the net answer for the group (the farm's, when the group is every
- * turbine but the reference). Same bins, weights and bootstrap as one turbine's (gain.ts); no deflection.
+ * The gain at level L of one turbine, or of several together: their summed window-mean power over the reference's,
+ * in the windows where every one of them and the reference were available. For a group the yawed turbines' own
+ * losses count against the downstream turbines' gains, so it is the net answer for the group (the farm's, when the
+ * group is every turbine but the reference); named by the ids joined with GROUP_JOIN, without a deflection. Same
+ * bins, weights and bootstrap either way (gain.ts).
  */
-function groupGain(rows: { window: PowerWindow; state: 'baseline' | 'steered' | 'unknown'; level_deg: number; speed_ms: number; perTurbine: Record<string, WindowPower> }[], members: string[], reference: string, L: number, edges: GainEdges, s: PowerSettings): PowerGainResult {
+function gainOf(rows: StateRow[], members: string[], reference: string, L: number, edges: GainEdges, s: PowerSettings): PowerGainResult {
   const list: GainWindow[] = [];
   for (const r of rows) {
     if (r.state === 'unknown') continue;
     if (r.state === 'steered' && !(r.level_deg === L || (Number.isNaN(L) && Number.isNaN(r.level_deg)))) continue;
     const pr = r.perTurbine[reference];
     if (pr.flag !== 'ok' || members.some((m) => r.perTurbine[m].flag !== 'ok')) continue;
-    const sum = members.reduce((acc, m) => acc + r.perTurbine[m].power_kw, 0);
-    list.push({ window: r.window.id, direction_deg: r.window.direction_deg, speed_ms: r.speed_ms, steered: r.state === 'steered', power_kw: sum, reference_kw: pr.power_kw, centre_m: NaN });
+    const power = members.reduce((acc, m) => acc + r.perTurbine[m].power_kw, 0);
+    const centre = members.length === 1 ? r.window.centreAt[members[0]] ?? NaN : NaN;
+    list.push({ window: r.window.id, direction_deg: r.window.direction_deg, speed_ms: r.speed_ms, steered: r.state === 'steered', power_kw: power, reference_kw: pr.power_kw, centre_m: centre });
   }
   return { turbine: members.join(GROUP_JOIN), reference, level_deg: L, result: powerGain(list, edges, s, s.minWindowsPerState ?? 2) };
 }
@@ -131,7 +135,7 @@ function groupGain(rows: { window: PowerWindow; state: 'baseline' | 'steered' | 
 export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], reference: string, downstream: string[], s: PowerSettings): PowerAnalysis {
   const ref = turbines.find((t) => t.id === reference)!;
   let mixed = 0;
-  const rows = windows.map((w) => {
+  const rows: StateRow[] = windows.map((w) => {
     const perTurbine: Record<string, WindowPower> = {};
     for (const t of turbines) perTurbine[t.id] = windowPower(t.series, w.start_s, w.end_s, s);
     const lvl = Number.isFinite(w.level_deg) ? w.level_deg : w.yawOffset_deg;
@@ -151,20 +155,8 @@ export function analysePower(windows: PowerWindow[], turbines: PowerTurbine[], r
   };
   const levels = [...new Set(rows.filter((r) => r.state === 'steered').map((r) => r.level_deg))].sort((a, b) => a - b);
   const gains: PowerGainResult[] = [];
-  for (const d of downstream) {
-    for (const L of levels) {
-      const list: GainWindow[] = [];
-      for (const r of rows) {
-        if (r.state === 'unknown') continue;
-        if (r.state === 'steered' && !(r.level_deg === L || (Number.isNaN(L) && Number.isNaN(r.level_deg)))) continue;
-        const pd = r.perTurbine[d], pr = r.perTurbine[ref.id];
-        if (pd.flag !== 'ok' || pr.flag !== 'ok') continue;
-        list.push({ window: r.window.id, direction_deg: r.window.direction_deg, speed_ms: r.speed_ms, steered: r.state === 'steered', power_kw: pd.power_kw, reference_kw: pr.power_kw, centre_m: r.window.centreAt[d] ?? NaN });
-      }
-      gains.push({ turbine: d, reference: ref.id, level_deg: L, result: powerGain(list, edges, s, s.minWindowsPerState ?? 2) });
-    }
-  }
-  if (downstream.length >= 2) for (const L of levels) gains.push(groupGain(rows, downstream, ref.id, L, edges, s));
+  for (const d of downstream) for (const L of levels) gains.push(gainOf(rows, [d], ref.id, L, edges, s));
+  if (downstream.length >= 2) for (const L of levels) gains.push(gainOf(rows, downstream, ref.id, L, edges, s));
   const flagged = rows.reduce((n, r) => n + Object.values(r.perTurbine).filter((p) => p.flag !== 'ok').length, 0);
   const assumptions = [
     'power gain: the flow is stationary within each wind-direction and wind-speed bin (windows with and without yaw offset differ only by the yaw offset)',
