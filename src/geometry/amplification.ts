@@ -68,17 +68,22 @@ export function eigSym3(N: ArrayLike<number>): [number, number, number] {
   return [l3, l2, l1];
 }
 
+/**
+ * Angle between the lines of beams i and j (rows of A), degrees in [0, 90]: in 3-D, or with `uv` between their
+ * projections on the plane of the first two columns (u, v); 0 for a projection of zero length.
+ */
+function lineAngle(rows: ArrayLike<number>, i: number, j: number, uv = false): number {
+  const a = i * 3, b = j * 3;
+  const za = uv ? 0 : rows[a + 2], zb = uv ? 0 : rows[b + 2];
+  const dot = Math.abs(rows[a] * rows[b] + rows[a + 1] * rows[b + 1] + za * zb);
+  const n = Math.hypot(rows[a], rows[a + 1], za) * Math.hypot(rows[b], rows[b + 1], zb);
+  return n > 0 ? (Math.acos(Math.min(1, dot / n)) * 180) / Math.PI : 0;
+}
+
 /** Smallest angle between the lines of any two of the K unit vectors, degrees (NaN for fewer than two). */
 export function minCrossingAngle(rows: ArrayLike<number>, k: number): number {
   let best = Infinity;
-  for (let i = 0; i < k; i++)
-    for (let j = i + 1; j < k; j++) {
-      const dot = rows[i * 3] * rows[j * 3] + rows[i * 3 + 1] * rows[j * 3 + 1] + rows[i * 3 + 2] * rows[j * 3 + 2];
-      const ni = Math.hypot(rows[i * 3], rows[i * 3 + 1], rows[i * 3 + 2]);
-      const nj = Math.hypot(rows[j * 3], rows[j * 3 + 1], rows[j * 3 + 2]);
-      const ang = (Math.acos(Math.min(1, Math.abs(dot) / (ni * nj))) * 180) / Math.PI;
-      if (ang < best) best = ang;
-    }
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) best = Math.min(best, lineAngle(rows, i, j));
   return k < 2 ? NaN : best;
 }
 
@@ -92,20 +97,11 @@ export function minCrossingAngle(rows: ArrayLike<number>, k: number): number {
 export function bestTripleCrossingAngle(rows: ArrayLike<number>, k: number): number {
   if (k < 3) return NaN;
   const ang = new Float64Array(k * k);
-  for (let i = 0; i < k; i++)
-    for (let j = i + 1; j < k; j++) {
-      const dot = rows[i * 3] * rows[j * 3] + rows[i * 3 + 1] * rows[j * 3 + 1] + rows[i * 3 + 2] * rows[j * 3 + 2];
-      const ni = Math.hypot(rows[i * 3], rows[i * 3 + 1], rows[i * 3 + 2]);
-      const nj = Math.hypot(rows[j * 3], rows[j * 3 + 1], rows[j * 3 + 2]);
-      ang[i * k + j] = (Math.acos(Math.min(1, Math.abs(dot) / (ni * nj))) * 180) / Math.PI;
-    }
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) ang[i * k + j] = lineAngle(rows, i, j);
   let best = -Infinity;
   for (let i = 0; i < k; i++)
     for (let j = i + 1; j < k; j++)
-      for (let l = j + 1; l < k; l++) {
-        const m = Math.min(ang[i * k + j], ang[i * k + l], ang[j * k + l]);
-        if (m > best) best = m;
-      }
+      for (let l = j + 1; l < k; l++) best = Math.max(best, Math.min(ang[i * k + j], ang[i * k + l], ang[j * k + l]));
   return best;
 }
 
@@ -117,13 +113,7 @@ export function bestTripleCrossingAngle(rows: ArrayLike<number>, k: number): num
  */
 export function minCrossingAngleUV(rows: ArrayLike<number>, k: number): number {
   let best = Infinity;
-  for (let i = 0; i < k; i++)
-    for (let j = i + 1; j < k; j++) {
-      const dot = Math.abs(rows[i * 3] * rows[j * 3] + rows[i * 3 + 1] * rows[j * 3 + 1]);
-      const n = Math.hypot(rows[i * 3], rows[i * 3 + 1]) * Math.hypot(rows[j * 3], rows[j * 3 + 1]);
-      const ang = n > 0 ? (Math.acos(Math.min(1, dot / n)) * 180) / Math.PI : 0;
-      if (ang < best) best = ang;
-    }
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) best = Math.min(best, lineAngle(rows, i, j, true));
   return k < 2 ? NaN : best;
 }
 

@@ -219,11 +219,11 @@ export function retrieveStats(
       let dims: 2 | 3 = K >= 3 ? 3 : 2;
       if (K >= 3) {
         solve3(rows, geom, m, wts, K, settings.maxAmplification, sol);
-        if (wZero && uvLost(sol.maskU) + uvLost(sol.maskV) > 0) {
+        const lost3 = uvLost(sol.maskU) + uvLost(sol.maskV);
+        if (wZero && lost3 > 0) {
           // Three or more scanners near the ground: w is barely seen, and solving for it can spoil u and v (their
           // amplification over the limit) where the same beams give u, v well with w = 0, as two scanners would.
           // The w-zero solution is taken when it keeps more of u and v (stated, as in a two-instrument cell).
-          const lost3 = uvLost(sol.maskU) + uvLost(sol.maskV);
           solve2(rows, geom, m, wts, K, settings.maxAmplification, sol2);
           if (uvLost(sol2.maskU) + uvLost(sol2.maskV) < lost3) {
             Object.assign(sol, sol2);
