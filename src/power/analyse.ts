@@ -15,8 +15,8 @@
  * turbine's nacelle wind speed (wind_speed_ms) when its series has one, else the window's measured hub-height inflow
  * speed (the wake analysis); windows without either are left out.
  */
-import { wrapDeg180 } from '../geometry/angles.ts';
 import { rowsInWindow, type Series } from '../io/series.ts';
+import { rowYawOffset } from '../windows/segments.ts';
 import { powerGain, type GainEdges, type GainResult, type GainWindow } from './gain.ts';
 import { windowPower, type WindowPower, type WindowPowerSettings } from './windowPower.ts';
 import type { BootstrapSettings } from './bootstrap.ts';
@@ -89,12 +89,10 @@ function autoEdges(values: number[], width: number, circular: boolean): number[]
  */
 export function meanRowYawOffset(s: Series, start: number, end: number, directionAt: (t: number) => number): number {
   const [lo, hi] = rowsInWindow(s, start, end);
-  const yaw = s.values.yaw_deg, wd = s.values.wind_direction_deg;
-  if (!yaw) return NaN;
+  if (!s.values.yaw_deg) return NaN;
   let sum = 0, n = 0;
   for (let i = lo; i < hi; i++) {
-    const dir = wd && Number.isFinite(wd[i]) ? wd[i] : directionAt(s.time[i]);
-    const g = wrapDeg180(yaw[i] - dir);
+    const g = rowYawOffset(s, i, directionAt);
     if (Number.isFinite(g)) { sum += g; n++; }
   }
   return n ? sum / n : NaN;

@@ -89,6 +89,17 @@ function inSector(d: number, from: number, to: number): boolean {
  * The segment windows of a turbine series (values yaw_deg, optional wind_direction_deg and power_kw).
  * `directionAt(t)` gives the campaign's wind direction where the series has none (NaN when unknown).
  */
+/**
+ * Yaw offset of row i of a turbine series, degrees in [-180, 180): its nacelle direction minus the wind direction at
+ * its time (the row's own wind_direction_deg, else `directionAt(t)`); NaN where either is missing.
+ */
+export function rowYawOffset(series: Series, i: number, directionAt: (t: number) => number): number {
+  const nac = series.values.yaw_deg?.[i] ?? NaN;
+  const wd = series.values.wind_direction_deg;
+  const dir = wd && Number.isFinite(wd[i]) ? wd[i] : directionAt(series.time[i]);
+  return Number.isFinite(nac) && Number.isFinite(dir) ? wrapDeg180(nac - dir) : NaN;
+}
+
 export function segmentWindows(
   series: Series, directionAt: (t: number) => number, s: SegmentSettings,
 ): { windows: Omit<WindowDef, 'id'>[]; summary: SegmentSummary } {
@@ -98,23 +109,20 @@ export function segmentWindows(
   const summary: SegmentSummary = { maxGap_s: s.maxGap_s, total_s: 0, windows_s: 0, excluded_s: excluded, spans: 0, windows: 0 };
   const windows: Omit<WindowDef, 'id'>[] = [];
   if (N === 0) return { windows, summary };
-  const yaw = series.values.yaw_deg, wd = series.values.wind_direction_deg, pw = series.values.power_kw;
+  const wd = series.values.wind_direction_deg, pw = series.values.power_kw;
 
   // State of each row and the interval it holds.
   const state = new Int32Array(N);
   for (let i = 0; i < N; i++) {
-    const nac = yaw[i];
-    let dir = wd ? wd[i] : NaN;
-    if (!Number.isFinite(dir)) dir = directionAt(T[i]);
-    if (!Number.isFinite(nac) || !Number.isFinite(dir)) { state[i] = GAP; continue; }
-    const g = wrapDeg180(nac - dir);
+    const g = rowYawOffset(series, i, directionAt);
+    if (!Number.isFinite(g)) { state[i] = GAP; continue; }
     let best = -1, bestD = Infinity;
     s.levels_deg.forEach((l, j) => {
       const d = Math.abs(wrapDeg180(g - l));
       if (d <= s.tolerance_deg && d < bestD) { best = j; bestD = d; }
     });
     if (best < 0) { state[i] = TRANSITION; continue; }
-    if (s.windSector_deg && !inSector(dir, s.windSector_deg.from, s.windSector_deg.to)) { state[i] = SECTOR; continue; }
+    if (s.windSector_deg && !inSector(wd && Number.isFinite(wd[i]) ? wd[i] : directionAt(T[i]), s.windSector_deg.from, s.windSector_deg.to)) { state[i] = SECTOR; continue; }
     if (s.power_kw) {
       const p = pw ? pw[i] : NaN;
       // A row without a power value (a dropout in a series that has the column) says nothing about the condition:
