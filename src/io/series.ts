@@ -49,7 +49,11 @@ export function readSeries(
   columns: Record<string, string>,
   required: string[],
   optional: string[] = [],
-  opts: { holes?: readonly string[] } = {},
+  opts: {
+    holes?: readonly string[];
+    /** The campaign key that asked for a required column, named when the file lacks it (e.g. a condition bin's). */
+    keyOf?: (name: string) => string | undefined;
+  } = {},
 ): Series {
   const bad = fileProblem(file);
   if (bad) throw new InputError(file, undefined, `series file ${bad.reason}`);
@@ -68,7 +72,10 @@ export function readSeries(
   const idx: Record<string, number> = {};
   for (const name of required) {
     idx[name] = colOf(name);
-    if (idx[name] < 0) throw new InputError(file, 1, `missing required column "${columns[name] ?? name}"${has}`);
+    if (idx[name] < 0) {
+      const key = opts.keyOf?.(name);
+      throw new InputError(file, 1, key ? `${key}: no column "${columns[name] ?? name}"${has}` : `missing required column "${columns[name] ?? name}"${has}`);
+    }
   }
   for (const name of optional) {
     idx[name] = colOf(name);

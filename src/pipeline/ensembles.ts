@@ -42,16 +42,13 @@ export function loadConditionSeries(c: Campaign): ConditionSeries {
     if (need[k].size === 0) continue;
     const r = ref[k];
     if (!r) throw new ConfigError(c.sourceFile, 'conditions.bins', `a bin needs the ${k} series, which the campaign does not have`);
-    // A bin's column may have holes: the window mean skips them (seriesMean).
-    try {
-      out[k] = readSeries(r.file, r.columns, [...need[k]], [], { holes: [...need[k]] });
-    } catch (e) {
-      // A column the file lacks: name the campaign key that asked for it, beside the file and its header.
-      const col = e instanceof InputError && e.line === 1 ? /missing required column "([^"]*)"/.exec(e.reason)?.[1] : undefined;
-      const i = col === undefined ? -1 : bins.findIndex((b) => b.variable.startsWith(`${k}.`) && (r.columns[b.variable.slice(k.length + 1)] ?? b.variable.slice(k.length + 1)) === col);
-      if (i < 0) throw e;
-      throw new InputError(r.file, 1, `conditions.bins[${i}].variable "${bins[i].variable}": ${(e as InputError).reason.replace('missing required column', 'no column')}`);
-    }
+    // A bin's column may have holes: the window mean skips them (seriesMean). A column the file lacks is named with
+    // the campaign key that asked for it, beside the file and its header.
+    const keyOf = (name: string) => {
+      const i = bins.findIndex((b) => b.variable === `${k}.${name}` || (k === 'inflow' && name === 'turbulence_intensity' && b.variable === name));
+      return i < 0 ? undefined : `conditions.bins[${i}].variable "${bins[i].variable}"`;
+    };
+    out[k] = readSeries(r.file, r.columns, [...need[k]], [], { holes: [...need[k]], keyOf });
   }
   return out;
 }
