@@ -95,16 +95,17 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     const K = y.length;
     if (K === 0) { out.push(emptyPoint(ins.id, h, 'no_data', `no sector with ${p.minSamplesPerSector} samples`)); continue; }
     const gap = largestGap(az);
+    const sampleHeight = nSlant > 0 ? height / nSlant : heightAll / nAll;
     if (K < p.minSectors) {
       const pt = emptyPoint(ins.id, h, 'too_few_azimuths', `${K} sectors with data < ${p.minSectors} needed for the fit and its residual`);
-      out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
+      out.push({ ...pt, sampleHeight_m: sampleHeight, sectors: K, samples: nAll, maxGap_deg: gap });
       continue;
     }
     let flag: ProfileFlag = 'ok', reason = '';
     if (p.mode === 'dbs') {
       if (gap >= 135) {
         const pt = emptyPoint(ins.id, h, 'missing_beam', `DBS: ${az.length} slanted beams with data, a gap of ${gap.toFixed(0)} deg around azimuth ${gapMiddle(az).toFixed(0)} (a beam is missing): no fit`);
-        out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
+        out.push({ ...pt, sampleHeight_m: sampleHeight, sectors: K, samples: nAll, maxGap_deg: gap });
         continue;
       }
       if (p.pattern?.vertical && !vertical) { flag = 'missing_beam'; reason = 'DBS: the declared vertical beam has no data; w from the slanted beams'; }
@@ -123,7 +124,7 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     const inv = invertSym3(N);
     if (!Number.isFinite(inv[0])) {
       const pt = emptyPoint(ins.id, h, 'singular', 'beam directions do not determine u, v and w');
-      out.push({ ...pt, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, sectors: K, samples: nAll, maxGap_deg: gap });
+      out.push({ ...pt, sampleHeight_m: sampleHeight, sectors: K, samples: nAll, maxGap_deg: gap });
       continue;
     }
     const U = [0, 1, 2].map((i) => inv[3 * i] * bvec[0] + inv[3 * i + 1] * bvec[1] + inv[3 * i + 2] * bvec[2]);
@@ -142,7 +143,7 @@ export function solveProfile(st: CellStats, layout: ProfilerLayout, opts: Profil
     if (flag === 'ok' && r2 < p.minR2) { flag = 'inhomogeneous'; reason = `R^2 ${r2.toFixed(3)} < ${p.minR2}: a uniform wind does not explain the ring`; }
     const sd = speedDirection(U[0], U[1], inv[0] * scale, inv[4] * scale, inv[1] * scale);
     out.push({
-      instrumentId: ins.id, height_m: h, sampleHeight_m: nSlant > 0 ? height / nSlant : heightAll / nAll, radius_m: radius / nAll,
+      instrumentId: ins.id, height_m: h, sampleHeight_m: sampleHeight, radius_m: radius / nAll,
       u_ms: U[0], v_ms: U[1], w_ms: U[2],
       su_ms: Math.sqrt(inv[0] * scale), sv_ms: Math.sqrt(inv[4] * scale), sw_ms: Math.sqrt(inv[8] * scale),
       speed_ms: sd.speed, sspeed_ms: sd.sspeed, direction_deg: sd.dir, sdirection_deg: sd.sdir,
