@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { resolveCampaign } from '../src/campaign/load.ts';
-import { fitGaussian1D, fitGaussian1DOffset } from '../src/track/gaussian1d.ts';
+import { fitGaussian1D, fitGaussian1DOffset } from '../src/wake/gaussian1d.ts';
 import { solveTrack } from '../src/track/solve.ts';
 import { trackerLayouts } from '../src/track/target.ts';
 import { putKey, statsOf } from './helpers/geometryStats.ts';

@@ -7,9 +7,9 @@ import { FIGURES_DEFAULT, type FiguresSettings, type WindowImages } from '../cam
 import type { Campaign } from '../campaign/types.ts';
 import type { OutputRecord } from '../records/manifest.ts';
 import type { FieldResult } from '../retrieval/types.ts';
-import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
+import type { WakeAnalysis } from '../wake/types.ts';
 import { RenderQueue } from './renderQueue.ts';
-import { FigureCollector, renderRunFigures } from './runFigures.ts';
+import { FigureCollector, renderRunFigures, turbineViewsOf } from './runFigures.ts';
 
 export interface RenderRunOptions {
   /** Images of single windows (default: the campaign's output.figures.windowImages). */
@@ -32,13 +32,8 @@ export async function renderRun(fields: FieldResult[], analysis: WakeAnalysis | 
   };
   const ordered = [...fields].sort((a, b) => a.window.index - b.window.index || a.planeIndex - b.planeIndex);
   const rows = new Map((analysis?.rows ?? []).map((r) => [`${r.planeId}\u0000${r.window.index}`, r]));
-  // Several turbines: every turbine's view of a field ("plane@turbine" rows), for the wake tracks of the panels.
-  const site = new Map<string, WakePlaneWindow[]>();
-  for (const r of analysis?.rows ?? []) {
-    if (r.turbineId === undefined) continue;
-    const k = `${r.planeId.split('@')[0]}\u0000${r.window.index}`;
-    site.set(k, [...(site.get(k) ?? []), r]);
-  }
+  // Several turbines: every turbine's view of a field, for the wake tracks of the panels.
+  const site = turbineViewsOf(analysis?.rows ?? [], (pid, k) => `${pid}\u0000${k}`);
   const collector = new FigureCollector(settings.maxPanels, campaign);
   for (const f of ordered) {
     const k = `${f.planeId}\u0000${f.window.index}`;

@@ -354,7 +354,6 @@ export function secondsText(s: number): string {
   return Number.isFinite(s) ? s.toFixed(3) : '\u2013';
 }
 
-/** Bytes as MiB with one decimal. */
 /** The run's peak memory, or an upper bound when the process had reached its peak before the run started. */
 function peakText(m: RunManifest): string {
   const before = m.peakRssAtStart_bytes;
@@ -366,6 +365,7 @@ function peakText(m: RunManifest): string {
   return `${mibText(m.peakRss_bytes)} MiB (manifest: peakRss_bytes)`;
 }
 
+/** Bytes as MiB with one decimal. */
 export function mibText(bytes: number): string {
   return (bytes / 2 ** 20).toFixed(1);
 }

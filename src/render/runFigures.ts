@@ -53,6 +53,20 @@ class Thinned<T> {
 
 /** Collects what the figures need from each field as it passes (see the file header); windows and condition
  * bins (ensembles) are kept apart, each plane getting one multi-panel figure of each. */
+/**
+ * Several turbines: every turbine's view of a field is a wake row "plane@turbine" (the plane's own turbine keeps the
+ * plane's id); these rows grouped by the field they view, under `keyOf(plane id, window index)`.
+ */
+export function turbineViewsOf(rows: readonly WakePlaneWindow[], keyOf: (planeId: string, window: number) => string): Map<string, WakePlaneWindow[]> {
+  const out = new Map<string, WakePlaneWindow[]>();
+  for (const r of rows) {
+    if (r.turbineId === undefined) continue;
+    const k = keyOf(r.planeId.split('@')[0], r.window.index);
+    out.set(k, [...(out.get(k) ?? []), r]);
+  }
+  return out;
+}
+
 export class FigureCollector {
   readonly scales = new ScaleCollector();
   private readonly planes = new Map<string, Thinned<PanelField>>();
@@ -126,16 +140,11 @@ export async function renderRunFigures(i: RunFiguresInput): Promise<OutputRecord
       ...(analysis?.rows ?? []).map((r) => [key(r.planeId, r.window.index, false), r] as const),
       ...(i.ensembleRows ?? []).map((r) => [key(r.planeId, r.window.index, true), r] as const),
     ]);
-    // Several turbines: every turbine's view of a field is a row "plane@turbine" (the plane's own turbine keeps the
-    // plane's id); the window's map draws all their wakes.
-    const site = new Map<string, WakePlaneWindow[]>();
-    if (campaign.turbines.length > 1) {
-      for (const [r, ens] of [...(analysis?.rows ?? []).map((r) => [r, false] as const), ...(i.ensembleRows ?? []).map((r) => [r, true] as const)]) {
-        if (r.turbineId === undefined) continue;
-        const k = key(r.planeId.split('@')[0], r.window.index, ens);
-        site.set(k, [...(site.get(k) ?? []), r]);
-      }
-    }
+    // Several turbines: the window's map draws every turbine's wake (turbineViewsOf).
+    const site = new Map([
+      ...turbineViewsOf(analysis?.rows ?? [], (pid, k) => key(pid, k, false)),
+      ...turbineViewsOf(i.ensembleRows ?? [], (pid, k) => key(pid, k, true)),
+    ]);
     const want = (_pid: string, k: number, ens: boolean) => windowSelected(ens ? (settings.binImages ?? 'none') : settings.windowImages, k);
     for await (const f of i.windowFields(want)) {
       const ens = f.window.kind === 'ensemble';

@@ -14,7 +14,7 @@
  * track.directionUncertainty_deg; the bins kept, only the projection changed) and the largest change of the fitted
  * centre and width is reported as the direction bias.
  *
- * Per downstream bin: a 1D Gaussian across the wake (gaussian1d.ts; at least 5 bins) and the deficit-weighted
+ * Per downstream bin: a 1D Gaussian across the wake (wake/gaussian1d.ts; at least 5 bins) and the deficit-weighted
  * centroid of the bins above half the peak (NaN when the first or last bin with data is itself above half the peak:
  * the sweep cuts the region and the centroid would lean away from the cut). With at least MIN_BINS_BASELINE bins the
  * Gaussian carries a constant baseline b: a free stream S_ref that is off by a share e (outer bins still in the
@@ -26,7 +26,7 @@
  * (peak below minDeficit), not_converged, off_edge.
  */
 import type { CellStats } from '../retrieval/cellStats.ts';
-import { fitGaussian1D, fitGaussian1DOffset, type Gaussian1DFit } from './gaussian1d.ts';
+import { fitGaussian1D, fitGaussian1DOffset, type Gaussian1DFit } from '../wake/gaussian1d.ts';
 import type { TrackerLayout } from './target.ts';
 import type { TrackFlag, TrackPoint } from './types.ts';
 

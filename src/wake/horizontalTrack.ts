@@ -8,7 +8,7 @@
  * leave planes with cells of 0.4 D, or a wake near the plane's edge, without any centre.
  */
 import type { GridSpec } from '../grid/grid.ts';
-import { levenbergMarquardt } from './levenbergMarquardt.ts';
+import { fitGaussian1DOffset } from './gaussian1d.ts';
 
 /** Valid cells a row needs for its fit: 4 parameters + 2 degrees of freedom. */
 export const MIN_TRACK_CELLS = 6;
@@ -29,16 +29,8 @@ export function horizontalTrack(g: GridSpec, deficit: Float64Array, minDeficit: 
       out.yc_m.push(NaN); out.syc_m.push(NaN); out.sigmaY_m.push(NaN); out.amplitude.push(NaN);
       continue;
     }
-    const r = levenbergMarquardt({
-      n: ys.length, y: ds,
-      model: (p, i, gr) => {
-        const dy = ys[i] - p[1];
-        const e = Math.exp((-0.5 * dy * dy) / (p[2] * p[2]));
-        gr[0] = e; gr[1] = (p[0] * e * dy) / (p[2] * p[2]); gr[2] = (p[0] * e * dy * dy) / (p[2] * p[2] * p[2]); gr[3] = 1;
-        return p[0] * e + p[3];
-      },
-    }, [peak, at, (yMax - yMin) / 8, 0]);
-    const [A, yc, sy] = r.params;
+    const r = fitGaussian1DOffset(ys, ds, [peak, at, (yMax - yMin) / 8, 0]);
+    const A = r.amplitude, yc = r.centre, sy = r.width;
     // Inside the valid cells' span (ys ascending): cells outside a turbine's region are NaN, not part of its row.
     const good = r.converged && yc > ys[0] - g.dy / 2 && yc < ys[ys.length - 1] + g.dy / 2 && A > 0;
     out.yc_m.push(good ? yc : NaN); out.syc_m.push(good ? r.stderr[1] : NaN);

@@ -3,7 +3,7 @@
  * with standard errors from (J^T J)^-1 SSR / (N - p) as scipy.optimize.curve_fit gives with absolute_sigma = False;
  * and the same with a constant baseline, d(c) = A exp(-(c - c0)^2 / (2 s^2)) + b (fitGaussian1DOffset, p = 4).
  */
-import { levenbergMarquardt } from '../wake/levenbergMarquardt.ts';
+import { levenbergMarquardt } from './levenbergMarquardt.ts';
 
 export interface Gaussian1DFit {
   amplitude: number;
