@@ -17,10 +17,50 @@ import type { Calibration, Vec3 } from '../campaign/types.ts';
 export const DEG = Math.PI / 180;
 
 export function unitVector(azimuth_deg: number, elevation_deg: number): Vec3 {
-  const a = azimuth_deg * DEG;
-  const e = elevation_deg * DEG;
-  const ce = Math.cos(e);
-  return [ce * Math.sin(a), ce * Math.cos(a), Math.sin(e)];
+  const out = new Float64Array(3);
+  unitVectorInto(azimuth_deg, elevation_deg, out);
+  return [out[0], out[1], out[2]];
+}
+
+// Minimax coefficients of sin and cos on [-pi/4, pi/4] from fdlibm's kernels (k_sin.c, k_cos.c; Sun Microsystems,
+// 1993, freely distributable), the same polynomials behind most C libraries' sin and cos.
+const S1 = -1.66666666666666324348e-1, S2 = 8.33333333332248946124e-3, S3 = -1.98412698298579493134e-4,
+  S4 = 2.75573137070700676789e-6, S5 = -2.50507602534068634195e-8, S6 = 1.58969099521155010221e-10;
+const C1 = 4.16666666666666019037e-2, C2 = -1.38888888888741095749e-3, C3 = 2.48015872894767294178e-5,
+  C4 = -2.75573143513906633035e-7, C5 = 2.08757232129817482790e-9, C6 = -1.13596475577881948265e-11;
+/** 1.5 * 2^52: x + RND - RND rounds x to the nearest integer (ties to even) for |x| < 2^51. */
+const RND = 6755399441055744;
+/** Per quadrant q (angle = q * 90 deg + r): sin = sin r * QS[q] + cos r * QC[q], cos = cos r * QS[q] - sin r * QC[q]. */
+const QS = Float64Array.of(1, 0, -1, 0), QC = Float64Array.of(0, 1, 0, -1);
+/** Angles beyond this (degrees) go through Math.sin and Math.cos (the reduction below is exact up to about 2^44). */
+const REDUCE_MAX_DEG = 1e9;
+
+/**
+ * The line-of-sight unit vector of unitVector into out[0..2], for per-sample loops: no array per call, and sines and
+ * cosines of angles in degrees reduced exactly to [-45, 45] degrees (angle - 90 n is exact by Sterbenz's lemma), then
+ * the fdlibm kernel polynomials: within 1e-15 of Math.sin and Math.cos (test/geometry-los.test.ts), exact at
+ * multiples of 90 degrees (a vertical beam has no horizontal component), and about half the time of three
+ * Math.sin / Math.cos calls, whose own reduction of radians beyond pi/4 is the slow part.
+ */
+export function unitVectorInto(azimuth_deg: number, elevation_deg: number, out: Float64Array): void {
+  if (!(Math.abs(azimuth_deg) < REDUCE_MAX_DEG && Math.abs(elevation_deg) < REDUCE_MAX_DEG)) {
+    const a = azimuth_deg * DEG, e = elevation_deg * DEG, ce = Math.cos(e);
+    out[0] = ce * Math.sin(a); out[1] = ce * Math.cos(a); out[2] = Math.sin(e);
+    return;
+  }
+  let n = azimuth_deg * (1 / 90) + RND - RND;
+  let x = (azimuth_deg - n * 90) * DEG, z = x * x;
+  let s = x + x * z * (S1 + z * (S2 + z * (S3 + z * (S4 + z * (S5 + z * S6)))));
+  let c = 1 - (0.5 * z - z * z * (C1 + z * (C2 + z * (C3 + z * (C4 + z * (C5 + z * C6))))));
+  let q = n & 3; // n is an integer: its low two bits survive the conversion to 32 bits
+  const sa = s * QS[q] + c * QC[q], ca = c * QS[q] - s * QC[q];
+  n = elevation_deg * (1 / 90) + RND - RND;
+  x = (elevation_deg - n * 90) * DEG; z = x * x;
+  s = x + x * z * (S1 + z * (S2 + z * (S3 + z * (S4 + z * (S5 + z * S6)))));
+  c = 1 - (0.5 * z - z * z * (C1 + z * (C2 + z * (C3 + z * (C4 + z * (C5 + z * C6))))));
+  q = n & 3;
+  const se = s * QS[q] + c * QC[q], ce = c * QS[q] - s * QC[q];
+  out[0] = ce * sa; out[1] = ce * ca; out[2] = se;
 }
 
 /** Azimuth (degrees clockwise from north, in [0, 360)) and elevation (degrees) of a direction vector. */

@@ -46,3 +46,18 @@ export function batchBuffers(b: SampleBatch): ArrayBuffer[] {
   const all = [b.line, b.time, b.instrument, b.azimuth, b.elevation, b.range, b.radialVelocity, b.cnr].map((a) => a.buffer as ArrayBuffer);
   return [...new Set(all)];
 }
+
+/**
+ * Rows per ray in the first `length` rows of a batch: rows over the number of times (instrument, time, azimuth,
+ * elevation) changes from one row to the next (a scanning instrument writes a ray's range gates one after the other;
+ * instruments that focus or gate at the target write one row per beam). NaN for an empty batch.
+ */
+export function gatesPerRay(b: SampleBatch): number {
+  const n = b.length;
+  if (n === 0) return NaN;
+  let rays = 1;
+  for (let i = 1; i < n; i++) {
+    if (b.time[i] !== b.time[i - 1] || b.azimuth[i] !== b.azimuth[i - 1] || b.elevation[i] !== b.elevation[i - 1] || b.instrument[i] !== b.instrument[i - 1]) rays++;
+  }
+  return n / rays;
+}

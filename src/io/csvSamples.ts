@@ -59,6 +59,12 @@ export interface SampleReaderOptions {
    * it when the consumer pulls the next chunk (the reuseBatches contract). @default false
    */
   thread?: boolean;
+  /**
+   * With `thread`: text files (CSV, CSV.gz) too go to the reader thread. The ingest asks for it for files without ray
+   * structure (io/batch.ts gatesPerRay), whose per-sample work on the caller outweighs the parsing (sampleSource.ts).
+   * @default false
+   */
+  textThread?: boolean;
   /** Spare batches to fill instead of allocating (the reader thread's recycled ones). */
   batchPool?: SampleBatch[];
 }

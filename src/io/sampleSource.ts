@@ -54,10 +54,12 @@ export async function checkSamples(path: string, opts: SampleReaderOptions): Pro
 /** Streams the samples of any supported file (see SampleReaderOptions and the readers' docblocks). */
 export async function* openSamples(path: string, opts: SampleReaderOptions): AsyncGenerator<SampleChunk> {
   const format = sampleFormat(path);
-  // The reader thread for NetCDF only: there the HDF5 library's decompression moves off the caller (main thread
-  // 4.0 -> 2.7 CPU-s on the benchmark); CSV parsing moved there measured no gain on two cores (caller -0.5 CPU-s,
-  // the thread +1.6, and the batches' round trips).
-  if (opts.thread && format === 'netcdf') {
+  // The reader thread for NetCDF: there the HDF5 library's decompression moves off the caller (main thread 4.0 ->
+  // 2.7 CPU-s on the benchmark). Text files only when asked (textThread): on the benchmark's scanning rays, whose
+  // gates the ingest mostly rejects by the ray's reach, parsing there was slower on two cores (caller -0.6 CPU-s, the
+  // thread +1.2, the run 0.4-0.9 s longer); without ray structure, where every sample costs the caller its geometry
+  // and accumulation, the run was 0.3 s shorter (caller -0.6 CPU-s).
+  if (opts.thread && (format === 'netcdf' || opts.textThread)) {
     const { readThreaded } = await import('./readerThread.ts');
     yield* readThreaded(path, opts);
   } else if (format === 'netcdf') {

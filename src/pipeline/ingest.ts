@@ -39,13 +39,13 @@
  * beam only when a sample lies beyond it, so rays with many gates cost one march.
  */
 import type { Campaign } from '../campaign/types.ts';
-import { calibrationMatrix } from '../geometry/beam.ts';
+import { calibrationMatrix, unitVectorInto } from '../geometry/beam.ts';
 import { beamHeight, groundDistance } from '../geometry/curvature.ts';
 import { CellAccumulator } from '../grid/accumulator.ts';
 import { NacelleMiss, type NacelleFrame } from '../geometry/nacelle.ts';
 import { FRAME, SAMPLE_FIELDS, windowFrame, type SampleTarget, type WindowFrame } from '../grid/target.ts';
 import { firstBlockedRange, flatTerrain, type Terrain } from '../geometry/terrain.ts';
-import type { RejectedRow, SampleBatch } from '../io/batch.ts';
+import { gatesPerRay, type RejectedRow, type SampleBatch } from '../io/batch.ts';
 import type { SampleChunk } from '../io/csvSamples.ts';
 import { KEEP_PRIMED, openSamples, sampleFormat, type PrimedFiles } from '../io/sampleSource.ts';
 import { readerThreadWanted } from '../io/readerThread.ts';
@@ -144,6 +144,13 @@ interface Live extends OpenWindow {
   frame: WindowFrame;
 }
 
+/**
+ * Text files whose first batch has fewer rows per ray than this (io/batch.ts gatesPerRay) are parsed on the reader
+ * thread (io/sampleSource.ts says what was measured): without ray structure the ingest's per-sample work is the
+ * larger part, with rays of many gates the ray's reach makes most samples cheap and the parsing is.
+ */
+export const TEXT_THREAD_GATES = 2;
+
 /** Rows per batch of the ingest's streams (and of PrimedFiles made for it). */
 export const INGEST_BATCH = 16384;
 
@@ -232,6 +239,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const nacelles = opts.nacelleFrames ?? [];
   const onNacelle = Uint8Array.from(c.instruments, (i) => (nacelles[i.index] ? 1 : 0));
   const nb = new Float64Array(6);
+  // The reported beam's unit vector (instrument frame), per new ray.
+  const los = new Float64Array(3);
   // The sample handed to the targets (fields SAMPLE of grid/target.ts, in that order), reused for every sample.
   const smp = new Float64Array(SAMPLE_FIELDS);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
@@ -248,10 +257,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const readerThread = opts.readerThread ?? readerThreadWanted();
   // Batches of CSV files that ended, for the files read after them (many small files: one allocation, not one each).
   const csvPool: SampleBatch[] = [];
-  const stream = (f: (typeof files)[number]) =>
+  const stream = (f: (typeof files)[number], textThread = false) =>
     openSamples(f.path, {
       instrumentIndex, owner: f.owner, columns: f.ins.columns, sign: f.ins.radialVelocitySign, batchSize: INGEST_BATCH, thread: readerThread,
-      ...(sampleFormat(f.path) === 'netcdf' ? {} : { batchPool: csvPool }),
+      ...(sampleFormat(f.path) === 'netcdf' || textThread ? { textThread } : { batchPool: csvPool }),
     })[Symbol.asyncIterator]();
   const cursors = files.map((f) => {
     const p = opts.primed?.take(f.path, f.owner);
@@ -270,6 +279,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     waiting: false,
     /** The file, to open it again (see waiting). */
     file: f,
+    /** A text file read on the reader thread (see TEXT_THREAD_GATES). */
+    textThread: false,
     path: f.path,
     owner: f.owner,
     rows: 0,
@@ -288,7 +299,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     cur.pending = undefined;
     cur.waiting = true;
     await cur.it.return?.(undefined);
-    cur.it = stream(cur.file);
+    cur.it = stream(cur.file, cur.textThread);
   };
   for (const cur of cursors) {
     const r = await (cur.first ?? cur.it.next());
@@ -298,6 +309,11 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     const f = firstSampleTime(r.value.batch);
     if (f < first) first = f;
     cur.pendingFrom = Number.isFinite(f) ? f : -Infinity;
+    if (readerThread && sampleFormat(cur.path) !== 'netcdf' && gatesPerRay(r.value.batch) < TEXT_THREAD_GATES) {
+      // A text file without ray structure: parsed on the reader thread from its start (its first batch read twice).
+      cur.textThread = true;
+      await release(cur);
+    }
     if (cursors.length <= KEEP_PRIMED) continue;
     const kept = keptOf.get(cur.owner);
     if (kept && kept.pendingFrom <= cur.pendingFrom) await release(cur);
@@ -436,8 +452,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
         if (onNacelle[ins] === 0) {
           if (az !== lastAz[ins] || el !== lastEl[ins]) {
-            const a = (az * Math.PI) / 180, e = (el * Math.PI) / 180, ce = Math.cos(e);
-            const x0 = ce * Math.sin(a), y0 = ce * Math.cos(a), z0 = Math.sin(e);
+            unitVectorInto(az, el, los);
+            const x0 = los[0], y0 = los[1], z0 = los[2];
             const m = Rm[ins];
             nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
             nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
