@@ -6,7 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Calibration, Vec3 } from '../src/campaign/types.ts';
 import {
-  anglesOf, beamPoint, calibratedUnitVector, calibrationMatrix, DEG, mat3Mul, mat3T, steerTo, unitVector, unitVectorInto,
+  anglesOf, beamPoint, calibratedUnitVector, calibrationMatrix, DEG, mat3Mul, mat3T, steerTo, unitVector, unitVectorInto as unitVectorIo,
 } from '../src/geometry/beam.ts';
 import { beamHeight } from '../src/geometry/curvature.ts';
 import { dirFromRotor, dirToRotor, fromRotor, rotorFrame, toRotor, windComponents } from '../src/geometry/frames.ts';
@@ -22,20 +22,22 @@ describe('unitVectorInto: sines and cosines of degrees by exact reduction and po
     // quantises beam components to 2^-26 = 1.5e-8 anyway.
     let seed = 12345;
     const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
-    const out = new Float64Array(3);
+    const io = new Float64Array(5);
     let worst = 0;
     for (let k = 0; k < 1_000_000; k++) {
       const az = -720 + 1440 * rnd(), el = -90 + 180 * rnd();
-      unitVectorInto(az, el, out);
+      io[0] = az; io[1] = el;
+      unitVectorIo(io);
       const a = az * DEG, e = el * DEG;
       const ref = [Math.cos(e) * Math.sin(a), Math.cos(e) * Math.cos(a), Math.sin(e)];
-      for (let i = 0; i < 3; i++) worst = Math.max(worst, Math.abs(out[i] - ref[i]));
+      for (let i = 0; i < 3; i++) worst = Math.max(worst, Math.abs(io[2 + i] - ref[i]));
     }
     expect(worst).toBeLessThan(2e-15);
   });
 
   it('exact at multiples of 90 degrees and known values elsewhere', () => {
     const out = new Float64Array(3);
+    const unitVectorInto = (az: number, el: number, o: Float64Array) => o.set(unitVector(az, el));
     // Vertical beam: no horizontal component at all (Math.cos(pi / 2) would give 6e-17).
     unitVectorInto(123.4, 90, out);
     expect([Math.abs(out[0]), Math.abs(out[1]), out[2]]).toEqual([0, 0, 1]);

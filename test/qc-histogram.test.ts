@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { CellAccumulator, STRIDE, VR_SCALE } from '../src/grid/accumulator.ts';
 import { mulberry32 } from '../src/math/random.ts';
 import { MAD_TO_SIGMA, medianInPlace, robustSigma } from '../src/qc/robust.ts';
-import { DENSE_MAX, FINE_WIDTH, MAX_DISTINCT, VrHistograms, emptyHistogramStats, robustStats, sortedStats } from '../src/qc/vrHistogram.ts';
+import { DENSE_MAX, FINE_SHIFT, FINE_WIDTH, MAX_DISTINCT, VrHistograms, emptyHistogramStats, robustStats, sortedStats } from '../src/qc/vrHistogram.ts';
 
 function gauss(r: () => number): number {
   let g = 0;
@@ -59,7 +59,7 @@ describe('rejected counts and sums', () => {
       const v = new Float64Array(n);
       for (let i = 0; i < n; i++) v[i] = 4 + sd * gauss(r) + (r() < 0.06 ? 80 * r() - 40 : 0);
       const h = histogramOf(v);
-      const w = h.width(0), shift = 11 + h.level[0];
+      const w = h.width(0), shift = FINE_SHIFT + h.level[0];
       const counts = new Map<number, number>();
       for (const x of v) { const b = Math.round(x * VR_SCALE) >> shift; counts.set(b, (counts.get(b) ?? 0) + 1); }
       const bins = [...counts.keys()].sort((a, b) => a - b);
@@ -121,13 +121,13 @@ describe('histogram statistics against the exact sample statistics', () => {
     expect(differing / groups).toBeLessThan(0.02);
   });
 
-  it('finest bins are 2^-9 m/s wide, and a few far outliers do not coarsen the bulk', () => {
+  it('finest bins are 2^-7 m/s wide, and a few far outliers do not coarsen the bulk', () => {
     const r = mulberry32(5);
     const v = Array.from({ length: 2000 }, () => 5 + 0.3 * gauss(r));
     v.push(-60, 60, 55, -45); // four far junk values
     const h = histogramOf(v);
     expect(h.width(0)).toBe(FINE_WIDTH);
-    expect(FINE_WIDTH).toBe(2 ** -9);
+    expect(FINE_WIDTH).toBe(2 ** -7);
   });
 
   it('MAD = 0 (constant data with one spike): the mean-absolute-deviation fallback rejects the spike only', () => {

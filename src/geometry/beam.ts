@@ -17,9 +17,9 @@ import type { Calibration, Vec3 } from '../campaign/types.ts';
 export const DEG = Math.PI / 180;
 
 export function unitVector(azimuth_deg: number, elevation_deg: number): Vec3 {
-  const out = new Float64Array(3);
-  unitVectorInto(azimuth_deg, elevation_deg, out);
-  return [out[0], out[1], out[2]];
+  const io = Float64Array.of(azimuth_deg, elevation_deg, 0, 0, 0);
+  unitVectorInto(io);
+  return [io[2], io[3], io[4]];
 }
 
 // Minimax coefficients of sin and cos on [-pi/4, pi/4] from fdlibm's kernels (k_sin.c, k_cos.c; Sun Microsystems,
@@ -36,16 +36,20 @@ const QS = Float64Array.of(1, 0, -1, 0), QC = Float64Array.of(0, 1, 0, -1);
 const REDUCE_MAX_DEG = 1e9;
 
 /**
- * The line-of-sight unit vector of unitVector into out[0..2], for per-sample loops: no array per call, and sines and
+ * The line-of-sight unit vector of unitVector for per-sample loops: azimuth and elevation (degrees) read from io[0]
+ * and io[1], the vector written to io[2..4]. Numbers in a typed array rather than arguments and a returned array: a
+ * call the optimiser does not inline (the ingest's loop is too large for that) boxes every number passed to it on the
+ * heap. Sines and
  * cosines of angles in degrees reduced exactly to [-45, 45] degrees (angle - 90 n is exact by Sterbenz's lemma), then
  * the fdlibm kernel polynomials: within 1e-15 of Math.sin and Math.cos (test/geometry-los.test.ts), exact at
  * multiples of 90 degrees (a vertical beam has no horizontal component), and about half the time of three
  * Math.sin / Math.cos calls, whose own reduction of radians beyond pi/4 is the slow part.
  */
-export function unitVectorInto(azimuth_deg: number, elevation_deg: number, out: Float64Array): void {
+export function unitVectorInto(io: Float64Array): void {
+  const azimuth_deg = io[0], elevation_deg = io[1];
   if (!(Math.abs(azimuth_deg) < REDUCE_MAX_DEG && Math.abs(elevation_deg) < REDUCE_MAX_DEG)) {
     const a = azimuth_deg * DEG, e = elevation_deg * DEG, ce = Math.cos(e);
-    out[0] = ce * Math.sin(a); out[1] = ce * Math.cos(a); out[2] = Math.sin(e);
+    io[2] = ce * Math.sin(a); io[3] = ce * Math.cos(a); io[4] = Math.sin(e);
     return;
   }
   let n = azimuth_deg * (1 / 90) + RND - RND;
@@ -60,7 +64,7 @@ export function unitVectorInto(azimuth_deg: number, elevation_deg: number, out: 
   c = 1 - (0.5 * z - z * z * (C1 + z * (C2 + z * (C3 + z * (C4 + z * (C5 + z * C6))))));
   q = n & 3;
   const se = s * QS[q] + c * QC[q], ce = c * QS[q] - s * QC[q];
-  out[0] = ce * sa; out[1] = ce * ca; out[2] = se;
+  io[2] = ce * sa; io[3] = ce * ca; io[4] = se;
 }
 
 /** Azimuth (degrees clockwise from north, in [0, 360)) and elevation (degrees) of a direction vector. */

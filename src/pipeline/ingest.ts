@@ -239,8 +239,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const nacelles = opts.nacelleFrames ?? [];
   const onNacelle = Uint8Array.from(c.instruments, (i) => (nacelles[i.index] ? 1 : 0));
   const nb = new Float64Array(6);
-  // The reported beam's unit vector (instrument frame), per new ray.
-  const los = new Float64Array(3);
+  // The reported beam's angles and unit vector (instrument frame), per new ray (geometry/beam.ts unitVectorInto).
+  const los = new Float64Array(5);
   // The sample handed to the targets (fields SAMPLE of grid/target.ts, in that order), reused for every sample.
   const smp = new Float64Array(SAMPLE_FIELDS);
   const missReason = [R.no_nacelle_direction, R.wrong_beam_frame];
@@ -452,8 +452,9 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         let ne: number, nn: number, nu: number, oe: number, on: number, ou: number;
         if (onNacelle[ins] === 0) {
           if (az !== lastAz[ins] || el !== lastEl[ins]) {
-            unitVectorInto(az, el, los);
-            const x0 = los[0], y0 = los[1], z0 = los[2];
+            los[0] = az; los[1] = el;
+            unitVectorInto(los);
+            const x0 = los[2], y0 = los[3], z0 = los[4];
             const m = Rm[ins];
             nE[ins] = m[0] * x0 + m[1] * y0 + m[2] * z0;
             nN[ins] = m[3] * x0 + m[4] * y0 + m[5] * z0;
