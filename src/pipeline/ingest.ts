@@ -415,6 +415,14 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     opts.onBatch?.(b);
     const drop = opts.suspicion?.batch(b, chunk.rejected); // 1 = duplicate to drop (qc.dropDuplicates)
     if (chunk.rejected.length) countUnreadable(chunk.rejected, owner);
+    processSamples(b, drop, seen);
+  };
+
+  // The per-sample loop, apart from the per-batch calls above: optimised code that meets a call or a branch it has
+  // never seen run goes back to the interpreter and is compiled again (this function alone took about 0.1 CPU-s per
+  // compilation on the compiler threads, a dozen times per run, when the first unreadable row or the first sample
+  // of a new window came after it was first optimised).
+  const processSamples = (b: SampleBatch, drop: Uint8Array | undefined, seen: Uint8Array) => {
     rFrom = Infinity; rTo = -Infinity; // windows may have finished since the last batch
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
@@ -443,9 +451,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         if (!(t >= rFrom && t < rTo)) enterRange(t);
         if (nLive === 0) { why = nFound > 0 ? R_OUT_OF_ORDER : R_OUTSIDE_WINDOWS; break sample; }
         for (let k = 0; k < nLive; k++) {
-          const fr = liveFrames[k];
-          if (t < fr[FRAME.first]) fr[FRAME.first] = t;
-          if (t > fr[FRAME.last]) fr[FRAME.last] = t;
+          // Stored whatever the comparison (a store first met in optimised code sends it back to the interpreter).
+          const fr = liveFrames[k], f0 = fr[FRAME.first], f1 = fr[FRAME.last];
+          fr[FRAME.first] = t < f0 ? t : f0;
+          fr[FRAME.last] = t > f1 ? t : f1;
         }
         if (nDirected === 0) { why = R_NO_DIRECTION; break sample; }
         const az = b.azimuth[i], el = b.elevation[i];
