@@ -97,6 +97,9 @@ function emptyField(pg: PlaneGrid, window: WindowInfo, direction_deg: number): F
     instruments: new Uint8Array(nc),
     maskU: mask(), maskV: mask(), maskW: mask(),
     assumptions: [],
+    // Present from the start (filled by the budget pass): a property added later gives the object another shape,
+    // and the stages' optimised code, made for one shape, went back to the interpreter on the other.
+    budget: undefined,
   };
 }
 
