@@ -13,6 +13,9 @@ import { TrustCategory } from '../src/plan/cellTrust.ts';
 import { probeFootprint } from '../src/plan/footprint.ts';
 import { planCampaign } from '../src/plan/planCampaign.ts';
 import { meanDirection } from '../src/plan/settings.ts';
+import { retrieveFromArrays } from '../src/api/retrieveArrays.ts';
+import { W_ZERO_ASSUMPTION } from '../src/retrieval/settings.ts';
+import { MaskReason } from '../src/retrieval/types.ts';
 
 const groundLayout = (deg: number, planeX: number, yc: number): CampaignInput => ({
   name: 'ref-layout',
@@ -105,6 +108,69 @@ describe('two beams (REFERENCES.md section 2 crossing-angle table; Stawiarski et
     // the same geometry with 'none': the retrieval masks two-instrument cells, so nothing passes
     const none = planCampaign({ ...camp, retrieval: { ...camp.retrieval, twoInstrumentAssumption: 'none' } }, { layout: false, pointing: false }).planes[0].trust;
     expect([none.passU[0], none.passV[0]]).toEqual([0, 0]);
+  });
+});
+
+describe('three beams that confound u with w: judged as the run solves them (w = 0 when that keeps more of u and v)', () => {
+  // Beams whose vertical part is nearly a fixed fraction of their along-wind part (dz/dx = 0.1, 0.1, 0.12): the
+  // three-component system cannot tell u from w (amplification of u about 6.8, of w about 63), while u and v with
+  // w = 0 are well determined. Target T = (200, 0, 50), wind from 270 (rotor x = east, y = north).
+  const T = [200, 0, 50];
+  const P: [number, number, number][] = [[-100, -120, 20], [-100, 120, 20], [-50, 0, 20]];
+  const camp = resolveCampaign(
+    {
+      name: 'confounded',
+      turbine: { position_m: [0, 0, 0], hubHeight_m: 50, rotorDiameter_m: 40 },
+      instruments: P.map((p, i) => ({ id: `s${i}`, position_m: p })),
+      planes: [{ id: 'p', x_m: 200, y: { min: -5, max: 5 }, z: { min: 45, max: 55 }, cell_m: [10, 10] }],
+      windDirection: { kind: 'fixed', deg: 270 },
+      plan: { maxFootprintCells: 1000 },
+    },
+    '<memory>',
+  );
+  const beams = P.map((p) => {
+    const d = [T[0] - p[0], T[1] - p[1], T[2] - p[2]], L = Math.hypot(d[0], d[1], d[2]);
+    return [d[0] / L, d[1] / L, d[2] / L];
+  });
+
+  it('the planner reports u and v from the w = 0 system (dilution of precision, Milbert 2008), w not resolved', () => {
+    const t = planCampaign(camp, { layout: false, pointing: false }).planes[0].trust;
+    // w = 0: A has rows (n_x, n_y); by the layout's symmetry sum n_x n_y = 0, so (A^T A)^-1 is diagonal and the
+    // amplifications are 1 / sqrt(sum n_x^2) and 1 / sqrt(sum n_y^2). Tolerance 1e-9: rounding only.
+    const sx = beams.reduce((a, n) => a + n[0] * n[0], 0), sy = beams.reduce((a, n) => a + n[1] * n[1], 0);
+    expect(Math.abs(beams.reduce((a, n) => a + n[0] * n[1], 0))).toBeLessThan(1e-12); // the symmetry used
+    expect(Math.abs(t.dopU[0] - 1 / Math.sqrt(sx))).toBeLessThan(1e-9);
+    expect(Math.abs(t.dopV[0] - 1 / Math.sqrt(sy))).toBeLessThan(1e-9);
+    expect(t.dopW[0]).toBeNaN();
+    expect([t.passU[0], t.passV[0], t.passW[0]]).toEqual([1, 1, 0]);
+    expect(t.category[0]).toBe(TrustCategory.w_not_resolved);
+    // The crossing criterion (plan.minCrossing_deg, 30 by default) on the best two beams in u, v: s0 and s1 cross at
+    // 2 atan(120 / 300) = 43.6 degrees there, while s2 lies 21.7 degrees from either in 3-D.
+    expect(camp.plan.minCrossing_deg).toBe(30);
+    // Without the w = 0 assumption the three-component system stands: u fails on amplification (above 3), and the
+    // three beams' smallest crossing (21.7 degrees) fails the crossing criterion, which comes first.
+    const none = planCampaign({ ...camp, retrieval: { ...camp.retrieval, twoInstrumentAssumption: 'none' } }, { layout: false, pointing: false }).planes[0].trust;
+    expect(none.dopU[0]).toBeGreaterThan(camp.retrieval.maxAmplification);
+    expect(none.passU[0]).toBe(0);
+    expect(none.category[0]).toBe(TrustCategory.parallel_beams);
+  });
+
+  it('the run retrieves the same cell with w = 0, recovering a horizontal wind exactly', () => {
+    // Radial velocities of the uniform wind U = (8, 1, 0) (v_r = n . U): with w = 0 true, the w = 0 solve is exact.
+    const U = [8, 1, 0], n = 30;
+    const s = { plane: [] as number[], cell: [] as number[], instrument: [] as number[], radialVelocity: [] as number[], beamX: [] as number[], beamY: [] as number[], beamZ: [] as number[] };
+    beams.forEach((b, i) => {
+      for (let k = 0; k < n; k++) {
+        s.plane.push(0); s.cell.push(0); s.instrument.push(i);
+        s.radialVelocity.push(b[0] * U[0] + b[1] * U[1] + b[2] * U[2]);
+        s.beamX.push(b[0]); s.beamY.push(b[1]); s.beamZ.push(b[2]);
+      }
+    });
+    const f = retrieveFromArrays(camp, s, { index: 0, start_s: 0, end_s: 600 }, 270).fields[0];
+    expect(Math.abs(f.u[0] - 8)).toBeLessThan(1e-6); // fixed-point sums quantise v_r to 1e-6 m/s
+    expect(Math.abs(f.v[0] - 1)).toBeLessThan(1e-5); // v's amplification 1.9 times that
+    expect(f.maskW[0]).toBe(MaskReason.assumedZero);
+    expect(f.assumptions).toContain(W_ZERO_ASSUMPTION);
   });
 });
 

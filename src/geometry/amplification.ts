@@ -117,6 +117,17 @@ export function minCrossingAngleUV(rows: ArrayLike<number>, k: number): number {
   return k < 2 ? NaN : best;
 }
 
+/**
+ * Best crossing of two beams among K as a two-component (w = 0) system sees them: the largest angle between the
+ * u, v projections of any two beams, degrees in [0, 90] (NaN for fewer than two). The pair analogue of
+ * bestTripleCrossingAngle: a redundant beam beside another never makes the crossing worse.
+ */
+export function bestPairCrossingAngleUV(rows: ArrayLike<number>, k: number): number {
+  let best = -Infinity;
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) best = Math.max(best, lineAngle(rows, i, j, true));
+  return k < 2 ? NaN : best;
+}
+
 /** Amplification, conditioning and crossing angle of K >= 1 beams (rows of A in `rows`). */
 export function amplification3(rows: ArrayLike<number>, k: number): Amplification3 {
   const N = normalMatrix(rows, k);

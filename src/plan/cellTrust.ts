@@ -3,7 +3,10 @@
  *
  * The beams that can serve a cell (no hard flag) form the rows of A. With three or more, the error amplification of
  * u, v, w is sqrt(diag((A^T A)^-1)) (geometry/amplification.ts, amplification3); with two and the campaign's w = 0
- * assumption, u and v come from the two-component system (amplification2) and w is not resolved. A component passes
+ * assumption, u and v come from the two-component system (amplification2) and w is not resolved. With three or more
+ * whose three-component system loses u or v to amplification, the w = 0 system is taken when it keeps more of them,
+ * as the run's retrieval does (its amplification and condition number reported, w not resolved, and the crossing
+ * criterion on the best two beams' u, v projections, bestPairCrossingAngleUV). A component passes
  * when its amplification is at most retrieval.maxAmplification and the cell carries no soft flag: crossing angle
  * below plan.minCrossing_deg (nearly parallel beams: with three or more beams, no three of them whose smallest
  * crossing reaches it, bestTripleCrossingAngle, so an extra beam beside another never costs trust; for two beams under
@@ -18,7 +21,7 @@
  * with three or more plane scanners; u and v in a horizontal plane (near-horizontal beams do not resolve w) and with
  * two scanners (w = 0 assumed). "Trusted" and the fraction `all` refer to the target components.
  */
-import { amplification2, amplification3, bestTripleCrossingAngle, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
+import { amplification2, amplification3, bestPairCrossingAngleUV, bestTripleCrossingAngle, invertSym3, minCrossingAngle, minCrossingAngleUV, normalMatrix } from '../geometry/amplification.ts';
 import { BeamFlag, HARD_BEAM_FLAGS, type BeamCells } from './beamCells.ts';
 import type { PlanSettings } from './settings.ts';
 
@@ -127,6 +130,7 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     if (soft & BeamFlag.footprint) reasons |= CellReason.footprint;
     if (soft & BeamFlag.probeModel) reasons |= CellReason.probeModel;
     let okU = false, okV = false, okW = false;
+    let wZero3 = false; // three or more beams judged as the w = 0 system
     if (k >= 3) {
       let du: number, dv: number, dw: number;
       if (withCond) {
@@ -141,6 +145,18 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
       }
       t.dopU[c] = du; t.dopV[c] = dv; t.dopW[c] = dw;
       okU = du <= maxA; okV = dv <= maxA; okW = dw <= maxA;
+      if (s.twoInstrumentAssumption === 'w-zero' && !(okU && okV)) {
+        // The run solves such a cell for u and v with w = 0 when that keeps more of them (retrieval/retrieveWindow.ts:
+        // beams whose vertical and along-wind parts move together confound u with w); judged here as it will be.
+        const a2 = amplification2(rows, k);
+        const ok2U = a2.dop[0] <= maxA, ok2V = a2.dop[1] <= maxA;
+        if (Number(ok2U) + Number(ok2V) > Number(okU) + Number(okV)) {
+          t.dopU[c] = a2.dop[0]; t.dopV[c] = a2.dop[1]; t.dopW[c] = NaN;
+          if (withCond) t.cond[c] = a2.cond;
+          okU = ok2U; okV = ok2V; okW = false;
+          wZero3 = true;
+        }
+      }
     } else if (k === 2) {
       const a = amplification2(rows, 2);
       t.dopU[c] = a.dop[0]; t.dopV[c] = a.dop[1];
@@ -153,7 +169,8 @@ export function assessCells(beams: readonly Pick<BeamCells, 'dir' | 'flags'>[], 
     // Crossing criterion: two beams (w = 0) by their u, v crossing; three or more by the best three of them, so that
     // a redundant beam nearly parallel to another never fails a cell (least squares: adding a beam can only lower
     // the amplification). minCrossing_deg still reports the smallest angle between any two usable beams.
-    const crossing = k >= 3 ? bestTripleCrossingAngle(rows, k) : t.minCrossing_deg[c];
+    // Three or more judged with w = 0: the best two of them in u, v (the w = 0 system needs two crossing beams).
+    const crossing = wZero3 ? bestPairCrossingAngleUV(rows, k) : k >= 3 ? bestTripleCrossingAngle(rows, k) : t.minCrossing_deg[c];
     if (k >= 2 && crossing < s.minCrossing_deg) reasons |= CellReason.parallelBeams;
     if (k >= 2 && !(t.dopU[c] <= maxA)) reasons |= CellReason.amplificationU;
     if (k >= 2 && !(t.dopV[c] <= maxA)) reasons |= CellReason.amplificationV;

@@ -12,6 +12,9 @@ Independent formulas:
 - error amplification sqrt(diag((A^T A)^-1)), condition number sigma_max / sigma_min (numpy SVD): least squares
   covariance, e.g. Golub & Van Loan (2013) ch. 5; dual-/multi-Doppler use: Stawiarski et al. (2013) JTECH 30.
 - crossing angle: angle between the beam lines (0..90 deg).
+- with the w = 0 assumption, a cell of three or more beams whose u or v amplification fails is judged as the w = 0
+  system A[:, :2] when that keeps more of u and v (as the run's retrieval solves it): w not resolved, crossing by
+  the best two beams' horizontal projections.
 - pulsed probe FWHM of [erf((s+dp/2)/rp) - erf((s-dp/2)/rp)]/(2dp), rp = c tau / (4 sqrt(ln 2)) (Banakh & Smalikho
   1997, from memory; REFERENCES.md section on probe volumes); CW FWHM 2 lambda R^2 / (pi a^2) (Sonnenschein &
   Horrigan 1971, from memory).
@@ -187,12 +190,26 @@ def main():
                 minC = plan.get('minCrossing_deg', 30)
                 soft = any(f in (row[i2['id'] + '_flags'] or '') for i2 in case['instruments'] for f in ('footprint', 'probeModel')
                            if not any(h in (row[i2['id'] + '_flags'] or '') for h in ('ground', 'elevation', 'range', 'rotor', 'terrain')))
+                w0mode = False
                 if len(rows) >= 3:
                     # crossing criterion: some three beams cross pairwise at minCrossing or more (see cellTrust.ts)
                     import itertools
                     ang = lambda i, j: math.degrees(math.acos(min(1, abs(np.dot(A[i], A[j])))))
                     best3 = max(min(ang(i, j), ang(i, l), ang(j, l)) for i, j, l in itertools.combinations(range(len(rows)), 3))
                     ampAll = np.sqrt(np.diag(np.linalg.inv(A.T @ A)))
+                    # With the w = 0 assumption (the default), a cell whose three-component system loses u or v to
+                    # amplification is judged as the w = 0 system of its beams when that keeps more of u and v (as the
+                    # run solves it): u, v amplification of A[:, :2], w not resolved, crossing by the best two beams'
+                    # horizontal projections.
+                    if case.get('retrieval', {}).get('twoInstrumentAssumption', 'w-zero') == 'w-zero':
+                        lost3 = int(not ampAll[0] <= maxA) + int(not ampAll[1] <= maxA)
+                        amp2 = np.sqrt(np.diag(np.linalg.inv(A[:, :2].T @ A[:, :2])))
+                        lost2 = int(not amp2[0] <= maxA) + int(not amp2[1] <= maxA)
+                        if lost3 > 0 and lost2 < lost3:
+                            w0mode = True
+                            hz = lambda i, j: math.degrees(math.acos(min(1, abs(np.dot(A[i, :2], A[j, :2])) / (np.linalg.norm(A[i, :2]) * np.linalg.norm(A[j, :2])))))
+                            best3 = max(hz(i, j) for i, j in itertools.combinations(range(len(rows)), 2))
+                            ampAll = np.array([amp2[0], amp2[1], np.inf])
                     ok = [a_ <= maxA and best3 >= minC and not soft for a_ in ampAll]
                     for c_, o_ in zip('uvw', ok):
                         check(int(row[c_ + '_pass']) == int(o_), '%s/%s cell %s %s_pass %s vs %s' % (case['name'], pl['id'], row['cell'], c_, row[c_ + '_pass'], o_))
@@ -201,6 +218,10 @@ def main():
                 if len(rows) >= 3:
                     amp = np.sqrt(np.diag(np.linalg.inv(A.T @ A)))
                     sv = np.linalg.svd(A, compute_uv=False); cond = sv[0] / sv[-1]
+                    if w0mode:
+                        amp = np.sqrt(np.diag(np.linalg.inv(A[:, :2].T @ A[:, :2])))
+                        sv = np.linalg.svd(A[:, :2], compute_uv=False); cond = sv[0] / sv[-1]
+                        check(row['w_amplification'] == '', 'w amplification %r for a w = 0 cell' % row['w_amplification'])
                     cr = min(math.degrees(math.acos(min(1, abs(np.dot(A[i], A[j]))))) for i in range(len(rows)) for j in range(i + 1, len(rows)))
                     for c, v in zip('uvw', amp):
                         g = float(row[c + '_amplification'])
@@ -223,6 +244,7 @@ def main():
                 ampX = {}
                 if k_ >= 3:
                     ampX = dict(zip('uvw', np.sqrt(np.diag(np.linalg.inv(A.T @ A)))))
+                    if w0mode: ampX = dict(u=ampAll[0], v=ampAll[1], w=np.inf)  # w not resolved: fails its amplification
                     crossC = best3
                 elif k_ == 2:
                     ampX = dict(zip('uv', np.sqrt(np.diag(np.linalg.inv(A[:, :2].T @ A[:, :2])))))
