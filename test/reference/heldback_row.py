@@ -380,20 +380,22 @@ def bin_of(edges, v, circular=False):
     return -1
 
 
-def gains(turbine):
-    """Per bin [baseline windows, steered windows] and the energy-ratio statistics."""
+def gains(members):
+    """Per bin [baseline windows, steered windows] of the members' summed power (one turbine, or a group: windows
+    where every member and the reference have power; README "Power gain of wake steering", group rows)."""
     groups = {}
     for w in per_window:
-        if w["flag"][turbine] != "ok" or w["flag"]["Q-0"] != "ok":
+        if any(w["flag"][m] != "ok" for m in members) or w["flag"]["Q-0"] != "ok":
             continue
         i, j = bin_of(DIR_EDGES, w["direction"], True), bin_of(SPEED_EDGES, w["speed"])
         assert i >= 0 and j >= 0
-        groups.setdefault((i, j), ([], []))[1 if w["state"] == "steered" else 0].append((w["power"][turbine], w["power"]["Q-0"], w["window"]))
+        groups.setdefault((i, j), ([], []))[1 if w["state"] == "steered" else 0].append((sum(w["power"][m] for m in members), w["power"]["Q-0"], w["window"]))
     return groups
 
 
 def ratio(g):
-    return sum(p for p, _, _ in g) / sum(r for _, r, _ in g)
+    """Energy ratio of a list of windows; NaN for none (a bin without windows of a state)."""
+    return sum(p for p, _, _ in g) / sum(r for _, r, _ in g) if g else float("nan")
 
 
 expected = {"windows": per_window, "gains": {}, "faults": faults,
@@ -404,8 +406,9 @@ if "--no-bootstrap" not in sys.argv:
         from scipy.stats import bootstrap
     except ImportError:  # pragma: no cover
         pass
-for turb in ("R-2", "R-3"):
-    groups = gains(turb)
+for members in (("R-1",), ("R-2",), ("R-3",), ("R-1", "R-2", "R-3")):
+    turb = "+".join(members)
+    groups = gains(members)
     keys = sorted(groups)
     used = [k for k in keys if len(groups[k][0]) >= 2 and len(groups[k][1]) >= 2]
     total = sum(len(groups[k][0]) + len(groups[k][1]) for k in used)
