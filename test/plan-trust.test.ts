@@ -146,7 +146,7 @@ describe('three beams that confound u with w: judged as the run solves them (w =
     expect(t.category[0]).toBe(TrustCategory.w_not_resolved);
     // The crossing criterion (plan.minCrossing_deg, 30 by default) on the best two beams in u, v: s0 and s1 cross at
     // 2 atan(120 / 300) = 43.6 degrees there, while s2 lies 21.7 degrees from either in 3-D.
-    expect(camp.plan.minCrossing_deg).toBe(30);
+    expect(camp.plan?.minCrossing_deg).toBe(30);
     // Without the w = 0 assumption the three-component system stands: u fails on amplification (above 3), and the
     // three beams' smallest crossing (21.7 degrees) fails the crossing criterion, which comes first.
     const none = planCampaign({ ...camp, retrieval: { ...camp.retrieval, twoInstrumentAssumption: 'none' } }, { layout: false, pointing: false }).planes[0].trust;
