@@ -22,14 +22,19 @@ export function unitVector(azimuth_deg: number, elevation_deg: number): Vec3 {
   return [io[2], io[3], io[4]];
 }
 
-// Minimax coefficients of sin and cos on [-pi/4, pi/4] from fdlibm's kernels (k_sin.c, k_cos.c; Sun Microsystems,
-// 1993, freely distributable), the same polynomials behind most C libraries' sin and cos.
-const S1 = -1.66666666666666324348e-1, S2 = 8.33333333332248946124e-3, S3 = -1.98412698298579493134e-4,
-  S4 = 2.75573137070700676789e-6, S5 = -2.50507602534068634195e-8, S6 = 1.58969099521155010221e-10;
-const C1 = 4.16666666666666019037e-2, C2 = -1.38888888888741095749e-3, C3 = 2.48015872894767294178e-5,
-  C4 = -2.75573143513906633035e-7, C5 = 2.08757232129817482790e-9, C6 = -1.13596475577881948265e-11;
-/** 1.5 * 2^52: x + RND - RND rounds x to the nearest integer (ties to even) for |x| < 2^51. */
-const RND = 6755399441055744;
+/**
+ * Minimax coefficients of sin and cos on [-pi/4, pi/4] from fdlibm's kernels (k_sin.c, k_cos.c; Sun Microsystems,
+ * 1993, freely distributable), the same polynomials behind most C libraries' sin and cos; RND = 1.5 * 2^52 (x + RND -
+ * RND rounds x to the nearest integer, ties to even, for |x| < 2^51). A const enum: the build writes the values into
+ * the code (module-level constants are loaded and checked at every use in optimised code: twice the time here).
+ */
+const enum P {
+  S1 = -1.66666666666666324348e-1, S2 = 8.33333333332248946124e-3, S3 = -1.98412698298579493134e-4,
+  S4 = 2.75573137070700676789e-6, S5 = -2.50507602534068634195e-8, S6 = 1.58969099521155010221e-10,
+  C1 = 4.16666666666666019037e-2, C2 = -1.38888888888741095749e-3, C3 = 2.48015872894767294178e-5,
+  C4 = -2.75573143513906633035e-7, C5 = 2.08757232129817482790e-9, C6 = -1.13596475577881948265e-11,
+  RND = 6755399441055744, DEG = 0.017453292519943295, INV90 = 0.011111111111111112,
+}
 /** Per quadrant q (angle = q * 90 deg + r): sin = sin r * QS[q] + cos r * QC[q], cos = cos r * QS[q] - sin r * QC[q]. */
 const QS = Float64Array.of(1, 0, -1, 0), QC = Float64Array.of(0, 1, 0, -1);
 /** Angles beyond this (degrees) go through Math.sin and Math.cos (the reduction below is exact up to about 2^44). */
@@ -52,16 +57,16 @@ export function unitVectorInto(io: Float64Array): void {
     io[2] = ce * Math.sin(a); io[3] = ce * Math.cos(a); io[4] = Math.sin(e);
     return;
   }
-  let n = azimuth_deg * (1 / 90) + RND - RND;
-  let x = (azimuth_deg - n * 90) * DEG, z = x * x;
-  let s = x + x * z * (S1 + z * (S2 + z * (S3 + z * (S4 + z * (S5 + z * S6)))));
-  let c = 1 - (0.5 * z - z * z * (C1 + z * (C2 + z * (C3 + z * (C4 + z * (C5 + z * C6))))));
+  let n = azimuth_deg * P.INV90 + P.RND - P.RND;
+  let x = (azimuth_deg - n * 90) * P.DEG, z = x * x;
+  let s = x + x * z * (P.S1 + z * (P.S2 + z * (P.S3 + z * (P.S4 + z * (P.S5 + z * P.S6)))));
+  let c = 1 - (0.5 * z - z * z * (P.C1 + z * (P.C2 + z * (P.C3 + z * (P.C4 + z * (P.C5 + z * P.C6))))));
   let q = n & 3; // n is an integer: its low two bits survive the conversion to 32 bits
   const sa = s * QS[q] + c * QC[q], ca = c * QS[q] - s * QC[q];
-  n = elevation_deg * (1 / 90) + RND - RND;
-  x = (elevation_deg - n * 90) * DEG; z = x * x;
-  s = x + x * z * (S1 + z * (S2 + z * (S3 + z * (S4 + z * (S5 + z * S6)))));
-  c = 1 - (0.5 * z - z * z * (C1 + z * (C2 + z * (C3 + z * (C4 + z * (C5 + z * C6))))));
+  n = elevation_deg * P.INV90 + P.RND - P.RND;
+  x = (elevation_deg - n * 90) * P.DEG; z = x * x;
+  s = x + x * z * (P.S1 + z * (P.S2 + z * (P.S3 + z * (P.S4 + z * (P.S5 + z * P.S6)))));
+  c = 1 - (0.5 * z - z * z * (P.C1 + z * (P.C2 + z * (P.C3 + z * (P.C4 + z * (P.C5 + z * P.C6))))));
   q = n & 3;
   const se = s * QS[q] + c * QC[q], ce = c * QS[q] - s * QC[q];
   io[2] = ce * sa; io[3] = ce * ca; io[4] = se;
