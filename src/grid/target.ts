@@ -15,7 +15,9 @@ import type { CellAccumulator } from './accumulator.ts';
  * values (an object's fields change representation with their values, which throws optimised code away).
  */
 export type WindowFrame = Float64Array;
-export const FRAME = { dE: 0, dN: 1, start: 2, end: 3, first: 4, last: 5 } as const;
+// Field offsets as const enums (FRAME, SAMPLE): the bundle writes them into the per-sample code as numbers (an
+// object of offsets is loaded from the module and checked at every use in optimised code, a dozen times per sample).
+export const enum FRAME { dE = 0, dN = 1, start = 2, end = 3, first = 4, last = 5 }
 export const FRAME_FIELDS = 6;
 
 /** A window frame with the given axis and bounds, no sample seen yet. */
@@ -29,7 +31,7 @@ export function windowFrame(dE: number, dN: number, start_s = -Infinity, end_s =
  * Fields: radial velocity (m/s, positive away), site-frame beam unit vector (ne, nn, nu), measurement point (pe, pn,
  * pu, metres), time (Unix s), ground height under the point (site-frame up, metres; geometry/terrain.ts).
  */
-export const SAMPLE = { vr: 0, ne: 1, nn: 2, nu: 3, pe: 4, pn: 5, pu: 6, t: 7, ground: 8 } as const;
+export const enum SAMPLE { vr = 0, ne = 1, nn = 2, nu = 3, pe = 4, pn = 5, pu = 6, t = 7, ground = 8 }
 export const SAMPLE_FIELDS = 9;
 
 /** A scratch sample (SAMPLE fields) with the given values. */
