@@ -34,12 +34,19 @@ import { InputError } from '../errors.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { RejectReason, SampleAccount } from './reasons.ts';
 
+/**
+ * Constants of the per-row paths as a const enum, written into the code by the build (module-level constants are
+ * loaded and checked at every use in optimised code); exported one by one below under their documented names.
+ * NOT_FOUND: what find() returns for no ray (no handle takes it: handles are >= 0, or -1 - k for out-of-order rays).
+ */
+const enum Q { RANGE_EPS_M = 1e-6, MAX_RAYS_KEPT = 1048576, NOT_FOUND = -4503599627370496 }
+
 /** Fewest rows of a stream before its angles are judged. */
 export const MIN_ROWS_RADIANS = 20;
 /** An instrument's accepted share below this fraction of the other instruments' median share is a collapse. */
 export const SHARE_COLLAPSE = 0.2;
 /** Ranges equal within this many metres are the same range gate. */
-export const RANGE_EPS_M = 1e-6;
+export const RANGE_EPS_M: number = Q.RANGE_EPS_M;
 /** Lines listed as evidence per finding. */
 const MAX_LINES = 3;
 
@@ -73,7 +80,7 @@ export function batchEndTime(b: SampleBatch): number {
 }
 
 /** Rays kept per instrument at most (the time log and the out-of-order table each). */
-export const MAX_RAYS_KEPT = 1 << 20;
+export const MAX_RAYS_KEPT: number = Q.MAX_RAYS_KEPT;
 
 /**
  * The recent rays of one instrument, for finding repeated rows, in typed arrays (no object per ray) and bounded
@@ -127,7 +134,7 @@ class RayHistory {
    */
   find(b: SampleBatch, i: number): number {
     const t = b.time[i], az = b.azimuth[i], el = b.elevation[i];
-    if (t > this.maxT) return NOT_FOUND;
+    if (t > this.maxT) return Q.NOT_FOUND;
     // Log: the first kept ray at time >= t, then every ray at exactly t.
     let lo = this.head, hi = this.tail;
     const mask = this.cap - 1;
@@ -141,7 +148,7 @@ class RayHistory {
     }
     const list = this.oIndex.get(t);
     if (list) for (const k of list) if (this.oAZ[k] === az && this.oEL[k] === el) return -1 - k;
-    return NOT_FOUND;
+    return Q.NOT_FOUND;
   }
 
   /** Adds the ray of row i of batch b with its first gate; call right after find() returned NOT_FOUND for that row. */
@@ -151,9 +158,9 @@ class RayHistory {
       this.maxT = t;
       // Forget rays beyond the horizon, or the oldest when full.
       const mask0 = this.cap - 1;
-      while (this.head < this.tail && (this.T[this.head & mask0] < t - this.horizon || this.tail - this.head >= MAX_RAYS_KEPT)) this.forget(this.head++);
+      while (this.head < this.tail && (this.T[this.head & mask0] < t - this.horizon || this.tail - this.head >= Q.MAX_RAYS_KEPT)) this.forget(this.head++);
       if (this.tail - this.head === this.cap) this.grow();
-      if (this.oN.length && (this.oEpochStart < t - this.horizon || this.oN.length >= MAX_RAYS_KEPT)) this.clearOutOfOrder();
+      if (this.oN.length && (this.oEpochStart < t - this.horizon || this.oN.length >= Q.MAX_RAYS_KEPT)) this.clearOutOfOrder();
       const q = this.tail++, i = q & (this.cap - 1);
       this.T[i] = t; this.AZ[i] = az; this.EL[i] = el; this.R0[i] = range; this.DR[i] = NaN; this.RMAX[i] = range; this.N[i] = 1;
       return q;
@@ -210,14 +217,14 @@ class RayHistory {
   hasRange(h: number, r: number): boolean {
     const n = this.getN(h);
     if (n < 0) {
-      for (const x of this.lists.get(h)!) if (Math.abs(x - r) <= RANGE_EPS_M) return true;
+      for (const x of this.lists.get(h)!) if (Math.abs(x - r) <= Q.RANGE_EPS_M) return true;
       return false;
     }
     const r0 = this.getR0(h);
-    if (n === 1) return Math.abs(r0 - r) <= RANGE_EPS_M;
+    if (n === 1) return Math.abs(r0 - r) <= Q.RANGE_EPS_M;
     const dr = this.getDR(h);
     const k = Math.round((r - r0) / dr);
-    return k >= 0 && k < n && Math.abs(r0 + k * dr - r) <= RANGE_EPS_M;
+    return k >= 0 && k < n && Math.abs(r0 + k * dr - r) <= Q.RANGE_EPS_M;
   }
 
   /** Adds range `r` (not yet in the ray). */
@@ -225,7 +232,7 @@ class RayHistory {
     const n = this.getN(h), r0 = this.getR0(h), dr = this.getDR(h);
     if (n > 0) {
       if (n === 1 && r > r0) { this.setDR(h, r - r0); this.setN(h, 2); this.setRMAX(h, r); return; }
-      if (n > 1 && Math.abs(r0 + n * dr - r) <= RANGE_EPS_M) { this.setN(h, n + 1); this.setRMAX(h, r); return; }
+      if (n > 1 && Math.abs(r0 + n * dr - r) <= Q.RANGE_EPS_M) { this.setN(h, n + 1); this.setRMAX(h, r); return; }
       const list: number[] = [];
       for (let k = 0; k < n; k++) list.push(n === 1 ? r0 : r0 + k * dr);
       this.lists.set(h, list);
@@ -251,8 +258,6 @@ class RayHistory {
   }
 }
 
-/** find() found nothing (a value no handle takes: handles are >= 0, or -1 - k for out-of-order rays). */
-const NOT_FOUND = -(2 ** 52);
 
 /** Evidence of one file: per instrument in typed arrays, plus the file's rejected rows by reason. */
 class FileEvidence {
@@ -428,7 +433,7 @@ export class SuspicionInspector {
       const ins = INS[i];
       if (ins === f[0] && T[i] === f[1] && AZ[i] === f[2] && EL[i] === f[3]) {
         const r = RG[i], next = f[4] + f[6] * f[5];
-        if (r - next <= RANGE_EPS_M && next - r <= RANGE_EPS_M) { f[6]++; run++; continue; }
+        if (r - next <= Q.RANGE_EPS_M && next - r <= Q.RANGE_EPS_M) { f[6]++; run++; continue; }
       }
       if (run > 0) { this.endRun(rows, run); run = 0; }
       this.row(e, b, i, mask);
@@ -463,7 +468,7 @@ export class SuspicionInspector {
     } else {
       ray = h.find(b, i);
       fresh = true;
-      if (ray === NOT_FOUND) ray = h.add(b, i);
+      if (ray === Q.NOT_FOUND) ray = h.add(b, i);
       else if (h.hasRange(ray, r)) dup = true;
       else h.addRange(ray, r);
       e.curT[ins] = t; e.curAz[ins] = az; e.curEl[ins] = el; e.curH[ins] = ray; e.curGen[ins] = h.oEpoch;
