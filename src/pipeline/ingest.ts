@@ -410,6 +410,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   const R_DUPLICATE = R.duplicate, R_LOW_CNR = R.low_cnr, R_HARD_TARGET = R.hard_target_cnr, R_VR_LIMIT = R.radial_velocity_limit;
   const R_OUT_OF_ORDER = R.out_of_time_order, R_OUTSIDE_WINDOWS = R.outside_windows, R_NO_DIRECTION = R.no_wind_direction;
   const R_BELOW_GROUND = R.below_ground, R_OUTSIDE_TERRAIN = R.outside_terrain, R_BLOCKED = R.beam_blocked, R_OUTSIDE_PLANES = R.outside_planes;
+  const reasonCount = NR, readCount = counters.read, acceptedCount = counters.accepted, rejectedCount = counters.rejected;
   const processChunk = (chunk: SampleChunk, owner: number, seen: Uint8Array) => {
     const b = chunk.batch;
     opts.onBatch?.(b);
@@ -426,7 +427,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     rFrom = Infinity; rTo = -Infinity; // windows may have finished since the last batch
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
-      counters.read[ins]++;
+      readCount[ins]++;
       seen[ins] = 1;
       // Every rejection sets its reason and leaves the block; one statement counts them all, so that a reason met
       // for the first time late in a run does not throw the optimised loop away.
@@ -531,10 +532,10 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
         for (let k = 0; k < nDirected; k++) {
           if (target.add(liveAccs[k][tg], liveFrames[k], ins, smp)) placedAny = true;
         }
-        if (placedAny) { counters.accepted[ins]++; continue; }
+        if (placedAny) { acceptedCount[ins]++; continue; }
         why = target.outsideReason;
       }
-      counters.rejected[ins * NR + why]++;
+      rejectedCount[ins * reasonCount + why]++;
     }
   };
 
