@@ -7,6 +7,7 @@
  */
 import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { gzipSync } from 'node:zlib';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { gatesPerRay, type SampleBatch } from '../src/io/batch.ts';
@@ -65,6 +66,17 @@ describe('text files without ray structure on the reader thread', () => {
     const here = await rows(false);
     expect(here.length).toBeGreaterThan(1000);
     expect(await rows(true)).toEqual(here); // exact: the same parser on either thread
+    // gzip-compressed: decompressed and parsed on the thread, the same rows
+    writeFileSync(`${path}.gz`, gzipSync(readFileSync(path)));
+    const gz = async (thread: boolean) => {
+      const out: number[][] = [];
+      for await (const c of openSamples(`${path}.gz`, { ...opts, thread, textThread: thread })) {
+        const b = c.batch;
+        for (let i = 0; i < b.length; i++) out.push([b.line[i], b.time[i], b.instrument[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]]);
+      }
+      return out;
+    };
+    expect(await gz(true)).toEqual(here);
   });
 
   it('the same accounting and field tables with the reader thread as without it', async () => {
