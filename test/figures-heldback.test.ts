@@ -123,4 +123,66 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(bar.domain[1]).toBeGreaterThanOrEqual(Math.max(...counts));
     expect(bar.over + bar.under).toBe(0);
   });
+
+  it('arrows point along the true in-plane flow of each window (+v to the left of the page, +w up), at the reference scale', () => {
+    for (const [k, file] of [[1, 'x3D_w0_u_norm'], [2, 'x3D_w1_u_norm']] as const) {
+      const [v, w] = exp.inplane[String(k)];
+      const svg = svgOf('cross', file);
+      const ref = /<line class="arrow-ref"[^>]*>/.exec(svg)![0];
+      const refLen = Math.abs(num(ref, 'x2') - num(ref, 'x1')); // figure units for the reference speed
+      const refSpeed = Number(/([0-9.]+)\s*m\/s in-plane flow/.exec(svg.replace(/\u00a0/g, ' '))![1]);
+      const list = arrows(svg);
+      expect(list.length).toBeGreaterThan(30); // 13 x 6 cells, every cell (every = 1), less the masked ones
+      for (const a of list) {
+        // Page: x to the right is -y, page y down is -z, so an arrow (dx, dy) is parallel to (-v, -w).
+        const dx = a.x2 - a.x1, dy = a.y2 - a.y1, d = Math.hypot(dx, dy);
+        const cos = (dx * -v + dy * -w) / (d * Math.hypot(v, w));
+        // 0.13 rad: three standard errors of the direction of the retrieved (v, w) in the worst cell of the table
+        // (v_se 0.015, w_se 0.09 m/s on v = 1.6, w = 0.9: sqrt((1.6 0.09)^2 + (0.9 0.015)^2) / 1.84^2 = 0.043 rad);
+        // an arrow mirrored in v or w would be 2 rad or more off.
+        expect(cos).toBeGreaterThan(Math.cos(0.13));
+        // Length: speed / reference x the reference arrow, within 8 % (three standard errors of the speed, 0.05 m/s).
+        expect(Math.abs(d / refLen - Math.hypot(v, w) / refSpeed)).toBeLessThan(0.08 * Math.hypot(v, w) / refSpeed);
+      }
+    }
+  });
+
+  it('draws every arrow whole inside its map (a head cut off at the frame hides the direction), also on a plane one cell wide', () => {
+    for (const [c, file] of [['cross', 'x3D_w0_u_norm'], ['cross', 'x3D_panels'], ['narrow', 'thin_panels'], ['narrow', 'thin_w0_u_norm']] as const) {
+      const svg = svgOf(c, file);
+      const fr = frames(svg);
+      const list = arrows(svg);
+      expect(list.length).toBeGreaterThan(0);
+      for (const a of list) {
+        const mx = (a.x1 + a.x2) / 2, my = (a.y1 + a.y2) / 2;
+        const f = fr.find((q) => mx >= q.x0 && mx <= q.x1 && my >= q.y0 && my <= q.y1);
+        expect(f, `${c}/${file}: arrow ${JSON.stringify(a)} in no map frame`).toBeDefined();
+        // 0.01 units: the coordinates' rounding.
+        for (const [x, y] of [[a.x1, a.y1], [a.x2, a.y2]]) {
+          expect(x, `${c}/${file}: arrow ${JSON.stringify(a)} leaves its map`).toBeGreaterThanOrEqual(f!.x0 - 0.01);
+          expect(x, `${c}/${file}: arrow ${JSON.stringify(a)} leaves its map`).toBeLessThanOrEqual(f!.x1 + 0.01);
+          expect(y, `${c}/${file}: arrow ${JSON.stringify(a)} leaves its map`).toBeGreaterThanOrEqual(f!.y0 - 0.01);
+          expect(y, `${c}/${file}: arrow ${JSON.stringify(a)} leaves its map`).toBeLessThanOrEqual(f!.y1 + 0.01);
+        }
+      }
+    }
+  });
+
+  it('draws the cells without samples masked, exactly where the generator left them empty', () => {
+    const svg = svgOf('cross', 'x3D_w0_u_norm');
+    const f = frames(svg)[0];
+    // The plane's outer cell edges: y 97.5 (left) to -97.5 (right), z 155 (top) to 5 (bottom), metres square.
+    const X = (y: number) => f.x0 + ((97.5 - y) / 195) * (f.x1 - f.x0);
+    const Z = (z: number) => f.y0 + ((155 - z) / 150) * (f.y1 - f.y0);
+    const d = /<path class="masked m1" d="([^"]+)"/.exec(svg)![1];
+    const rects = [...d.matchAll(/M([-0-9.]+),([-0-9.]+)H([-0-9.]+)V([-0-9.]+)H[-0-9.]+Z/g)].map((m) => m.slice(1).map(Number));
+    const inMask = (y: number, z: number) => rects.some(([x0, y0, x1, y1]) => X(y) > x0 && X(y) < x1 && Z(z) > y0 && Z(z) < y1);
+    for (const [y, z] of exp.cross.empty_cells) expect(inMask(y, z), `cell (${y}, ${z}) not masked`).toBe(true);
+    // No other cell: the masked area is the 6 empty cells (15 m x 25 m each) to the 0.25-unit overlap of the runs.
+    const area = rects.reduce((s, [x0, y0, x1, y1]) => s + (x1 - x0) * (y1 - y0), 0);
+    const cell = ((15 / 195) * (f.x1 - f.x0)) * ((25 / 150) * (f.y1 - f.y0));
+    expect(exp.cross.empty_cells.length).toBe(6);
+    expect(Math.abs(area - 6 * cell)).toBeLessThan(0.03 * 6 * cell);
+    expect(svg.replace(/\u00a0/g, ' ')).toContain('no data (6 cells)');
+  });
 });
