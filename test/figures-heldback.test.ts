@@ -186,3 +186,34 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(svg.replace(/\u00a0/g, ' ')).toContain('no data (6 cells)');
   });
 });
+
+describe.skipIf(!py.python)(`held-back arrows of a run with planes of different cells${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
+  let dir = '', runDir = '';
+  beforeAll(async () => {
+    dir = mkdtempSync(join(tmpdir(), 'wakeplane-figures-heldback-2-'));
+    const r = spawnSync(py.python!, ['test/reference/heldback_figures.py', dir], { encoding: 'utf8' });
+    if (r.status !== 0) throw new Error(r.stderr);
+    const campaign = loadCampaignFile(join(dir, 'twoplanes', 'campaign.yaml'));
+    campaign.output.figures = { ...campaign.output.figures, density: 72 };
+    runDir = (await runCampaign(campaign, { outRoot: join(dir, 'twoplanes', 'out'), images: true, stages: defaultStages() })).runDir;
+  }, 120_000);
+  afterAll(() => {
+    if (dir) rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('thins the arrows of the finer plane so that arrows of the one run length never reach their neighbours', () => {
+    for (const name of ['coarse_w0_u_norm', 'fine_w0_u_norm', 'coarse_panels', 'fine_panels']) {
+      const svg = readFileSync(join(runDir, 'images', `${name}.svg`), 'utf8');
+      const ref = /<line class="arrow-ref"[^>]*>/.exec(svg)![0];
+      const refLen = Math.abs(num(ref, 'x2') - num(ref, 'x1'));
+      const mids = arrows(svg).map((a) => [(a.x1 + a.x2) / 2, (a.y1 + a.y2) / 2]);
+      expect(mids.length, name).toBeGreaterThan(3);
+      // The nearest neighbour of every arrow (centre to centre) is at least one reference arrow away, so arrows up to
+      // the reference speed (the in-plane speed here is 0.92 of it) cannot touch; 0.02 units for rounding.
+      for (const [x, y] of mids) {
+        const nearest = Math.min(...mids.filter(([x2, y2]) => x2 !== x || y2 !== y).map(([x2, y2]) => Math.hypot(x2 - x, y2 - y)));
+        expect(nearest, `${name}: arrows ${nearest.toFixed(1)} units apart, reference arrow ${refLen.toFixed(1)}`).toBeGreaterThanOrEqual(refLen - 0.02);
+      }
+    }
+  });
+});

@@ -92,7 +92,7 @@ describe('scalar map: geometry in the SVG', () => {
     expect(lines.length).toBeGreaterThan(100); // every 2nd cell of 40 x 32: 20 x 16 = 320 arrows, minus the hub's zero arrow
     let checked = 0, capped = 0, moved = 0;
     const clip = attrs(/<clipPath id="[^"]+"><rect [^>]*>/.exec(svg)![0].replace(/^<clipPath[^>]*>/, ''));
-    const atFrame = (a: { x1: number; y1: number; x2: number; y2: number }) =>
+    const atFrame = (a: Record<string, number>) =>
       [a.x1, a.x2].some((x) => Math.abs(x - clip.x) < 0.02 || Math.abs(x - clip.x - clip.width) < 0.02) ||
       [a.y1, a.y2].some((y) => Math.abs(y - clip.y) < 0.02 || Math.abs(y - clip.y - clip.height) < 0.02);
     for (const a of lines) {

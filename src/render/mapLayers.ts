@@ -158,6 +158,15 @@ export interface ArrowCounts {
   capped: number;
 }
 
+/**
+ * Every how many cells a map draws an arrow: `base` (the map's own density), or more where the run's arrow length
+ * (one for every plane, set by the plane with the widest spacing) needs it on a plane of smaller cells, so that
+ * arrows stand at least 4/3 of their reference length apart (an arrow is 0.75 of the spacing at the reference speed).
+ */
+export function arrowEvery(grid: Pick<Grid, 'dy' | 'dz'>, sc: ArrowScale, base: number): number {
+  return Math.max(1, Math.round(base), Math.ceil(sc.length_m / (0.75 * Math.min(grid.dy, grid.dz)) - 1e-9));
+}
+
 /** Arrows faster than this many reference speeds are cut to that length and drawn dashed. */
 export const ARROW_CAP = 2;
 

@@ -141,7 +141,8 @@ export class ScaleCollector {
 
   /**
    * The run's scales. Arrow length: 0.75 of the spacing of arrows on the full-size map of the plane with the
-   * widest spacing (every ceil(max(ny, nz) / 16)-th cell), so that arrows never overlap on any plane.
+   * widest spacing (every ceil(max(ny, nz) / 16)-th cell); planes of smaller cells draw fewer arrows
+   * (mapLayers.ts arrowEvery), so that arrows never overlap on any plane.
    */
   scales(settings: Pick<FiguresSettings, 'limits' | 'arrowReference_ms'>, grids: GridSpec[]): RunScales {
     const limits = {} as RunScales['limits'];

@@ -13,7 +13,7 @@ import type { Scheme } from './colour.ts';
 import { colourBar } from './colourBar.ts';
 import { colourScale, percentileSorted, rangeCounts } from './colourScale.ts';
 import {
-  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineLayer,
+  arrowEvery, arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineLayer,
   ARROW_CAP, type ArrowScale, type MarkerShape, type TurbineMark, type View,
 } from './mapLayers.ts';
 import { drawLegend, uniqueItems, type LegendItem } from './mapLegend.ts';
@@ -102,8 +102,10 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
 
   if (opts.arrows) {
     const a = opts.arrows;
-    const every = Math.max(1, Math.round(a.every ?? Math.ceil(Math.max(grid.ny, grid.nz) / 16)));
-    const sc = a.scale ?? defaultArrowScale(a.v, a.w, every * Math.min(grid.dy, grid.dz), a.referenceSpeed);
+    const base = Math.max(1, Math.round(a.every ?? Math.ceil(Math.max(grid.ny, grid.nz) / 16)));
+    const sc = a.scale ?? defaultArrowScale(a.v, a.w, base * Math.min(grid.dy, grid.dz), a.referenceSpeed);
+    // The run's arrow length on a plane of smaller cells: fewer arrows, so that they do not run into each other.
+    const every = a.scale && a.every === undefined ? arrowEvery(grid, sc, base) : base;
     const res = arrowLayer(f, grid, { v: a.v, w: a.w, assumedW: a.assumedW, every }, sc);
     body.push(res.markup);
     legend.push(...arrowLegend(sc, s, res.counts, a.label));

@@ -13,7 +13,7 @@ import type { GridSpec } from '../grid/grid.ts';
 import { colourBar } from './colourBar.ts';
 import { colourScale, rangeCounts, type ColourScale } from './colourScale.ts';
 import {
-  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineInView, turbineLayer,
+  arrowEvery, arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineInView, turbineLayer,
   type ArrowScale, type TurbineMark, type View,
 } from './mapLayers.ts';
 import { drawLegendColumns, uniqueItems, type LegendItem } from './mapLegend.ts';
@@ -105,7 +105,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
     g.push(m.markup);
     for (const [c, nc] of m.counts) maskCounts.set(c, (maskCounts.get(c) ?? 0) + nc);
     if (p.arrows && o.arrowScale) {
-      const every = Math.max(1, Math.ceil(Math.max(p.grid.ny, p.grid.nz) / 9));
+      const every = arrowEvery(p.grid, o.arrowScale, Math.ceil(Math.max(p.grid.ny, p.grid.nz) / 9));
       const a = arrowLayer(f, grid, { v: p.arrows.v, w: p.arrows.w, assumedW: p.arrows.assumedW, every }, o.arrowScale);
       g.push(a.markup);
       arrowCounts.measured += a.counts.measured;

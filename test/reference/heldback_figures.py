@@ -24,6 +24,8 @@ every row has its own azimuth, elevation and range; one sample per row):
 - `narrow`: a cross plane one cell wide (y in [-10, 10] m, one 20-m cell) and 3 cells high (z 50..110 m, 20 m),
   one window over the whole record, 24,000 good samples in each cell (more than 20,000 per cell), georeferenced
   (site.origin_wgs84 in open ocean).
+- `twoplanes`: two cross planes, at x = 240 m with 40-m cells (5 x 4) and at x = 400 m with 8-m cells (12 x 10),
+  one window over the whole record (the arrows of a run share one length; the fine plane must thin its arrows).
 - `strong`: the `cross` data with the inflow fixed at 1.5 m/s, so u/u_inf is between 3.9 and 6.3 (extreme values).
 
 Expected (expected.json), per case: the true in-plane (v, w) per window, the cells without samples, and the
@@ -188,6 +190,26 @@ extra = {"site": {"groundLevel_m": 0, "origin_wgs84": {"lat_deg": -52.5, "lon_de
 with open(os.path.join(d, "campaign.yaml"), "w", encoding="utf-8") as fh:
     json.dump(campaign("hb-figures-narrow", [plane], {"kind": "record"}, 9.0, extra), fh, ensure_ascii=False, indent=1)
 expected["narrow"] = {"good_per_cell": good_per_cell.tolist()}
+
+# ---- twoplanes: two cross planes with very different cells, one window over the record -------------------------
+d = os.path.join(out, "twoplanes")
+os.makedirs(os.path.join(d, "data"), exist_ok=True)
+PLANES2 = [
+    {"id": "coarse", "x_m": 240, "y": {"min": -100, "max": 100}, "z": {"min": 0, "max": 160}, "cell_m": [40, 40], "thickness_m": 16},
+    {"id": "fine", "x_m": 400, "y": {"min": -48, "max": 48}, "z": {"min": 40, "max": 120}, "cell_m": [8, 8], "thickness_m": 6},
+]
+for ins in INS:
+    rows = []
+    for pl, n in zip(PLANES2, (3000, 6000)):
+        y = rng.uniform(pl["y"]["min"], pl["y"]["max"], n)
+        z = rng.uniform(max(pl["z"]["min"], 3.0), pl["z"]["max"], n)
+        x = pl["x_m"] + rng.uniform(-0.4, 0.4, n) * pl["thickness_m"]
+        times = np.sort(rng.uniform(T0, T0 + 900, n))
+        t, az, el, r, vr, cnr, _ = rows_for(ins, times, x, y, z, 1)
+        rows += [(t[j], ins, az[j], el[j], r[j], vr[j], cnr[j]) for j in range(n)]
+    write_csv(os.path.join(d, "data", f"{ins}.csv"), rows, "unix")
+with open(os.path.join(d, "campaign.yaml"), "w", encoding="utf-8") as fh:
+    json.dump(campaign("hb-figures-twoplanes", PLANES2, {"kind": "record"}, 9.0), fh, ensure_ascii=False, indent=1)
 
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump(expected, fh, indent=1)
