@@ -185,6 +185,26 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(Math.abs(area - 6 * cell)).toBeLessThan(0.03 * 6 * cell);
     expect(svg.replace(/\u00a0/g, ' ')).toContain('no data (6 cells)');
   });
+
+  it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {
+    const campaign = loadCampaignFile(join(root, 'cross', 'campaign.yaml'));
+    campaign.output.figures = { ...campaign.output.figures, density: 72, windowImages: [1, 7] };
+    const res = await runCampaign(campaign, { outRoot: join(root, 'cross', 'out-select'), images: true, stages: defaultStages() });
+    const m = JSON.parse(readFileSync(join(res.runDir, 'manifest.json'), 'utf8')) as { warnings: string[]; outputs: { path: string }[] };
+    // Window 1 exists (two listed windows, 0 and 1): drawn; window 7 does not: named in one warning with the key.
+    expect(m.outputs.some((o) => o.path === 'images/x3D_w1_u_norm.svg')).toBe(true);
+    const w = m.warnings.filter((x) => x.includes('output.figures.windowImages'));
+    expect(w.length).toBe(1);
+    expect(w[0]).toMatch(/\b7\b/);
+    expect(w[0]).not.toMatch(/\b1\b.*not/);
+    // render with a window that is not there: one line naming the option and the window, before any file changes.
+    const before = readFileSync(join(res.runDir, 'manifest.json'), 'utf8');
+    const images = readdirSync(join(res.runDir, 'images')).sort();
+    const { renderRunFolder } = await import('../src/pipeline/renderFolder.ts');
+    await expect(renderRunFolder(res.runDir, { windowImages: [0, 5] })).rejects.toThrow(/^option --window-images: .*\b5\b[^\n]*$/);
+    expect(readFileSync(join(res.runDir, 'manifest.json'), 'utf8')).toBe(before);
+    expect(readdirSync(join(res.runDir, 'images')).sort()).toEqual(images);
+  });
 });
 
 describe.skipIf(!py.python)(`held-back arrows of a run with planes of different cells${py.python ? '' : ` (skipped: ${py.why})`}`, () => {

@@ -14,7 +14,8 @@ import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
 import type { Campaign } from '../campaign/types.ts';
-import { InputError, OutputError } from '../errors.ts';
+import { InputError, OptionError, OutputError } from '../errors.ts';
+import { missingSelectedText } from '../render/figureSelection.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
 import { replaceRefusal } from './outputFolder.ts';
@@ -64,6 +65,12 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
   if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
   const campaign = campaignFromManifest(m, manifestPath);
+  // Images asked for windows or bins the run does not have: an error before anything is redrawn.
+  const missing = [
+    opts.windowImages ? missingSelectedText(opts.windowImages, (m.windows ?? []).map((w) => w.index), 'window') : '',
+    opts.binImages ? missingSelectedText(opts.binImages, (m.ensembles ?? []).filter((e) => !e.empty).map((e) => e.bin), 'condition bin') : '',
+  ].filter(Boolean);
+  if (missing.length) throw new OptionError('window-images', `${missing.join('; ')}; nothing redrawn`);
   // Every field table the manifest lists must be there before anything is redrawn (a deleted or moved table would
   // otherwise stop the render half way, with some figures replaced).
   for (const o of m.outputs ?? []) {
