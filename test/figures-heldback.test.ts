@@ -18,6 +18,7 @@ import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
 import { debianPython } from './helpers/python.ts';
+import { overlaps, svgTexts, viewBox } from './helpers/svgText.ts';
 
 const py = debianPython(['numpy', 'pandas']);
 
@@ -184,6 +185,33 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(exp.cross.empty_cells.length).toBe(6);
     expect(Math.abs(area - 6 * cell)).toBeLessThan(0.03 * 6 * cell);
     expect(svg.replace(/\u00a0/g, ' ')).toContain('no data (6 cells)');
+  });
+
+  it('names each listed window by its label from the experiment log in the panels and on its own map, escaped, wrapped and never overlapping', () => {
+    const campaign = JSON.parse(readFileSync(join(root, 'cross', 'campaign.yaml'), 'utf8')) as { windows: { items: { label: string }[] } };
+    const labels = campaign.windows.items.map((w) => w.label);
+    const norm = (t: string) => t.replace(/\u00a0/g, ' ');
+    for (const file of ['x3D_panels', 'x3D_w0_u_norm', 'x3D_w1_u_norm']) {
+      const svg = svgOf('cross', file);
+      const texts = svgTexts(svg);
+      const all = norm(texts.map((t) => t.text).join(' '));
+      // The label's words in the figure's text (the first five words at least: a long label may be wrapped and, in
+      // a panel, shortened with an ellipsis), as written in the campaign: markup characters shown, not interpreted.
+      const want = file === 'x3D_panels' ? labels : [labels[file === 'x3D_w0_u_norm' ? 0 : 1]];
+      for (const l of want) for (const word of norm(l).split(' ').slice(0, 5)) expect(all, `${file}: ${word}`).toContain(word);
+      expect(overlaps(texts), file).toEqual([]);
+      const [W, H] = viewBox(svg);
+      for (const t of texts) expect(t.box[2] <= W + 0.5 && t.box[3] <= H + 0.5 && t.box[0] >= -0.5, `${file}: "${t.text}" outside the figure`).toBe(true);
+    }
+    // In the panel figure the labels stay within their panel's width (the panels start at the map frames).
+    const svg = svgOf('cross', 'x3D_panels');
+    const fr = frames(svg);
+    const panelLabels = svgTexts(svg).filter((x) => x.cls === 'panel-label');
+    expect(panelLabels.length).toBeGreaterThan(3);
+    for (const t of panelLabels) {
+      const f = fr.find((q) => t.box[0] >= q.x0 - 0.5 && t.box[0] <= q.x1)!;
+      expect(t.box[2], `"${t.text}" wider than its panel`).toBeLessThanOrEqual(f.x1 + 0.5);
+    }
   });
 
   it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {

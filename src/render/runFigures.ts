@@ -169,7 +169,7 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
   const panels: Panel[] = shown.map((p) => ({
     label: p.ensemble
       ? `condition bin ${p.index}${p.label ? ` \u00b7 ${p.label}` : ''}`
-      : `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}`,
+      : `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}${p.label ? ` \u00b7 ${p.label}` : ''}`,
     sublabel: [
       p.ensemble ? `${p.members}\u00a0window${p.members === 1 ? '' : 's'}` : '',
       Number.isFinite(p.yawOffset_deg) ? `\u03b3\u00a0${qty(p.yawOffset_deg, '\u00b0', 0)}` : '',

@@ -19,6 +19,7 @@ import {
 import { drawLegendColumns, uniqueItems, type LegendItem } from './mapLegend.ts';
 import { NO_VALUE_CODE } from './maskStyle.ts';
 import { arrowLegend } from './scalarMap.ts';
+import { textWidth } from './richText.ts';
 import { svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 
@@ -74,8 +75,8 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   const pw = vw * s, ph = vh * s;
   // Panel labels wrapped to the panel width (at most three lines for the label, two for the sublabel).
   const labelLines = panels.map((p) => [
-    ...wrap(p.label, pw, LABEL_SIZE, true).slice(0, 3).map((t) => ({ t, bold: true })),
-    ...(p.sublabel ? wrap(p.sublabel, pw, LABEL_SIZE).slice(0, 2).map((t) => ({ t, bold: false })) : []),
+    ...clampLines(wrap(p.label, pw, LABEL_SIZE, true), 3, pw, true).map((t) => ({ t, bold: true })),
+    ...(p.sublabel ? clampLines(wrap(p.sublabel, pw, LABEL_SIZE), 2, pw, false).map((t) => ({ t, bold: false })) : []),
   ]);
   const labelH = Math.max(...labelLines.map((l) => l.length)) * 14 + 4;
   const gapY = labelH + 10 + TICK; // room for the panel label above and a tick row below
@@ -204,4 +205,14 @@ export function chooseLayout(n: number, vw: number, vh: number, area: number, la
     if (better) best = { cols, rows, s, h, fits };
   }
   return { cols: best!.cols, rows: best!.rows, s: best!.s };
+}
+
+/** At most `max` lines; when some are left out the last shown ends with an ellipsis (shortened to stay in `width`). */
+function clampLines(lines: string[], max: number, width: number, bold: boolean): string[] {
+  if (lines.length <= max) return lines;
+  const out = lines.slice(0, max);
+  let last = out[max - 1];
+  while (last.length > 1 && textWidth(`${last}\u2026`, LABEL_SIZE, bold) > width) last = last.slice(0, -1).trimEnd();
+  out[max - 1] = `${last}\u2026`;
+  return out;
 }
