@@ -27,9 +27,10 @@ interface Expected {
   cross: { empty_cells: [number, number][]; y_centres: number[]; z_centres: number[] };
   strong: { u_norm_min: number; u_norm_max: number };
   narrow: { good_per_cell: number[] };
+  horizontal: { data: { ymin: number; ymax: number; xmin: number; xmax: number }; turbines: Record<string, [number, number]> };
 }
 
-const CASES = ['cross', 'strong', 'narrow'] as const;
+const CASES = ['cross', 'strong', 'narrow', 'horizontal'] as const;
 let root = '';
 let exp: Expected;
 const runDirs: Record<string, string> = {};
@@ -211,6 +212,40 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     for (const t of panelLabels) {
       const f = fr.find((q) => t.box[0] >= q.x0 - 0.5 && t.box[0] <= q.x1)!;
       expect(t.box[2], `"${t.text}" wider than its panel`).toBeLessThanOrEqual(f.x1 + 0.5);
+    }
+  });
+
+  it('marks both turbines of a horizontal plane where they stand in the rotor frame and crops the map to the data and turbines', () => {
+    for (const file of ['hub_w0_u', 'hub_panels']) {
+      const svg = svgOf('horizontal', file);
+      const marks = [...svg.matchAll(/<g class="turbine" data-y="([-0-9.e]+)" data-x="([-0-9.e]+)">(<line [^>]*>)/g)].map((m) => ({ y: Number(m[1]), x: Number(m[2]), bar: m[3] }));
+      // The generator put BS-3 400 m straight downstream of BS-2 in the wind of 250 degrees: (x, y) = (400, 0) and
+      // (0, 0); 0.01 m for the rotation written out with the wind direction to its digits.
+      const want = Object.values(exp.horizontal.turbines).sort((a, b) => a[0] - b[0]);
+      expect(marks.length, file).toBe(2);
+      marks.sort((a, b) => a.x - b.x).forEach((m, i) => {
+        expect(Math.abs(m.x - want[i][0]), file).toBeLessThan(0.01);
+        expect(Math.abs(m.y - want[i][1]), file).toBeLessThan(0.01);
+      });
+      // The page scale from the rotor bars (80 m long) and the two turbines' rows; then the frame back in metres.
+      const [a, b] = marks.map((m) => ({ x1: num(m.bar, 'x1'), x2: num(m.bar, 'x2'), yPage: num(m.bar, 'y1') }));
+      const pxPerM = Math.abs(a.x2 - a.x1) / 80;
+      expect(Math.abs(Math.abs(b.yPage - a.yPage) / 400 - pxPerM)).toBeLessThan(0.01 * pxPerM); // square metres
+      const y0Page = (a.x1 + a.x2) / 2; // y = 0
+      const f = frames(svg)[0];
+      const view = { yLeft: (y0Page - f.x0) / pxPerM, yRight: (y0Page - f.x1) / pxPerM, xTop: (a.yPage - f.y0) / pxPerM, xBottom: (a.yPage - f.y1) / pxPerM };
+      const d = exp.horizontal.data;
+      // Cropped: the data cells (y -120..120, x 100..700) and the turbines (x 0, rotors +-40 m) inside the view, and
+      // not more than two cells (20 m across, 25 m along) of the empty plane around them (the plane reaches
+      // y +-200 m, x -300..900 m).
+      expect(view.yLeft).toBeGreaterThanOrEqual(d.ymax - 0.5);
+      expect(view.yLeft).toBeLessThanOrEqual(d.ymax + 40.5);
+      expect(view.yRight).toBeLessThanOrEqual(d.ymin + 0.5);
+      expect(view.yRight).toBeGreaterThanOrEqual(d.ymin - 40.5);
+      expect(view.xTop).toBeGreaterThanOrEqual(d.xmax - 0.5);
+      expect(view.xTop).toBeLessThanOrEqual(d.xmax + 50.5);
+      expect(view.xBottom).toBeLessThanOrEqual(0.5);
+      expect(view.xBottom).toBeGreaterThanOrEqual(-50.5);
     }
   });
 

@@ -26,6 +26,9 @@ every row has its own azimuth, elevation and range; one sample per row):
   (site.origin_wgs84 in open ocean).
 - `twoplanes`: two cross planes, at x = 240 m with 40-m cells (5 x 4) and at x = 400 m with 8-m cells (12 x 10),
   one window over the whole record (the arrows of a run share one length; the fine plane must thin its arrows).
+- `horizontal`: a horizontal plane at 80 m (y -200..200 m, x -300..900 m, cells 20 m x 25 m) with samples only in
+  y -120..120 m, x 100..700 m, and a second turbine BS-3 400 m straight downstream of BS-2 (rotor frame x = 400,
+  y = 0), one window over the record.
 - `strong`: the `cross` data with the inflow fixed at 1.5 m/s, so u/u_inf is between 3.9 and 6.3 (extreme values).
 
 Expected (expected.json), per case: the true in-plane (v, w) per window, the cells without samples, and the
@@ -210,6 +213,30 @@ for ins in INS:
     write_csv(os.path.join(d, "data", f"{ins}.csv"), rows, "unix")
 with open(os.path.join(d, "campaign.yaml"), "w", encoding="utf-8") as fh:
     json.dump(campaign("hb-figures-twoplanes", PLANES2, {"kind": "record"}, 9.0), fh, ensure_ascii=False, indent=1)
+
+# ---- horizontal: a horizontal plane at hub height with a second turbine in it, data in part of the plane ---------
+d = os.path.join(out, "horizontal")
+os.makedirs(os.path.join(d, "data"), exist_ok=True)
+HP = {"id": "hub", "orientation": "horizontal", "z_m": 80, "y": {"min": -200, "max": 200}, "xRange": {"min": -300, "max": 900}, "cell_m": [20, 25], "thickness_m": 20}
+DATA = dict(ymin=-120.0, ymax=120.0, xmin=100.0, xmax=700.0)
+for ins in INS:
+    n = 6000
+    y = rng.uniform(DATA["ymin"], DATA["ymax"], n)
+    x = rng.uniform(DATA["xmin"], DATA["xmax"], n)
+    z = 80.0 + rng.uniform(-8, 8, n)
+    times = np.sort(rng.uniform(T0, T0 + 900, n))
+    t, az, el, r, vr, cnr, _ = rows_for(ins, times, x, y, z, 1)
+    write_csv(os.path.join(d, "data", f"{ins}.csv"), [(t[j], ins, az[j], el[j], r[j], vr[j], cnr[j]) for j in range(n)], "iso_ms")
+c = campaign("hb-figures-horizontal", [HP], {"kind": "record"}, 9.0)
+second = 400.0 * XE  # 400 m straight downstream of BS-2 in the wind of 250 deg
+c.pop("turbine")
+c["turbines"] = [
+    {"id": "BS-2", "position_m": [0, 0, 0], "hubHeight_m": 80, "rotorDiameter_m": 80, "thrustCoefficient": 0.78},
+    {"id": "BS-3", "position_m": [float(second[0]), float(second[1]), 0], "hubHeight_m": 80, "rotorDiameter_m": 80, "thrustCoefficient": 0.78},
+]
+with open(os.path.join(d, "campaign.yaml"), "w", encoding="utf-8") as fh:
+    json.dump(c, fh, ensure_ascii=False, indent=1)
+expected["horizontal"] = {"data": DATA, "turbines": {"BS-2": [0.0, 0.0], "BS-3": [400.0, 0.0]}}
 
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump(expected, fh, indent=1)
