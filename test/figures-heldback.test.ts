@@ -14,6 +14,7 @@ import { mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { formatRunSummary } from '../src/cli/summary.ts';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { defaultStages } from '../src/pipeline/stages.ts';
@@ -34,6 +35,7 @@ const CASES = ['cross', 'strong', 'narrow', 'horizontal'] as const;
 let root = '';
 let exp: Expected;
 const runDirs: Record<string, string> = {};
+const summaries: Record<string, string> = {};
 
 const svgOf = (c: string, name: string) => readFileSync(join(runDirs[c], 'images', `${name}.svg`), 'utf8');
 const num = (tag: string, a: string) => Number(new RegExp(`\\s${a}="([-0-9.e]+)"`).exec(tag)?.[1]);
@@ -85,6 +87,7 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
       campaign.output.figures = { ...campaign.output.figures, density: 72 };
       const res = await runCampaign(campaign, { outRoot: join(root, c, 'out'), images: true, stages: defaultStages() });
       runDirs[c] = res.runDir;
+      summaries[c] = formatRunSummary(res);
     }
   }, 120_000);
   afterAll(() => {
@@ -263,6 +266,13 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
       expect(Math.abs(sy - 30) / 30, `row x = ${x}`).toBeLessThan(0.1);
       expect(Math.abs(amp - 0.349), `row x = ${x}`).toBeLessThan(0.03);
     }
+  });
+
+  it('the terminal summary of a run with one window and one plane says "1 window" and "1 field table"', () => {
+    expect(summaries.narrow).toMatch(/\(1 field table, \d+ images/);
+    expect(summaries.narrow).toMatch(/\n1 window; /);
+    expect(summaries.cross).toMatch(/\(2 field tables, \d+ images/);
+    expect(summaries.cross).toMatch(/\n2 windows; /);
   });
 
   it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {
