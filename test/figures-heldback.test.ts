@@ -10,7 +10,7 @@
  * left on the page looking downstream, +w up) and stay inside the map, the cells without samples are drawn masked.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -266,6 +266,24 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
       expect(Math.abs(sy - 30) / 30, `row x = ${x}`).toBeLessThan(0.1);
       expect(Math.abs(amp - 0.349), `row x = ${x}`).toBeLessThan(0.03);
     }
+  });
+
+  it('says which listed windows no sample reached (they are not in the figures or tables), instead of leaving them out silently', async () => {
+    // One more listed window, a day before any sample (the experiment log lists a run the instruments missed).
+    const text = JSON.parse(readFileSync(join(root, 'cross', 'campaign.yaml'), 'utf8'));
+    text.windows.items.unshift({ start: '2026-11-29T00:00:00Z', end: '2026-11-29T00:10:00Z', label: 'run 0 (instruments off)' });
+    text.output.figures = { density: 72 };
+    const file = join(root, 'cross', 'campaign-missed.yaml');
+    writeFileSync(file, JSON.stringify(text));
+    const res = await runCampaign(loadCampaignFile(file), { outRoot: join(root, 'cross', 'out-missed'), images: true, stages: defaultStages() });
+    const m = res.manifest;
+    expect(m.windows.length).toBe(2);
+    const warn = m.warnings.filter((x) => x.includes('run 0 (instruments off)'));
+    expect(warn.length).toBe(1);
+    expect(warn[0]).toMatch(/2026-11-29 00:00/);
+    expect(warn[0]).toMatch(/1 of 3 listed windows/);
+    // And the report shows it.
+    expect(readFileSync(join(res.runDir, 'report.html'), 'utf8')).toContain('run 0 (instruments off)');
   });
 
   it('the terminal summary of a run with one window and one plane says "1 window" and "1 field table"', () => {
