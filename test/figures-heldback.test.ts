@@ -286,6 +286,26 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(readFileSync(join(res.runDir, 'report.html'), 'utf8')).toContain('run 0 (instruments off)');
   });
 
+  it('render refuses a manifest whose plane ids would put figures outside the run folder, before anything is written', async () => {
+    // A hand-edited (or damaged) manifest: the plane's id turned into a path. The campaign file could never hold it
+    // (ids are letters, digits, "_", "." and "-"), but render reads the campaign back from the manifest.
+    const { cpSync } = await import('node:fs');
+    const parent = join(root, 'tampered');
+    cpSync(runDirs.cross, join(parent, 'run'), { recursive: true });
+    const run = join(parent, 'run');
+    const m = JSON.parse(readFileSync(join(run, 'manifest.json'), 'utf8'));
+    m.settings.planes[0].id = '../../evil';
+    for (const o of m.outputs) if (o.plane === 'x3D') o.plane = '../../evil';
+    writeFileSync(join(run, 'manifest.json'), JSON.stringify(m));
+    const before = { parent: readdirSync(parent).sort(), up: readdirSync(root).sort(), images: readdirSync(join(run, 'images')).sort(), manifest: readFileSync(join(run, 'manifest.json'), 'utf8') };
+    const { renderRunFolder } = await import('../src/pipeline/renderFolder.ts');
+    await expect(renderRunFolder(run)).rejects.toThrow(/manifest\.json: settings\.planes\[0\]\.id: letters, digits[^\n]*$/);
+    expect(readdirSync(parent).sort()).toEqual(before.parent);
+    expect(readdirSync(root).sort()).toEqual(before.up);
+    expect(readdirSync(join(run, 'images')).sort()).toEqual(before.images);
+    expect(readFileSync(join(run, 'manifest.json'), 'utf8')).toBe(before.manifest);
+  });
+
   it('the terminal summary of a run with one window and one plane says "1 window" and "1 field table"', () => {
     expect(summaries.narrow).toMatch(/\(1 field table, \d+ images/);
     expect(summaries.narrow).toMatch(/\n1 window; /);

@@ -13,6 +13,7 @@
 import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
+import { ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { InputError, OptionError, OutputError } from '../errors.ts';
 import { missingSelectedText } from '../render/figureSelection.ts';
@@ -44,6 +45,12 @@ export interface RenderResult {
 export function campaignFromManifest(m: RunManifest, file: string): Campaign {
   const c = m.settings as Campaign | undefined;
   if (!c || typeof c !== 'object' || !Array.isArray(c.planes) || !c.turbine) throw new InputError(file, undefined, 'the manifest carries no campaign settings to render from');
+  // Ids name the figure files: a hand-edited manifest must not lead a render outside the run folder.
+  for (const key of ['planes', 'turbines', 'instruments'] as const) {
+    ((c as unknown as Record<string, { id?: unknown }[] | undefined>)[key] ?? []).forEach((x, i) => {
+      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id)) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE} (got ${JSON.stringify(x?.id)}); nothing redrawn`);
+    });
+  }
   const num = (v: unknown) => (typeof v === 'number' ? v : NaN);
   return { ...c, planes: c.planes.map((p) => ({ ...p, x_m: num(p.x_m), z_m: num(p.z_m) })) };
 }
