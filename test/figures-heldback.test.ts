@@ -306,11 +306,16 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(readFileSync(join(run, 'manifest.json'), 'utf8')).toBe(before.manifest);
   });
 
-  it('the terminal summary of a run with one window and one plane says "1 window" and "1 field table"', () => {
+  it('the terminal summary, the summary plots and the report of a run with one window and one plane speak in the singular', () => {
     expect(summaries.narrow).toMatch(/\(1 field table, \d+ images/);
     expect(summaries.narrow).toMatch(/\n1 window; /);
     expect(summaries.cross).toMatch(/\(2 field tables, \d+ images/);
     expect(summaries.cross).toMatch(/\n2 windows; /);
+    // The summary plot and the report of a run with one plane.
+    const deficit = svgTexts(svgOf('cross', 'summary_deficit')).map((t) => t.text.replace(/\u00a0/g, ' ')).join(' ');
+    expect(deficit).toMatch(/\b1 plane\b/);
+    expect(deficit).not.toMatch(/\b1 planes\b/);
+    expect(readFileSync(join(runDirs.cross, 'report.html'), 'utf8').replace(/\u00a0/g, ' ')).not.toMatch(/\b1 planes\b/);
   });
 
   it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {
