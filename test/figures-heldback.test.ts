@@ -316,6 +316,11 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(deficit).toMatch(/\b1 plane\b/);
     expect(deficit).not.toMatch(/\b1 planes\b/);
     expect(readFileSync(join(runDirs.cross, 'report.html'), 'utf8').replace(/\u00a0/g, ' ')).not.toMatch(/\b1 planes\b/);
+    // The legend of a multi-panel figure with one panel (the horizontal case) and with two (the cross case).
+    const legend = (c: string, f: string) => svgTexts(svgOf(c, f)).map((t) => t.text.replace(/\u00a0/g, ' ')).join(' ');
+    expect(legend('horizontal', 'hub_panels')).toContain('Not shown');
+    expect(legend('horizontal', 'hub_panels')).not.toMatch(/all 1 panels/);
+    expect(legend('cross', 'x3D_panels')).not.toMatch(/all 2 panels/);
   });
 
   it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {

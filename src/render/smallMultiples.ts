@@ -152,7 +152,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
 
   const legend: LegendItem[] = [];
   if (maskCounts.size) {
-    legend.push({ kind: 'heading', label: `Not shown (cells in all ${panels.length} panels)` });
+    legend.push({ kind: 'heading', label: panels.length === 1 ? 'Not shown' : `Not shown (cells in ${panels.length === 2 ? 'both' : `all ${panels.length}`} panels)` });
     for (const c of [...maskCounts.keys()].sort((a, b) => a - b)) {
       const name = c === NO_VALUE_CODE ? 'no value' : (o.maskNames[c] || `code ${c}`).replace(/_/g, ' ');
       legend.push({ kind: 'mask', code: c, label: `${name} (${maskCounts.get(c)}\u00a0${maskCounts.get(c) === 1 ? 'cell' : 'cells'})` });
