@@ -118,6 +118,30 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(bar.domain[1]).toBeGreaterThan(exp.strong.u_norm_max - 0.1 * (exp.strong.u_norm_max - exp.strong.u_norm_min));
   });
 
+  it('fixed colour limits: the colour bar counts exactly the cells beyond them, per figure (numpy on the field tables)', async () => {
+    const campaign = loadCampaignFile(join(root, 'cross', 'campaign.yaml'));
+    campaign.output.figures = { ...campaign.output.figures, density: 72, limits: { u_norm: [0.8, 0.95] } };
+    const res = await runCampaign(campaign, { outRoot: join(root, 'cross', 'out-limits'), images: true, stages: defaultStages() });
+    // numpy: u/u_inf = u / (9 (z / 80)^0.12) per cell with a value, counted below 0.8 and above 0.95 per window.
+    const counts = numpy(
+      `out=[]\nfor f in sorted(glob.glob(sys.argv[1] + '/fields/*.csv')):\n d=pd.read_csv(f); un=(d.u_ms/(9*(d.z_m/80)**0.12)).dropna(); out.append([int((un<0.8).sum()), int((un>0.95).sum())])\nprint(json.dumps(out))`,
+      res.runDir,
+    ) as [number, number][];
+    const read = (name: string) => colourBar(readFileSync(join(res.runDir, 'images', `${name}.svg`), 'utf8'));
+    const panels = read('x3D_panels');
+    // The bar shows the fixed range itself (0.002 of its span for reading it back from the drawing).
+    expect(Math.abs(panels.domain[0] - 0.8)).toBeLessThan(0.002 * 0.15);
+    expect(Math.abs(panels.domain[1] - 0.95)).toBeLessThan(0.002 * 0.15);
+    expect(panels.under).toBe(counts[0][0] + counts[1][0]);
+    expect(panels.over).toBe(counts[0][1] + counts[1][1]);
+    for (const k of [0, 1]) {
+      const one = read(`x3D_w${k}_u_norm`);
+      expect(one.under, `window ${k}`).toBe(counts[k][0]);
+      expect(one.over, `window ${k}`).toBe(counts[k][1]);
+    }
+    expect(counts[0][0] + counts[0][1]).toBeGreaterThan(10); // the limits do cut the wake and the free stream
+  });
+
   it('colour range of the samples per cell holds the counts of a cell with more than 20,000 samples', () => {
     const counts = numpy(`d=pd.concat([pd.read_csv(f) for f in glob.glob(sys.argv[1] + '/fields/*.csv')])\nprint(json.dumps([int(x) for x in d.samples]))`, runDirs.narrow) as number[];
     // The generator's good rows per cell, less the few robust-filter outliers (under 0.1 %).
