@@ -330,6 +330,26 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(readFileSync(join(run, 'manifest.json'), 'utf8')).toBe(before.manifest);
   });
 
+  it('keeps every title and label inside the figure with a long plane and turbine id (the schema allows any length)', async () => {
+    const text = JSON.parse(readFileSync(join(root, 'narrow', 'campaign.yaml'), 'utf8'));
+    text.planes[0].id = `thin_${'verylongplaneidentifier'.repeat(4)}`;
+    text.turbine.id = `BS-2-${'longturbinename'.repeat(3)}`;
+    text.output.figures = { density: 72, windowImages: 'all' };
+    const file = join(root, 'narrow', 'campaign-long.yaml');
+    writeFileSync(file, JSON.stringify(text));
+    const res = await runCampaign(loadCampaignFile(file), { outRoot: join(root, 'narrow', 'out-long'), images: true, stages: defaultStages() });
+    const svgs = readdirSync(join(res.runDir, 'images')).filter((f) => f.endsWith('.svg'));
+    expect(svgs.length).toBeGreaterThan(8);
+    for (const f of svgs) {
+      const svg = readFileSync(join(res.runDir, 'images', f), 'utf8');
+      const [W, H] = viewBox(svg);
+      const texts = svgTexts(svg);
+      // 0.5 units: the text boxes are estimates from the font's advance widths (test/helpers/svgText.ts).
+      for (const t of texts) expect(t.box[0] >= -0.5 && t.box[2] <= W + 0.5 && t.box[3] <= H + 0.5, `${f}: "${t.text.slice(0, 40)}..." reaches ${t.box[2].toFixed(0)} of ${W}`).toBe(true);
+      expect(overlaps(texts), f).toEqual([]);
+    }
+  });
+
   it('the terminal summary, the summary plots and the report of a run with one window and one plane speak in the singular', () => {
     expect(summaries.narrow).toMatch(/\(1 field table, \d+ images/);
     expect(summaries.narrow).toMatch(/\n1 window; /);

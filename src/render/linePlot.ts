@@ -2,7 +2,7 @@
  * A small line and scatter plot builder for the summary figures: linear axes with nice ticks, light grid lines,
  * points with optional vertical error bars, model curves, and a legend beside the plot.
  */
-import { linear, n, svgDocument, text, wrap } from './svg.ts';
+import { figureHead, linear, n, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 import { formatTick, niceExtent, niceStep, niceTicks } from './ticks.ts';
 
@@ -58,8 +58,9 @@ export function linePlotSvg(o: PlotOptions): string {
   const pw = o.plotWidth ?? 470, ph = o.plotHeight ?? 300;
   const left = 72;
   const legendX = left + pw + 24, legendW = 220;
-  const subLines = o.subtitle ? wrap(o.subtitle, legendX + legendW - left - 12, 11.5) : [];
-  const top = 50 + subLines.length * 15;
+  const headText = figureHead(left, legendX + legendW - left - 12, o.title, o.subtitle);
+  const subLines = headText.subLines;
+  const top = 50 + headText.extra + subLines.length * 15;
   const xd = o.xDomain ?? dataDomain(o.series, 'x', false);
   const yd = o.yDomain ?? dataDomain(o.series, 'y', !!o.yIncludeZero);
   const X = linear(xd[0], xd[1], left, left + pw);
@@ -144,7 +145,7 @@ export function linePlotSvg(o: PlotOptions): string {
       ny += 13;
     }
   }
-  const head = text(left, 26, o.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const defs = `<clipPath id="${clipId}"><rect x="${left - 6}" y="${top - 6}" width="${pw + 12}" height="${ph + 12}"/></clipPath>`;
   const width = legendX + legendW;
   const height = Math.max(ny + 4, ly + 10);

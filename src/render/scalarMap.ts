@@ -19,7 +19,7 @@ import {
 import { drawLegend, uniqueItems, type LegendItem } from './mapLegend.ts';
 import { NO_VALUE_CODE } from './maskStyle.ts';
 import { qty } from './numbers.ts';
-import { svgDocument, text, wrap } from './svg.ts';
+import { figureHead, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 
 export interface ScalarMapOptions {
@@ -80,8 +80,9 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   const cbX = left + pw + (D ? 72 : 24);
   const legendX = cbX + CB_COLUMN;
   const width = Math.max(legendX + LEGEND_W + 12, 760);
-  const subLines = opts.subtitle ? wrap(opts.subtitle, width - left - 12, 11.5) : [];
-  const top = 50 + subLines.length * 15 + (D ? 40 : 6);
+  const headText = figureHead(left, width - left - 12, opts.title, opts.subtitle);
+  const subLines = headText.subLines;
+  const top = 50 + headText.extra + subLines.length * 15 + (D ? 40 : 6);
   const f = mapFrame(view, left, top, s, `${ID}-plot`);
 
   const defs = [clipDef(f)];
@@ -149,7 +150,7 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   const leg = drawLegend(uniqueItems(legend), legendX, top + 4, LEGEND_W);
   body.push(leg.markup);
 
-  const head = text(left, 26, opts.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const height = Math.max(top + ph + (opts.axes.note ? 66 : 50), top + cbH + 20, leg.bottom + 16);
   return svgDocument(width, height, opts.title, head + body.join('\n') + '\n', defs.join(''));
 }

@@ -20,7 +20,7 @@ import { drawLegendColumns, uniqueItems, type LegendItem } from './mapLegend.ts'
 import { NO_VALUE_CODE } from './maskStyle.ts';
 import { arrowLegend } from './scalarMap.ts';
 import { textWidth } from './richText.ts';
-import { svgDocument, text, wrap } from './svg.ts';
+import { figureHead, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 
 /** One panel: its field as plain arrays and its label lines. */
@@ -80,8 +80,9 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   ]);
   const labelH = Math.max(...labelLines.map((l) => l.length)) * 14 + 4;
   const gapY = labelH + 10 + TICK; // room for the panel label above and a tick row below
-  const subLines = o.subtitle ? wrap(o.subtitle, WIDTH - LEFT - 12, 11.5) : [];
-  const top0 = 50 + subLines.length * 15 + 8;
+  const headText = figureHead(LEFT, WIDTH - LEFT - 12, o.title, o.subtitle);
+  const subLines = headText.subLines;
+  const top0 = 50 + headText.extra + subLines.length * 15 + 8;
   const all: number[] = [];
   for (const p of panels) for (let i = 0; i < p.values.length; i++) all.push(p.values[i]);
   const scale: ColourScale = colourScale(all, 'sequential', o.domain);
@@ -178,7 +179,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
       ny += 13;
     }
   }
-  const head = text(LEFT, 26, o.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(LEFT, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const height = Math.max(ny + 12, top0 + cbH + 20);
   return svgDocument(WIDTH, height, o.title, head + body.join('\n') + '\n', defs.join(''));
 }
