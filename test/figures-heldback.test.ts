@@ -142,6 +142,39 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(counts[0][0] + counts[0][1]).toBeGreaterThan(10); // the limits do cut the wake and the free stream
   });
 
+  it('many windows: 24 of 60 panels on the range of all 60 windows, and the note names exactly the windows shown', async () => {
+    const campaign = loadCampaignFile(join(root, 'cross', 'campaign.yaml'));
+    const text = JSON.parse(readFileSync(join(root, 'cross', 'campaign.yaml'), 'utf8'));
+    text.windows = { kind: 'fixed', length_s: 25 };
+    text.output.figures = { density: 72 };
+    const file = join(root, 'cross', 'campaign-many.yaml');
+    writeFileSync(file, JSON.stringify(text));
+    expect(campaign.planes.length).toBe(1);
+    const res = await runCampaign(loadCampaignFile(file), { outRoot: join(root, 'cross', 'out-many'), images: true, stages: defaultStages() });
+    expect(res.manifest.windows.length).toBe(60); // 1,500 s of samples in 25-s windows
+    const [p1, p99] = numpy(
+      `v=[]\nfor f in sorted(glob.glob(sys.argv[1] + '/fields/*.csv')):\n d=pd.read_csv(f); un=d.u_ms/(9*(d.z_m/80)**0.12); v+=list(un[np.isfinite(un)])\nprint(json.dumps([np.percentile(v,1), np.percentile(v,99)]))`,
+      res.runDir,
+    ) as [number, number];
+    const svg = readFileSync(join(res.runDir, 'images', 'x3D_panels.svg'), 'utf8');
+    const bar = colourBar(svg);
+    const span = p99 - p1;
+    // As in the first test: the percentiles of every window's cells, widened to a nice step.
+    expect(bar.domain[0]).toBeLessThanOrEqual(p1 + 0.002 * span);
+    expect(bar.domain[1]).toBeGreaterThanOrEqual(p99 - 0.002 * span);
+    expect(bar.domain[0]).toBeGreaterThanOrEqual(p1 - 0.3 * span);
+    expect(bar.domain[1]).toBeLessThanOrEqual(p99 + 0.3 * span);
+    const shown = svgTexts(svg).filter((t) => t.cls === 'panel-label').map((t) => /^window (\d+)/.exec(t.text)?.[1]).filter(Boolean).map(Number);
+    expect(shown.length).toBe(24);
+    const note = svgTexts(svg).map((t) => t.text.replace(/\u00a0/g, ' ')).join(' ');
+    const listed = /windows ((?:\d+, )*\d+)\. Images/.exec(note)![1].split(', ').map(Number);
+    expect(listed).toEqual(shown);
+    expect(shown[0]).toBe(0);
+    // Evenly spaced over the run: no gap between shown windows more than twice the even spacing 59 / 23.
+    for (let k = 1; k < shown.length; k++) expect(shown[k] - shown[k - 1]).toBeLessThanOrEqual(Math.ceil(2 * 59 / 23));
+    expect(shown[shown.length - 1]).toBeGreaterThanOrEqual(59 - Math.ceil(59 / 23));
+  });
+
   it('colour range of the samples per cell holds the counts of a cell with more than 20,000 samples', () => {
     const counts = numpy(`d=pd.concat([pd.read_csv(f) for f in glob.glob(sys.argv[1] + '/fields/*.csv')])\nprint(json.dumps([int(x) for x in d.samples]))`, runDirs.narrow) as number[];
     // The generator's good rows per cell, less the few robust-filter outliers (under 0.1 %).
