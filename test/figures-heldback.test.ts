@@ -230,6 +230,31 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     }
   });
 
+  it('draws the contour of u/u_inf = 0.9 around the wake with the analytic ellipse\'s area, in metres on non-square cells', () => {
+    // The generator's u/u_inf = 1 - A exp(-(y - 12)^2 / (2 sy^2) - (z - 78)^2 / (2 sz^2)), A = 0.35, sy = 30 m,
+    // sz = 26 m. Its level set 1 - c lies on an ellipse of semi-axes s sqrt(2 ln(A / (1 - c))) (a Gaussian's level
+    // sets, as issue 4 states), area pi sy sz 2 ln(A / (1 - c)). Cells are 15 m x 25 m means: a Gaussian averaged
+    // over a box gains the box's variance (dy^2 / 12, dz^2 / 12) and keeps its volume, which sets sy, sz and A of the
+    // drawn field (6,194 m^2 for c = 0.9; 6,140 m^2 without). Tolerance 5 %: linear interpolation between cell
+    // centres 15 and 25 m apart on an ellipse 4 and 3 cells across, and the retrieval's noise.
+    const svg = svgOf('cross', 'x3D_w0_u_norm');
+    const f = frames(svg)[0];
+    const sy = (f.x1 - f.x0) / 195, sz = (f.y1 - f.y0) / 150; // page units per metre (the plane is 195 m x 150 m)
+    const d = /<path class="band" data-level="0.9" d="([^"]+)"/.exec(svg)![1];
+    const areas = [...d.matchAll(/M([^Z]+)Z/g)].map((m) => {
+      const p = m[1].split('L').map((q) => q.split(',').map(Number));
+      let a = 0;
+      for (let i = 0; i < p.length; i++) { const [x1, y1] = p[i], [x2, y2] = p[(i + 1) % p.length]; a += x1 * y2 - x2 * y1; }
+      return Math.abs(a) / 2 / (sy * sz);
+    }).sort((a, b) => a - b);
+    // The region u/u_inf >= 0.9: the plane (195 m x 150 m, its outer ring) with the wake's ellipse as a hole.
+    expect(Math.abs(areas[areas.length - 1] - 195 * 150)).toBeLessThan(1);
+    const vy = 900 + 15 ** 2 / 12, vz = 676 + 25 ** 2 / 12, A = (0.35 * 30 * 26) / Math.sqrt(vy * vz);
+    const analytic = Math.PI * Math.sqrt(vy * vz) * 2 * Math.log(A / 0.1);
+    expect(areas.length).toBe(2);
+    expect(Math.abs(areas[0] - analytic) / analytic).toBeLessThan(0.05);
+  });
+
   it('draws the cells without samples masked, exactly where the generator left them empty', () => {
     const svg = svgOf('cross', 'x3D_w0_u_norm');
     const f = frames(svg)[0];
