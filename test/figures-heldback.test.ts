@@ -423,6 +423,10 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(legend('horizontal', 'hub_panels')).toContain('Not shown');
     expect(legend('horizontal', 'hub_panels')).not.toMatch(/all 1 panels/);
     expect(legend('cross', 'x3D_panels')).not.toMatch(/all 2 panels/);
+    // A fixed inflow has no fit: its profile figure gives no empty RMSE or R² ("RMSE – m/s").
+    const inflow = svgTexts(svgOf('cross', 'x3D_w0_inflow')).map((t) => t.text.replace(/\u00a0/g, ' ')).join(' ');
+    expect(inflow).toContain('fixed: 9 m/s at 80 m');
+    expect(inflow).not.toMatch(/RMSE \u2013|R\^\{?2\}? \u2013|R2 \u2013/);
   });
 
   it('says so when the images asked for name windows the run does not have: a warning naming the campaign key after a run, an error before anything is redrawn by render', async () => {

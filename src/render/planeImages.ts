@@ -256,7 +256,13 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
   series.push({ label: lawText(p), x: vs, y: zs, kind: 'line' });
   return linePlotSvg({
     title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 inflow profile`,
-    subtitle: `${windowLabel(field.window)} \u00b7 RMSE ${qty(p.rmse_ms, 'm/s', 3)} \u00b7 R^{2}\u00a0${formatNumber(p.r2, 3)}${p.note ? ` \u00b7 ${p.note}` : ''}`,
+    // A fit's quality where there is a fit (a fixed inflow has none).
+    subtitle: [
+      windowLabel(field.window),
+      Number.isFinite(p.rmse_ms) ? `RMSE ${qty(p.rmse_ms, 'm/s', 3)}` : '',
+      Number.isFinite(p.r2) ? `R^{2}\u00a0${formatNumber(p.r2, 3)}` : '',
+      p.note,
+    ].filter(Boolean).join(' \u00b7 '),
     xLabel: QUANTITY.speed,
     yLabel: QUANTITY.height,
     series,
