@@ -255,6 +255,18 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(Math.abs(areas[0] - analytic) / analytic).toBeLessThan(0.05);
   });
 
+  it('the legend of a single map does not file the arrows, rotor and wake marks under "Not shown"', () => {
+    const texts = svgTexts(svgOf('cross', 'x3D_w0_u_norm')).map((t) => t.text.replace(/\u00a0/g, ' '));
+    const notShown = texts.indexOf('Not shown'), noData = texts.findIndex((t) => t.startsWith('no data'));
+    const arrow = texts.findIndex((t) => /in-plane flow/.test(t)), rotor = texts.indexOf('rotor disk and hub');
+    expect(notShown).toBeGreaterThanOrEqual(0);
+    expect(noData).toBeGreaterThan(notShown);
+    // A heading of its own between the masked cells and the marks.
+    const marks = texts.indexOf('Marks');
+    expect(marks).toBeGreaterThan(noData);
+    expect(marks).toBeLessThan(Math.min(arrow, rotor));
+  });
+
   it('draws the cells without samples masked, exactly where the generator left them empty', () => {
     const svg = svgOf('cross', 'x3D_w0_u_norm');
     const f = frames(svg)[0];

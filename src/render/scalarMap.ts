@@ -147,7 +147,11 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   body.push(cb.markup);
   legend.push(...cb.legend);
 
-  const leg = drawLegend(uniqueItems(legend), legendX, top + 4, LEGEND_W);
+  // The masked cells under "Not shown", and the marks drawn over the map under a heading of their own.
+  const items = uniqueItems(legend);
+  const firstMark = items.findIndex((it) => it.kind !== 'heading' && it.kind !== 'mask');
+  if (mask.counts.size && firstMark > 0) items.splice(firstMark, 0, { kind: 'heading', label: 'Marks' });
+  const leg = drawLegend(items, legendX, top + 4, LEGEND_W);
   body.push(leg.markup);
 
   const head = headText.markup;
