@@ -267,6 +267,18 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(marks).toBeLessThan(Math.min(arrow, rotor));
   });
 
+  it('says where a cell with a value has no arrow because v or w was not resolved (numpy count on the field table)', () => {
+    // Every cell carries an arrow position here (13 x 6 cells: every = 1). numpy: cells with u whose v is missing,
+    // or whose w is missing without being assumed zero (assumed-w cells get grey arrows).
+    const [missing] = numpy(
+      `d=pd.read_csv(sorted(glob.glob(sys.argv[1] + '/fields/*.csv'))[0])\nm=d.u_ms.notna() & (d.v_ms.isna() | (d.w_ms.isna() & (d.w_mask != 'assumed_zero')))\nprint(json.dumps([int(m.sum())]))`,
+      runDirs.cross,
+    ) as [number];
+    expect(missing).toBeGreaterThan(0); // the bottom row: w's amplification above the threshold
+    const legend = svgTexts(svgOf('cross', 'x3D_w0_u_norm')).map((t) => t.text.replace(/\u00a0/g, ' ')).join(' ');
+    expect(legend).toContain(`no arrow in ${missing} cells with a value`);
+  });
+
   it('draws the cells without samples masked, exactly where the generator left them empty', () => {
     const svg = svgOf('cross', 'x3D_w0_u_norm');
     const f = frames(svg)[0];

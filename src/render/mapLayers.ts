@@ -156,6 +156,8 @@ export interface ArrowCounts {
   measured: number;
   assumed: number;
   capped: number;
+  /** Arrow places whose cell has a value on the map but no arrow: v or w not resolved (masked). */
+  unresolved: number;
 }
 
 /**
@@ -182,16 +184,19 @@ export function arrowLayer(f: MapFrame, grid: Grid, a: ArrowInput, sc: ArrowScal
   const { ny, nz, y0, z0, dy, dz } = grid;
   const every = Math.max(1, Math.round(a.every));
   const k = (sc.length_m * f.scale) / sc.reference_ms; // figure units per m/s
-  const counts: ArrowCounts = { measured: 0, assumed: 0, capped: 0 };
+  const counts: ArrowCounts = { measured: 0, assumed: 0, capped: 0, unresolved: 0 };
   const off = Math.floor((every - 1) / 2);
   const parts: string[] = [];
   for (let iz = off; iz < nz; iz += every) {
     for (let iy = off; iy < ny; iy += every) {
       const i = iy + iz * ny;
       const v = a.v[i], w = a.w[i];
-      if (!Number.isFinite(v) || !Number.isFinite(w)) continue;
       const yc = y0 + iy * dy, zc = z0 + iz * dz;
       if (yc < f.yLo || yc > f.yHi || zc < f.zLo || zc > f.zHi) continue;
+      if (!Number.isFinite(v) || !Number.isFinite(w)) {
+        if (Number.isFinite(grid.values[i])) counts.unresolved++;
+        continue;
+      }
       const s = Math.hypot(v, w);
       const cut = s > ARROW_CAP * sc.reference_ms ? (ARROW_CAP * sc.reference_ms) / s : 1;
       const assumed = !!a.assumedW && a.assumedW[i] === 1;

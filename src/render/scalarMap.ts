@@ -160,13 +160,15 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
 }
 
 /** The reference arrow and, when present, the assumed-w and capped arrows, for the legend. */
-export function arrowLegend(sc: ArrowScale, unitsPerMetre: number, counts: { measured: number; assumed: number; capped: number }, label?: string): LegendItem[] {
+export function arrowLegend(sc: ArrowScale, unitsPerMetre: number, counts: { measured: number; assumed: number; capped: number; unresolved?: number }, label?: string): LegendItem[] {
   if (counts.measured + counts.assumed === 0) return [];
   const len = sc.length_m * unitsPerMetre;
   const ref = qty(sc.reference_ms, 'm/s', decimalsOf(sc.reference_ms));
   const items: LegendItem[] = [{ kind: 'arrow', length: len, label: `${ref} ${label ?? 'in-plane flow (v, w), measured'}` }];
   if (counts.assumed) items.push({ kind: 'arrow', length: len, assumed: true, label: `${ref}, v only: w not measured, taken as 0 (two-instrument cells, ${counts.assumed}\u00a0arrow${counts.assumed === 1 ? '' : 's'})` });
   if (counts.capped) items.push({ kind: 'arrow', length: len, dashed: true, label: `${counts.capped}\u00a0arrow${counts.capped === 1 ? '' : 's'} faster than ${qty(ARROW_CAP * sc.reference_ms, 'm/s', decimalsOf(sc.reference_ms))}, cut to that length` });
+  const k = counts.unresolved ?? 0;
+  if (k) items.push({ kind: 'note', label: `no arrow in ${k}\u00a0cell${k === 1 ? '' : 's'} with a value: v or w not resolved (masked)` });
   return items;
 }
 

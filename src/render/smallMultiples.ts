@@ -91,7 +91,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   const defs: string[] = [];
   const body: string[] = [];
   const maskCounts = new Map<number, number>();
-  const arrowCounts = { measured: 0, assumed: 0, capped: 0 };
+  const arrowCounts = { measured: 0, assumed: 0, capped: 0, unresolved: 0 };
   const overlays = { centre: false, disk: false, ellipse: false, track: false };
   panels.forEach((p, k) => {
     const col = k % cols, row = Math.floor(k / cols);
@@ -113,6 +113,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
       arrowCounts.measured += a.counts.measured;
       arrowCounts.assumed += a.counts.assumed;
       arrowCounts.capped += a.counts.capped;
+      arrowCounts.unresolved += a.counts.unresolved;
     }
     if (o.rotor) g.push(rotorLayer(f, o.rotor, 2));
     for (const t of p.turbines ?? o.turbines ?? []) g.push(turbineLayer(f, t));
