@@ -279,6 +279,24 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     expect(legend).toContain(`no arrow in ${missing} cells with a value`);
   });
 
+  it('writes PNGs whose pixel size and stated resolution (pHYs) are the density asked for, for print', async () => {
+    const { svgToPng } = await import('../src/render/write.ts');
+    const svg = svgOf('cross', 'x3D_w0_u_norm');
+    const inches = Number(/<svg[^>]* width="([0-9.]+)in"/.exec(svg)![1]);
+    for (const dpi of [300, 150]) {
+      const png = await svgToPng(svg, dpi);
+      // PNG: IHDR width at byte 16; the pHYs chunk holds pixels per metre (x, y) and unit 1 (metre) (PNG spec 11.3.5.3).
+      const width = png.readUInt32BE(16);
+      const at = png.indexOf(Buffer.from('pHYs'));
+      expect(at).toBeGreaterThan(0);
+      const ppm = png.readUInt32BE(at + 4), unit = png.readUInt8(at + 12);
+      expect(unit).toBe(1);
+      // dpi / 0.0254 pixels per metre, to the integer the format stores (+-1).
+      expect(Math.abs(ppm - dpi / 0.0254)).toBeLessThanOrEqual(1);
+      expect(Math.abs(width - inches * dpi)).toBeLessThanOrEqual(2); // librsvg rounds the size
+    }
+  });
+
   it('draws the cells without samples masked, exactly where the generator left them empty', () => {
     const svg = svgOf('cross', 'x3D_w0_u_norm');
     const f = frames(svg)[0];
