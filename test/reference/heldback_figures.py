@@ -22,7 +22,7 @@ every row has its own azimuth, elevation and range; one sample per row):
   without fraction; 5 % junk rows at CNR -26 +/- 1 dB with random radial velocities (good rows -8 +/- 3 dB).
   Not georeferenced (no site.origin_wgs84).
 - `narrow`: a cross plane one cell wide (y in [-10, 10] m, one 20-m cell) and 3 cells high (z 50..110 m, 20 m),
-  one window over the whole record, 24,000 good samples in each cell (more than 20,000 per cell), georeferenced
+  one window over the whole record, 24,000 samples in each cell (about 22,800 good: more than 20,000), georeferenced
   (site.origin_wgs84 in open ocean).
 - `twoplanes`: two cross planes, at x = 240 m with 40-m cells (5 x 4) and at x = 400 m with 8-m cells (12 x 10),
   one window over the whole record (the arrows of a run share one length; the fine plane must thin its arrows).
@@ -176,7 +176,7 @@ N_CELL = 24000
 recs = {i: [] for i in INS}
 good_per_cell = np.zeros(3, dtype=int)
 for ins in INS:
-    n = N_CELL * 3 // 4  # each instrument a quarter of each cell's samples
+    n = N_CELL // 4  # each instrument a quarter of each cell's samples
     y = rng.uniform(-9.5, 9.5, 3 * n)
     z = np.repeat(60.0 + 20 * np.arange(3), n) + rng.uniform(-9.5, 9.5, 3 * n)
     x = 240.0 + rng.uniform(-5, 5, 3 * n)
