@@ -390,6 +390,10 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
       expect(Math.abs(sy - 30) / 30, `row x = ${x}`).toBeLessThan(0.1);
       expect(Math.abs(amp - 0.349), `row x = ${x}`).toBeLessThan(0.03);
     }
+    // The map marks each row's centre where the track found it: 12 circles at y within 2 m of 12 (same reason).
+    const marks = [...svgOf('horizontal', 'hub_w0_u_norm').matchAll(/class="marker marker-circle" data-y="([-0-9.e]+)" data-z="([-0-9.e]+)"/g)].map((m) => [Number(m[1]), Number(m[2])]);
+    expect(marks.length).toBe(12);
+    for (const [y, x] of marks) expect(Math.abs(y - 12), `row x = ${x}`).toBeLessThan(2);
   });
 
   it('says which listed windows no sample reached (they are not in the figures or tables), instead of leaving them out silently', async () => {
