@@ -76,7 +76,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   // Panel labels wrapped to the panel width (at most three lines for the label, two for the sublabel).
   const labelLines = panels.map((p) => [
     ...clampLines(wrap(p.label, pw, LABEL_SIZE, true), 3, pw, true).map((t) => ({ t, bold: true })),
-    ...(p.sublabel ? clampLines(wrap(p.sublabel, pw, LABEL_SIZE), 2, pw, false).map((t) => ({ t, bold: false })) : []),
+    ...(p.sublabel ? clampLines(wrap(p.sublabel, pw, LABEL_SIZE), 3, pw, false).map((t) => ({ t, bold: false })) : []),
   ]);
   const labelH = Math.max(...labelLines.map((l) => l.length)) * 14 + 4;
   const gapY = labelH + 10 + TICK; // room for the panel label above and a tick row below
