@@ -42,6 +42,21 @@ describe('geometry figures', () => {
     expect(figs[3].svg).toMatch(/nacelle minus wind direction/);
     expect(figs[4].svg).toMatch(/up to 1\.2 m/);
   });
+
+  it('label their axes as the run\'s and planner\'s figures do: "°" for angles, one phrasing of height and distance (issue 15)', async () => {
+    const { svgTexts } = await import('./helpers/svgText.ts');
+    const { QUANTITY } = await import('../src/render/labels.ts');
+    const { plainText } = await import('../src/render/richText.ts');
+    const figs = [...profileFigures(profiles), ...nacelleFigures(nac), ...trackFigures(track, 100)];
+    const labels = figs.flatMap((f) => svgTexts(f.svg).filter((t) => t.cls === 'axis-label').map((t) => t.text.replace(/\u00a0/g, ' ')));
+    expect(labels.length).toBeGreaterThanOrEqual(12);
+    for (const l of labels) {
+      expect(l, l).not.toMatch(/\bdeg\b/);
+      expect(l, l).not.toMatch(/\(-\)/); // dimensionless is "(–)" as in QUANTITY
+    }
+    expect(labels).toContain(plainText(QUANTITY.height));
+    expect(labels).toContain(plainText(QUANTITY.downstream));
+  });
 });
 
 describe('report sections', () => {
