@@ -56,6 +56,16 @@ describe('geometry figures', () => {
     }
     expect(labels).toContain(plainText(QUANTITY.height));
     expect(labels).toContain(plainText(QUANTITY.downstream));
+    // The power-gain figure and the geometry tables of the report too.
+    const { powerGainSvg } = await import('../src/render/powerGainFigure.ts');
+    const gain = powerGainSvg({
+      reference: 'R', edges: { direction_deg: [260, 270, 280], speed_ms: [0, 20] }, windows: [], assumptions: [], notes: [],
+      gains: [{ turbine: 'T', level_deg: 20, result: { confidence: 0.95, bins: [{ gain: 0.02, gainLo: 0, gainHi: 0.04, directionLo: 260, directionHi: 270, speedLo: 0, speedHi: 20 }], combined: { gain: 0.02, lo: 0, hi: 0.04 } } }],
+    } as unknown as Parameters<typeof powerGainSvg>[0])!;
+    for (const t of svgTexts(gain).filter((x) => x.cls === 'axis-label')) expect(t.text, t.text).not.toMatch(/\bdeg\b/);
+    const headers = reportSections({ profiles, profileBins: [], nacelle: nac, tracks: track, notes: [] }).flatMap((x) => (x.tables ?? []).flatMap((tb) => tb.columns ?? []));
+    expect(headers.length).toBeGreaterThan(5);
+    for (const h of headers) expect(h, h).not.toMatch(/\bdeg\b/);
   });
 });
 
