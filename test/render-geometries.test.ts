@@ -56,6 +56,7 @@ describe('geometry figures', () => {
     }
     expect(labels).toContain(plainText(QUANTITY.height));
     expect(labels).toContain(plainText(QUANTITY.downstream));
+    expect(labels).toContain('y, lateral, positive to the left (m)'); // the tracker's deficit across the wake
     // The power-gain figure and the geometry tables of the report too.
     const { powerGainSvg } = await import('../src/render/powerGainFigure.ts');
     const gain = powerGainSvg({

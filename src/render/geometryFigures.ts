@@ -8,7 +8,7 @@
 import type { NacelleWindow } from '../nacelle/types.ts';
 import type { ProfileWindow } from '../profile/types.ts';
 import type { TrackPoint } from '../track/types.ts';
-import { QUANTITY } from './labels.ts';
+import { axisLabels, QUANTITY } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import { theme } from './theme.ts';
 
@@ -72,7 +72,7 @@ export function trackFigures(rows: TrackPoint[], diameter_m: number): GeometryFi
     if (first) {
       const same = win.filter((r) => r.window.index === first.window.index && r.profile.c_m.length > 0);
       const prof: PlotSeries[] = same.map((r, k) => ({ label: `x = ${(r.x_m / diameter_m).toFixed(1)} D`, x: r.profile.c_m, y: r.profile.deficit, yErr: r.profile.sdeficit, kind: 'both', colour: colour(k) }));
-      out.push({ name: `track_deficit_${safe(id)}`, description: `line-of-sight deficit across the wake, window ${first.window.index}, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: line-of-sight deficit, window ${first.window.index}`, subtitle: `free stream: ${first.freeStreamSource}`, xLabel: `${axis} (m)`, yLabel: 'deficit 1 \u2212 S_{app}/S_{\u221e} (–)', series: prof, yReference: 0 }) });
+      out.push({ name: `track_deficit_${safe(id)}`, description: `line-of-sight deficit across the wake, window ${first.window.index}, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: line-of-sight deficit, window ${first.window.index}`, subtitle: `free stream: ${first.freeStreamSource}`, xLabel: axis === 'y' ? axisLabels('cross').yLabel : QUANTITY.height, yLabel: 'deficit 1 \u2212 S_{app}/S_{\u221e} (–)', series: prof, yReference: 0 }) });
     }
   }
   return out;
