@@ -297,6 +297,28 @@ describe.skipIf(!py.python)(`held-back figures${py.python ? '' : ` (skipped: ${p
     }
   });
 
+  it('shows every instrument\'s chosen CNR limit even where two instruments share one value (dashes interleaved, not drawn over each other)', () => {
+    const limits = (JSON.parse(readFileSync(join(runDirs.cross, 'manifest.json'), 'utf8')) as { cnrLimits: { perInstrument: Record<string, { min_db: number }> } }).cnrLimits.perInstrument;
+    const values = Object.values(limits).map((l) => l.min_db);
+    // The held-back junk gives two instruments the same limit (bs-up and bs-under at -20 dB): the case to check.
+    expect(new Set(values).size).toBeLessThan(values.length);
+    for (const name of ['qc_cnr_inconsistent', 'qc_cnr_scatter']) {
+      const svg = svgOf('cross', name);
+      const lines = [...svg.matchAll(/<path class="series-line" d="(M[-0-9.]+,[-0-9.]+L[-0-9.]+,[-0-9.]+)" [^>]*stroke="([^"]+)"[^>]*stroke-dasharray="([^"]+)"([^>]*)>/g)]
+        .map((m) => ({ d: m[1], colour: m[2], dash: m[3].split(/[ ,]+/).map(Number), offset: Number(/stroke-dashoffset="([-0-9.]+)"/.exec(m[4])?.[1] ?? 0) }));
+      expect(lines.length).toBe(values.length);
+      // Lines at the same place: each must show dashes where the others leave gaps (same period, distinct phases).
+      for (const a of lines) for (const b of lines) {
+        if (a === b || a.d !== b.d) continue;
+        const period = a.dash[0] + a.dash[1];
+        expect(b.dash[0] + b.dash[1]).toBe(period);
+        const shift = (((a.offset - b.offset) % period) + period) % period;
+        expect(shift, `${name}: ${a.colour} and ${b.colour} drawn over each other`).toBeGreaterThanOrEqual(a.dash[0]);
+        expect(shift).toBeLessThanOrEqual(period - b.dash[0]);
+      }
+    }
+  });
+
   it('draws the cells without samples masked, exactly where the generator left them empty', () => {
     const svg = svgOf('cross', 'x3D_w0_u_norm');
     const f = frames(svg)[0];

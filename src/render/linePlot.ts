@@ -27,6 +27,8 @@ export interface PlotSeries {
   colour?: string;
   /** SVG dash array for lines, e.g. "6 3". */
   dash?: string;
+  /** SVG dash offset of the line (lines drawn at one place with interleaved dashes). */
+  dashOffset?: number;
   marker?: MarkerShape;
   /** Drawn shifted by this much along x (display only), so that series at the same x do not hide each other. */
   xOffset?: number;
@@ -109,7 +111,7 @@ export function linePlotSvg(o: PlotOptions): string {
     }
     const g: string[] = [];
     if (s.kind !== 'points' && pts.length > 1) {
-      g.push(`<path class="series-line" d="M${pts.map(([x, y]) => `${n(X(x))},${n(Y(y))}`).join('L')}" fill="none" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''} stroke-linejoin="round"/>`);
+      g.push(`<path class="series-line" d="M${pts.map(([x, y]) => `${n(X(x))},${n(Y(y))}`).join('L')}" fill="none" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''}${s.dashOffset ? ` stroke-dashoffset="${s.dashOffset}"` : ''} stroke-linejoin="round"/>`);
     }
     if (s.kind !== 'line') {
       for (const [x, y, lo, hi, ex] of pts) {
