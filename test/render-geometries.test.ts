@@ -42,6 +42,32 @@ describe('geometry figures', () => {
     expect(figs[3].svg).toMatch(/nacelle minus wind direction/);
     expect(figs[4].svg).toMatch(/up to 1\.2 m/);
   });
+
+  it('label their axes as the run\'s and planner\'s figures do: "°" for angles, one phrasing of height and distance (issue 15)', async () => {
+    const { svgTexts } = await import('./helpers/svgText.ts');
+    const { QUANTITY } = await import('../src/render/labels.ts');
+    const { plainText } = await import('../src/render/richText.ts');
+    const figs = [...profileFigures(profiles), ...nacelleFigures(nac), ...trackFigures(track, 100)];
+    const labels = figs.flatMap((f) => svgTexts(f.svg).filter((t) => t.cls === 'axis-label').map((t) => t.text.replace(/\u00a0/g, ' ')));
+    expect(labels.length).toBeGreaterThanOrEqual(12);
+    for (const l of labels) {
+      expect(l, l).not.toMatch(/\bdeg\b/);
+      expect(l, l).not.toMatch(/\(-\)/); // dimensionless is "(–)" as in QUANTITY
+    }
+    expect(labels).toContain(plainText(QUANTITY.height));
+    expect(labels).toContain(plainText(QUANTITY.downstream));
+    expect(labels).toContain('y, lateral, positive to the left (m)'); // the tracker's deficit across the wake
+    // The power-gain figure and the geometry tables of the report too.
+    const { powerGainSvg } = await import('../src/render/powerGainFigure.ts');
+    const gain = powerGainSvg({
+      reference: 'R', edges: { direction_deg: [260, 270, 280], speed_ms: [0, 20] }, windows: [], assumptions: [], notes: [],
+      gains: [{ turbine: 'T', level_deg: 20, result: { confidence: 0.95, bins: [{ gain: 0.02, gainLo: 0, gainHi: 0.04, directionLo: 260, directionHi: 270, speedLo: 0, speedHi: 20 }], combined: { gain: 0.02, lo: 0, hi: 0.04 } } }],
+    } as unknown as Parameters<typeof powerGainSvg>[0])!;
+    for (const t of svgTexts(gain).filter((x) => x.cls === 'axis-label')) expect(t.text, t.text).not.toMatch(/\bdeg\b/);
+    const headers = reportSections({ profiles, profileBins: [], nacelle: nac, tracks: track, notes: [] }).flatMap((x) => (x.tables ?? []).flatMap((tb) => tb.columns ?? []));
+    expect(headers.length).toBeGreaterThan(5);
+    for (const h of headers) expect(h, h).not.toMatch(/\bdeg\b/);
+  });
 });
 
 describe('report sections', () => {

@@ -17,6 +17,11 @@ import { planSchema } from '../plan/schema.ts';
 import { beamFrameSchema, mountSchema, nacelleSchema, orientationSeriesSchema, profileInflowSchema, profileSchema, roleSchema, trackSchema } from './geometrySchema.ts';
 import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 
+
+/** Ids of instruments, planes and turbines: they name output files, so letters, digits, "_", "." and "-" only. */
+export const ID_PATTERN = /^[A-Za-z0-9_.-]+$/;
+export const ID_RULE = 'letters, digits, "_", "." and "-" only';
+
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
 
@@ -78,7 +83,7 @@ const cwSchema = z
 
 const instrumentSchema = z
   .object({
-    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only'),
+    id: z.string().regex(ID_PATTERN, ID_RULE),
     position_m: vec3.optional().describe('site-frame position east, north, up, metres (the beam origin)'),
     position_wgs84: z
       .object({
@@ -141,7 +146,7 @@ const extent = z
 
 const planeSchema = z
   .object({
-    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only'),
+    id: z.string().regex(ID_PATTERN, ID_RULE),
     orientation: z
       .enum(['cross', 'horizontal'])
       .default('cross')
@@ -315,7 +320,7 @@ export const powerSchema = z
 
 const turbineSchema = z
   .object({
-    id: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, "_", "." and "-" only').default('turbine'),
+    id: z.string().regex(ID_PATTERN, ID_RULE).default('turbine'),
     position_m: vec3.describe('tower base east, north, up in the site frame, metres'),
     hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
     rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),

@@ -28,8 +28,8 @@ export function formatRunSummary(res: RunResult): string {
   const images = m.outputs.filter((o) => o.kind === 'image').length;
   const lines = [
     `wakeplane ${m.tool.version} — campaign ${m.campaign.name}`,
-    `results in ${where}/  (${fields} field tables, ${images} images${m.outputs.some((o) => o.kind === 'report') ? ', report.html' : ''})`,
-    `${m.windows.length} windows; ${m.samples.total.read.toLocaleString('en')} samples read in ${m.timings_s.total?.toFixed(1)} s`,
+    `results in ${where}/  (${fields} field table${fields === 1 ? '' : 's'}, ${images} image${images === 1 ? '' : 's'}${m.outputs.some((o) => o.kind === 'report') ? ', report.html' : ''})`,
+    `${m.windows.length} window${m.windows.length === 1 ? '' : 's'}; ${m.samples.total.read.toLocaleString('en')} samples read in ${m.timings_s.total?.toFixed(1)} s`,
     'sample accounting (read = accepted + rejected by reason):',
     ...accountingLines(m.samples.perInstrument, m.samples.total),
   ];

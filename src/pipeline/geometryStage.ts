@@ -71,7 +71,7 @@ export function reportSections(g: GeometryResults): ReportSection[] {
       items: [['Heights by flag', [...flags].map(([k, v]) => `${k} ${v}`).join(', ')]],
       tables: [...new Set(g.profiles.map((r) => r.instrumentId))].map((id) => ({
         title: `Profile ${id}`,
-        columns: ['window', 'height (m)', 'speed (m/s)', '± (m/s)', 'from (deg)', '± (deg)', 'w (m/s)', 'R²', 'flag'],
+        columns: ['window', 'height (m)', 'speed (m/s)', '± (m/s)', 'from (°)', '± (°)', 'w (m/s)', 'R²', 'flag'],
         rows: g.profiles.filter((r) => r.instrumentId === id).flatMap((r) => r.points.map((p) => [r.window.index, f(p.height_m, 0), f(p.speed_ms), f(p.sspeed_ms), f(p.direction_deg, 1), f(p.sdirection_deg, 1), f(p.w_ms), f(p.r2, 3), p.flag])),
         link: join('profiles', `${safe(id)}.csv`),
       })),
@@ -84,7 +84,7 @@ export function reportSections(g: GeometryResults): ReportSection[] {
       items: [],
       tables: [...new Set(g.nacelle.map((r) => r.instrumentId))].map((id) => ({
         title: `Nacelle instrument ${id}`,
-        columns: ['window', 'hub speed (m/s)', '±', 'shear-corrected', 'alpha', 'free stream (m/s)', 'yaw misalignment (deg)', '±', 'flag'],
+        columns: ['window', 'hub speed (m/s)', '±', 'shear-corrected', 'alpha', 'free stream (m/s)', 'yaw misalignment (°)', '±', 'flag'],
         rows: g.nacelle.filter((r) => r.instrumentId === id).map((r) => [r.window.index, f(r.hubSpeed_ms), f(r.shubSpeed_ms), f(r.hubSpeedShear_ms), f(r.alpha, 3), f(r.freeStream_ms), f(r.yawMisalignment_deg, 1), f(r.syawMisalignment_deg, 1), r.flag]),
         link: join('nacelle', `${safe(id)}.csv`),
       })),

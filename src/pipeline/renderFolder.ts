@@ -13,8 +13,10 @@
 import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
+import { ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
 import type { Campaign } from '../campaign/types.ts';
-import { InputError, OutputError } from '../errors.ts';
+import { InputError, OptionError, OutputError } from '../errors.ts';
+import { missingSelectedText } from '../render/figureSelection.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
 import { replaceRefusal } from './outputFolder.ts';
@@ -43,6 +45,12 @@ export interface RenderResult {
 export function campaignFromManifest(m: RunManifest, file: string): Campaign {
   const c = m.settings as Campaign | undefined;
   if (!c || typeof c !== 'object' || !Array.isArray(c.planes) || !c.turbine) throw new InputError(file, undefined, 'the manifest carries no campaign settings to render from');
+  // Ids name the figure files: a hand-edited manifest must not lead a render outside the run folder.
+  for (const key of ['planes', 'turbines', 'instruments'] as const) {
+    ((c as unknown as Record<string, { id?: unknown }[] | undefined>)[key] ?? []).forEach((x, i) => {
+      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id)) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE} (got ${JSON.stringify(x?.id)}); nothing redrawn`);
+    });
+  }
   const num = (v: unknown) => (typeof v === 'number' ? v : NaN);
   return { ...c, planes: c.planes.map((p) => ({ ...p, x_m: num(p.x_m), z_m: num(p.z_m) })) };
 }
@@ -64,6 +72,12 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
   if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
   const campaign = campaignFromManifest(m, manifestPath);
+  // Images asked for windows or bins the run does not have: an error before anything is redrawn.
+  const missing = [
+    opts.windowImages ? missingSelectedText(opts.windowImages, (m.windows ?? []).map((w) => w.index), 'window') : '',
+    opts.binImages ? missingSelectedText(opts.binImages, (m.ensembles ?? []).filter((e) => !e.empty).map((e) => e.bin), 'condition bin') : '',
+  ].filter(Boolean);
+  if (missing.length) throw new OptionError('window-images', `${missing.join('; ')}; nothing redrawn`);
   // Every field table the manifest lists must be there before anything is redrawn (a deleted or moved table would
   // otherwise stop the render half way, with some figures replaced).
   for (const o of m.outputs ?? []) {

@@ -42,6 +42,7 @@ import { hashFiles } from './hashing.ts';
 import type { OutputRecord, RunManifest } from '../records/manifest.ts';
 import { directionForWindow } from '../windows/direction.ts';
 import { buildWindowPlan, type BuiltWindowPlan } from '../windows/build.ts';
+import type { WindowPlan } from '../windows/plan.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { Problems } from '../errors.ts';
 import { VERSION } from '../version.ts';
@@ -359,6 +360,8 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if (built) stageCtx.shared.windowPlan = built.plan;
     outputs.push(...finisher.outputs);
     if (built?.segments) manifest.segments = built.segments;
+    const missed = missedWindows(built?.plan, finisher.windows);
+    if (missed) warnings.push(missed);
     if (!finisher.disjoint) warnings.push('windows overlap: robust-filter outliers are counted per window (manifest windows[].outliers), not in the run-level accounting');
     if (!finisher.disjoint && c.conditions?.bins.length) {
       warnings.push('condition bins pool overlapping windows: a sample in k windows of a bin counts k times in its ensemble, so the ensemble\'s sample counts are inflated and its standard uncertainties too small (by up to the square root of k); use windows that do not overlap for ensembles');
@@ -434,4 +437,20 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     staging.abort();
     throw e;
   }
+}
+
+/**
+ * Windows of a list or of turbine-state segments that no sample reached: they have no field, figure or
+ * table, and are said so once (at most five named) instead of being left out silently. '' when there are none.
+ */
+function missedWindows(plan: WindowPlan | undefined, done: readonly { start_s: number; end_s: number }[]): string {
+  if (!plan?.all?.length || (plan.kind !== 'list' && plan.kind !== 'segment')) return '';
+  const have = new Set(done.map((w) => `${w.start_s}/${w.end_s}`));
+  const missed = plan.all.filter((d) => !have.has(`${d.start_s}/${d.end_s}`));
+  if (!missed.length) return '';
+  const kind = plan.kind === 'list' ? 'listed' : 'segment';
+  const iso = (t: number) => new Date(Math.round(t * 1000)).toISOString().slice(0, 16).replace('T', ' ');
+  const named = missed.slice(0, 5).map((d) => `${d.label ? `${d.label} ` : ''}(${iso(d.start_s)}\u2013${iso(d.end_s)} UTC)`);
+  const more = missed.length > 5 ? ` and ${missed.length - 5} more` : '';
+  return `windows: ${missed.length} of ${plan.all.length} ${kind} windows had no sample and are not in the results (no field, figure or table): ${named.join(', ')}${more}`;
 }

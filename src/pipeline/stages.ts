@@ -175,6 +175,12 @@ export function imageStage(opts: ImageStageOptions = {}): RunStage {
       const { FigureCollector, renderRunFigures } = await import('../render/runFigures.ts');
       const { RenderQueue } = await import('../render/renderQueue.ts');
       const settings = figureSettings(ctx.campaign, opts);
+      // A list of windows or bins that names some the run does not have: said once, with the key that asked.
+      const { missingSelectedText } = await import('../render/figureSelection.ts');
+      const windowsMissing = missingSelectedText(settings.windowImages, ctx.manifest.windows.map((w) => w.index), 'window');
+      if (windowsMissing) ctx.manifest.warnings.push(`${opts.windowImages ? 'option --window-images' : 'output.figures.windowImages'}: ${windowsMissing}; no images drawn for ${windowsMissing.startsWith('windows') ? 'them' : 'it'}`);
+      const binsMissing = missingSelectedText(settings.binImages ?? 'none', (ctx.manifest.ensembles ?? []).filter((e) => !e.empty).map((e) => e.bin), 'condition bin');
+      if (binsMissing) ctx.manifest.warnings.push(`${opts.binImages ? 'option --window-images bins:' : 'output.figures.binImages'}: ${binsMissing}; no images drawn for ${binsMissing.startsWith('condition bins') ? 'them' : 'it'}`);
       return renderRunFigures({
         campaign: ctx.campaign,
         settings,

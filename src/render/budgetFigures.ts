@@ -6,20 +6,22 @@
  */
 import { withValues, type GridSpec } from '../grid/grid.ts';
 import { scalarMapSvg } from './scalarMap.ts';
-import { svgDocument, text, n } from './svg.ts';
+import { figureHead, svgDocument, text, n } from './svg.ts';
 import { theme } from './theme.ts';
 import { niceExtent } from './ticks.ts';
 
 /** values[component][term] in m/s; NaN bars are left out. */
 export function budgetBarsSvg(title: string, subtitle: string, terms: string[], components: string[], values: Record<string, Record<string, number>>): string {
-  const W = 900, H = 460, left = 80, right = 150, top = 70, bottom = 70;
+  const W = 900, left = 80, right = 150, bottom = 70;
+  const head = figureHead(left, W - left - 12, title, subtitle);
+  const top = 70 + head.extra + Math.max(0, head.subLines.length - 1) * 15, H = top + 320 + bottom;
   const pw = W - left - right, ph = H - top - bottom;
   let max = 0;
   for (const c of components) for (const t of terms) if (Number.isFinite(values[c]?.[t])) max = Math.max(max, values[c][t]);
   const [, hi] = niceExtent(0, max > 0 ? max : 0.1);
   const y = (v: number) => top + ph - (v / hi) * ph;
   const group = pw / terms.length, bw = (group * 0.8) / components.length;
-  let body = text(left, 28, title, { size: 16, weight: 'bold' }) + text(left, 48, subtitle, { size: 11, fill: theme.muted });
+  let body = head.markup;
   body += `<rect x="${n(left)}" y="${n(top)}" width="${n(pw)}" height="${n(ph)}" fill="${theme.panel}"/>\n`;
   const ticks = 5;
   for (let k = 0; k <= ticks; k++) {

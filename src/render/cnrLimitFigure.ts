@@ -21,11 +21,17 @@ export function cnrLimitFigures(per: Record<string, InstrumentCnrLimit>): { what
   if (!withCurve.length) return [];
   const build = (value: (c: NonNullable<InstrumentCnrLimit['classes']>[number]) => number, top: number) => {
     const series: PlotSeries[] = [];
+    // Instruments with the same limit share one line position: their dashes interleave (each a 6-unit dash, then
+    // the others' dashes and 2-unit gaps), so that every colour stays visible.
+    const same = (a: number, b: number) => Math.abs(a - b) < 1e-9;
     withCurve.forEach(([id, l], k) => {
+      const group = withCurve.filter(([, o]) => same(o.min_db, l.min_db));
+      const m = group.length, j = group.findIndex(([gid]) => gid === id);
+      const dash = m > 1 ? `6 ${8 * m - 6}` : '6 4';
       const colour = theme.series[k % theme.series.length];
       const cls = l.classes!;
       series.push({ label: `${id}: limit ${formatNumber(l.min_db, 1)}\u00a0dB (${STATUS_TEXT[l.status]})`, x: cls.map((c) => (c.lo_db + c.hi_db) / 2), y: cls.map(value), kind: 'both', marker: 'circle', colour });
-      series.push({ label: `${id}: chosen limit`, x: [l.min_db, l.min_db], y: [0, top], kind: 'line', dash: '6 4', colour });
+      series.push({ label: `${id}: chosen limit`, x: [l.min_db, l.min_db], y: [0, top], kind: 'line', dash, ...(m > 1 ? { dashOffset: -8 * j } : {}), colour });
     });
     return series;
   };

@@ -45,3 +45,23 @@ export function parseImageSelection(values: string | string[], option = 'window-
   }
   return out;
 }
+
+/** The numbers a list selection names that are not among `present` (a run's windows or bins); [] for other forms. */
+export function missingSelected(spec: WindowImages, present: Iterable<number>): number[] {
+  if (!Array.isArray(spec)) return [];
+  const have = new Set(present);
+  return spec.filter((k) => !have.has(k));
+}
+
+/**
+ * "windows 7, 9 are not in this run (it has windows 0–11)": what a selection asked for in vain, or '' when nothing.
+ * `unit` is "window" or "condition bin".
+ */
+export function missingSelectedText(spec: WindowImages, present: number[], unit: string): string {
+  const miss = missingSelected(spec, present);
+  if (!miss.length) return '';
+  const sorted = [...new Set(present)].sort((a, b) => a - b);
+  const contiguous = sorted.length > 2 && sorted[sorted.length - 1] - sorted[0] === sorted.length - 1;
+  const has = !sorted.length ? `no ${unit}s` : contiguous ? `${unit}s ${sorted[0]}\u2013${sorted[sorted.length - 1]}` : `${unit}${sorted.length === 1 ? '' : 's'} ${sorted.join(', ')}`;
+  return `${unit}${miss.length === 1 ? '' : 's'} ${miss.join(', ')} ${miss.length === 1 ? 'is' : 'are'} not in this run (it has ${has})`;
+}

@@ -8,6 +8,7 @@
 import type { NacelleWindow } from '../nacelle/types.ts';
 import type { ProfileWindow } from '../profile/types.ts';
 import type { TrackPoint } from '../track/types.ts';
+import { axisLabels, QUANTITY } from './labels.ts';
 import { linePlotSvg, type PlotSeries } from './linePlot.ts';
 import { theme } from './theme.ts';
 
@@ -31,8 +32,8 @@ export function profileFigures(rows: ProfileWindow[]): GeometryFigure[] {
     const speed: PlotSeries[] = mine.map((r, k) => ({ label: `window ${r.window.index}`, x: ok(r).map((p) => p.speed_ms), y: ok(r).map((p) => (Number.isFinite(p.sampleHeight_m) ? p.sampleHeight_m : p.height_m)), xErr: ok(r).map((p) => p.sspeed_ms), kind: 'both', colour: colour(k) }));
     const dir: PlotSeries[] = mine.map((r, k) => ({ label: `window ${r.window.index}`, x: ok(r).map((p) => p.direction_deg), y: ok(r).map((p) => (Number.isFinite(p.sampleHeight_m) ? p.sampleHeight_m : p.height_m)), xErr: ok(r).map((p) => p.sdirection_deg), kind: 'both', colour: colour(k) }));
     const note = 'Heights flagged too_few_azimuths, missing_beam or no_data are left out; error bars: standard uncertainty.';
-    out.push({ name: `profile_speed_${safe(id)}`, description: `horizontal wind speed against height, ${id}`, svg: linePlotSvg({ title: `Profile ${id}: horizontal wind speed`, subtitle: `${mine.length} of ${rows.filter((r) => r.instrumentId === id).length} windows shown`, xLabel: 'horizontal speed (m/s)', yLabel: 'height above ground (m)', series: speed, notes: [note] }) });
-    out.push({ name: `profile_direction_${safe(id)}`, description: `wind direction against height, ${id}`, svg: linePlotSvg({ title: `Profile ${id}: wind direction (from)`, xLabel: 'direction, clockwise from north (deg)', yLabel: 'height above ground (m)', series: dir, notes: [note] }) });
+    out.push({ name: `profile_speed_${safe(id)}`, description: `horizontal wind speed against height, ${id}`, svg: linePlotSvg({ title: `Profile ${id}: horizontal wind speed`, subtitle: `${mine.length} of ${rows.filter((r) => r.instrumentId === id).length} windows shown`, xLabel: QUANTITY.speed, yLabel: QUANTITY.height, series: speed, notes: [note] }) });
+    out.push({ name: `profile_direction_${safe(id)}`, description: `wind direction against height, ${id}`, svg: linePlotSvg({ title: `Profile ${id}: wind direction (from)`, xLabel: 'wind direction (from), clockwise from north (°)', yLabel: QUANTITY.height, series: dir, notes: [note] }) });
   }
   return out;
 }
@@ -49,7 +50,7 @@ export function nacelleFigures(rows: NacelleWindow[]): GeometryFigure[] {
     ];
     const d = mine[0]?.distance_D ?? NaN;
     out.push({ name: `nacelle_speed_${safe(id)}`, description: `hub-height speed ${d} D upstream per window, ${id}`, svg: linePlotSvg({ title: `Nacelle instrument ${id}: hub-height speed ${d} D upstream`, xLabel: 'window', yLabel: 'speed (m/s)', series: speed, notes: ['Error bars: standard uncertainty. Induction: on-axis vortex-sheet model with a from the thrust curve (Medici et al. 2011).'] }) });
-    out.push({ name: `nacelle_yaw_${safe(id)}`, description: `yaw misalignment per window, ${id}`, svg: linePlotSvg({ title: `Nacelle instrument ${id}: yaw misalignment`, subtitle: 'nacelle minus wind direction; positive = nacelle turned clockwise (seen from above) from the wind', xLabel: 'window', yLabel: 'yaw misalignment (deg)', series: [{ label: 'measured', x, y: mine.map((r) => r.yawMisalignment_deg), yErr: mine.map((r) => r.syawMisalignment_deg), kind: 'points', marker: 'circle', colour: colour(0) }], yReference: 0 }) });
+    out.push({ name: `nacelle_yaw_${safe(id)}`, description: `yaw misalignment per window, ${id}`, svg: linePlotSvg({ title: `Nacelle instrument ${id}: yaw misalignment`, subtitle: 'nacelle minus wind direction; positive = nacelle turned clockwise (seen from above) from the wind', xLabel: 'window', yLabel: 'yaw misalignment (°)', series: [{ label: 'measured', x, y: mine.map((r) => r.yawMisalignment_deg), yErr: mine.map((r) => r.syawMisalignment_deg), kind: 'points', marker: 'circle', colour: colour(0) }], yReference: 0 }) });
   }
   return out;
 }
@@ -66,12 +67,12 @@ export function trackFigures(rows: TrackPoint[], diameter_m: number): GeometryFi
     });
     const bias = win.map((r) => r.directionBiasCentre_m).filter(Number.isFinite);
     const biasNote = bias.length ? `Direction assumption: centre moves by up to ${Math.max(...bias).toFixed(1)} m for the assumed direction +/- its uncertainty.` : 'Direction bias not estimated (no ok fits).';
-    out.push({ name: `track_centre_${safe(id)}`, description: `wake centre against downstream distance, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: wake centre`, subtitle: axis === 'y' ? 'lateral centre y, positive to the left looking downstream; all scans of each window pooled' : 'centre height above ground; all scans of each window pooled', xLabel: 'x / D', yLabel: `${axis} centre (m)`, series, notes: ['Error bars: standard error of the fitted centre.', biasNote], yReference: axis === 'y' ? 0 : undefined }) });
+    out.push({ name: `track_centre_${safe(id)}`, description: `wake centre against downstream distance, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: wake centre`, subtitle: axis === 'y' ? 'lateral centre y, positive to the left looking downstream; all scans of each window pooled' : 'centre height above ground; all scans of each window pooled', xLabel: QUANTITY.downstream, yLabel: `${axis} centre (m)`, series, notes: ['Error bars: standard error of the fitted centre.', biasNote], yReference: axis === 'y' ? 0 : undefined }) });
     const first = win.find((r) => r.profile.c_m.length > 0);
     if (first) {
       const same = win.filter((r) => r.window.index === first.window.index && r.profile.c_m.length > 0);
       const prof: PlotSeries[] = same.map((r, k) => ({ label: `x = ${(r.x_m / diameter_m).toFixed(1)} D`, x: r.profile.c_m, y: r.profile.deficit, yErr: r.profile.sdeficit, kind: 'both', colour: colour(k) }));
-      out.push({ name: `track_deficit_${safe(id)}`, description: `line-of-sight deficit across the wake, window ${first.window.index}, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: line-of-sight deficit, window ${first.window.index}`, subtitle: `free stream: ${first.freeStreamSource}`, xLabel: `${axis} (m)`, yLabel: 'deficit 1 - S_app / S_inf (-)', series: prof, yReference: 0 }) });
+      out.push({ name: `track_deficit_${safe(id)}`, description: `line-of-sight deficit across the wake, window ${first.window.index}, ${id}`, svg: linePlotSvg({ title: `Tracker ${id}: line-of-sight deficit, window ${first.window.index}`, subtitle: `free stream: ${first.freeStreamSource}`, xLabel: axis === 'y' ? axisLabels('cross').yLabel : QUANTITY.height, yLabel: 'deficit 1 \u2212 S_{app}/S_{\u221e} (–)', series: prof, yReference: 0 }) });
     }
   }
   return out;

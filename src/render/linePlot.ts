@@ -2,7 +2,7 @@
  * A small line and scatter plot builder for the summary figures: linear axes with nice ticks, light grid lines,
  * points with optional vertical error bars, model curves, and a legend beside the plot.
  */
-import { linear, n, svgDocument, text, wrap } from './svg.ts';
+import { figureHead, linear, n, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 import { formatTick, niceExtent, niceStep, niceTicks } from './ticks.ts';
 
@@ -27,6 +27,8 @@ export interface PlotSeries {
   colour?: string;
   /** SVG dash array for lines, e.g. "6 3". */
   dash?: string;
+  /** SVG dash offset of the line (lines drawn at one place with interleaved dashes). */
+  dashOffset?: number;
   marker?: MarkerShape;
   /** Drawn shifted by this much along x (display only), so that series at the same x do not hide each other. */
   xOffset?: number;
@@ -58,8 +60,9 @@ export function linePlotSvg(o: PlotOptions): string {
   const pw = o.plotWidth ?? 470, ph = o.plotHeight ?? 300;
   const left = 72;
   const legendX = left + pw + 24, legendW = 220;
-  const subLines = o.subtitle ? wrap(o.subtitle, legendX + legendW - left - 12, 11.5) : [];
-  const top = 50 + subLines.length * 15;
+  const headText = figureHead(left, legendX + legendW - left - 12, o.title, o.subtitle);
+  const subLines = headText.subLines;
+  const top = 50 + headText.extra + subLines.length * 15;
   const xd = o.xDomain ?? dataDomain(o.series, 'x', false);
   const yd = o.yDomain ?? dataDomain(o.series, 'y', !!o.yIncludeZero);
   const X = linear(xd[0], xd[1], left, left + pw);
@@ -108,7 +111,7 @@ export function linePlotSvg(o: PlotOptions): string {
     }
     const g: string[] = [];
     if (s.kind !== 'points' && pts.length > 1) {
-      g.push(`<path class="series-line" d="M${pts.map(([x, y]) => `${n(X(x))},${n(Y(y))}`).join('L')}" fill="none" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''} stroke-linejoin="round"/>`);
+      g.push(`<path class="series-line" d="M${pts.map(([x, y]) => `${n(X(x))},${n(Y(y))}`).join('L')}" fill="none" stroke="${colour}" stroke-width="1.8"${s.dash ? ` stroke-dasharray="${s.dash}"` : ''}${s.dashOffset ? ` stroke-dashoffset="${s.dashOffset}"` : ''} stroke-linejoin="round"/>`);
     }
     if (s.kind !== 'line') {
       for (const [x, y, lo, hi, ex] of pts) {
@@ -144,7 +147,7 @@ export function linePlotSvg(o: PlotOptions): string {
       ny += 13;
     }
   }
-  const head = text(left, 26, o.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const defs = `<clipPath id="${clipId}"><rect x="${left - 6}" y="${top - 6}" width="${pw + 12}" height="${ph + 12}"/></clipPath>`;
   const width = legendX + legendW;
   const height = Math.max(ny + 4, ly + 10);

@@ -156,30 +156,47 @@ export interface ArrowCounts {
   measured: number;
   assumed: number;
   capped: number;
+  /** Arrow places whose cell has a value on the map but no arrow: v or w not resolved (masked). */
+  unresolved: number;
+}
+
+/**
+ * Every how many cells a map draws an arrow: `base` (the map's own density), or more where the run's arrow length
+ * (one for every plane, set by the plane with the widest spacing) needs it on a plane of smaller cells, so that
+ * arrows stand at least 4/3 of their reference length apart (an arrow is 0.75 of the spacing at the reference speed).
+ */
+export function arrowEvery(grid: Pick<Grid, 'dy' | 'dz'>, sc: ArrowScale, base: number): number {
+  return Math.max(1, Math.round(base), Math.ceil(sc.length_m / (0.75 * Math.min(grid.dy, grid.dz)) - 1e-9));
 }
 
 /** Arrows faster than this many reference speeds are cut to that length and drawn dashed. */
 export const ARROW_CAP = 2;
 
 /**
- * In-plane arrows from the cell centres, every k-th cell. +v points to +y (left on the page), +w up. Measured
- * arrows are dark with a filled head; arrows of cells where w was assumed zero are grey with an open head.
+ * In-plane arrows centred on the cell centres (the middle of the arrow on the centre, as quiver plots commonly pivot),
+ * every k-th cell. +v points to +y (left on the page), +w up. An arrow always
+ * lies whole inside the map: centred, an arrow up to 4/3 of the reference speed stays within its cell's half-spacing,
+ * and a longer one that would still cross the frame is moved inward along the frame by what it overhangs (at most a
+ * quarter of the arrow spacing at the cap), so that its head and direction are never cut off. Measured arrows are
+ * dark with a filled head; arrows of cells where w was assumed zero are grey with an open head.
  */
 export function arrowLayer(f: MapFrame, grid: Grid, a: ArrowInput, sc: ArrowScale): { markup: string; counts: ArrowCounts } {
   const { ny, nz, y0, z0, dy, dz } = grid;
   const every = Math.max(1, Math.round(a.every));
   const k = (sc.length_m * f.scale) / sc.reference_ms; // figure units per m/s
-  const counts: ArrowCounts = { measured: 0, assumed: 0, capped: 0 };
+  const counts: ArrowCounts = { measured: 0, assumed: 0, capped: 0, unresolved: 0 };
   const off = Math.floor((every - 1) / 2);
   const parts: string[] = [];
   for (let iz = off; iz < nz; iz += every) {
     for (let iy = off; iy < ny; iy += every) {
       const i = iy + iz * ny;
       const v = a.v[i], w = a.w[i];
-      if (!Number.isFinite(v) || !Number.isFinite(w)) continue;
       const yc = y0 + iy * dy, zc = z0 + iz * dz;
       if (yc < f.yLo || yc > f.yHi || zc < f.zLo || zc > f.zHi) continue;
-      const x1 = f.X(yc), y1 = f.Z(zc);
+      if (!Number.isFinite(v) || !Number.isFinite(w)) {
+        if (Number.isFinite(grid.values[i])) counts.unresolved++;
+        continue;
+      }
       const s = Math.hypot(v, w);
       const cut = s > ARROW_CAP * sc.reference_ms ? (ARROW_CAP * sc.reference_ms) / s : 1;
       const assumed = !!a.assumedW && a.assumedW[i] === 1;
@@ -187,10 +204,23 @@ export function arrowLayer(f: MapFrame, grid: Grid, a: ArrowInput, sc: ArrowScal
       if (assumed) counts.assumed++;
       else counts.measured++;
       const cls = `arrow${assumed ? ' assumed' : ''}${cut < 1 ? ' capped' : ''}`;
-      parts.push(arrowMark(x1, y1, x1 - v * k * cut, y1 - w * k * cut, assumed, cut < 1, cls));
+      // Page offsets of the arrow: +v to the left (-X), +w up (-Z); centred on the cell centre.
+      const hx = (-v * k * cut) / 2, hy = (-w * k * cut) / 2;
+      const [x1, y1] = insideFrame(f, f.X(yc) - hx, f.Z(zc) - hy, f.X(yc) + hx, f.Z(zc) + hy);
+      parts.push(arrowMark(x1, y1, x1 + 2 * hx, y1 + 2 * hy, assumed, cut < 1, cls));
     }
   }
   return { markup: parts.length ? `<g class="arrows" clip-path="url(#${f.clipId})">${parts.join('')}</g>` : '', counts };
+}
+
+/** The tail of an arrow (x1, y1) -> (x2, y2) moved by the least that keeps the whole arrow inside the frame. */
+function insideFrame(f: MapFrame, x1: number, y1: number, x2: number, y2: number): [number, number] {
+  const shift = (a: number, b: number, lo: number, hi: number) => {
+    const min = Math.min(a, b), max = Math.max(a, b);
+    if (max - min > hi - lo) return (lo + hi) / 2 - (a + b) / 2; // longer than the frame: centre it
+    return min < lo ? lo - min : max > hi ? hi - max : 0;
+  };
+  return [x1 + shift(x1, x2, f.left, f.left + f.width), y1 + shift(y1, y2, f.top, f.top + f.height)];
 }
 
 /** One arrow: measured (ink, filled head) or assumed-w (grey, open head); dashed when cut to the cap. */

@@ -18,6 +18,8 @@ export type LegendItem =
   | { kind: 'ellipse'; label: string }
   | { kind: 'cbmark'; label: string }
   | { kind: 'range'; label: string }
+  /** Words only, beside the symbols of the other items. */
+  | { kind: 'note'; label: string }
   | { kind: 'marker'; shape: MarkerShape; label: string };
 
 const SIZE = 10.5;

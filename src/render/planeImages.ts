@@ -82,15 +82,18 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
   const view = field.orientation === 'horizontal' ? horizontalView(field.grid, [p.hasData], campaign) : undefined;
   const base = baseOptions(field, campaign, view);
   const win = field.window.index;
+  const ens = field.window.kind === 'ensemble';
   const when = windowLabel(field.window);
+  // A window's own label (from the experiment log or the campaign's list): in the subtitles, which wrap.
+  const named = !ens && field.window.label ? field.window.label : '';
   const figs: FigureSpec[] = [];
   const meta = fieldTag(field);
-  const ens = field.window.kind === 'ensemble';
   const n = field.grid.ny * field.grid.nz;
 
   const normalised = p.normalised;
   const values = Float64Array.from(normalised ? p.values : p.u);
   const subtitle = [
+    named,
     planePosition(field, D),
     wake && wake.inflow.ok ? `inflow ${qty(wake.inflow.hubSpeed_ms, 'm/s', 1)} at hub height (${wake.inflow.source}, ${wake.inflow.law} law)` : 'no inflow reference',
     windFrom(field.direction_deg),
@@ -133,7 +136,7 @@ export function planeWindowFigures(field: FieldResult, wake: WakePlaneWindow | u
     name: imageName(field.planeId, win, 'su', ens), ...meta, description: 'standard uncertainty of u',
     svg: scalarMapSvg(withValues(field.grid, field.su), {
       title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 uncertainty of u`,
-      subtitle: `${planePosition(field, D)} \u00b7 ${when} \u00b7 standard uncertainty from radial-velocity scatter and geometry`,
+      subtitle: `${planePosition(field, D)} \u00b7 ${when}${named ? ` \u00b7 ${named}` : ''} \u00b7 standard uncertainty from radial-velocity scatter and geometry`,
       colorbarLabel: QUANTITY.su,
       ...shared('su_ms'),
       mask: { codes: field.maskU, names: RESULT_MASK_NAMES },
@@ -160,7 +163,7 @@ export function geometryFigures(field: FieldResult, campaign: Campaign, scales?:
   }
   const base = baseOptions(field, campaign, view);
   const win = field.window.index;
-  const when = windowLabel(field.window);
+  const when = windowLabel(field.window) + (field.window.kind !== 'ensemble' && field.window.label ? ` \u00b7 ${field.window.label}` : ''); // subtitles only
   const meta = fieldTag(field);
   const ens = field.window.kind === 'ensemble';
   const shared = (q: keyof RunScales['limits']) => (scales?.limits[q] ? { domain: scales.limits[q] } : {});
@@ -253,7 +256,13 @@ export function inflowSvg(wake: WakePlaneWindow, field: FieldResult, campaign: C
   series.push({ label: lawText(p), x: vs, y: zs, kind: 'line' });
   return linePlotSvg({
     title: `${field.planeId} \u00b7 ${whichField(field.window)} \u00b7 inflow profile`,
-    subtitle: `${windowLabel(field.window)} \u00b7 RMSE ${qty(p.rmse_ms, 'm/s', 3)} \u00b7 R^{2}\u00a0${formatNumber(p.r2, 3)}${p.note ? ` \u00b7 ${p.note}` : ''}`,
+    // A fit's quality where there is a fit (a fixed inflow has none).
+    subtitle: [
+      windowLabel(field.window),
+      Number.isFinite(p.rmse_ms) ? `RMSE ${qty(p.rmse_ms, 'm/s', 3)}` : '',
+      Number.isFinite(p.r2) ? `R^{2}\u00a0${formatNumber(p.r2, 3)}` : '',
+      p.note,
+    ].filter(Boolean).join(' \u00b7 '),
     xLabel: QUANTITY.speed,
     yLabel: QUANTITY.height,
     series,

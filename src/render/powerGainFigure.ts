@@ -32,7 +32,7 @@ export function powerGainSvg(a: PowerAnalysis): string | undefined {
   return linePlotSvg({
     title: 'Power gain of wake steering',
     subtitle: `energy ratio to ${a.reference}, steered over baseline windows, minus one \u00b7 combined over the bins right of the dashed line`,
-    xLabel: 'wind direction (deg, bin centre)',
+    xLabel: 'wind direction (from), bin centre (°)',
     yLabel: 'gain (%)',
     series,
     yReference: 0,

@@ -36,7 +36,7 @@ export function wakeReportTables(a: WakeAnalysis, links: { rows?: string; downst
   });
   if (a.downstream.points.length) {
     const g = a.downstream.gaussianFit, t = a.downstream.topHat;
-    const gauss = `Gaussian width fit: k* = ${withUncertainty(g.kStar, g.kStarSE)}, \u03b5 = ${withUncertainty(g.eps, g.epsSE)} (standard errors), ${g.nPlanes} planes${g.note ? `; ${g.note}` : ''}.`;
+    const gauss = `Gaussian width fit: k* = ${withUncertainty(g.kStar, g.kStarSE)}, \u03b5 = ${withUncertainty(g.eps, g.epsSE)} (standard errors), ${g.nPlanes} plane${g.nPlanes === 1 ? '' : 's'}${g.note ? `; ${g.note}` : ''}.`;
     const hat = `Top-hat k = ${t.kSource === 'fit' ? `${withUncertainty(t.kFit, t.kFitSE)} (standard error)` : t.k.toPrecision(3)}: ${t.kNote}.`;
     tables.push({
       title: 'Downstream summary (near-aligned windows)',

@@ -171,6 +171,8 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
       ? `condition bin ${p.index}${p.label ? ` \u00b7 ${p.label}` : ''}`
       : `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}`,
     sublabel: [
+      // A window's own label (the experiment log's, a segment's state level) first.
+      !p.ensemble && p.label ? p.label : '',
       p.ensemble ? `${p.members}\u00a0window${p.members === 1 ? '' : 's'}` : '',
       Number.isFinite(p.yawOffset_deg) ? `\u03b3\u00a0${qty(p.yawOffset_deg, '\u00b0', 0)}` : '',
       windFrom(p.direction_deg),

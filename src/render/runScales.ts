@@ -3,9 +3,10 @@
  * percentile of all its values over all planes and windows, widened to nice numbers, unless fixed in the
  * campaign) and one arrow scale (reference speed and its length in plane metres).
  *
- * The percentiles come from fixed-bin histograms (counts per bin plus counts below and above), so that the run
- * keeps a few kilobytes per quantity instead of every value, and histograms of shards or windows merge by adding
- * counts. The bin width (listed per quantity) is far below the nice rounding applied to the range afterwards.
+ * The percentiles come from fixed-bin histograms (counts per bin over the usual range of the quantity, and
+ * geometric bins beyond it), so that the run keeps a few kilobytes per quantity instead of every value, and
+ * histograms of shards or windows merge by adding counts. The bin width (listed per quantity) is far below the nice
+ * rounding applied to the range afterwards; beyond the usual range bins grow by 1 % of the distance from it.
  */
 import type { FiguresSettings } from '../campaign/figures.ts';
 import type { GridSpec } from '../grid/grid.ts';
@@ -13,12 +14,20 @@ import type { ArrowScale } from './mapLayers.ts';
 import { niceRound } from './scalarMap.ts';
 import { niceExtent } from './ticks.ts';
 
-/** A histogram over [lo, hi) with equal bins, counting values below and above too. Mergeable. */
+/**
+ * A histogram over [lo, hi) with equal bins, and values beyond it in geometric tail bins (each 1 % wider than the
+ * one before, starting at the bin width), so that a quantile falling outside [lo, hi) is still found to about 1 % of
+ * its distance from the range (an inflow reference far below the flow gives u/u_inf of 6, a long window 50,000
+ * samples per cell). Mergeable: counts of the same bins add.
+ */
 export class ValueHistogram {
   readonly counts: Float64Array;
   under = 0;
   over = 0;
   total = 0;
+  /** Tail bins by index k >= 0: [edge(k), edge(k + 1)) of the distance beyond the range. */
+  readonly below = new Map<number, number>();
+  readonly above = new Map<number, number>();
   constructor(readonly lo: number, readonly hi: number, readonly bins: number) {
     this.counts = new Float64Array(bins);
   }
@@ -26,9 +35,15 @@ export class ValueHistogram {
   add(v: number): void {
     if (!Number.isFinite(v)) return;
     this.total++;
-    if (v < this.lo) this.under++;
-    else if (v >= this.hi) this.over++;
-    else this.counts[Math.min(this.bins - 1, Math.floor(((v - this.lo) / (this.hi - this.lo)) * this.bins))]++;
+    if (v < this.lo) {
+      this.under++;
+      const k = this.tailBin(this.lo - v);
+      this.below.set(k, (this.below.get(k) ?? 0) + 1);
+    } else if (v >= this.hi) {
+      this.over++;
+      const k = this.tailBin(v - this.hi);
+      this.above.set(k, (this.above.get(k) ?? 0) + 1);
+    } else this.counts[Math.min(this.bins - 1, Math.floor(((v - this.lo) / (this.hi - this.lo)) * this.bins))]++;
   }
 
   addAll(values: ArrayLike<number>): void {
@@ -38,29 +53,53 @@ export class ValueHistogram {
   merge(o: ValueHistogram): void {
     if (o.lo !== this.lo || o.hi !== this.hi || o.bins !== this.bins) throw new RangeError('histograms differ in their bins');
     for (let i = 0; i < this.bins; i++) this.counts[i] += o.counts[i];
+    for (const [k, c] of o.below) this.below.set(k, (this.below.get(k) ?? 0) + c);
+    for (const [k, c] of o.above) this.above.set(k, (this.above.get(k) ?? 0) + c);
     this.under += o.under;
     this.over += o.over;
     this.total += o.total;
   }
 
-  /**
-   * The p-quantile (0..1): linear within the bin that holds it; values below lo or above hi count at lo and hi.
-   * NaN when empty.
-   */
+  /** The p-quantile (0..1): linear within the bin that holds it (a tail bin too). NaN when empty. */
   quantile(p: number): number {
     if (this.total === 0) return NaN;
     const target = p * this.total;
-    let acc = this.under;
-    if (target <= acc) return this.lo;
+    let acc = 0;
+    // Below the range: the farthest tail bins first.
+    for (const k of [...this.below.keys()].sort((a, b) => b - a)) {
+      const c = this.below.get(k)!;
+      if (acc + c >= target) return this.lo - this.tailEdge(k + 1) + (this.tailEdge(k + 1) - this.tailEdge(k)) * ((target - acc) / c);
+      acc += c;
+    }
     const w = (this.hi - this.lo) / this.bins;
     for (let i = 0; i < this.bins; i++) {
       const c = this.counts[i];
       if (c > 0 && acc + c >= target) return this.lo + w * (i + (target - acc) / c);
       acc += c;
     }
-    return this.hi;
+    const up = [...this.above.keys()].sort((a, b) => a - b);
+    for (const k of up) {
+      const c = this.above.get(k)!;
+      if (c > 0 && acc + c >= target) return this.hi + this.tailEdge(k) + (this.tailEdge(k + 1) - this.tailEdge(k)) * ((target - acc) / c);
+      acc += c;
+    }
+    return up.length ? this.hi + this.tailEdge(up[up.length - 1] + 1) : this.hi;
+  }
+
+  /** Start of tail bin k, as a distance beyond the range: w ((1 + r)^k - 1) / r with w the bin width, r = 1 %. */
+  private tailEdge(k: number): number {
+    const w = (this.hi - this.lo) / this.bins;
+    return (w * ((1 + TAIL_GROWTH) ** k - 1)) / TAIL_GROWTH;
+  }
+
+  private tailBin(d: number): number {
+    const w = (this.hi - this.lo) / this.bins;
+    return Math.max(0, Math.floor(Math.log1p((d * TAIL_GROWTH) / w) / Math.log1p(TAIL_GROWTH)));
   }
 }
+
+/** Each tail bin is this much wider than the one before (relative resolution of a quantile beyond the range). */
+const TAIL_GROWTH = 0.01;
 
 export type MapQuantity = 'u_norm' | 'u_ms' | 'su_ms' | 'samples';
 
@@ -102,7 +141,8 @@ export class ScaleCollector {
 
   /**
    * The run's scales. Arrow length: 0.75 of the spacing of arrows on the full-size map of the plane with the
-   * widest spacing (every ceil(max(ny, nz) / 16)-th cell), so that arrows never overlap on any plane.
+   * widest spacing (every ceil(max(ny, nz) / 16)-th cell); planes of smaller cells draw fewer arrows
+   * (mapLayers.ts arrowEvery), so that arrows never overlap on any plane.
    */
   scales(settings: Pick<FiguresSettings, 'limits' | 'arrowReference_ms'>, grids: GridSpec[]): RunScales {
     const limits = {} as RunScales['limits'];

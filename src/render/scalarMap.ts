@@ -13,13 +13,13 @@ import type { Scheme } from './colour.ts';
 import { colourBar } from './colourBar.ts';
 import { colourScale, percentileSorted, rangeCounts } from './colourScale.ts';
 import {
-  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineLayer,
+  arrowEvery, arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineLayer,
   ARROW_CAP, type ArrowScale, type MarkerShape, type TurbineMark, type View,
 } from './mapLayers.ts';
 import { drawLegend, uniqueItems, type LegendItem } from './mapLegend.ts';
 import { NO_VALUE_CODE } from './maskStyle.ts';
 import { qty } from './numbers.ts';
-import { svgDocument, text, wrap } from './svg.ts';
+import { figureHead, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 
 export interface ScalarMapOptions {
@@ -80,8 +80,9 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   const cbX = left + pw + (D ? 72 : 24);
   const legendX = cbX + CB_COLUMN;
   const width = Math.max(legendX + LEGEND_W + 12, 760);
-  const subLines = opts.subtitle ? wrap(opts.subtitle, width - left - 12, 11.5) : [];
-  const top = 50 + subLines.length * 15 + (D ? 40 : 6);
+  const headText = figureHead(left, width - left - 12, opts.title, opts.subtitle);
+  const subLines = headText.subLines;
+  const top = 50 + headText.extra + subLines.length * 15 + (D ? 40 : 6);
   const f = mapFrame(view, left, top, s, `${ID}-plot`);
 
   const defs = [clipDef(f)];
@@ -102,8 +103,10 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
 
   if (opts.arrows) {
     const a = opts.arrows;
-    const every = Math.max(1, Math.round(a.every ?? Math.ceil(Math.max(grid.ny, grid.nz) / 16)));
-    const sc = a.scale ?? defaultArrowScale(a.v, a.w, every * Math.min(grid.dy, grid.dz), a.referenceSpeed);
+    const base = Math.max(1, Math.round(a.every ?? Math.ceil(Math.max(grid.ny, grid.nz) / 16)));
+    const sc = a.scale ?? defaultArrowScale(a.v, a.w, base * Math.min(grid.dy, grid.dz), a.referenceSpeed);
+    // The run's arrow length on a plane of smaller cells: fewer arrows, so that they do not run into each other.
+    const every = a.scale && a.every === undefined ? arrowEvery(grid, sc, base) : base;
     const res = arrowLayer(f, grid, { v: a.v, w: a.w, assumedW: a.assumedW, every }, sc);
     body.push(res.markup);
     legend.push(...arrowLegend(sc, s, res.counts, a.label));
@@ -144,22 +147,28 @@ export function scalarMapSvg(grid: Grid, opts: ScalarMapOptions): string {
   body.push(cb.markup);
   legend.push(...cb.legend);
 
-  const leg = drawLegend(uniqueItems(legend), legendX, top + 4, LEGEND_W);
+  // The masked cells under "Not shown", and the marks drawn over the map under a heading of their own.
+  const items = uniqueItems(legend);
+  const firstMark = items.findIndex((it) => it.kind !== 'heading' && it.kind !== 'mask');
+  if (mask.counts.size && firstMark > 0) items.splice(firstMark, 0, { kind: 'heading', label: 'Marks' });
+  const leg = drawLegend(items, legendX, top + 4, LEGEND_W);
   body.push(leg.markup);
 
-  const head = text(left, 26, opts.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(left, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const height = Math.max(top + ph + (opts.axes.note ? 66 : 50), top + cbH + 20, leg.bottom + 16);
   return svgDocument(width, height, opts.title, head + body.join('\n') + '\n', defs.join(''));
 }
 
 /** The reference arrow and, when present, the assumed-w and capped arrows, for the legend. */
-export function arrowLegend(sc: ArrowScale, unitsPerMetre: number, counts: { measured: number; assumed: number; capped: number }, label?: string): LegendItem[] {
+export function arrowLegend(sc: ArrowScale, unitsPerMetre: number, counts: { measured: number; assumed: number; capped: number; unresolved?: number }, label?: string): LegendItem[] {
   if (counts.measured + counts.assumed === 0) return [];
   const len = sc.length_m * unitsPerMetre;
   const ref = qty(sc.reference_ms, 'm/s', decimalsOf(sc.reference_ms));
   const items: LegendItem[] = [{ kind: 'arrow', length: len, label: `${ref} ${label ?? 'in-plane flow (v, w), measured'}` }];
   if (counts.assumed) items.push({ kind: 'arrow', length: len, assumed: true, label: `${ref}, v only: w not measured, taken as 0 (two-instrument cells, ${counts.assumed}\u00a0arrow${counts.assumed === 1 ? '' : 's'})` });
   if (counts.capped) items.push({ kind: 'arrow', length: len, dashed: true, label: `${counts.capped}\u00a0arrow${counts.capped === 1 ? '' : 's'} faster than ${qty(ARROW_CAP * sc.reference_ms, 'm/s', decimalsOf(sc.reference_ms))}, cut to that length` });
+  const k = counts.unresolved ?? 0;
+  if (k) items.push({ kind: 'note', label: `no arrow in ${k}\u00a0cell${k === 1 ? '' : 's'} with a value: v or w not resolved (masked)` });
   return items;
 }
 

@@ -13,13 +13,14 @@ import type { GridSpec } from '../grid/grid.ts';
 import { colourBar } from './colourBar.ts';
 import { colourScale, rangeCounts, type ColourScale } from './colourScale.ts';
 import {
-  arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineInView, turbineLayer,
+  arrowEvery, arrowLayer, axesLayer, clipDef, ellipseLayer, fieldLayer, gridView, mapFrame, markerLayer, maskLayer, rotorLayer, turbineInView, turbineLayer,
   type ArrowScale, type TurbineMark, type View,
 } from './mapLayers.ts';
 import { drawLegendColumns, uniqueItems, type LegendItem } from './mapLegend.ts';
 import { NO_VALUE_CODE } from './maskStyle.ts';
 import { arrowLegend } from './scalarMap.ts';
-import { svgDocument, text, wrap } from './svg.ts';
+import { textWidth } from './richText.ts';
+import { figureHead, svgDocument, text, wrap } from './svg.ts';
 import { theme } from './theme.ts';
 
 /** One panel: its field as plain arrays and its label lines. */
@@ -74,13 +75,14 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   const pw = vw * s, ph = vh * s;
   // Panel labels wrapped to the panel width (at most three lines for the label, two for the sublabel).
   const labelLines = panels.map((p) => [
-    ...wrap(p.label, pw, LABEL_SIZE, true).slice(0, 3).map((t) => ({ t, bold: true })),
-    ...(p.sublabel ? wrap(p.sublabel, pw, LABEL_SIZE).slice(0, 2).map((t) => ({ t, bold: false })) : []),
+    ...clampLines(wrap(p.label, pw, LABEL_SIZE, true), 3, pw, true).map((t) => ({ t, bold: true })),
+    ...(p.sublabel ? clampLines(wrap(p.sublabel, pw, LABEL_SIZE), 3, pw, false).map((t) => ({ t, bold: false })) : []),
   ]);
   const labelH = Math.max(...labelLines.map((l) => l.length)) * 14 + 4;
   const gapY = labelH + 10 + TICK; // room for the panel label above and a tick row below
-  const subLines = o.subtitle ? wrap(o.subtitle, WIDTH - LEFT - 12, 11.5) : [];
-  const top0 = 50 + subLines.length * 15 + 8;
+  const headText = figureHead(LEFT, WIDTH - LEFT - 12, o.title, o.subtitle);
+  const subLines = headText.subLines;
+  const top0 = 50 + headText.extra + subLines.length * 15 + 8;
   const all: number[] = [];
   for (const p of panels) for (let i = 0; i < p.values.length; i++) all.push(p.values[i]);
   const scale: ColourScale = colourScale(all, 'sequential', o.domain);
@@ -89,7 +91,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
   const defs: string[] = [];
   const body: string[] = [];
   const maskCounts = new Map<number, number>();
-  const arrowCounts = { measured: 0, assumed: 0, capped: 0 };
+  const arrowCounts = { measured: 0, assumed: 0, capped: 0, unresolved: 0 };
   const overlays = { centre: false, disk: false, ellipse: false, track: false };
   panels.forEach((p, k) => {
     const col = k % cols, row = Math.floor(k / cols);
@@ -105,12 +107,13 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
     g.push(m.markup);
     for (const [c, nc] of m.counts) maskCounts.set(c, (maskCounts.get(c) ?? 0) + nc);
     if (p.arrows && o.arrowScale) {
-      const every = Math.max(1, Math.ceil(Math.max(p.grid.ny, p.grid.nz) / 9));
+      const every = arrowEvery(p.grid, o.arrowScale, Math.ceil(Math.max(p.grid.ny, p.grid.nz) / 9));
       const a = arrowLayer(f, grid, { v: p.arrows.v, w: p.arrows.w, assumedW: p.arrows.assumedW, every }, o.arrowScale);
       g.push(a.markup);
       arrowCounts.measured += a.counts.measured;
       arrowCounts.assumed += a.counts.assumed;
       arrowCounts.capped += a.counts.capped;
+      arrowCounts.unresolved += a.counts.unresolved;
     }
     if (o.rotor) g.push(rotorLayer(f, o.rotor, 2));
     for (const t of p.turbines ?? o.turbines ?? []) g.push(turbineLayer(f, t));
@@ -151,7 +154,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
 
   const legend: LegendItem[] = [];
   if (maskCounts.size) {
-    legend.push({ kind: 'heading', label: `Not shown (cells in all ${panels.length} panels)` });
+    legend.push({ kind: 'heading', label: panels.length === 1 ? 'Not shown' : `Not shown (cells in ${panels.length === 2 ? 'both' : `all ${panels.length}`} panels)` });
     for (const c of [...maskCounts.keys()].sort((a, b) => a - b)) {
       const name = c === NO_VALUE_CODE ? 'no value' : (o.maskNames[c] || `code ${c}`).replace(/_/g, ' ');
       legend.push({ kind: 'mask', code: c, label: `${name} (${maskCounts.get(c)}\u00a0${maskCounts.get(c) === 1 ? 'cell' : 'cells'})` });
@@ -177,7 +180,7 @@ export function smallMultiplesSvg(panels: Panel[], o: SmallMultiplesOptions): st
       ny += 13;
     }
   }
-  const head = text(LEFT, 26, o.title, { size: 16, weight: 'bold', cls: 'title' }) + subLines.map((l, i) => text(LEFT, 45 + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  const head = headText.markup;
   const height = Math.max(ny + 12, top0 + cbH + 20);
   return svgDocument(WIDTH, height, o.title, head + body.join('\n') + '\n', defs.join(''));
 }
@@ -204,4 +207,14 @@ export function chooseLayout(n: number, vw: number, vh: number, area: number, la
     if (better) best = { cols, rows, s, h, fits };
   }
   return { cols: best!.cols, rows: best!.rows, s: best!.s };
+}
+
+/** At most `max` lines; when some are left out the last shown ends with an ellipsis (shortened to stay in `width`). */
+function clampLines(lines: string[], max: number, width: number, bold: boolean): string[] {
+  if (lines.length <= max) return lines;
+  const out = lines.slice(0, max);
+  let last = out[max - 1];
+  while (last.length > 1 && textWidth(`${last}\u2026`, LABEL_SIZE, bold) > width) last = last.slice(0, -1).trimEnd();
+  out[max - 1] = `${last}\u2026`;
+  return out;
 }

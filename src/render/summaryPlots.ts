@@ -54,7 +54,7 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
       description: 'centreline deficit against downstream distance with model curves',
       svg: linePlotSvg({
         title: 'Wake deficit downstream',
-        subtitle: `C_{T}\u00a0=\u00a0${formatNumber(gf.ct, 2)} (${gf.ctSource}) \u00b7 hub-height inflow ${qty(gf.hubSpeed_ms, 'm/s', 1)} \u00b7 ${gf.nPlanes}\u00a0planes`,
+        subtitle: `C_{T}\u00a0=\u00a0${formatNumber(gf.ct, 2)} (${gf.ctSource}) \u00b7 hub-height inflow ${qty(gf.hubSpeed_ms, 'm/s', 1)} \u00b7 ${gf.nPlanes}\u00a0plane${gf.nPlanes === 1 ? '' : 's'}`,
         xLabel: QUANTITY.downstream,
         yLabel: QUANTITY.deficit,
         series,

@@ -4,7 +4,7 @@
  * renders it at any density (dots per inch).
  */
 import { esc } from './escape.ts';
-import { plainText, richSvg, wrapText } from './richText.ts';
+import { plainText, richSvg, textWidth, wrapText } from './richText.ts';
 import { theme } from './theme.ts';
 
 /** A coordinate for markup: at most two decimals, no trailing zeros. */
@@ -84,4 +84,41 @@ export function arrow(x1: number, y1: number, x2: number, y2: number, colour: st
     s += `<path d="M${n(x2)},${n(y2)}L${n(bx - uy * hw)},${n(by + ux * hw)}L${n(bx + uy * hw)},${n(by - ux * hw)}Z" fill="${colour}"/>`;
   }
   return s + '\n';
+}
+
+/**
+ * Lines of `label` within `width`: wrapped at spaces (and after dashes in long words, wrapText), and a word still
+ * wider than the line (a long id without such places) cut where it must, so that nothing runs off the figure.
+ */
+export function wrapHard(label: string, width: number, size: number, bold = false): string[] {
+  const out: string[] = [];
+  for (const line of wrapText(label, width, size, bold)) {
+    if (textWidth(line, size, bold) <= width || line.includes('_{') || line.includes('^{')) {
+      out.push(line);
+      continue;
+    }
+    let rest = line;
+    while (rest && textWidth(rest, size, bold) > width) {
+      let k = rest.length - 1;
+      while (k > 1 && textWidth(rest.slice(0, k), size, bold) > width) k--;
+      out.push(rest.slice(0, k));
+      rest = rest.slice(k);
+    }
+    if (rest) out.push(rest);
+  }
+  return out;
+}
+
+/**
+ * A figure's title (bold, 16 units, at most three lines) and subtitle (muted, 11.5 units) from the top-left corner,
+ * both wrapped within `width`. `extra` is the height the title takes beyond its first line, to add to the layout's
+ * top; `subLines` the subtitle's lines.
+ */
+export function figureHead(x: number, width: number, title: string, subtitle?: string): { markup: string; extra: number; subLines: string[] } {
+  const titleLines = wrapHard(title, width, 16, true).slice(0, 3);
+  const subLines = subtitle ? wrapHard(subtitle, width, 11.5) : [];
+  const extra = (titleLines.length - 1) * 20;
+  const markup = titleLines.map((l, i) => text(x, 26 + i * 20, l, { size: 16, weight: 'bold', cls: 'title' })).join('') +
+    subLines.map((l, i) => text(x, 45 + extra + i * 15, l, { size: 11.5, fill: theme.muted, cls: 'subtitle' })).join('');
+  return { markup, extra, subLines };
 }

@@ -34,7 +34,9 @@ export async function writeSvgAndPng(svg: string, pathNoExt: string, opts: Write
 export async function svgToPng(svg: string, density = 300): Promise<Buffer> {
   const squared = await densityIsSquared();
   const d = squared ? Math.sqrt(72 * density) : density;
-  return sharp(Buffer.from(svg, 'utf8'), { density: d }).flatten({ background: '#ffffff' }).png({ compressionLevel: 6 }).toBuffer();
+  // The file states the density asked for (its pHYs chunk): sharp would otherwise write the density it was given,
+  // sqrt(72 x 300) = 147 dpi where the density is applied twice, and a 300-dpi figure would read as 147 dpi.
+  return sharp(Buffer.from(svg, 'utf8'), { density: d }).flatten({ background: '#ffffff' }).withMetadata({ density }).png({ compressionLevel: 6 }).toBuffer();
 }
 
 let squaredProbe: Promise<boolean> | undefined;

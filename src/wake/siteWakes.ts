@@ -19,7 +19,8 @@
  * 0.1 m of the truth); otherwise the row's reason says the centre may be pulled.
  * Inflow of turbine j, "taken from upstream of it, not from the free stream":
  * - horizontal planes: per lateral column, the mean u of the rows 2.5 D_j to 0.5 D_j upstream of its rotor (the free
- *   stream for an unwaked turbine, the waked flow for a waked one);
+ *   stream for an unwaked turbine, the waked flow for a waked one); an unwaked turbine whose upstream rows have no
+ *   data (the plane starts behind it) takes the campaign's inflow instead;
  * - cross planes: an unwaked turbine uses the campaign's inflow (plane law, fixed or series); a waked one the u of
  *   the nearest cross plane of the same window lying between it and the turbine waking it, sampled at the same
  *   rotor-frame (y, z); without such a plane the row is flagged no_inflow.
@@ -105,8 +106,12 @@ export function turbineViews(f: FieldResult, c: Pick<Campaign, 'planes' | 'turbi
     const view = shiftedField(f, j, half, cross ? -Infinity : j.x + j.diameter / 2, sEnd);
     const t = c.turbines[j.index];
     const tv: TurbineView = { turbine: t, field: view, at: j, wakedBy, wakes, reach, note };
-    if (!cross) tv.upstream = upstreamRows(f, j, half);
-    else if (wakedBy.length) tv.upstream = upstreamPlane(f, j, list, waking[j.index][0], c, windowFields);
+    if (!cross) {
+      // An unwaked turbine whose upstream rows the plane does not cover (a plane starting behind it) takes the
+      // campaign's inflow, its free stream, as on cross planes; a waked one never does.
+      const up = upstreamRows(f, j, half);
+      if (wakedBy.length || (up && up.hubSpeed_ms > 0)) tv.upstream = up;
+    } else if (wakedBy.length) tv.upstream = upstreamPlane(f, j, list, waking[j.index][0], c, windowFields);
     views.push(tv);
   }
   return views;
