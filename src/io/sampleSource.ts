@@ -56,8 +56,8 @@ export async function* openSamples(path: string, opts: SampleReaderOptions): Asy
   const format = sampleFormat(path);
   // The reader thread for NetCDF: there the HDF5 library's decompression moves off the caller (main thread 4.0 ->
   // 2.7 CPU-s on the benchmark). Text files only when asked (textThread): on the benchmark's scanning rays, whose
-  // gates the ingest mostly rejects by the ray's reach, parsing there was slower on two cores (caller -0.6 CPU-s, the
-  // thread +1.2, the run 0.4-0.9 s longer); without ray structure, where every sample costs the caller its geometry
+  // gates the ingest mostly rejects by the ray's reach, parsing there did not pay on two cores (caller -0.6 CPU-s, the
+  // thread +1.2, the run longer in 2 of 3 pairs); without ray structure, where every sample costs the caller its geometry
   // and accumulation, the run was 0.3 s shorter (caller -0.6 CPU-s).
   if (opts.thread && (format === 'netcdf' || opts.textThread)) {
     const { readThreaded } = await import('./readerThread.ts');
