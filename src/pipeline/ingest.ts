@@ -424,7 +424,9 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
   // compilation on the compiler threads, a dozen times per run, when the first unreadable row or the first sample
   // of a new window came after it was first optimised).
   const processSamples = (b: SampleBatch, drop: Uint8Array | undefined, seen: Uint8Array) => {
-    rFrom = Infinity; rTo = -Infinity; // windows may have finished since the last batch
+    // Windows may have finished since the last batch: the next sample looks its windows up again (no time is at or
+    // beyond rFrom = Infinity, whatever rTo; no negation here, which the optimised loop would meet unrun).
+    rFrom = Infinity;
     for (let i = 0; i < b.length; i++) {
       const ins = b.instrument[i];
       readCount[ins]++;
