@@ -55,28 +55,20 @@ describe('text files without ray structure on the reader thread', () => {
   it('the thread yields the same batches as the caller parsing the file itself', async () => {
     const path = join(dir, 'data', 'a.csv');
     const opts = { instrumentIndex: new Map([['a', 0], ['b', 1], ['c', 2]]), owner: 0, columns: {}, sign: 'away' as const, batchSize: 4096 };
-    const rows = async (thread: boolean) => {
+    const rows = async (file: string, thread: boolean) => {
       const out: number[][] = [];
-      for await (const c of openSamples(path, { ...opts, thread, textThread: thread })) {
+      for await (const c of openSamples(file, { ...opts, thread, textThread: thread })) {
         const b = c.batch;
         for (let i = 0; i < b.length; i++) out.push([b.line[i], b.time[i], b.instrument[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]]);
       }
       return out;
     };
-    const here = await rows(false);
+    const here = await rows(path, false);
     expect(here.length).toBeGreaterThan(1000);
-    expect(await rows(true)).toEqual(here); // exact: the same parser on either thread
+    expect(await rows(path, true)).toEqual(here); // exact: the same parser on either thread
     // gzip-compressed: decompressed and parsed on the thread, the same rows
     writeFileSync(`${path}.gz`, gzipSync(readFileSync(path)));
-    const gz = async (thread: boolean) => {
-      const out: number[][] = [];
-      for await (const c of openSamples(`${path}.gz`, { ...opts, thread, textThread: thread })) {
-        const b = c.batch;
-        for (let i = 0; i < b.length; i++) out.push([b.line[i], b.time[i], b.instrument[i], b.azimuth[i], b.elevation[i], b.range[i], b.radialVelocity[i], b.cnr[i]]);
-      }
-      return out;
-    };
-    expect(await gz(true)).toEqual(here);
+    expect(await rows(`${path}.gz`, true)).toEqual(here);
   });
 
   it('the same accounting and field tables with the reader thread as without it', async () => {
