@@ -68,6 +68,9 @@ describe('report HTML (pure)', () => {
     expect(text).toMatch(/lid-a\s+-23\.0\s+break\s+5\u202f000\s+4\u202f800\s+0\.51\s+estimated -23 dB/);
     expect(text).toMatch(/lid-b\s+-27\.0\s+fixed\s+fixed limit -27 dB \(instruments\[1\]\.cnrMin_db\)/);
     expect(html.toLowerCase()).not.toContain('<script'); // the note is escaped
+    // The long note wraps at the reading width (it ran off the page on one line); the short status does not.
+    expect(html).toContain('<td class="long">fixed limit -27 dB (instruments[1].cnrMin_db)</td>');
+    expect(html).toContain('<td>fixed</td>');
     // The figure sits in the quality-control section, once.
     const samples = html.slice(html.indexOf('<section id="samples">'), html.indexOf('</section>', html.indexOf('<section id="samples">')));
     expect(samples).toContain('images/qc_cnr_inconsistent.svg');

@@ -315,10 +315,11 @@ function richHtml(label: string): string {
   return spans(label).map((p) => (p.shift === 'base' ? esc(p.text) : `<${p.shift}>${esc(p.text)}</${p.shift}>`)).join('');
 }
 
-/** A table whose cells are already markup (escaped by the caller). */
+/** A table whose cells are already markup (escaped by the caller); long texts wrap as in tableHtml. */
 function tableHtmlRaw(columns: string[], rows: string[][], numericCols: number[] = []): string {
+  const tdClass = (v: string, j: number) => (numericCols.includes(j) ? ' class="num"' : v.replace(/<[^>]*>/g, '').length > LONG_TEXT ? ' class="long"' : '');
   return `<div class="scroll"><table><thead><tr>${columns.map((c, j) => `<th${numericCols.includes(j) ? ' class="num"' : ''}>${esc(c)}</th>`).join('')}</tr></thead><tbody>` +
-    rows.map((r) => `<tr>${r.map((v, j) => `<td${numericCols.includes(j) ? ' class="num"' : ''}>${v}</td>`).join('')}</tr>`).join('') +
+    rows.map((r) => `<tr>${r.map((v, j) => `<td${tdClass(v, j)}>${v}</td>`).join('')}</tr>`).join('') +
     `</tbody></table></div>`;
 }
 
