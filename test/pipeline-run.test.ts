@@ -10,6 +10,7 @@ import { parse } from 'yaml';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { InputError } from '../src/errors.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
+import { ASSUMPTION_LISTED, assumptionLines } from '../src/pipeline/finishWindows.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
@@ -194,5 +195,17 @@ describe('window and direction options', () => {
     expect(manifest.windows[0].end_s - manifest.windows[0].start_s).toBeLessThanOrEqual(1800);
     expect(manifest.windows[0].direction_deg).toBe(270);
     expect(manifest.samples.balanced).toBe(true);
+  });
+});
+
+describe('assumption lines', () => {
+  it('say "all" when an assumption held everywhere, and name at most a dozen plane-windows', () => {
+    const names = (n: number) => Array.from({ length: n }, (_, k) => `p w${k}`);
+    const lines = assumptionLines(new Map([['w = 0', names(1042)], ['other', names(3)], ['many', names(40)]]), 1042);
+    expect(lines[0]).toBe('w = 0: in all 1042 plane-windows');
+    expect(lines[1]).toBe('other: in 3 of 1042 plane-windows (p w0, p w1, p w2)');
+    // exact text: the first ASSUMPTION_LISTED named, the rest counted (40 - 12 = 28)
+    expect(ASSUMPTION_LISTED).toBe(12);
+    expect(lines[2]).toBe(`many: in 40 of 1042 plane-windows (${names(12).join(', ')} and 28 more)`);
   });
 });

@@ -22,6 +22,23 @@ import type { OutputRecord, RunManifest, WindowRecord } from './manifest.ts';
 import type { RunStage, StageContext } from './run.ts';
 import type { GeometryFinisher } from './geometryFinish.ts';
 
+/** Plane-windows named at most in an assumption's line; the others are counted. */
+export const ASSUMPTION_LISTED = 12;
+
+/**
+ * One line per assumption for the manifest, the report and the summary: where it applied, as `in all N plane-windows`
+ * or `in K of N plane-windows (p w0, p w3, ...)`, naming at most ASSUMPTION_LISTED of them (a season of windows would
+ * otherwise make one line of thousands of names).
+ */
+export function assumptionLines(assumptions: ReadonlyMap<string, readonly string[]>, fieldCount: number): string[] {
+  return [...assumptions].map(([a, where]) => {
+    if (where.length === fieldCount) return `${a}: in all ${fieldCount} plane-windows`;
+    const named = where.slice(0, ASSUMPTION_LISTED).join(', ');
+    const more = where.length > ASSUMPTION_LISTED ? ` and ${where.length - ASSUMPTION_LISTED} more` : '';
+    return `${a}: in ${where.length} of ${fieldCount} plane-windows (${named}${more})`;
+  });
+}
+
 /** A window whose samples are all in: its definition, bounds, rotor-frame direction and accumulators per target. */
 export interface FinishedWindow {
   def: WindowDef;

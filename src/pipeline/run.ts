@@ -34,7 +34,7 @@ import { PartialSet, removePartials } from './partial.ts';
 import { runShardsLive, shareFiles } from './shardProcesses.ts';
 import type { FinishedWindow } from './finishWindows.ts';
 import type { RejectedRow } from '../io/batch.ts';
-import { WindowFinisher } from './finishWindows.ts';
+import { assumptionLines, WindowFinisher } from './finishWindows.ts';
 import { PlaneTarget } from '../grid/planeTarget.ts';
 import { campaignTargets } from './geometryTargets.ts';
 import { GeometryFinisher } from './geometryFinish.ts';
@@ -395,7 +395,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     if ((partialSet || parallel) && total.rejected.out_of_time_order > 0) warnings.push(`${total.rejected.out_of_time_order} samples came after their window was finished (out_of_time_order): which rows that catches depends on which files are read together, so a sharded run can count them differently from a single run`);
     if (!manifest.samples.balanced) warnings.push('sample accounting does not balance (read != accepted + rejected): please report this as a bug');
     const fieldCount = outputs.filter((o) => o.kind === 'field-table').length;
-    manifest.assumptions = [...finisher.assumptions].map(([a, where]) => `${a}: in ${where.length} of ${fieldCount} plane-windows (${where.join(', ')})`);
+    manifest.assumptions = assumptionLines(finisher.assumptions, fieldCount);
     manifest.samplesPerSecond = total.read / Math.max(1e-9, (timings.ingest ?? 0) + (timings.retrieval ?? 0) + (timings.write_fields ?? 0) + (timings.check_inputs ?? 0) + (timings.cnr_limits ?? 0));
 
     // 4. Later stages: wake summaries, figures, planner; then the end figures, then the report (a `last` stage).
