@@ -89,7 +89,12 @@ export class WindowFinisher {
       await writeFieldTable(f, join(this.runDir, rel), this.c.turbine.rotorDiameter_m);
       const label = f.window.label ? ` (${f.window.label})` : '';
       this.outputs.push({ kind: 'field-table', path: rel, plane: f.planeId, ...(f.window.kind === 'ensemble' ? { bin: ordinal } : { window: ordinal }), description: `retrieved wind field, ${f.planeId}, ${tag}${label}` });
-      for (const a of f.assumptions) this.assumptions.set(a, [...(this.assumptions.get(a) ?? []), `${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`]);
+      for (const a of f.assumptions) {
+        // in place (a copy per window grew with the square of the windows of a long campaign)
+        let where = this.assumptions.get(a);
+        if (!where) this.assumptions.set(a, (where = []));
+        where.push(`${f.planeId} ${f.window.kind === 'ensemble' ? 'bin' : 'w'}${ordinal}`);
+      }
     }
     this.times.write_fields += (performance.now() - tw) / 1000;
     // The planes of this window together (the wake of one turbine may take its inflow from another plane).
