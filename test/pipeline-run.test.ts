@@ -11,6 +11,7 @@ import { loadCampaignFile } from '../src/campaign/load.ts';
 import { InputError } from '../src/errors.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { ASSUMPTION_LISTED, assumptionLines } from '../src/pipeline/finishWindows.ts';
+import { groupBy, pushTo } from '../src/math/group.ts';
 import { REJECT_REASONS } from '../src/qc/reasons.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { wakeStage } from '../src/pipeline/stages.ts';
@@ -207,5 +208,16 @@ describe('assumption lines', () => {
     // exact text: the first ASSUMPTION_LISTED named, the rest counted (40 - 12 = 28)
     expect(ASSUMPTION_LISTED).toBe(12);
     expect(lines[2]).toBe(`many: in 40 of 1042 plane-windows (${names(12).join(', ')} and 28 more)`);
+  });
+});
+
+describe('grouping helper', () => {
+  it('groups in first-met order and appends in place', () => {
+    const g = groupBy([3, 1, 4, 1, 5, 9, 2, 6], (x) => x % 3);
+    expect([...g]).toEqual([[0, [3, 9, 6]], [1, [1, 4, 1]], [2, [5, 2]]]);
+    const list = g.get(0)!;
+    pushTo(g, 0, 12);
+    expect(g.get(0)).toBe(list); // the same array, not a copy
+    expect(list).toEqual([3, 9, 6, 12]);
   });
 });

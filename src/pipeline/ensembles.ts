@@ -18,6 +18,7 @@ import { retrieveStats } from '../retrieval/retrieveWindow.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import type { FieldResult, WindowInfo } from '../retrieval/types.ts';
 import type { WakePlaneWindow } from '../wake/types.ts';
+import { pushTo } from '../math/group.ts';
 
 export interface ConditionSeries {
   turbine?: Series;
@@ -175,7 +176,7 @@ export class Ensembles {
     st.levels.push(w.def?.level ?? NaN);
     const D = (w.direction_deg * Math.PI) / 180;
     if (Number.isFinite(D)) { st.sin += Math.sin(D); st.cos += Math.cos(D); }
-    this.windowsOf.set(bin, [...(this.windowsOf.get(bin) ?? []), window]);
+    pushTo(this.windowsOf, bin, window);
     return bin;
   }
 

@@ -27,6 +27,7 @@ import { SuspicionInspector, suspicionSettings } from '../qc/suspicion.ts';
 import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { campaignInputs, checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
+import { pushTo } from '../math/group.ts';
 
 export interface PreflightOptions {
   /** Output root (absolute). */
@@ -104,7 +105,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
           continue;
         }
         seen.set(real, { file, ins });
-        keep.set(ins.index, [...(keep.get(ins.index) ?? []), file]);
+        pushTo(keep, ins.index, file);
         files.push({ file, ins });
         try {
           const h = await checkSamples(file, { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, thread: readerThreadWanted() });

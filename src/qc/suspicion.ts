@@ -33,6 +33,7 @@ import type { Campaign } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
 import type { RejectedRow, SampleBatch } from '../io/batch.ts';
 import type { RejectReason, SampleAccount } from './reasons.ts';
+import { pushTo } from '../math/group.ts';
 
 /**
  * Constants of the per-row paths as a const enum, written into the code by the build (module-level constants are
@@ -592,7 +593,7 @@ export class SuspicionInspector {
 /** Warnings for files listed more than once with the same content (SHA-256), by their displayed names. */
 export function sameContentWarnings(inputs: readonly { file: string; sha256: string }[], show: (f: string) => string = (f) => f): string[] {
   const by = new Map<string, string[]>();
-  for (const i of inputs) if (i.sha256) by.set(i.sha256, [...(by.get(i.sha256) ?? []), i.file]);
+  for (const i of inputs) if (i.sha256) pushTo(by, i.sha256, i.file);
   const out: string[] = [];
   for (const [sha, files] of by) {
     const distinct = [...new Set(files)];

@@ -15,6 +15,7 @@ import { esc } from './escape.ts';
 import { fixed, significant, withUncertainty } from './numbers.ts';
 import { REPORT_CSS } from './reportCss.ts';
 import { spans } from './richText.ts';
+import { groupBy } from '../math/group.ts';
 
 /** A table for the report: every row, in a frame that scrolls, with a link to the full file. */
 export interface ReportTable {
@@ -267,8 +268,7 @@ function imagesHtml(images: OutputRecord[]): string {
   if (summary.length) out.push(`<h3>Summary</h3>${galleryHtml(summary)}`);
   if (planes.length) out.push(`<h3>Planes</h3><p class="note">One figure per plane (and one per plane for the condition bins, when there are any): the windows or bins side by side on one colour scale and one arrow scale.</p>${galleryHtml(planes)}`);
   const folded = (title: string, recs: OutputRecord[], key: (o: OutputRecord) => string) => {
-    const byKey = new Map<string, OutputRecord[]>();
-    for (const o of recs) byKey.set(key(o), [...(byKey.get(key(o)) ?? []), o]);
+    const byKey = groupBy(recs, key);
     out.push(`<h3>${esc(title)}</h3>`);
     let folds = 0;
     for (const [k, group] of byKey) {
@@ -283,11 +283,7 @@ function imagesHtml(images: OutputRecord[]): string {
 
 /** One figure per image base name, shown from its SVG (or PNG) at the full width of the page, with links to both files. */
 function galleryHtml(images: OutputRecord[]): string {
-  const byBase = new Map<string, OutputRecord[]>();
-  for (const o of images) {
-    const base = o.path.replace(/\.(svg|png)$/i, '');
-    byBase.set(base, [...(byBase.get(base) ?? []), o]);
-  }
+  const byBase = groupBy(images, (o) => o.path.replace(/\.(svg|png)$/i, ''));
   const figs: string[] = [];
   for (const [base, recs] of byBase) {
     const shown = recs.find((r) => /\.svg$/i.test(r.path)) ?? recs[0];

@@ -23,6 +23,7 @@ import type { RenderQueue } from './renderQueue.ts';
 import { ScaleCollector, type RunScales } from './runScales.ts';
 import { smallMultiplesSvg, type Panel } from './smallMultiples.ts';
 import { summaryFigures } from './summaryPlots.ts';
+import { pushTo } from '../math/group.ts';
 
 /** Every s-th item of a stream, s doubling whenever more than 2 x max are kept (evenly spaced, bounded). */
 class Thinned<T> {
@@ -62,7 +63,7 @@ export function turbineViewsOf(rows: readonly WakePlaneWindow[], keyOf: (planeId
   for (const r of rows) {
     if (r.turbineId === undefined) continue;
     const k = keyOf(r.planeId.split('@')[0], r.window.index);
-    out.set(k, [...(out.get(k) ?? []), r]);
+    pushTo(out, k, r);
   }
   return out;
 }

@@ -13,6 +13,7 @@ import { decimalsForUncertainty, fixed, qty, withUncertainty } from './numbers.t
 import { LAW_NOTE, lawSpeed } from './planeImages.ts';
 import { formatNumber } from './ticks.ts';
 import { theme } from './theme.ts';
+import { groupBy } from '../math/group.ts';
 
 /** The top-hat k for a legend: the fit with its standard error, or the default with where it came from. */
 function topHatK(t: WakeAnalysis['downstream']['topHat']): string {
@@ -110,8 +111,7 @@ export function summaryFigures(a: WakeAnalysis, campaign: Campaign): { what: str
   // Inflow profiles: the plane with the most usable profiles, up to six windows, measured points and fitted laws.
   const withProfile = a.rows.filter((r) => r.inflow.ok && r.inflow.heights_m.length > 0);
   if (withProfile.length) {
-    const byPlane = new Map<string, typeof withProfile>();
-    for (const r of withProfile) byPlane.set(r.planeId, [...(byPlane.get(r.planeId) ?? []), r]);
+    const byPlane = groupBy(withProfile, (r) => r.planeId);
     const [pid, rows] = [...byPlane].sort((p, q) => q[1].length - p[1].length)[0];
     const shown = rows.slice(0, 6);
     const series: PlotSeries[] = [];

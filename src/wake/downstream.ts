@@ -13,13 +13,13 @@ import type { DownstreamPoint, DownstreamResult, GaussianModelFit, ModelCurve, W
 import { stat, studentTQuantile } from './stats.ts';
 import { bpEpsilon, fitTopHatK, gaussianAmplitude, gaussianSigma_D, topHatDeficit, topHatKFromTurbulence, topHatRadius_D } from './wakeModels.ts';
 import type { TopHatModel } from './types.ts';
+import { groupBy } from '../math/group.ts';
 
 export function downstreamPoints(rows: WakePlaneWindow[], D: number, binWidth_deg: number): DownstreamPoint[] {
   const ok = rows.filter((r) => r.orientation === 'cross' && r.flag === 'ok' && r.gaussian);
   const anyYaw = ok.some((r) => Number.isFinite(r.yawOffset_deg));
   const aligned = ok.filter((r) => !anyYaw || (Number.isFinite(r.yawOffset_deg) && Math.abs(r.yawOffset_deg) <= binWidth_deg / 2));
-  const byPlane = new Map<number, WakePlaneWindow[]>();
-  for (const r of aligned) byPlane.set(r.planeIndex, [...(byPlane.get(r.planeIndex) ?? []), r]);
+  const byPlane = groupBy(aligned, (r) => r.planeIndex);
   const pts: DownstreamPoint[] = [];
   for (const rs of byPlane.values()) {
     const g = (f: (r: WakePlaneWindow) => number) => stat(rs.map(f));

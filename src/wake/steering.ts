@@ -9,6 +9,7 @@
 import type { SteeringBin, SteeringResult, WakePlaneWindow } from './types.ts';
 import { stat } from './stats.ts';
 import { bastankhahDeflection, jimenezDeflection } from './deflection.ts';
+import { pushTo } from '../math/group.ts';
 
 export interface SteeringOptions {
   rotorDiameter_m: number;
@@ -33,7 +34,7 @@ export function binSteering(rows: WakePlaneWindow[], o: SteeringOptions): Steeri
   for (const r of use) {
     const k = Math.floor(r.yawOffset_deg / w + 0.5);
     const key = `${r.planeIndex}|${k}`;
-    groups.set(key, [...(groups.get(key) ?? []), r]);
+    pushTo(groups, key, r);
   }
   const bins: SteeringBin[] = [];
   for (const [key, rs] of groups) {
