@@ -34,6 +34,15 @@ describe('NetCDF-4/CF outputs', () => {
     runDir = (await runCampaign(loadCampaignFile(file), { outRoot: join(dir, 'out'), images: false, stages: [wakeStage(), netcdfStage()] })).runDir;
   });
 
+  it.skipIf(!ncdump)(`ncdump: a window variable is chunked by 64 windows, not one chunk per window${ncdump ? '' : ' (skipped: no ncdump; Debian netcdf-bin)'}`, () => {
+    // netCDF-C reports the HDF5 chunk shape as the special attribute _ChunkSizes (ncdump -s). One chunk per window made
+    // thousands of tiny compressed chunks in a long campaign (4,167 windows of 10 s: the writer 5 s behind the run).
+    const r = spawnSync('ncdump', ['-hs', join(runDir, 'fields', 'p5.nc')], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/\bu:_ChunkSizes = 64, \d+, \d+ ;/);
+    expect(r.stdout).toMatch(/\bwindow_bounds:_ChunkSizes = 64, 2 ;/);
+  });
+
   it.skipIf(!ncdump)(`ncdump reads the field file: CF conventions, unlimited window, standard names and flags${ncdump ? '' : ' (skipped: no ncdump; Debian netcdf-bin)'}`, () => {
     const r = spawnSync('ncdump', ['-h', join(runDir, 'fields', 'p5.nc')], { encoding: 'utf8' });
     expect(r.status, r.stderr).toBe(0);

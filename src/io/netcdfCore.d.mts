@@ -4,6 +4,8 @@ export interface VariableOptions {
   chunks?: number[];
   deflate?: number;
 }
+export declare const GROW_CHUNK_ROWS: number;
+export declare const GROW_CHUNK_BYTES: number;
 export declare function setAttributes(obj: unknown, attrs: Record<string, NcAttr | undefined>): void;
 export declare class NcFileWriter {
   constructor(h5: unknown, path: string);

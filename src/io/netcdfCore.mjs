@@ -4,6 +4,10 @@
 import { renameSync, rmSync } from 'node:fs';
 
 const DIM_WITHOUT_VARIABLE = 'This is a netCDF dimension but not a netCDF variable.';
+/** Rows (steps of the unlimited dimension) per chunk of a growing variable at most: the windows a run writes at once. */
+export const GROW_CHUNK_ROWS = 64;
+/** Bytes per chunk of a growing variable at most, unless one row is larger (a chunk holds at least one row). */
+export const GROW_CHUNK_BYTES = 1 << 20;
 
 function dtypeOf(d) {
   if (Array.isArray(d)) return 'S';
@@ -67,7 +71,10 @@ export class NcFileWriter {
     // Text is written whole (a variable on an unlimited dimension defined once its rows are in, as bin labels at
     // the close), numbers may grow by append.
     const grows = dims.length > 0 && this.unlimited.has(dims[0]) && !text;
-    const chunks = opts.chunks ?? (grows ? [1, ...shape.slice(1)] : shape.map((n) => Math.max(1, n)));
+    // A growing variable is chunked by up to GROW_CHUNK_ROWS rows (windows) of about GROW_CHUNK_BYTES at most: one
+    // chunk per row made thousands of tiny chunks in a long campaign (each compressed and indexed on its own).
+    const rowBytes = Math.max(1, shape.slice(1).reduce((a, b) => a * b, 1) * (data.BYTES_PER_ELEMENT ?? 8));
+    const chunks = opts.chunks ?? (grows ? [Math.max(1, Math.min(GROW_CHUNK_ROWS, Math.floor(GROW_CHUNK_BYTES / rowBytes))), ...shape.slice(1)] : shape.map((n) => Math.max(1, n)));
     const ds = this.f.create_dataset({
       name, data, shape, dtype: dtypeOf(data),
       ...(grows ? { maxshape: [null, ...shape.slice(1)] } : {}),

@@ -53,6 +53,7 @@ parentPort.on('message', ({ op, file, args, reply }) => {
   const w = files.get(file);
   try {
     if (op === 'create') { if (!failed) files.set(file, new NcFileWriter(h5, args[0])); }
+    else if (op === 'sync') { /* answered below, after every operation posted before it */ }
     else if (op === 'abort' || (op === 'close' && failed)) { w?.abort(); files.delete(file); }
     else if (!failed && w) { w[op](...args); if (op === 'close') files.delete(file); }
   } catch (e) {

@@ -119,8 +119,11 @@ export class NcWorker {
     return p;
   }
 
-  /** A file written by the worker. */
-  create(path: string): NcTarget & { close(): Promise<void>; abort(): Promise<void> } {
+  /**
+   * A file written by the worker. `sync()` resolves once the thread has carried out every operation posted before it
+   * (a caller that posts faster than the thread writes waits on it, so that the queue, and memory, stay bounded).
+   */
+  create(path: string): NcTarget & { close(): Promise<void>; abort(): Promise<void>; sync(): Promise<void> } {
     const id = this.nextFile++;
     this.post('create', id, [path]);
     return {
@@ -129,6 +132,7 @@ export class NcWorker {
       variable: (name, dims, data, attrs, opts) => this.post('variable', id, [name, dims, data, attrs, opts]),
       append: (name, values) => this.post('append', id, [name, values]),
       global: (attrs) => this.post('global', id, [attrs]),
+      sync: () => this.ask('sync', id),
       close: () => this.ask('close', id),
       abort: () => this.ask('abort', id).catch(() => {}),
     };
