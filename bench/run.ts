@@ -18,6 +18,8 @@
  *    whole-record run is followed by the same without the uncertainty budget (its cost where every sample is a ray).
  * 5c. Many files (bench/manyFiles.ts; skip with --skip-many): the benchmark's samples cut into 20 files per file,
  *    --runs times: wall, samples/s, peak memory (must not grow with the number of files).
+ * 5d. Many windows (skip with --skip-many-windows): the benchmark's samples in 10-second windows (about 4,000), once
+ *    with and once without NetCDF outputs: wall and peak memory per window count.
  * 5b. Every core (bench/cores.ts; skip with --skip-cores): the whole job with --cores 1 and with every core,
  *    alternately, --runs-cores times (default 3); medians, speed-up, load average, byte-identical field tables.
  * 6. Figures (skip with --skip-figures): the demo campaign run with and without images, --runs-figures times
@@ -178,7 +180,7 @@ async function figuresBench(d: BenchData, runs: number, out: (s: string) => void
   out(`  ${m.windows} windows (40 s), default figures: figure stage ${fmt(m.images, 2)} s, ${m.figures} figures; whole run ${fmt(m.wall, 2)} s, peak ${fmt(m.peakRss_MB, 0)} MB   ${verdict(m.windows >= 1000 && m.images < TARGET.manyWindowsFigures_s)} (target < ${TARGET.manyWindowsFigures_s} s)`);
 }
 
-interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; cpu_s?: number; timings: Record<string, number> }
+interface PipeRun { seconds: number; read: number; peakRss_MB: number; timeRss_MB?: number; cpu_s?: number; timings: Record<string, number>; windows?: number }
 
 /** One whole job as a child process; the manifest's figures. */
 async function wholeJob(campaign: string): Promise<PipeRun | string> {
@@ -186,9 +188,9 @@ async function wholeJob(campaign: string): Promise<PipeRun | string> {
   const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images', '--cores', '1'], true);
   if (r.code !== 0) return `exit ${r.code}: ${r.stderr.split('\n').slice(-8).join('\n')}`;
   const runDir = join(resolve(doc.output.dir), doc.name);
-  const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number };
+  const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number; windows?: unknown[] };
   rmSync(runDir, { recursive: true, force: true });
-  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, cpu_s: r.cpu_s, timings: m.timings_s };
+  return { seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, cpu_s: r.cpu_s, timings: m.timings_s, windows: m.windows?.length };
 }
 
 async function main() {
@@ -333,6 +335,24 @@ async function main() {
     }
   }
 
+  // 5d. The same samples in 10-second windows (thousands of windows), with and without NetCDF outputs: the time and
+  // memory a run spends per window, and whether the NetCDF writer keeps up (it once fell 5 s behind, 190 MB queued).
+  const manyWin: { windows: number; with?: { secs: number; rss: number }; without?: { secs: number; rss: number } } = { windows: 0 };
+  if (!skipPipeline && !process.argv.includes('--skip-many-windows')) {
+    const doc = parse(readFileSync(d.campaign, 'utf8')) as { name: string; windows: Record<string, unknown>; output: Record<string, unknown> };
+    const withNc = join(d.dir, 'campaign-10s.yaml'), withoutNc = join(d.dir, 'campaign-10s-no-netcdf.yaml');
+    writeFileSync(withNc, stringify({ ...doc, name: `${doc.name}-10s`, windows: { kind: 'fixed', length_s: 10 } }));
+    writeFileSync(withoutNc, stringify({ ...doc, name: `${doc.name}-10s-csv-only`, windows: { kind: 'fixed', length_s: 10 }, output: { ...doc.output, netcdf: false } }));
+    console.log('5d. the same samples in 10-second windows, with and without NetCDF outputs: one run each');
+    for (const [key, campaign] of [['with', withNc], ['without', withoutNc]] as const) {
+      const r = await wholeJob(campaign);
+      if (typeof r === 'string') { console.log(`  FAILED ${r}`); break; }
+      manyWin[key] = { secs: r.seconds, rss: Math.max(r.peakRss_MB, r.timeRss_MB ?? 0) };
+      manyWin.windows = r.windows ?? manyWin.windows;
+      console.log(`  ${key} NetCDF outputs: ${fmt(r.seconds, 3)} s, peak ${fmt(manyWin[key]!.rss, 0)} MB`);
+    }
+  }
+
   const lines: string[] = [];
   const out = (s: string) => lines.push(s);
   out('');
@@ -415,6 +435,11 @@ async function main() {
     const rate = many.read / median(many.secs);
     out(`the same samples in ${many.files} files (${d.files.length} cut in ${many.files / d.files.length} each)`);
     out(`  whole job                ${spread(many.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...many.rss), 0)} MB   ${verdict(Math.max(...many.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
+  }
+  if (manyWin.with && manyWin.without) {
+    out(`the same samples in 10-second windows (${manyWin.windows.toLocaleString('en')} windows), one run each`);
+    out(`  with NetCDF outputs       ${fmt(manyWin.with.secs, 3)} s wall   peak ${fmt(manyWin.with.rss, 0)} MB`);
+    out(`  without                   ${fmt(manyWin.without.secs, 3)} s wall   peak ${fmt(manyWin.without.rss, 0)} MB   (outputs +${fmt(100 * (manyWin.with.secs / manyWin.without.secs - 1), 1)} %; memory grows with the windows: README "Speed and memory")`);
   }
   if (!process.argv.includes('--skip-cores')) await coresBench(d, runsFromArgs(process.argv, '--runs-cores', 3), out);
   if (!skipFigures) {
