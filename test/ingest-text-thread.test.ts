@@ -11,8 +11,8 @@ import { gzipSync } from 'node:zlib';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadCampaignFile } from '../src/campaign/load.ts';
 import { gatesPerRay, type SampleBatch } from '../src/io/batch.ts';
-import { openSamples } from '../src/io/sampleSource.ts';
-import { TEXT_THREAD_GATES } from '../src/pipeline/ingest.ts';
+import { openSamples, PrimedFiles } from '../src/io/sampleSource.ts';
+import { INGEST_BATCH, primeTextFiles, TEXT_THREAD_GATES } from '../src/pipeline/ingest.ts';
 import { runCampaign } from '../src/pipeline/run.ts';
 import { simulateCampaign } from '../src/sim/simulate.ts';
 import { writeTinyCampaign } from './helpers/tinyCampaign.ts';
@@ -69,6 +69,36 @@ describe('text files without ray structure on the reader thread', () => {
     // gzip-compressed: decompressed and parsed on the thread, the same rows
     writeFileSync(`${path}.gz`, gzipSync(readFileSync(path)));
     expect(await rows(`${path}.gz`, true)).toEqual(here);
+  });
+
+  it('a run opens the files without ray structure on the thread before its CNR pre-pass, and only those', async () => {
+    const c = loadCampaignFile(file);
+    // one instrument keeps the simulator's rays (many gates per ray): parsed on the caller, not primed
+    const rayDir = writeTinyCampaign({ name: 'text-thread-rays' });
+    await simulateCampaign(loadCampaignFile(rayDir.file));
+    const rayFile = join(rayDir.dir, 'data', 'b.csv');
+    const mixed = { ...c, instruments: c.instruments.map((ins) => (ins.id === 'b' ? { ...ins, files: [rayFile] } : ins)) };
+    const primed = new PrimedFiles(INGEST_BATCH, true);
+    try {
+      await primeTextFiles(mixed, primed);
+      for (const ins of mixed.instruments) {
+        const s = primed.take(ins.files[0], ins.index);
+        if (ins.id === 'b') expect(s).toBeUndefined();
+        else {
+          expect(s?.textThread).toBe(true);
+          const r = await s!.first;
+          expect(r.done).toBe(false);
+          expect(r.done ? 0 : gatesPerRay(r.value.batch)).toBeLessThan(TEXT_THREAD_GATES);
+          await s!.it.return?.(undefined);
+        }
+      }
+      // without the reader thread nothing is opened early
+      const none = new PrimedFiles(INGEST_BATCH, false);
+      await primeTextFiles(mixed, none);
+      expect(none.take(mixed.instruments[0].files[0], 0)).toBeUndefined();
+    } finally {
+      await primed.close();
+    }
   });
 
   it('the same accounting and field tables with the reader thread as without it', async () => {

@@ -83,8 +83,15 @@ export const KEEP_PRIMED = 8;
  * before the ingest could start). Keyed by path and owning instrument; a stream nobody takes is closed by close().
  * The chunk stays valid until the stream is pulled again (the readers' reuse contract), so it is handed over once.
  */
+/** A stream opened by PrimedFiles, its first pull, and whether it parses text on the reader thread (opts.textThread). */
+export interface PrimedStream {
+  it: AsyncIterator<SampleChunk>;
+  first: Promise<IteratorResult<SampleChunk>>;
+  textThread: boolean;
+}
+
 export class PrimedFiles {
-  private readonly open = new Map<string, { it: AsyncIterator<SampleChunk>; first: Promise<IteratorResult<SampleChunk>> }>();
+  private readonly open = new Map<string, PrimedStream>();
 
   constructor(
     /** Rows per batch of every stream (the ingest's). */
@@ -103,7 +110,7 @@ export class PrimedFiles {
     let e = this.open.get(k);
     if (!e) {
       const it = openSamples(path, { ...opts, batchSize: this.batchSize, thread: this.thread })[Symbol.asyncIterator]();
-      e = { it, first: it.next() };
+      e = { it, first: it.next(), textThread: this.thread && opts.textThread === true };
       e.first.catch(() => {}); // a failure is reported to whoever awaits it, not as an unhandled rejection
       this.open.set(k, e);
     }
@@ -111,7 +118,7 @@ export class PrimedFiles {
   }
 
   /** Hands over an opened stream and its first chunk (once), or undefined when the file was not opened here. */
-  take(path: string, owner: number): { it: AsyncIterator<SampleChunk>; first: Promise<IteratorResult<SampleChunk>> } | undefined {
+  take(path: string, owner: number): PrimedStream | undefined {
     const k = this.key(path, owner);
     const e = this.open.get(k);
     this.open.delete(k);

@@ -194,6 +194,37 @@ export async function campaignFirstSample(c: Campaign): Promise<number> {
   return Number.isFinite(first) ? first : NaN;
 }
 
+/**
+ * Opens, before the CNR pre-pass, the text files the ingest will parse on the reader thread (TEXT_THREAD_GATES: a
+ * first batch of fewer than 2 rows per ray), through `primed`: the thread then starts and parses their first chunks
+ * while this thread reads the pre-pass, instead of after it (on the benchmark without ray structure the main thread
+ * waited about 0.2 s for the thread's first batch). Each file's first PRIME_DECISION_ROWS rows are parsed here to
+ * decide (the ingest's own rule looks at its first batch: the same answer but for files whose ray structure changes
+ * after that many rows, and either answer gives the same results). Only with at most KEEP_PRIMED files (the ingest's own rule for primed
+ * streams) and where the reader thread is used (primed.thread); a file that cannot be read is left to the ingest,
+ * which reports it.
+ */
+/** Rows parsed on the calling thread to decide where a text file is parsed (primeTextFiles). */
+export const PRIME_DECISION_ROWS = 1024;
+
+export async function primeTextFiles(c: Campaign, primed: PrimedFiles): Promise<void> {
+  const instrumentIndex = new Map(c.instruments.map((i) => [i.id, i.index]));
+  const files = c.instruments.flatMap((ins) => ins.files.map((path) => ({ path, ins })));
+  if (!primed.thread || files.length > KEEP_PRIMED) return;
+  for (const { path, ins } of files) {
+    const opts = { instrumentIndex, owner: ins.index, columns: ins.columns, sign: ins.radialVelocitySign, batchSize: INGEST_BATCH };
+    try {
+      if (sampleFormat(path) === 'netcdf') continue;
+      const it = openSamples(path, { ...opts, batchSize: PRIME_DECISION_ROWS, thread: false })[Symbol.asyncIterator]();
+      const r = await it.next();
+      await it.return?.(undefined);
+      if (!r.done && gatesPerRay(r.value.batch) < TEXT_THREAD_GATES) primed.head(path, { ...opts, textThread: true }).catch(() => {});
+    } catch {
+      // the ingest opens it again and reports what is wrong with it
+    }
+  }
+}
+
 export async function ingest(opts: IngestOptions, counters: Counters): Promise<{ plan: WindowPlan }> {
   const c = opts.campaign;
   const I = c.instruments.length;
@@ -279,8 +310,8 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     waiting: false,
     /** The file, to open it again (see waiting). */
     file: f,
-    /** A text file read on the reader thread (see TEXT_THREAD_GATES). */
-    textThread: false,
+    /** A text file read on the reader thread (see TEXT_THREAD_GATES; primed so by primeTextFiles). */
+    textThread: p?.textThread ?? false,
     path: f.path,
     owner: f.owner,
     rows: 0,
@@ -309,7 +340,7 @@ export async function ingest(opts: IngestOptions, counters: Counters): Promise<{
     const f = firstSampleTime(r.value.batch);
     if (f < first) first = f;
     cur.pendingFrom = Number.isFinite(f) ? f : -Infinity;
-    if (readerThread && sampleFormat(cur.path) !== 'netcdf' && gatesPerRay(r.value.batch) < TEXT_THREAD_GATES) {
+    if (!cur.textThread && readerThread && sampleFormat(cur.path) !== 'netcdf' && gatesPerRay(r.value.batch) < TEXT_THREAD_GATES) {
       // A text file without ray structure: parsed on the reader thread from its start (its first batch read twice).
       cur.textThread = true;
       await release(cur);

@@ -29,7 +29,7 @@ import { resolveCnrLimits, type CnrLimits } from '../qc/cnrLimits.ts';
 import type { PlaneGrid, RetrievalSettings } from '../retrieval/settings.ts';
 import { budgetSettings } from './budgetSettings.ts';
 import type { FieldResult } from '../retrieval/types.ts';
-import { campaignFirstSample, Counters, ingest, INGEST_BATCH } from './ingest.ts';
+import { campaignFirstSample, Counters, ingest, INGEST_BATCH, primeTextFiles } from './ingest.ts';
 import { PartialSet, removePartials } from './partial.ts';
 import { runShardsLive, shareFiles } from './shardProcesses.ts';
 import type { FinishedWindow } from './finishWindows.ts';
@@ -228,6 +228,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
   let cnr: CnrLimits;
   let staging: ReturnType<typeof openStaging>;
   try {
+    if (!(parallel || partialSet)) await primeTextFiles(cRead, primed);
     cnr = await resolveCnrLimits(cRead, parallel || partialSet ? undefined : primed);
     if (cnr.mode !== 'fixed') lap('cnr_limits', t);
     // Partials must have used the same limits (the same data: the estimate depends on the campaign's files only);
