@@ -372,7 +372,7 @@ describe('condition bins (ensembles)', () => {
     const svg = planePanelsSvg(P5D, col.panels('P5D', true).shown, 2, col.runScales(FIGURES_DEFAULT, campaign.planes), campaign);
     const words = svgTexts(svg).map((t) => t.text).join(' ');
     expect(words).toContain('P5D: streamwise speed u in 2 condition bins'); // no wake rows given: u in m/s
-    expect(words).toContain('condition bin 1 · yaw_offset_deg in [5, 15)');
+    expect(words).toContain('condition bin 1 · yaw offset 5° to 15°');
     expect(words).toContain('3\u00a0windows');
     expect(overlaps(svgTexts(svg))).toEqual([]);
   });

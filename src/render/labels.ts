@@ -22,9 +22,36 @@ export const QUANTITY = {
   yaw: 'γ, yaw offset (°)',
 } as const;
 
+/** Names and units of the condition variables (campaign conditions.bins[].variable) in figure wording. */
+const CONDITION_WORDING: Record<string, { name: string; unit: string }> = {
+  hub_speed_ms: { name: 'hub wind speed', unit: '\u00a0m/s' },
+  wind_direction_deg: { name: 'wind from', unit: '°' },
+  turbulence_intensity: { name: 'turbulence intensity', unit: '' },
+  yaw_offset_deg: { name: 'yaw offset', unit: '°' },
+};
+
+/**
+ * A condition bin's key as people read it: "yaw_offset_deg in [-15, -5)" becomes "yaw offset −15° to −5°",
+ * "turbine.power_kw in [500, 1000)" becomes "power_kw (turbine) 500 to 1000"; parts joined by " · ". Figures only:
+ * tables and the manifest keep the key, which states the half-open interval exactly.
+ */
+export function conditionBinText(key: string): string {
+  return key.split('; ').map((part) => {
+    const m = /^(\S+) in \[([^,]+), ([^)]+)\)$/.exec(part);
+    if (!m) return part;
+    const [, variable, lo, hi] = m;
+    const dot = variable.indexOf('.');
+    const known = CONDITION_WORDING[variable];
+    const name = known?.name ?? (dot > 0 ? `${variable.slice(dot + 1)} (${variable.slice(0, dot)})` : variable);
+    const unit = known?.unit ?? (variable.endsWith('_deg') ? '°' : '');
+    const num = (v: string) => v.replace(/^-/, '\u2212');
+    return unit === '°' ? `${name} ${num(lo)}° to ${num(hi)}°` : `${name} ${num(lo)} to ${num(hi)}${unit}`;
+  }).join(' \u00b7 ');
+}
+
 /** "2026-06-01 12:00–12:10 UTC" (the end date is repeated only when it differs; seconds when a time has them). */
 export function windowLabel(w: WindowInfo): string {
-  if (w.kind === 'ensemble') return `${w.label ?? `bin ${w.index}`} (${w.members?.length ?? 0}\u00a0windows)`;
+  if (w.kind === 'ensemble') return `${w.label ? conditionBinText(w.label) : `bin ${w.index}`} (${w.members?.length ?? 0}\u00a0windows)`;
   const sec = needsSeconds(w);
   const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return `window ${w.index}`;
@@ -34,7 +61,7 @@ export function windowLabel(w: WindowInfo): string {
 
 /** "12:00–12:10" (times only; with dates when the window spans midnight; seconds when needed), for panel labels. */
 export function windowTimes(w: WindowInfo): string {
-  if (w.kind === 'ensemble') return w.label ?? `bin ${w.index}`;
+  if (w.kind === 'ensemble') return w.label ? conditionBinText(w.label) : `bin ${w.index}`;
   const sec = needsSeconds(w);
   const a = isoMinute(w.start_s, sec), b = isoMinute(w.end_s, sec);
   if (!a) return '';

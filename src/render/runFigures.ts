@@ -15,7 +15,7 @@ import type { OutputRecord } from '../pipeline/manifest.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 import type { WakeAnalysis, WakePlaneWindow } from '../wake/types.ts';
 import { describeWindowImages, windowSelected } from './figureSelection.ts';
-import { axisLabels, planePosition, QUANTITY, windFrom, windowLabel, windowTimes } from './labels.ts';
+import { axisLabels, conditionBinText, planePosition, QUANTITY, windFrom, windowLabel, windowTimes } from './labels.ts';
 import { qty } from './numbers.ts';
 import { panelField, type PanelField } from './panelField.ts';
 import { horizontalView, planeWindowFigures, RESULT_MASK_NAMES, turbineMarks } from './planeImages.ts';
@@ -169,7 +169,7 @@ export function planePanelsSvg(plane: PlaneSpec, shown: PanelField[], total: num
   const unit = bins ? 'condition bin' : 'window';
   const panels: Panel[] = shown.map((p) => ({
     label: p.ensemble
-      ? `condition bin ${p.index}${p.label ? ` \u00b7 ${p.label}` : ''}`
+      ? `condition bin ${p.index}${p.label ? ` \u00b7 ${conditionBinText(p.label)}` : ''}`
       : `window ${p.index} \u00b7 ${windowTimes({ index: p.index, start_s: p.start_s, end_s: p.end_s })}`,
     sublabel: [
       // A window's own label (the experiment log's, a segment's state level) first.
