@@ -28,6 +28,7 @@
  * Prints the figures and PASS/MISS against the targets (on the medians); a benchmark reports, it does not fail.
  */
 import { spawn } from 'node:child_process';
+import { availableParallelism } from 'node:os';
 import { existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -43,6 +44,15 @@ import { manyFilesCampaign } from './manyFiles.ts';
 import { sourceStamp } from '../bin/stamp.js';
 
 const ROOT = resolve(fileURLToPath(new URL('..', import.meta.url)));
+/**
+ * The process's CPU seconds over all its threads (user + system, /usr/bin/time) and what they imply: with every core
+ * busy all the time the run could not be shorter than CPU seconds / cores.
+ */
+function cpuFloor(cpu: number[]): string {
+  const cores = availableParallelism();
+  return `CPU over all threads ${spread(cpu)} s: on ${cores} core${cores === 1 ? '' : 's'} no shorter than ${fmt(median(cpu) / cores, 2)} s even with every core busy throughout`;
+}
+
 const TARGET = { ratio: 2, samplesPerSecond: 3e6, peakRss_MB: 300, manyWindowsFigures_s: 60, netcdfSamplesPerSecond: 5e6, outputCost: 0.05, budgetCost: 0.1 };
 /**
  * The demo's figure stage before the default became one multi-panel figure per plane (commit 56dd1c3: 532 images,
@@ -244,7 +254,7 @@ async function main() {
       const m = JSON.parse(readFileSync(join(runDir, 'manifest.json'), 'utf8')) as {
         samples: { total: { read: number } }; timings_s: Record<string, number>; peakRss_bytes: number;
       };
-      pipes.push({ seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, timings: m.timings_s });
+      pipes.push({ seconds: r.seconds, read: m.samples.total.read, peakRss_MB: m.peakRss_bytes / 2 ** 20, timeRss_MB: r.maxRss_MB, cpu_s: r.cpu_s, timings: m.timings_s });
       nl.push((await newlinePass(d)).seconds);
       nlLoop.push((await newlinePass(d, true)).seconds);
       console.log(`  run ${k + 1}: whole job ${fmt(r.seconds, 3)} s, newline pass ${fmt(nl[k], 3)} s (JavaScript byte loop ${fmt(nlLoop[k], 3)} s)`);
@@ -276,7 +286,7 @@ async function main() {
 
   // 4. Files without ray structure: every row its own angles, almost every sample in the plane; one whole-record
   // window (memory must not grow with the samples) and 10-minute windows.
-  const focusRuns: { name: string; secs: number[]; rss: number[]; read: number }[] = [];
+  const focusRuns: { name: string; secs: number[]; rss: number[]; cpu: number[]; read: number }[] = [];
   // The budget's cost on these data (every sample its own ray): whole-record runs with and without it, alternately.
   const focusBudget: { on: number[]; off: number[]; onCpu: number[]; offCpu: number[] } = { on: [], off: [], onCpu: [], offCpu: [] };
   // The NetCDF outputs' cost there (the field file is written when the run's only window ends, at the last sample).
@@ -286,13 +296,14 @@ async function main() {
     console.log(`4. without ray structure (${f.dir}, ${fmt(f.bytes / 2 ** 20, 1)} MiB): whole job, ${runs} runs per case`);
     for (const [name, campaign] of [['one whole-record window', f.record], ['10-minute windows', f.tenMinutes]] as const) {
       const doc = parse(readFileSync(campaign, 'utf8')) as { name: string; output: { dir: string } };
-      const r0 = { name, secs: [] as number[], rss: [] as number[], read: 0 };
+      const r0 = { name, secs: [] as number[], rss: [] as number[], cpu: [] as number[], read: 0 };
       for (let k = 0; k < runs; k++) {
         rmSync(join(doc.output.dir, doc.name), { recursive: true, force: true });
         const r = await runChild(process.execPath, [join(ROOT, 'bin', 'wakeplane.js'), 'run', campaign, '--quiet', '--no-images', '--cores', '1'], true);
         if (r.code !== 0) { console.log(`  ${name}: FAILED exit ${r.code}: ${r.stderr.slice(-400)}`); break; }
         const m = JSON.parse(readFileSync(join(doc.output.dir, doc.name, 'manifest.json'), 'utf8')) as { samples: { total: { read: number } }; peakRss_bytes: number };
         r0.secs.push(r.seconds);
+        if (r.cpu_s !== undefined) r0.cpu.push(r.cpu_s);
         r0.rss.push(Math.max(m.peakRss_bytes / 2 ** 20, r.maxRss_MB ?? 0));
         r0.read = m.samples.total.read;
         console.log(`  ${name}, run ${k + 1}: ${fmt(r.seconds, 3)} s, peak ${fmt(r0.rss[k], 0)} MB`);
@@ -374,6 +385,8 @@ async function main() {
     const rss = Math.max(...pipes.map((p) => Math.max(p.peakRss_MB, p.timeRss_MB ?? 0)));
     out(`pipeline (${entry})`);
     out(`  whole job              ${spread(secs)} s wall   ${fmt(rate / 1e6)} M samples/s [${fmt(rows / Math.max(...secs) / 1e6)} - ${fmt(rows / Math.min(...secs) / 1e6)}]   read ${pipes[0].read.toLocaleString('en')}`);
+    const csvCpu = pipes.flatMap((p) => (p.cpu_s === undefined ? [] : [p.cpu_s]));
+    if (csvCpu.length) out(`  ${cpuFloor(csvCpu)}`);
     const keys = Object.keys(pipes[0].timings);
     out(`  stages (s, median)     ${keys.map((k) => `${k} ${fmt(median(pipes.map((p) => p.timings[k] ?? 0)), 2)}`).join(', ')}`);
     out(`  ratio to newline pass  ${spread(ratios, 2)} (pair by pair; to the JavaScript byte loop ${spread(pipes.map((p, k) => p.seconds / nlLoop[k]), 2)})`);
@@ -395,6 +408,8 @@ async function main() {
     if (ncPipes.length) {
       const ns = ncPipes.map((p) => p.seconds), ncRate = rows / median(ns);
       out(`whole job from NetCDF-4  ${spread(ns)} s wall   ${fmt(ncRate / 1e6)} M samples/s   (CSV ${fmt(rate / 1e6)} M samples/s; ${fmt((variants!.netcdfBytes) / 2 ** 20, 1)} MiB of NetCDF-4, read ${ncPipes[0].read.toLocaleString('en')})`);
+      const ncCpu = ncPipes.flatMap((p) => (p.cpu_s === undefined ? [] : [p.cpu_s]));
+      if (ncCpu.length) out(`  ${cpuFloor(ncCpu)}`);
       out(`  stages (s, median)     ${Object.keys(ncPipes[0].timings).map((k) => `${k} ${fmt(median(ncPipes.map((p) => p.timings[k] ?? 0)), 2)}`).join(', ')}`);
       const costs = pipes.map((p, k) => p.seconds / csvOnly[k].seconds - 1);
       const cost = median(costs);
@@ -420,6 +435,7 @@ async function main() {
       if (!f.secs.length) continue;
       const rate = f.read / median(f.secs);
       out(`  ${f.name.padEnd(24)} ${spread(f.secs)} s wall   ${fmt(rate / 1e6)} M samples/s   peak ${fmt(Math.max(...f.rss), 0)} MB   ${verdict(rate >= TARGET.samplesPerSecond)} (>= 3e6/s), ${verdict(Math.max(...f.rss) <= TARGET.peakRss_MB)} (<= ${TARGET.peakRss_MB} MB)`);
+      if (f.cpu.length) out(`  ${''.padEnd(24)} ${cpuFloor(f.cpu)}`);
     }
     if (focusBudget.on.length) {
       const wall = focusBudget.on.map((s, k) => 100 * (s / focusBudget.off[k] - 1));
