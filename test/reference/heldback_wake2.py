@@ -42,10 +42,10 @@ expected.json, per plane and window:
   rotor disk, v_i the area mean of u over segment i of the disk, here by a dense quadrature (a 1-m lattice
   over the disk) of the exact u, for N = 2..10 (the run states its N), on the rotor axis (0, H) and on the true
   wake centre (yc, zc);
-- the momentum deficit M = integral over the plane of u (u_inf - u) dA (midpoint rule on the same 30-m cells' exact
-  cell means of u and u_inf: a perfect retrieval's value), its derivative dM/de when u_inf is scaled by (1 + e) (to
-  account for the run's inflow error), and the ratio M / ((pi/8) Ct D^2 U^2) (the thrust balance of Bastankhah &
-  Porte-Agel 2014, eq. 2-5 [from memory]; Ct from the curve at U);
+- the momentum deficit M = integral over the plane of u (u_inf - u) dA of the exact field: with the true u_inf, and,
+  so that the run's own fitted inflow law u_ref (z / z_ref)^a can be put in (the test does), I(a) = integral u z^a dA
+  on a grid of a (0.20 .. 0.36 by 0.005) and J = integral u^2 dA, all on a 1-m lattice (M = u_ref z_ref^-a I(a) - J);
+  the ratio M / ((pi/8) Ct D^2 U^2) (the thrust balance of Bastankhah & Porte-Agel 2014, eq. 2-5 [from memory]);
 - per yaw-offset bin (width 10 deg) and plane: the mean, sample standard deviation and Student-t 95 % half-width
   t_{0.975, n-1} sd / sqrt(n) (scipy.stats.t.ppf) of the truth centres yc, and the deflection of Jimenez, Crespo &
   Migoya (2010, Wind Energy 13, 559-572 [from memory]): xi0 = 0.5 cos^2(g) sin(g) Ct, xi(x) = xi0 / (1 + beta x/D)^2,
@@ -225,16 +225,18 @@ def rews(x, g, U, cy, cz, N):
 
 views = []
 sub = (np.arange(10) - 4.5) * 3.0
+# The plane on a 1-m lattice, for the momentum integrals against any power law u_ref (z / z_ref)^a:
+# M = u_ref z_ref^-a I(a) - J with I(a) = integral u z^a dA and J = integral u^2 dA (midpoint rule on 1 m^2).
+LY, LZ = np.meshgrid(np.arange(YR[0] + 0.5, YR[1], 1.0), np.arange(ZR[0] + 0.5, ZR[1], 1.0))
+ALPHAS = np.round(np.arange(0.20, 0.3601, 0.005), 3)
 for w, (a, b, g, U) in enumerate(WIN):
     for pid, x in PLANES.items():
         ycs = np.arange(YR[0] + CELL / 2, YR[1], CELL)
         zcs = np.arange(ZR[0] + CELL / 2, ZR[1], CELL)
         YY, ZZ = np.meshgrid(ycs, zcs)
         d = np.mean([shape(x, YY + p, ZZ + q, g, U) for p in sub for q in sub], axis=0)
-        uc = np.mean([uv(x, YY + p, ZZ + q, g, U)[0] for p in sub for q in sub], axis=0)
-        ui = np.mean([u_inf(ZZ + q, U) for p in sub for q in sub], axis=0)
-        M = float(np.sum(uc * (ui - uc)) * CELL * CELL)
-        dM = float(np.sum(uc * ui) * CELL * CELL)  # d/de of sum u (u_inf (1 + e) - u) at e = 0
+        ul = uv(x, LY, LZ, g, U)[0]
+        M = float(np.sum(ul * (u_inf(LZ, U) - ul)))  # 1-m lattice, true inflow
         p, cov = curve_fit(gauss, (YY.ravel(), ZZ.ravel()), d.ravel(), p0=(0.3, 0.0, H, 60.0, 60.0))
         s = s_of(x)
         ct = ct_of(U)
@@ -244,8 +246,9 @@ for w, (a, b, g, U) in enumerate(WIN):
             "fit": {"amplitude": p[0], "yc_m": p[1], "zc_m": p[2], "sigma_y_m": p[3], "sigma_z_m": p[4]},
             "rews_axis": {str(N): rews(x, g, U, 0.0, H, N) for N in range(2, 11)},
             "rews_centre": {str(N): rews(x, g, U, yc_of(x, g), H + DZC, N) for N in range(2, 11)},
-            "cell_y_m": ycs.tolist(), "cell_z_m": zcs.tolist(), "cell_u_ms": uc.ravel().tolist(),
-            "momentum_m4s2": M, "momentum_dM_de": dM, "momentum_ratio": M / (math.pi / 8 * ct * D * D * U * U),
+            "momentum_I": [float(np.sum(ul.sum(axis=1) * LZ[:, 0] ** a)) for a in ALPHAS],
+            "momentum_J": float(np.sum(ul ** 2)),
+            "momentum_m4s2": M, "momentum_ratio": M / (math.pi / 8 * ct * D * D * U * U),
         })
 
 # Steering bins of the truth centres (the starved window has no ok row and is left out).
@@ -275,5 +278,5 @@ cts = np.round(np.arange(0.10, 0.901, 0.01), 2)
 jim = {pid: {str(gm): [jimenez(x, gm, c) for c in cts] for gm in (-18, 0, 18)} for pid, x in PLANES.items()}
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump({"wd_deg": WD, "hub_m": H, "D_m": D, "alpha": ALPHA, "veer_deg_per_100m": VEER, "ct_curve": CT_CURVE,
-               "rows_written": written, "junk_rows": junk_rows, "views": views, "bins": bins, "jimenez_ct_grid": cts.tolist(), "jimenez_m": jim},
+               "rows_written": written, "momentum_alphas": ALPHAS.tolist(), "junk_rows": junk_rows, "views": views, "bins": bins, "jimenez_ct_grid": cts.tolist(), "jimenez_m": jim},
               fh, indent=1)
