@@ -36,7 +36,8 @@ let dir = '';
 let e: Expected;
 let rows: Record<string, string>[];
 let steering: Record<string, string>[];
-let fits: { steering: { ct: number } };
+let fits: { steering: { ct: number }; topHat: { k: number; kSource: string } };
+let downstream: Record<string, string>[];
 let manifest: Awaited<ReturnType<typeof runCampaign>>['manifest'];
 
 describe.skipIf(!py.python)(`held-back wake analysis 2 (wind from 200 deg, shear and veer, Ct curve, +-18 deg yaw)${py.python ? '' : ` (skipped: ${py.why})`}`, () => {
@@ -50,6 +51,7 @@ describe.skipIf(!py.python)(`held-back wake analysis 2 (wind from 200 deg, shear
     manifest = run.manifest;
     rows = readCsv(join(run.runDir, 'wake', 'wake_table.csv'));
     steering = readCsv(join(run.runDir, 'wake', 'steering.csv'));
+    downstream = readCsv(join(run.runDir, 'wake', 'downstream.csv'));
     fits = JSON.parse(readFileSync(join(run.runDir, 'wake', 'model_fits.json'), 'utf8'));
   }, 60_000);
   afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
@@ -135,6 +137,33 @@ describe.skipIf(!py.python)(`held-back wake analysis 2 (wind from 200 deg, shear
       // slab of 24 m along a wake that changes along x, veer) 27,000 (8 %). Common practice, not derived.
       expect(Math.abs(n('momentum_deficit_m4s2') / m - 1), `${r.plane} w${r.window}: ${n('momentum_deficit_m4s2')} vs ${m.toFixed(0)}`).toBeLessThan(0.12);
     }
+  });
+
+  it('downstream models at each plane\'s own Ct (the windows pooled there), and the top-hat k as scipy fits it', () => {
+    // The pooled windows at each plane are the 0-deg ones (8.1 and 10.3 m/s: Ct 0.776 and 0.601 from the curve), so
+    // the plane's Ct (the ct column) is not the campaign-level Ct at the median hub speed of all ok rows (~0.73).
+    expect(downstream).toHaveLength(2);
+    const k = fits.topHat.k;
+    for (const d of downstream) {
+      const n = (c: string) => Number(d[c]);
+      const ct = n('ct');
+      // Bastankhah & Porte-Agel (2014, eq. 23 [from memory]) amplitude 1 - sqrt(1 - Ct / (8 (sigma/D)^2)) at the
+      // row's model width; Jensen (1983) / Katic et al. (1986) top-hat deficit (1 - sqrt(1 - Ct)) / (1 + 2 k x/D)^2.
+      // Tolerance 5e-4: the csv writes 4 decimals of ct, sigma and the results (derivatives below 1).
+      const amp = 1 - Math.sqrt(1 - ct / (8 * n('model_sigma_D') ** 2));
+      expect(Math.abs(n('model_amplitude') - amp), `${d.plane} model_amplitude at its Ct ${ct}`).toBeLessThan(5e-4);
+      const top = (1 - Math.sqrt(1 - ct)) / (1 + 2 * k * n('x_D')) ** 2;
+      expect(Math.abs(n('model_tophat_deficit') - top), `${d.plane} model_tophat_deficit at its Ct ${ct}`).toBeLessThan(5e-4);
+    }
+    // k: least squares of the top-hat deficit through the planes' centreline deficits, each at its plane's Ct, by
+    // scipy.optimize.curve_fit (2 planes, 1 parameter). Tolerance 1e-3 on k (the csv's 4 decimals of the inputs).
+    expect(fits.topHat.kSource).toBe('fit');
+    const args = JSON.stringify(downstream.map((d) => [Number(d.x_D), Number(d.centre_deficit), Number(d.ct)]));
+    const code = 'import json,sys,numpy as np\nfrom scipy.optimize import curve_fit\nd=np.array(json.loads(sys.argv[1]))\n' +
+      'f=lambda X,k: (1-np.sqrt(1-X[1]))/(1+2*k*X[0])**2\nprint(curve_fit(f,(d[:,0],d[:,2]),d[:,1],p0=[0.05])[0][0])';
+    const r = spawnSync(py.python!, ['-c', code, args], { encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    expect(Math.abs(k - Number(r.stdout)), `k ${k} vs scipy ${r.stdout}`).toBeLessThan(1e-3);
   });
 
   it('steering bins: Student-t intervals, deflection sign and the Jimenez et al. (2010) model at the run\'s Ct', () => {
