@@ -132,10 +132,10 @@ export const downstreamTable: Table = {
     col('hub_deficit', 'one', dec(4), 'mean deficit at hub height on the axis'),
     col('momentum_ratio', 'one', dec(4), 'mean momentum deficit over the thrust expected from Ct'),
     col('hub_speed', 'ms', dec(3), 'mean inflow speed at hub height'),
-    col('ct', 'one', dec(4), 'thrust coefficient at that speed'),
+    col('ct', 'one', dec(4), 'mean thrust coefficient of the windows pooled (each at its hub speed); the model columns use it'),
     col('model_sigma', 'D', dec(4), 'width of the fitted Gaussian wake model σ/D = k* x/D + ε (Bastankhah & Porté-Agel 2014, from memory)'),
-    col('model_amplitude', 'one', dec(4), 'deficit amplitude of that model, 1 - sqrt(1 - Ct/(8 (σ/D)²)) (Bastankhah & Porté-Agel 2014)'),
-    col('model_tophat_deficit', 'one', dec(4), 'deficit of the top-hat wake model (1 - sqrt(1 - Ct)) / (1 + 2 k x/D)² (Jensen 1983; Katić, Højstrup & Jensen 1986)'),
+    col('model_amplitude', 'one', dec(4), 'deficit amplitude of that model, 1 - sqrt(1 - Ct/(8 (σ/D)²)) at this row\'s ct (Bastankhah & Porté-Agel 2014)'),
+    col('model_tophat_deficit', 'one', dec(4), 'deficit of the top-hat wake model (1 - sqrt(1 - Ct)) / (1 + 2 k x/D)² at this row\'s ct (Jensen 1983; Katić, Højstrup & Jensen 1986)'),
     col('model_tophat_radius', 'D', dec(4), 'radius of the top-hat wake, 1/2 + k x/D'),
   ],
 };
