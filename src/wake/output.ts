@@ -66,7 +66,7 @@ export function wakeTableCsv(a: WakeAnalysis): string {
 }
 
 export function steeringRows(a: WakeAnalysis): Cell[][] {
-  return a.steering.bins.map((b) => [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
+  return a.steering.bins.map((b) => [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.ct, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
 }
 
 export function steeringCsv(a: WakeAnalysis): string {
