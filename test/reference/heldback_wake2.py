@@ -27,8 +27,12 @@ flagged row with a reason, not a number.
 Turbine series ("data/kestrel4.csv"): one row every 4 s at 1.7 s past, ISO times with a -03:00 offset; yaw_deg = WD +
 offset (exact to 0.01 deg), power_kw 1800.
 
+A horizontal plane "hub" at z = 95 m (hub height), x from 260 to 920 m (2 to ~7 D), y in [-300, 300] m, cells of
+30 m, slab 20 m thick: at that height the deficit across y is a Gaussian centred on yc(x), the lateral track's truth.
+
 Lidar: three scanners at rotor-frame (x, y) = (-420, -880), (-380, 910), (-640, -40) m, 3 m up; every row a point
-drawn uniformly in one plane's slab (own azimuth, elevation and range) at random times, 8 rows per second each;
+drawn uniformly in one cross plane's slab (own azimuth, elevation and range) at random times, 8 rows per second each,
+and 4 more per second in the horizontal plane's slab (z = 95 +- 9 m);
 radial velocity = wind along the beam (positive away) + N(0, 0.08) m/s; CNR uniform in [-18, -8] dB. Scanner "ridge"
 writes ISO times with a +05:30 offset (the others Unix seconds). Every scanner adds 5 % junk rows at CNR [-34, -29] dB
 with radial velocities uniform in [-20, 20] m/s (a noise population at a CNR level of its own).
@@ -77,6 +81,7 @@ dE, dN = -math.sin(math.radians(WD)), -math.cos(math.radians(WD))  # downstream 
 lE, lN = -dN, dE  # left looking downstream
 PLANES = {"p335": 3.35 * D, "p580": 5.8 * D}
 YR, ZR = (-390.0, 390.0), (5.0, 275.0)
+HX, HY, HZ = (260.0, 920.0), (-300.0, 300.0), 95.0  # horizontal plane at hub height, 2 D to ~7 D
 CELL = 30.0
 T0 = 1801234567.25
 WIN = []
@@ -148,10 +153,19 @@ for inst, (xi, yi) in INSTR.items():
         n = rng.poisson(rate * (b - a))
         t = np.sort(rng.uniform(a, b, n))
         which = rng.integers(0, len(PLANES), n)
+        # Besides, 4 rows per second each in the horizontal plane's slab (the same rows of the file, in time order).
+        nh = rng.poisson(rate / 2 * (b - a))
+        t = np.concatenate([t, rng.uniform(a, b, nh)])
+        which = np.concatenate([which, np.full(nh, -1)])
+        order = np.argsort(t)
+        t, which = t[order], which[order]
         for tk, wk in zip(t, which):
-            pid = list(PLANES)[wk]
-            x = PLANES[pid] + rng.uniform(-12, 12)
-            y, z = rng.uniform(*YR), rng.uniform(*ZR)
+            if wk < 0:
+                x, y, z = rng.uniform(*HX), rng.uniform(*HY), HZ + rng.uniform(-9, 9)
+            else:
+                pid = list(PLANES)[wk]
+                x = PLANES[pid] + rng.uniform(-12, 12)
+                y, z = rng.uniform(*YR), rng.uniform(*ZR)
             pe, pn = site(x, y)
             v = np.array([pe, pn, z]) - o
             r = float(np.linalg.norm(v))
@@ -191,7 +205,9 @@ campaign = {
     "instruments": [{"id": i, "position_m": [*map(float, site(*p)), 3.0], "kind": "pulsed", "files": [f"data/{i}.csv"]}
                     for i, p in INSTR.items()],
     "planes": [{"id": pid, "orientation": "cross", "x_m": x, "y": {"min": YR[0], "max": YR[1]}, "z": {"min": ZR[0], "max": ZR[1]},
-                "cell_m": [CELL, CELL], "thickness_m": 24} for pid, x in PLANES.items()],
+                "cell_m": [CELL, CELL], "thickness_m": 24} for pid, x in PLANES.items()]
+              + [{"id": "hub", "orientation": "horizontal", "z_m": HZ, "y": {"min": HY[0], "max": HY[1]},
+                  "xRange": {"min": HX[0], "max": HX[1]}, "cell_m": [CELL, CELL], "thickness_m": 20}],
     "windows": {"kind": "list", "file": "data/log.csv"},
     "windDirection": {"kind": "fixed", "deg": WD},
     "inflow": {"kind": "plane", "law": "power"},
@@ -278,5 +294,5 @@ cts = np.round(np.arange(0.10, 0.901, 0.01), 2)
 jim = {pid: {str(gm): [jimenez(x, gm, c) for c in cts] for gm in (-18, 0, 18)} for pid, x in PLANES.items()}
 with open(os.path.join(out, "expected.json"), "w") as fh:
     json.dump({"wd_deg": WD, "hub_m": H, "D_m": D, "alpha": ALPHA, "veer_deg_per_100m": VEER, "ct_curve": CT_CURVE,
-               "rows_written": written, "momentum_alphas": ALPHAS.tolist(), "junk_rows": junk_rows, "views": views, "bins": bins, "jimenez_ct_grid": cts.tolist(), "jimenez_m": jim},
+               "rows_written": written, "yc0_m": YC0, "yc_per_deg_m": 2.4, "horizontal_x_m": list(HX), "momentum_alphas": ALPHAS.tolist(), "junk_rows": junk_rows, "views": views, "bins": bins, "jimenez_ct_grid": cts.tolist(), "jimenez_m": jim},
               fh, indent=1)
