@@ -69,7 +69,7 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
   const k2 = (o.sigmas ?? 3) ** 2;
   const rows = f.orientation === 'cross' ? g.nz : 1;
   for (let iz = 0; iz < rows; iz++) {
-    const vals: number[] = [];
+    const vals: number[] = [], hts: number[] = [];
     const lim = f.orientation === 'cross' ? iz + 1 : g.nz;
     for (let jz = iz; jz < lim; jz++) {
       const zc = f.orientation === 'cross' ? g.z0 + jz * g.dz : f.z_m;
@@ -82,10 +82,16 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
         if (e && f.orientation === 'cross' && ((y - e.yc) / e.sy) ** 2 + ((zc - e.zc) / e.sz) ** 2 < k2) continue;
         if (e && f.orientation === 'horizontal' && Math.abs(y - e.yc) < Math.sqrt(k2) * e.sy) continue;
         vals.push(v);
+        const ze = f.orientation === 'cross' ? f.zEff?.[iy + jz * g.ny] : NaN;
+        if (Number.isFinite(ze)) hts.push(ze!);
       }
     }
     if (vals.length >= o.minCellsPerRow) {
-      z.push(f.orientation === 'cross' ? g.z0 + iz * g.dz : f.z_m);
+      // A cross plane's row at the median height of its cells' samples (FieldResult.zEff), the heights at which the
+      // deficit compares u with the law (deficit.ts): near the ground under strong shear a row's samples can sit a
+      // few metres below its centre (17 m in a 5-35 m row), and a law fitted at the centres then misses the lower
+      // rows by several per cent. The cell centre when no sample height is known.
+      z.push(f.orientation === 'cross' ? (hts.length > 0 ? median(hts) : g.z0 + iz * g.dz) : f.z_m);
       u.push(o.upperQuantile === undefined ? median(vals) : quantile(vals, o.upperQuantile));
       c.push(vals.length);
     }
