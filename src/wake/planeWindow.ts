@@ -73,7 +73,7 @@ function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse |
   if (c.inflow.kind === 'series') {
     if (c.inflowSeries) {
       const [series, a, b] = pooled(c.inflowSeries, f);
-      return inflowFromSeries(series, a, b, H, 'power');
+      return inflowFromSeries(series, a, b, H, 'power', f.direction_deg);
     }
     const p = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
     return { ...p, note: 'inflow series not loaded' };
