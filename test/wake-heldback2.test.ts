@@ -2,11 +2,14 @@
  * A reviewer's second held-back wake case, written without our simulator (numpy and scipy alone:
  * test/reference/heldback_wake2.py): one turbine (D = 130 m, hub 95 m) with the wind from 200 deg, strong shear
  * (power law, alpha 0.28) and veer (6 deg per 100 m), a thrust-coefficient curve against hub speed, cross planes at
- * 3.35 D and 5.8 D, yaw offsets -18, 0, +18 deg at six hub speeds, a seventh window with nearly silent scanners, ISO
- * times with +05:30 and -03:00 offsets, and 5 % junk rows at a CNR level of their own. The references: the script's
- * truths, scipy.optimize.curve_fit of the 2-D Gaussian on the exact cell means, the segment-method REWS
- * (IEC 61400-12-1:2017) on a dense lattice of the exact field, the momentum deficit of the exact cell means, Student-t
- * quantiles (scipy.stats.t.ppf) and the Jimenez et al. (2010) deflection by scipy.integrate.quad.
+ * 3.35 D and 5.8 D and a horizontal plane at hub height crossing both, yaw offsets -18, 0, +18 deg at six hub speeds,
+ * a seventh window with nearly silent scanners, ISO times with +05:30 and -03:00 offsets, and 5 % junk rows at a CNR
+ * level of their own. The references: the script's truths, scipy.optimize.curve_fit of the 2-D Gaussian on the exact
+ * cell means, the segment-method REWS (IEC 61400-12-1:2017) on a dense lattice of the exact field, the momentum
+ * integral of the exact field on a 1-m lattice, Student-t quantiles (scipy.stats.t.ppf), the Jimenez et al. (2010)
+ * deflection by scipy.integrate.quad, the Bastankhah & Porte-Agel (2014) and Jensen / Katic top-hat formulas, and
+ * scipy's curve_fit of the top-hat k. Two fast checks without python: the momentum balance of an exact model wake with
+ * a hole in its core, and an inflow series with veer (projection on the window direction).
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';

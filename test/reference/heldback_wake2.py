@@ -53,8 +53,10 @@ expected.json, per plane and window:
 - per yaw-offset bin (width 10 deg) and plane: the mean, sample standard deviation and Student-t 95 % half-width
   t_{0.975, n-1} sd / sqrt(n) (scipy.stats.t.ppf) of the truth centres yc, and the deflection of Jimenez, Crespo &
   Migoya (2010, Wind Energy 13, 559-572 [from memory]): xi0 = 0.5 cos^2(g) sin(g) Ct, xi(x) = xi0 / (1 + beta x/D)^2,
-  delta(x) = integral_0^x tan xi dx (scipy.integrate.quad), beta = 0.1, with Ct given by the run's campaign-level
-  value (the curve at the median hub speed of the ok rows, README), which the test passes back in.
+  delta(x) = integral_0^x tan xi dx (scipy.integrate.quad), beta = 0.1, tabulated for Ct 0.10 .. 0.90 by 0.01 so the
+  test can take each bin's Ct (the mean of its windows' Ct, README);
+- the number of junk rows written and the truth of the lateral centre (yc0_m, yc_per_deg_m) for the horizontal
+  plane's track.
 """
 import json
 import math
