@@ -24,6 +24,9 @@ speeds 7.4, 8.1, 8.8, 9.6, 10.3, 11.0 m/s (so the curve gives six different Ct),
 in which the scanners were nearly silent (0.03 rows per second each): too few cells for any analysis, which must be a
 flagged row with a reason, not a number.
 
+Condition bins by yaw offset (edges -25, -9, 9, 25 deg): each bin pools two windows of different hub speeds (the
+third, 0 deg, also the starved window).
+
 Turbine series ("data/kestrel4.csv"): one row every 4 s at 1.7 s past, ISO times with a -03:00 offset; yaw_deg = WD +
 offset (exact to 0.01 deg), power_kw 1800.
 
@@ -214,6 +217,7 @@ campaign = {
     "windDirection": {"kind": "fixed", "deg": WD},
     "inflow": {"kind": "plane", "law": "power"},
     "wake": {"yawBin_deg": 10},
+    "conditions": {"bins": [{"variable": "yaw_offset_deg", "edges": [-25, -9, 9, 25]}]},
     "output": {"dir": "out", "images": False, "netcdf": False},
 }
 with open(os.path.join(out, "campaign.yaml"), "w") as fh:
