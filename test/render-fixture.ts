@@ -181,7 +181,7 @@ export function fixtureAnalysis(rows: WakePlaneWindow[]): WakeAnalysis {
     steering: {
       bins: gammas.map((g) => ({
         planeId: 'P5D', x_m: 600, x_D: 5, gammaCentre_deg: g, gammaLo_deg: g - 2.5, gammaHi_deg: g + 2.5, gammaMean_deg: g + 0.4, n: 6,
-        yc_m: 0.0128 * 120 * g + 3, sd_m: 6, ci95_m: 5, yc_D: (0.0128 * 120 * g + 3) / 120, deflection_m: 0.0128 * 120 * g, deflectionCi95_m: 7, jimenez_m: 0.02 * 120 * g, bastankhah_m: 0.0128 * 120 * g,
+        yc_m: 0.0128 * 120 * g + 3, sd_m: 6, ci95_m: 5, yc_D: (0.0128 * 120 * g + 3) / 120, deflection_m: 0.0128 * 120 * g, deflectionCi95_m: 7, ct: 0.8, jimenez_m: 0.02 * 120 * g, bastankhah_m: 0.0128 * 120 * g,
       })),
       curves: [{ planeId: 'P5D', x_D: 5, gamma_deg: [-25, -15, -5, 5, 15, 25], jimenez_m: [-25, -15, -5, 5, 15, 25].map((g) => 0.02 * 120 * g), bastankhah_m: [-25, -15, -5, 5, 15, 25].map((g) => 0.0128 * 120 * g) }],
       ct: 0.8, turbulenceIntensity: 0.1, note: '',

@@ -87,7 +87,7 @@ describe('Gaussian model (Bastankhah & Porte-Agel 2014 [formula from memory]; va
       const y = (i - 160) * h, z = (j - 160) * h;
       u[i + j * n] = U * (1 - C * Math.exp(-(y * y + z * z) / (2 * s * s)));
     }
-    const m = momentumDeficit(u, uInf, h, h), t = thrustMomentum(ct, d0, U);
+    const m = momentumDeficit(u, uInf, h, h).m4s2, t = thrustMomentum(ct, d0, U);
     expect(Math.abs(m / t - 1)).toBeLessThan(1e-6);
   });
 });

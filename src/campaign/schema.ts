@@ -432,7 +432,7 @@ export const campaignSchema = z
       .union([
         z.object({ kind: z.literal('plane'), law: z.enum(['power', 'log']).default('power') }).strict().describe('fit the undisturbed cells of each plane'),
         z.object({ kind: z.literal('fixed'), speed_ms: finite().positive(), height_m: finite().positive(), law: z.enum(['power', 'log']).default('power'), alpha: finite().default(0.2), z0_m: finite().positive().default(0.03) }).strict(),
-        seriesFile.extend({ kind: z.literal('series') }).describe('reference series with columns time, height_m, speed_ms, direction_deg'),
+        seriesFile.extend({ kind: z.literal('series') }).describe('reference series with columns time, height_m, speed_ms, direction_deg; the speed of each row is projected on the window direction (speed cos(direction - window direction)) before the per-height means and a power-law fit'),
         profileInflowSchema,
       ])
       .default({ kind: 'plane', law: 'power' })

@@ -66,6 +66,8 @@ interface BinState {
   members: [number, number][];
   /** The members' state levels (segment windows; NaN for other kinds). */
   levels: number[];
+  /** The members' hub-height inflow speeds, m/s (NaN when unknown). */
+  speeds: number[];
   sin: number;
   cos: number;
 }
@@ -160,7 +162,7 @@ export class Ensembles {
   }
 
   /** Add a finished window's kept-sample statistics to its bin. */
-  add(window: number, w: { start_s: number; end_s: number; direction_deg: number; def?: { level: number } }, stats: CellStats, values: number[]): number {
+  add(window: number, w: { start_s: number; end_s: number; direction_deg: number; def?: { level: number } }, stats: CellStats, values: number[], hubSpeed_ms = NaN): number {
     const bin = this.binOf(values);
     if (bin < 0) {
       this.outside.push({ window, values: Object.fromEntries(this.specs.map((b, k) => [b.variable, values[k]])) });
@@ -168,16 +170,36 @@ export class Ensembles {
     }
     let st = this.state.get(bin);
     if (!st) {
-      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], levels: [], sin: 0, cos: 0 };
+      st = { stats: emptyCellStats(this.keyCount, this.instrumentCount), members: [], levels: [], speeds: [], sin: 0, cos: 0 };
       this.state.set(bin, st);
     }
     mergeCellStats(st.stats, stats);
     st.members.push([w.start_s, w.end_s]);
     st.levels.push(w.def?.level ?? NaN);
+    st.speeds.push(hubSpeed_ms);
     const D = (w.direction_deg * Math.PI) / 180;
     if (Number.isFinite(D)) { st.sin += Math.sin(D); st.cos += Math.cos(D); }
     pushTo(this.windowsOf, bin, window);
     return bin;
+  }
+
+  /**
+   * Bins whose windows' hub speeds spread by more than 10 % (max / min - 1; common practice, not derived): pooling
+   * merges the windows' samples, so a cell's u mixes flows of different speed in proportion to its samples from each
+   * window, which distorts the ensemble's wake (its fit, centre and deficits). One warning per such bin.
+   */
+  speedWarnings(): string[] {
+    const out: string[] = [];
+    for (const [bin, st] of [...this.state].sort((a, b) => a[0] - b[0])) {
+      const v = st.speeds.filter((x) => Number.isFinite(x) && x > 0);
+      if (v.length < 2) continue;
+      const lo = Math.min(...v), hi = Math.max(...v);
+      if (hi / lo - 1 <= 0.1) continue;
+      out.push(`condition bin ${bin} (${this.label(bin)}) pools windows whose hub speeds range from ${lo.toFixed(1)} to ${hi.toFixed(1)} m/s: `
+        + `a cell's u mixes them in proportion to its samples from each window, which distorts the ensemble's wake (fit, centre, deficits); `
+        + `bin by hub_speed_ms as well, or use narrower bins`);
+    }
+    return out;
   }
 
   /** Every bin with its windows (empty bins included, so none is dropped silently). */

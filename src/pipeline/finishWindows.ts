@@ -140,7 +140,8 @@ export class WindowFinisher {
     const rows = await this.handleFields(fields, ordinal, isoTime(w.start_s));
     if (this.ensembles.enabled) {
       const values = this.ensembles.values(w, rows);
-      record.bin = this.ensembles.add(ordinal, w, stats, values);
+      const hub = rows.map((r) => r.inflow.hubSpeed_ms).filter((x) => Number.isFinite(x)).sort((a, b) => a - b);
+      record.bin = this.ensembles.add(ordinal, w, stats, values, hub.length ? hub[(hub.length - 1) >> 1] : NaN);
       this.geometry?.assignBin(record.bin, w);
       record.conditions = Object.fromEntries(this.ensembles.specs.map((b, k) => [b.variable, values[k]]));
     }

@@ -28,6 +28,7 @@ import { buildWindowPlan } from '../windows/build.ts';
 import { loadConditionSeries } from './ensembles.ts';
 import { campaignInputs, checkTarget, findPartials, type FolderKind } from './outputFolder.ts';
 import { pushTo } from '../math/group.ts';
+import { planeOverlapWarnings } from '../campaign/planeOverlap.ts';
 
 export interface PreflightOptions {
   /** Output root (absolute). */
@@ -185,6 +186,7 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
       errors.push(...found.errors);
       warnings.push(...found.warnings);
     }
+    warnings.push(...planeOverlapWarnings(c.planes));
     if (!stateTurbine(c).series) {
       warnings.push('no turbine series (turbine.series with yaw_deg): the yaw offset of each window is unknown, so wake/steering.csv has no rows');
     }

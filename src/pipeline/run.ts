@@ -357,6 +357,7 @@ export async function runCampaign(c: Campaign, opts: RunOptions = {}): Promise<R
     }
     await primed.close(); // streams of the pre-pass the ingest did not take (other paths, shards)
     await finisher.end(manifest, notices);
+    warnings.push(...finisher.ensembles.speedWarnings());
     // Stages that look at every window (the power gain) read the plan.
     if (built) stageCtx.shared.windowPlan = built.plan;
     outputs.push(...finisher.outputs);

@@ -70,7 +70,7 @@ export function summariseWake(rowsIn: WakePlaneWindow[], campaign: Campaign, inp
     : `yawed-wake model uses k* = 0.38 I + 0.004 = ${kStar.toFixed(4)} (I = ${ti})`);
   const steering = binSteering(rows, { rotorDiameter_m: D, binWidth_deg: campaign.wake.yawBin_deg, ct, turbulenceIntensity: ti, kStar, jimenezBeta: o.jimenezBeta });
   if (campaign.inflow.kind === 'series' && !inputs.inflowSeries) notes.push('inflow series requested but not loaded: rows flagged no_inflow');
-  if (inflow.kind === 'series') notes.push('series inflow fitted with a power law');
+  if (inflow.kind === 'series') notes.push('series inflow: each row\'s speed projected on the window direction, then fitted with a power law');
   notes.push(`thresholds: no wake below ${o.minDeficit} deficit, fit needs ${o.minCells} valid cells (common practice)`);
   const flags = new Map<string, number>();
   for (const r of rows) flags.set(r.flag, (flags.get(r.flag) ?? 0) + 1);

@@ -8,6 +8,8 @@
  * 1983; Katic et al. 1986) is given beside it, its decay constant k fitted to the planes' mean centreline deficits
  * where they allow (wakeModels.fitTopHatK), else derived from the ambient turbulence intensity, k = 0.4 I
  * (Pena, Rethore & van der Laan 2016 [from memory]), unless given explicitly.
+ * A plane's model values (its residual's model amplitude, the top-hat fit) use that plane's Ct, the mean over the
+ * windows pooled there; the curves over x/D use the campaign-level Ct (analyse.ts).
  */
 import type { DownstreamPoint, DownstreamResult, GaussianModelFit, ModelCurve, WakePlaneWindow } from './types.ts';
 import { stat, studentTQuantile } from './stats.ts';
@@ -77,7 +79,7 @@ export function fitGaussianModel(pts: DownstreamPoint[], ct: number, ctSource: '
   const t = studentTQuantile(0.975, dof);
   const residuals = use.map((p) => {
     const fitted = gaussianSigma_D(p.x_D, kStar, eps);
-    return { planeId: p.planeId, x_D: p.x_D, sigma_D: p.sigma_D.mean, fitted_D: fitted, residual_D: p.sigma_D.mean - fitted, amplitude: p.amplitude.mean, modelAmplitude: gaussianAmplitude(fitted, ct) };
+    return { planeId: p.planeId, x_D: p.x_D, sigma_D: p.sigma_D.mean, fitted_D: fitted, residual_D: p.sigma_D.mean - fitted, amplitude: p.amplitude.mean, modelAmplitude: gaussianAmplitude(fitted, Number.isFinite(p.ct) ? p.ct : ct) };
   });
   const rmse = Math.sqrt(residuals.reduce((a, r) => a + r.residual_D ** 2, 0) / n);
   return {
@@ -99,7 +101,8 @@ function axis(pts: DownstreamPoint[]): number[] {
 /** The top-hat model of the run: k fitted to the planes, else from the turbulence intensity, unless given. */
 export function topHatModel(points: DownstreamPoint[], ct: number, turbulenceIntensity: number, given?: number): TopHatModel {
   const kDefault = topHatKFromTurbulence(turbulenceIntensity);
-  const fit = fitTopHatK(points.map((p) => p.x_D), points.map((p) => p.centreDeficit.mean), ct, studentTQuantile);
+  // Each plane's deficit against the model at that plane's Ct (the mean over the windows pooled there).
+  const fit = fitTopHatK(points.map((p) => p.x_D), points.map((p) => p.centreDeficit.mean), points.map((p) => (Number.isFinite(p.ct) ? p.ct : ct)), studentTQuantile);
   const kSource: TopHatModel['kSource'] = given !== undefined ? 'option' : fit.ok ? 'fit' : 'inflow';
   const k = kSource === 'option' ? given! : kSource === 'fit' ? fit.k : kDefault;
   const kNote = kSource === 'option'

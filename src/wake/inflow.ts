@@ -1,7 +1,8 @@
 /**
  * The undisturbed inflow profile u_inf(z) per plane and window, from one of three sources:
- * - 'series': a reference series (time, height_m, speed_ms, direction_deg), averaged per window and height, then a
- *   law fitted (power law: the series source has no law key);
+ * - 'series': a reference series (time, height_m, speed_ms, direction_deg), each row's speed projected on the
+ *   window's direction (S cos(direction - window direction): the component the rotor-frame u is compared with),
+ *   averaged per window and height, then a law fitted (power law: the series source has no law key);
  * - 'plane': the plane's own cells outside the wake: first pass |y| beyond inflowExclusion_D * D from the rotor
  *   axis (or, when that leaves too few rows, the per-row 80th percentile of all cells), second pass the cells outside
  *   inflowExclusionSigmas of the wake ellipse fitted with the first; per height row the median u of those cells,
@@ -69,7 +70,7 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
   const k2 = (o.sigmas ?? 3) ** 2;
   const rows = f.orientation === 'cross' ? g.nz : 1;
   for (let iz = 0; iz < rows; iz++) {
-    const vals: number[] = [];
+    const vals: number[] = [], hts: number[] = [];
     const lim = f.orientation === 'cross' ? iz + 1 : g.nz;
     for (let jz = iz; jz < lim; jz++) {
       const zc = f.orientation === 'cross' ? g.z0 + jz * g.dz : f.z_m;
@@ -82,10 +83,16 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
         if (e && f.orientation === 'cross' && ((y - e.yc) / e.sy) ** 2 + ((zc - e.zc) / e.sz) ** 2 < k2) continue;
         if (e && f.orientation === 'horizontal' && Math.abs(y - e.yc) < Math.sqrt(k2) * e.sy) continue;
         vals.push(v);
+        const ze = f.orientation === 'cross' ? f.zEff?.[iy + jz * g.ny] : NaN;
+        if (Number.isFinite(ze)) hts.push(ze!);
       }
     }
     if (vals.length >= o.minCellsPerRow) {
-      z.push(f.orientation === 'cross' ? g.z0 + iz * g.dz : f.z_m);
+      // A cross plane's row at the median height of its cells' samples (FieldResult.zEff), the heights at which the
+      // deficit compares u with the law (deficit.ts): near the ground under strong shear a row's samples can sit a
+      // few metres below its centre (17 m in a 5-35 m row), and a law fitted at the centres then misses the lower
+      // rows by several per cent. The cell centre when no sample height is known.
+      z.push(f.orientation === 'cross' ? (hts.length > 0 ? median(hts) : g.z0 + iz * g.dz) : f.z_m);
       u.push(o.upperQuantile === undefined ? median(vals) : quantile(vals, o.upperQuantile));
       c.push(vals.length);
     }
@@ -100,15 +107,18 @@ export function inflowFromPlane(f: FieldResult, o: PlaneInflowOptions): InflowPr
 }
 
 /** From a reference series with values height_m, speed_ms, direction_deg: rows in [start, end). */
-export function inflowFromSeries(s: Series, start_s: number, end_s: number, hubHeight_m: number, law: 'power' | 'log' = 'power'): InflowProfile {
+export function inflowFromSeries(s: Series, start_s: number, end_s: number, hubHeight_m: number, law: 'power' | 'log' = 'power', windowDirection_deg = NaN): InflowProfile {
   const [lo, hi] = rowsInWindow(s, start_s, end_s);
-  const h = s.values.height_m, v = s.values.speed_ms;
+  const h = s.values.height_m, v = s.values.speed_ms, d = s.values.direction_deg;
+  // With the window's direction, each row's speed is projected on it: the deficit compares the rotor-frame u (the
+  // wind's component along that direction) with u_inf, so under veer or a turned wind the reference is S cos(delta).
+  const project = Number.isFinite(windowDirection_deg) && d !== undefined;
   const groups = new Map<number, { s: number; n: number }>();
   for (let i = lo; i < hi; i++) {
     if (!Number.isFinite(h[i]) || !Number.isFinite(v[i])) continue;
     const key = Math.round(h[i] * 100) / 100;
     const gr = groups.get(key) ?? { s: 0, n: 0 };
-    gr.s += v[i]; gr.n++;
+    gr.s += project && Number.isFinite(d![i]) ? v[i] * Math.cos(((d![i] - windowDirection_deg) * Math.PI) / 180) : v[i]; gr.n++;
     groups.set(key, gr);
   }
   const keys = [...groups.keys()].sort((a, b) => a - b);

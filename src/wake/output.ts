@@ -66,7 +66,7 @@ export function wakeTableCsv(a: WakeAnalysis): string {
 }
 
 export function steeringRows(a: WakeAnalysis): Cell[][] {
-  return a.steering.bins.map((b) => [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
+  return a.steering.bins.map((b) => [b.planeId, b.x_m, b.x_D, b.gammaCentre_deg, b.gammaLo_deg, b.gammaHi_deg, b.gammaMean_deg, b.n, b.yc_m, b.sd_m, b.ci95_m, b.yc_D, b.ct, b.jimenez_m, b.bastankhah_m, b.deflection_m, b.deflectionCi95_m]);
 }
 
 export function steeringCsv(a: WakeAnalysis): string {
@@ -78,10 +78,12 @@ export function downstreamCsv(a: WakeAnalysis): string {
   let s = headerLine(L.downstream);
   for (const p of d.points) {
     const ms = gaussianSigma_D(p.x_D, g.kStar, g.eps);
+    // The models at this plane's Ct (the windows pooled here), as the ct column beside them.
+    const pct = Number.isFinite(p.ct) ? p.ct : d.topHat.ct;
     s += rowLine(L.downstream, [p.planeId, p.x_m, p.x_D, p.amplitude.n, p.amplitude.mean, p.amplitude.sd, p.amplitude.ci95, p.sigmaY_m.mean, p.sigmaY_m.sd,
       p.sigmaZ_m.mean, p.sigmaZ_m.sd, p.sigma_D.mean, p.sigma_D.sd, p.sigma_D.ci95, p.yc_m.mean, p.yc_m.sd, p.zc_m.mean, p.zc_m.sd,
       p.centreDeficit.mean, p.hubDeficit.mean, p.momentumRatio.mean, p.hubSpeed_ms, p.ct,
-      ms, gaussianAmplitude(ms, d.topHat.ct), topHatDeficit(p.x_D, d.topHat.ct, d.topHat.k), topHatRadius_D(p.x_D, d.topHat.k)]);
+      ms, gaussianAmplitude(ms, pct), topHatDeficit(p.x_D, pct, d.topHat.k), topHatRadius_D(p.x_D, d.topHat.k)]);
   }
   return s;
 }

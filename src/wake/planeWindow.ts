@@ -16,7 +16,7 @@ import type { CentreEstimate, Gaussian2DFit, InflowProfile, WakeFlag, WakePlaneW
 import type { WakeOptions } from './options.ts';
 import { inflowFixed, inflowFromPlane, inflowFromSeries, type WakeEllipse } from './inflow.ts';
 import { deficitField } from './deficit.ts';
-import { fitGaussian2D } from './gaussian2d.ts';
+import { fitGaussian2D, gaussian2d } from './gaussian2d.ts';
 import { minPowerDiskCentre } from './diskCentre.ts';
 import { deficitCentroid } from './centroid.ts';
 import { rewsOnGrid } from './rews.ts';
@@ -73,7 +73,7 @@ function inflowFor(f: FieldResult, c: PlaneWindowContext, ellipse: WakeEllipse |
   if (c.inflow.kind === 'series') {
     if (c.inflowSeries) {
       const [series, a, b] = pooled(c.inflowSeries, f);
-      return inflowFromSeries(series, a, b, H, 'power');
+      return inflowFromSeries(series, a, b, H, 'power', f.direction_deg);
     }
     const p = inflowFromSeries({ file: '', time: new Float64Array(0), values: {} }, 0, 0, H);
     return { ...p, note: 'inflow series not loaded' };
@@ -194,7 +194,16 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
   const cenRews = cross && cen ? rewsOnGrid(g, f.u, cen.y_m, cen.z_m, R, segments) : { rews_ms: NaN, coverage: NaN, segments };
 
   const { ct } = thrustCoefficientAt(c.thrustCoefficient, inflow.hubSpeed_ms);
-  const mom = cross && inflow.ok ? momentumDeficit(f.u, def.uInf, g.dy, g.dz) : NaN;
+  // Masked cells of a well-fitted wake are filled with the fitted deficit (momentum.ts); the row says how many.
+  const mp = fit && flag === 'ok' ? fit.params : null;
+  const model = mp ? {
+    deficitAt: (k: number) => {
+      const iy = k % g.ny, iz = (k - iy) / g.ny;
+      return gaussian2d([mp.amplitude, mp.yc_m, mp.zc_m, mp.sigmaY_m, mp.sigmaZ_m, ...(o.fitOffset ? [mp.offset] : [])], g.y0 + iy * g.dy, g.z0 + iz * g.dz);
+    },
+  } : undefined;
+  const momentum = cross && inflow.ok ? momentumDeficit(f.u, def.uInf, g.dy, g.dz, model) : null;
+  const mom = momentum ? momentum.m4s2 : NaN;
   const cutY = cen ? cen.y_m : 0, cutZ = cen ? cen.z_m : H;
   const cut = { u: f.u, su: f.su, deficit: def.deficit };
   const row: WakePlaneWindow = {
@@ -229,6 +238,9 @@ export function analysePlaneWindow(f: FieldResult, c: PlaneWindowContext): WakeP
     if (q.zc_m - 2 * q.sigmaZ_m < zMin) out.push('z min');
     if (q.zc_m + 2 * q.sigmaZ_m > zMax) out.push('z max');
     if (out.length) notes.push(`note: the fitted wake (2 sigma) reaches past the plane edge (${out.join(', ')}): the momentum deficit and centroid cover only the part inside`);
+  }
+  if (momentum && momentum.filled > 0) {
+    notes.push(`note: ${momentum.filled} masked cells filled with the fitted Gaussian for the momentum deficit (${(100 * momentum.filledShare).toFixed(1)} % of it)`);
   }
   if (notes.length) row.reason = notes.join('; ');
   return row;

@@ -30,7 +30,7 @@ export function rewsFromProfile(v: (z: number) => number, H: number, R: number, 
 
 export interface GridRews {
   rews_ms: number;
-  /** Fraction of the disk area covered by valid cells. */
+  /** Fraction of the disk area covered by valid cells (0 to 1). */
   coverage: number;
   segments: number;
 }
@@ -56,11 +56,22 @@ export function rewsOnGrid(g: GridSpec, u: Float64Array, cy: number, cz: number,
       sum[k] += v * da; area[k] += da; covered += da;
     }
   }
+  // The share covered: against the disk's area on the same sub-sample lattice (extended past the grid), so a fully
+  // covered disk gives exactly 1; against pi R^2 the lattice's own area error (a few % with coarse cells) gave
+  // shares above 1.
+  let lattice = 0;
+  const jy0 = Math.floor((cy - R - g.y0) / g.dy), jy1 = Math.ceil((cy + R - g.y0) / g.dy);
+  const jz0 = Math.floor((cz - R - g.z0) / g.dz), jz1 = Math.ceil((cz + R - g.z0) / g.dz);
+  for (let iz = jz0; iz <= jz1; iz++) for (let iy = jy0; iy <= jy1; iy++) for (let a = 0; a < sub; a++) for (let b = 0; b < sub; b++) {
+    const y = g.y0 + (iy + (a + 0.5) / sub - 0.5) * g.dy, z = g.z0 + (iz + (b + 0.5) / sub - 0.5) * g.dz;
+    if ((y - cy) ** 2 + (z - cz) ** 2 <= R * R) lattice += da;
+  }
+  const coverage = lattice > 0 ? covered / lattice : 0;
   let s = 0;
   for (let i = 0; i < segments; i++) {
-    if (!(area[i] > 0)) return { rews_ms: NaN, coverage: covered / (Math.PI * R * R), segments };
+    if (!(area[i] > 0)) return { rews_ms: NaN, coverage, segments };
     const za = cz - R + (2 * R * i) / segments, zb = cz - R + (2 * R * (i + 1)) / segments;
     s += (sum[i] / area[i]) ** 3 * segmentArea(za, zb, cz, R);
   }
-  return { rews_ms: Math.cbrt(s / (Math.PI * R * R)), coverage: covered / (Math.PI * R * R), segments };
+  return { rews_ms: Math.cbrt(s / (Math.PI * R * R)), coverage, segments };
 }

@@ -3,7 +3,8 @@
  * [(k - 1/2) w, (k + 1/2) w) degrees, w = campaign.wake.yawBin_deg); per bin the mean lateral centre yc (rotor-frame
  * y, + = left looking downstream), its sample standard deviation, count and 95 % confidence half-width
  * t_{0.975, n-1} sd / sqrt(n) (Student t), beside the deflections of Jimenez et al. (2010) and Bastankhah &
- * Porte-Agel (2016) at the bin's mean gamma (deflection.ts). Only rows whose flag is 'ok' and whose gamma is known
+ * Porte-Agel (2016) at the bin's mean gamma and the bin's Ct, the mean of its windows' (deflection.ts); the curves
+ * over gamma use the campaign-level Ct. Only rows whose flag is 'ok' and whose gamma is known
  * count. Each bin also gives its deflection relative to the plane's gamma = 0 bin (the no-yaw centre).
  */
 import type { SteeringBin, SteeringResult, WakePlaneWindow } from './types.ts';
@@ -42,12 +43,16 @@ export function binSteering(rows: WakePlaneWindow[], o: SteeringOptions): Steeri
     const r0 = rs[0];
     const gs = stat(rs.map((r) => r.yawOffset_deg));
     const ys = stat(rs.map((r) => r.centre.y_m));
+    // The models at the bin's own Ct: with a thrust curve, bins whose windows ran at other speeds differ.
+    const cs = stat(rs.map((r) => r.ct));
+    const ct = Number.isFinite(cs.mean) ? cs.mean : o.ct;
     bins.push({
       planeId: r0.planeId, x_m: r0.x_m, x_D: r0.x_m / D,
       gammaCentre_deg: k * w, gammaLo_deg: (k - 0.5) * w, gammaHi_deg: (k + 0.5) * w, gammaMean_deg: gs.mean,
       n: ys.n, yc_m: ys.mean, sd_m: ys.sd, ci95_m: ys.ci95, yc_D: ys.mean / D, deflection_m: NaN, deflectionCi95_m: NaN,
-      jimenez_m: jimenezDeflection(r0.x_m, D, gs.mean, o.ct, o.jimenezBeta),
-      bastankhah_m: bastankhahDeflection(r0.x_m, D, gs.mean, o.ct, o.turbulenceIntensity, o.kStar),
+      ct,
+      jimenez_m: jimenezDeflection(r0.x_m, D, gs.mean, ct, o.jimenezBeta),
+      bastankhah_m: bastankhahDeflection(r0.x_m, D, gs.mean, ct, o.turbulenceIntensity, o.kStar),
     });
   }
   for (const b of bins) {

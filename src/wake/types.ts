@@ -309,7 +309,9 @@ export interface SteeringBin {
    */
   deflection_m: number;
   deflectionCi95_m: number;
-  /** Model deflections at the bin's mean gamma, metres (Jimenez 2010; Bastankhah & Porte-Agel 2016). */
+  /** Thrust coefficient of the bin: the mean of its windows' Ct (each at its hub speed; the campaign's when none). */
+  ct: number;
+  /** Model deflections at the bin's mean gamma and its Ct, metres (Jimenez 2010; Bastankhah & Porte-Agel 2016). */
   jimenez_m: number;
   bastankhah_m: number;
 }

@@ -68,33 +68,38 @@ export interface TopHatFit {
 
 /**
  * Least-squares fit of the top-hat decay constant k to measured centreline deficits d_i at distances x_i/D:
- * minimises sum (d_i - a / (1 + 2 k x_i)^2)^2 with a = 1 - sqrt(1 - Ct), by Gauss-Newton from the median of the
- * per-point solutions k_i = (sqrt(a / d_i) - 1) / (2 x_i). One point gives k exactly (no interval). Deficits at or
- * above a (no decay) or not positive cannot be matched and are left out.
+ * minimises sum (d_i - a_i / (1 + 2 k x_i)^2)^2 with a_i = 1 - sqrt(1 - Ct_i) (one Ct, or each plane's own), by Gauss-Newton from the median of the
+ * per-point solutions k_i = (sqrt(a_i / d_i) - 1) / (2 x_i). One point gives k exactly (no interval). Deficits at or
+ * above a_i (no decay) or not positive cannot be matched and are left out.
  */
-export function fitTopHatK(x_D: number[], deficit: number[], ct: number, tQuantile: (q: number, dof: number) => number): TopHatFit {
-  const a = 1 - Math.sqrt(1 - ct);
-  const xs: number[] = [], ds: number[] = [];
+export function fitTopHatK(x_D: number[], deficit: number[], ctIn: number | number[], tQuantile: (q: number, dof: number) => number): TopHatFit {
+  // One Ct for all planes, or each plane's own (the windows pooled there); a NaN entry takes the first finite one.
+  const cts = Array.isArray(ctIn) ? ctIn : x_D.map(() => ctIn);
+  const ctAll = cts.find((c) => Number.isFinite(c)) ?? NaN;
+  const aOf = (i: number) => 1 - Math.sqrt(1 - (Number.isFinite(cts[i]) ? cts[i] : ctAll));
+  const xs: number[] = [], ds: number[] = [], as: number[] = [];
   for (let i = 0; i < x_D.length; i++) {
-    if (Number.isFinite(x_D[i]) && x_D[i] > 0 && deficit[i] > 0 && deficit[i] < a) {
+    if (Number.isFinite(x_D[i]) && x_D[i] > 0 && deficit[i] > 0 && deficit[i] < aOf(i)) {
       xs.push(x_D[i]);
       ds.push(deficit[i]);
+      as.push(aOf(i));
     }
   }
+  const a = as.length ? Math.max(...as) : 1 - Math.sqrt(1 - ctAll);
   const n = xs.length;
   const left = x_D.filter((x, i) => Number.isFinite(x) && Number.isFinite(deficit[i])).length - n;
   const leftNote = left > 0 ? `${left} plane${left === 1 ? '' : 's'} left out (centreline deficit not between 0 and 1 \u2212 \u221a(1 \u2212 Ct) = ${a.toFixed(3)})` : '';
   const none: TopHatFit = { k: NaN, se: NaN, ci95: [NaN, NaN], n, rmse: NaN, ok: false, note: '' };
   if (!(a > 0)) return { ...none, note: 'thrust coefficient not usable' };
   if (n === 0) return { ...none, note: 'no plane with a centreline deficit between 0 and 1 - sqrt(1 - Ct)' };
-  const ks = xs.map((x, i) => (Math.sqrt(a / ds[i]) - 1) / (2 * x)).sort((p, q) => p - q);
+  const ks = xs.map((x, i) => (Math.sqrt(as[i] / ds[i]) - 1) / (2 * x)).sort((p, q) => p - q);
   let k = ks[Math.floor((n - 1) / 2)];
   for (let it = 0; it < 50 && n > 1; it++) {
     let jj = 0, jr = 0;
     for (let i = 0; i < n; i++) {
       const q = 1 + 2 * k * xs[i];
-      const r = ds[i] - a / (q * q);
-      const j = (-4 * a * xs[i]) / (q * q * q);
+      const r = ds[i] - as[i] / (q * q);
+      const j = (-4 * as[i] * xs[i]) / (q * q * q);
       jj += j * j;
       jr += j * r;
     }
@@ -108,8 +113,8 @@ export function fitTopHatK(x_D: number[], deficit: number[], ct: number, tQuanti
   let ssr = 0, jj = 0;
   for (let i = 0; i < n; i++) {
     const q = 1 + 2 * k * xs[i];
-    ssr += (ds[i] - a / (q * q)) ** 2;
-    jj += ((4 * a * xs[i]) / (q * q * q)) ** 2;
+    ssr += (ds[i] - as[i] / (q * q)) ** 2;
+    jj += ((4 * as[i] * xs[i]) / (q * q * q)) ** 2;
   }
   const rmse = Math.sqrt(ssr / n);
   const join = (...p: string[]) => p.filter(Boolean).join('; ');
