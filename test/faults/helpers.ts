@@ -94,7 +94,10 @@ export async function runCli(args: string[], cwd?: string): Promise<CliResult> {
   }
   const code = Number(process.exitCode ?? 0);
   process.exitCode = oldCode;
-  return { code, stdout: out.join(''), stderr: err.join('') };
+  // Progress lines of a slow moment ("wakeplane: [00:00:10] checking inputs", cli/progress.ts, every 10 s on a pipe)
+  // depend on the machine's load, not on the command: left out, so that messages are compared exactly.
+  const stderr = err.join('').replace(/^wakeplane: \[\d{2}:\d{2}:\d{2}\] [^\n]*\n/gm, '');
+  return { code, stdout: out.join(''), stderr };
 }
 
 /** Every field table of a run folder, keyed by plane and window start: its text. */
