@@ -353,56 +353,89 @@ export function robustStats(h: VrHistograms, s: number, k: number, out: Histogra
 /** robustStats through the slot's bins in ascending order (sorted()): any slot; robustStats uses it when some bins are in the table. */
 export function sortedStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
   const { bins, counts } = h.sorted(s);
-  return binStats(counts, 0, bins, h.width(s), k, out);
+  // Counts are integers below 2^32: as Uint32Array, so binStats sees one array type (one compiled form).
+  return binStats(Uint32Array.from(counts), 0, bins, h.width(s), k, out);
+}
+
+/**
+ * Scratch of binStats, reused across slots and windows: the non-empty entries of the slot being summarised, in
+ * ascending order, as bin index and count (grown when a slot has more; never shrunk).
+ */
+let nzBin = new Int32Array(1024);
+let nzCount = new Float64Array(1024);
+
+/** Room for m non-empty entries in the scratch. */
+function nzEnsure(m: number): void {
+  if (m <= nzBin.length) return;
+  const cap = Math.max(m, 2 * nzBin.length);
+  nzBin = new Int32Array(cap);
+  nzCount = new Float64Array(cap);
 }
 
 /**
  * The statistics of robustStats over ascending bins: entry j has count counts[j] (empty entries skipped) and bin
  * index bins[j], or base + j without `bins` (a dense array); w the bin width, m/s.
+ *
+ * A dense array is mostly empty (a few dozen samples of a window spread over a thousand bins or more): its
+ * non-empty entries are first gathered, in ascending order, into a scratch list (empty entries skipped four at a
+ * time), and every step below walks that list, in the same order and with the same arithmetic as a walk over the
+ * whole array would, so the results are the same bit for bit.
  */
-function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1): HistogramStats {
+function binStats(counts: Uint32Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1): HistogramStats {
   out.n = out.kept = out.rejected = 0;
   out.median = out.sigma = NaN;
   out.rejectedSum = out.rejectedSumSq = 0;
   out.width = w;
   const len = counts.length;
-  const centre = (j: number) => ((bins ? bins[j] : base + j) + 0.5) * w;
-  let n = total;
-  if (n < 0) {
-    n = 0;
-    for (let j = 0; j < len; j++) n += counts[j];
+  nzEnsure(len);
+  const B = nzBin, C = nzCount;
+  let m = 0, sum = 0;
+  if (bins) {
+    for (let j = 0; j < len; j++) {
+      const c = counts[j];
+      if (c === 0) continue;
+      B[m] = bins[j]; C[m++] = c; sum += c;
+    }
+  } else {
+    let j = 0;
+    for (; j + 4 <= len; j += 4) {
+      if ((counts[j] | counts[j + 1] | counts[j + 2] | counts[j + 3]) === 0) continue;
+      for (let i = j; i < j + 4; i++) {
+        const c = counts[i];
+        if (c === 0) continue;
+        B[m] = base + i; C[m++] = c; sum += c;
+      }
+    }
+    for (; j < len; j++) {
+      const c = counts[j];
+      if (c === 0) continue;
+      B[m] = base + j; C[m++] = c; sum += c;
+    }
   }
+  const n = total < 0 ? sum : total;
   out.n = n;
   if (n === 0) return out;
   // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
   const r1 = Math.floor((n - 1) / 2), r2 = Math.floor(n / 2);
   let cum = 0, j1 = -1, j2 = -1;
-  for (let j = 0; j < len && j2 < 0; j++) {
-    const c = counts[j];
-    if (c === 0) continue;
+  for (let j = 0; j < m && j2 < 0; j++) {
+    const c = C[j];
     if (j1 < 0 && cum + c > r1) j1 = j;
     if (cum + c > r2) j2 = j;
     cum += c;
   }
-  const med = (centre(j1) + centre(j2)) / 2;
+  const med = ((B[j1] + 0.5) * w + (B[j2] + 0.5) * w) / 2;
   out.median = med;
-  // MAD: the same two ranks among |centre - med|, walking outward from the median over non-empty entries (distances
-  // ascend). Entries up to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or the next non-empty one).
+  // MAD: the same two ranks among |centre - med|, walking outward from the median over the entries (distances
+  // ascend). Entries up to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or the next one).
   let l = j1, r = j1 + 1;
-  while (r < len && counts[r] === 0) r++;
   let rank = 0, m1 = NaN, m2 = NaN;
   while (Number.isNaN(m2)) {
-    const dl = l >= 0 ? med - centre(l) : Infinity;
-    const dr = r < len ? centre(r) - med : Infinity;
+    const dl = l >= 0 ? med - (B[l] + 0.5) * w : Infinity;
+    const dr = r < m ? (B[r] + 0.5) * w - med : Infinity;
     let j: number, dist: number;
-    if (dl <= dr) {
-      j = l; dist = dl;
-      do l--; while (l >= 0 && counts[l] === 0);
-    } else {
-      j = r; dist = dr;
-      do r++; while (r < len && counts[r] === 0);
-    }
-    const c = counts[j];
+    if (dl <= dr) { j = l; dist = dl; l--; } else { j = r; dist = dr; r++; }
+    const c = C[j];
     if (Number.isNaN(m1) && rank + c > r1) m1 = dist;
     if (rank + c > r2) m2 = dist;
     rank += c;
@@ -411,9 +444,9 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
   let sigma: number;
   if (madv > 0) sigma = MAD_TO_SIGMA * madv;
   else {
-    let sum = 0;
-    for (let j = 0; j < len; j++) if (counts[j] !== 0) sum += counts[j] * Math.abs(centre(j) - med);
-    sigma = (MEANAD_TO_SIGMA * sum) / n;
+    let s = 0;
+    for (let j = 0; j < m; j++) s += C[j] * Math.abs((B[j] + 0.5) * w - med);
+    sigma = (MEANAD_TO_SIGMA * s) / n;
   }
   out.sigma = sigma;
   const limit = k * sigma;
@@ -422,23 +455,18 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
     // Centres ascend with j, so |x - med| > limit holds on a prefix (x below med) and a suffix (x above) of the
     // entries: only those are walked, in ascending order as a walk over all entries would add them (same sums,
     // bit for bit). Below med |x - med| is med - x exactly (IEEE subtraction is sign-symmetric).
-    // The two boundaries by bisection on those monotone conditions (a few centres computed, not one per entry).
-    let a = 0, b = len;
-    while (a < b) { const m = (a + b) >> 1; if (med - centre(m) > limit) a = m + 1; else b = m; }
-    const lowEnd = a; // entries [0, lowEnd) lie below med - limit
-    b = len;
-    while (a < b) { const m = (a + b) >> 1; if (centre(m) - med > limit) b = m; else a = m + 1; }
-    const top = a; // entries [top, len) lie above med + limit
-    for (let j = 0; j < lowEnd; j++) {
-      const c = counts[j];
-      if (c === 0) continue;
-      const x = centre(j);
+    let j = 0;
+    for (; j < m; j++) {
+      const x = (B[j] + 0.5) * w;
+      if (!(med - x > limit)) break;
+      const c = C[j];
       rej += c; rs += c * x; rss += c * x * x;
     }
-    for (let i = top; i < len; i++) {
-      const c = counts[i];
-      if (c === 0) continue;
-      const x = centre(i);
+    let top = m;
+    while (top > j && (B[top - 1] + 0.5) * w - med > limit) top--;
+    for (let i = top; i < m; i++) {
+      const c = C[i];
+      const x = (B[i] + 0.5) * w;
       rej += c; rs += c * x; rss += c * x * x;
     }
   }
