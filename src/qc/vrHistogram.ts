@@ -46,6 +46,8 @@ const MAX_LEVEL = 20;
 const EMPTY = new Uint32Array(0);
 /** Marks a recycled dense array whose range is not placed yet (no bin index can be this low). */
 const NEW_RANGE = -(2 ** 31);
+/** lo/hi of a slot with no bin in its dense array. */
+const NO_LO = 2 ** 31 - 1, NO_HI = -(2 ** 31);
 
 /** Bins of a new dense range (8 m/s at level 0: the bulk of a cell's radial velocities over a window). */
 const DENSE_START = 1024;
@@ -70,6 +72,13 @@ export class VrHistograms {
   distinct = new Int32Array(0);
   /** Samples per slot (limits the dense width for slots with few samples). */
   total = new Float64Array(0);
+  /**
+   * Bounds of the non-empty bins in each slot's dense array (bin indices; lo <= every such bin <= hi; NO_LO, NO_HI
+   * when there is none), so the statistics walk that span rather than the whole array. Kept wherever a dense count
+   * becomes non-zero; they may be wider than the span (after bins moved to the table), never narrower.
+   */
+  lo = new Int32Array(0);
+  hi = new Int32Array(0);
 
   /** Make room for slots [0, n). */
   ensure(n: number): void {
@@ -80,6 +89,8 @@ export class VrHistograms {
       b.set(a);
       return b;
     };
+    const old = this.level.length;
+    this.lo = grow(this.lo).fill(NO_LO, old); this.hi = grow(this.hi).fill(NO_HI, old);
     this.base = grow(this.base); this.tused = grow(this.tused); this.level = grow(this.level);
     this.distinct = grow(this.distinct); this.total = grow(this.total);
     while (this.dense.length < cap) { this.dense.push(EMPTY); this.tkeys.push(null); this.tcounts.push(null); }
@@ -99,6 +110,7 @@ export class VrHistograms {
       }
       this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
       this.level[s] = 0; this.distinct[s] = 0; this.total[s] = 0;
+      this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     }
   }
 
@@ -109,7 +121,11 @@ export class VrHistograms {
     const d = this.dense[s];
     const j = bin - this.base[s];
     if (j >= 0 && j < d.length) {
-      if (d[j]++ === 0 && ++this.distinct[s] > H.MAX_DISTINCT) this.coarsen(s, 1);
+      if (d[j]++ === 0) {
+        if (bin < this.lo[s]) this.lo[s] = bin;
+        if (bin > this.hi[s]) this.hi[s] = bin;
+        if (++this.distinct[s] > H.MAX_DISTINCT) this.coarsen(s, 1);
+      }
       return;
     }
     this.addBin(s, bin, 1);
@@ -146,6 +162,8 @@ export class VrHistograms {
     }
     const was = d[j];
     d[j] += count;
+    if (bin < this.lo[s]) this.lo[s] = bin;
+    if (bin > this.hi[s]) this.hi[s] = bin;
     if (was === 0) this.newBin(s); // after the count is in: a level change rebuilds from the stored counts
   }
 
@@ -158,7 +176,11 @@ export class VrHistograms {
     for (let i = 0; i < k.length; i++) {
       if (c[i] === 0) continue;
       const j = k[i] - b0;
-      if (j >= 0 && j < d.length) { d[j] += c[i]; c[i] = 0; moved++; }
+      if (j >= 0 && j < d.length) {
+        d[j] += c[i]; c[i] = 0; moved++;
+        if (k[i] < this.lo[s]) this.lo[s] = k[i];
+        if (k[i] > this.hi[s]) this.hi[s] = k[i];
+      }
     }
     if (moved) {
       this.tused[s] -= moved;
@@ -208,6 +230,7 @@ export class VrHistograms {
     this.dense[s] = new Uint32Array(limit);
     this.base[s] = med - (limit >> 1);
     this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0; this.distinct[s] = 0;
+    this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     for (let i = 0; i < bins.length; i++) this.addBin(s, bins[i], counts[i]);
     this.rebuilding = outer;
   }
@@ -237,6 +260,7 @@ export class VrHistograms {
     this.rebuilding = true;
     this.dense[s] = EMPTY; this.base[s] = 0; this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
     this.distinct[s] = 0;
+    this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     this.level[s] += shift;
     for (let j = 0; j < d.length; j++) if (d[j] !== 0) this.addBin(s, (b0 + j) >> shift, d[j]);
     if (k && c) for (let i = 0; i < k.length; i++) if (c[i] !== 0) this.addBin(s, k[i] >> shift, c[i]);
@@ -282,6 +306,7 @@ export class VrHistograms {
       this.base[s] = base;
       this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
       this.distinct[s] = m;
+      this.lo[s] = bins[0]; this.hi[s] = bins[m - 1];
       return;
     }
     for (let i = 0; i < m; i++) this.addBin(s, bins[i] >> (this.level[s] - level), counts[i]);
@@ -346,7 +371,12 @@ export function robustStats(h: VrHistograms, s: number, k: number, out: Histogra
   // A slot whose bins are all in its dense array (the common case) is walked in place: no sorted copy (two arrays
   // per slot and window); the same steps in the same order as over the sorted bins.
   // Every sample of such a slot is in its dense array, so its count is the slot's total (no walk to sum it).
-  if (h.tkeys[s] === null || h.tused[s] === 0) return binStats(h.dense[s], h.base[s], null, h.width(s), k, out, h.total[s]);
+  if (h.tkeys[s] === null || h.tused[s] === 0) {
+    // Only the span [lo, hi] of the dense array can hold counts (clamped: an empty slot has lo > hi).
+    const d = h.dense[s], base = h.base[s];
+    const j0 = Math.max(0, h.lo[s] - base), j1 = Math.min(d.length, h.hi[s] - base + 1);
+    return binStats(d, base, null, h.width(s), k, out, h.total[s], j0, Math.max(j0, j1));
+  }
   return sortedStats(h, s, k, out);
 }
 
@@ -381,23 +411,23 @@ function nzEnsure(m: number): void {
  * time), and every step below walks that list, in the same order and with the same arithmetic as a walk over the
  * whole array would, so the results are the same bit for bit.
  */
-function binStats(counts: Uint32Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1): HistogramStats {
+function binStats(counts: Uint32Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1, from = 0, to = counts.length): HistogramStats {
   out.n = out.kept = out.rejected = 0;
   out.median = out.sigma = NaN;
   out.rejectedSum = out.rejectedSumSq = 0;
   out.width = w;
-  const len = counts.length;
+  const len = to;
   nzEnsure(len);
   const B = nzBin, C = nzCount;
   let m = 0, sum = 0;
   if (bins) {
-    for (let j = 0; j < len; j++) {
+    for (let j = from; j < len; j++) {
       const c = counts[j];
       if (c === 0) continue;
       B[m] = bins[j]; C[m++] = c; sum += c;
     }
   } else {
-    let j = 0;
+    let j = from;
     for (; j + 4 <= len; j += 4) {
       if ((counts[j] | counts[j + 1] | counts[j + 2] | counts[j + 3]) === 0) continue;
       for (let i = j; i < j + 4; i++) {
