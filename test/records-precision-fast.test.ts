@@ -70,3 +70,27 @@ describe('fast number formatting gives the text of the plain conversions', () =>
     }
   });
 });
+
+describe('rowLineSplit (numbers apart from text) writes what rowLine writes', () => {
+  it('on the field table layout with random numbers, NaN, empty and quoted text', async () => {
+    const { tableLayout, rowLine, rowLineSplit } = await import('../src/records/tableText.ts');
+    const { fieldTable } = await import('../src/records/tables/fields.ts');
+    const L = tableLayout(fieldTable, { orientation: 'cross' });
+    const r = mulberry32(9);
+    const textCols = new Set([0, 1, 2, 20, 21, 22]);
+    for (let t = 0; t < 3000; t++) {
+      const nums = new Float64Array(L.columns.length), text: (string | null)[] = new Array(L.columns.length).fill(null);
+      const mixed: (string | number)[] = [];
+      for (let k = 0; k < L.columns.length; k++) {
+        if (textCols.has(k)) {
+          const s = r() < 0.2 ? 'a "quoted", text' : r() < 0.5 ? '' : 'x3D';
+          text[k] = s; mixed.push(s);
+        } else {
+          const v = r() < 0.15 ? NaN : r() < 0.05 ? 0 : (r() - 0.3) * 10 ** (Math.floor(r() * 8) - 4);
+          nums[k] = v; mixed.push(v);
+        }
+      }
+      expect(rowLineSplit(L, text, nums)).toBe(rowLine(L, mixed)); // exact text
+    }
+  });
+});

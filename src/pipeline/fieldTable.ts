@@ -14,7 +14,7 @@ import { isoTime, parseTime } from '../io/time.ts';
 import { BUDGET_COLUMNS, fieldTable } from '../records/tables/fields.ts';
 import { emptyFieldBudget } from '../retrieval/budget.ts';
 import { budgetArrays } from './budgetValues.ts';
-import { headerLine, rowLine, tableLayout, type Cell, type TableLayout } from '../records/tableText.ts';
+import { headerLine, rowLineSplit, tableLayout, type TableLayout } from '../records/tableText.ts';
 import { W_ZERO_ASSUMPTION } from '../retrieval/settings.ts';
 import { MaskReason, maskReasonName, type FieldResult, type WindowInfo } from '../retrieval/types.ts';
 
@@ -40,9 +40,11 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
   const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
   const n = f.grid.ny * f.grid.nz;
   const extra = budgetArrays(f);
-  // One row array for every cell (filled in place: no array per cell); the values in column order.
-  const row: Cell[] = new Array<Cell>(C.secondEff + 1 + extra.length).fill(0);
-  row[C.plane] = f.planeId; row[C.window_start] = ws; row[C.window_end] = we; row[C.direction] = f.direction_deg;
+  // One row for every cell, filled in place (no array per cell), its numbers in a Float64Array (a mixed array would
+  // box each of them) and its text apart; the values in column order.
+  const ncol = C.secondEff + 1 + extra.length;
+  const row = new Float64Array(ncol), text = new Array<string | null>(ncol).fill(null);
+  text[C.plane] = f.planeId; text[C.window_start] = ws; text[C.window_end] = we; row[C.direction] = f.direction_deg;
   const g = f.grid;
   for (let c = 0; c < n; c++) {
     const iy = c % g.ny; // cellCentre, without its pair
@@ -52,10 +54,10 @@ export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
     row[C.u] = f.u[c]; row[C.v] = f.v[c]; row[C.w] = f.w[c]; row[C.su] = f.su[c]; row[C.sv] = f.sv[c]; row[C.sw] = f.sw[c];
     row[C.dopU] = f.dopU[c]; row[C.dopV] = f.dopV[c]; row[C.dopW] = f.dopW[c]; row[C.cond] = f.cond[c];
     row[C.minCrossing] = f.minCrossing_deg[c]; row[C.samples] = f.samples[c]; row[C.instruments] = f.instruments[c];
-    row[C.maskU] = maskReasonName[f.maskU[c]]; row[C.maskV] = maskReasonName[f.maskV[c]]; row[C.maskW] = maskReasonName[f.maskW[c]];
+    text[C.maskU] = maskReasonName[f.maskU[c]]; text[C.maskV] = maskReasonName[f.maskV[c]]; text[C.maskW] = maskReasonName[f.maskW[c]];
     row[C.masked] = masked ? 1 : 0; row[C.yEff] = f.yEff[c]; row[C.secondEff] = f.zEff[c];
     for (let k = 0; k < extra.length; k++) row[C.secondEff + 1 + k] = extra[k][c];
-    parts.push(rowLine(L, row));
+    parts.push(rowLineSplit(L, text, row));
   }
   return parts.join('');
 }
