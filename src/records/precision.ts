@@ -60,8 +60,17 @@ let sigN = 0, sigE = 0;
  * (the scaled value below 10^8 is within 1e-8 of exact, so 1e-6 from a tie decides it) or out of the exactly
  * scaled range: the caller then uses toPrecision.
  */
+/** The bits of a double (roundSignificant reads its binary exponent). */
+const bitsF = new Float64Array(1), bitsI = new Int32Array(bitsF.buffer);
+const HI = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1 ? 1 : 0; // high word index (little-endian: 1)
+
 function roundSignificant(x: number, p: number): boolean {
-  let e = Math.floor(Math.log10(x));
+  // floor(log10 x) from the binary exponent b (2^b <= x < 2^(b+1)): floor(b log10 2) is it or one less (the interval
+  // spans 0.30103 decades), which the range check below corrects; subnormals go the plain way.
+  bitsF[0] = x;
+  const b = ((bitsI[HI] >>> 20) & 0x7ff) - 1023;
+  if (b === -1023) return false;
+  let e = Math.floor(b * 0.30102999566398120);
   let k = p - 1 - e;
   if (k > 22 || k < -22) return false;
   let y = k >= 0 ? x * POW10[k] : x / POW10[-k];
