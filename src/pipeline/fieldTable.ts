@@ -25,6 +25,8 @@ export function fieldTableName(f: FieldResult, ordinal: number): string {
 }
 
 const layouts = { cross: tableLayout(fieldTable, { orientation: 'cross' }), horizontal: tableLayout(fieldTable, { orientation: 'horizontal' }) };
+/** Their header lines, made once. */
+const headers = { cross: headerLine(layouts.cross), horizontal: headerLine(layouts.horizontal) };
 
 /** Positions of the values fieldTableCsv writes (the reader finds each by its header). */
 const C = {
@@ -36,7 +38,7 @@ const C = {
 /** The field table's text. */
 export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
   const L: TableLayout = layouts[f.orientation];
-  const parts: string[] = [headerLine(L)];
+  const parts: string[] = [headers[f.orientation]];
   const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
   const n = f.grid.ny * f.grid.nz;
   const extra = budgetArrays(f);
