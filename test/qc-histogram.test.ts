@@ -47,6 +47,42 @@ describe('statistics walked in the dense array equal those of the sorted bins', 
   });
 });
 
+describe('the span of non-empty dense bins (lo, hi) that the statistics walk', () => {
+  it('holds every non-empty dense bin after reuse, merging, restoring and coarsening: statistics equal a fresh slot\'s', () => {
+    // robustStats walks only [lo, hi] of the dense array: a bound narrower than the occupied bins would drop
+    // samples. Checked against a fresh histogram of the same values, walked through its sorted bins (all of them).
+    const r = mulberry32(83);
+    const values = (t: number): Float64Array => {
+      const n = 1 + Math.floor(r() * (t % 25 === 0 ? 12000 : 400));
+      const c = 20 * r() - 10, sd = t % 9 === 0 ? 0 : 0.02 + 2 * r();
+      const v = new Float64Array(n);
+      for (let i = 0; i < n; i++) v[i] = c + sd * gauss(r) + (t % 4 === 0 && r() < 0.05 ? 100 * r() - 50 : 0);
+      return v;
+    };
+    const h = new VrHistograms();
+    h.ensure(3);
+    for (let t = 0; t < 300; t++) {
+      h.reset(3); // recycled slots, as a run reuses a window's accumulator
+      const a = values(t), b = values(t + 1), all = new Float64Array(a.length + b.length);
+      all.set(a); all.set(b, a.length);
+      for (const x of a) h.add(0, Math.round(x * VR_SCALE));
+      h.mergeSlot(0, histogramOf(b), 0); // slot 0: a, then b merged in
+      for (const x of all) h.add(1, Math.round(x * VR_SCALE)); // slot 1: the same values added one by one
+      const { bins, counts } = histogramOf(all).sorted(0);
+      h.restoreSlot(2, histogramOf(all).level[0], bins, counts); // slot 2: read back from stored bins
+      const fresh = histogramOf(all);
+      for (let s = 0; s < 3; s++) {
+        const d = h.dense[s];
+        for (let j = 0; j < d.length; j++) if (d[j] !== 0) { expect(h.base[s] + j).toBeGreaterThanOrEqual(h.lo[s]); expect(h.base[s] + j).toBeLessThanOrEqual(h.hi[s]); }
+        for (const k of [3.5, 2]) {
+          // identical doubles (toEqual compares with Object.is): the same bins and counts give the same statistics
+          expect(robustStats(h, s, k, emptyHistogramStats())).toEqual(sortedStats(fresh, 0, k, emptyHistogramStats()));
+        }
+      }
+    }
+  });
+});
+
 describe('rejected counts and sums', () => {
   it('equal a walk over every occupied bin in ascending order (the definition), bit for bit', () => {
     // robustStats walks only the entries beyond the limit on either side; this walks every bin of the samples

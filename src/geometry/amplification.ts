@@ -37,7 +37,7 @@ export function normalMatrix(rows: ArrayLike<number>, k: number, weights?: Array
 
 /** Inverse of a symmetric 3x3 matrix by cofactors; NaN-filled when it is singular to working precision. */
 export function invertSym3(N: ArrayLike<number>): Float64Array {
-  const [a, b, c, , d, e, , , f] = [N[0], N[1], N[2], N[3], N[4], N[5], N[6], N[7], N[8]];
+  const a = N[0], b = N[1], c = N[2], d = N[4], e = N[5], f = N[8]; // read directly (no array per call)
   const A = d * f - e * e, B = c * e - b * f, C = b * e - c * d;
   const det = a * A + b * B + c * C;
   const scale = Math.max(Math.abs(a), Math.abs(d), Math.abs(f));

@@ -7,9 +7,15 @@ import { dirname } from 'node:path';
 import { removeOnInterrupt } from './cleanup.ts';
 
 export function writeFileAtomic(path: string, data: string | Uint8Array): void {
-  mkdirSync(dirname(path), { recursive: true });
   const tmp = `${path}.${process.pid}.tmp`;
-  writeFileSync(tmp, data);
+  try {
+    writeFileSync(tmp, data);
+  } catch (e) {
+    // The folder is made only when missing (a run writes hundreds of files into folders that exist).
+    if ((e as NodeJS.ErrnoException).code !== 'ENOENT') throw e;
+    mkdirSync(dirname(path), { recursive: true });
+    writeFileSync(tmp, data);
+  }
   renameSync(tmp, path);
 }
 

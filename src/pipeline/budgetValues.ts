@@ -5,10 +5,18 @@
 import { BUDGET_TERMS, COMPONENTS } from '../retrieval/budget.ts';
 import type { FieldResult } from '../retrieval/types.ts';
 
+/** The NaN columns of a field without a budget, per cell count: made once, shared (callers only read them). */
+const noBudget = new Map<number, Float64Array[]>();
+
+/** The arrays, in column order; without a budget, shared all-NaN arrays that callers must not write into. */
 export function budgetArrays(f: FieldResult): Float64Array[] {
   const b = f.budget;
   const n = f.grid.ny * f.grid.nz;
-  if (!b) return Array.from({ length: COMPONENTS.length * (BUDGET_TERMS.length + 1) + 11 }, () => new Float64Array(n).fill(NaN));
+  if (!b) {
+    let a = noBudget.get(n);
+    if (!a) noBudget.set(n, (a = Array.from({ length: COMPONENTS.length * (BUDGET_TERMS.length + 1) + 11 }, () => new Float64Array(n).fill(NaN))));
+    return a;
+  }
   const t = b.turbulence;
   return [
     ...COMPONENTS.flatMap((k) => [...BUDGET_TERMS.map((term) => b.terms[k][term]), b.combined[k]]),

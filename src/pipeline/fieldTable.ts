@@ -8,13 +8,13 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { PlaneSpec } from '../campaign/types.ts';
 import { InputError } from '../errors.ts';
-import { cellCentre, gridSpecOf } from '../grid/grid.ts';
+import { gridSpecOf } from '../grid/grid.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import { isoTime, parseTime } from '../io/time.ts';
 import { BUDGET_COLUMNS, fieldTable } from '../records/tables/fields.ts';
 import { emptyFieldBudget } from '../retrieval/budget.ts';
 import { budgetArrays } from './budgetValues.ts';
-import { headerLine, rowLine, tableLayout, type TableLayout } from '../records/tableText.ts';
+import { headerLine, rowLineSplit, tableLayout, type TableLayout } from '../records/tableText.ts';
 import { W_ZERO_ASSUMPTION } from '../retrieval/settings.ts';
 import { MaskReason, maskReasonName, type FieldResult, type WindowInfo } from '../retrieval/types.ts';
 
@@ -25,23 +25,41 @@ export function fieldTableName(f: FieldResult, ordinal: number): string {
 }
 
 const layouts = { cross: tableLayout(fieldTable, { orientation: 'cross' }), horizontal: tableLayout(fieldTable, { orientation: 'horizontal' }) };
+/** Their header lines, made once. */
+const headers = { cross: headerLine(layouts.cross), horizontal: headerLine(layouts.horizontal) };
+
+/** Positions of the values fieldTableCsv writes (the reader finds each by its header). */
+const C = {
+  plane: 0, window_start: 1, window_end: 2, y: 3, second: 4, yD: 5, secondD: 6, u: 7, v: 8, w: 9, su: 10, sv: 11, sw: 12,
+  dopU: 13, dopV: 14, dopW: 15, cond: 16, minCrossing: 17, samples: 18, instruments: 19, maskU: 20, maskV: 21, maskW: 22,
+  masked: 23, direction: 24, yEff: 25, secondEff: 26,
+} as const;
 
 /** The field table's text. */
 export function fieldTableCsv(f: FieldResult, diameter_m: number): string {
   const L: TableLayout = layouts[f.orientation];
-  const parts: string[] = [headerLine(L)];
+  const parts: string[] = [headers[f.orientation]];
   const ws = isoTime(f.window.start_s), we = isoTime(f.window.end_s);
   const n = f.grid.ny * f.grid.nz;
   const extra = budgetArrays(f);
+  // One row for every cell, filled in place (no array per cell), its numbers in a Float64Array (a mixed array would
+  // box each of them) and its text apart; the values in column order.
+  const ncol = C.secondEff + 1 + extra.length;
+  const row = new Float64Array(ncol), text = new Array<string | null>(ncol).fill(null);
+  text[C.plane] = f.planeId; text[C.window_start] = ws; text[C.window_end] = we; row[C.direction] = f.direction_deg;
+  const g = f.grid;
   for (let c = 0; c < n; c++) {
-    const [y, z] = cellCentre(f.grid, c);
+    const iy = c % g.ny; // cellCentre, without its pair
+    const y = g.y0 + iy * g.dy, z = g.z0 + ((c - iy) / g.ny) * g.dz;
     const masked = f.maskU[c] !== 0 || f.maskV[c] !== 0 || f.maskW[c] !== 0;
-    parts.push(rowLine(L, [
-      f.planeId, ws, we, y, z, y / diameter_m, z / diameter_m, f.u[c], f.v[c], f.w[c], f.su[c], f.sv[c], f.sw[c],
-      f.dopU[c], f.dopV[c], f.dopW[c], f.cond[c], f.minCrossing_deg[c], f.samples[c], f.instruments[c],
-      maskReasonName[f.maskU[c]], maskReasonName[f.maskV[c]], maskReasonName[f.maskW[c]], masked ? 1 : 0, f.direction_deg, f.yEff[c], f.zEff[c],
-      ...extra.map((a) => a[c]),
-    ]));
+    row[C.y] = y; row[C.second] = z; row[C.yD] = y / diameter_m; row[C.secondD] = z / diameter_m;
+    row[C.u] = f.u[c]; row[C.v] = f.v[c]; row[C.w] = f.w[c]; row[C.su] = f.su[c]; row[C.sv] = f.sv[c]; row[C.sw] = f.sw[c];
+    row[C.dopU] = f.dopU[c]; row[C.dopV] = f.dopV[c]; row[C.dopW] = f.dopW[c]; row[C.cond] = f.cond[c];
+    row[C.minCrossing] = f.minCrossing_deg[c]; row[C.samples] = f.samples[c]; row[C.instruments] = f.instruments[c];
+    text[C.maskU] = maskReasonName[f.maskU[c]]; text[C.maskV] = maskReasonName[f.maskV[c]]; text[C.maskW] = maskReasonName[f.maskW[c]];
+    row[C.masked] = masked ? 1 : 0; row[C.yEff] = f.yEff[c]; row[C.secondEff] = f.zEff[c];
+    for (let k = 0; k < extra.length; k++) row[C.secondEff + 1 + k] = extra[k][c];
+    parts.push(rowLineSplit(L, text, row));
   }
   return parts.join('');
 }
@@ -61,13 +79,6 @@ const MASK_CODE: Record<string, number> = Object.fromEntries(Object.entries(mask
 export function fieldTableColumns(orientation: 'cross' | 'horizontal'): string[] {
   return [...layouts[orientation].headers];
 }
-
-/** Positions of the values fieldTableCsv writes (the reader finds each by its header). */
-const C = {
-  plane: 0, window_start: 1, window_end: 2, y: 3, second: 4, yD: 5, secondD: 6, u: 7, v: 8, w: 9, su: 10, sv: 11, sw: 12,
-  dopU: 13, dopV: 14, dopW: 15, cond: 16, minCrossing: 17, samples: 18, instruments: 19, maskU: 20, maskV: 21, maskW: 22,
-  masked: 23, direction: 24, yEff: 25, secondEff: 26,
-} as const;
 
 /**
  * Reads a field table back into a FieldResult on the plane's grid (values as written, rounded as the dictionary

@@ -46,6 +46,8 @@ const MAX_LEVEL = 20;
 const EMPTY = new Uint32Array(0);
 /** Marks a recycled dense array whose range is not placed yet (no bin index can be this low). */
 const NEW_RANGE = -(2 ** 31);
+/** lo/hi of a slot with no bin in its dense array. */
+const NO_LO = 2 ** 31 - 1, NO_HI = -(2 ** 31);
 
 /** Bins of a new dense range (8 m/s at level 0: the bulk of a cell's radial velocities over a window). */
 const DENSE_START = 1024;
@@ -70,6 +72,13 @@ export class VrHistograms {
   distinct = new Int32Array(0);
   /** Samples per slot (limits the dense width for slots with few samples). */
   total = new Float64Array(0);
+  /**
+   * Bounds of the non-empty bins in each slot's dense array (bin indices; lo <= every such bin <= hi; NO_LO, NO_HI
+   * when there is none), so the statistics walk that span rather than the whole array. Kept wherever a dense count
+   * becomes non-zero; they may be wider than the span (after bins moved to the table), never narrower.
+   */
+  lo = new Int32Array(0);
+  hi = new Int32Array(0);
 
   /** Make room for slots [0, n). */
   ensure(n: number): void {
@@ -80,6 +89,8 @@ export class VrHistograms {
       b.set(a);
       return b;
     };
+    const old = this.level.length;
+    this.lo = grow(this.lo).fill(NO_LO, old); this.hi = grow(this.hi).fill(NO_HI, old);
     this.base = grow(this.base); this.tused = grow(this.tused); this.level = grow(this.level);
     this.distinct = grow(this.distinct); this.total = grow(this.total);
     while (this.dense.length < cap) { this.dense.push(EMPTY); this.tkeys.push(null); this.tcounts.push(null); }
@@ -99,6 +110,7 @@ export class VrHistograms {
       }
       this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
       this.level[s] = 0; this.distinct[s] = 0; this.total[s] = 0;
+      this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     }
   }
 
@@ -109,7 +121,11 @@ export class VrHistograms {
     const d = this.dense[s];
     const j = bin - this.base[s];
     if (j >= 0 && j < d.length) {
-      if (d[j]++ === 0 && ++this.distinct[s] > H.MAX_DISTINCT) this.coarsen(s, 1);
+      if (d[j]++ === 0) {
+        if (bin < this.lo[s]) this.lo[s] = bin;
+        if (bin > this.hi[s]) this.hi[s] = bin;
+        if (++this.distinct[s] > H.MAX_DISTINCT) this.coarsen(s, 1);
+      }
       return;
     }
     this.addBin(s, bin, 1);
@@ -146,6 +162,8 @@ export class VrHistograms {
     }
     const was = d[j];
     d[j] += count;
+    if (bin < this.lo[s]) this.lo[s] = bin;
+    if (bin > this.hi[s]) this.hi[s] = bin;
     if (was === 0) this.newBin(s); // after the count is in: a level change rebuilds from the stored counts
   }
 
@@ -158,7 +176,11 @@ export class VrHistograms {
     for (let i = 0; i < k.length; i++) {
       if (c[i] === 0) continue;
       const j = k[i] - b0;
-      if (j >= 0 && j < d.length) { d[j] += c[i]; c[i] = 0; moved++; }
+      if (j >= 0 && j < d.length) {
+        d[j] += c[i]; c[i] = 0; moved++;
+        if (k[i] < this.lo[s]) this.lo[s] = k[i];
+        if (k[i] > this.hi[s]) this.hi[s] = k[i];
+      }
     }
     if (moved) {
       this.tused[s] -= moved;
@@ -208,6 +230,7 @@ export class VrHistograms {
     this.dense[s] = new Uint32Array(limit);
     this.base[s] = med - (limit >> 1);
     this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0; this.distinct[s] = 0;
+    this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     for (let i = 0; i < bins.length; i++) this.addBin(s, bins[i], counts[i]);
     this.rebuilding = outer;
   }
@@ -237,6 +260,7 @@ export class VrHistograms {
     this.rebuilding = true;
     this.dense[s] = EMPTY; this.base[s] = 0; this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
     this.distinct[s] = 0;
+    this.lo[s] = NO_LO; this.hi[s] = NO_HI;
     this.level[s] += shift;
     for (let j = 0; j < d.length; j++) if (d[j] !== 0) this.addBin(s, (b0 + j) >> shift, d[j]);
     if (k && c) for (let i = 0; i < k.length; i++) if (c[i] !== 0) this.addBin(s, k[i] >> shift, c[i]);
@@ -282,6 +306,7 @@ export class VrHistograms {
       this.base[s] = base;
       this.tkeys[s] = null; this.tcounts[s] = null; this.tused[s] = 0;
       this.distinct[s] = m;
+      this.lo[s] = bins[0]; this.hi[s] = bins[m - 1];
       return;
     }
     for (let i = 0; i < m; i++) this.addBin(s, bins[i] >> (this.level[s] - level), counts[i]);
@@ -346,63 +371,101 @@ export function robustStats(h: VrHistograms, s: number, k: number, out: Histogra
   // A slot whose bins are all in its dense array (the common case) is walked in place: no sorted copy (two arrays
   // per slot and window); the same steps in the same order as over the sorted bins.
   // Every sample of such a slot is in its dense array, so its count is the slot's total (no walk to sum it).
-  if (h.tkeys[s] === null || h.tused[s] === 0) return binStats(h.dense[s], h.base[s], null, h.width(s), k, out, h.total[s]);
+  if (h.tkeys[s] === null || h.tused[s] === 0) {
+    // Only the span [lo, hi] of the dense array can hold counts (clamped: an empty slot has lo > hi).
+    const d = h.dense[s], base = h.base[s];
+    const j0 = Math.max(0, h.lo[s] - base), j1 = Math.min(d.length, h.hi[s] - base + 1);
+    return binStats(d, base, null, h.width(s), k, out, h.total[s], j0, Math.max(j0, j1));
+  }
   return sortedStats(h, s, k, out);
 }
 
 /** robustStats through the slot's bins in ascending order (sorted()): any slot; robustStats uses it when some bins are in the table. */
 export function sortedStats(h: VrHistograms, s: number, k: number, out: HistogramStats): HistogramStats {
   const { bins, counts } = h.sorted(s);
-  return binStats(counts, 0, bins, h.width(s), k, out);
+  // Counts are integers below 2^32: as Uint32Array, so binStats sees one array type (one compiled form).
+  return binStats(Uint32Array.from(counts), 0, bins, h.width(s), k, out);
+}
+
+/**
+ * Scratch of binStats, reused across slots and windows: the non-empty entries of the slot being summarised, in
+ * ascending order, as bin index and count (grown when a slot has more; never shrunk).
+ */
+let nzBin = new Int32Array(1024);
+let nzCount = new Float64Array(1024);
+
+/** Room for m non-empty entries in the scratch. */
+function nzEnsure(m: number): void {
+  if (m <= nzBin.length) return;
+  const cap = Math.max(m, 2 * nzBin.length);
+  nzBin = new Int32Array(cap);
+  nzCount = new Float64Array(cap);
 }
 
 /**
  * The statistics of robustStats over ascending bins: entry j has count counts[j] (empty entries skipped) and bin
  * index bins[j], or base + j without `bins` (a dense array); w the bin width, m/s.
+ *
+ * A dense array is mostly empty (a few dozen samples of a window spread over a thousand bins or more): its
+ * non-empty entries are first gathered, in ascending order, into a scratch list (empty entries skipped four at a
+ * time), and every step below walks that list, in the same order and with the same arithmetic as a walk over the
+ * whole array would, so the results are the same bit for bit.
  */
-function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1): HistogramStats {
+function binStats(counts: Uint32Array, base: number, bins: Int32Array | null, w: number, k: number, out: HistogramStats, total = -1, from = 0, to = counts.length): HistogramStats {
   out.n = out.kept = out.rejected = 0;
   out.median = out.sigma = NaN;
   out.rejectedSum = out.rejectedSumSq = 0;
   out.width = w;
-  const len = counts.length;
-  const centre = (j: number) => ((bins ? bins[j] : base + j) + 0.5) * w;
-  let n = total;
-  if (n < 0) {
-    n = 0;
-    for (let j = 0; j < len; j++) n += counts[j];
+  const len = to;
+  nzEnsure(len);
+  const B = nzBin, C = nzCount;
+  let m = 0, sum = 0;
+  if (bins) {
+    for (let j = from; j < len; j++) {
+      const c = counts[j];
+      if (c === 0) continue;
+      B[m] = bins[j]; C[m++] = c; sum += c;
+    }
+  } else {
+    let j = from;
+    for (; j + 4 <= len; j += 4) {
+      if ((counts[j] | counts[j + 1] | counts[j + 2] | counts[j + 3]) === 0) continue;
+      for (let i = j; i < j + 4; i++) {
+        const c = counts[i];
+        if (c === 0) continue;
+        B[m] = base + i; C[m++] = c; sum += c;
+      }
+    }
+    for (; j < len; j++) {
+      const c = counts[j];
+      if (c === 0) continue;
+      B[m] = base + j; C[m++] = c; sum += c;
+    }
   }
+  const n = total < 0 ? sum : total;
   out.n = n;
   if (n === 0) return out;
   // Median: the values of rank (n-1)/2 and n/2 (0-based; the same for odd n).
   const r1 = Math.floor((n - 1) / 2), r2 = Math.floor(n / 2);
   let cum = 0, j1 = -1, j2 = -1;
-  for (let j = 0; j < len && j2 < 0; j++) {
-    const c = counts[j];
-    if (c === 0) continue;
+  for (let j = 0; j < m && j2 < 0; j++) {
+    const c = C[j];
     if (j1 < 0 && cum + c > r1) j1 = j;
     if (cum + c > r2) j2 = j;
     cum += c;
   }
-  const med = (centre(j1) + centre(j2)) / 2;
+  const med = ((B[j1] + 0.5) * w + (B[j2] + 0.5) * w) / 2;
   out.median = med;
-  // MAD: the same two ranks among |centre - med|, walking outward from the median over non-empty entries (distances
-  // ascend). Entries up to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or the next non-empty one).
+  // MAD: the same two ranks among |centre - med|, walking outward from the median over the entries (distances
+  // ascend). Entries up to j1 have centres <= med, from j1 + 1 on > med (j2 is j1 or the next one).
   let l = j1, r = j1 + 1;
-  while (r < len && counts[r] === 0) r++;
   let rank = 0, m1 = NaN, m2 = NaN;
   while (Number.isNaN(m2)) {
-    const dl = l >= 0 ? med - centre(l) : Infinity;
-    const dr = r < len ? centre(r) - med : Infinity;
+    const dl = l >= 0 ? med - (B[l] + 0.5) * w : Infinity;
+    const dr = r < m ? (B[r] + 0.5) * w - med : Infinity;
     let j: number, dist: number;
-    if (dl <= dr) {
-      j = l; dist = dl;
-      do l--; while (l >= 0 && counts[l] === 0);
-    } else {
-      j = r; dist = dr;
-      do r++; while (r < len && counts[r] === 0);
-    }
-    const c = counts[j];
+    if (dl <= dr) { j = l; dist = dl; l--; } else { j = r; dist = dr; r++; }
+    const c = C[j];
     if (Number.isNaN(m1) && rank + c > r1) m1 = dist;
     if (rank + c > r2) m2 = dist;
     rank += c;
@@ -411,9 +474,9 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
   let sigma: number;
   if (madv > 0) sigma = MAD_TO_SIGMA * madv;
   else {
-    let sum = 0;
-    for (let j = 0; j < len; j++) if (counts[j] !== 0) sum += counts[j] * Math.abs(centre(j) - med);
-    sigma = (MEANAD_TO_SIGMA * sum) / n;
+    let s = 0;
+    for (let j = 0; j < m; j++) s += C[j] * Math.abs((B[j] + 0.5) * w - med);
+    sigma = (MEANAD_TO_SIGMA * s) / n;
   }
   out.sigma = sigma;
   const limit = k * sigma;
@@ -422,23 +485,18 @@ function binStats(counts: Uint32Array | Float64Array, base: number, bins: Int32A
     // Centres ascend with j, so |x - med| > limit holds on a prefix (x below med) and a suffix (x above) of the
     // entries: only those are walked, in ascending order as a walk over all entries would add them (same sums,
     // bit for bit). Below med |x - med| is med - x exactly (IEEE subtraction is sign-symmetric).
-    // The two boundaries by bisection on those monotone conditions (a few centres computed, not one per entry).
-    let a = 0, b = len;
-    while (a < b) { const m = (a + b) >> 1; if (med - centre(m) > limit) a = m + 1; else b = m; }
-    const lowEnd = a; // entries [0, lowEnd) lie below med - limit
-    b = len;
-    while (a < b) { const m = (a + b) >> 1; if (centre(m) - med > limit) b = m; else a = m + 1; }
-    const top = a; // entries [top, len) lie above med + limit
-    for (let j = 0; j < lowEnd; j++) {
-      const c = counts[j];
-      if (c === 0) continue;
-      const x = centre(j);
+    let j = 0;
+    for (; j < m; j++) {
+      const x = (B[j] + 0.5) * w;
+      if (!(med - x > limit)) break;
+      const c = C[j];
       rej += c; rs += c * x; rss += c * x * x;
     }
-    for (let i = top; i < len; i++) {
-      const c = counts[i];
-      if (c === 0) continue;
-      const x = centre(i);
+    let top = m;
+    while (top > j && (B[top - 1] + 0.5) * w - med > limit) top--;
+    for (let i = top; i < m; i++) {
+      const c = C[i];
+      const x = (B[i] + 0.5) * w;
       rej += c; rs += c * x; rss += c * x * x;
     }
   }

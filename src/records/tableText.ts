@@ -75,6 +75,38 @@ export function formatCell(L: TableLayout, k: number, v: Cell, row: readonly Cel
   }
 }
 
+/**
+ * One CSV line (with its line break) from a row split in two: text[k] for the text values (null where the value is
+ * a number) and nums[k] for the numbers. The same text as rowLine of the row with text[k] ?? nums[k] in column k;
+ * for tables written per cell, where a mixed array would hold every number boxed (one heap object per value).
+ */
+export function rowLineSplit(L: TableLayout, text_: readonly (string | null)[], nums: Float64Array): string {
+  const n = L.columns.length;
+  if (text_.length !== n || nums.length !== n) throw new Error(`table ${L.table.id}: ${nums.length} values for ${n} columns`);
+  let out = '';
+  for (let k = 0; k < n; k++) {
+    if (k > 0) out += ',';
+    const t = text_[k];
+    out += t !== null ? text(t) : formatNumber(L, k, nums[k], text_, nums);
+  }
+  return out + '\n';
+}
+
+/** formatCell of a number in column k of a split row (rowLineSplit). */
+function formatNumber(L: TableLayout, k: number, v: number, text_: readonly (string | null)[], nums: Float64Array): string {
+  switch (L.kind[k]) {
+    case K_INT: return Number.isFinite(v) ? String(Math.round(v)) : '';
+    case K_DEC: return formatDecimals(v, L.digits[k], false);
+    case K_SIG: return formatSignificant(v, L.digits[k], L.keep[k] === 1);
+    case K_UNC: {
+      const by = L.by[k], s = nums[by];
+      const known = text_[by] === null && s > 0 && Number.isFinite(s);
+      return formatDecimals(v, known ? decimalsForUncertainty(s, L.digits[k]) : L.digits[k], known);
+    }
+    default: return Number.isFinite(v) ? String(v) : '';
+  }
+}
+
 export function headerLine(L: TableLayout): string {
   return L.headers.map((h) => text(h)).join(',') + '\n';
 }

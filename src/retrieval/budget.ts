@@ -205,6 +205,8 @@ export function derivativeVariances(f: Float64Array, s: Float64Array, ny: number
 }
 
 const posA = new Float64Array(9), posB = new Float64Array(9);
+/** cellBudget's per-row vectors (beam, azimuth and elevation derivatives of the beam), reused: no arrays per row. */
+const nv = new Float64Array(3), daz = new Float64Array(3), del = new Float64Array(3);
 
 /**
  * Variances of the second derivatives of `derivatives` (same stencils: zero where it gives 0) from the standard
@@ -267,7 +269,7 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     const key = cell.keys[i], ins = inp.ins[i];
     const n = st.n[key];
     const nx = cell.geom[i * 3], ny = cell.geom[i * 3 + 1], nz = cell.geom[i * 3 + 2];
-    const nv = [nx, ny, nz];
+    nv[0] = nx; nv[1] = ny; nv[2] = nz;
     // n . dU/da for the in-plane axes a = 0 (y), 1 (second); second derivative along the beam.
     let g0 = 0, g1 = 0, c00 = 0, c11 = 0, c01 = 0;
     for (let k = 0; k < 3; k++) {
@@ -289,7 +291,8 @@ export function cellBudget(cell: CellRows, H: Float64Array, st: CellStats, inp: 
     }
     // Pointing: direction change and point displacement.
     const h = Math.hypot(nx, ny) || 1e-12;
-    const daz = [ny, -nx, 0], del = [(-nz * nx) / h, (-nz * ny) / h, h];
+    daz[0] = ny; daz[1] = -nx; daz[2] = 0;
+    del[0] = (-nz * nx) / h; del[1] = (-nz * ny) / h; del[2] = h;
     let gaz = daz[0] * U[0] + daz[1] * U[1];
     let gel = del[0] * U[0] + del[1] * U[1] + del[2] * U[2];
     if (range === range) {

@@ -17,7 +17,6 @@
  * Turbulence intensity: sqrt(max(var u, 0)) / |u| in the cell.
  */
 import { invertSym3, normalMatrix } from '../geometry/amplification.ts';
-import { cellCentre } from '../grid/grid.ts';
 import { BUDGET_TERMS, cellBudget, typeAFactor, NT, COMPONENTS, derivatives, derivativeVariances, secondDerivativeVariances, emptyFieldBudget, sensitivity, type BudgetSettings, type CellRows } from './budget.ts';
 import type { CellStats, InstrumentMeans } from './cellStats.ts';
 import { MaskReason, type FieldResult } from './types.ts';
@@ -84,17 +83,18 @@ export function fieldBudget(
       secondDerivativeVariances(fields[k], ses[k], f.grid.ny, f.grid.nz, f.grid.dy, f.grid.dz, c, dv2);
       D2Var.set(dv2, k * 3);
     }
-    const [yc, zc] = cellCentre(f.grid, c);
-    inp.c = c; inp.yc = yc; inp.zc = zc;
+    const iy = c % f.grid.ny; // cellCentre, without its pair
+    inp.c = c; inp.yc = f.grid.y0 + iy * f.grid.dy; inp.zc = f.grid.z0 + ((c - iy) / f.grid.ny) * f.grid.dz;
     cellBudget(cell, H, stats, inp, set, noise2, out, ws);
     for (let k = 0; k < 3; k++) {
       if (!Number.isFinite(comps[k][c])) continue;
       const name = COMPONENTS[k];
       let sum = 0;
-      BUDGET_TERMS.forEach((t, j) => {
-        b.terms[name][t][c] = Math.sqrt(out[k * NT + j]);
+      const terms = b.terms[name];
+      for (let j = 0; j < BUDGET_TERMS.length; j++) {
+        terms[BUDGET_TERMS[j]][c] = Math.sqrt(out[k * NT + j]);
         sum += out[k * NT + j];
-      });
+      }
       // The Type A part (noise + sampling) with the factor of its few degrees of freedom (budget.ts typeAFactor).
       const a = out[k * NT] + out[k * NT + 1];
       b.combined[name][c] = Math.sqrt(sum + (typeAFactor(a, ws[k]) - 1) * a);
@@ -115,11 +115,15 @@ export function fieldBudget(
   }
 }
 
+/** Scratch of turbulenceOfCell, reused across cells (grown to the most instruments seen). */
+let turbB = new Float64Array(12), turbY = new Float64Array(4), turbVy = new Float64Array(4);
+
 /** Turbulence statistics of one cell (module docblock). */
 export function turbulenceOfCell(cell: CellRows, stats: CellStats, c: number, t: ReturnType<typeof emptyFieldBudget>['turbulence']): void {
   const K = cell.K, dims = cell.dims;
   let vt = 0, vn = 0, nb = 0, ta = 0, ne = 0;
-  const B = new Float64Array(K * 3), y = new Float64Array(K), vy = new Float64Array(K);
+  if (turbB.length < K * 3) { turbB = new Float64Array(K * 3); turbY = new Float64Array(K); turbVy = new Float64Array(K); }
+  const B = turbB, y = turbY, vy = turbVy; // rows [0, rowsWith) are written before they are read
   let rowsWith = 0;
   for (let i = 0; i < K; i++) {
     const k = cell.keys[i];

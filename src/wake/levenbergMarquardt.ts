@@ -74,8 +74,12 @@ export function levenbergMarquardt(prob: LmProblem, p0: number[], options: LmOpt
   let lambda = options.damping ?? 1e-3;
   const m = p0.length;
   let p = p0.slice();
-  const jtj = p.map(() => new Array<number>(m).fill(0));
-  const jtr = new Array<number>(m).fill(0);
+  let jtj = p.map(() => new Array<number>(m).fill(0));
+  let jtr = new Array<number>(m).fill(0);
+  // A trial's normal equations, filled with its SSR in one pass: an accepted trial's become the current ones (the
+  // SSR of that pass is the same number as a pass without them), instead of a second pass over the data.
+  let jtjT = p.map(() => new Array<number>(m).fill(0));
+  let jtrT = new Array<number>(m).fill(0);
   let ssr = ssrAndNormal(prob, p, jtj, jtr);
   let converged = false;
   let it = 0;
@@ -91,12 +95,14 @@ export function levenbergMarquardt(prob: LmProblem, p0: number[], options: LmOpt
       }
       const step = cholSolve(l, jtr);
       const trial = p.map((v, k) => v + step[k]);
-      const s2 = ssrAndNormal(prob, trial, null, null);
+      const s2 = ssrAndNormal(prob, trial, jtjT, jtrT);
       if (Number.isFinite(s2) && s2 <= ssr) {
         const relDrop = (ssr - s2) / Math.max(ssr, 1e-300);
         const relStep = Math.max(...step.map((d, k) => Math.abs(d) / (Math.abs(trial[k]) + 1e-12)));
         p = trial;
-        ssr = ssrAndNormal(prob, p, jtj, jtr);
+        ssr = s2;
+        const tj = jtj; jtj = jtjT; jtjT = tj;
+        const tr = jtr; jtr = jtrT; jtrT = tr;
         lambda = Math.max(lambda / 10, 1e-12);
         accepted = true;
         if ((relDrop < tol && relStep < Math.sqrt(tol)) || ssr === 0) converged = true;
