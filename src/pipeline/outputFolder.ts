@@ -8,7 +8,9 @@
  * - Names must be safe folder names: not empty, not "." or "..", no leading dot, no path separator.
  * - Whatever stands at the target and is not a folder marked by wakeplane for the same campaign and kind (a file, a
  *   symbolic link, a user's folder, another campaign's result) stops the command before any work, with one line
- *   naming it; it is never moved. So does an earlier result that holds a file the command reads (the campaign file,
+ *   naming it; it is never moved. A marker is a file anyone can copy, so it is not proof alone: the folder must also
+ *   hold only what wakeplane wrote there (the files the marker lists from the commit, and those the manifest lists,
+ *   which a render adds to); a user's file or folder inside stops the command too, naming it. So does an earlier result that holds a file the command reads (the campaign file,
  *   a data or series file kept inside it): replacing it would move the user's files away.
  * - The output root must be a folder or not exist yet; a file in its place (or in the place of a folder above it)
  *   stops the command before any work. (Results written before markers existed are recognised by their manifest.json
@@ -19,6 +21,7 @@
  *   stale, and removed at once, when its marker names this host and either another boot, a process that no longer
  *   exists, or a process of that pid that started at another time (the pid was reused). Others (another host, a
  *   process that cannot be checked) are removed only with `clean`; one whose process is still running never is.
+ *   One holding anything a run or the planner does not write at its top level (RUN_ENTRIES) is never removed.
  * - While a command runs, its staging folder is registered for removal on SIGINT/SIGTERM (io/cleanup.ts; the CLI
  *   installs the handlers).
  */
@@ -45,6 +48,63 @@ export interface FolderMarker {
   processStart: string;
   startedAt: string;
   finishedAt?: string;
+  /** Every file in the folder when it was completed, relative, '/'-separated (written at commit). */
+  files?: string[];
+}
+
+/**
+ * Names a run or the planner writes at the top of its folder (pipeline/stages.ts, run.ts, plan/): a staging folder
+ * holding anything else is not removed as a stopped run's.
+ */
+const RUN_ENTRIES = new Set([
+  MARKER, 'manifest.json', 'dictionary.json', 'dictionary.md', 'report.html', 'rejected_rows.csv',
+  'fields', 'wake', 'images', 'plan', 'power', 'nacelle', 'profiles', 'tracks', '.shards',
+]);
+
+/** A temporary name of an atomic write (io/atomic.ts, io/partialFile.ts) left by a killed command. */
+const TEMPORARY = /\.\d+\.tmp$|\.writing-\d+$/;
+
+/** Every entry below `dir` (not following links): relative '/'-separated path and whether it is a folder. */
+function entriesOf(dir: string): { path: string; folder: boolean }[] {
+  const out: { path: string; folder: boolean }[] = [];
+  const walk = (d: string, prefix: string) => {
+    for (const e of readdirSync(d, { withFileTypes: true })) {
+      const path = prefix + e.name;
+      out.push({ path, folder: e.isDirectory() });
+      if (e.isDirectory()) walk(join(d, e.name), path + '/');
+    }
+  };
+  walk(dir, '');
+  return out;
+}
+
+/**
+ * The first entry of a complete folder that wakeplane did not write (files the marker lists, files the manifest
+ * lists, the folders holding them, temporary names of a killed write), or undefined when there is none.
+ */
+function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefined {
+  const known = new Set<string>([MARKER, 'manifest.json', ...(m?.files ?? [])]);
+  const manifest = readText(join(dir, 'manifest.json'));
+  if (manifest) {
+    try {
+      for (const o of (JSON.parse(manifest) as { outputs?: { path?: unknown }[] }).outputs ?? []) if (typeof o?.path === 'string') known.add(o.path);
+    } catch {
+      // not a manifest: only the marker's list counts
+    }
+  }
+  // A plan folder marked before markers listed their files: the planner writes only below plan/.
+  const legacyPlan = m?.kind === 'plan' && !m.files;
+  const folders = new Set<string>();
+  for (const f of known) for (let k = f.indexOf('/'); k > 0; k = f.indexOf('/', k + 1)) folders.add(f.slice(0, k));
+  let entries;
+  try {
+    entries = entriesOf(dir);
+  } catch {
+    return '.';
+  }
+  const found = entries.find((e) =>
+    !(e.folder ? folders.has(e.path) : known.has(e.path) || TEMPORARY.test(e.path)) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
+  return found?.path;
 }
 
 export interface FolderRequest {
@@ -174,13 +234,17 @@ function inputInside(dir: string, inputs: readonly string[]): string | undefined
  * marked for the same campaign and kind that holds none of `inputs`, the files the command reads).
  */
 export function replaceRefusal(path: string, kind: FolderKind, campaign: string, inputs: readonly string[] = []): string {
-  const why = ownRefusal(path, kind, campaign);
-  if (why || !inputs.length || !existsSync(path)) return why;
-  const held = inputInside(path, inputs);
-  return held ? `holds ${rel(held)}, which this command reads; left alone. Move your files out of the result folder or choose another output.dir (--out)` : '';
+  const own = ownRefusal(path, kind, campaign);
+  if (typeof own === 'string') return own;
+  // A file the command reads is named first (the more useful advice), then anything else wakeplane did not write.
+  const held = inputs.length ? inputInside(path, inputs) : undefined;
+  if (held) return `holds ${rel(held)}, which this command reads; left alone. Move your files out of the result folder or choose another output.dir (--out)`;
+  const foreign = foreignEntry(path, own.marker);
+  return foreign ? `holds ${foreign}, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)` : '';
 }
 
-function ownRefusal(path: string, kind: FolderKind, campaign: string): string {
+/** Why what stands at `path` is not wakeplane's folder of this kind and campaign ('' when nothing is there), or its marker. */
+function ownRefusal(path: string, kind: FolderKind, campaign: string): string | { marker: FolderMarker | undefined } {
   let st;
   try {
     st = lstatSync(path);
@@ -192,14 +256,14 @@ function ownRefusal(path: string, kind: FolderKind, campaign: string): string {
   const m = readMarker(path);
   if (!m) {
     const legacy = legacyResultOf(path);
-    if (legacy === campaign && kind === 'run') return '';
+    if (legacy === campaign && kind === 'run') return { marker: undefined };
     return `exists and was not made by wakeplane (no ${MARKER}); left alone. Move it away or choose another output.dir (--out)`;
   }
   if (m.kind !== kind || m.campaign !== campaign) {
     return `holds wakeplane's ${m.kind === 'plan' ? 'plan' : 'results'} of campaign "${m.campaign}", not the ${kind === 'plan' ? 'plan' : 'results'} of "${campaign}"; left alone. Choose another name or output.dir (--out)`;
   }
   if (m.state !== 'complete') return 'is marked as an unfinished folder; left alone';
-  return '';
+  return { marker: m };
 }
 
 /**
@@ -258,6 +322,11 @@ export function findPartials(root: string, folder: string): PartialFolder[] {
     const m = st.isDirectory() ? readMarker(path) : undefined;
     if (!m || m.state !== 'partial') {
       out.push({ path, status: 'unmarked', why: 'not marked by wakeplane; left alone' });
+      continue;
+    }
+    const foreign = readdirSync(path).find((n) => !RUN_ENTRIES.has(n) && !TEMPORARY.test(n));
+    if (foreign) {
+      out.push({ path, status: 'unmarked', why: `holds ${foreign}, which a run does not write; left alone` });
       continue;
     }
     if (m.pid === process.pid && m.processStart === processStartOf(process.pid) && m.host === host) {
@@ -356,7 +425,8 @@ export function openStaging(req: FolderRequest): Staging {
     notices,
     commit() {
       const out: string[] = [];
-      writeFileSync(join(dir, MARKER), JSON.stringify({ ...marker, state: 'complete', finishedAt: new Date().toISOString() }, null, 2) + '\n');
+      const files = entriesOf(dir).filter((e) => !e.folder && e.path !== MARKER).map((e) => e.path).sort();
+      writeFileSync(join(dir, MARKER), JSON.stringify({ ...marker, state: 'complete', finishedAt: new Date().toISOString(), files }, null, 2) + '\n');
       for (let attempt = 0; ; attempt++) {
         const why = replaceRefusal(finalDir, req.kind, req.campaign, req.inputs);
         if (why) throw new OutputError(rel(finalDir), `${why} (it appeared while this command ran; the new result was not kept)`);

@@ -131,6 +131,73 @@ describe('replacing an earlier result', () => {
   });
 });
 
+describe('a marker does not make a folder wakeplane\'s: only what a run wrote may be there', () => {
+  // A marker is a small JSON file anyone can copy; what proves a folder is the tool's is that it holds only the files
+  // the tool wrote (the marker lists them, the manifest lists what a render added). Anything else stops the command.
+  it('a marker copied into a user\'s folder: refused in one line naming the user\'s file, nothing moved', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet', '--out', 'elsewhere'], dir)).code).toBe(0);
+    mkdirSync(join(dir, 'out', 'faulty'), { recursive: true });
+    writeFileSync(join(dir, 'out', 'faulty', 'notes.txt'), 'mine');
+    writeFileSync(join(dir, 'out', 'faulty', MARKER), readFileSync(join(dir, 'elsewhere', 'faulty', MARKER)));
+    const before = snapshot(join(dir, 'out'));
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    // Before the fix the user's folder was renamed to faulty.replaced-... as an earlier result.
+    expect(r.stderr).toBe('wakeplane: out/faulty: holds notes.txt, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)\n');
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
+  });
+
+  it('a file the user added inside an earlier result (fields/my-fit.py): refused, named, nothing moved', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    writeFileSync(join(dir, 'out', 'faulty', 'fields', 'my-fit.py'), 'print(1)');
+    const before = snapshot(join(dir, 'out'));
+    for (const cmd of ['check', 'run']) {
+      const r = await runCli([cmd, file], dir);
+      expect(r.code).toBe(1);
+      expect(r.stderr).toBe('wakeplane: out/faulty: holds fields/my-fit.py, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)\n');
+    }
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
+  });
+
+  it('a plan folder with a user\'s file in it: refused, nothing moved', async () => {
+    const { dir, file } = await freshCampaign((c) => (c.plan = { directions_deg: [270] }));
+    expect((await runCli(['plan', file, '--no-images', '--quiet'], dir)).code).toBe(0);
+    mkdirSync(join(dir, 'out', 'faulty-plan', 'field-notes'));
+    const before = snapshot(join(dir, 'out'));
+    const r = await runCli(['plan', file, '--no-images'], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('wakeplane: out/faulty-plan: holds field-notes, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)\n');
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
+  });
+
+  it('a result that render redrew is still replaced (the images it added are in the manifest)', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    expect((await runCli(['render', 'out/faulty', '--quiet'], dir)).code).toBe(0);
+    expect(existsSync(join(dir, 'out', 'faulty', 'report.html'))).toBe(true);
+    const r = await runCli(['run', file], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/note: an earlier result was kept as out\/faulty\.replaced-/);
+  });
+
+  it('a stale staging folder holding what a run never writes is reported, not deleted, even with --clean', async () => {
+    const { dir, file } = await freshCampaign();
+    const pid = deadPid();
+    const p = join(dir, 'out', `.faulty.partial-${pid}`);
+    mkdirSync(join(p, 'thesis'), { recursive: true });
+    writeFileSync(join(p, 'thesis', 'chapter1.tex'), 'mine');
+    writeFileSync(join(p, MARKER), partialMarker(pid, { processStart: '1' }));
+    const r = await runCli(['run', file, '--clean'], dir);
+    expect(r.code).toBe(0);
+    // Before the fix the folder, the user's thesis with it, was removed as the partial folder of a stopped run.
+    expect(readFileSync(join(p, 'thesis', 'chapter1.tex'), 'utf8')).toBe('mine');
+    expect(r.stdout).toContain(`note: unfinished folder out/.faulty.partial-${pid} left in place (holds thesis, which a run does not write; left alone)`);
+  });
+});
+
 describe('unfinished folders of stopped runs', () => {
   it('provably stale (its process is gone): removed by the next run, which says so', async () => {
     const { dir, file } = await freshCampaign();
