@@ -94,6 +94,11 @@ describe('names', () => {
     ['.hidden', 'not starting with "."'],
     ['a/b', 'letters, digits'],
     ['', 'letters, digits'],
+    // A result folder copied to (or a run on) Windows: device names open the device, a final dot is dropped, so
+    // "trail." would be the folder "trail" (perhaps the user's). Before the fix all three passed validation.
+    ['CON', 'not a device name Windows reserves'],
+    ['lpt1.results', 'not a device name Windows reserves'],
+    ['trail.', 'not ending with "."'],
   ] as const) {
     it(`campaign name ${JSON.stringify(name)} is refused by validation, nothing written`, async () => {
       const { dir, file } = await freshCampaign((c) => (c.name = name));
