@@ -331,12 +331,18 @@ const turbineSchema = z
   })
   .strict();
 
+/** Not a Windows device name (any case, with or without an extension); no regex flag, so the JSON schema keeps it. */
+const WINDOWS_DEVICE = new RegExp(`^(?!(?:${['CON', 'PRN', 'AUX', 'NUL', 'COM[1-9]', 'LPT[1-9]'].map((w) => w.replace(/[A-Z]/g, (ch) => `[${ch}${ch.toLowerCase()}]`)).join('|')})(?:\\.|$))`);
+
 export const campaignSchema = z
   .object({
     name: z
       .string()
       .max(100, 'at most 100 characters (used as the output folder name)')
       .regex(/^[A-Za-z0-9_-][A-Za-z0-9_.-]*$/, 'letters, digits, "_", "." and "-" only, not starting with "." (used as the output folder name)')
+      // Windows drops a final dot (so "x." is the folder "x") and opens a device for these names, with any extension.
+      .regex(/[^.]$/, 'not ending with "." (Windows drops it: another folder) (used as the output folder name)')
+      .regex(WINDOWS_DEVICE, 'not a device name Windows reserves (CON, PRN, AUX, NUL, COM1-9, LPT1-9, with or without an extension) (used as the output folder name)')
       .describe('campaign name; the output folder is <output.dir>/<name>'),
     description: z.string().default(''),
     site: z
