@@ -9,6 +9,7 @@ import { hostname } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
 import { MARKER, processStartOf } from '../../src/pipeline/outputFolder.ts';
+import { renderRunFolder } from '../../src/pipeline/renderFolder.ts';
 import { freshCampaign, manifestOf, runCli, snapshot } from './helpers.ts';
 
 const bootId = () => (existsSync('/proc/sys/kernel/random/boot_id') ? readFileSync('/proc/sys/kernel/random/boot_id', 'utf8').trim() : '');
@@ -183,6 +184,21 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect((await runCli(['render', 'out/faulty', '--quiet'], dir)).code).toBe(0);
     expect(existsSync(join(dir, 'out', 'faulty', 'report.html'))).toBe(true);
     const r = await runCli(['run', file], dir);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/note: an earlier result was kept as out\/faulty\.replaced-/);
+  });
+
+  it('a render stopped half way (images drawn, manifest not yet rewritten): the result is still replaced', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    // The render fails after drawing its figures and before listing them in the manifest (as Ctrl-C, a full disk or
+    // a crash there would leave it).
+    const stop = { stage: (s: string) => { if (s === 'report') throw new Error('stopped'); }, file() {}, done() {} };
+    await expect(renderRunFolder(join(dir, 'out', 'faulty'), { progress: stop })).rejects.toThrow('stopped');
+    expect(readdirSync(join(dir, 'out', 'faulty', 'images')).length).toBeGreaterThan(0);
+    const r = await runCli(['run', file], dir);
+    // Before the fix: "holds images/..., which wakeplane did not write" and exit 1: the figures were its own.
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/note: an earlier result was kept as out\/faulty\.replaced-/);
