@@ -50,6 +50,8 @@ export interface FolderMarker {
   finishedAt?: string;
   /** Every file in the folder when it was completed, relative, '/'-separated (written at commit). */
   files?: string[];
+  /** Set while `render` redraws the folder (its start time), cleared when the render has listed its outputs. */
+  rendering?: string;
 }
 
 /**
@@ -94,6 +96,8 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
   }
   // A plan folder marked before markers listed their files: the planner writes only below plan/.
   const legacyPlan = m?.kind === 'plan' && !m.files;
+  // A render that stopped before rewriting the manifest left figures and a report it had not listed yet.
+  const drawn = (p: string) => m?.rendering !== undefined && (p === 'report.html' || /^(images|plan)\/[^/]+\.(svg|png)$/.test(p));
   const folders = new Set<string>();
   for (const f of known) for (let k = f.indexOf('/'); k > 0; k = f.indexOf('/', k + 1)) folders.add(f.slice(0, k));
   let entries;
@@ -103,7 +107,7 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
     return '.';
   }
   const found = entries.find((e) =>
-    !(e.folder ? folders.has(e.path) : known.has(e.path) || TEMPORARY.test(e.path)) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
+    !(e.folder ? folders.has(e.path) || (drawn(e.path + '/x.svg')) : known.has(e.path) || TEMPORARY.test(e.path) || drawn(e.path)) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
   return found?.path;
 }
 
@@ -169,6 +173,17 @@ function pidAlive(pid: number): boolean | undefined {
     const code = (e as NodeJS.ErrnoException).code;
     return code === 'ESRCH' ? false : code === 'EPERM' ? true : undefined;
   }
+}
+
+/**
+ * Marks a complete folder as being redrawn by `render` (or, with `false`, as redrawn: the manifest lists the new
+ * figures), so that figures of a render stopped half way are known as wakeplane's.
+ */
+export function markRendering(dir: string, on: boolean): void {
+  const m = readMarker(dir);
+  if (!m) return; // a result written before markers: its manifest alone lists its files
+  const { rendering: _, ...rest } = m;
+  writeFileSync(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering: new Date().toISOString() } : rest, null, 2) + '\n');
 }
 
 export function readMarker(dir: string): FolderMarker | undefined {

@@ -19,7 +19,7 @@ import { InputError, OptionError, OutputError } from '../errors.ts';
 import { missingSelectedText } from '../render/figureSelection.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
-import { replaceRefusal } from './outputFolder.ts';
+import { markRendering, replaceRefusal } from './outputFolder.ts';
 import type { RunProgress, StageContext } from './run.ts';
 import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
 import { budgetStage } from './budgetStage.ts';
@@ -86,6 +86,7 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
     if (!existsSync(table)) throw new InputError(table, undefined, 'field table listed in the manifest is missing; nothing redrawn');
   }
   const progress = opts.progress;
+  markRendering(runDir, true);
   const oldImages = m.outputs.filter((o) => o.kind === 'image');
   const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
   const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
@@ -147,6 +148,7 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   manifest.outputs.push(...(await reportStage().finish!(ctx)));
   manifest.outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
   writeFileAtomic(manifestPath, JSON.stringify(manifest, null, 2) + '\n');
+  markRendering(runDir, false);
   progress?.done();
   return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, kept: keptAsDrawn, seconds: manifest.rendered.seconds };
 }
