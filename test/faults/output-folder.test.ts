@@ -4,7 +4,7 @@
  * naming what is in the way, the exit code, and that nothing was changed or left behind.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
@@ -85,6 +85,20 @@ describe('what stands at the target', () => {
     expect(r.code).toBe(1);
     expect(r.stdout).toMatch(/^campaign faulty: 1 problem: a run would stop \(below\)\n/);
     expect(r.stderr).toMatch(/^wakeplane: out\/faulty: exists and was not made by wakeplane/);
+  });
+});
+
+describe('an output root that is a broken symbolic link', () => {
+  it('check and run both stop with one line naming it, before any work; nothing created where it points', async () => {
+    const { dir, file } = await freshCampaign();
+    symlinkSync(join(dir, 'gone', 'results'), join(dir, 'results'));
+    for (const cmd of ['check', 'run']) {
+      const r = await runCli([cmd, file, '--out', 'results'], dir);
+      // Before the fix check said the campaign was fine (exit 0) and run failed at its first mkdir (ENOENT).
+      expect(r.code).toBe(1);
+      expect(r.stderr).toBe(`wakeplane: results: the output folder (output.dir) is a symbolic link to ${join(dir, 'gone', 'results')}, which does not exist; nothing written. Create that folder or choose another output.dir (--out)\n`);
+    }
+    expect(existsSync(join(dir, 'gone'))).toBe(false);
   });
 });
 
