@@ -26,7 +26,7 @@
  *   installs the handlers).
  */
 import { hostname } from 'node:os';
-import { accessSync, constants, existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { accessSync, constants, existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, readlinkSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { basename, dirname, isAbsolute, join, relative, sep } from 'node:path';
 import { OutputError } from '../errors.ts';
 import { removeOnInterrupt } from '../io/cleanup.ts';
@@ -292,6 +292,13 @@ export function checkRoot(root: string): void {
     try {
       st = statSync(p);
     } catch {
+      let link = '';
+      try {
+        if (lstatSync(p).isSymbolicLink()) link = readlinkSync(p);
+      } catch {
+        // nothing there
+      }
+      if (link) throw new OutputError(rel(p), `the output folder (output.dir) is a symbolic link to ${link}, which does not exist; nothing written. Create that folder or choose another output.dir (--out)`);
       if (dirname(p) === p) return;
       continue; // not there yet: created by the command
     }
