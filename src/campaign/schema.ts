@@ -22,6 +22,10 @@ import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 export const ID_PATTERN = /^[A-Za-z0-9_.-]+$/;
 export const ID_RULE = 'letters, digits, "_", "." and "-" only';
 
+/** The longest id: output file names join up to two ids and about 60 characters more, within 255 bytes. */
+export const ID_MAX = 64;
+const idString = () => z.string().max(ID_MAX, `at most ${ID_MAX} characters (ids name output files)`).regex(ID_PATTERN, ID_RULE);
+
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
 
@@ -83,7 +87,7 @@ const cwSchema = z
 
 const instrumentSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE),
+    id: idString(),
     position_m: vec3.optional().describe('site-frame position east, north, up, metres (the beam origin)'),
     position_wgs84: z
       .object({
@@ -146,7 +150,7 @@ const extent = z
 
 const planeSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE),
+    id: idString(),
     orientation: z
       .enum(['cross', 'horizontal'])
       .default('cross')
@@ -320,7 +324,7 @@ export const powerSchema = z
 
 const turbineSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE).default('turbine'),
+    id: idString().default('turbine'),
     position_m: vec3.describe('tower base east, north, up in the site frame, metres'),
     hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
     rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),

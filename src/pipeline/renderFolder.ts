@@ -13,7 +13,7 @@
 import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
-import { ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
+import { ID_MAX, ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { InputError, OptionError, OutputError } from '../errors.ts';
 import { missingSelectedText } from '../render/figureSelection.ts';
@@ -48,7 +48,7 @@ export function campaignFromManifest(m: RunManifest, file: string): Campaign {
   // Ids name the figure files: a hand-edited manifest must not lead a render outside the run folder.
   for (const key of ['planes', 'turbines', 'instruments'] as const) {
     ((c as unknown as Record<string, { id?: unknown }[] | undefined>)[key] ?? []).forEach((x, i) => {
-      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id)) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE} (got ${JSON.stringify(x?.id)}); nothing redrawn`);
+      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id) || x.id.length > ID_MAX) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE}, at most ${ID_MAX} characters (got ${JSON.stringify(x?.id)}); nothing redrawn`);
     });
   }
   const num = (v: unknown) => (typeof v === 'number' ? v : NaN);
