@@ -22,8 +22,8 @@ import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 export const ID_PATTERN = /^[A-Za-z0-9_.-]+$/;
 export const ID_RULE = 'letters, digits, "_", "." and "-" only';
 
-/** The longest id: output file names join up to two ids and about 60 characters more, within 255 bytes. */
-export const ID_MAX = 64;
+/** The longest id (as the campaign name): file names hold one id and up to 45 characters more, within 255 bytes. */
+export const ID_MAX = 100;
 const idString = () => z.string().max(ID_MAX, `at most ${ID_MAX} characters (ids name output files)`).regex(ID_PATTERN, ID_RULE);
 
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');

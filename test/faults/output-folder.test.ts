@@ -127,26 +127,27 @@ describe('names', () => {
 });
 
 describe('ids name output files', () => {
-  it('a plane id longer than 64 characters is refused by validation (check and run), nothing written', async () => {
-    const { dir, file } = await freshCampaign((c) => (c.planes[0].id = 'p'.repeat(65)));
+  it('a plane id longer than 100 characters is refused by validation (check and run), nothing written', async () => {
+    const { dir, file } = await freshCampaign((c) => (c.planes[0].id = 'p'.repeat(101)));
     for (const cmd of ['check', 'run']) {
       const r = await runCli([cmd, file], dir);
       // Before the fix check said fine and run failed after the ingest with a raw ENAMETOOLONG (a 250-character id).
       expect(r.code).toBe(1);
-      expect(r.stderr).toMatch(/campaign\.yaml:\d+:\d+: planes\[0\]\.id: at most 64 characters \(ids name output files\)/);
+      expect(r.stderr).toMatch(/campaign\.yaml:\d+:\d+: planes\[0\]\.id: at most 100 characters \(ids name output files\)/);
     }
     expect(existsSync(join(dir, 'out'))).toBe(false);
   });
 
-  it('ids of 64 characters (plane, instrument) run through, figures included', async () => {
+  it('ids of 100 characters (plane, instrument, turbine) run through, figures included', async () => {
     const { dir, file } = await freshCampaign((c) => {
-      c.planes[0].id = 'p'.repeat(64);
-      c.instruments[0].id = 'a'.repeat(64);
+      c.planes[0].id = 'p'.repeat(100);
+      c.instruments[0].id = 'a'.repeat(100);
+      c.turbine.id = 't'.repeat(100);
       c.output.images = true;
     });
     // the rows name their instrument (second column)
     const a = join(dir, 'data', 'a.csv');
-    writeFileSync(a, readFileSync(a, 'utf8').replace(/^([^,\n]*),a,/gm, `$1,${'a'.repeat(64)},`));
+    writeFileSync(a, readFileSync(a, 'utf8').replace(/^([^,\n]*),a,/gm, `$1,${'a'.repeat(100)},`));
     const r = await runCli(['run', file, '--quiet'], dir);
     expect(r.stderr).toBe('');
     expect(r.code).toBe(0);
