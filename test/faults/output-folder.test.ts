@@ -246,6 +246,21 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect(r.stdout).toMatch(/note: an earlier result was kept as out\/faulty\.replaced-/);
   });
 
+  it('figures left by a stopped render stay wakeplane\'s after a later render that does not draw them', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const stop = { stage: (s: string) => { if (s === 'report') throw new Error('stopped'); }, file() {}, done() {} };
+    await expect(renderRunFolder(join(dir, 'out', 'faulty'), { progress: stop, windowImages: 'all' })).rejects.toThrow('stopped');
+    const windowImages = readdirSync(join(dir, 'out', 'faulty', 'images')).filter((n) => /_w\d+_/.test(n));
+    expect(windowImages.length).toBeGreaterThan(0);
+    expect((await runCli(['render', 'out/faulty', '--quiet'], dir)).code).toBe(0); // default selection: no window images
+    expect(readdirSync(join(dir, 'out', 'faulty', 'images'))).toEqual(expect.arrayContaining(windowImages)); // left, not deleted
+    const r = await runCli(['run', file], dir);
+    // Before the fix: "holds images/p5_w000_..., which wakeplane did not write", exit 1.
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+  });
+
   it('a stale staging folder holding what a run never writes is reported, not deleted, even with --clean', async () => {
     const { dir, file } = await freshCampaign();
     const pid = deadPid();
