@@ -63,6 +63,9 @@ const RUN_ENTRIES = new Set([
   'fields', 'wake', 'images', 'plan', 'power', 'nacelle', 'profiles', 'tracks', '.shards',
 ]);
 
+/** Files `render` draws (figures and the report). */
+const DRAWN = /^(report\.html|(images|plan)\/[^/]+\.(svg|png))$/;
+
 /** A temporary name of an atomic write (io/atomic.ts, io/partialFile.ts) left by a killed command. */
 const TEMPORARY = /\.\d+\.tmp$|\.writing-\d+$/;
 
@@ -97,7 +100,7 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
   // A plan folder marked before markers listed their files: the planner writes only below plan/.
   const legacyPlan = m?.kind === 'plan' && !m.files;
   // A render that stopped before rewriting the manifest left figures and a report it had not listed yet.
-  const drawn = (p: string) => m?.rendering !== undefined && (p === 'report.html' || /^(images|plan)\/[^/]+\.(svg|png)$/.test(p));
+  const drawn = (p: string) => m?.rendering !== undefined && DRAWN.test(p);
   const folders = new Set<string>();
   for (const f of known) for (let k = f.indexOf('/'); k > 0; k = f.indexOf('/', k + 1)) folders.add(f.slice(0, k));
   let entries;
@@ -183,6 +186,12 @@ export function markRendering(dir: string, on: boolean): void {
   const m = readMarker(dir);
   if (!m) return; // a result written before markers: its manifest alone lists its files
   const { rendering: _, ...rest } = m;
+  if (!on && m.rendering !== undefined) {
+    // Figures an earlier, stopped render drew (allowed while the mark stood) that this render neither drew nor removed
+    // are wakeplane's: the marker lists them from now on.
+    const drawn = entriesOf(dir).filter((e) => !e.folder && DRAWN.test(e.path)).map((e) => e.path);
+    rest.files = [...new Set([...(m.files ?? []), ...drawn])].sort();
+  }
   writeFileSync(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering: new Date().toISOString() } : rest, null, 2) + '\n');
 }
 
