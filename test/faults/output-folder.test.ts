@@ -4,11 +4,11 @@
  * naming what is in the way, the exit code, and that nothing was changed or left behind.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
-import { hostname } from 'node:os';
-import { join } from 'node:path';
+import { chmodSync, existsSync, lstatSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
+import { hostname, tmpdir } from 'node:os';
+import { dirname, join } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
-import { MARKER, processStartOf } from '../../src/pipeline/outputFolder.ts';
+import { MARKER, processStartOf, renameRefusal } from '../../src/pipeline/outputFolder.ts';
 import { renderRunFolder } from '../../src/pipeline/renderFolder.ts';
 import { freshCampaign, manifestOf, runCli, snapshot } from './helpers.ts';
 
@@ -99,6 +99,42 @@ describe('an output root that is a broken symbolic link', () => {
       expect(r.stderr).toBe(`wakeplane: results: the output folder (output.dir) is a symbolic link to ${join(dir, 'gone', 'results')}, which does not exist; nothing written. Create that folder or choose another output.dir (--out)\n`);
     }
     expect(existsSync(join(dir, 'gone'))).toBe(false);
+  });
+});
+
+describe('an earlier result this user may not move', () => {
+  // In a shared folder with the sticky bit (as /tmp, or a group's scratch space) only a folder's owner may rename it:
+  // an earlier result a colleague wrote there cannot be kept aside.
+  it('renameRefusal: another user\'s result in a sticky folder is refused, its owner\'s is not', () => {
+    const root = mkdtempSync(join(tmpdir(), 'wakeplane-sticky-'));
+    mkdirSync(join(root, 'faulty'));
+    chmodSync(root, 0o1777);
+    const owner = lstatSync(join(root, 'faulty')).uid;
+    const other = owner + 4242;
+    expect(renameRefusal(root, join(root, 'faulty'), owner)).toBe('');
+    expect(renameRefusal(root, join(root, 'faulty'), other)).toBe(
+      `belongs to another user (uid ${owner}) in a folder where only a folder's owner may rename it (sticky bit), so it cannot be kept aside; nothing written. Ask its owner to move it, or choose another output.dir (--out)`,
+    );
+    chmodSync(root, 0o777); // no sticky bit: anyone who may write the folder may rename in it
+    expect(renameRefusal(root, join(root, 'faulty'), other)).toBe('');
+  });
+
+  const setpriv = spawnSync('setpriv', ['--version']).status === 0;
+  it.runIf(process.getuid?.() === 0 && setpriv)('run as another user: one line before any work, the earlier result untouched', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    // the test's own folders opened to the unprivileged user (they are removed after the file)
+    for (let p = dir; p !== dirname(tmpdir()); p = dirname(p)) chmodSync(p, 0o777);
+    spawnSync('chmod', ['-R', 'a+rwX', dir]);
+    chmodSync(join(dir, 'out'), 0o1777);
+    const before = snapshot(join(dir, 'out'));
+    const bin = join(import.meta.dirname, '..', '..', 'bin', 'wakeplane.js');
+    const r = spawnSync('setpriv', ['--reuid=65534', '--regid=65534', '--clear-groups', process.execPath, bin, 'run', file], { cwd: dir, encoding: 'utf8', env: { ...process.env, WAKEPLANE_FROM_SOURCE: '1' } });
+    // Before the fix: the whole run, then "wakeplane: error: EPERM: operation not permitted, rename ..." and the new
+    // result removed with its staging folder.
+    expect(r.stderr).toBe(`wakeplane: out/faulty: belongs to another user (uid 0) in a folder where only a folder's owner may rename it (sticky bit), so it cannot be kept aside; nothing written. Ask its owner to move it, or choose another output.dir (--out)\n`);
+    expect(r.status).toBe(1);
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
   });
 });
 
