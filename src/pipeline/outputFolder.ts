@@ -321,12 +321,30 @@ export function checkRoot(root: string): void {
   }
 }
 
+/**
+ * Why this process may not rename `target` in `root` ('' when it may): in a folder with the sticky bit (as /tmp or a
+ * group's shared space) only the owner of an entry, or of the folder, may rename it, so an earlier result another
+ * user wrote there cannot be kept aside. `uid`: this process's user (tests pass another); root may rename anything.
+ */
+export function renameRefusal(root: string, target: string, uid = process.getuid?.()): string {
+  if (uid === undefined || uid === 0) return '';
+  let r, t;
+  try {
+    r = statSync(root);
+    t = lstatSync(target);
+  } catch {
+    return '';
+  }
+  if (!(r.mode & 0o1000) || t.uid === uid || r.uid === uid) return '';
+  return `belongs to another user (uid ${t.uid}) in a folder where only a folder's owner may rename it (sticky bit), so it cannot be kept aside; nothing written. Ask its owner to move it, or choose another output.dir (--out)`;
+}
+
 /** Throws OutputError when the target of a command exists and is not wakeplane's to replace (before any work). */
 export function checkTarget(req: FolderRequest): void {
   checkFolderName(req.folder, req.root);
   checkRoot(req.root);
   const target = join(req.root, req.folder);
-  const why = replaceRefusal(target, req.kind, req.campaign, req.inputs);
+  const why = replaceRefusal(target, req.kind, req.campaign, req.inputs) || renameRefusal(req.root, target);
   if (why) throw new OutputError(rel(target), why);
 }
 
@@ -464,7 +482,15 @@ export function openStaging(req: FolderRequest): Staging {
         if (existsSync(finalDir)) {
           let kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}`;
           for (let k = 2; existsSync(kept); k++) kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}-${k}`;
-          renameSync(finalDir, kept);
+          try {
+            renameSync(finalDir, kept);
+          } catch (e) {
+            // The earlier result cannot be moved aside (permissions changed while the command ran): the new result
+            // stays complete in the staging folder, which is named, not removed.
+            open = false;
+            unregister();
+            throw new OutputError(rel(finalDir), `cannot keep the earlier result aside (${(e as NodeJS.ErrnoException).code ?? 'error'}); the new result stays in ${rel(dir)}`);
+          }
           out.push(`an earlier result was kept as ${rel(kept)}`);
         }
         try {
