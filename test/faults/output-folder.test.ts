@@ -136,6 +136,25 @@ describe('an earlier result this user may not move', () => {
     expect(r.status).toBe(1);
     expect(snapshot(join(dir, 'out'))).toEqual(before);
   });
+
+  it.runIf(process.getuid?.() === 0 && setpriv)('another user\'s stale staging folder in a sticky folder: reported and left, the run goes on', async () => {
+    const { dir, file } = await freshCampaign();
+    const pid = deadPid();
+    const p = join(dir, 'out', `.faulty.partial-${pid}`);
+    mkdirSync(join(p, 'fields'), { recursive: true });
+    writeFileSync(join(p, 'fields', 'p5_w000.csv'), 'x');
+    writeFileSync(join(p, MARKER), partialMarker(pid, { processStart: '1' }));
+    for (let q = dir; q !== dirname(tmpdir()); q = dirname(q)) chmodSync(q, 0o777);
+    spawnSync('chmod', ['-R', 'a+rwX', dir]);
+    chmodSync(join(dir, 'out'), 0o1777);
+    const bin = join(import.meta.dirname, '..', '..', 'bin', 'wakeplane.js');
+    const r = spawnSync('setpriv', ['--reuid=65534', '--regid=65534', '--clear-groups', process.execPath, bin, 'run', file], { cwd: dir, encoding: 'utf8', env: { ...process.env, WAKEPLANE_FROM_SOURCE: '1' } });
+    // Before the fix: "wakeplane: error: EPERM: operation not permitted, rmdir ..." (its files already removed).
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+    expect(r.stdout).toContain(`note: unfinished folder out/.faulty.partial-${pid} left in place (its run (pid ${pid}) no longer exists; another user's, in a folder where only its owner may remove it)`);
+    expect(readFileSync(join(p, 'fields', 'p5_w000.csv'), 'utf8')).toBe('x');
+  });
 });
 
 describe('names', () => {
