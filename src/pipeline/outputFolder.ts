@@ -412,9 +412,16 @@ export function sweepPartials(root: string, folder: string, clean: boolean): str
   const notes: string[] = [];
   for (const p of findPartials(root, folder)) {
     if (p.status === 'running' && p.why === 'this process') continue;
-    if (p.status === 'stale' || (p.status === 'unknown' && clean)) {
-      rmSync(p.path, { recursive: true, force: true });
-      notes.push(`removed the unfinished folder ${rel(p.path)} (${p.why})`);
+    if ((p.status === 'stale' || (p.status === 'unknown' && clean)) && renameRefusal(root, p.path)) {
+      // another user's, in a sticky folder: its files could be removed, the folder itself not
+      notes.push(`unfinished folder ${rel(p.path)} left in place (${p.why}; another user's, in a folder where only its owner may remove it)`);
+    } else if (p.status === 'stale' || (p.status === 'unknown' && clean)) {
+      try {
+        rmSync(p.path, { recursive: true, force: true });
+        notes.push(`removed the unfinished folder ${rel(p.path)} (${p.why})`);
+      } catch (e) {
+        notes.push(`unfinished folder ${rel(p.path)} could not be removed (${(e as NodeJS.ErrnoException).code ?? 'error'}; ${p.why}); left in place`);
+      }
     } else if (p.status === 'unknown') {
       notes.push(`unfinished folder ${rel(p.path)} left in place (${p.why}); remove it with --clean`);
     } else {
