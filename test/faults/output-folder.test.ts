@@ -267,6 +267,15 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect(snapshot(join(dir, 'out'))).toEqual(before);
   });
 
+  it('a user\'s file whose name looks temporary (notes.2024.tmp) is still the user\'s: refused', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    writeFileSync(join(dir, 'out', 'faulty', 'notes.2024.tmp'), 'mine');
+    const r = await runCli(['run', file], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('wakeplane: out/faulty: holds notes.2024.tmp, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)\n');
+  });
+
   it('a plan folder with a user\'s file in it: refused, nothing moved', async () => {
     const { dir, file } = await freshCampaign((c) => (c.plan = { directions_deg: [270] }));
     expect((await runCli(['plan', file, '--no-images', '--quiet'], dir)).code).toBe(0);
