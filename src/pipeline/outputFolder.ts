@@ -29,6 +29,7 @@ import { hostname } from 'node:os';
 import { accessSync, constants, existsSync, lstatSync, mkdirSync, readdirSync, readFileSync, readlinkSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { basename, dirname, isAbsolute, join, relative, sep } from 'node:path';
 import { OutputError } from '../errors.ts';
+import { writeFileAtomic } from '../io/atomic.ts';
 import { removeOnInterrupt } from '../io/cleanup.ts';
 
 export const MARKER = '.wakeplane-folder.json';
@@ -85,7 +86,8 @@ function entriesOf(dir: string): { path: string; folder: boolean }[] {
 
 /**
  * The first entry of a complete folder that wakeplane did not write (files the marker lists, files the manifest
- * lists, the folders holding them, temporary names of a killed write), or undefined when there is none.
+ * lists, the folders holding them, the temporary name of a killed write of one of those), or undefined when there is
+ * none.
  */
 function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefined {
   const known = new Set<string>([MARKER, 'manifest.json', ...(m?.files ?? [])]);
@@ -101,6 +103,8 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
   const legacyPlan = m?.kind === 'plan' && !m.files;
   // A render that stopped before rewriting the manifest left figures and a report it had not listed yet.
   const drawn = (p: string) => m?.rendering !== undefined && DRAWN.test(p);
+  // a file wakeplane wrote; a temporary name (a killed write) counts when the file it was written for does
+  const ours = (p: string) => known.has(p) || drawn(p);
   const folders = new Set<string>();
   for (const f of known) for (let k = f.indexOf('/'); k > 0; k = f.indexOf('/', k + 1)) folders.add(f.slice(0, k));
   let entries;
@@ -110,7 +114,7 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
     return '.';
   }
   const found = entries.find((e) =>
-    !(e.folder ? folders.has(e.path) || (drawn(e.path + '/x.svg')) : known.has(e.path) || TEMPORARY.test(e.path) || drawn(e.path)) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
+    !(e.folder ? folders.has(e.path) || (drawn(e.path + '/x.svg')) : ours(e.path) || (TEMPORARY.test(e.path) && ours(e.path.replace(TEMPORARY, '')))) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
   return found?.path;
 }
 
@@ -192,7 +196,8 @@ export function markRendering(dir: string, on: boolean): void {
     const drawn = entriesOf(dir).filter((e) => !e.folder && DRAWN.test(e.path)).map((e) => e.path);
     rest.files = [...new Set([...(m.files ?? []), ...drawn])].sort();
   }
-  writeFileSync(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering: new Date().toISOString() } : rest, null, 2) + '\n');
+  // atomic: a render stopped mid-write must not leave a marker that no longer reads (the folder would be refused)
+  writeFileAtomic(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering: new Date().toISOString() } : rest, null, 2) + '\n');
 }
 
 export function readMarker(dir: string): FolderMarker | undefined {
