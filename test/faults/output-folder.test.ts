@@ -328,6 +328,22 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect(r.code).toBe(0);
   });
 
+  it('a render killed outright (its temporary figure file left), then a complete render: the result is still replaced', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const run = join(dir, 'out', 'faulty');
+    // what kill -9 leaves in the middle of a render: the mark set, a figure's temporary file
+    const m = JSON.parse(readFileSync(join(run, MARKER), 'utf8'));
+    writeFileSync(join(run, MARKER), JSON.stringify({ ...m, rendering: new Date().toISOString() }));
+    mkdirSync(join(run, 'images'), { recursive: true });
+    writeFileSync(join(run, 'images', `p5_w001_u_norm.svg.${deadPid()}.tmp`), '<svg');
+    expect((await runCli(['render', 'out/faulty', '--quiet'], dir)).code).toBe(0);
+    const r = await runCli(['run', file], dir);
+    // Before the fix: "holds images/p5_w001_u_norm.svg.<pid>.tmp, which wakeplane did not write", exit 1.
+    expect(withoutProgress(r.stderr)).toBe('');
+    expect(r.code).toBe(0);
+  });
+
   it('a stale staging folder holding what a run never writes is reported, not deleted, even with --clean', async () => {
     const { dir, file } = await freshCampaign();
     const pid = deadPid();
