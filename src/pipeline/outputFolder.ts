@@ -191,9 +191,9 @@ export function markRendering(dir: string, on: boolean): void {
   if (!m) return; // a result written before markers: its manifest alone lists its files
   const { rendering: _, ...rest } = m;
   if (!on && m.rendering !== undefined) {
-    // Figures an earlier, stopped render drew (allowed while the mark stood) that this render neither drew nor removed
-    // are wakeplane's: the marker lists them from now on.
-    const drawn = entriesOf(dir).filter((e) => !e.folder && DRAWN.test(e.path)).map((e) => e.path);
+    // Figures an earlier, stopped render drew (allowed while the mark stood) that this render neither drew nor removed,
+    // and the temporary files of one killed outright, are wakeplane's: the marker lists them from now on.
+    const drawn = entriesOf(dir).filter((e) => !e.folder && DRAWN.test(e.path.replace(TEMPORARY, ''))).map((e) => e.path);
     rest.files = [...new Set([...(m.files ?? []), ...drawn])].sort();
   }
   // atomic: a render stopped mid-write must not leave a marker that no longer reads (the folder would be refused)
