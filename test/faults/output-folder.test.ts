@@ -276,6 +276,17 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect(r.stderr).toBe('wakeplane: out/faulty: holds notes.2024.tmp, which wakeplane did not write; left alone. Move it out of the folder or choose another output.dir (--out)\n');
   });
 
+  it('render of a result holding a user\'s file: one line naming it and what to do, nothing redrawn', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    writeFileSync(join(dir, 'out', 'faulty', 'notes.txt'), 'mine');
+    const before = snapshot(join(dir, 'out'));
+    const r = await runCli(['render', 'out/faulty'], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe(`wakeplane: ${join(dir, 'out', 'faulty')}: holds notes.txt, which wakeplane did not write; left alone, nothing redrawn. Move it out of the folder and render again\n`);
+    expect(snapshot(join(dir, 'out'))).toEqual(before);
+  });
+
   it('a plan folder with a user\'s file in it: refused, nothing moved', async () => {
     const { dir, file } = await freshCampaign((c) => (c.plan = { directions_deg: [270] }));
     expect((await runCli(['plan', file, '--no-images', '--quiet'], dir)).code).toBe(0);
