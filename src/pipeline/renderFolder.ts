@@ -71,7 +71,10 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   }
   // Only a complete run folder wakeplane marked for this campaign is rewritten (outputFolder.ts).
   const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
-  if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
+  if (refusal) {
+    const advice = refusal.includes('which wakeplane did not write') ? '. Move it out of the folder and render again' : '';
+    throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn') + advice);
+  }
   const campaign = campaignFromManifest(m, manifestPath);
   // Images asked for windows or bins the run does not have: an error before anything is redrawn.
   const missing = [
