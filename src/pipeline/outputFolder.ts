@@ -10,8 +10,9 @@
  *   symbolic link, a user's folder, another campaign's result) stops the command before any work, with one line
  *   naming it; it is never moved. A marker is a file anyone can copy, so it is not proof alone: the folder must also
  *   hold only what wakeplane wrote there (the files the marker lists from the commit, and those the manifest lists,
- *   which a render adds to); a user's file or folder inside stops the command too, naming it. So does an earlier result that holds a file the command reads (the campaign file,
- *   a data or series file kept inside it): replacing it would move the user's files away.
+ *   which a render adds to); a user's file or folder inside stops the command too, naming it. So does an earlier
+ *   result that holds a file the command reads (the campaign file, a data or series file kept inside it): replacing
+ *   it would move the user's files away; and one another user owns in a folder with the sticky bit (not ours to move).
  * - The output root must be a folder or not exist yet; a file in its place (or in the place of a folder above it)
  *   stops the command before any work. (Results written before markers existed are recognised by their manifest.json
  *   naming wakeplane and the campaign.)
@@ -113,9 +114,12 @@ function foreignEntry(dir: string, m: FolderMarker | undefined): string | undefi
   } catch {
     return '.';
   }
-  const found = entries.find((e) =>
-    !(e.folder ? folders.has(e.path) || (drawn(e.path + '/x.svg')) : ours(e.path) || (TEMPORARY.test(e.path) && ours(e.path.replace(TEMPORARY, '')))) && !(legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))));
-  return found?.path;
+  const allowed = (e: { path: string; folder: boolean }) => {
+    if (legacyPlan && (e.path === 'plan' || e.path.startsWith('plan/'))) return true;
+    if (e.folder) return folders.has(e.path) || drawn(`${e.path}/x.svg`); // a folder render draws into
+    return ours(e.path) || (TEMPORARY.test(e.path) && ours(e.path.replace(TEMPORARY, '')));
+  };
+  return entries.find((e) => !allowed(e))?.path;
 }
 
 export interface FolderRequest {
@@ -378,7 +382,12 @@ export function findPartials(root: string, folder: string): PartialFolder[] {
       out.push({ path, status: 'unmarked', why: 'not marked by wakeplane; left alone' });
       continue;
     }
-    const foreign = readdirSync(path).find((n) => !RUN_ENTRIES.has(n) && !TEMPORARY.test(n));
+    let foreign: string | undefined;
+    try {
+      foreign = readdirSync(path).find((n) => !RUN_ENTRIES.has(n) && !TEMPORARY.test(n));
+    } catch (e) {
+      foreign = `what cannot be listed (${(e as NodeJS.ErrnoException).code ?? 'error'})`;
+    }
     if (foreign) {
       out.push({ path, status: 'unmarked', why: `holds ${foreign}, which a run does not write; left alone` });
       continue;
