@@ -355,6 +355,28 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
     expect(r.code).toBe(0);
   });
 
+  it('a result being redrawn by a render still running: refused in one line before any work, not moved under it', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const run = join(dir, 'out', 'faulty');
+    const child = spawn('sleep', ['30']); // stands for the render's process
+    try {
+      await new Promise((r) => setTimeout(r, 50));
+      const m = JSON.parse(readFileSync(join(run, MARKER), 'utf8'));
+      const rendering = { at: new Date().toISOString(), host: hostname(), pid: child.pid, processStart: processStartOf(child.pid!) };
+      writeFileSync(join(run, MARKER), JSON.stringify({ ...m, rendering }));
+      const before = snapshot(join(dir, 'out'));
+      const r = await runCli(['run', file], dir);
+      // Before the fix the folder was renamed under the render, which then wrote its figures and the old manifest
+      // into the new result.
+      expect(r.code).toBe(1);
+      expect(r.stderr).toBe(`wakeplane: out/faulty: is being redrawn by \`wakeplane render\` (pid ${child.pid}); left alone. Wait for it to finish and run again\n`);
+      expect(snapshot(join(dir, 'out'))).toEqual(before);
+    } finally {
+      child.kill();
+    }
+  });
+
   it('a stale staging folder holding what a run never writes is reported, not deleted, even with --clean', async () => {
     const { dir, file } = await freshCampaign();
     const pid = deadPid();
