@@ -52,8 +52,8 @@ export interface FolderMarker {
   finishedAt?: string;
   /** Every file in the folder when it was completed, relative, '/'-separated (written at commit). */
   files?: string[];
-  /** Set while `render` redraws the folder (its start time), cleared when the render has listed its outputs. */
-  rendering?: string;
+  /** Set while `render` redraws the folder (its process), cleared when the render has listed its outputs. */
+  rendering?: { at: string; host: string; pid: number; processStart: string } | string;
 }
 
 /**
@@ -201,7 +201,8 @@ export function markRendering(dir: string, on: boolean): void {
     rest.files = [...new Set([...(m.files ?? []), ...drawn])].sort();
   }
   // atomic: a render stopped mid-write must not leave a marker that no longer reads (the folder would be refused)
-  writeFileAtomic(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering: new Date().toISOString() } : rest, null, 2) + '\n');
+  const rendering = { at: new Date().toISOString(), host: hostname(), pid: process.pid, processStart: processStartOf(process.pid) };
+  writeFileAtomic(join(dir, MARKER), JSON.stringify(on ? { ...rest, rendering } : rest, null, 2) + '\n');
 }
 
 export function readMarker(dir: string): FolderMarker | undefined {
@@ -296,6 +297,10 @@ function ownRefusal(path: string, kind: FolderKind, campaign: string): string | 
     return `holds wakeplane's ${m.kind === 'plan' ? 'plan' : 'results'} of campaign "${m.campaign}", not the ${kind === 'plan' ? 'plan' : 'results'} of "${campaign}"; left alone. Choose another name or output.dir (--out)`;
   }
   if (m.state !== 'complete') return 'is marked as an unfinished folder; left alone';
+  const r = m.rendering;
+  if (r && typeof r === 'object' && r.host === hostname() && r.pid !== process.pid && r.processStart && processStartOf(r.pid) === r.processStart) {
+    return `is being redrawn by \`wakeplane render\` (pid ${r.pid}); left alone. Wait for it to finish and run again`;
+  }
   return { marker: m };
 }
 
