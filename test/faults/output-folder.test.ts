@@ -6,10 +6,13 @@
 import { spawn, spawnSync } from 'node:child_process';
 import { chmodSync, existsSync, lstatSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
 import { hostname, tmpdir } from 'node:os';
-import { dirname, join } from 'node:path';
+import { dirname, join, relative } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
 import { MARKER, processStartOf, renameRefusal } from '../../src/pipeline/outputFolder.ts';
 import { renderRunFolder } from '../../src/pipeline/renderFolder.ts';
+import { runCampaign } from '../../src/pipeline/run.ts';
+import { defaultStages } from '../../src/pipeline/stages.ts';
+import { loadCampaignFile } from '../../src/campaign/load.ts';
 import { freshCampaign, manifestOf, runCli, snapshot } from './helpers.ts';
 
 const bootId = () => (existsSync('/proc/sys/kernel/random/boot_id') ? readFileSync('/proc/sys/kernel/random/boot_id', 'utf8').trim() : '');
@@ -372,6 +375,34 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
       expect(r.code).toBe(1);
       expect(r.stderr).toBe(`wakeplane: out/faulty: is being redrawn by \`wakeplane render\` (pid ${child.pid}); left alone. Wait for it to finish and run again\n`);
       expect(snapshot(join(dir, 'out'))).toEqual(before);
+    } finally {
+      child.kill();
+    }
+  });
+
+  it('a render starting on the earlier result while the run works: the new result is kept in its staging folder, named', async () => {
+    const { dir, file } = await freshCampaign();
+    expect((await runCli(['run', file, '--quiet'], dir)).code).toBe(0);
+    const run = join(dir, 'out', 'faulty');
+    const child = spawn('sleep', ['30']); // stands for the render's process
+    try {
+      await new Promise((r) => setTimeout(r, 50));
+      // a last stage that marks the earlier result as being redrawn, as a render starting then would
+      const renderStarts = {
+        name: 'render-elsewhere',
+        async finish() {
+          const m = JSON.parse(readFileSync(join(run, MARKER), 'utf8'));
+          writeFileSync(join(run, MARKER), JSON.stringify({ ...m, rendering: { at: '', host: hostname(), pid: child.pid, processStart: processStartOf(child.pid!) } }));
+          return [];
+        },
+      };
+      const c = loadCampaignFile(file);
+      const err = await runCampaign(c, { outRoot: join(dir, 'out'), images: false, stages: [...defaultStages(), renderStarts] }).then(() => undefined, (e: Error) => e);
+      const staging = join('out', `.faulty.partial-${process.pid}`);
+      // Before the fix: "...the new result was not kept" and the staging folder removed, the whole run's work lost.
+      expect(err?.message).toBe(`${relative(process.cwd(), run)}: is being redrawn by \`wakeplane render\` (pid ${child.pid}); left alone. Wait for it to finish and run again (it appeared while this command ran); the new result stays in ${relative(process.cwd(), join(dir, staging))}`);
+      expect(JSON.parse(readFileSync(join(dir, staging, MARKER), 'utf8')).state).toBe('complete');
+      expect(existsSync(join(dir, staging, 'manifest.json'))).toBe(true);
     } finally {
       child.kill();
     }
