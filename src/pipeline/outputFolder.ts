@@ -384,7 +384,8 @@ export function findPartials(root: string, folder: string): PartialFolder[] {
     }
     const m = st.isDirectory() ? readMarker(path) : undefined;
     if (!m || m.state !== 'partial') {
-      out.push({ path, status: 'unmarked', why: 'not marked by wakeplane; left alone' });
+      const why = m?.state === 'complete' ? 'a finished result kept there because its target was in the way; left alone: move it into place yourself' : 'not marked by wakeplane; left alone';
+      out.push({ path, status: 'unmarked', why });
       continue;
     }
     let foreign: string | undefined;
@@ -504,7 +505,12 @@ export function openStaging(req: FolderRequest): Staging {
       writeFileSync(join(dir, MARKER), JSON.stringify({ ...marker, state: 'complete', finishedAt: new Date().toISOString(), files }, null, 2) + '\n');
       for (let attempt = 0; ; attempt++) {
         const why = replaceRefusal(finalDir, req.kind, req.campaign, req.inputs);
-        if (why) throw new OutputError(rel(finalDir), `${why} (it appeared while this command ran; the new result was not kept)`);
+        if (why) {
+          // The new result is complete: kept where it is (marked complete, so never swept as a stopped run's) and named.
+          open = false;
+          unregister();
+          throw new OutputError(rel(finalDir), `${why} (it appeared while this command ran); the new result stays in ${rel(dir)}`);
+        }
         if (existsSync(finalDir)) {
           let kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}`;
           for (let k = 2; existsSync(kept); k++) kept = `${finalDir}.replaced-${stamp(new Date())}-${process.pid}-${k}`;

@@ -8,7 +8,7 @@ import { chmodSync, existsSync, lstatSync, mkdirSync, mkdtempSync, readdirSync, 
 import { hostname, tmpdir } from 'node:os';
 import { dirname, join, relative } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
-import { MARKER, processStartOf, renameRefusal } from '../../src/pipeline/outputFolder.ts';
+import { MARKER, findPartials, processStartOf, renameRefusal } from '../../src/pipeline/outputFolder.ts';
 import { renderRunFolder } from '../../src/pipeline/renderFolder.ts';
 import { runCampaign } from '../../src/pipeline/run.ts';
 import { defaultStages } from '../../src/pipeline/stages.ts';
@@ -403,6 +403,7 @@ describe('a marker does not make a folder wakeplane\'s: only what a run wrote ma
       expect(err?.message).toBe(`${relative(process.cwd(), run)}: is being redrawn by \`wakeplane render\` (pid ${child.pid}); left alone. Wait for it to finish and run again (it appeared while this command ran); the new result stays in ${relative(process.cwd(), join(dir, staging))}`);
       expect(JSON.parse(readFileSync(join(dir, staging, MARKER), 'utf8')).state).toBe('complete');
       expect(existsSync(join(dir, staging, 'manifest.json'))).toBe(true);
+      expect(findPartials(join(dir, 'out'), 'faulty').map((p) => p.why)).toEqual(['a finished result kept there because its target was in the way; left alone: move it into place yourself']);
     } finally {
       child.kill();
     }
