@@ -22,6 +22,10 @@ import { FIGURES_DEFAULT, figuresSchema } from './figures.ts';
 export const ID_PATTERN = /^[A-Za-z0-9_.-]+$/;
 export const ID_RULE = 'letters, digits, "_", "." and "-" only';
 
+/** The longest id (as the campaign name): file names hold one id and up to 45 characters more, within 255 bytes. */
+export const ID_MAX = 100;
+const idString = () => z.string().max(ID_MAX, `at most ${ID_MAX} characters (ids name output files)`).regex(ID_PATTERN, ID_RULE);
+
 const finite = () => z.number().refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite(), finite(), finite()]);
 
@@ -83,7 +87,7 @@ const cwSchema = z
 
 const instrumentSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE),
+    id: idString(),
     position_m: vec3.optional().describe('site-frame position east, north, up, metres (the beam origin)'),
     position_wgs84: z
       .object({
@@ -146,7 +150,7 @@ const extent = z
 
 const planeSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE),
+    id: idString(),
     orientation: z
       .enum(['cross', 'horizontal'])
       .default('cross')
@@ -320,7 +324,7 @@ export const powerSchema = z
 
 const turbineSchema = z
   .object({
-    id: z.string().regex(ID_PATTERN, ID_RULE).default('turbine'),
+    id: idString().default('turbine'),
     position_m: vec3.describe('tower base east, north, up in the site frame, metres'),
     hubHeight_m: finite().positive().describe('hub height above the tower base, metres'),
     rotorDiameter_m: finite().positive().describe('rotor diameter, metres'),
@@ -331,12 +335,18 @@ const turbineSchema = z
   })
   .strict();
 
+/** Not a Windows device name (any case, with or without an extension); no regex flag, so the JSON schema keeps it. */
+const WINDOWS_DEVICE = new RegExp(`^(?!(?:${['CON', 'PRN', 'AUX', 'NUL', 'COM[1-9]', 'LPT[1-9]'].map((w) => w.replace(/[A-Z]/g, (ch) => `[${ch}${ch.toLowerCase()}]`)).join('|')})(?:\\.|$))`);
+
 export const campaignSchema = z
   .object({
     name: z
       .string()
       .max(100, 'at most 100 characters (used as the output folder name)')
       .regex(/^[A-Za-z0-9_-][A-Za-z0-9_.-]*$/, 'letters, digits, "_", "." and "-" only, not starting with "." (used as the output folder name)')
+      // Windows drops a final dot (so "x." is the folder "x") and opens a device for these names, with any extension.
+      .regex(/[^.]$/, 'not ending with "." (Windows drops it: another folder) (used as the output folder name)')
+      .regex(WINDOWS_DEVICE, 'not a device name Windows reserves (CON, PRN, AUX, NUL, COM1-9, LPT1-9, with or without an extension) (used as the output folder name)')
       .describe('campaign name; the output folder is <output.dir>/<name>'),
     description: z.string().default(''),
     site: z

@@ -4,26 +4,33 @@
  * number (130, 143), as shells expect. Installed once by main.ts; a second signal while exiting changes nothing.
  */
 import { relative, sep } from 'node:path';
-import { removeRegistered } from '../io/cleanup.ts';
+import { interruptNotes, removeRegistered } from '../io/cleanup.ts';
 
 const CODES = { SIGINT: 130, SIGTERM: 143 } as const;
 
 let installed = false;
+
+/** Removes what was registered as unfinished and returns the one line to print for `sig`. */
+export function interruptLine(sig: keyof typeof CODES): string {
+  const { removed: all, failed } = removeRegistered();
+  // name the folders, not the files inside them
+  const show = (list: string[]) => list.filter((p) => !all.some((q) => q !== p && p.startsWith(q + sep))).map((p) => relative(process.cwd(), p) || p);
+  const removed = show(all);
+  const notes = interruptNotes();
+  return (
+    `wakeplane: interrupted by ${sig}; ${removed.length ? `removed the unfinished ${removed.join(', ')}` : 'nothing unfinished to remove'}` +
+    `${failed.length ? `; could not remove ${show(failed).join(', ')}` : ''}; ${notes.length ? notes.join('; ') : 'no result was written'}\n`
+  );
+}
 
 export function installSignalHandlers(): void {
   if (installed) return;
   installed = true;
   for (const sig of Object.keys(CODES) as (keyof typeof CODES)[]) {
     process.on(sig, () => {
-      const { removed: all, failed } = removeRegistered();
-      // name the folders, not the files inside them
-      const show = (list: string[]) => list.filter((p) => !all.some((q) => q !== p && p.startsWith(q + sep))).map((p) => relative(process.cwd(), p) || p);
-      const removed = show(all);
+      const line = interruptLine(sig);
       if (process.stderr.isTTY) process.stderr.write('\r\x1b[2K');
-      process.stderr.write(
-        `wakeplane: interrupted by ${sig}; ${removed.length ? `removed the unfinished ${removed.join(', ')}` : 'nothing unfinished to remove'}` +
-          `${failed.length ? `; could not remove ${show(failed).join(', ')}` : ''}; no result was written\n`,
-      );
+      process.stderr.write(line);
       process.exit(CODES[sig]);
     });
   }

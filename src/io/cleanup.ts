@@ -20,6 +20,22 @@ export function stopOnInterrupt(stop: () => void): () => void {
   return () => stoppers.delete(stop);
 }
 
+const notes = new Set<string>();
+
+/**
+ * Registers what the interrupt line must say about work that cannot be undone by a removal (render changes a finished
+ * folder in place); returns the function that unregisters it.
+ */
+export function noteOnInterrupt(text: string): () => void {
+  notes.add(text);
+  return () => notes.delete(text);
+}
+
+/** The notes registered now (the interrupt line). */
+export function interruptNotes(): string[] {
+  return [...notes];
+}
+
 /** Registers `path` for removal on interrupt; returns the function that unregisters it. */
 export function removeOnInterrupt(path: string): () => void {
   registered.add(path);

@@ -94,9 +94,11 @@ export async function preflight(c: Campaign, opts: PreflightOptions): Promise<Pr
           errors.push(new InputError(file, undefined, bad.kind === 'missing' ? `data file of instrument "${ins.id}" not found` : `data file of instrument "${ins.id}" ${bad.reason}`));
           continue;
         }
+        // The file's identity, not its path: a symbolic link or a hard link to a file already listed is that file.
         let real = file;
         try {
-          real = realpathSync(file);
+          const st = statSync(file);
+          real = st.ino ? `${st.dev}:${st.ino}` : realpathSync(file); // no inode number (some file systems): the path
         } catch {
           /* checked above */
         }

@@ -11,15 +11,16 @@
  * with the time of the render.
  */
 import { existsSync, readFileSync, rmSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { join, relative, resolve } from 'node:path';
 import type { WindowImages } from '../campaign/figures.ts';
-import { ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
+import { ID_MAX, ID_PATTERN, ID_RULE } from '../campaign/schema.ts';
 import type { Campaign } from '../campaign/types.ts';
 import { InputError, OptionError, OutputError } from '../errors.ts';
 import { missingSelectedText } from '../render/figureSelection.ts';
 import { writeFileAtomic } from '../io/atomic.ts';
+import { noteOnInterrupt } from '../io/cleanup.ts';
 import type { OutputRecord, RunManifest } from './manifest.ts';
-import { replaceRefusal } from './outputFolder.ts';
+import { markRendering, replaceRefusal } from './outputFolder.ts';
 import type { RunProgress, StageContext } from './run.ts';
 import { fieldsFromTables, imageStage, planStage, reportStage, wakeStage } from './stages.ts';
 import { budgetStage } from './budgetStage.ts';
@@ -48,7 +49,7 @@ export function campaignFromManifest(m: RunManifest, file: string): Campaign {
   // Ids name the figure files: a hand-edited manifest must not lead a render outside the run folder.
   for (const key of ['planes', 'turbines', 'instruments'] as const) {
     ((c as unknown as Record<string, { id?: unknown }[] | undefined>)[key] ?? []).forEach((x, i) => {
-      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id)) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE} (got ${JSON.stringify(x?.id)}); nothing redrawn`);
+      if (typeof x?.id !== 'string' || !ID_PATTERN.test(x.id) || x.id.length > ID_MAX) throw new InputError(file, undefined, `settings.${key}[${i}].id: ${ID_RULE}, at most ${ID_MAX} characters (got ${JSON.stringify(x?.id)}); nothing redrawn`);
     });
   }
   const num = (v: unknown) => (typeof v === 'number' ? v : NaN);
@@ -70,7 +71,10 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
   }
   // Only a complete run folder wakeplane marked for this campaign is rewritten (outputFolder.ts).
   const refusal = replaceRefusal(runDir, 'run', m.campaign?.name ?? '');
-  if (refusal) throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn'));
+  if (refusal) {
+    const advice = refusal.includes('which wakeplane did not write') ? '. Move it out of the folder and render again' : '';
+    throw new OutputError(runDir, refusal.replace(/; left alone.*$/, '; left alone, nothing redrawn') + advice);
+  }
   const campaign = campaignFromManifest(m, manifestPath);
   // Images asked for windows or bins the run does not have: an error before anything is redrawn.
   const missing = [
@@ -86,67 +90,75 @@ export async function renderRunFolder(folder: string, opts: RenderOptions = {}):
     if (!existsSync(table)) throw new InputError(table, undefined, 'field table listed in the manifest is missing; nothing redrawn');
   }
   const progress = opts.progress;
-  const oldImages = m.outputs.filter((o) => o.kind === 'image');
-  const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
-  const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
-  const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s }, warnings: [...m.warnings] };
-  const ctx: StageContext = { campaign, runDir, images: true, manifest, shared: {} };
+  markRendering(runDir, true);
+  const shown = relative(process.cwd(), runDir) || runDir;
+  const unnote = noteOnInterrupt(`${shown} was part redrawn (its manifest and report.html are still the earlier ones); run \`wakeplane render ${shown}\` again`);
+  try {
+    const oldImages = m.outputs.filter((o) => o.kind === 'image');
+    const hadPlan = m.outputs.some((o) => o.path.startsWith('plan/'));
+    const kept: OutputRecord[] = m.outputs.filter((o) => !REDRAWN.has(o.kind) && !(hadPlan && o.path.startsWith('plan/')));
+    const manifest: RunManifest = { ...m, outputs: kept, timings_s: { ...m.timings_s }, warnings: [...m.warnings] };
+    const ctx: StageContext = { campaign, runDir, images: true, manifest, shared: {} };
 
-  // The wake analysis again from the field tables, without writing its tables, then the figures.
-  const wake = wakeStage({ write: false });
-  const budget = budgetStage();
-  const images = imageStage({ ...(opts.windowImages ? { windowImages: opts.windowImages } : {}), ...(opts.binImages ? { binImages: opts.binImages } : {}) });
-  progress?.stage('reading field tables');
-  let t: number;
-  for await (const f of fieldsFromTables(campaign, runDir, manifest, () => true)) {
-    await wake.field!(f, ctx);
-    await budget.field!(f, ctx);
-    await images.field!(f, ctx);
-    progress?.file('fields', 1);
-  }
-  await wake.finish!(ctx);
-  progress?.stage('images');
-  t = performance.now();
-  // The budget's figures and report section again from the tables' budget columns (runs without them have none).
-  const recs = [...(await budget.finish!(ctx)), ...(await images.finish!(ctx))];
-  manifest.outputs.push(...recs);
-  manifest.timings_s.images = (performance.now() - t) / 1000;
-  // The figures of the data-driven CNR limit, from the evidence the manifest keeps (a run without images has none yet).
-  if (manifest.cnrLimits) {
-    const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
-    const cnrFigures = await renderCnrLimitFigures(manifest.cnrLimits.perInstrument, runDir);
-    recs.push(...cnrFigures);
-    manifest.outputs.push(...cnrFigures);
-  }
-  if (hadPlan) {
-    progress?.stage('planner');
-    t = performance.now();
-    manifest.outputs.push(...(await planStage().finish!(ctx)));
-    manifest.timings_s.planner = (performance.now() - t) / 1000;
-  }
-  const fresh = new Set(manifest.outputs.map((o) => o.path));
-  let removed = 0, keptAsDrawn = 0;
-  for (const o of oldImages) {
-    if (fresh.has(o.path)) continue;
-    // Drawn or not by the selection (single windows, bins) or by the planner redrawn: gone when not drawn now.
-    const bySelection = o.window !== undefined || o.bin !== undefined || (hadPlan && o.path.startsWith('plan/'));
-    if (bySelection) {
-      if (!/^(images|plan)\/[^/]+\.(svg|png)$/.test(o.path)) continue;
-      rmSync(join(runDir, o.path), { force: true });
-      removed++;
-    } else if (existsSync(join(runDir, o.path))) {
-      // A figure of a stage this render does not redo (its results are not in the field tables): kept, still listed.
-      manifest.outputs.push(o);
-      keptAsDrawn++;
+    // The wake analysis again from the field tables, without writing its tables, then the figures.
+    const wake = wakeStage({ write: false });
+    const budget = budgetStage();
+    const images = imageStage({ ...(opts.windowImages ? { windowImages: opts.windowImages } : {}), ...(opts.binImages ? { binImages: opts.binImages } : {}) });
+    progress?.stage('reading field tables');
+    let t: number;
+    for await (const f of fieldsFromTables(campaign, runDir, manifest, () => true)) {
+      await wake.field!(f, ctx);
+      await budget.field!(f, ctx);
+      await images.field!(f, ctx);
+      progress?.file('fields', 1);
     }
+    await wake.finish!(ctx);
+    progress?.stage('images');
+    t = performance.now();
+    // The budget's figures and report section again from the tables' budget columns (runs without them have none).
+    const recs = [...(await budget.finish!(ctx)), ...(await images.finish!(ctx))];
+    manifest.outputs.push(...recs);
+    manifest.timings_s.images = (performance.now() - t) / 1000;
+    // The figures of the data-driven CNR limit, from the evidence the manifest keeps (a run without images has none yet).
+    if (manifest.cnrLimits) {
+      const { renderCnrLimitFigures } = await import('../render/cnrLimitFigure.ts');
+      const cnrFigures = await renderCnrLimitFigures(manifest.cnrLimits.perInstrument, runDir);
+      recs.push(...cnrFigures);
+      manifest.outputs.push(...cnrFigures);
+    }
+    if (hadPlan) {
+      progress?.stage('planner');
+      t = performance.now();
+      manifest.outputs.push(...(await planStage().finish!(ctx)));
+      manifest.timings_s.planner = (performance.now() - t) / 1000;
+    }
+    const fresh = new Set(manifest.outputs.map((o) => o.path));
+    let removed = 0, keptAsDrawn = 0;
+    for (const o of oldImages) {
+      if (fresh.has(o.path)) continue;
+      // Drawn or not by the selection (single windows, bins) or by the planner redrawn: gone when not drawn now.
+      const bySelection = o.window !== undefined || o.bin !== undefined || (hadPlan && o.path.startsWith('plan/'));
+      if (bySelection) {
+        if (!/^(images|plan)\/[^/]+\.(svg|png)$/.test(o.path)) continue;
+        rmSync(join(runDir, o.path), { force: true });
+        removed++;
+      } else if (existsSync(join(runDir, o.path))) {
+        // A figure of a stage this render does not redo (its results are not in the field tables): kept, still listed.
+        manifest.outputs.push(o);
+        keptAsDrawn++;
+      }
+    }
+    // The analysis again may state a warning the run already recorded: keep each once.
+    manifest.warnings = [...new Set(manifest.warnings)];
+    manifest.rendered = { at: new Date().toISOString(), seconds: (performance.now() - t0) / 1000 };
+    progress?.stage('report');
+    manifest.outputs.push(...(await reportStage().finish!(ctx)));
+    manifest.outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
+    writeFileAtomic(manifestPath, JSON.stringify(manifest, null, 2) + '\n');
+    markRendering(runDir, false);
+    progress?.done();
+    return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, kept: keptAsDrawn, seconds: manifest.rendered.seconds };
+  } finally {
+    unnote();
   }
-  // The analysis again may state a warning the run already recorded: keep each once.
-  manifest.warnings = [...new Set(manifest.warnings)];
-  manifest.rendered = { at: new Date().toISOString(), seconds: (performance.now() - t0) / 1000 };
-  progress?.stage('report');
-  manifest.outputs.push(...(await reportStage().finish!(ctx)));
-  manifest.outputs.push({ kind: 'manifest', path: 'manifest.json', description: 'this run: inputs, settings, sample accounting, timings' });
-  writeFileAtomic(manifestPath, JSON.stringify(manifest, null, 2) + '\n');
-  progress?.done();
-  return { runDir, manifest, images: recs.filter((r) => r.path.endsWith('.svg')).length, removed, kept: keptAsDrawn, seconds: manifest.rendered.seconds };
 }

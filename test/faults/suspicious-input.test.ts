@@ -4,7 +4,7 @@
  * (terminal, manifest, report), the rows counted under their reason, the results unchanged where they must be, and
  * for unusable files the error, the exit code and that nothing was written.
  */
-import { copyFileSync, existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { copyFileSync, existsSync, linkSync, readdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { HEADER, dataLines, fieldTables, freshCampaign, manifestOf, runCli, withoutBudget, writeLines } from './helpers.ts';
@@ -135,6 +135,20 @@ describe('the same data twice', () => {
     expect(m.samples.perInstrument).toEqual(clean.manifest.samples.perInstrument);
     expect(fieldTables(join(dir, 'out', 'faulty'))).toEqual(clean.tables);
     expect(m.inputs.length).toBe(3);
+  });
+
+  it('the same file under a second name (a hard link, a symbolic link): read once, with a warning; results as clean', async () => {
+    for (const link of [linkSync, symlinkSync]) {
+      const { dir, file } = await freshCampaign((c) => (c.instruments[0].files = ['data/a.csv', 'data/a-link.csv']));
+      link(join(dir, 'data', 'a.csv'), join(dir, 'data', 'a-link.csv'));
+      const r = await runCli(['run', file], dir);
+      expect(r.code).toBe(0);
+      // Before the fix a hard link (same device and inode, another path) was read twice: every row of a used again.
+      expect(r.stdout).toContain('warning: data/a-link.csv is listed twice (under instrument a as data/a.csv and under a): read once, for a\n');
+      const m = manifestOf(join(dir, 'out', 'faulty'));
+      expect(m.samples.perInstrument).toEqual(clean.manifest.samples.perInstrument);
+      expect(fieldTables(join(dir, 'out', 'faulty'))).toEqual(clean.tables);
+    }
   });
 
   it('the same content under two names: named by SHA-256, and its rows found as repeats', async () => {
