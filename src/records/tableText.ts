@@ -62,16 +62,24 @@ function text(v: Cell): string {
 /** One value as its column writes it. */
 export function formatCell(L: TableLayout, k: number, v: Cell, row: readonly Cell[]): string {
   if (typeof v !== 'number') return text(v);
+  const s = L.kind[k] === K_UNC ? row[L.by[k]] : NaN;
+  return numberText(L, k, v, typeof s === 'number' ? s : NaN);
+}
+
+/**
+ * A number as column k writes it; `s` is the value of the column whose uncertainty rounds it (uncertainty columns;
+ * NaN when that value is not a number).
+ */
+function numberText(L: TableLayout, k: number, v: number, s: number): string {
   switch (L.kind[k]) {
     case K_INT: return Number.isFinite(v) ? String(Math.round(v)) : '';
     case K_DEC: return formatDecimals(v, L.digits[k], false);
     case K_SIG: return formatSignificant(v, L.digits[k], L.keep[k] === 1);
     case K_UNC: {
-      const s = row[L.by[k]];
-      const known = typeof s === 'number' && s > 0 && Number.isFinite(s);
+      const known = s > 0 && Number.isFinite(s);
       return formatDecimals(v, known ? decimalsForUncertainty(s, L.digits[k]) : L.digits[k], known);
     }
-    default: return text(v);
+    default: return Number.isFinite(v) ? String(v) : '';
   }
 }
 
@@ -87,24 +95,13 @@ export function rowLineSplit(L: TableLayout, text_: readonly (string | null)[], 
   for (let k = 0; k < n; k++) {
     if (k > 0) out += ',';
     const t = text_[k];
-    out += t !== null ? text(t) : formatNumber(L, k, nums[k], text_, nums);
+    if (t !== null) out += text(t);
+    else {
+      const by = L.kind[k] === K_UNC ? L.by[k] : -1;
+      out += numberText(L, k, nums[k], by >= 0 && text_[by] === null ? nums[by] : NaN);
+    }
   }
   return out + '\n';
-}
-
-/** formatCell of a number in column k of a split row (rowLineSplit). */
-function formatNumber(L: TableLayout, k: number, v: number, text_: readonly (string | null)[], nums: Float64Array): string {
-  switch (L.kind[k]) {
-    case K_INT: return Number.isFinite(v) ? String(Math.round(v)) : '';
-    case K_DEC: return formatDecimals(v, L.digits[k], false);
-    case K_SIG: return formatSignificant(v, L.digits[k], L.keep[k] === 1);
-    case K_UNC: {
-      const by = L.by[k], s = nums[by];
-      const known = text_[by] === null && s > 0 && Number.isFinite(s);
-      return formatDecimals(v, known ? decimalsForUncertainty(s, L.digits[k]) : L.digits[k], known);
-    }
-    default: return Number.isFinite(v) ? String(v) : '';
-  }
 }
 
 export function headerLine(L: TableLayout): string {
